@@ -1,0 +1,27 @@
+import Database from 'better-sqlite3';
+import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3';
+import { migrate } from 'drizzle-orm/better-sqlite3/migrator';
+import fs from 'node:fs';
+import path from 'node:path';
+import * as schema from './schema';
+
+export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database };
+
+const MIGRATIONS = path.resolve(__dirname, '..', 'migrations');
+
+/** Opens (creating if needed) a SQLite file, or ':memory:', with the pragmas every connection needs. */
+export function openDb(file: string): Db {
+  if (file !== ':memory:') fs.mkdirSync(path.dirname(path.resolve(file)), { recursive: true });
+  const sqlite = new Database(file);
+  sqlite.pragma('journal_mode = WAL');
+  // FULL: an acknowledged write survives power loss, which the audit trail and readings need.
+  sqlite.pragma('synchronous = FULL');
+  sqlite.pragma('busy_timeout = 5000');
+  sqlite.pragma('foreign_keys = ON');
+  return drizzle(sqlite, { schema }) as Db;
+}
+
+/** Applies the committed drizzle-kit migrations. */
+export function migrateDb(db: Db): void {
+  migrate(db, { migrationsFolder: MIGRATIONS });
+}

@@ -1,0 +1,154 @@
+import bcrypt from 'bcryptjs';
+import { sql } from 'drizzle-orm';
+import type { CertStability } from '../src/contracts/lots';
+import type { Role } from '../src/contracts/roles';
+import type { Db } from './client';
+import { enzymes, lots, sites, users, vessels } from './schema';
+
+// An invented plant for demos and tests. Names, suppliers, lots and figures are made up.
+
+export const DEMO_USERS: { role: Role; email: string; name: string; password: string }[] = [
+  { role: 'admin', email: 'admin@haldenbay.test', name: 'Ines Varga', password: 'demo-admin-26' },
+  { role: 'engineer', email: 'engineer@haldenbay.test', name: 'Tomasz Ekwueme', password: 'demo-engineer-26' },
+  { role: 'supervisor', email: 'supervisor@haldenbay.test', name: 'Marit Oyelaran', password: 'demo-supervisor-26' },
+  { role: 'procurement', email: 'procurement@haldenbay.test', name: 'Rafael Lindqvist', password: 'demo-procurement-26' },
+  { role: 'operator', email: 'operator@haldenbay.test', name: 'Sunniva Achebe', password: 'demo-operator-26' },
+];
+
+const LN2 = Math.LN2;
+const LN10 = Math.LN10;
+
+/** First-order kd (1/h) at the certificate's temperature from the figure as the supplier states it. */
+export function certKdPerH(s: CertStability): number {
+  switch (s.form) {
+    case 'halfLife':
+      return LN2 / s.halfLifeH;
+    case 'residual':
+      return -Math.log(s.residualFraction) / (s.minutes / 60);
+    case 'dValue':
+      return LN10 / (s.dMinutes / 60);
+  }
+}
+
+const ENZYMES = [
+  {
+    name: 'Amylo GA-17',
+    enzymeClass: 'Glucoamylase',
+    ecNumber: '3.2.1.3',
+    supplier: 'Corvane Biocatalysts',
+    activityUnit: 'GAU/g',
+    unitDefinition: '1 GAU releases 1 g glucose per hour from 4 % soluble starch at pH 4.3 and 60 °C',
+    tRefC: 60,
+    eaKJPerMol: 55,
+    specTempC: 60,
+    specMinHalfLifeH: 20,
+    specMinActivity: 400,
+  },
+  {
+    name: 'Thermo AA-90',
+    enzymeClass: 'Alpha-amylase',
+    ecNumber: '3.2.1.1',
+    supplier: 'Tessaly Bioworks',
+    activityUnit: 'AAU/g',
+    unitDefinition: '1 AAU dextrinises 1 mg starch per minute at pH 6.0 and 85 °C',
+    tRefC: 85,
+    eaKJPerMol: 45,
+    specTempC: 85,
+    specMinHalfLifeH: 3,
+    specMinActivity: 1200,
+  },
+  {
+    name: 'Lacta LX-5',
+    enzymeClass: 'Beta-galactosidase (lactase)',
+    ecNumber: '3.2.1.23',
+    supplier: 'Oakhurst Ferments',
+    activityUnit: 'BGU/mL',
+    unitDefinition: '1 BGU releases 1 µmol o-nitrophenol per minute from ONPG at pH 6.5 and 37 °C',
+    tRefC: 40,
+    eaKJPerMol: 40,
+    specTempC: 40,
+    specMinHalfLifeH: 48,
+    specMinActivity: 5000,
+  },
+  {
+    name: 'Lipo LP-3',
+    enzymeClass: 'Triacylglycerol lipase',
+    ecNumber: '3.1.1.3',
+    supplier: 'Corvane Biocatalysts',
+    activityUnit: 'LPU/g',
+    unitDefinition: '1 LPU releases 1 µmol butyric acid per minute from tributyrin at pH 7.0 and 30 °C',
+    tRefC: 45,
+    eaKJPerMol: 35,
+    specTempC: 45,
+    specMinHalfLifeH: 30,
+    specMinActivity: 250,
+  },
+];
+
+type SeedLot = { enzyme: string; lotCode: string; receivedOn: string; expiresOn: string; quantityKg: number; certActivity: number; certStability: CertStability; status?: 'accepted' | 'rejected'; reason?: string };
+
+const LOTS: SeedLot[] = [
+  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2605-11', receivedOn: '2026-05-14', expiresOn: '2027-05-13', quantityKg: 800, certActivity: 452, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 26 }, status: 'accepted', reason: 'Half-life 26 h at 60 °C meets the 20 h specification' },
+  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2608-03', receivedOn: '2026-08-21', expiresOn: '2027-08-20', quantityKg: 800, certActivity: 447, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 24 }, status: 'accepted', reason: 'Half-life 24 h at 60 °C meets the 20 h specification' },
+  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2611-07', receivedOn: '2026-11-18', expiresOn: '2027-11-17', quantityKg: 1000, certActivity: 431, certStability: { form: 'residual', tempC: 60, minutes: 480, residualFraction: 0.78 } },
+  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4471', receivedOn: '2026-07-02', expiresOn: '2027-07-01', quantityKg: 250, certActivity: 1310, certStability: { form: 'dValue', tempC: 85, dMinutes: 660, zC: 9.5 }, status: 'accepted', reason: 'D-value 11 h at 85 °C gives a 3.3 h half-life, above 3 h' },
+  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4519', receivedOn: '2026-10-09', expiresOn: '2027-10-08', quantityKg: 250, certActivity: 1275, certStability: { form: 'dValue', tempC: 85, dMinutes: 540, zC: 9.5 } },
+  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4522', receivedOn: '2026-11-24', expiresOn: '2027-11-23', quantityKg: 250, certActivity: 1290, certStability: { form: 'halfLife', tempC: 85, halfLifeH: 3.4 } },
+  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-0926', receivedOn: '2026-09-26', expiresOn: '2027-03-25', quantityKg: 120, certActivity: 5400, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 60 }, status: 'accepted', reason: 'Half-life 60 h at 40 °C meets the 48 h specification' },
+  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1107', receivedOn: '2026-11-07', expiresOn: '2027-05-06', quantityKg: 120, certActivity: 5150, certStability: { form: 'residual', tempC: 40, minutes: 1440, residualFraction: 0.69 }, status: 'rejected', reason: 'QC half-life 38 h at 40 °C, below the 48 h specification' },
+  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1128', receivedOn: '2026-11-28', expiresOn: '2027-05-27', quantityKg: 120, certActivity: 5320, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 55 } },
+  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2609-01', receivedOn: '2026-09-03', expiresOn: '2027-09-02', quantityKg: 60, certActivity: 268, certStability: { form: 'halfLife', tempC: 45, halfLifeH: 40 }, status: 'accepted', reason: 'Half-life 40 h at 45 °C meets the 30 h specification' },
+  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2611-02', receivedOn: '2026-11-12', expiresOn: '2027-11-11', quantityKg: 60, certActivity: 259, certStability: { form: 'residual', tempC: 45, minutes: 720, residualFraction: 0.82 } },
+];
+
+export const DEMO_SITE_NAME = 'Halden Bay Biorefinery';
+
+/** True when the database has no site yet. */
+export const isEmpty = (db: Db) => (db.select({ n: sql<number>`count(*)` }).from(sites).get()?.n ?? 0) === 0;
+
+/**
+ * Writes the demo site in one transaction. Deterministic: the same rows every time, except bcrypt salts.
+ * `bcryptCost` is lowered only by tests that seed many databases.
+ */
+export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string; emailDomain?: string } = {}): { siteId: number } {
+  const cost = opts.bcryptCost ?? 12;
+  const hashes = DEMO_USERS.map((u) => bcrypt.hashSync(u.password, cost));
+  return db.transaction((tx) => {
+    const site = tx.insert(sites).values({ name: opts.siteName ?? DEMO_SITE_NAME, timeZone: 'Europe/Berlin' }).returning().get();
+    const domain = opts.emailDomain ?? 'haldenbay.test';
+    DEMO_USERS.forEach((u, i) => {
+      tx.insert(users)
+        .values({ siteId: site.id, email: u.email.replace('haldenbay.test', domain), name: u.name, role: u.role, passwordHash: hashes[i]! })
+        .run();
+    });
+    tx.insert(vessels)
+      .values([
+        { siteId: site.id, name: 'R-101 Saccharifier', workingVolumeL: 40000, minC: 20, maxC: 75, maxHeatCPerH: 12, maxCoolCPerH: 8, hygienicMinC: 50 },
+        { siteId: site.id, name: 'R-204 Lactose tank', workingVolumeL: 12000, minC: 4, maxC: 60, maxHeatCPerH: 10, maxCoolCPerH: 6, hygienicMinC: 8 },
+        { siteId: site.id, name: 'R-310 Liquefier', workingVolumeL: 8000, minC: 20, maxC: 105, maxHeatCPerH: 30, maxCoolCPerH: 20, hygienicMinC: 45 },
+      ])
+      .run();
+    const enzymeIds = new Map<string, number>();
+    for (const e of ENZYMES) enzymeIds.set(e.name, tx.insert(enzymes).values({ ...e, siteId: site.id }).returning().get().id);
+    for (const l of LOTS) {
+      tx.insert(lots)
+        .values({
+          siteId: site.id,
+          enzymeId: enzymeIds.get(l.enzyme)!,
+          lotCode: l.lotCode,
+          receivedOn: l.receivedOn,
+          expiresOn: l.expiresOn,
+          quantityKg: l.quantityKg,
+          certActivity: l.certActivity,
+          certStability: l.certStability,
+          certKdPerH: certKdPerH(l.certStability),
+          certTempC: l.certStability.tempC,
+          status: l.status ?? 'quarantined',
+          decisionReason: l.reason ?? null,
+          decidedAt: l.status ? `${l.receivedOn}T12:00:00.000Z` : null,
+        })
+        .run();
+    }
+    return { siteId: site.id };
+  });
+}

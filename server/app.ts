@@ -1,0 +1,105 @@
+import compression from 'compression';
+import cookieParser from 'cookie-parser';
+import express, { type Express } from 'express';
+import helmet from 'helmet';
+import fs from 'node:fs';
+import path from 'node:path';
+import type { Db } from '../db/client';
+import type { Clock } from './clock';
+import { authenticate } from './middleware/auth';
+import { requireSameOrigin } from './middleware/csrf';
+import { apiNotFound, errorHandler } from './middleware/errors';
+import { enzymesRouter } from './routes/enzymes';
+import { lotsRouter } from './routes/lots';
+import { sessionRouter } from './routes/session';
+import { siteRouter } from './routes/site';
+import { usersRouter } from './routes/users';
+import { vesselsRouter } from './routes/vessels';
+import type { AuthConfig } from './services/auth';
+
+export type AppDeps = {
+  db: Db;
+  clock: Clock;
+  auth: AuthConfig;
+  cookieSecure?: boolean;
+  /** Folder of the exported web app; omitted in API tests. */
+  webDir?: string;
+  signInLimit?: { perAddress: number; perAccount: number; windowMs: number };
+};
+
+const DEFAULT_SIGN_IN_LIMIT = { perAddress: 30, perAccount: 10, windowMs: 15 * 60_000 };
+
+/** Builds the whole HTTP app around its dependencies; `server/start.ts` listens, tests call it directly. */
+export function createApp(deps: AppDeps): Express {
+  const app = express();
+  const services = { db: deps.db, clock: deps.clock };
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          'default-src': ["'self'"],
+          'script-src': ["'self'"],
+          // react-native-web writes its styles into <style> elements at run time.
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'font-src': ["'self'", 'data:'],
+          'connect-src': ["'self'"],
+          'object-src': ["'none'"],
+          'frame-ancestors': ["'none'"],
+          'base-uri': ["'self'"],
+          'form-action': ["'self'"],
+          'upgrade-insecure-requests': null,
+        },
+      },
+      strictTransportSecurity: deps.cookieSecure ? undefined : false,
+    }),
+  );
+  app.use(compression());
+
+  const api = express.Router();
+  api.use(express.json({ limit: '1mb' }));
+  api.use(cookieParser());
+  api.use(requireSameOrigin);
+  api.use(authenticate({ db: deps.db, clock: deps.clock, auth: deps.auth }));
+  api.use((_req, res, next) => {
+    res.set('cache-control', 'no-store');
+    next();
+  });
+  api.use(
+    '/session',
+    sessionRouter({ ...services, auth: deps.auth, cookieSecure: deps.cookieSecure ?? false, signInLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
+  );
+  api.use('/users', usersRouter(services));
+  api.use('/site', siteRouter(services));
+  api.use('/vessels', vesselsRouter(services));
+  api.use('/enzymes', enzymesRouter(services));
+  api.use('/lots', lotsRouter(services));
+  api.use(apiNotFound);
+  app.use('/api', api);
+
+  if (deps.webDir) serveWeb(app, deps.webDir);
+  app.use(errorHandler);
+  return app;
+}
+
+/** Serves the exported single-page app: hashed bundles cached for a year, index.html for every other GET. */
+function serveWeb(app: Express, webDir: string): void {
+  const root = path.resolve(webDir);
+  const indexHtml = path.join(root, 'index.html');
+  app.use(
+    express.static(root, {
+      index: false,
+      setHeaders: (res, file) => {
+        const hashed = file.includes(`${path.sep}_expo${path.sep}`) || file.includes(`${path.sep}assets${path.sep}`);
+        res.setHeader('cache-control', hashed ? 'public, max-age=31536000, immutable' : 'no-cache');
+      },
+    }),
+  );
+  app.get('/{*splat}', (_req, res, next) => {
+    if (!fs.existsSync(indexHtml)) return next();
+    res.setHeader('cache-control', 'no-cache');
+    res.sendFile(indexHtml);
+  });
+}

@@ -1,0 +1,16 @@
+import { eq, sql } from 'drizzle-orm';
+import type { Db } from '../../db/client';
+import { enzymes, lots, sites, vessels } from '../../db/schema';
+
+export const findSite = (db: Db, id: number) => db.select().from(sites).where(eq(sites.id, id)).get();
+
+const count = (db: Db, table: typeof vessels | typeof enzymes | typeof lots, siteId: number) =>
+  db.select({ n: sql<number>`count(*)` }).from(table).where(eq(table.siteId, siteId)).get()?.n ?? 0;
+
+export const countSiteRecords = (db: Db, siteId: number) => ({
+  vessels: count(db, vessels, siteId),
+  enzymes: count(db, enzymes, siteId),
+  lots: count(db, lots, siteId),
+  quarantinedLots:
+    db.select({ n: sql<number>`count(*)` }).from(lots).where(sql`${lots.siteId} = ${siteId} and ${lots.status} = 'quarantined'`).get()?.n ?? 0,
+});

@@ -1,0 +1,117 @@
+import bcrypt from 'bcryptjs';
+import crypto from 'node:crypto';
+import { jwtVerify, SignJWT } from 'jose';
+import type { Db } from '../../db/client';
+import type { SessionUser, SignInRequest } from '../../src/contracts/session';
+import type { Clock } from '../clock';
+import { HttpError } from '../http-error';
+import { findSession, insertSession, revokeSession, touchSession } from '../repositories/sessions';
+import { findUserByEmail, findUserWithSite } from '../repositories/users';
+import { appendAudit } from './audit';
+
+export const BCRYPT_COST = 12;
+
+export type AuthConfig = {
+  secret: Uint8Array;
+  idleMinutes: number;
+  absoluteHours: number;
+};
+
+export type AuthContext = { db: Db; clock: Clock; auth: AuthConfig };
+
+// Compared against when the e-mail is unknown, so a wrong address costs the same time as a wrong password.
+const DUMMY_HASH = bcrypt.hashSync('yieldpoint-no-such-user', BCRYPT_COST);
+
+export const hashPassword = (password: string) => bcrypt.hash(password, BCRYPT_COST);
+
+
+/** Checks a password and opens a server-side session; the JWT only names that session. */
+export async function signIn(ctx: AuthContext, req: SignInRequest, from: string): Promise<{ token: string; expiresAt: Date; user: SessionUser }> {
+  const { db, clock } = ctx;
+  const user = findUserByEmail(db, req.email);
+  const ok = await bcrypt.compare(req.password, user?.passwordHash ?? DUMMY_HASH);
+  const now = clock.now();
+  if (!user || !ok || !user.isActive) {
+    appendAudit(db, {
+      siteId: user?.siteId ?? null,
+      userId: user?.id ?? null,
+      actor: req.email,
+      action: 'sign-in.failed',
+      entity: 'session',
+      newValue: { from, reason: !user ? 'unknown e-mail' : !ok ? 'wrong password' : 'user deactivated' },
+      at: now,
+    });
+    throw new HttpError(401, 'bad_credentials', 'E-mail or password is not right');
+  }
+  const sessionId = crypto.randomBytes(24).toString('base64url');
+  const expiresAt = new Date(now.getTime() + ctx.auth.absoluteHours * 3_600_000);
+  db.transaction((tx) => {
+    insertSession(tx as unknown as Db, {
+      id: sessionId,
+      userId: user.id,
+      role: user.role,
+      createdAt: now.toISOString(),
+      lastSeenAt: now.toISOString(),
+      expiresAt: expiresAt.toISOString(),
+    });
+    appendAudit(tx as unknown as Db, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-in', entity: 'session', newValue: { from }, at: now });
+  });
+  const token = await new SignJWT({ sid: sessionId })
+    .setProtectedHeader({ alg: 'HS256' })
+    .setSubject(String(user.id))
+    .setIssuedAt(Math.floor(now.getTime() / 1000))
+    .setExpirationTime(Math.floor(expiresAt.getTime() / 1000))
+    .sign(ctx.auth.secret);
+  return { token, expiresAt, user: loadSessionUser(db, user.id)! };
+}
+
+export function loadSessionUser(db: Db, userId: number): SessionUser | null {
+  const found = findUserWithSite(db, userId);
+  if (!found || !found.user.isActive) return null;
+  const { user, siteName, siteTimeZone } = found;
+  return {
+    id: user.id,
+    email: user.email,
+    name: user.name,
+    role: user.role,
+    siteId: user.siteId,
+    siteName,
+    siteTimeZone,
+    cautionsAcknowledgedAt: user.cautionsAcknowledgedAt,
+  };
+}
+
+/**
+ * Resolves a cookie's token to its user, or null. The session row decides: a revoked, expired or idle
+ * session, a deactivated user, or a role changed since sign-in all end it at once.
+ */
+export async function resolveSession(ctx: AuthContext, token: string): Promise<{ sessionId: string; user: SessionUser } | null> {
+  const now = ctx.clock.now();
+  let sid: unknown;
+  let sub: string | undefined;
+  try {
+    const { payload } = await jwtVerify(token, ctx.auth.secret, { algorithms: ['HS256'], currentDate: now });
+    sid = payload.sid;
+    sub = payload.sub;
+  } catch {
+    return null;
+  }
+  if (typeof sid !== 'string' || !sub) return null;
+  const session = findSession(ctx.db, sid);
+  if (!session || session.revokedAt || String(session.userId) !== sub) return null;
+  if (new Date(session.expiresAt) <= now) return null;
+  if (now.getTime() - new Date(session.lastSeenAt).getTime() > ctx.auth.idleMinutes * 60_000) return null;
+  const user = loadSessionUser(ctx.db, session.userId);
+  if (!user || user.role !== session.role) return null;
+  // Writing on every request would serialise reads behind the writer; a minute's resolution is enough.
+  if (now.getTime() - new Date(session.lastSeenAt).getTime() > 60_000) touchSession(ctx.db, sid, now.toISOString());
+  return { sessionId: sid, user };
+}
+
+export function signOut(ctx: AuthContext, sessionId: string, user: SessionUser): void {
+  const now = ctx.clock.now();
+  ctx.db.transaction((tx) => {
+    revokeSession(tx as unknown as Db, sessionId, now.toISOString());
+    appendAudit(tx as unknown as Db, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-out', entity: 'session', at: now });
+  });
+}

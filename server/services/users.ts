@@ -1,0 +1,50 @@
+import type { Db } from '../../db/client';
+import type { SessionUser } from '../../src/contracts/session';
+import type { UpdateUser, User } from '../../src/contracts/users';
+import type { Clock } from '../clock';
+import { HttpError, notFound } from '../http-error';
+import { revokeUserSessions } from '../repositories/sessions';
+import { findSiteUser, listSiteUsers, updateUser, type UserRow } from '../repositories/users';
+import { appendAudit } from './audit';
+
+type Ctx = { db: Db; clock: Clock };
+
+const toUser = (u: UserRow): User => ({ id: u.id, email: u.email, name: u.name, role: u.role, isActive: u.isActive, createdAt: u.createdAt });
+
+export const listUsers = ({ db }: Ctx, actor: SessionUser): User[] => listSiteUsers(db, actor.siteId).map(toUser);
+
+/** Changes a user's role, name or activity; a role change or deactivation ends their sessions at once. */
+export function changeUser({ db, clock }: Ctx, actor: SessionUser, id: number, patch: UpdateUser): User {
+  const before = findSiteUser(db, actor.siteId, id);
+  if (!before) throw notFound('User');
+  if (before.id === actor.id && (patch.role !== undefined || patch.isActive === false)) {
+    throw new HttpError(409, 'own_account', 'You cannot change your own role or deactivate yourself');
+  }
+  const now = clock.now();
+  return db.transaction((tx) => {
+    const t = tx as unknown as Db;
+    const after = updateUser(t, id, patch);
+    if ((patch.role && patch.role !== before.role) || patch.isActive === false) revokeUserSessions(t, id, now.toISOString());
+    appendAudit(t, {
+      siteId: actor.siteId,
+      userId: actor.id,
+      actor: actor.email,
+      action: 'user.update',
+      entity: 'user',
+      entityId: id,
+      oldValue: { role: before.role, isActive: before.isActive, name: before.name },
+      newValue: { role: after.role, isActive: after.isActive, name: after.name },
+      at: now,
+    });
+    return toUser(after);
+  });
+}
+
+export function acknowledgeCautions({ db, clock }: Ctx, actor: SessionUser): void {
+  if (actor.cautionsAcknowledgedAt) return;
+  const now = clock.now();
+  db.transaction((tx) => {
+    updateUser(tx as unknown as Db, actor.id, { cautionsAcknowledgedAt: now.toISOString() });
+    appendAudit(tx as unknown as Db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'cautions.acknowledge', entity: 'user', entityId: actor.id, at: now });
+  });
+}

@@ -1,0 +1,62 @@
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import { migrateDb, openDb } from '../db/client';
+import { DEMO_USERS, isEmpty, seedDemo } from '../db/seed';
+import { createApp } from './app';
+import { systemClock } from './clock';
+import { readEnv } from './env';
+import { ensureWebBuild } from './web-build';
+
+const root = path.resolve(__dirname, '..');
+
+/** A configured secret, else one kept beside the database so sign-ins survive a restart. */
+function sessionSecret(configured: Uint8Array | null, databaseFile: string): Uint8Array {
+  if (configured) return configured;
+  const file = path.join(path.dirname(path.resolve(databaseFile)), '.session-secret');
+  if (!fs.existsSync(file)) {
+    fs.mkdirSync(path.dirname(file), { recursive: true });
+    fs.writeFileSync(file, crypto.randomBytes(32).toString('base64'), { mode: 0o600 });
+  }
+  return Buffer.from(fs.readFileSync(file, 'utf8'), 'base64');
+}
+
+async function main() {
+  const env = readEnv();
+  if (!env.skipWebBuild) ensureWebBuild(root, env.webDir);
+  const db = openDb(env.databaseFile);
+  migrateDb(db);
+  const seeded = env.seedDemo && isEmpty(db);
+  if (seeded) seedDemo(db);
+  const app = createApp({
+    db,
+    clock: systemClock,
+    auth: { secret: sessionSecret(env.sessionSecret, env.databaseFile), idleMinutes: env.sessionIdleMinutes, absoluteHours: env.sessionAbsoluteHours },
+    cookieSecure: env.cookieSecure,
+    webDir: path.resolve(root, env.webDir),
+  });
+  const server = app.listen(env.port, env.host, () => {
+    const address = server.address();
+    const port = typeof address === 'object' && address ? address.port : env.port;
+    console.log(`\nYieldpoint is running at http://localhost:${port}`);
+    console.log(`Database: ${path.resolve(env.databaseFile)}${seeded ? ' (demo site seeded)' : ''}`);
+    if (env.seedDemo) {
+      console.log('Demo sign-ins:');
+      for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(12)} ${u.email.padEnd(28)} ${u.password}`);
+    }
+  });
+  const stop = () => {
+    server.close(() => {
+      db.$client.close();
+      process.exit(0);
+    });
+    setTimeout(() => process.exit(0), 3000).unref();
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+main().catch((err) => {
+  console.error(err instanceof Error ? err.message : err);
+  process.exit(1);
+});
