@@ -6,6 +6,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Db } from '../db/client';
 import type { Clock } from './clock';
+import type { ApiMount } from './route-table';
 import { authenticate } from './middleware/auth';
 import { requireSameOrigin } from './middleware/csrf';
 import { apiNotFound, errorHandler } from './middleware/errors';
@@ -67,15 +68,19 @@ export function createApp(deps: AppDeps): Express {
     res.set('cache-control', 'no-store');
     next();
   });
-  api.use(
-    '/session',
-    sessionRouter({ ...services, auth: deps.auth, cookieSecure: deps.cookieSecure ?? false, signInLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
-  );
-  api.use('/users', usersRouter(services));
-  api.use('/site', siteRouter(services));
-  api.use('/vessels', vesselsRouter(services));
-  api.use('/enzymes', enzymesRouter(services));
-  api.use('/lots', lotsRouter(services));
+  const mounts: ApiMount[] = [
+    {
+      prefix: '/session',
+      router: sessionRouter({ ...services, auth: deps.auth, cookieSecure: deps.cookieSecure ?? false, signInLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
+    },
+    { prefix: '/users', router: usersRouter(services) },
+    { prefix: '/site', router: siteRouter(services) },
+    { prefix: '/vessels', router: vesselsRouter(services) },
+    { prefix: '/enzymes', router: enzymesRouter(services) },
+    { prefix: '/lots', router: lotsRouter(services) },
+  ];
+  for (const m of mounts) api.use(m.prefix, m.router);
+  app.locals.apiMounts = mounts;
   api.use(apiNotFound);
   app.use('/api', api);
 

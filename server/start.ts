@@ -50,7 +50,7 @@ async function main() {
       db.$client.close();
       process.exit(0);
     });
-    setTimeout(() => process.exit(0), 3000).unref();
+    setTimeout(() => process.exit(0), 3000);
   };
   process.on('SIGINT', stop);
   process.on('SIGTERM', stop);

@@ -1,6 +1,6 @@
 import { Router, type CookieOptions } from 'express';
 import rateLimit from 'express-rate-limit';
-import { Session, SignInRequest, UpdateMe } from '../../src/contracts/session';
+import { Session, SessionState, SignInRequest, UpdateMe } from '../../src/contracts/session';
 import { allow, ALL_ROLES, currentUser, open, SESSION_COOKIE } from '../middleware/auth';
 import { loadSessionUser, signIn, signOut, type AuthContext } from '../services/auth';
 import { acknowledgeCautions } from '../services/users';
@@ -28,8 +28,8 @@ export function sessionRouter(opts: SessionRouteOptions): Router {
     res.status(201).json(Session.parse({ user }));
   });
 
-  router.get('/', allow(...ALL_ROLES), (req, res) => {
-    res.json(Session.parse({ user: currentUser(req) }));
+  router.get('/', open, (req, res) => {
+    res.json(SessionState.parse({ user: req.user ?? null }));
   });
 
   router.patch('/', allow(...ALL_ROLES), (req, res) => {

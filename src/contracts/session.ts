@@ -26,5 +26,9 @@ export type SessionUser = z.infer<typeof SessionUser>;
 export const Session = z.object({ user: SessionUser });
 export type Session = z.infer<typeof Session>;
 
+/** GET /api/session: who is signed in, `user: null` when nobody is (not an error: the app asks on every load). */
+export const SessionState = z.object({ user: SessionUser.nullable() });
+export type SessionState = z.infer<typeof SessionState>;
+
 export const UpdateMe = z.object({ cautionsAcknowledged: z.literal(true) });
 export type UpdateMe = z.infer<typeof UpdateMe>;

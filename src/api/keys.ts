@@ -1,0 +1,9 @@
+/** SWR keys: the API path of each resource, so a mutation revalidates exactly what it changed. */
+export const keys = {
+  session: '/session',
+  site: '/site',
+  users: '/users',
+  vessels: '/vessels',
+  enzymes: '/enzymes',
+  lots: '/lots',
+} as const;

@@ -1,0 +1,18 @@
+import type { ReactNode } from 'react';
+import { useSession } from '../../hooks/use-session';
+import { EmptyState } from '../ui/states';
+import { Screen } from '../ui/screen';
+import { canSee, NAV_ITEMS } from './navigation';
+
+/** Renders a tab's screen only for the roles it belongs to; the API enforces the same rule. */
+export function RoleGate({ name, children }: { name: string; children: ReactNode }) {
+  const { session } = useSession();
+  if (!session) return null;
+  if (canSee(session.user.role, name)) return <>{children}</>;
+  const label = NAV_ITEMS.find((i) => i.name === name)?.label ?? name;
+  return (
+    <Screen title={label} testID="screen-not-for-role">
+      <EmptyState title="Not part of your role" message={`${label} is not available to your role. Ask your site admin if you need it.`} />
+    </Screen>
+  );
+}

@@ -1,0 +1,53 @@
+import { useState } from 'react';
+import { StyleSheet, TextInput, View, type TextInputProps } from 'react-native';
+import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
+import { Text } from './text';
+
+export type FieldProps = TextInputProps & { label: string; error?: string; hint?: string };
+
+/** A labelled text input with its hint and the API's field error under it. */
+export function Field({ label, error, hint, style, testID, ...rest }: FieldProps) {
+  const c = useColors();
+  const [focused, setFocused] = useState(false);
+  return (
+    <View style={styles.wrap}>
+      <Text variant="small" weight="semibold">
+        {label}
+      </Text>
+      <TextInput
+        accessibilityLabel={label}
+        testID={testID}
+        placeholderTextColor={c.textMuted}
+        {...rest}
+        onFocus={(e) => {
+          setFocused(true);
+          rest.onFocus?.(e);
+        }}
+        onBlur={(e) => {
+          setFocused(false);
+          rest.onBlur?.(e);
+        }}
+        style={[
+          styles.input,
+          { color: c.text, backgroundColor: c.surface, borderColor: error ? c.danger : c.border, fontFamily: font.regular },
+          focused && { borderColor: c.focus },
+          style,
+        ]}
+      />
+      {error ? (
+        <Text variant="small" tone="danger" accessibilityLiveRegion="polite" testID={testID ? `${testID}-error` : undefined}>
+          {error}
+        </Text>
+      ) : hint ? (
+        <Text variant="caption" tone="muted">
+          {hint}
+        </Text>
+      ) : null}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  wrap: { gap: space.xs },
+  input: { minHeight: touchTarget, borderWidth: 1, borderRadius: radius.md, paddingHorizontal: space.md, ...typeScale.body },
+});

@@ -1,0 +1,71 @@
+import { StyleSheet, View } from 'react-native';
+import { space, useBreakpoint, useColors } from '../../theme';
+import { Text } from './text';
+
+export type Column<T> = { key: string; label: string; value: (row: T) => string; isNumeric?: boolean; flex?: number };
+
+type Props<T> = { columns: Column<T>[]; rows: T[]; rowKey: (row: T) => string; caption: string; testID?: string };
+
+// Below this width a row becomes a small card of label/value pairs instead of a cramped table row.
+const TABLE_MIN_WIDTH = 640;
+
+/** Rows of records: a table on wide screens, stacked label/value cards on a phone. */
+export function DataTable<T>({ columns, rows, rowKey, caption, testID }: Props<T>) {
+  const c = useColors();
+  const { width } = useBreakpoint();
+  if (width < TABLE_MIN_WIDTH) {
+    return (
+      <View testID={testID} accessibilityLabel={caption} style={styles.list}>
+        {rows.map((row) => (
+          <View key={rowKey(row)} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
+            {columns.map((col, i) => (
+              <View key={col.key} style={styles.pair}>
+                <Text variant="small" tone="muted">
+                  {col.label}
+                </Text>
+                <Text variant="small" weight={i === 0 ? 'semibold' : 'regular'} style={styles.pairValue}>
+                  {col.value(row)}
+                </Text>
+              </View>
+            ))}
+          </View>
+        ))}
+      </View>
+    );
+  }
+  return (
+    <View testID={testID} role="table" aria-label={caption} style={[styles.table, { borderColor: c.border, backgroundColor: c.surface }]}>
+      <View role="row" style={[styles.row, { borderColor: c.border }]}>
+        {columns.map((col) => (
+          <View key={col.key} role="columnheader" style={[styles.cell, { flex: col.flex ?? 1 }]}>
+            <Text variant="small" weight="semibold" tone="muted" style={col.isNumeric && styles.right}>
+              {col.label}
+            </Text>
+          </View>
+        ))}
+      </View>
+      {rows.map((row) => (
+        <View key={rowKey(row)} role="row" style={[styles.row, { borderColor: c.border }]} testID={testID ? `${testID}-row` : undefined}>
+          {columns.map((col) => (
+            <View key={col.key} role="cell" style={[styles.cell, { flex: col.flex ?? 1 }]}>
+              <Text variant="small" style={col.isNumeric && styles.right}>
+                {col.value(row)}
+              </Text>
+            </View>
+          ))}
+        </View>
+      ))}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  list: { gap: space.sm },
+  card: { borderWidth: 1, borderRadius: 10, padding: space.md, gap: space.xxs },
+  pair: { flexDirection: 'row', justifyContent: 'space-between', gap: space.md },
+  pairValue: { flexShrink: 1, textAlign: 'right' },
+  table: { borderWidth: 1, borderRadius: 10, overflow: 'hidden' },
+  row: { flexDirection: 'row', borderBottomWidth: StyleSheet.hairlineWidth, minHeight: 44, alignItems: 'center' },
+  cell: { paddingHorizontal: space.md, paddingVertical: space.sm },
+  right: { textAlign: 'right' },
+});

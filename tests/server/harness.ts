@@ -1,0 +1,107 @@
+import type { Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import { migrateDb, openDb, type Db } from '../../db/client';
+import { DEMO_USERS, seedDemo } from '../../db/seed';
+import { createApp, type AppDeps } from '../../server/app';
+import type { Clock } from '../../server/clock';
+import type { ApiMount } from '../../server/route-table';
+import type { Role } from '../../src/contracts/roles';
+
+/** A clock tests can move. */
+export class TestClock implements Clock {
+  constructor(private t = Date.parse('2026-12-01T08:00:00Z')) {}
+  now = () => new Date(this.t);
+  advanceMinutes(m: number) {
+    this.t += m * 60_000;
+  }
+}
+
+export type Reply = { status: number; body: any; headers: Headers };
+
+/** A browser-like caller: keeps the session cookie and sends the client header on writes. */
+export class Client {
+  cookie: string | null = null;
+  constructor(private base: string) {}
+  async req(method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<Reply> {
+    const h: Record<string, string> = { 'x-yieldpoint-client': 'test', ...headers };
+    if (this.cookie) h.cookie = this.cookie;
+    let payload: string | undefined;
+    if (body !== undefined) {
+      h['content-type'] ??= 'application/json';
+      payload = typeof body === 'string' ? body : JSON.stringify(body);
+    }
+    const res = await fetch(this.base + path, { method, headers: h, body: payload });
+    const setCookie = res.headers.get('set-cookie');
+    if (setCookie) {
+      const pair = setCookie.split(';')[0]!;
+      this.cookie = pair.endsWith('=') ? null : pair;
+    }
+    const text = await res.text();
+    let parsed: unknown = text;
+    try {
+      parsed = text ? JSON.parse(text) : null;
+    } catch {
+      /* non-JSON bodies stay text */
+    }
+    return { status: res.status, body: parsed, headers: res.headers };
+  }
+  get = (p: string, h?: Record<string, string>) => this.req('GET', p, undefined, h);
+  post = (p: string, b?: unknown, h?: Record<string, string>) => this.req('POST', p, b ?? {}, h);
+  patch = (p: string, b?: unknown, h?: Record<string, string>) => this.req('PATCH', p, b ?? {}, h);
+  del = (p: string, h?: Record<string, string>) => this.req('DELETE', p, undefined, h);
+}
+
+export type TestApp = {
+  db: Db;
+  clock: TestClock;
+  base: string;
+  mounts: ApiMount[];
+  client(): Client;
+  signIn(role: Role, site?: 'main' | 'other'): Promise<Client>;
+  close(): Promise<void>;
+};
+
+export const password = (role: Role) => DEMO_USERS.find((u) => u.role === role)!.password;
+export const email = (role: Role, site: 'main' | 'other' = 'main') =>
+  DEMO_USERS.find((u) => u.role === role)!.email.replace('haldenbay.test', site === 'main' ? 'haldenbay.test' : 'otherplant.test');
+
+/** The app on an in-memory database with the demo site and a second site, listening on a free port. */
+export async function startTestApp(overrides: Partial<AppDeps> = {}): Promise<TestApp> {
+  const db = openDb(':memory:');
+  migrateDb(db);
+  // Cost 4 keeps seeding fast; the production cost is checked on its own.
+  seedDemo(db, { bcryptCost: 4 });
+  seedDemo(db, { bcryptCost: 4, siteName: 'Other Plant', emailDomain: 'otherplant.test' });
+  const clock = new TestClock();
+  const app = createApp({
+    db,
+    clock,
+    auth: { secret: new TextEncoder().encode('test-secret-of-at-least-32-bytes!!'), idleMinutes: 60, absoluteHours: 24 },
+    signInLimit: { perAddress: 1000, perAccount: 1000, windowMs: 60_000 },
+    ...overrides,
+  });
+  const server: Server = await new Promise((resolve) => {
+    const s = app.listen(0, '127.0.0.1', () => resolve(s));
+  });
+  const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  const client = () => new Client(base);
+  return {
+    db,
+    clock,
+    base,
+    mounts: app.locals.apiMounts as ApiMount[],
+    client,
+    async signIn(role, site = 'main') {
+      const c = client();
+      const r = await c.post('/api/session', { email: email(role, site), password: password(role) });
+      if (r.status !== 201) throw new Error(`sign-in as ${role} failed: ${r.status} ${JSON.stringify(r.body)}`);
+      return c;
+    },
+    close: () =>
+      new Promise<void>((resolve) => {
+        server.closeAllConnections();
+        server.close(() => resolve());
+        db.$client.close();
+      }),
+  };
+}
