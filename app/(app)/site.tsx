@@ -56,13 +56,19 @@ function SiteBody() {
   );
 }
 
-export default function SiteScreen() {
+function SiteScreenContent() {
   const site = useSite();
   return (
+    <Screen title="Site" subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and licence seats.'} testID="screen-site">
+      <SiteBody />
+    </Screen>
+  );
+}
+
+export default function SiteScreen() {
+  return (
     <RoleGate name="site">
-      <Screen title="Site" subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and licence seats.'} testID="screen-site">
-        <SiteBody />
-      </Screen>
+      <SiteScreenContent />
     </RoleGate>
   );
 }

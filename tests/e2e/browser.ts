@@ -1,0 +1,53 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import type { Role } from '../../src/contracts/roles';
+import { DEMO_USERS } from '../../db/seed';
+
+export const PHONE = { width: 390, height: 844 };
+export const WIDE = { width: 1440, height: 900 };
+export const SHOTS = path.resolve(__dirname, '../../test-results/screenshots');
+
+/** Debian's Chromium, headless, with the flags this closed network needs. */
+export function launch(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    headless: true,
+    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+}
+
+export type Watched = { page: Page; context: BrowserContext; errors: string[] };
+
+/** A page that records every console error and uncaught exception, so tests can fail on them. */
+export async function watchedPage(browser: Browser, viewport: { width: number; height: number }): Promise<Watched> {
+  const context = await browser.newContext({ viewport });
+  const page = await context.newPage();
+  const errors: string[] = [];
+  page.on('console', (m) => {
+    if (m.type() === 'error') errors.push(m.text());
+  });
+  page.on('pageerror', (e) => errors.push(String(e)));
+  return { page, context, errors };
+}
+
+export async function screenshot(page: Page, name: string): Promise<void> {
+  fs.mkdirSync(SHOTS, { recursive: true });
+  await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: false });
+}
+
+export async function signIn(page: Page, baseURL: string, role: Role): Promise<void> {
+  const user = DEMO_USERS.find((u) => u.role === role)!;
+  await page.goto(`${baseURL}/`);
+  await page.getByTestId('sign-in-email').fill(user.email);
+  await page.getByTestId('sign-in-password').fill(user.password);
+  await page.getByTestId('sign-in-submit').click();
+}
+
+/** Confirms the first-run cautions notice when it shows. */
+export async function acknowledgeCautions(page: Page): Promise<void> {
+  const button = page.getByTestId('acknowledge-cautions');
+  await button.waitFor({ timeout: 10_000 });
+  await button.click();
+  await button.waitFor({ state: 'detached' });
+}

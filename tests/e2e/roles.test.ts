@@ -1,0 +1,86 @@
+import type { Browser } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { HOME, navItemsFor } from '../../src/components/shell/navigation';
+import { ROLES } from '../../src/contracts/roles';
+import { acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
+
+const baseURL = inject('baseURL');
+let browser: Browser;
+beforeAll(async () => {
+  browser = await launch();
+});
+afterAll(() => browser?.close());
+
+const screenOf = (href: string) => `screen-${href.slice(1)}`;
+
+describe.each([
+  ['phone', PHONE],
+  ['wide', WIDE],
+] as const)('each role on a %s screen', (label, viewport) => {
+  it.each(ROLES)('%s signs in, lands on its home, sees only its places, and signs out', async (role) => {
+    const { page, context, errors } = await watchedPage(browser, viewport);
+    await signIn(page, baseURL, role);
+    if (label === 'phone') await acknowledgeCautions(page);
+    else {
+      // The notice was acknowledged on the phone run; the server remembers it per user.
+      await page.getByTestId('first-run-notice').waitFor({ state: 'detached', timeout: 5000 }).catch(() => undefined);
+    }
+    await page.getByTestId(screenOf(HOME[role])).waitFor();
+    expect(new URL(page.url()).pathname).toBe(HOME[role]);
+
+    const expected = navItemsFor(role).map((i) => `nav-${i.name}`).sort();
+    const shown = await page.locator('[data-testid^="nav-"]').evaluateAll((els) =>
+      els.map((e) => e.getAttribute('data-testid')!).filter((id) => id !== 'nav' && id !== 'nav-cautions'),
+    );
+    expect(shown.sort()).toEqual(expected);
+    await screenshot(page, `${role}-home-${viewport.width}x${viewport.height}`);
+
+    await page.getByTestId('nav-you').click();
+    await page.getByTestId('sign-out').click();
+    await page.getByTestId('screen-sign-in').waitFor();
+    // Signed out means signed out: the home screen sends us back to sign in.
+    await page.goto(`${baseURL}${HOME[role]}`);
+    await page.getByTestId('screen-sign-in').waitFor();
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});
+
+describe('shell', () => {
+  it('shows a wrong password under the form without console errors', async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await page.goto(`${baseURL}/`);
+    await page.getByTestId('sign-in-email').fill('engineer@haldenbay.test');
+    await page.getByTestId('sign-in-password').fill('wrong-password');
+    await page.getByTestId('sign-in-submit').click();
+    await expect(page.getByTestId('sign-in-error').textContent()).resolves.toMatch(/not right/);
+    await screenshot(page, 'sign-in-error-390x844');
+    // The 401 of the failed attempt is the one expected error.
+    expect(errors.filter((e) => !e.includes('401'))).toEqual([]);
+    await context.close();
+  });
+
+  it('reaches the cautions from every screen and shows a not-found screen', async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await signIn(page, baseURL, 'operator');
+    await page.getByTestId('screen-batches').waitFor();
+    await page.getByTestId('topbar-cautions').click();
+    await page.getByTestId('screen-cautions').waitFor();
+    expect(await page.getByTestId('cautions-list').textContent()).toMatch(/pressure/i);
+    await page.goto(`${baseURL}/no/such/place`);
+    await page.getByTestId('screen-not-found').waitFor();
+    await screenshot(page, 'not-found-390x844');
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+
+  it('keeps an operator out of the site screen even by its address', async () => {
+    const { page, context, errors } = await watchedPage(browser, WIDE);
+    await signIn(page, baseURL, 'operator');
+    await page.getByTestId('screen-batches').waitFor();
+    await page.goto(`${baseURL}/site`);
+    await page.getByTestId('screen-not-for-role').waitFor();
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});
