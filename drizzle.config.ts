@@ -2,6 +2,6 @@ import { defineConfig } from 'drizzle-kit';
 
 export default defineConfig({
   dialect: 'sqlite',
-  schema: './db/schema.ts',
+  schema: './db/schema/index.ts',
   out: './migrations',
 });

@@ -1,0 +1,3 @@
+// One file per area; each new area adds its file and one line here.
+export * from './core';
+export * from './catalog';
