@@ -13,6 +13,8 @@ import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
 import { enzymesRouter } from './routes/enzymes';
 import { lotsRouter } from './routes/lots';
+import { plansRouter } from './routes/plans';
+import { recipesRouter } from './routes/recipes';
 import { sessionRouter } from './routes/session';
 import { siteRouter } from './routes/site';
 import { usersRouter } from './routes/users';
@@ -79,6 +81,8 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/vessels', router: vesselsRouter(services) },
     { prefix: '/enzymes', router: enzymesRouter(services) },
     { prefix: '/lots', router: lotsRouter(services) },
+    { prefix: '/recipes', router: recipesRouter(services) },
+    { prefix: '/plans', router: plansRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
   ];
   for (const m of mounts) api.use(m.prefix, m.router);
