@@ -12,6 +12,8 @@ import { authenticate } from './middleware/auth';
 import { requireSameOrigin } from './middleware/csrf';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
+import { batchesRouter } from './routes/batches';
+import { deviationsRouter } from './routes/deviations';
 import { enzymesRouter } from './routes/enzymes';
 import { lotsRouter } from './routes/lots';
 import { plansRouter } from './routes/plans';
@@ -85,6 +87,8 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/lots', router: lotsRouter(services) },
     { prefix: '/recipes', router: recipesRouter(services) },
     { prefix: '/plans', router: plansRouter(services) },
+    { prefix: '/batches', router: batchesRouter(services) },
+    { prefix: '/deviations', router: deviationsRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
   ];
   for (const m of mounts) api.use(m.prefix, m.router);

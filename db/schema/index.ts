@@ -2,3 +2,4 @@
 export * from './core';
 export * from './catalog';
 export * from './planning';
+export * from './batches';

@@ -1,0 +1,6 @@
+// Batches on the floor: the batch-level use of src/model, shared by the batch screen (preview) and the server.
+// Imports only src/model, src/planning and src/contracts.
+export * from './program';
+export * from './status';
+export * from './deviations';
+export * from './historian-csv';
