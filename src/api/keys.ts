@@ -6,7 +6,12 @@ export const keys = {
   vessels: '/vessels',
   enzymes: '/enzymes',
   lots: '/lots',
+  recipes: '/recipes',
+  batches: '/batches',
 } as const;
+
+export const batchKey = (id: number) => `/batches/${id}`;
+export const recipeKey = (id: number) => `/recipes/${id}`;
 
 /** The audit trail page for a filter. */
 export const auditKey = (q: { action?: string; offset?: number }) =>

@@ -4,3 +4,4 @@ export * from './program';
 export * from './status';
 export * from './deviations';
 export * from './historian-csv';
+export * from './local-time';
