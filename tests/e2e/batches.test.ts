@@ -144,6 +144,10 @@ describe('batches on the floor', () => {
     await page.locator('[data-testid="other-batches"] [data-testid^="batch-card-"], [data-testid="my-batches"] [data-testid^="batch-card-"]').first().click();
     await page.getByTestId('batch-temperature-chart').waitFor();
     await screenshot(page, 'batch-1440x900');
+    await page.getByTestId('batch-report').click();
+    await page.getByTestId('batch-report-body').waitFor();
+    expect(await page.getByTestId('batch-report-body').textContent()).toMatch(/Planned product.*Deviations \(\d+\).*Readings \(\d+\)/);
+    await screenshot(page, 'batch-report-1440x900');
     await page.goto(`${baseURL}/batches/start`);
     await page.getByTestId('start-form').waitFor();
     await page.locator('[data-testid^="start-recipe-"]').first().click();

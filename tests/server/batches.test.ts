@@ -106,6 +106,23 @@ describe('starting a batch', () => {
       expect(body.program.planId).toBe(plan.body.id);
       expect(body.program.stages[0].c).toBeCloseTo(plan.body.outputs.setpointC, 9);
       expect(body.program.p10GPerL).toBeCloseTo(plan.body.outputs.uncertainty.p10, 9);
+      await closeRunning('R-204 Lactose tank');
+      // Sixteen hours in, a reading shows the tank fell to 8 degC after the first hour: the forecast drops below P10.
+      const late = await startLactose(16);
+      const send = (h: number, c: number) => op.post(`/api/batches/${late.id}/readings`, { key: key(), takenAt: at(late.startedAt, h), c });
+      expect((await send(0.2, 8)).body.deviations).toEqual([]);
+      const cold = await send(15.9, 8);
+      const kinds = cold.body.deviations.map((d: any) => d.kind);
+      expect(kinds).toEqual(['gap', 'band']);
+      const all = (await op.get(`/api/batches/${late.id}`)).body;
+      expect(all.status.forecastGPerL).toBeLessThan(all.batch.program.p10GPerL);
+      const low = all.deviations.find((d: any) => d.kind === 'forecast_low');
+      expect(low).toMatchObject({ readingId: null, state: 'open' });
+      expect(low.message).toMatch(/below the plan's P10/);
+      expect(low.corrective.remainingH).toBeCloseTo(20 - 15.9, 6);
+      // Still below P10 on the next reading: the open one stands, no second is raised.
+      await send(15.95, 8);
+      expect((await op.get(`/api/batches/${late.id}`)).body.deviations.filter((d: any) => d.kind === 'forecast_low')).toHaveLength(1);
     } finally {
       t.db.update(recipes).set({ releasedPlanId: null, releasedAt: null }).where(eq(recipes.id, rec.id)).run();
     }

@@ -107,10 +107,12 @@ function BatchBody({ id }: { id: number }) {
           </Text>
         ) : null}
       </Card>
+      {/* On a phone the entry comes first: logging is the job at the vessel. */}
+      {isWide ? null : entry}
       <StatusFigures status={s} isPreview={preview.isPreview} />
       <View style={[styles.columns, isWide && styles.columnsWide]}>
         <View style={[styles.column, isWide && styles.columnWide]}>
-          {entry}
+          {isWide ? entry : null}
           {deviations}
         </View>
         <View style={[styles.column, isWide && styles.columnWide]}>
