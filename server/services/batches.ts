@@ -200,7 +200,25 @@ export function listBatches({ db, clock }: Services, u: SessionUser): BatchSumma
   });
 }
 
-export function getBatchDetail({ db, clock }: Services, u: SessionUser, id: number): BatchDetail {
+// A phone needs neither megabytes of historian data nor 50,000 table rows: past this many it gets a sample.
+const DETAIL_READINGS = 5000;
+const LATEST_KEPT = 50;
+
+/** Every k-th reading and the latest ones, in time order. */
+export function sampleReadings<T>(all: readonly T[], max = DETAIL_READINGS): T[] {
+  if (all.length <= max) return [...all];
+  const k = Math.ceil(all.length / (max - LATEST_KEPT));
+  const tail = all.length - LATEST_KEPT;
+  return all.filter((_, i) => i >= tail || i % k === 0);
+}
+
+export function getBatchDetail(s: Services, u: SessionUser, id: number): BatchDetail {
+  const d = batchRecord(s, u, id);
+  return { ...d, readings: sampleReadings(d.readings), readingsTotal: d.readings.length };
+}
+
+/** The whole batch record, every reading included (the report). */
+function batchRecord({ db, clock }: Services, u: SessionUser, id: number): Omit<BatchDetail, 'readingsTotal'> {
   const j = loadBatch(db, u.siteId, id);
   const b = j.batch;
   const readings = listReadings(db, b.id).map((r) => toReading(r.reading, r.enteredBy, b.startedAt));
@@ -467,7 +485,7 @@ export function closeDeviation({ db, clock }: Services, u: SessionUser, id: numb
 
 /** The batch record as section/field/value rows: recipe, plan, status, readings and deviations, spreadsheet-safe. */
 export function batchReportCsv(s: Services, u: SessionUser, id: number): { filename: string; csv: string } {
-  const { batch: b, readings, deviations: devs, status, settings } = getBatchDetail(s, u, id);
+  const { batch: b, readings, deviations: devs, status, settings } = batchRecord(s, u, id);
   const p = b.program;
   const rows: unknown[][] = [
     ['batch', 'id', b.id, ''],

@@ -176,7 +176,9 @@ export type Batch = z.infer<typeof Batch>;
 
 export const BatchDetail = z.object({
   batch: Batch,
+  /** All readings, or for a long historian record an even sample plus the latest ones (see readingsTotal). */
   readings: z.array(Reading),
+  readingsTotal: z.number().int(),
   deviations: z.array(Deviation),
   status: BatchStatus,
   settings: BatchSettings,

@@ -316,6 +316,13 @@ describe('historian import', () => {
     expect(r.status, JSON.stringify(r.body).slice(0, 300)).toBe(200);
     expect(r.body).toMatchObject({ rows: 50_000, imported: 50_000, skipped: 0, outOfOrder: 0 });
     expect(count(batchReadings)).toBe(n0 + 50_000);
+    // The batch screen gets a sample of a long record, ending with the latest readings; the CSV report gets all.
+    const detail = (await op.get(`/api/batches/${batch.id}`)).body;
+    expect(detail.readingsTotal).toBe(50_000);
+    expect(detail.readings.length).toBeLessThanOrEqual(5000);
+    expect(detail.readings.at(-1).takenAt).toBe(new Date(start + 1000 * 49_999).toISOString());
+    const report = (await op.get(`/api/batches/${batch.id}/report.csv`)).body as string;
+    expect(report.split('\r\n').filter((l) => l.startsWith('reading,'))).toHaveLength(50_000);
     console.info(`50,000-row import: ${Math.round(ms)} ms, ${(csv.length / 1e6).toFixed(2)} MB`);
     const again = await upload(op, csv);
     expect(again.body).toMatchObject({ rows: 50_000, imported: 0, skipped: 50_000 });

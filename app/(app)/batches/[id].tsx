@@ -47,8 +47,10 @@ function BatchBody({ id }: { id: number }) {
     const start = data.batch.startedAt;
     const queued = logger.queued.map((q) => ({ h: batchHours(start, q.takenAt), c: q.c, isQueued: true }));
     const all = [...data.readings.map((r) => ({ h: r.h, c: r.c, isQueued: false })), ...queued].sort((a, b) => a.h - b.h);
-    const status = queued.length ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective } : data.status;
-    return { all, status, isPreview: queued.length > 0 };
+    // A sampled historian record cannot be re-integrated here: then the server's figures stand until the readings arrive.
+    const canPreview = queued.length > 0 && data.readings.length === data.readingsTotal;
+    const status = canPreview ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective } : data.status;
+    return { all, status, isPreview: canPreview };
   }, [data, logger.queued]);
 
   if (error) return <ErrorState error={error} onRetry={retry} />;
@@ -66,7 +68,7 @@ function BatchBody({ id }: { id: number }) {
   const sentence = `${status.readings} readings. Planned now ${fmt(s.plannedNowC)} °C${last ? `, last logged ${fmt(last.c)} °C` : ''}. Activity left ${fmt(s.activityLeft * 100, 0)} %, product so far ${fmt(s.productSoFarGPerL)} g/L; if the plan is followed from now the batch ends with ${fmt(s.forecastGPerL)} g/L against ${fmt(s.plannedProductGPerL)} g/L planned.`;
 
   const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} logger={logger} /> : null;
-  const deviations = <DeviationList deviations={data.deviations} role={role} />;
+  const deviations = <DeviationList deviations={data.deviations} role={role} current={status.corrective} />;
   const chart = (
     <Card>
       <Text variant="title" accessibilityRole="header">

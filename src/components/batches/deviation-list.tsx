@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { shortTime } from '../../batches';
-import { DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, type Deviation } from '../../contracts/batches';
+import { DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, type Corrective, type Deviation } from '../../contracts/batches';
 import type { Role } from '../../contracts/roles';
 import { fmt } from '../../format';
 import { useAcknowledgeDeviation } from '../../hooks/use-acknowledge-deviation';
@@ -31,7 +31,7 @@ function Suggestion({ d }: { d: NonNullable<Deviation['corrective']> }) {
   );
 }
 
-function DeviationItem({ d, role }: { d: Deviation; role: Role }) {
+function DeviationItem({ d, role, current }: { d: Deviation; role: Role; current: Corrective | null }) {
   const c = useColors();
   const [comment, setComment] = useState('');
   const ack = useAcknowledgeDeviation();
@@ -53,7 +53,8 @@ function DeviationItem({ d, role }: { d: Deviation; role: Role }) {
         {shortTime(d.at)}
       </Text>
       <Text variant="small">{d.message}</Text>
-      {d.corrective && d.state !== 'closed' ? <Suggestion d={d.corrective} /> : null}
+      {/* The suggestion from the latest reading replaces the one stored when the deviation was raised (kept in the report). */}
+      {d.corrective && d.state !== 'closed' ? <Suggestion d={current ?? d.corrective} /> : null}
       {d.acknowledgedBy ? (
         <Text variant="small" tone="muted">
           Acknowledged by {d.acknowledgedBy}: “{d.acknowledgeComment}”
@@ -87,7 +88,7 @@ function DeviationItem({ d, role }: { d: Deviation; role: Role }) {
 }
 
 /** The batch's deviations, open ones first, with the step each role can take. */
-export function DeviationList({ deviations, role }: { deviations: Deviation[]; role: Role }) {
+export function DeviationList({ deviations, role, current }: { deviations: Deviation[]; role: Role; current: Corrective | null }) {
   const order = { open: 0, acknowledged: 1, closed: 2 } as const;
   const sorted = [...deviations].sort((a, b) => order[a.state] - order[b.state] || b.id - a.id);
   const open = deviations.filter((d) => d.state !== 'closed').length;
@@ -100,7 +101,7 @@ export function DeviationList({ deviations, role }: { deviations: Deviation[]; r
         {deviations.length ? `${open} of ${deviations.length} not yet closed` : 'None so far.'}
       </Text>
       {sorted.map((d) => (
-        <DeviationItem key={d.id} d={d} role={role} />
+        <DeviationItem key={d.id} d={d} role={role} current={current} />
       ))}
     </Card>
   );

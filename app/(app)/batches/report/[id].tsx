@@ -70,10 +70,10 @@ function ReportBody({ id }: { id: number }) {
       </Text>
       {data.deviations.length ? <DataTable columns={DEVIATIONS} rows={data.deviations} rowKey={(d) => String(d.id)} caption="Deviations" /> : <Text tone="muted">None.</Text>}
       <Text variant="title" accessibilityRole="header">
-        Readings ({data.readings.length})
+        Readings ({data.readingsTotal})
       </Text>
-      {data.readings.length > 2000 ? (
-        <Text tone="muted">{data.readings.length} readings: too many to print; the CSV holds them all.</Text>
+      {data.readingsTotal > 2000 ? (
+        <Text tone="muted">{data.readingsTotal} readings: too many to print; the CSV holds them all.</Text>
       ) : (
         <DataTable columns={READINGS} rows={data.readings} rowKey={(r) => String(r.id)} caption="Readings" />
       )}
