@@ -6,6 +6,7 @@ import { HttpError, notFound } from '../http-error';
 import { revokeUserSessions } from '../repositories/sessions';
 import { findSiteUser, listSiteUsers, updateUser, type UserRow } from '../repositories/users';
 import { appendAudit } from './audit';
+import { assertFreeSeat } from './billing';
 
 type Ctx = { db: Db; clock: Clock };
 
@@ -23,6 +24,8 @@ export function changeUser({ db, clock }: Ctx, actor: SessionUser, id: number, p
   const now = clock.now();
   return db.transaction((tx) => {
     const t = tx as unknown as Db;
+    // Reactivating takes a seat like a new user does.
+    if (patch.isActive === true && !before.isActive) assertFreeSeat(t, actor.siteId, now);
     const after = updateUser(t, id, patch);
     if ((patch.role && patch.role !== before.role) || patch.isActive === false) revokeUserSessions(t, id, now.toISOString());
     appendAudit(t, {
