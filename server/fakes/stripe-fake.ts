@@ -486,6 +486,7 @@ ${error ? `<p class="err" role="alert" data-testid="pay-error">${esc(error)}</p>
     return { body: inv };
   }));
 
+  app.get('/favicon.ico', (_req, res) => void res.status(204).end());
   app.get('/pay/:id', (req, res) => {
     const o = store.get(req.params.id);
     if (o?.object === 'checkout.session' && o.status === 'open') return payPage(res, 'Yieldpoint seats', sessionSummary(o), null);

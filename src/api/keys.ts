@@ -6,4 +6,8 @@ export const keys = {
   vessels: '/vessels',
   enzymes: '/enzymes',
   lots: '/lots',
+  billing: '/billing',
+  invoices: '/billing/invoices',
+  invites: '/invites',
+  mailOutbox: '/mail-outbox',
 } as const;

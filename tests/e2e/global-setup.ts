@@ -22,9 +22,10 @@ const freePort = () =>
     });
   });
 
-/** Builds the web app if needed and runs the real server on a fresh demo database, as `npm start` does. */
-export default async function setup(project: TestProject) {
-  ensureWebBuild(root, 'dist');
+export type RunningServer = { baseURL: string; dataDir: string; stop(): void };
+
+/** Runs the real server (`server/start.ts`, as `npm start` does) on a fresh demo database in a temporary folder. */
+export async function startServer(): Promise<RunningServer> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-e2e-'));
   const port = await freePort();
   const child: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/start.ts'], {
@@ -46,9 +47,20 @@ export default async function setup(project: TestProject) {
     child.stderr!.on('data', onData);
     child.on('exit', (code) => reject(new Error(`server exited with ${code}:\n${output}`)));
   });
-  project.provide('baseURL', `http://127.0.0.1:${port}`);
-  return () => {
-    child.kill('SIGTERM');
-    fs.rmSync(dir, { recursive: true, force: true });
+  return {
+    baseURL: `http://127.0.0.1:${port}`,
+    dataDir: dir,
+    stop: () => {
+      child.kill('SIGTERM');
+      fs.rmSync(dir, { recursive: true, force: true });
+    },
   };
+}
+
+/** Builds the web app if needed and starts the server every e2e file shares. */
+export default async function setup(project: TestProject) {
+  ensureWebBuild(root, 'dist');
+  const server = await startServer();
+  project.provide('baseURL', server.baseURL);
+  return () => server.stop();
 }
