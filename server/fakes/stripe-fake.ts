@@ -228,8 +228,9 @@ export async function startStripeFake(opts: StripeFakeOptions): Promise<StripeFa
     session._lines as { price: Obj | null; priceData: { currency: string; unitAmount: number; productName: string } | null; quantity: number }[];
 
   // --- hosted page ----------------------------------------------------------------------------------
-  function payPage(res: Response, title: string, summary: string, error: string | null, status = 200) {
-    res.status(status).type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1">
+  // A refused card re-renders the form with the reason (status 200, as a hosted page does), not an HTTP error.
+  function payPage(res: Response, title: string, summary: string, error: string | null) {
+    res.status(200).type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1">
 <title>${esc(title)} · local test payment</title>
 <style>body{font-family:system-ui,sans-serif;margin:0;background:#eef1f4;color:#1b2330}main{max-width:420px;margin:0 auto;padding:24px}
 section{background:#fff;border:1px solid #cfd6de;border-radius:12px;padding:20px;display:grid;gap:12px}label{display:grid;gap:4px;font-weight:600}
@@ -502,8 +503,8 @@ ${error ? `<p class="err" role="alert" data-testid="pay-error">${esc(error)}</p>
       const title = isSession ? 'Yieldpoint seats' : `Invoice ${o.number}`;
       const summary = isSession ? sessionSummary(o) : money(o.amount_due, o.currency);
       const card = cardOutcome(String(req.body.card ?? ''));
-      if (!card) return payPage(res, title, summary, 'Use a test card number: 4242 4242 4242 4242 is accepted, 4000 0000 0000 0002 is declined.', 400);
-      if (card.outcome === 'declined') return payPage(res, title, summary, card.message, 402);
+      if (!card) return payPage(res, title, summary, 'Use a test card number: 4242 4242 4242 4242 is accepted, 4000 0000 0000 0002 is declined.');
+      if (card.outcome === 'declined') return payPage(res, title, summary, card.message);
       if (isSession) {
         await completeSession(o);
         return res.redirect(303, String(o.success_url).replace('{CHECKOUT_SESSION_ID}', o.id));

@@ -147,7 +147,8 @@ export function ReduceSeatsCard({ b }: { b: BillingSummary }) {
 const INVOICE_COLUMNS: Column<Invoice>[] = [
   { key: 'number', label: 'Invoice', value: (i) => i.number, flex: 1.2 },
   { key: 'issued', label: 'Issued', value: (i) => isoDate(i.issuedAt) },
-  { key: 'period', label: 'Period', value: (i) => `${isoDate(i.periodStart)} – ${isoDate(i.periodEnd)}`, flex: 1.6 },
+  // A one-off charge for added seats has no period of its own.
+  { key: 'period', label: 'Period', value: (i) => (i.periodStart === i.periodEnd ? 'Seats added' : `${isoDate(i.periodStart)} – ${isoDate(i.periodEnd)}`), flex: 1.6 },
   { key: 'seats', label: 'Seats', value: (i) => String(i.seats), isNumeric: true, flex: 0.6 },
   { key: 'amount', label: 'Amount', value: (i) => money(i.amountDueCents, i.currency), isNumeric: true },
   { key: 'status', label: 'Status', value: (i) => (i.status === 'paid' ? 'Paid' : i.status === 'open' ? 'Unpaid' : i.status) },
