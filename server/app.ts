@@ -17,6 +17,8 @@ import { siteRouter } from './routes/site';
 import { usersRouter } from './routes/users';
 import { vesselsRouter } from './routes/vessels';
 import type { AuthConfig } from './services/auth';
+import { createFileStore, type FileStore } from './file-store';
+import os from 'node:os';
 
 export type AppDeps = {
   db: Db;
@@ -26,6 +28,8 @@ export type AppDeps = {
   /** Folder of the exported web app; omitted in API tests. */
   webDir?: string;
   signInLimit?: { perAddress: number; perAccount: number; windowMs: number };
+  /** Where uploaded files (certificates of analysis) live; a fresh temporary folder when omitted (tests). */
+  files?: FileStore;
 };
 
 const DEFAULT_SIGN_IN_LIMIT = { perAddress: 30, perAccount: 10, windowMs: 15 * 60_000 };
@@ -77,7 +81,7 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/site', router: siteRouter(services) },
     { prefix: '/vessels', router: vesselsRouter(services) },
     { prefix: '/enzymes', router: enzymesRouter(services) },
-    { prefix: '/lots', router: lotsRouter(services) },
+    { prefix: '/lots', router: lotsRouter({ ...services, files: deps.files ?? createFileStore(fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-files-'))) }) },
   ];
   for (const m of mounts) api.use(m.prefix, m.router);
   app.locals.apiMounts = mounts;

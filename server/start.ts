@@ -7,6 +7,7 @@ import { createApp } from './app';
 import { systemClock } from './clock';
 import { readEnv } from './env';
 import { ensureWebBuild } from './web-build';
+import { createFileStore } from './file-store';
 
 const root = path.resolve(__dirname, '..');
 
@@ -34,6 +35,7 @@ async function main() {
     auth: { secret: sessionSecret(env.sessionSecret, env.databaseFile), idleMinutes: env.sessionIdleMinutes, absoluteHours: env.sessionAbsoluteHours },
     cookieSecure: env.cookieSecure,
     webDir: path.resolve(root, env.webDir),
+    files: createFileStore(path.join(path.dirname(path.resolve(env.databaseFile)), 'files')),
   });
   const server = app.listen(env.port, env.host, () => {
     const address = server.address();

@@ -1,3 +1,4 @@
 // One file per area; each new area adds its file and one line here.
 export * from './core';
 export * from './catalog';
+export * from './quality';
