@@ -10,6 +10,7 @@ import type { ApiMount } from './route-table';
 import { authenticate } from './middleware/auth';
 import { requireSameOrigin } from './middleware/csrf';
 import { apiNotFound, errorHandler } from './middleware/errors';
+import { auditEventsRouter } from './routes/audit-events';
 import { enzymesRouter } from './routes/enzymes';
 import { lotsRouter } from './routes/lots';
 import { sessionRouter } from './routes/session';
@@ -82,6 +83,7 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/vessels', router: vesselsRouter(services) },
     { prefix: '/enzymes', router: enzymesRouter(services) },
     { prefix: '/lots', router: lotsRouter({ ...services, files: deps.files ?? createFileStore(fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-files-'))) }) },
+    { prefix: '/audit-events', router: auditEventsRouter(services) },
   ];
   for (const m of mounts) api.use(m.prefix, m.router);
   app.locals.apiMounts = mounts;

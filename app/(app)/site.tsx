@@ -1,6 +1,7 @@
+import { router } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
+import { Button, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import { ROLE_LABELS } from '@/contracts/roles';
 import type { User } from '@/contracts/users';
 import { useSite } from '@/hooks/use-site';
@@ -59,7 +60,9 @@ function SiteBody() {
 function SiteScreenContent() {
   const site = useSite();
   return (
-    <Screen title="Site" subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and licence seats.'} testID="screen-site">
+    <Screen title="Site" subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and licence seats.'} testID="screen-site"
+      actions={<Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} />}
+    >
       <SiteBody />
     </Screen>
   );

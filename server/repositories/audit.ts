@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, isNull } from 'drizzle-orm';
+import { and, asc, desc, eq, gte, isNull, lt, sql, type SQL } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { auditEvents } from '../../db/schema';
 
@@ -19,3 +19,22 @@ export const listAudit = (db: Db, siteId: number | null, opts: { action?: string
     .orderBy(asc(auditEvents.id))
     .limit(opts.limit ?? 1_000_000)
     .all();
+
+export type AuditFilter = { action?: string; actor?: string; entity?: string; from?: string; to?: string };
+
+const filterWhere = (siteId: number, f: AuditFilter): SQL | undefined =>
+  and(
+    eq(auditEvents.siteId, siteId),
+    f.action ? eq(auditEvents.action, f.action) : undefined,
+    f.actor ? eq(auditEvents.actor, f.actor) : undefined,
+    f.entity ? eq(auditEvents.entity, f.entity) : undefined,
+    f.from ? gte(auditEvents.at, f.from) : undefined,
+    // `to` is a day: everything before the next midnight.
+    f.to ? lt(auditEvents.at, `${f.to.slice(0, 10)}T99`) : undefined,
+  );
+
+/** Newest first, for the screen; the chain itself is verified oldest first. */
+export const findAudit = (db: Db, siteId: number, f: AuditFilter, limit: number, offset: number) => ({
+  rows: db.select().from(auditEvents).where(filterWhere(siteId, f)).orderBy(desc(auditEvents.id)).limit(limit).offset(offset).all(),
+  total: db.select({ n: sql<number>`count(*)` }).from(auditEvents).where(filterWhere(siteId, f)).get()?.n ?? 0,
+});

@@ -7,3 +7,7 @@ export const keys = {
   enzymes: '/enzymes',
   lots: '/lots',
 } as const;
+
+/** The audit trail page for a filter. */
+export const auditKey = (q: { action?: string; offset?: number }) =>
+  `/audit-events?${new URLSearchParams({ ...(q.action ? { action: q.action } : {}), offset: String(q.offset ?? 0), limit: '50' })}`;

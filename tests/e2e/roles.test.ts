@@ -83,4 +83,18 @@ describe('shell', () => {
     expect(errors).toEqual([]);
     await context.close();
   });
+
+  it('lets a supervisor read the audit trail and check its chain', async () => {
+    const { page, context, errors } = await watchedPage(browser, WIDE);
+    await signIn(page, baseURL, 'supervisor');
+    await page.getByTestId('screen-sign-offs').waitFor();
+    await page.getByTestId('open-audit').click();
+    await page.getByTestId('audit-table').waitFor();
+    expect(await page.getByTestId('audit-table').textContent()).toContain('supervisor@haldenbay.test');
+    await page.getByTestId('audit-verify').click();
+    await expect(page.getByTestId('audit-verify-result').textContent()).resolves.toMatch(/^Unbroken: all \d+ events check out\.$/);
+    await screenshot(page, 'supervisor-audit-1440x900');
+    expect(errors).toEqual([]);
+    await context.close();
+  });
 });

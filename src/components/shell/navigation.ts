@@ -1,7 +1,8 @@
 import type { Role } from '../../contracts/roles';
 import type { IconName } from '../icons';
 
-export type NavItem = { name: string; href: string; label: string; icon: IconName; roles: readonly Role[] };
+// `inBar: false` places are reached from another screen, not from the bar.
+export type NavItem = { name: string; href: string; label: string; icon: IconName; roles: readonly Role[]; inBar?: boolean };
 
 // Order is the order on screen. Each role sees at most five, so the phone's bottom bar never crowds.
 export const NAV_ITEMS: readonly NavItem[] = [
@@ -10,6 +11,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { name: 'sign-offs', href: '/sign-offs', label: 'Sign-offs', icon: 'signoffs', roles: ['supervisor', 'engineer', 'admin'] },
   { name: 'lots', href: '/lots', label: 'Lots', icon: 'lots', roles: ['procurement', 'engineer', 'supervisor', 'admin'] },
   { name: 'batches', href: '/batches', label: 'Batches', icon: 'batches', roles: ['operator', 'supervisor', 'engineer'] },
+  { name: 'audit', href: '/audit', label: 'Audit trail', icon: 'signoffs', roles: ['supervisor', 'admin'], inBar: false },
   { name: 'you', href: '/you', label: 'You', icon: 'you', roles: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] },
 ];
 
@@ -22,6 +24,6 @@ export const HOME: Record<Role, string> = {
   operator: '/batches',
 };
 
-export const navItemsFor = (role: Role) => NAV_ITEMS.filter((i) => i.roles.includes(role));
+export const navItemsFor = (role: Role) => NAV_ITEMS.filter((i) => i.inBar !== false && i.roles.includes(role));
 
 export const canSee = (role: Role, name: string) => NAV_ITEMS.some((i) => i.name === name && i.roles.includes(role));

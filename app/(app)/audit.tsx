@@ -1,0 +1,100 @@
+import { useState } from 'react';
+import { Linking, StyleSheet, View } from 'react-native';
+import { RoleGate } from '@/components/shell/role-gate';
+import { Button, Card, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
+import type { AuditEvent } from '@/contracts/audit-events';
+import { useAuditEvents } from '@/hooks/use-audit-events';
+import { useVerifyAudit } from '@/hooks/use-verify-audit';
+import { space } from '@/theme';
+
+const ACTIONS = [
+  { value: undefined, label: 'Everything' },
+  { value: 'sign-in', label: 'Sign-ins' },
+  { value: 'sign-in.failed', label: 'Failed sign-ins' },
+  { value: 'user.update', label: 'User changes' },
+] as const;
+
+const summary = (v: unknown) => (v == null ? '' : JSON.stringify(v).slice(0, 120));
+
+const COLUMNS: Column<AuditEvent>[] = [
+  { key: 'at', label: 'When (UTC)', value: (e) => e.at.replace('T', ' ').slice(0, 19), flex: 1.2 },
+  { key: 'actor', label: 'Who', value: (e) => e.actor, flex: 1.4 },
+  { key: 'action', label: 'What', value: (e) => `${e.action} · ${e.entity}${e.entityId ? ` ${e.entityId}` : ''}`, flex: 1.3 },
+  { key: 'change', label: 'Old → new', value: (e) => [summary(e.oldValue), summary(e.newValue)].filter(Boolean).join(' → '), flex: 2 },
+];
+
+function VerifyCard() {
+  const { verify, result, error, isBusy } = useVerifyAudit();
+  return (
+    <Card>
+      <Text weight="semibold">Chain check</Text>
+      <Text tone="muted" variant="small">
+        Each event carries a hash of the one before it, so an edited or deleted record breaks every later link.
+      </Text>
+      {result ? (
+        <Text tone={result.ok ? 'success' : 'danger'} testID="audit-verify-result" accessibilityLiveRegion="polite">
+          {result.ok ? `Unbroken: all ${result.events} events check out.` : `Broken at event ${result.firstBrokenId} of ${result.events}.`}
+        </Text>
+      ) : null}
+      {error ? <Text tone="danger">{error.message}</Text> : null}
+      <Button label="Check the chain now" variant="secondary" onPress={verify} isBusy={isBusy} testID="audit-verify" />
+    </Card>
+  );
+}
+
+function AuditBody() {
+  const [action, setAction] = useState<string | undefined>(undefined);
+  const [offset, setOffset] = useState(0);
+  const { data, error, isLoading, retry } = useAuditEvents({ action, offset });
+  return (
+    <>
+      <VerifyCard />
+      <View style={styles.filters} accessibilityLabel="Filter by action">
+        {ACTIONS.map((a) => (
+          <Button
+            key={a.label}
+            label={a.label}
+            compact
+            variant={a.value === action ? 'primary' : 'secondary'}
+            accessibilityState={{ selected: a.value === action }}
+            onPress={() => {
+              setAction(a.value);
+              setOffset(0);
+            }}
+          />
+        ))}
+        <Button label="Export CSV" compact variant="ghost" onPress={() => Linking.openURL(`/api/audit-events/export.csv${action ? `?action=${action}` : ''}`)} />
+      </View>
+      {error ? (
+        <ErrorState error={error} onRetry={retry} />
+      ) : isLoading || !data ? (
+        <Loader rows={6} label="Loading the audit trail" />
+      ) : !data.events.length ? (
+        <EmptyState title="No events" message="Nothing matches this filter yet." />
+      ) : (
+        <>
+          <Text tone="muted" testID="audit-count">
+            {offset + 1}–{offset + data.events.length} of {data.total} events, newest first
+          </Text>
+          <DataTable columns={COLUMNS} rows={data.events} rowKey={(e) => String(e.id)} caption="Audit trail" testID="audit-table" />
+          <View style={styles.filters}>
+            <Button label="Newer" compact variant="secondary" disabled={offset === 0} onPress={() => setOffset(Math.max(0, offset - 50))} />
+            <Button label="Older" compact variant="secondary" disabled={offset + 50 >= data.total} onPress={() => setOffset(offset + 50)} />
+          </View>
+        </>
+      )}
+    </>
+  );
+}
+
+export default function AuditScreen() {
+  return (
+    <RoleGate name="audit">
+      <Screen title="Audit trail" subtitle="Every sign-in, change, signature and decision at this site. Append-only." testID="screen-audit">
+        <AuditBody />
+      </Screen>
+    </RoleGate>
+  );
+}
+
+const styles = StyleSheet.create({ filters: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm } });

@@ -1,0 +1,20 @@
+import { Router } from 'express';
+import { AuditPage, AuditQuery, AuditVerification } from '../../src/contracts/audit-events';
+import { allow, currentUser } from '../middleware/auth';
+import { auditCsv, searchAudit, verifySiteAudit } from '../services/audit-events';
+import type { Services } from './services';
+
+export function auditEventsRouter(s: Services): Router {
+  const router = Router();
+  router.get('/', allow('supervisor', 'admin'), (req, res) => {
+    res.json(AuditPage.parse(searchAudit(s, currentUser(req), AuditQuery.parse(req.query))));
+  });
+  router.get('/verify', allow('supervisor', 'admin'), (req, res) => {
+    res.json(AuditVerification.parse(verifySiteAudit(s, currentUser(req))));
+  });
+  router.get('/export.csv', allow('supervisor', 'admin'), (req, res) => {
+    const csv = auditCsv(s, currentUser(req), AuditQuery.parse(req.query));
+    res.type('text/csv').attachment(`audit-trail-${s.clock.now().toISOString().slice(0, 10)}.csv`).send(csv);
+  });
+  return router;
+}

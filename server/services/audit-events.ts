@@ -1,0 +1,35 @@
+import type { AuditEvent, AuditPage, AuditQuery, AuditVerification } from '../../src/contracts/audit-events';
+import type { SessionUser } from '../../src/contracts/session';
+import { toCsv } from '../csv';
+import { findAudit, type AuditRow } from '../repositories/audit';
+import type { Services } from '../routes/services';
+import { verifyAudit } from './audit';
+
+const toEvent = (r: AuditRow): AuditEvent => ({
+  id: r.id,
+  at: r.at,
+  actor: r.actor,
+  action: r.action,
+  entity: r.entity,
+  entityId: r.entityId,
+  oldValue: r.oldValue ?? null,
+  newValue: r.newValue ?? null,
+  hash: r.hash,
+  prevHash: r.prevHash,
+});
+
+export function searchAudit({ db }: Services, u: SessionUser, q: AuditQuery): AuditPage {
+  const { rows, total } = findAudit(db, u.siteId, q, q.limit, q.offset);
+  return { events: rows.map(toEvent), total };
+}
+
+export const verifySiteAudit = ({ db }: Services, u: SessionUser): AuditVerification => verifyAudit(db, u.siteId);
+
+/** The filtered trail as CSV, oldest first, with the hashes so the export can be checked on its own. */
+export function auditCsv({ db }: Services, u: SessionUser, q: AuditQuery): string {
+  const { rows } = findAudit(db, u.siteId, q, 1_000_000, 0);
+  return toCsv(
+    ['id', 'at_utc', 'actor', 'action', 'entity', 'entity_id', 'old_value', 'new_value', 'prev_hash', 'hash'],
+    rows.reverse().map((r) => [r.id, r.at, r.actor, r.action, r.entity, r.entityId, r.oldValue, r.newValue, r.prevHash, r.hash]),
+  );
+}

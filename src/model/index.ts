@@ -1,0 +1,71 @@
+export { MODEL_VERSION, R, KELVIN_OFFSET } from './constants';
+export { ModelInputError, ModelCancelledError } from './errors';
+export type {
+  EnzymeParams,
+  Substrate,
+  Stage,
+  Reading,
+  TemperatureInput,
+  BatchState,
+  SimulationResult,
+  TrajectoryPoint,
+} from './types';
+export * from './units';
+export { wrightOmega, lambertW0, lambertWm1 } from './lambert-w';
+export {
+  vmaxAt,
+  kdAt,
+  arrheniusFactor,
+  activeFraction,
+  eyringRatePerS,
+  twoFractionResidual,
+  firstOrderResidual,
+} from './kinetics';
+export { simulate, trajectory, temperatureAt, productFromWork } from './batch';
+export {
+  optimizeSetpoint,
+  optimalSetpointC,
+  optimizeProfile,
+  stagesWithRamps,
+  isothermalOptimumU,
+  workOfStages,
+  type SetpointOptimum,
+  type ProfileOptimum,
+  type BoundSide,
+} from './optimise';
+export { initialRateOptimumC } from './initial-rate';
+export {
+  economics,
+  optimizeEconomics,
+  profitCurve,
+  profitSetpointC,
+  degreeHoursAbove,
+  type EconomicsParams,
+  type EconomicsResult,
+  type EconomicOptimum,
+} from './economics';
+export {
+  monteCarlo,
+  monteCarloSteps,
+  type UncertaintyInput,
+  type UncertaintyResult,
+  type ChunkOptions,
+  type Percentiles,
+} from './uncertainty';
+export { createRng, cholesky, quantileSorted, quantilesBySelection, type Rng } from './random';
+export {
+  fitInactivation,
+  halfLifeAt,
+  twoStepInactivation,
+  fitInitialRates,
+  residualScale,
+  type InactivationPoint,
+  type InactivationFit,
+  type TwoStepEstimate,
+  type InitialRatePoint,
+  type InitialRateFit,
+} from './fit';
+export { studentTQuantile, studentTCdf } from './stats';
+export { thermalDose, type DoseResult } from './dose';
+export { waterSaturationPressureKPa, pressureCaution } from './safety';
+export * from './validate';

@@ -1,0 +1,139 @@
+/** Seeded generator of uniform doubles in [0, 1) and standard normals; same seed, same sequence. */
+export interface Rng {
+  uniform(): number;
+  normal(): number;
+}
+
+/** xoshiro128** seeded through splitmix32, 53-bit uniforms, Box-Muller normals (both of each pair used). */
+export function createRng(seed: number): Rng {
+  let x = (Math.floor(seed) >>> 0) ^ 0x9e3779b9;
+  const split = () => {
+    x = (x + 0x9e3779b9) | 0;
+    let z = x;
+    z = Math.imul(z ^ (z >>> 16), 0x85ebca6b);
+    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35);
+    return (z ^ (z >>> 16)) >>> 0;
+  };
+  let s0 = split();
+  let s1 = split();
+  let s2 = split();
+  let s3 = split();
+  if ((s0 | s1 | s2 | s3) === 0) s0 = 1;
+  const next = () => {
+    const result = Math.imul(rotl(Math.imul(s1, 5), 7), 9) >>> 0;
+    const t = s1 << 9;
+    s2 ^= s0;
+    s3 ^= s1;
+    s1 ^= s2;
+    s0 ^= s3;
+    s2 ^= t;
+    s3 = rotl(s3, 11);
+    return result;
+  };
+  const uniform = () => ((next() >>> 5) * 67108864 + (next() >>> 6)) / 9007199254740992;
+  let spare = 0;
+  let hasSpare = false;
+  const normal = () => {
+    if (hasSpare) {
+      hasSpare = false;
+      return spare;
+    }
+    let u = 0;
+    while (u === 0) u = uniform();
+    const v = uniform();
+    const rad = Math.sqrt(-2 * Math.log(u));
+    spare = rad * Math.sin(2 * Math.PI * v);
+    hasSpare = true;
+    return rad * Math.cos(2 * Math.PI * v);
+  };
+  return { uniform, normal };
+}
+
+function rotl(v: number, k: number): number {
+  return (v << k) | (v >>> (32 - k));
+}
+
+/** Lower Cholesky factor of a symmetric positive semi-definite matrix; null when it is not (within rounding). */
+export function cholesky(a: number[][]): number[][] | null {
+  const n = a.length;
+  const l: number[][] = a.map(() => new Array(n).fill(0));
+  for (let j = 0; j < n; j++) {
+    let d = a[j][j];
+    for (let k = 0; k < j; k++) d -= l[j][k] * l[j][k];
+    const tol = 1e-12 * Math.abs(a[j][j]);
+    if (d < -tol - 1e-300) return null;
+    const ljj = d > tol ? Math.sqrt(d) : 0;
+    l[j][j] = ljj;
+    for (let i = j + 1; i < n; i++) {
+      let s = a[i][j];
+      for (let k = 0; k < j; k++) s -= l[i][k] * l[j][k];
+      if (ljj === 0) {
+        // A zero pivot is allowed only if the column is zero too (semi-definite).
+        if (Math.abs(s) > 1e-9 * Math.sqrt(Math.abs(a[i][i] * a[j][j])) + 1e-300) return null;
+        l[i][j] = 0;
+      } else l[i][j] = s / ljj;
+    }
+  }
+  return l;
+}
+
+/** Quantile p (0..1) of ascending-sorted values, linear between order statistics (type 7). */
+export function quantileSorted(sorted: ArrayLike<number>, p: number): number {
+  const n = sorted.length;
+  if (n === 0) return NaN;
+  const h = (n - 1) * p;
+  const i = Math.floor(h);
+  if (i >= n - 1) return sorted[n - 1];
+  return sorted[i] + (h - i) * (sorted[i + 1] - sorted[i]);
+}
+
+// Hoare-partition quickselect: after the call a[k] holds the k-th smallest of a[lo..hi].
+function selectInPlace(a: Float64Array, k: number, lo: number, hi: number): void {
+  while (hi > lo) {
+    const pivot = a[(lo + hi) >> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        const t = a[i];
+        a[i] = a[j];
+        a[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return;
+  }
+}
+
+/** Type-7 quantiles of map(values) for ascending ps (0..1), by selection; map must be increasing; reorders `scratch`. */
+export function quantilesBySelection(
+  values: ArrayLike<number>,
+  ps: number[],
+  scratch: Float64Array,
+  map: (x: number) => number = (x) => x,
+): number[] {
+  const n = values.length;
+  for (let i = 0; i < n; i++) scratch[i] = values[i];
+  const out: number[] = [];
+  let lo = 0;
+  for (const p of ps) {
+    const h = (n - 1) * p;
+    const i = Math.floor(h);
+    selectInPlace(scratch, i, lo, n - 1);
+    const a = map(scratch[i]);
+    let b = a;
+    if (i < n - 1 && h > i) {
+      let next = Infinity;
+      for (let j = i + 1; j < n; j++) if (scratch[j] < next) next = scratch[j];
+      b = map(next);
+    }
+    out.push(a + (h - i) * (b - a));
+    lo = i;
+  }
+  return out;
+}

@@ -1,0 +1,305 @@
+import { scanMax } from './brent';
+import { KELVIN_OFFSET, R } from './constants';
+import { ModelCancelledError, ModelInputError } from './errors';
+import { compileRates, type Rates } from './kinetics';
+import { productFromWork } from './batch';
+import { isothermalOptimumU, lnWorkIsothermal, optimalSetpointC, workIsothermal } from './optimise';
+import { cholesky, createRng, quantileSorted, quantilesBySelection, type Rng } from './random';
+import type { EnzymeParams, Substrate } from './types';
+
+export interface UncertaintyInput {
+  /** Mean parameters (the fit's point estimates). */
+  enzyme: EnzymeParams;
+  substrate: Substrate;
+  batchH: number;
+  boundsC: [number, number];
+  /** Covariance of [ln kdRefPerH, edKJPerMol] (2x2) or [ln kdRefPerH, edKJPerMol, eaKJPerMol] (3x3); kJ/mol units. */
+  covariance: number[][];
+  /** Standard deviation of the reactor's temperature-sensor bias, degC (actual = setpoint + bias). */
+  sensorBiasSdC?: number;
+  /** Relative standard deviation of the dose (vmaxRef), drawn log-normal with median 1. */
+  doseRelSd?: number;
+  /** Number of draws; default 10000. */
+  draws?: number;
+  /** PRNG seed; default 1. */
+  seed?: number;
+  /** Setpoints (degC) at which to report P10/P50/P90; default 21 evenly spaced across boundsC. */
+  candidatesC?: number[];
+  /** Also evaluate product at the candidates and find the setpoint with the best P10; default true. */
+  robust?: boolean;
+}
+
+export interface Percentiles {
+  p10: number;
+  p50: number;
+  p90: number;
+}
+
+export interface UncertaintyResult {
+  draws: number;
+  seed: number;
+  /** Draws whose Ed or Ea came out below zero and were clamped. */
+  clampedDraws: number;
+  nominal: { setpointC: number; productGPerL: number };
+  /** Distribution of each draw's own best setpoint, degC (corrected for its sensor bias). */
+  optimum: Percentiles & { mean: number };
+  /** Product percentiles (g/L) at each candidate setpoint. */
+  candidates: (Percentiles & { c: number })[];
+  /** Setpoint (degC) whose P10 product is highest, and its product percentiles (g/L); null when robust is false. */
+  robust: (Percentiles & { setpointC: number }) | null;
+}
+
+export interface ChunkOptions {
+  onProgress?: (fraction: number) => void;
+  signal?: { cancelled?: boolean; aborted?: boolean };
+  /** Draws per chunk; default 1000. */
+  chunkSize?: number;
+}
+
+interface Draws {
+  n: number;
+  lnKd: Float64Array;
+  edR: Float64Array;
+  eaR: Float64Array;
+  lnDose: Float64Array;
+  bias: Float64Array;
+  optimum: Float64Array;
+}
+
+function setRates(base: Rates, d: Draws, i: number, out: Rates): void {
+  out.lnVRef = base.lnVRef + d.lnDose[i];
+  out.eaR = d.eaR[i];
+  out.lnKdRef = d.lnKd[i];
+  out.edR = d.edR[i];
+  out.invTRef = base.invTRef;
+  out.hasEq = base.hasEq;
+  out.dHeqR = base.dHeqR;
+  out.invTeq = base.invTeq;
+}
+
+function percentiles(values: Float64Array, scratch: Float64Array, map: (x: number) => number): Percentiles {
+  const [p10, p50, p90] = quantilesBySelection(values, [0.1, 0.5, 0.9], scratch, map);
+  return { p10, p50, p90 };
+}
+
+interface Sampler {
+  base: Rates;
+  work: Rates;
+  d: Draws;
+  rng: Rng;
+  chol: number[][];
+  dim: number;
+  mean: number[];
+  biasSd: number;
+  doseSd: number;
+  batchH: number;
+  lo: number;
+  hi: number;
+  clamped: number;
+}
+
+// Hot loops live outside the generator: engines optimise plain functions better than generator bodies.
+function drawRange(sp: Sampler, start: number, end: number): void {
+  const { d, rng, chol, dim, mean, base, work, batchH, lo, hi } = sp;
+  const z = [0, 0, 0];
+  const th = [0, 0, 0];
+  for (let i = start; i < end; i++) {
+    for (let k = 0; k < dim; k++) z[k] = rng.normal();
+    for (let r = 0; r < 3; r++) {
+      let s = mean[r];
+      if (r < dim) for (let k = 0; k <= r; k++) s += chol[r][k] * z[k];
+      th[r] = s;
+    }
+    let ed = th[1];
+    let ea = th[2];
+    if (ed < 0 || ea < 0) sp.clamped++;
+    if (ed < 0) ed = 0;
+    if (ea < 0) ea = 0;
+    d.lnKd[i] = th[0];
+    d.edR[i] = (ed * 1000) / R;
+    d.eaR[i] = (ea * 1000) / R;
+    d.bias[i] = sp.biasSd > 0 ? sp.biasSd * rng.normal() : 0;
+    d.lnDose[i] = sp.doseSd > 0 ? sp.doseSd * rng.normal() : 0;
+    let opt: number;
+    if (base.hasEq) {
+      setRates(base, d, i, work);
+      const b = d.bias[i];
+      opt = scanMax((c) => lnWorkIsothermal(work, c + b, batchH), lo, hi, 21, 1e-6).x;
+    } else {
+      // Closed form: kd(T*) batch = u*(Ea/Ed); the operator's setpoint is T* - bias.
+      let tc: number;
+      if (!(ed > ea)) tc = Infinity;
+      else if (!(ea > 0)) tc = -Infinity;
+      else {
+        const u = isothermalOptimumU(ea / ed);
+        const invT = base.invTRef - (Math.log(u / batchH) - d.lnKd[i]) / d.edR[i];
+        tc = invT > 0 ? 1 / invT - KELVIN_OFFSET : Infinity;
+      }
+      opt = tc - d.bias[i];
+      if (opt < lo) opt = lo;
+      if (opt > hi) opt = hi;
+    }
+    d.optimum[i] = opt;
+  }
+}
+
+function workRange(sp: Sampler, cands: number[], out: Float64Array[], start: number, end: number): void {
+  const { d, base, work, batchH } = sp;
+  const m = cands.length;
+  for (let i = start; i < end; i++) {
+    setRates(base, d, i, work);
+    const b = d.bias[i];
+    for (let j = 0; j < m; j++) out[j][i] = workIsothermal(work, cands[j] + b, batchH);
+  }
+}
+
+function workColumn(sp: Sampler, c: number, col: Float64Array): void {
+  const { d, base, work, batchH } = sp;
+  for (let i = 0; i < d.n; i++) {
+    setRates(base, d, i, work);
+    col[i] = workIsothermal(work, c + d.bias[i], batchH);
+  }
+}
+
+/** Monte Carlo over correlated parameters as a generator: yields progress 0..1 per chunk, returns the result; same seed, same result. */
+export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Generator<number, UncertaintyResult, void> {
+  const { enzyme, substrate, batchH, boundsC } = input;
+  const [lo, hi] = boundsC;
+  const n = Math.max(1, Math.floor(input.draws ?? 10000));
+  const seed = input.seed ?? 1;
+  const cov = input.covariance;
+  const dim = cov.length;
+  if (dim !== 2 && dim !== 3) throw new ModelInputError('covariance', 'must be 2x2 or 3x3');
+  const chol = cholesky(cov);
+  if (!chol) throw new ModelInputError('covariance', 'must be symmetric positive semi-definite');
+  const robust = input.robust ?? true;
+  const base = compileRates(enzyme);
+  const sp: Sampler = {
+    base,
+    work: { ...base },
+    d: {
+      n,
+      lnKd: new Float64Array(n),
+      edR: new Float64Array(n),
+      eaR: new Float64Array(n),
+      lnDose: new Float64Array(n),
+      bias: new Float64Array(n),
+      optimum: new Float64Array(n),
+    },
+    rng: createRng(seed),
+    chol,
+    dim,
+    mean: [Math.log(enzyme.kdRefPerH), enzyme.edKJPerMol, enzyme.eaKJPerMol],
+    biasSd: input.sensorBiasSdC ?? 0,
+    doseSd: input.doseRelSd ?? 0,
+    batchH,
+    lo,
+    hi,
+    clamped: 0,
+  };
+  const d = sp.d;
+  const chunk = Math.max(1, Math.floor(chunkSize));
+  const phase1 = robust ? 0.3 : 1;
+  for (let start = 0; start < n; start += chunk) {
+    const end = Math.min(n, start + chunk);
+    drawRange(sp, start, end);
+    yield (phase1 * end) / n;
+  }
+  const optSorted = Float64Array.from(d.optimum).sort();
+  let sum = 0;
+  for (let i = 0; i < n; i++) sum += d.optimum[i];
+  const optimum = {
+    p10: quantileSorted(optSorted, 0.1),
+    p50: quantileSorted(optSorted, 0.5),
+    p90: quantileSorted(optSorted, 0.9),
+    mean: sum / n,
+  };
+  const nominalC = optimalSetpointC(enzyme, batchH, boundsC);
+  const { s0GPerL: s0, kmGPerL: km } = substrate;
+  const nominal = {
+    setpointC: nominalC,
+    productGPerL: productFromWork(workIsothermal(base, nominalC, batchH), s0, km),
+  };
+  if (!robust) {
+    return { draws: n, seed, clampedDraws: sp.clamped, nominal, optimum, candidates: [], robust: null };
+  }
+
+  const cands =
+    input.candidatesC && input.candidatesC.length > 0
+      ? [...input.candidatesC].sort((a, b) => a - b)
+      : Array.from({ length: 21 }, (_, j) => (j === 20 ? hi : lo + ((hi - lo) * j) / 20));
+  const m = cands.length;
+  // Product rises strictly with work and every draw shares the substrate, so quantiles are taken on work
+  // and only the order statistics are turned into product.
+  const toProduct = (x: number) => productFromWork(x, s0, km);
+  const works: Float64Array[] = cands.map(() => new Float64Array(n));
+  const candChunk = Math.max(1, Math.floor(chunk / 4));
+  for (let start = 0; start < n; start += candChunk) {
+    const end = Math.min(n, start + candChunk);
+    workRange(sp, cands, works, start, end);
+    yield phase1 + (0.5 * end) / n;
+  }
+  const scratch = new Float64Array(n);
+  const candidates = cands.map((c, j) => ({ c, ...percentiles(works[j], scratch, toProduct) }));
+  let bestJ = 0;
+  for (let j = 1; j < m; j++) if (candidates[j].p10 > candidates[bestJ].p10) bestJ = j;
+
+  // Golden section on P10 with common random numbers, between the best candidate's neighbours.
+  const col = new Float64Array(n);
+  const p10At = (c: number) => {
+    workColumn(sp, c, col);
+    return quantilesBySelection(col, [0.1], scratch, toProduct)[0];
+  };
+  let a = bestJ > 0 ? cands[bestJ - 1] : cands[0];
+  let b = bestJ < m - 1 ? cands[bestJ + 1] : cands[m - 1];
+  let bestC = cands[bestJ];
+  let bestP = candidates[bestJ].p10;
+  const gr = 0.6180339887498949;
+  let x1 = b - gr * (b - a);
+  let x2 = a + gr * (b - a);
+  let f1 = p10At(x1);
+  let f2 = p10At(x2);
+  const tolC = 0.005;
+  const steps = Math.max(1, Math.ceil(Math.log(Math.max(b - a, 1e-9) / tolC) / Math.log(1 / gr)));
+  for (let k = 0; k < steps && b - a > tolC; k++) {
+    if (f1 >= f2) {
+      b = x2;
+      x2 = x1;
+      f2 = f1;
+      x1 = b - gr * (b - a);
+      f1 = p10At(x1);
+    } else {
+      a = x1;
+      x1 = x2;
+      f1 = f2;
+      x2 = a + gr * (b - a);
+      f2 = p10At(x2);
+    }
+    yield phase1 + 0.5 + (0.2 * (k + 1)) / steps;
+  }
+  if (f1 > bestP) {
+    bestP = f1;
+    bestC = x1;
+  }
+  if (f2 > bestP) {
+    bestP = f2;
+    bestC = x2;
+  }
+  workColumn(sp, bestC, col);
+  const robustRes = { setpointC: bestC, ...percentiles(col, scratch, toProduct) };
+  return { draws: n, seed, clampedDraws: sp.clamped, nominal, optimum, candidates, robust: robustRes };
+}
+
+/** Run the Monte Carlo to completion in chunks, reporting progress and honouring cancellation between chunks. */
+export function monteCarlo(input: UncertaintyInput, options: ChunkOptions = {}): UncertaintyResult {
+  const it = monteCarloSteps(input, options.chunkSize ?? 1000);
+  for (;;) {
+    if (options.signal && (options.signal.cancelled || options.signal.aborted)) throw new ModelCancelledError();
+    const step = it.next();
+    if (step.done) {
+      options.onProgress?.(1);
+      return step.value;
+    }
+    options.onProgress?.(step.value);
+  }
+}

@@ -1,0 +1,142 @@
+import { levenbergMarquardt as mlLm } from 'ml-levenberg-marquardt';
+import { describe, expect, it } from 'vitest';
+import {
+  ModelInputError,
+  arrheniusFactor,
+  createRng,
+  fitInactivation,
+  fitInitialRates,
+  halfLifeAt,
+  residualScale,
+  studentTQuantile,
+  type InactivationPoint,
+} from '../../src/model';
+
+function synthetic(seed: number, truth: { kd: number; ed: number }, noiseSd: number, temps = [55, 60, 65, 70]): InactivationPoint[] {
+  const rng = createRng(seed);
+  const pts: InactivationPoint[] = [];
+  for (const c of temps)
+    for (const h of [0.25, 0.5, 1, 2, 4]) {
+      const k = truth.kd * arrheniusFactor(truth.ed, c, 60);
+      pts.push({ c, h, residual: Math.exp(-k * h + noiseSd * rng.normal()) });
+    }
+  return pts;
+}
+
+describe('fitInactivation', () => {
+  it('recovers exact parameters from noise-free data', () => {
+    const f = fitInactivation(60, synthetic(1, { kd: 0.2, ed: 250 }, 0));
+    expect(f.kdRefPerH).toBeCloseTo(0.2, 10);
+    expect(f.edKJPerMol).toBeCloseTo(250, 7);
+    expect(f.halfLifeRefH).toBeCloseTo(Math.LN2 / 0.2, 9);
+    expect(f.twoStep.edKJPerMol).toBeCloseTo(250, 7);
+  });
+  it('agrees with ml-levenberg-marquardt on the point estimate', () => {
+    const pts = synthetic(2, { kd: 0.3, ed: 320 }, 0.03);
+    const f = fitInactivation(60, pts);
+    const K = 273.15;
+    const R = 8.314462618;
+    const data = { x: pts.map((_, i) => i), y: pts.map((p) => Math.log(p.residual)) };
+    const model = ([lnKd, ed]: number[]) => (i: number) =>
+      -Math.exp(lnKd - ((ed * 1000) / R) * (1 / (pts[i].c + K) - 1 / (60 + K))) * pts[i].h;
+    const ref = mlLm(data, model, {
+      initialValues: [Math.log(0.25), 300],
+      maxIterations: 2000,
+      errorTolerance: 1e-14,
+      gradientDifference: 1e-6,
+      centralDifference: true,
+      damping: 1e-2,
+    });
+    expect(Math.abs(ref.parameterValues[0] - Math.log(f.kdRefPerH))).toBeLessThan(1e-4);
+    expect(Math.abs(ref.parameterValues[1] - f.edKJPerMol)).toBeLessThan(0.05);
+  });
+  it('95 % intervals cover the truth in most of 200 synthetic data sets (expected 95 %)', () => {
+    let coverKd = 0;
+    let coverEd = 0;
+    let coverHalf70 = 0;
+    const q = studentTQuantile(0.975, 18);
+    const truth = { kd: 0.15, ed: 280 };
+    const trueHalf70 = Math.LN2 / (truth.kd * arrheniusFactor(truth.ed, 70, 60));
+    for (let s = 0; s < 200; s++) {
+      const f = fitInactivation(60, synthetic(1000 + s, truth, 0.05));
+      const seLn = Math.sqrt(f.covariance[0][0]);
+      if (Math.abs(Math.log(f.kdRefPerH / truth.kd)) <= q * seLn) coverKd++;
+      if (Math.abs(f.edKJPerMol - truth.ed) <= q * f.se.edKJPerMol) coverEd++;
+      const h = halfLifeAt(f, 70);
+      if (h.lowerH <= trueHalf70 && trueHalf70 <= h.upperH) coverHalf70++;
+    }
+    for (const c of [coverKd, coverEd, coverHalf70]) {
+      expect(c).toBeGreaterThanOrEqual(180);
+      expect(c).toBeLessThanOrEqual(200);
+    }
+  });
+  it('half-life interval is narrowest near the middle of the data and brackets the estimate', () => {
+    const f = fitInactivation(60, synthetic(3, { kd: 0.2, ed: 250 }, 0.04));
+    const mid = halfLifeAt(f, 62.5);
+    const far = halfLifeAt(f, 85);
+    expect(mid.lowerH).toBeLessThan(mid.halfLifeH);
+    expect(mid.upperH).toBeGreaterThan(mid.halfLifeH);
+    expect(far.upperH / far.lowerH).toBeGreaterThan(mid.upperH / mid.lowerH);
+  });
+  const bad: [string, InactivationPoint[], string, string][] = [
+    ['one temperature', [{ c: 60, h: 1, residual: 0.5 }, { c: 60, h: 2, residual: 0.25 }, { c: 60, h: 3, residual: 0.12 }], 'points', 'needs at least two temperatures'],
+    ['residual <= 0', [{ c: 60, h: 1, residual: 0.5 }, { c: 65, h: 2, residual: 0 }, { c: 60, h: 3, residual: 0.12 }], 'points[1].residual', 'must be > 0 and <= 1.5 (a fraction, not a percentage)'],
+    ['residual > 1.5 (percent)', [{ c: 60, h: 1, residual: 50 }, { c: 65, h: 2, residual: 25 }, { c: 60, h: 3, residual: 12 }], 'points[0].residual', 'must be > 0 and <= 1.5 (a fraction, not a percentage)'],
+    ['no decay', [{ c: 60, h: 1, residual: 1 }, { c: 65, h: 2, residual: 1.02 }, { c: 60, h: 3, residual: 1.01 }], 'points', 'shows no decay'],
+    ['too few points', [{ c: 60, h: 1, residual: 0.5 }, { c: 65, h: 2, residual: 0.25 }], 'points', 'needs at least three points'],
+    ['singular (all at time zero but one)', [{ c: 60, h: 0, residual: 1 }, { c: 65, h: 0, residual: 0.99 }, { c: 65, h: 1, residual: 0.5 }], 'points', 'gives a singular fit'],
+  ];
+  it.each(bad)('rejects %s with field and rule', (_n, pts, field, rule) => {
+    try {
+      fitInactivation(60, pts);
+      expect.unreachable();
+    } catch (e) {
+      expect(e).toBeInstanceOf(ModelInputError);
+      expect((e as ModelInputError).field).toBe(field);
+      expect((e as ModelInputError).rule).toBe(rule);
+    }
+  });
+  it('residualScale tells percent from fraction', () => {
+    expect(residualScale([100, 80, 45])).toBe('percent');
+    expect(residualScale([1, 0.8, 0.45])).toBe('fraction');
+  });
+});
+
+describe('Student t quantile', () => {
+  it.each([
+    [1, 12.706],
+    [2, 4.303],
+    [10, 2.228],
+    [30, 2.042],
+  ])('t(0.975, %i) = %f ([M] standard t tables)', (dof, t) => {
+    expect(studentTQuantile(0.975, dof)).toBeCloseTo(t, 3);
+  });
+  it('approaches the normal quantile 1.95996 for large dof ([M])', () => {
+    expect(studentTQuantile(0.975, 1e6)).toBeCloseTo(1.95996, 4);
+  });
+});
+
+describe('fitInitialRates', () => {
+  it('recovers Ea from Arrhenius data', () => {
+    const pts = [20, 30, 40, 50].map((c) => ({ c, rate: 3 * arrheniusFactor(60, c, 40) }));
+    const f = fitInitialRates(pts, 40);
+    expect(f.model).toBe('arrhenius');
+    expect(f.eaKJPerMol).toBeCloseTo(60, 8);
+    expect(f.rateRef).toBeCloseTo(3, 8);
+  });
+  it('fits the Equilibrium Model when the rate drops past a peak', () => {
+    const K = 273.15;
+    const R = 8.314462618;
+    const rng = createRng(8);
+    const pts = [];
+    for (let c = 20; c <= 80; c += 5) {
+      const keq = Math.exp(((180 * 1000) / R) * (1 / (65 + K) - 1 / (c + K)));
+      pts.push({ c, rate: (arrheniusFactor(55, c, 60) / (1 + keq)) * Math.exp(0.01 * rng.normal()) });
+    }
+    const f = fitInitialRates(pts, 60);
+    expect(f.model).toBe('equilibrium');
+    expect(Math.abs(f.eaKJPerMol - 55)).toBeLessThan(4 * f.se.eaKJPerMol + 0.5);
+    expect(Math.abs(f.equilibrium!.teqC - 65)).toBeLessThan(1);
+    expect(Math.abs(f.equilibrium!.dHeqKJPerMol - 180)).toBeLessThan(15);
+  });
+});
