@@ -15,7 +15,7 @@ afterAll(() => t.close());
 /** A multipart upload of one file the way the browser sends it. */
 async function upload(c: Client, path: string, name: string, bytes: Buffer | string, type = 'application/octet-stream'): Promise<Reply> {
   const form = new FormData();
-  form.append('file', new Blob([bytes], { type }), name);
+  form.append('file', new Blob([typeof bytes === 'string' ? bytes : new Uint8Array(bytes)], { type }), name);
   const res = await fetch(t.base + path, { method: 'POST', headers: { 'x-yieldpoint-client': 'test', cookie: c.cookie ?? '' }, body: form });
   const text = await res.text();
   let body: unknown = text;
