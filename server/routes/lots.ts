@@ -1,18 +1,15 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { Assay, AssayTableInput, MAX_ASSAY_BYTES } from '../../src/contracts/assays';
-import { CertificateFile, Lot, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
+import { CertificateFile, Lot, LOT_DECIDERS, LOT_EDITORS, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { singleFile } from '../middleware/upload';
 import { ASSAY_TEMPLATE_CSV, readAssayCsv, readAssayTable } from '../services/assay-csv';
 import { addAssay, exportAssayCsv } from '../services/assays';
 import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate, type LotServices } from '../services/lots';
-import { CATALOG_EDITORS } from './enzymes';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 const AssayParam = IdParam.extend({ assayId: z.coerce.number().int().positive() });
-/** Accepting or rejecting a lot is procurement's call (and the admin's). */
-const DECIDERS = ['procurement', 'admin'] as const;
 
 const attachment = (name: string) => `attachment; filename="${name.replace(/["\\\r\n]/g, '_')}"`;
 
@@ -21,7 +18,7 @@ export function lotsRouter(s: LotServices): Router {
   router.get('/', allow(...ALL_ROLES), (req, res) => {
     res.json(LotList.parse({ lots: listLots(s, currentUser(req), LotQuery.parse(req.query)) }));
   });
-  router.post('/', allow(...CATALOG_EDITORS), (req, res) => {
+  router.post('/', allow(...LOT_EDITORS), (req, res) => {
     res.status(201).json(Lot.parse(createLot(s, currentUser(req), LotInput.parse(req.body))));
   });
   router.get('/assay-template', allow(...ALL_ROLES), (_req, res) => {
@@ -30,11 +27,11 @@ export function lotsRouter(s: LotServices): Router {
   router.get('/:id', allow(...ALL_ROLES), (req, res) => {
     res.json(LotDetail.parse(getLot(s, currentUser(req), IdParam.parse(req.params).id)));
   });
-  router.post('/:id/decision', allow(...DECIDERS), (req, res) => {
+  router.post('/:id/decision', allow(...LOT_DECIDERS), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(LotDetail.parse(decideLot(s, currentUser(req), id, LotDecision.parse(req.body))));
   });
-  router.post('/:id/certificate', allow(...CATALOG_EDITORS), singleFile('file', MAX_CERTIFICATE_BYTES), (req, res) => {
+  router.post('/:id/certificate', allow(...LOT_EDITORS), singleFile('file', MAX_CERTIFICATE_BYTES), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.status(201).json(CertificateFile.parse(attachCertificate(s, currentUser(req), id, req.file)));
   });
@@ -43,7 +40,7 @@ export function lotsRouter(s: LotServices): Router {
     res.type(file.mimeType).set({ 'content-disposition': attachment(file.fileName), 'x-sha256': file.sha256 }).send(bytes);
   });
   // A CSV file (multipart, field "file") or the editable table's rows (JSON); both are checked the same way.
-  router.post('/:id/assays', allow(...CATALOG_EDITORS), singleFile('file', MAX_ASSAY_BYTES), (req, res) => {
+  router.post('/:id/assays', allow(...LOT_EDITORS), singleFile('file', MAX_ASSAY_BYTES), (req, res) => {
     const { id } = IdParam.parse(req.params);
     const user = currentUser(req);
     const file = req.file;
