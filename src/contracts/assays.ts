@@ -9,11 +9,14 @@ export const MAX_POINTS_SHOWN = 2_000;
 export const ResidualScale = z.enum(['fraction', 'percent']);
 export type ResidualScale = z.infer<typeof ResidualScale>;
 
+// A typed cell as the user typed it, or a number: the server checks both the way it checks a CSV cell.
+const Cell = z.union([z.number(), z.string().max(40)], { error: 'A number or the text typed' });
+
 /** One typed row of the editable table (residual as typed: fraction or percent). */
 export const AssayRowInput = z.object({
-  tempC: z.number({ error: 'Enter a number' }),
-  timeH: z.number({ error: 'Enter a number' }),
-  residual: z.number({ error: 'Enter a number' }),
+  tempC: Cell,
+  timeH: Cell,
+  residual: Cell,
   note: z.string().max(200).optional(),
 });
 export type AssayRowInput = z.infer<typeof AssayRowInput>;

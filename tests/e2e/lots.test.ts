@@ -83,6 +83,15 @@ describe('procurement judges an incoming lot', () => {
     await screenshot(page, `lot-failing-${WIDE.width}x${WIDE.height}`);
     await shot(page, 'decay-chart', `lot-charts-${WIDE.width}x${WIDE.height}`);
 
+    // Typed rows are checked like a file: a bad one is named by its row and nothing is saved.
+    await page.getByTestId('assay-type-toggle').click();
+    await page.getByLabel('Row 1 temperature, °C').fill('85');
+    await page.getByLabel('time, h').first().fill('two');
+    await page.getByLabel('residual').first().fill('0.9');
+    await page.getByRole('button', { name: 'Save typed rows' }).click();
+    await expect(page.getByTestId('assay-error').textContent()).resolves.toMatch(/row 1: time "two" is not a number/);
+    await shot(page, 'assay-entry', `assay-typed-error-${WIDE.width}x${WIDE.height}`);
+
     await page.goto(`${baseURL}/lots/enzymes`);
     await page.getByTestId('enzymes-table').waitFor();
     await page.getByTestId('enzyme-search').fill('corvane');
@@ -91,7 +100,9 @@ describe('procurement judges an incoming lot', () => {
     await page.getByRole('link', { name: 'Open Amylo GA-17 and its lot history' }).click();
     await page.getByTestId('lot-history-chart').waitFor();
     await shot(page, 'lot-history-chart', `enzyme-history-${WIDE.width}x${WIDE.height}`);
-    expect(errors).toEqual([]);
+    // The refused typed rows answer 400, which the browser logs: that one is expected, nothing else is.
+    expect(errors.filter((e) => !e.includes('status of 400'))).toEqual([]);
+    expect(errors.length).toBeLessThanOrEqual(1);
     await context.close();
   });
 

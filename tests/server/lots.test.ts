@@ -247,9 +247,12 @@ describe('assays', () => {
     expect(r.status).toBe(400);
     expect(r.body.error.code).toBe('missing_columns');
     expect(r.body.error.message).toMatch(/time \(h\)/);
-    const wrong = await c.post(`/api/lots/${id}/assays`, { rows: [{ tempC: '45', timeH: 1, residual: 0.5 }] });
+    const wrong = await c.post(`/api/lots/${id}/assays`, { rows: [{ tempC: true, timeH: 1, residual: 0.5 }] });
     expect(wrong.status).toBe(400);
     expect(wrong.body.error.fields['rows.0.tempC']).toBeTruthy();
+    // Typed text goes through the same checks as a CSV cell, reported by row.
+    const typed = await c.post(`/api/lots/${id}/assays`, { rows: [{ tempC: '45', timeH: 'two', residual: '0.5' }] });
+    expect(typed.body.error.fields).toEqual({ 'row 1': 'time "two" is not a number' });
     expect((await upload(c, `/api/lots/${id}/assays`, 'bin.csv', Buffer.from([0xff, 0xfe, 0x00, 0x41]))).status).toBe(400);
   });
 

@@ -5,7 +5,7 @@ export type Tick = { value: number; pos: number; label: string };
 
 /** The plotting box inside a chart of the given size; margins leave room for tick labels. */
 export function plotBox(width: number, height: number): Box {
-  return { width, height, left: 48, right: width - 12, top: 12, bottom: height - 36 };
+  return { width, height, left: 48, right: width - 12, top: 28, bottom: height - 36 };
 }
 
 /** Ticks from a d3 scale, placed and labelled. */

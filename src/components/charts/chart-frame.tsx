@@ -1,7 +1,8 @@
 import { useState, type ReactNode } from 'react';
-import { View } from 'react-native';
+import { StyleSheet, View } from 'react-native';
 import Svg, { G, Line, Text as SvgText } from 'react-native-svg';
-import { font, useColors } from '../../theme';
+import { font, space, useColors } from '../../theme';
+import { Text } from '../ui/text';
 import type { Box, Tick } from './axes';
 
 const HEIGHT = 260;
@@ -42,7 +43,7 @@ export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
             <SvgText x={(drawn.box.left + drawn.box.right) / 2} y={HEIGHT - 4} fontSize={12} fontFamily={font.semibold} fill={c.textMuted} textAnchor="middle">
               {xTitle}
             </SvgText>
-            <SvgText x={4} y={drawn.box.top - 2} fontSize={12} fontFamily={font.semibold} fill={c.textMuted}>
+            <SvgText x={4} y={14} fontSize={12} fontFamily={font.semibold} fill={c.textMuted}>
               {yTitle}
             </SvgText>
           </G>
@@ -58,3 +59,23 @@ export function useSeriesColors(): string[] {
   const c = useColors();
   return [c.chartLine, c.chartLineAlt, c.success, c.warning, c.primary, c.danger];
 }
+
+/** A key of series colours under a chart, as text so it reads without the picture. */
+export function Legend({ items, testID }: { items: { label: string; color: string }[]; testID?: string }) {
+  return (
+    <View style={styles.legend} testID={testID}>
+      {items.map((it) => (
+        <View key={it.label} style={styles.legendItem}>
+          <View style={[styles.swatch, { backgroundColor: it.color }]} />
+          <Text variant="small">{it.label}</Text>
+        </View>
+      ))}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  legend: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
+  legendItem: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
+  swatch: { width: space.md, height: space.md, borderRadius: space.md / 2 },
+});

@@ -1,5 +1,6 @@
 import { Circle, G, Path } from 'react-native-svg';
-import { ChartFrame, useSeriesColors } from './chart-frame';
+import { View } from 'react-native';
+import { ChartFrame, Legend, useSeriesColors } from './chart-frame';
 import { decayGeometry, type DecayFit, type DecayPoint } from './decay-geometry';
 
 /** Residual activity against time, one colour per temperature, dots measured and lines fitted. */
@@ -7,6 +8,7 @@ export function DecayChart({ points, fit }: { points: DecayPoint[]; fit: DecayFi
   const colors = useSeriesColors();
   const temps = [...new Set(points.map((p) => p.tempC))].sort((a, b) => a - b);
   return (
+    <View>
     <ChartFrame
       testID="decay-chart"
       label={`Residual activity against time at ${temps.join(', ')} °C${fit ? ', with fitted first-order curves' : ''}. The table below lists the same data.`}
@@ -27,5 +29,7 @@ export function DecayChart({ points, fit }: { points: DecayPoint[]; fit: DecayFi
         };
       }}
     />
+    <Legend items={temps.map((t, i) => ({ label: `${t} °C`, color: colors[i % colors.length]! }))} />
+    </View>
   );
 }

@@ -4,7 +4,7 @@ import type { ResidualScale } from '../../contracts/assays';
 import { useUploadAssay } from '../../hooks/use-upload-assay';
 import { space, useColors } from '../../theme';
 import { Button, Card, Field, Text } from '../ui';
-import { Choice, toNumber } from './choice';
+import { Choice } from './choice';
 import { pickFile } from './pick-file';
 
 type Row = { tempC: string; timeH: string; residual: string };
@@ -76,7 +76,7 @@ export function AssayEntry({ lotId }: { lotId: number }) {
               setDone(null);
               const filled = rows.filter((r) => r.tempC || r.timeH || r.residual);
               const assay = await submit({
-                rows: filled.map((r) => ({ tempC: toNumber(r.tempC), timeH: toNumber(r.timeH), residual: toNumber(r.residual) })),
+                rows: filled.map((r) => ({ tempC: r.tempC, timeH: r.timeH, residual: r.residual })),
                 scale: scale === 'auto' ? undefined : scale,
               });
               if (assay) setDone(`${assay.pointCount} typed points saved. ${assay.scaleNote}`);

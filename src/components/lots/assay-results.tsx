@@ -15,6 +15,9 @@ const POINT_COLUMNS: Column<AssayPoint>[] = [
   { key: 'note', label: 'Note', value: (p) => p.note ?? '', flex: 1.4 },
 ];
 
+// A table a person can read on screen; larger assays are in the chart and the CSV download.
+const ROWS_SHOWN = 200;
+
 type PerT = { c: number; kdPerH: number; se: number | null; n: number };
 const ARRHENIUS_COLUMNS: Column<PerT>[] = [
   { key: 'c', label: 'Temperature, °C', value: (p) => fmt(p.c, 1), isNumeric: true },
@@ -28,6 +31,7 @@ const ARRHENIUS_COLUMNS: Column<PerT>[] = [
 export function AssayResults({ assay, specTempC }: { assay: Assay; specTempC: number }) {
   const { isWide } = useBreakpoint();
   const fit = assay.fit;
+  const shown = assay.points.slice(0, ROWS_SHOWN);
   const points = assay.points.map((p) => ({ tempC: p.tempC, timeH: p.timeH, residual: p.residual }));
   return (
     <Card testID={`assay-${assay.id}`}>
@@ -70,9 +74,11 @@ export function AssayResults({ assay, specTempC }: { assay: Assay; specTempC: nu
           <DataTable columns={ARRHENIUS_COLUMNS} rows={fit.twoStep.perTemperature} rowKey={(p) => String(p.c)} caption="Arrhenius plot as a table" testID="arrhenius-table" />
         </>
       ) : null}
-      <Text weight="semibold">Measurements{assay.points.length < assay.pointCount ? ` (first ${assay.points.length} of ${assay.pointCount})` : ''}</Text>
-      <DataTable columns={POINT_COLUMNS} rows={assay.points} rowKey={(p) => String(p.line)} caption="Assay measurements" testID="assay-points-table" />
-      <Button label="Download as CSV" variant="secondary" compact onPress={() => Linking.openURL(`/api/lots/${assay.lotId}/assays/${assay.id}/csv`)} />
+      <Text weight="semibold">Measurements{shown.length < assay.pointCount ? ` (first ${shown.length} of ${assay.pointCount}; the CSV has all)` : ''}</Text>
+      <DataTable columns={POINT_COLUMNS} rows={shown} rowKey={(p) => String(p.line)} caption="Assay measurements" testID="assay-points-table" />
+      <View style={styles.start}>
+        <Button label="Download as CSV" variant="secondary" compact onPress={() => Linking.openURL(`/api/lots/${assay.lotId}/assays/${assay.id}/csv`)} />
+      </View>
     </Card>
   );
 }
@@ -91,6 +97,7 @@ function Figure({ label, value, testID }: { label: string; value: string; testID
 }
 
 const styles = StyleSheet.create({
+  start: { alignSelf: 'flex-start' },
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: space.lg },
   figure: { minWidth: 140, gap: space.xxs },
   charts: { gap: space.lg },

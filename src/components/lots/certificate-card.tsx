@@ -32,7 +32,9 @@ export function CertificateCard({ lot, conversion, certificate, canEdit }: { lot
           <Text variant="caption" tone="muted" selectable>
             SHA-256 {certificate.sha256}
           </Text>
-          <Button label="Download certificate" variant="secondary" compact onPress={() => Linking.openURL(`/api/lots/${lot.id}/certificate`)} />
+          <View style={styles.start}>
+            <Button label="Download certificate" variant="secondary" compact onPress={() => Linking.openURL(`/api/lots/${lot.id}/certificate`)} />
+          </View>
         </View>
       ) : (
         <Text tone="muted" variant="small">
@@ -60,4 +62,4 @@ export function CertificateCard({ lot, conversion, certificate, canEdit }: { lot
   );
 }
 
-const styles = StyleSheet.create({ file: { gap: space.xs } });
+const styles = StyleSheet.create({ file: { gap: space.xs }, start: { alignSelf: 'flex-start' } });

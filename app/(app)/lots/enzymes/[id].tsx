@@ -1,5 +1,6 @@
 import { router, useLocalSearchParams } from 'expo-router';
 import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
 import { LotHistoryChart } from '@/components/charts/lot-history-chart';
 import { EnzymeForm } from '@/components/lots/enzyme-form';
 import { RoleGate } from '@/components/shell/role-gate';
@@ -10,6 +11,7 @@ import { fmt } from '@/format';
 import { useEnzyme } from '@/hooks/use-enzymes';
 import { useSession } from '@/hooks/use-session';
 
+const STATUS = { quarantined: 'Quarantined', accepted: 'Accepted', rejected: 'Rejected' } as const;
 const BASIS = { assay: 'Assay fit', certificate: 'Certificate', none: 'No figure at this temperature' } as const;
 
 const COLUMNS: Column<LotHistoryPoint>[] = [
@@ -18,7 +20,7 @@ const COLUMNS: Column<LotHistoryPoint>[] = [
   { key: 'half', label: 'Half-life, h', value: (p) => (p.halfLifeH === null ? '–' : fmt(p.halfLifeH, 1)), isNumeric: true },
   { key: 'ci', label: '95 % interval, h', value: (p) => (p.lowerH === null || p.upperH === null ? '–' : `${fmt(p.lowerH, 1)}–${fmt(p.upperH, 1)}`), isNumeric: true },
   { key: 'basis', label: 'Basis', value: (p) => BASIS[p.basis] },
-  { key: 'status', label: 'Status', value: (p) => p.status },
+  { key: 'status', label: 'Status', value: (p) => STATUS[p.status] },
 ];
 
 function EnzymeBody({ id }: { id: number }) {
@@ -41,7 +43,11 @@ function EnzymeBody({ id }: { id: number }) {
         <Text>
           Specification: half-life at least {fmt(e.specMinHalfLifeH, 1)} h at {fmt(e.specTempC, 0)} °C; activity at least {fmt(e.specMinActivity, 0)} {e.activityUnit}.
         </Text>
-        {canEdit && !isEditing ? <Button label="Edit" variant="secondary" compact onPress={() => setEditing(true)} testID="enzyme-edit" /> : null}
+        {canEdit && !isEditing ? (
+          <View style={styles.start}>
+            <Button label="Edit specification and details" variant="secondary" compact onPress={() => setEditing(true)} testID="enzyme-edit" />
+          </View>
+        ) : null}
       </Card>
       {isEditing ? <EnzymeForm enzyme={e} onDone={() => setEditing(false)} onCancel={() => setEditing(false)} /> : null}
       <Card>
@@ -78,3 +84,5 @@ export default function EnzymeScreen() {
     </RoleGate>
   );
 }
+
+const styles = StyleSheet.create({ start: { alignSelf: 'flex-start' } });

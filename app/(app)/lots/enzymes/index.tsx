@@ -41,7 +41,11 @@ function EnzymesBody() {
   const pages = data ? Math.max(1, Math.ceil(data.total / PAGE_SIZE)) : 1;
   return (
     <>
-      {canEdit && !editing ? <Button label="New enzyme" onPress={() => setEditing('new')} testID="enzyme-add" /> : null}
+      {canEdit && !editing ? (
+        <View style={styles.row}>
+          <Button label="New enzyme" onPress={() => setEditing('new')} testID="enzyme-add" />
+        </View>
+      ) : null}
       {editing ? (
         <EnzymeForm key={editing === 'new' ? 'new' : editing.id} enzyme={editing === 'new' ? undefined : editing} onDone={() => setEditing(null)} onCancel={() => setEditing(null)} />
       ) : null}
