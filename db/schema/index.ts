@@ -3,3 +3,4 @@ export * from './core';
 export * from './catalog';
 export * from './mail';
 export * from './billing';
+export * from './quality';
