@@ -2,7 +2,7 @@ import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { HOME, navItemsFor } from '../../src/components/shell/navigation';
 import { ROLES } from '../../src/contracts/roles';
-import { acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
+import { accessibilityViolations, acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
 const baseURL = inject('baseURL');
 let browser: Browser;
@@ -34,6 +34,7 @@ describe.each([
     );
     expect(shown.sort()).toEqual(expected);
     await screenshot(page, `${role}-home-${viewport.width}x${viewport.height}`);
+    expect(await accessibilityViolations(page)).toEqual([]);
 
     await page.getByTestId('nav-you').click();
     await page.getByTestId('sign-out').click();
@@ -55,6 +56,7 @@ describe('shell', () => {
     await page.getByTestId('sign-in-submit').click();
     await expect(page.getByTestId('sign-in-error').textContent()).resolves.toMatch(/not right/);
     await screenshot(page, 'sign-in-error-390x844');
+    expect(await accessibilityViolations(page)).toEqual([]);
     // The 401 of the failed attempt is the one expected error.
     expect(errors.filter((e) => !e.includes('401'))).toEqual([]);
     await context.close();
@@ -70,6 +72,7 @@ describe('shell', () => {
     await page.goto(`${baseURL}/no/such/place`);
     await page.getByTestId('screen-not-found').waitFor();
     await screenshot(page, 'not-found-390x844');
+    expect(await accessibilityViolations(page)).toEqual([]);
     expect(errors).toEqual([]);
     await context.close();
   });
@@ -94,6 +97,7 @@ describe('shell', () => {
     await page.getByTestId('audit-verify').click();
     await expect(page.getByTestId('audit-verify-result').textContent()).resolves.toMatch(/^Unbroken: all \d+ events check out\.$/);
     await screenshot(page, 'supervisor-audit-1440x900');
+    expect(await accessibilityViolations(page)).toEqual([]);
     expect(errors).toEqual([]);
     await context.close();
   });

@@ -19,6 +19,7 @@ export function Choice<V extends string>({ label, value, options, onChange, test
             variant={o.value === value ? 'primary' : 'secondary'}
             accessibilityRole="radio"
             accessibilityState={{ checked: o.value === value }}
+            aria-checked={o.value === value}
             onPress={() => onChange(o.value)}
             testID={testID ? `${testID}-${o.value}` : undefined}
           />

@@ -16,6 +16,7 @@ export function RoleChoice({ value, onChange, testID }: { value: Role; onChange:
             accessibilityRole="radio"
             accessibilityLabel={ROLE_LABELS[r]}
             accessibilityState={{ checked: on }}
+            aria-checked={on}
             testID={`${testID}-${r}`}
             onPress={() => onChange(r)}
             style={[styles.chip, { borderColor: on ? c.primary : c.border, backgroundColor: on ? c.primary : c.surface }]}

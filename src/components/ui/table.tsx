@@ -15,11 +15,11 @@ type Props<T> = {
   rowLabel?: (row: T) => string;
 };
 
-/** A row that is a link when the table has `onRowPress`, a plain view otherwise. */
+/** A row that opens its record when the table has `onRowPress`; inside a table it keeps the row role (ARIA needs it). */
 function Row({ onPress, label, style, testID, children, role }: { onPress?: () => void; label?: string; style: object[]; testID?: string; children: React.ReactNode; role?: 'row' }) {
   if (!onPress) return <View role={role} style={style} testID={testID}>{children}</View>;
   return (
-    <Pressable role="link" accessibilityLabel={label} onPress={onPress} style={({ pressed }) => [...style, pressed && { opacity: 0.7 }]} testID={testID}>
+    <Pressable role={role ?? 'link'} aria-label={label} onPress={onPress} style={({ pressed }) => [...style, pressed && { opacity: 0.7 }]} testID={testID}>
       {children}
     </Pressable>
   );
