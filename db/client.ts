@@ -25,3 +25,11 @@ export function openDb(file: string): Db {
 export function migrateDb(db: Db): void {
   migrate(db, { migrationsFolder: MIGRATIONS });
 }
+
+/**
+ * Runs a write as one BEGIN IMMEDIATE transaction: it takes the write lock up front, so concurrent writers queue
+ * on busy_timeout instead of failing half-way with SQLITE_BUSY. Synchronous: an async callback would commit early.
+ */
+export function writeTx<T>(db: Db, fn: (tx: Db) => T): T {
+  return db.transaction((tx) => fn(tx as unknown as Db), { behavior: 'immediate' });
+}

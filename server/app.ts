@@ -7,6 +7,7 @@ import path from 'node:path';
 import type { Db } from '../db/client';
 import type { Clock } from './clock';
 import type { ApiMount } from './route-table';
+import { auditDenials } from './middleware/audit-denials';
 import { authenticate } from './middleware/auth';
 import { requireSameOrigin } from './middleware/csrf';
 import { apiNotFound, errorHandler } from './middleware/errors';
@@ -65,8 +66,9 @@ export function createApp(deps: AppDeps): Express {
   const api = express.Router();
   api.use(express.json({ limit: '1mb' }));
   api.use(cookieParser());
-  api.use(requireSameOrigin);
   api.use(authenticate({ db: deps.db, clock: deps.clock, auth: deps.auth }));
+  api.use(auditDenials(services));
+  api.use(requireSameOrigin);
   api.use((_req, res, next) => {
     res.set('cache-control', 'no-store');
     next();

@@ -1,5 +1,5 @@
 import { createInterface } from 'node:readline/promises';
-import { migrateDb, openDb } from '../db/client';
+import { migrateDb, openDb, writeTx } from '../db/client';
 import { sites } from '../db/schema';
 import { SignInRequest } from '../src/contracts/session';
 import { readEnv } from './env';
@@ -31,10 +31,10 @@ async function main() {
   const db = openDb(env.databaseFile);
   migrateDb(db);
   const hash = await hashPassword(creds.password);
-  db.transaction((tx) => {
+  writeTx(db, (tx) => {
     const site = tx.insert(sites).values({ name: siteName, timeZone: timeZone || 'UTC' }).returning().get();
-    const user = insertUser(tx as never, { siteId: site.id, email: creds.email, name, role: 'admin', passwordHash: hash });
-    appendAudit(tx as never, { siteId: site.id, userId: user.id, actor: 'create-admin', action: 'user.create', entity: 'user', entityId: user.id, newValue: { email: creds.email, role: 'admin' }, at: new Date() });
+    const user = insertUser(tx, { siteId: site.id, email: creds.email, name, role: 'admin', passwordHash: hash });
+    appendAudit(tx, { siteId: site.id, userId: user.id, actor: 'create-admin', action: 'user.create', entity: 'user', entityId: user.id, newValue: { email: creds.email, role: 'admin' }, at: new Date() });
   });
   console.log(`Created site "${siteName}" with admin ${creds.email} in ${env.databaseFile}.`);
   db.$client.close();

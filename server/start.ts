@@ -45,6 +45,8 @@ async function main() {
       for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(12)} ${u.email.padEnd(28)} ${u.password}`);
     }
   });
+  // Longer than the usual 5 s so a client reusing a kept-alive socket does not race the server closing it.
+  server.keepAliveTimeout = 65_000;
   const stop = () => {
     server.close(() => {
       db.$client.close();

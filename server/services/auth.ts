@@ -1,7 +1,7 @@
 import bcrypt from 'bcryptjs';
 import crypto from 'node:crypto';
 import { jwtVerify, SignJWT } from 'jose';
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { SessionUser, SignInRequest } from '../../src/contracts/session';
 import type { Clock } from '../clock';
 import { HttpError } from '../http-error';
@@ -32,7 +32,7 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
   const ok = await bcrypt.compare(req.password, user?.passwordHash ?? DUMMY_HASH);
   const now = clock.now();
   if (!user || !ok || !user.isActive) {
-    appendAudit(db, {
+    writeTx(db, (tx) => appendAudit(tx, {
       siteId: user?.siteId ?? null,
       userId: user?.id ?? null,
       actor: req.email,
@@ -40,13 +40,13 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
       entity: 'session',
       newValue: { from, reason: !user ? 'unknown e-mail' : !ok ? 'wrong password' : 'user deactivated' },
       at: now,
-    });
+    }));
     throw new HttpError(401, 'bad_credentials', 'E-mail or password is not right');
   }
   const sessionId = crypto.randomBytes(24).toString('base64url');
   const expiresAt = new Date(now.getTime() + ctx.auth.absoluteHours * 3_600_000);
-  db.transaction((tx) => {
-    insertSession(tx as unknown as Db, {
+  writeTx(db, (tx) => {
+    insertSession(tx, {
       id: sessionId,
       userId: user.id,
       role: user.role,
@@ -54,7 +54,7 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
       lastSeenAt: now.toISOString(),
       expiresAt: expiresAt.toISOString(),
     });
-    appendAudit(tx as unknown as Db, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-in', entity: 'session', newValue: { from }, at: now });
+    appendAudit(tx, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-in', entity: 'session', newValue: { from }, at: now });
   });
   const token = await new SignJWT({ sid: sessionId })
     .setProtectedHeader({ alg: 'HS256' })
@@ -110,8 +110,8 @@ export async function resolveSession(ctx: AuthContext, token: string): Promise<{
 
 export function signOut(ctx: AuthContext, sessionId: string, user: SessionUser): void {
   const now = ctx.clock.now();
-  ctx.db.transaction((tx) => {
-    revokeSession(tx as unknown as Db, sessionId, now.toISOString());
-    appendAudit(tx as unknown as Db, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-out', entity: 'session', at: now });
+  writeTx(ctx.db, (tx) => {
+    revokeSession(tx, sessionId, now.toISOString());
+    appendAudit(tx, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-out', entity: 'session', at: now });
   });
 }

@@ -1,4 +1,4 @@
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { SessionUser } from '../../src/contracts/session';
 import type { UpdateUser, User } from '../../src/contracts/users';
 import type { Clock } from '../clock';
@@ -21,11 +21,10 @@ export function changeUser({ db, clock }: Ctx, actor: SessionUser, id: number, p
     throw new HttpError(409, 'own_account', 'You cannot change your own role or deactivate yourself');
   }
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    const after = updateUser(t, id, patch);
-    if ((patch.role && patch.role !== before.role) || patch.isActive === false) revokeUserSessions(t, id, now.toISOString());
-    appendAudit(t, {
+  return writeTx(db, (tx) => {
+        const after = updateUser(tx, id, patch);
+    if ((patch.role && patch.role !== before.role) || patch.isActive === false) revokeUserSessions(tx, id, now.toISOString());
+    appendAudit(tx, {
       siteId: actor.siteId,
       userId: actor.id,
       actor: actor.email,
@@ -43,8 +42,8 @@ export function changeUser({ db, clock }: Ctx, actor: SessionUser, id: number, p
 export function acknowledgeCautions({ db, clock }: Ctx, actor: SessionUser): void {
   if (actor.cautionsAcknowledgedAt) return;
   const now = clock.now();
-  db.transaction((tx) => {
-    updateUser(tx as unknown as Db, actor.id, { cautionsAcknowledgedAt: now.toISOString() });
-    appendAudit(tx as unknown as Db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'cautions.acknowledge', entity: 'user', entityId: actor.id, at: now });
+  writeTx(db, (tx) => {
+    updateUser(tx, actor.id, { cautionsAcknowledgedAt: now.toISOString() });
+    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'cautions.acknowledge', entity: 'user', entityId: actor.id, at: now });
   });
 }

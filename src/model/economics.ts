@@ -4,6 +4,11 @@ import { compileRates } from './kinetics';
 import { lnWorkIsothermal, optimalSetpointC } from './optimise';
 import type { EnzymeParams, Substrate, TemperatureInput } from './types';
 
+// Local bindings of hot imports: CommonJS transforms (tsx, esbuild) route every call to an imported
+// function through a getter, which blocks inlining in the inner loops.
+const lnWorkFast = lnWorkIsothermal;
+const productFast = productFromWork;
+
 /** Plant economics of one recipe; money in any one currency. */
 export interface EconomicsParams {
   /** Selling value of product, currency per kg. */
@@ -131,8 +136,8 @@ export function profitSetpointC(
   const r = compileRates(enzyme);
   const { s0GPerL: s0, kmGPerL: km } = substrate;
   const money = (c: number) => {
-    const x = Math.exp(lnWorkIsothermal(r, c, batchH));
-    const p = productFromWork(x, s0, km);
+    const x = Math.exp(lnWorkFast(r, c, batchH));
+    const p = productFast(x, s0, km);
     return costs(econ, p, Math.max(0, c - econ.ambientC) * batchH, batchH).profitPerBatch;
   };
   // Heating cost only pulls the setpoint down from the work optimum.

@@ -7,6 +7,13 @@ import { isothermalOptimumU, lnWorkIsothermal, optimalSetpointC, workIsothermal 
 import { cholesky, createRng, quantileSorted, quantilesBySelection, type Rng } from './random';
 import type { EnzymeParams, Substrate } from './types';
 
+// Local bindings of hot imports: CommonJS transforms (tsx, esbuild) route every call to an imported
+// function through a getter, which blocks inlining in the inner loops.
+const workFast = workIsothermal;
+const lnWorkFast = lnWorkIsothermal;
+const productFast = productFromWork;
+const optimumU = isothermalOptimumU;
+
 export interface UncertaintyInput {
   /** Mean parameters (the fit's point estimates). */
   enzyme: EnzymeParams;
@@ -124,14 +131,14 @@ function drawRange(sp: Sampler, start: number, end: number): void {
     if (base.hasEq) {
       setRates(base, d, i, work);
       const b = d.bias[i];
-      opt = scanMax((c) => lnWorkIsothermal(work, c + b, batchH), lo, hi, 21, 1e-6).x;
+      opt = scanMax((c) => lnWorkFast(work, c + b, batchH), lo, hi, 21, 1e-6).x;
     } else {
       // Closed form: kd(T*) batch = u*(Ea/Ed); the operator's setpoint is T* - bias.
       let tc: number;
       if (!(ed > ea)) tc = Infinity;
       else if (!(ea > 0)) tc = -Infinity;
       else {
-        const u = isothermalOptimumU(ea / ed);
+        const u = optimumU(ea / ed);
         const invT = base.invTRef - (Math.log(u / batchH) - d.lnKd[i]) / d.edR[i];
         tc = invT > 0 ? 1 / invT - KELVIN_OFFSET : Infinity;
       }
@@ -149,7 +156,7 @@ function workRange(sp: Sampler, cands: number[], out: Float64Array[], start: num
   for (let i = start; i < end; i++) {
     setRates(base, d, i, work);
     const b = d.bias[i];
-    for (let j = 0; j < m; j++) out[j][i] = workIsothermal(work, cands[j] + b, batchH);
+    for (let j = 0; j < m; j++) out[j][i] = workFast(work, cands[j] + b, batchH);
   }
 }
 
@@ -157,7 +164,7 @@ function workColumn(sp: Sampler, c: number, col: Float64Array): void {
   const { d, base, work, batchH } = sp;
   for (let i = 0; i < d.n; i++) {
     setRates(base, d, i, work);
-    col[i] = workIsothermal(work, c + d.bias[i], batchH);
+    col[i] = workFast(work, c + d.bias[i], batchH);
   }
 }
 
@@ -218,7 +225,7 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
   const { s0GPerL: s0, kmGPerL: km } = substrate;
   const nominal = {
     setpointC: nominalC,
-    productGPerL: productFromWork(workIsothermal(base, nominalC, batchH), s0, km),
+    productGPerL: productFast(workFast(base, nominalC, batchH), s0, km),
   };
   if (!robust) {
     return { draws: n, seed, clampedDraws: sp.clamped, nominal, optimum, candidates: [], robust: null };
@@ -231,7 +238,7 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
   const m = cands.length;
   // Product rises strictly with work and every draw shares the substrate, so quantiles are taken on work
   // and only the order statistics are turned into product.
-  const toProduct = (x: number) => productFromWork(x, s0, km);
+  const toProduct = (x: number) => productFast(x, s0, km);
   const works: Float64Array[] = cands.map(() => new Float64Array(n));
   const candChunk = Math.max(1, Math.floor(chunk / 4));
   for (let start = 0; start < n; start += candChunk) {

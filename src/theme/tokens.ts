@@ -3,10 +3,11 @@ export const space = { xxs: 2, xs: 4, sm: 8, md: 12, lg: 16, xl: 24, xxl: 32, xx
 
 export const radius = { sm: 6, md: 10, lg: 16, pill: 999 } as const;
 
+// Two weights keep the download small; headings use the semibold face.
 export const font = {
   regular: 'Inter_400Regular',
   semibold: 'Inter_600SemiBold',
-  bold: 'Inter_700Bold',
+  bold: 'Inter_600SemiBold',
 } as const;
 
 /** Type scale: size and line height in px. */

@@ -1,10 +1,7 @@
-import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
-import os from 'node:os';
-import path from 'node:path';
 import type { TestProject } from 'vitest/node';
 import { ensureWebBuild } from '../../server/web-build';
+import { ROOT, startServer } from '../support/server';
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -12,43 +9,13 @@ declare module 'vitest' {
   }
 }
 
-const root = path.resolve(__dirname, '../..');
-
-const freePort = () =>
-  new Promise<number>((resolve) => {
-    const s = net.createServer().listen(0, '127.0.0.1', () => {
-      const { port } = s.address() as net.AddressInfo;
-      s.close(() => resolve(port));
-    });
-  });
-
 /** Builds the web app if needed and runs the real server on a fresh demo database, as `npm start` does. */
 export default async function setup(project: TestProject) {
-  ensureWebBuild(root, 'dist');
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-e2e-'));
-  const port = await freePort();
-  const child: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/start.ts'], {
-    cwd: root,
-    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', DATABASE_FILE: path.join(dir, 'e2e.db'), SKIP_WEB_BUILD: '1' },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  let output = '';
-  await new Promise<void>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`server did not start:\n${output}`)), 60_000);
-    const onData = (d: Buffer) => {
-      output += d.toString();
-      if (output.includes('Yieldpoint is running')) {
-        clearTimeout(timer);
-        resolve();
-      }
-    };
-    child.stdout!.on('data', onData);
-    child.stderr!.on('data', onData);
-    child.on('exit', (code) => reject(new Error(`server exited with ${code}:\n${output}`)));
-  });
-  project.provide('baseURL', `http://127.0.0.1:${port}`);
-  return () => {
-    child.kill('SIGTERM');
-    fs.rmSync(dir, { recursive: true, force: true });
+  ensureWebBuild(ROOT, 'dist');
+  const server = await startServer();
+  project.provide('baseURL', server.baseURL);
+  return async () => {
+    await server.stop();
+    fs.rmSync(server.dir, { recursive: true, force: true });
   };
 }

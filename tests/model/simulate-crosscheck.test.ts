@@ -65,6 +65,21 @@ describe('simulate vs odex on the raw ODE (seeded random sets)', () => {
   });
 });
 
+describe('Equilibrium Model vs odex (seeded random sets)', () => {
+  const rng = createRng(5150);
+  const cases = Array.from({ length: 12 }, (_, i) => {
+    const c = randomCase(rng);
+    c.enzyme.equilibrium = { teqC: c.enzyme.tRefC - 3 + 6 * rng.uniform(), dHeqKJPerMol: 80 + 300 * rng.uniform() };
+    return { i, kind: i % 3, c, temp: randomTemperature(rng, c, i % 3) };
+  });
+  it.each(cases)('case $i (kind $kind): product and activity within 1e-8 relative', ({ c, temp }) => {
+    const sim = simulate(c.enzyme, c.substrate, c.batchH, temp);
+    const ref = odexReference(c.enzyme, c.substrate, c.batchH, temp);
+    expect(rel(sim.productGPerL, ref.product)).toBeLessThan(1e-8);
+    expect(rel(sim.residualActivity, ref.activity)).toBeLessThan(1e-8);
+  });
+});
+
 describe('logged history: 1-minute readings, reading by reading', () => {
   it('48 h log of a wandering temperature agrees with odex within 1e-9', () => {
     const rng = createRng(7);

@@ -130,6 +130,12 @@ describe('monteCarlo', () => {
     ).toThrow(ModelCancelledError);
     expect(calls).toBe(3);
   });
+  it('Equilibrium Model draws (no closed form): zero covariance gives the nominal optimum', () => {
+    const em = { ...enzyme, equilibrium: { teqC: 55, dHeqKJPerMol: 200 } };
+    const r = monteCarlo({ ...base, enzyme: em, covariance: [[0, 0], [0, 0]], draws: 50, robust: false });
+    const nominal = optimizeSetpoint(em, substrate, 24, [40, 60]).setpointC;
+    expect(Math.abs(r.optimum.p50 - nominal)).toBeLessThan(1e-4);
+  });
   it('rejects a covariance that is not positive semi-definite', () => {
     expect(() => monteCarlo({ ...base, covariance: [[1, 3], [3, 1]] })).toThrow(ModelInputError);
   });

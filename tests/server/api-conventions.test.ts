@@ -105,3 +105,18 @@ describe('errors', () => {
     expect(r.headers.get('x-powered-by')).toBeNull();
   });
 });
+
+describe('denials are audited', () => {
+  it('records a wrong-role call and a signed-out call, with who, what and the status', async () => {
+    const { listAudit } = await import('../../server/repositories/audit');
+    const op = await t.signIn('operator');
+    expect((await op.get('/api/users')).status).toBe(403);
+    expect((await t.client().get('/api/lots')).status).toBe(401);
+    // The audit row is written when the response finishes; give the event loop a turn.
+    await new Promise((r) => setTimeout(r, 20));
+    const mine = listAudit(t.db, 1).filter((e) => e.action === 'access.denied' && e.entityId === 'GET /api/users');
+    expect(mine.at(-1)).toMatchObject({ actor: 'operator@haldenbay.test', newValue: { status: 403, role: 'operator' } });
+    const anon = listAudit(t.db, null).filter((e) => e.action === 'access.denied' && e.entityId === 'GET /api/lots');
+    expect(anon.at(-1)?.actor).toMatch(/^anonymous@/);
+  });
+});

@@ -1,0 +1,69 @@
+import * as chromeLauncher from 'chrome-launcher';
+import fs from 'node:fs';
+import { execFileSync } from 'node:child_process';
+import path from 'node:path';
+import { DEMO_USERS } from '../../db/seed';
+import { ensureWebBuild } from '../../server/web-build';
+import { HOME } from '../../src/components/shell/navigation';
+import type { Role } from '../../src/contracts/roles';
+import { ROOT, sessionCookie, startServer } from '../support/server';
+
+// npm run lighthouse: every role's home (and the sign-in page) on the production build, mobile and desktop.
+// Budgets (mobile) from the tracker: performance >= 0.90, LCP <= 2.5 s, TBT <= 200 ms, CLS <= 0.1, a11y 1.0.
+const BUDGET = { performance: 0.9, lcpMs: 2500, tbtMs: 200, cls: 0.1, accessibility: 1 };
+
+type Row = { page: string; form: 'mobile' | 'desktop'; performance: number; lcpMs: number; tbtMs: number; cls: number; accessibility: number; failing: string[] };
+
+async function main() {
+  ensureWebBuild(ROOT, 'dist');
+  const server = await startServer();
+  const chrome = await chromeLauncher.launch({
+    chromePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    chromeFlags: ['--headless=new', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+  const rows: Row[] = [];
+  try {
+    const pages: { page: string; path: string; role: Role | null }[] = [
+      { page: 'sign-in', path: '/sign-in', role: null },
+      ...(Object.keys(HOME) as Role[]).map((role) => ({ page: `${role} home`, path: HOME[role], role })),
+    ];
+    for (const p of pages) {
+      const user = p.role ? DEMO_USERS.find((u) => u.role === p.role)! : null;
+      const cookie = user ? await sessionCookie(server.baseURL, user.email, user.password) : undefined;
+      for (const form of ['mobile', 'desktop'] as const) {
+        const out = execFileSync(process.execPath, [path.join(__dirname, 'lighthouse-page.mjs'), `${server.baseURL}${p.path}`, String(chrome.port), form, cookie ?? ''], {
+          encoding: 'utf8',
+          maxBuffer: 64 * 1024 * 1024,
+        });
+        const m = JSON.parse(out) as Omit<Row, 'page' | 'form' | 'failing'> & { failedA11y: string[]; runtimeError: string | null };
+        if (m.runtimeError) throw new Error(`${p.page} ${form}: ${m.runtimeError}`);
+        const row: Row = { page: p.page, form, performance: m.performance, accessibility: m.accessibility, lcpMs: m.lcpMs, tbtMs: m.tbtMs, cls: m.cls, failing: [] };
+        if (form === 'mobile') {
+          if (row.performance < BUDGET.performance) row.failing.push('performance');
+          if (row.lcpMs > BUDGET.lcpMs) row.failing.push('LCP');
+          if (row.tbtMs > BUDGET.tbtMs) row.failing.push('TBT');
+          if (row.cls > BUDGET.cls) row.failing.push('CLS');
+          if (row.accessibility < BUDGET.accessibility) {
+            row.failing.push('a11y', ...m.failedA11y.map((id) => `(${id})`));
+          }
+        }
+        rows.push(row);
+        console.log(
+          `${row.page.padEnd(18)} ${form.padEnd(8)} perf ${row.performance.toFixed(2)}  LCP ${(row.lcpMs / 1000).toFixed(2)} s  TBT ${Math.round(row.tbtMs)} ms  CLS ${row.cls.toFixed(3)}  a11y ${row.accessibility.toFixed(2)}  ${row.failing.length ? `OVER: ${row.failing.join(' ')}` : 'ok'}`,
+        );
+      }
+    }
+  } finally {
+    await chrome.kill();
+    await server.stop();
+    fs.rmSync(server.dir, { recursive: true, force: true });
+  }
+  const over = rows.filter((r) => r.failing.length);
+  console.log(over.length ? `\n${over.length} page(s) over budget.` : '\nEvery page within budget.');
+  process.exit(over.length ? 1 : 0);
+}
+
+main().catch((err) => {
+  console.error(err);
+  process.exit(2);
+});
