@@ -3,7 +3,7 @@ import { sql } from 'drizzle-orm';
 import type { CertStability } from '../src/contracts/lots';
 import type { Role } from '../src/contracts/roles';
 import type { Db } from './client';
-import { enzymes, lots, recipes, sites, users, vessels } from './schema';
+import { enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
 
 // An invented plant for demos and tests. Names, suppliers, lots and figures are made up.
 
@@ -112,6 +112,15 @@ const RECIPES_UPDATED_AT = '2026-11-30T09:00:00.000Z';
 
 export const DEMO_SITE_NAME = 'Halden Bay Biorefinery';
 
+/** The demo licence: 8 seats (the 5 demo users take 5), monthly, with two paid invoices. Invented. */
+export const DEMO_SEATS = 8;
+const DEMO_SEAT_CENTS = 4900;
+export const demoStripeIds = (siteId: number) => ({ customer: `cus_demo_site${siteId}`, subscription: `sub_demo_site${siteId}`, item: `si_demo_site${siteId}` });
+const DEMO_INVOICES = [
+  { number: 'YP-DEMO-0001', periodStart: '2026-10-01T00:00:00.000Z', periodEnd: '2026-11-01T00:00:00.000Z' },
+  { number: 'YP-DEMO-0002', periodStart: '2026-11-01T00:00:00.000Z', periodEnd: '2026-12-01T00:00:00.000Z' },
+];
+
 /** True when the database has no site yet. */
 export const isEmpty = (db: Db) => (db.select({ n: sql<number>`count(*)` }).from(sites).get()?.n ?? 0) === 0;
 
@@ -167,6 +176,38 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       const vesselId = vesselRows.find((v) => v.name === vessel)!.id;
       tx.insert(recipes).values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT }).run();
     }
+    const ids = demoStripeIds(site.id);
+    tx.insert(subscriptions)
+      .values({
+        siteId: site.id,
+        plan: 'Per seat, billed monthly',
+        seats: DEMO_SEATS,
+        status: 'active',
+        currentPeriodEnd: '2027-01-01T00:00:00.000Z',
+        stripeCustomerId: ids.customer,
+        stripeSubscriptionId: ids.subscription,
+        stripeItemId: ids.item,
+        updatedAt: '2026-12-01T00:00:00.000Z',
+      })
+      .run();
+    DEMO_INVOICES.forEach((inv, i) => {
+      tx.insert(invoices)
+        .values({
+          siteId: site.id,
+          stripeInvoiceId: `in_demo_site${site.id}_${i + 1}`,
+          number: inv.number,
+          status: 'paid',
+          currency: 'eur',
+          amountDueCents: DEMO_SEATS * DEMO_SEAT_CENTS,
+          amountPaidCents: DEMO_SEATS * DEMO_SEAT_CENTS,
+          seats: DEMO_SEATS,
+          periodStart: inv.periodStart,
+          periodEnd: inv.periodEnd,
+          hostedUrl: null,
+          issuedAt: inv.periodStart,
+        })
+        .run();
+    });
     return { siteId: site.id };
   });
 }

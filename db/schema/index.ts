@@ -2,3 +2,5 @@
 export * from './core';
 export * from './catalog';
 export * from './planning';
+export * from './mail';
+export * from './billing';

@@ -6,6 +6,10 @@ export const keys = {
   vessels: '/vessels',
   enzymes: '/enzymes',
   lots: '/lots',
+  billing: '/billing',
+  invoices: '/billing/invoices',
+  invites: '/invites',
+  mailOutbox: '/mail-outbox',
 } as const;
 
 /** The audit trail page for a filter. */
