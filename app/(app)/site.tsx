@@ -92,7 +92,10 @@ function SiteBody() {
 function SiteScreenContent() {
   const site = useSite();
   return (
-    <Screen title="Site" subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and outgoing mail.'} testID="screen-site"
+    <Screen
+      title="Site"
+      subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and outgoing mail.'}
+      testID="screen-site"
       actions={<Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} />}
     >
       <SiteBody />

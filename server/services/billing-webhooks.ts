@@ -1,5 +1,5 @@
 import type Stripe from 'stripe';
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { SubscriptionStatus } from '../../src/contracts/billing';
 import { HttpError } from '../http-error';
 import { claimEvent, findSubscriptionByCustomer, isEventClaimed, upsertInvoice, upsertSubscription, type SubscriptionRow } from '../repositories/billing';
@@ -46,22 +46,21 @@ export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signat
   }
 
   const now = ctx.clock.now();
-  const duplicate = ctx.db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    const site = siteOf(t, event);
-    if (!claimEvent(t, { eventId: event.id, type: event.type, siteId: site?.siteId ?? null, receivedAt: now.toISOString() })) return true;
+  const duplicate = writeTx(ctx.db, (tx) => {
+    const site = siteOf(tx, event);
+    if (!claimEvent(tx, { eventId: event.id, type: event.type, siteId: site?.siteId ?? null, receivedAt: now.toISOString() })) return true;
     if (!site) return false;
     switch (event.type) {
       case 'customer.subscription.created':
       case 'customer.subscription.updated':
       case 'customer.subscription.deleted':
-        applySubscription(t, site, event.data.object, event.type === 'customer.subscription.deleted', event.created, now);
+        applySubscription(tx, site, event.data.object, event.type === 'customer.subscription.deleted', event.created, now);
         break;
       case 'invoice.paid':
       case 'invoice.payment_failed':
       case 'invoice.finalized':
       case 'invoice.voided':
-        applyInvoice(t, site, event.data.object, event.type === 'invoice.payment_failed', now);
+        applyInvoice(tx, site, event.data.object, event.type === 'invoice.payment_failed', now);
         break;
     }
     return false;

@@ -1,5 +1,5 @@
 import Stripe from 'stripe';
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { BillingSummary, BuySeats, ChangeSeats, CheckoutStarted, Invoice } from '../../src/contracts/billing';
 import type { SessionUser } from '../../src/contracts/session';
 import type { Clock } from '../clock';
@@ -116,8 +116,8 @@ async function ensureCustomer(ctx: BillingContext, billing: Billing, actor: Sess
     billing.stripe.customers.create({ name: site.name, metadata: { siteId: String(site.id) } }, { idempotencyKey: `yieldpoint-customer-site-${site.id}` }),
   );
   const now = ctx.clock.now();
-  return ctx.db.transaction((tx) => {
-    const row = upsertSubscription(tx as unknown as Db, {
+  return writeTx(ctx.db, (tx) => {
+    const row = upsertSubscription(tx, {
       siteId: site.id,
       plan: existing?.plan ?? PLAN_NAME,
       seats: existing?.seats ?? 0,
@@ -125,7 +125,7 @@ async function ensureCustomer(ctx: BillingContext, billing: Billing, actor: Sess
       stripeCustomerId: customer.id,
       updatedAt: now.toISOString(),
     });
-    appendAudit(tx as unknown as Db, { siteId: site.id, userId: actor.id, actor: actor.email, action: 'billing.customer.create', entity: 'subscription', entityId: site.id, newValue: { customer: customer.id }, at: now });
+    appendAudit(tx, { siteId: site.id, userId: actor.id, actor: actor.email, action: 'billing.customer.create', entity: 'subscription', entityId: site.id, newValue: { customer: customer.id }, at: now });
     return row;
   });
 }

@@ -1,5 +1,5 @@
 import crypto from 'node:crypto';
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { AcceptInvite, CreateInvite, Invite, InviteAccepted, InvitePreview, InviteList } from '../../src/contracts/invites';
 import { ROLE_LABELS } from '../../src/contracts/roles';
 import type { SessionUser } from '../../src/contracts/session';
@@ -32,12 +32,11 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
   const token = crypto.randomBytes(32).toString('base64url');
   const expiresAt = new Date(now.getTime() + INVITE_DAYS * 86_400_000);
   const link = `${ctx.publicUrl}/accept-invite?token=${token}`;
-  const invite = ctx.db.transaction((tx) => {
-    const t = tx as unknown as Db;
+  const invite = writeTx(ctx.db, (tx) => {
     // Checked inside the transaction: two invites racing for the last seat cannot both take it.
-    assertFreeSeat(t, actor.siteId, now);
-    const row = insertInvite(t, { siteId: actor.siteId, email: req.email, role: req.role, tokenHash: hashToken(token), invitedBy: actor.id, expiresAt: expiresAt.toISOString(), createdAt: now.toISOString() });
-    enqueueMail(t, {
+    assertFreeSeat(tx, actor.siteId, now);
+    const row = insertInvite(tx, { siteId: actor.siteId, email: req.email, role: req.role, tokenHash: hashToken(token), invitedBy: actor.id, expiresAt: expiresAt.toISOString(), createdAt: now.toISOString() });
+    enqueueMail(tx, {
       siteId: actor.siteId,
       to: req.email,
       kind: 'invite',
@@ -52,7 +51,7 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
       ].join('\n'),
       at: now,
     });
-    appendAudit(t, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.create', entity: 'invite', entityId: row.id, newValue: { email: req.email, role: req.role, expiresAt: row.expiresAt }, at: now });
+    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.create', entity: 'invite', entityId: row.id, newValue: { email: req.email, role: req.role, expiresAt: row.expiresAt }, at: now });
     return row;
   });
   ctx.mail?.kick();
@@ -63,9 +62,9 @@ export function revokeInvite({ db, clock }: InviteContext, actor: SessionUser, i
   const row = findSiteInvite(db, actor.siteId, id);
   if (!row || row.acceptedAt || row.revokedAt) throw notFound('Invite');
   const now = clock.now();
-  db.transaction((tx) => {
-    updateInvite(tx as unknown as Db, id, { revokedAt: now.toISOString() });
-    appendAudit(tx as unknown as Db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.revoke', entity: 'invite', entityId: id, oldValue: { email: row.email, role: row.role }, at: now });
+  writeTx(db, (tx) => {
+    updateInvite(tx, id, { revokedAt: now.toISOString() });
+    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.revoke', entity: 'invite', entityId: id, oldValue: { email: row.email, role: row.role }, at: now });
   });
 }
 
@@ -87,16 +86,15 @@ export async function acceptInvite({ db, clock }: InviteContext, req: AcceptInvi
   const first = openInvite(db, req.token, clock.now());
   const passwordHash = await hashPassword(req.password);
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
+  return writeTx(db, (tx) => {
     // Read again after the slow hash: a second submit of the same link may have won meanwhile.
-    const row = openInvite(t, req.token, now);
+    const row = openInvite(tx, req.token, now);
     if (row.id !== first.id) throw new HttpError(409, 'invite_changed', 'This invite changed; open the link again');
-    assertWritable(t, row.siteId, now);
-    if (findUserByEmail(t, row.email)) throw new HttpError(409, 'email_taken', 'Someone already signs in with this e-mail');
-    const user = insertUser(t, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
-    updateInvite(t, row.id, { acceptedAt: now.toISOString(), userId: user.id });
-    appendAudit(t, { siteId: row.siteId, userId: user.id, actor: row.email, action: 'invite.accept', entity: 'user', entityId: user.id, newValue: { email: row.email, role: row.role, name: req.name, invite: row.id }, at: now });
+    assertWritable(tx, row.siteId, now);
+    if (findUserByEmail(tx, row.email)) throw new HttpError(409, 'email_taken', 'Someone already signs in with this e-mail');
+    const user = insertUser(tx, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
+    updateInvite(tx, row.id, { acceptedAt: now.toISOString(), userId: user.id });
+    appendAudit(tx, { siteId: row.siteId, userId: user.id, actor: row.email, action: 'invite.accept', entity: 'user', entityId: user.id, newValue: { email: row.email, role: row.role, name: req.name, invite: row.id }, at: now });
     return { email: user.email };
   });
 }

@@ -1,5 +1,5 @@
 import nodemailer from 'nodemailer';
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { Outbox, OutboxMessage } from '../../src/contracts/mail';
 import type { SessionUser } from '../../src/contracts/session';
 import type { Clock } from '../clock';
@@ -121,9 +121,9 @@ export function retryMail(db: Db, clock: Clock, actor: SessionUser, id: number):
   if (!m) throw notFound('Message');
   if (m.status === 'sent') throw new HttpError(409, 'already_sent', 'This message was already delivered');
   const now = clock.now();
-  return db.transaction((tx) => {
-    const after = updateMail(tx as unknown as Db, id, { status: 'pending', attempts: 0, nextAttemptAt: now.toISOString() });
-    appendAudit(tx as unknown as Db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'mail.retry', entity: 'mail', entityId: id, oldValue: { status: m.status, attempts: m.attempts }, newValue: { status: 'pending' }, at: now });
+  return writeTx(db, (tx) => {
+    const after = updateMail(tx, id, { status: 'pending', attempts: 0, nextAttemptAt: now.toISOString() });
+    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'mail.retry', entity: 'mail', entityId: id, oldValue: { status: m.status, attempts: m.attempts }, newValue: { status: 'pending' }, at: now });
     return toMessage(after);
   });
 }

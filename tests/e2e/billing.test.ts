@@ -1,9 +1,9 @@
+import fs from 'node:fs';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import path from 'node:path';
 import { readSinkDir } from '../../server/fakes/smtp-sink';
 import { acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
-import fs from 'node:fs';
 import { startServer, type RunningServer } from '../support/server';
 
 // Its own server: this journey buys seats and adds a user, which the shared server's other journeys must not see.
