@@ -10,7 +10,12 @@ export const keys = {
   invoices: '/billing/invoices',
   invites: '/invites',
   mailOutbox: '/mail-outbox',
+  recipes: '/recipes',
 } as const;
+
+export const recipeKey = (id: number) => `/recipes/${id}`;
+export const plansKey = (recipeId: number) => `/plans?recipeId=${recipeId}`;
+export const planKey = (id: number) => `/plans/${id}`;
 
 /** The audit trail page for a filter. */
 export const auditKey = (q: { action?: string; offset?: number }) =>

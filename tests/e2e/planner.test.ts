@@ -1,0 +1,92 @@
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
+
+const baseURL = inject('baseURL');
+let browser: Browser;
+beforeAll(async () => {
+  browser = await launch();
+});
+afterAll(() => browser?.close());
+
+const setpoint = async (page: Page) => Number((await page.getByTestId('recommended-setpoint').textContent())!.replace(/[^\d.]/g, ''));
+
+async function openDemoRecipe(page: Page) {
+  await page.getByTestId('screen-planner').waitFor();
+  await page.getByText('Glucose syrup DE 95').click();
+  await page.getByTestId('recommended-setpoint').waitFor();
+}
+
+describe('setpoint planner', () => {
+  it('engineer opens the demo recipe, lengthens the batch, runs the uncertainty and saves the plan (phone)', async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await signIn(page, baseURL, 'engineer');
+    await acknowledgeCautions(page);
+    await openDemoRecipe(page);
+    await screenshot(page, 'planner-recipe-390x844');
+
+    // Longer batch -> the enzyme must last longer -> lower setpoint.
+    const before = await setpoint(page);
+    const batch = page.getByTestId('input-batchH');
+    await batch.fill('96');
+    await page.waitForFunction((b) => {
+      const el = document.querySelector('[data-testid="recommended-setpoint"]');
+      return el && Number(el.textContent!.replace(/[^\d.]/g, '')) !== b;
+    }, before);
+    const after = await setpoint(page);
+    expect(after).toBeLessThan(before);
+    const redraw = await page.getByTestId('redraw-ms').textContent();
+    console.log(`planner redraw after a batch-length change (phone): ${redraw?.match(/Updated in (\d+) ms/)?.[1]} ms`);
+
+    // Stepper buttons measure the same path, a few times.
+    const timings: number[] = [];
+    for (let i = 0; i < 5; i++) {
+      await page.getByTestId('input-batchH-decrease').click();
+      await page.waitForFunction(() => /Updated in \d+ ms/.test(document.querySelector('[data-testid="redraw-ms"]')!.textContent!));
+      timings.push(Number((await page.getByTestId('redraw-ms').textContent())!.match(/Updated in (\d+) ms/)![1]));
+    }
+    console.log(`planner redraw per stepper press (phone, ms): ${timings.join(', ')}`);
+
+    await page.getByTestId('uncertainty-run').scrollIntoViewIfNeeded();
+    await page.getByTestId('uncertainty-run').click();
+    await page.getByTestId('uncertainty-progress').waitFor();
+    await screenshot(page, 'planner-uncertainty-running-390x844');
+    await page.getByTestId('uncertainty-result').waitFor({ timeout: 60_000 });
+    expect(await page.getByTestId('uncertainty-result').textContent()).toMatch(/P10 \d+, P50 \d+, P90 \d+ g\/L/);
+    expect(await page.getByTestId('chart-setpoint-summary').textContent()).toMatch(/P10–P90 is shaded/);
+
+    await page.getByTestId('save-plan').scrollIntoViewIfNeeded();
+    await page.getByTestId('save-plan').click();
+    await page.getByTestId('screen-plan').waitFor();
+    await page.getByTestId('plan-result').waitFor();
+    const result = await page.getByTestId('plan-result').textContent();
+    expect(result).toMatch(/P10 \/ P50 \/ P90/);
+    expect(result).not.toMatch(/Not run/);
+    await screenshot(page, 'planner-saved-plan-390x844');
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+
+  it('lays inputs beside the charts on a wide screen and compares scenarios', async () => {
+    const { page, context, errors } = await watchedPage(browser, WIDE);
+    await signIn(page, baseURL, 'engineer');
+    await page.getByTestId('first-run-notice').waitFor({ state: 'detached', timeout: 5000 }).catch(() => undefined);
+    await openDemoRecipe(page);
+    const inputs = await page.getByTestId('plan-inputs').boundingBox();
+    const chart = await page.getByTestId('chart-setpoint').boundingBox();
+    expect(inputs!.x + inputs!.width).toBeLessThanOrEqual(chart!.x);
+    await screenshot(page, 'planner-recipe-1440x900');
+
+    await page.getByTestId('compare-add').click();
+    await page.getByTestId('input-lot').getByRole('radio').nth(1).click();
+    await page.getByTestId('input-batchH').fill('24');
+    await page.getByTestId('compare-add').click();
+    await page.getByTestId('input-strategy-staged').click();
+    expect(await page.getByTestId('recommended-setpoint').textContent()).toContain('→');
+    await page.getByTestId('compare-table').scrollIntoViewIfNeeded();
+    expect(await page.getByTestId('compare-table-row').count()).toBe(2);
+    await screenshot(page, 'planner-compare-1440x900');
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});
