@@ -14,6 +14,7 @@ import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
 import { billingRouter, billingWebhook } from './routes/billing';
+import { changeRequestsRouter } from './routes/change-requests';
 import { enzymesRouter } from './routes/enzymes';
 import { invitesRouter } from './routes/invites';
 import { lotsRouter } from './routes/lots';
@@ -103,6 +104,10 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/recipes', router: recipesRouter(services) },
     { prefix: '/plans', router: plansRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
+    {
+      prefix: '/change-requests',
+      router: changeRequestsRouter({ ...services, mail, publicUrl: billingCtx.publicUrl, signLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
+    },
     { prefix: '/billing', router: billingRouter(billingCtx) },
     { prefix: '/invites', router: invitesRouter({ ...billingCtx, mail }) },
     { prefix: '/mail-outbox', router: mailOutboxRouter({ ...services, mail }) },

@@ -4,3 +4,4 @@ export * from './catalog';
 export * from './planning';
 export * from './mail';
 export * from './billing';
+export * from './change-control';
