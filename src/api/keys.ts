@@ -13,6 +13,9 @@ export const keys = {
   recipes: '/recipes',
 } as const;
 
+export const changeRequestsKey = (status?: string) => (status ? `/change-requests?status=${status}` : '/change-requests');
+export const changeRequestKey = (id: number) => `/change-requests/${id}`;
+
 export const recipeKey = (id: number) => `/recipes/${id}`;
 export const plansKey = (recipeId: number) => `/plans?recipeId=${recipeId}`;
 export const planKey = (id: number) => `/plans/${id}`;

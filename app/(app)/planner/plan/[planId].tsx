@@ -1,7 +1,7 @@
-import { useLocalSearchParams } from 'expo-router';
+import { router, useLocalSearchParams } from 'expo-router';
 import { PlanSheet } from '@/components/planner/plan-sheet';
 import { RoleGate } from '@/components/shell/role-gate';
-import { ErrorState, Loader, Screen } from '@/components/ui';
+import { Button, ErrorState, Loader, Screen } from '@/components/ui';
 import { usePlan } from '@/hooks/use-plans';
 
 function Body({ id }: { id: number | null }) {
@@ -17,7 +17,12 @@ export default function PlanScreen() {
   const id = Number(planId);
   return (
     <RoleGate name="planner">
-      <Screen title="Saved plan" subtitle="Immutable once saved; change control signs exactly this content." testID="screen-plan">
+      <Screen
+        title="Saved plan"
+        subtitle="Immutable once saved; change control signs exactly this content."
+        testID="screen-plan"
+        actions={id > 0 ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined}
+      >
         <Body id={Number.isInteger(id) && id > 0 ? id : null} />
       </Screen>
     </RoleGate>
