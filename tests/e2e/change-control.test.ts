@@ -68,7 +68,8 @@ describe('change control', () => {
     // Engineer, on a phone: from the saved plan to a proposal.
     const eng = await watchedPage(browser, PHONE);
     await signIn(eng.page, server.baseURL, 'engineer');
-    await acknowledgeCautions(eng.page);
+    // The API calls above already confirmed the engineer's first-run notice.
+    await eng.page.getByTestId('screen-planner').waitFor();
     await eng.page.goto(`${server.baseURL}/planner/plan/${plan.body.id}`);
     await eng.page.getByTestId('plan-propose').click();
     await eng.page.getByTestId('screen-propose-change').waitFor();
@@ -92,6 +93,8 @@ describe('change control', () => {
     await signIn(sup.page, server.baseURL, 'supervisor');
     await acknowledgeCautions(sup.page);
     await sup.page.getByTestId('screen-sign-offs').waitFor();
+    await sup.page.getByTestId(`change-request-${id}`).waitFor();
+    await screenshot(sup.page, 'change-sign-offs-list-1440x900');
     await sup.page.getByTestId(`change-request-${id}`).click();
     await sup.page.getByTestId('sign-form').waitFor();
     const comparison = await sup.page.getByTestId('comparison').textContent();

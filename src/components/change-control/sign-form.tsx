@@ -8,7 +8,7 @@ const MEANINGS: SignatureMeaning[] = ['reviewed', 'approved', 'rejected'];
 
 /** The electronic signature: meaning, comment and the signer's password typed again at this moment. */
 export function SignForm({ id, signerName, recordHash }: { id: number; signerName: string; recordHash: string }) {
-  const [meaning, setMeaning] = useState<SignatureMeaning>('approved');
+  const [meaning, setMeaning] = useState<SignatureMeaning>('reviewed');
   const [comment, setComment] = useState('');
   const [password, setPassword] = useState('');
   const { submit, error, isSubmitting } = useSignChange(id);
