@@ -27,6 +27,8 @@ import { usersRouter } from './routes/users';
 import { vesselsRouter } from './routes/vessels';
 import type { AuthConfig } from './services/auth';
 import type { Billing } from './services/billing-provider';
+import { createFileStore, type FileStore } from './file-store';
+import os from 'node:os';
 
 export type AppDeps = {
   db: Db;
@@ -42,6 +44,8 @@ export type AppDeps = {
   billing?: Billing;
   /** Asked to deliver the outbox soon after a write queued mail; the outbox is delivered without it too. */
   mail?: { kick(): void };
+  /** Where uploaded files (certificates of analysis) live; a fresh temporary folder when omitted (tests). */
+  files?: FileStore;
 };
 
 const DEFAULT_SIGN_IN_LIMIT = { perAddress: 30, perAccount: 10, windowMs: 15 * 60_000 };
@@ -100,7 +104,7 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/site', router: siteRouter(services) },
     { prefix: '/vessels', router: vesselsRouter(services) },
     { prefix: '/enzymes', router: enzymesRouter(services) },
-    { prefix: '/lots', router: lotsRouter(services) },
+    { prefix: '/lots', router: lotsRouter({ ...services, files: deps.files ?? createFileStore(fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-files-'))) }) },
     { prefix: '/recipes', router: recipesRouter(services) },
     { prefix: '/plans', router: plansRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },

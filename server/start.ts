@@ -9,6 +9,7 @@ import { readEnv } from './env';
 import { startIntegrations } from './integrations';
 import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
+import { createFileStore } from './file-store';
 
 const root = path.resolve(__dirname, '..');
 
@@ -42,6 +43,7 @@ async function main() {
     publicUrl,
     billing: integrations.billing,
     mail,
+    files: createFileStore(path.join(path.dirname(path.resolve(env.databaseFile)), 'files')),
   });
   const server = app.listen(env.port, env.host, () => {
     const address = server.address();

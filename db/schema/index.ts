@@ -4,4 +4,5 @@ export * from './catalog';
 export * from './planning';
 export * from './mail';
 export * from './billing';
+export * from './quality';
 export * from './change-control';

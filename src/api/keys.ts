@@ -23,3 +23,10 @@ export const planKey = (id: number) => `/plans/${id}`;
 /** The audit trail page for a filter. */
 export const auditKey = (q: { action?: string; offset?: number }) =>
   `/audit-events?${new URLSearchParams({ ...(q.action ? { action: q.action } : {}), offset: String(q.offset ?? 0), limit: '50' })}`;
+
+export const lotKey = (id: number) => `/lots/${id}`;
+export const enzymeKey = (id: number) => `/enzymes/${id}`;
+export const enzymesKey = (q: { q?: string; sort?: string; dir?: string; page?: number; pageSize?: number } = {}) => {
+  const params = Object.entries(q).filter(([, v]) => v !== undefined && v !== '').map(([k, v]) => `${k}=${encodeURIComponent(String(v))}`);
+  return params.length ? `/enzymes?${params.join('&')}` : '/enzymes';
+};

@@ -1,0 +1,81 @@
+import { useState, type ReactNode } from 'react';
+import { StyleSheet, View } from 'react-native';
+import Svg, { G, Line, Text as SvgText } from 'react-native-svg';
+import { font, space, useColors } from '../../theme';
+import { Text } from '../ui/text';
+import type { Box, Tick } from './axes';
+
+const HEIGHT = 260;
+
+type Props = {
+  label: string;
+  xTitle: string;
+  yTitle: string;
+  testID: string;
+  /** Draws the data for a measured width: returns the geometry's ticks and the marks. */
+  render: (width: number, height: number) => { box: Box; xTicks: Tick[]; yTicks: Tick[]; marks: ReactNode };
+};
+
+/** An SVG chart as wide as its container, with grid, ticks and axis titles; the marks come from a geometry. */
+export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
+  const c = useColors();
+  const [width, setWidth] = useState(0);
+  const drawn = width > 0 ? render(width, HEIGHT) : null;
+  return (
+    <View testID={testID} accessibilityRole="image" accessibilityLabel={label} style={{ height: HEIGHT }} onLayout={(e) => setWidth(Math.floor(e.nativeEvent.layout.width))}>
+      {drawn ? (
+        <Svg width={width} height={HEIGHT}>
+          <G>
+            {drawn.yTicks.map((t) => (
+              <G key={`y${t.value}`}>
+                <Line x1={drawn.box.left} x2={drawn.box.right} y1={t.pos} y2={t.pos} stroke={c.chartGrid} strokeWidth={1} />
+                <SvgText x={drawn.box.left - 6} y={t.pos + 4} fontSize={11} fontFamily={font.regular} fill={c.textMuted} textAnchor="end">
+                  {t.label}
+                </SvgText>
+              </G>
+            ))}
+            {drawn.xTicks.map((t) => (
+              <SvgText key={`x${t.value}`} x={t.pos} y={drawn.box.bottom + 16} fontSize={11} fontFamily={font.regular} fill={c.textMuted} textAnchor="middle">
+                {t.label}
+              </SvgText>
+            ))}
+            <Line x1={drawn.box.left} x2={drawn.box.right} y1={drawn.box.bottom} y2={drawn.box.bottom} stroke={c.border} strokeWidth={1} />
+            <SvgText x={(drawn.box.left + drawn.box.right) / 2} y={HEIGHT - 4} fontSize={12} fontFamily={font.semibold} fill={c.textMuted} textAnchor="middle">
+              {xTitle}
+            </SvgText>
+            <SvgText x={4} y={14} fontSize={12} fontFamily={font.semibold} fill={c.textMuted}>
+              {yTitle}
+            </SvgText>
+          </G>
+          {drawn.marks}
+        </Svg>
+      ) : null}
+    </View>
+  );
+}
+
+/** Colours for series (one per temperature), from the palette's semantic chart and state colours. */
+export function useSeriesColors(): string[] {
+  const c = useColors();
+  return [c.chartLine, c.chartLineAlt, c.success, c.warning, c.primary, c.danger];
+}
+
+/** A key of series colours under a chart, as text so it reads without the picture. */
+export function Legend({ items, testID }: { items: { label: string; color: string }[]; testID?: string }) {
+  return (
+    <View style={styles.legend} testID={testID}>
+      {items.map((it) => (
+        <View key={it.label} style={styles.legendItem}>
+          <View style={[styles.swatch, { backgroundColor: it.color }]} />
+          <Text variant="small">{it.label}</Text>
+        </View>
+      ))}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  legend: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
+  legendItem: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
+  swatch: { width: space.md, height: space.md, borderRadius: space.md / 2 },
+});
