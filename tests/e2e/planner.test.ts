@@ -28,7 +28,7 @@ describe('setpoint planner', () => {
     // Longer batch -> the enzyme must last longer -> lower setpoint.
     const before = await setpoint(page);
     const batch = page.getByTestId('input-batchH');
-    await batch.fill('96');
+    await batch.fill('72');
     await page.waitForFunction((b) => {
       const el = document.querySelector('[data-testid="recommended-setpoint"]');
       return el && Number(el.textContent!.replace(/[^\d.]/g, '')) !== b;
@@ -36,24 +36,36 @@ describe('setpoint planner', () => {
     const after = await setpoint(page);
     expect(after).toBeLessThan(before);
     const redraw = await page.getByTestId('redraw-ms').textContent();
-    console.log(`planner redraw after a batch-length change (phone): ${redraw?.match(/Updated in (\d+) ms/)?.[1]} ms`);
+    // A figure to read, not a timed assertion: the machine is shared.
+    console.log(`planner redraw after the first batch-length change (phone, cold): ${redraw?.match(/Updated in .*\)/)?.[0]}`);
 
     // Stepper buttons measure the same path, a few times.
     const timings: number[] = [];
     for (let i = 0; i < 5; i++) {
       await page.getByTestId('input-batchH-decrease').click();
-      await page.waitForFunction(() => /Updated in \d+ ms/.test(document.querySelector('[data-testid="redraw-ms"]')!.textContent!));
+      await expect.poll(() => page.getByTestId('input-batchH').inputValue()).toBe(String(70 - 2 * i));
+      await page.waitForTimeout(100);
       timings.push(Number((await page.getByTestId('redraw-ms').textContent())!.match(/Updated in (\d+) ms/)![1]));
     }
     console.log(`planner redraw per stepper press (phone, ms): ${timings.join(', ')}`);
 
+    // The most draws the planner allows, so the run lasts long enough to be seen and cancelled.
+    await page.getByTestId('input-draws').fill('20000');
     await page.getByTestId('uncertainty-run').scrollIntoViewIfNeeded();
+    await page.getByTestId('uncertainty-run').click();
+    // No actionability wait: the run is short, and Cancel must land while it is still going.
+    await page.getByTestId('uncertainty-cancel').click({ force: true });
+    await page.getByText('Cancelled. Nothing was kept.').waitFor();
+    expect(await page.getByTestId('uncertainty-result').count()).toBe(0);
+
     await page.getByTestId('uncertainty-run').click();
     await page.getByTestId('uncertainty-progress').waitFor();
     await screenshot(page, 'planner-uncertainty-running-390x844');
     await page.getByTestId('uncertainty-result').waitFor({ timeout: 60_000 });
     expect(await page.getByTestId('uncertainty-result').textContent()).toMatch(/P10 \d+, P50 \d+, P90 \d+ g\/L/);
     expect(await page.getByTestId('chart-setpoint-summary').textContent()).toMatch(/P10–P90 is shaded/);
+    await page.getByTestId('chart-setpoint').scrollIntoViewIfNeeded();
+    await screenshot(page, 'planner-uncertainty-band-390x844');
 
     await page.getByTestId('save-plan').scrollIntoViewIfNeeded();
     await page.getByTestId('save-plan').click();
@@ -62,6 +74,7 @@ describe('setpoint planner', () => {
     const result = await page.getByTestId('plan-result').textContent();
     expect(result).toMatch(/P10 \/ P50 \/ P90/);
     expect(result).not.toMatch(/Not run/);
+    expect(result).toMatch(/20000 draws/);
     await screenshot(page, 'planner-saved-plan-390x844');
     expect(errors).toEqual([]);
     await context.close();
