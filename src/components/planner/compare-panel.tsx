@@ -75,7 +75,7 @@ export function ComparePanel({ detail, scenarios, canAdd, onAdd, onRemove }: { d
           />
           <View style={styles.row}>
             {rows.map((r) => (
-              <Button key={r.id} label={`Remove ${r.id}`} variant="ghost" compact onPress={() => onRemove(r.id)} />
+              <Button key={r.id} label={`Remove ${r.id}`} variant="ghost" onPress={() => onRemove(r.id)} />
             ))}
           </View>
         </>
