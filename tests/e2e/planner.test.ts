@@ -1,6 +1,6 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
+import { acknowledgeCautionsIfShown, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
 const baseURL = inject('baseURL');
 let browser: Browser;
@@ -8,6 +8,12 @@ beforeAll(async () => {
   browser = await launch();
 });
 afterAll(() => browser?.close());
+
+/** Signs the engineer in and confirms the first-run cautions if this is the first sign-in of the run. */
+async function signInEngineer(page: Page) {
+  await signIn(page, baseURL, 'engineer');
+  await acknowledgeCautionsIfShown(page, 'screen-planner');
+}
 
 const setpoint = async (page: Page) => Number((await page.getByTestId('recommended-setpoint').textContent())!.replace(/[^\d.]/g, ''));
 
@@ -20,9 +26,7 @@ async function openDemoRecipe(page: Page) {
 describe('setpoint planner', () => {
   it('engineer adds a vessel, and a hygienic minimum outside the range is refused under its field', async () => {
     const { page, context, errors } = await watchedPage(browser, WIDE);
-    await signIn(page, baseURL, 'engineer');
-    await acknowledgeCautions(page);
-    await page.getByTestId('screen-planner').waitFor();
+    await signInEngineer(page);
     await page.getByTestId('vessel-add').click();
     const values: Record<string, string> = { name: 'R-450 Pilot', workingVolumeL: '600', minC: '10', maxC: '90', maxHeatCPerH: '15', maxCoolCPerH: '10', hygienicMinC: '95' };
     for (const [k, v] of Object.entries(values)) await page.getByTestId(`vessel-${k}`).fill(v);
@@ -40,8 +44,7 @@ describe('setpoint planner', () => {
 
   it('engineer opens the demo recipe, lengthens the batch, runs the uncertainty and saves the plan (phone)', async () => {
     const { page, context, errors } = await watchedPage(browser, PHONE);
-    await signIn(page, baseURL, 'engineer');
-    await page.getByTestId('first-run-notice').waitFor({ state: 'detached', timeout: 5000 }).catch(() => undefined);
+    await signInEngineer(page);
     await openDemoRecipe(page);
     await screenshot(page, 'planner-recipe-390x844');
 
@@ -122,8 +125,7 @@ describe('setpoint planner', () => {
 
   it('lays inputs beside the charts on a wide screen and compares scenarios', async () => {
     const { page, context, errors } = await watchedPage(browser, WIDE);
-    await signIn(page, baseURL, 'engineer');
-    await page.getByTestId('first-run-notice').waitFor({ state: 'detached', timeout: 5000 }).catch(() => undefined);
+    await signInEngineer(page);
     await openDemoRecipe(page);
     const inputs = await page.getByTestId('plan-inputs').boundingBox();
     const chart = await page.getByTestId('chart-setpoint').boundingBox();
