@@ -51,3 +51,9 @@ export async function acknowledgeCautions(page: Page): Promise<void> {
   await button.click();
   await button.waitFor({ state: 'detached' });
 }
+
+/** Confirms the cautions notice only if it shows: journeys share one server, and each user confirms it once. */
+export async function acknowledgeCautionsIfShown(page: Page, screenTestId: string): Promise<void> {
+  await page.getByTestId(screenTestId).waitFor();
+  if (await page.getByTestId('acknowledge-cautions').isVisible()) await acknowledgeCautions(page);
+}

@@ -17,15 +17,15 @@ export type Scenario = { id: string; inputs: PlanInputs };
 type Row = { id: string; lot: string; batchH: number; dose: number; price: number; setpointC: number; product: number; activity: number; profit: number };
 
 const COLUMNS: Column<Row>[] = [
-  { key: 'id', label: 'Scenario', value: (r) => r.id, flex: 0.7 },
-  { key: 'lot', label: 'Lot', value: (r) => r.lot, flex: 1.3 },
-  { key: 'batch', label: 'Batch', value: (r) => `${fmt(r.batchH, 0)} h`, isNumeric: true },
-  { key: 'dose', label: 'Dose', value: (r) => `${fmt(r.dose, 2)} g/L`, isNumeric: true },
-  { key: 'price', label: 'Product price', value: (r) => `${fmt(r.price, 2)}/kg`, isNumeric: true },
-  { key: 'setpoint', label: 'Best setpoint', value: (r) => `${fmt(r.setpointC)} °C`, isNumeric: true },
-  { key: 'product', label: 'Product', value: (r) => `${fmt(r.product, 0)} g/L`, isNumeric: true },
+  { key: 'id', label: '#', value: (r) => r.id, flex: 0.4 },
+  { key: 'lot', label: 'Lot', value: (r) => r.lot, flex: 1.7 },
+  { key: 'batch', label: 'Batch h', value: (r) => fmt(r.batchH, 0), isNumeric: true },
+  { key: 'dose', label: 'Dose g/L', value: (r) => fmt(r.dose, 2), isNumeric: true },
+  { key: 'price', label: 'Price /kg', value: (r) => fmt(r.price, 2), isNumeric: true },
+  { key: 'setpoint', label: 'Best °C', value: (r) => fmt(r.setpointC), isNumeric: true },
+  { key: 'product', label: 'Product g/L', value: (r) => fmt(r.product, 0), isNumeric: true, flex: 1.1 },
   { key: 'activity', label: 'Activity left', value: (r) => `${fmt(r.activity * 100, 0)} %`, isNumeric: true },
-  { key: 'profit', label: 'Profit per hour', value: (r) => fmt(r.profit, 0), isNumeric: true },
+  { key: 'profit', label: 'Profit /h', value: (r) => fmt(r.profit, 0), isNumeric: true },
 ];
 
 /** Up to four saved snapshots of the inputs, side by side in a table and as overlaid curves. */
@@ -75,7 +75,7 @@ export function ComparePanel({ detail, scenarios, canAdd, onAdd, onRemove }: { d
           />
           <View style={styles.row}>
             {rows.map((r) => (
-              <Button key={r.id} label={`Remove ${r.id}`} variant="ghost" compact onPress={() => onRemove(r.id)} />
+              <Button key={r.id} label={`Remove ${r.id}`} variant="ghost" onPress={() => onRemove(r.id)} />
             ))}
           </View>
         </>

@@ -1,12 +1,15 @@
 import { router } from 'expo-router';
+import { useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { Recipe } from '../../contracts/recipes';
 import type { Vessel } from '../../contracts/vessels';
 import { fmt } from '../../format';
 import { useRecipes } from '../../hooks/use-recipes';
+import { useSession } from '../../hooks/use-session';
 import { useVessels } from '../../hooks/use-vessels';
 import { radius, space, touchTarget, useBreakpoint, useColors } from '../../theme';
-import { DataTable, EmptyState, ErrorState, Loader, Text, type Column } from '../ui';
+import { Button, DataTable, EmptyState, ErrorState, Loader, Text, type Column } from '../ui';
+import { VesselForm } from './vessel-form';
 
 const VESSEL_COLUMNS: Column<Vessel>[] = [
   { key: 'name', label: 'Vessel', value: (v) => v.name, flex: 1.4 },
@@ -43,6 +46,10 @@ export function RecipeList() {
   const recipes = useRecipes();
   const vessels = useVessels();
   const { isWide } = useBreakpoint();
+  const { session } = useSession();
+  const canEdit = session?.user.role === 'engineer' || session?.user.role === 'admin';
+  // null: no form; 'new': adding; a vessel: changing it.
+  const [editing, setEditing] = useState<Vessel | 'new' | null>(null);
   if (recipes.error) return <ErrorState error={recipes.error} onRetry={recipes.retry} />;
   if (recipes.isLoading || !recipes.data) return <Loader rows={3} label="Loading recipes" />;
   return (
@@ -66,7 +73,18 @@ export function RecipeList() {
       ) : !vessels.data ? (
         <Loader rows={2} label="Loading vessels" />
       ) : (
-        <DataTable columns={VESSEL_COLUMNS} rows={vessels.data.vessels} rowKey={(v) => String(v.id)} caption="Vessels and their limits" testID="vessels-table" />
+        <>
+          <DataTable columns={VESSEL_COLUMNS} rows={vessels.data.vessels} rowKey={(v) => String(v.id)} caption="Vessels and their limits" testID="vessels-table" />
+          {canEdit && !editing ? (
+            <View style={styles.actions}>
+              <Button label="Add a vessel" variant="secondary" onPress={() => setEditing('new')} testID="vessel-add" />
+              {vessels.data.vessels.map((v) => (
+                <Button key={v.id} label={`Change ${v.name}`} variant="ghost" onPress={() => setEditing(v)} testID={`vessel-edit-${v.id}`} />
+              ))}
+            </View>
+          ) : null}
+          {editing ? <VesselForm key={editing === 'new' ? 'new' : editing.id} vessel={editing === 'new' ? null : editing} onDone={() => setEditing(null)} /> : null}
+        </>
       )}
     </>
   );
@@ -76,5 +94,6 @@ const styles = StyleSheet.create({
   grid: { gap: space.md },
   gridWide: { flexDirection: 'row', flexWrap: 'wrap' },
   cellWide: { flexBasis: '31%', flexGrow: 1 },
+  actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
   card: { borderWidth: 1, borderRadius: radius.lg, padding: space.lg, gap: space.xs, minHeight: touchTarget },
 });

@@ -12,6 +12,7 @@ import { space, useBreakpoint } from '../../theme';
 import { Button, Card, EmptyState, Text } from '../ui';
 import { ComparePanel, MAX_SCENARIOS, type Scenario } from './compare-panel';
 import { PlanInputsPanel } from './plan-inputs-panel';
+import { SavedPlans } from './saved-plans';
 import { ProfileChart, ProfitChart, SetpointChart, TimeCharts } from './planner-charts';
 import { UncertaintyPanel } from './uncertainty-panel';
 import { usePlanner } from './use-planner';
@@ -149,6 +150,7 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
       <ProfileChart ev={ev} series={series} inputs={inputs} />
       <ProfitChart ev={ev} series={series} inputs={inputs} />
       <ComparePanel detail={detail} scenarios={scenarios} canAdd={scenarios.length < MAX_SCENARIOS} onAdd={addScenario} onRemove={(id) => setScenarios(scenarios.filter((s) => s.id !== id))} />
+      <SavedPlans recipeId={detail.recipe.id} />
     </>
   );
   const notice = lotNotAccepted ? (
