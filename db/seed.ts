@@ -5,7 +5,7 @@ import { createRng, KELVIN_OFFSET, R } from '../src/model';
 import { certKdPerH, fitAssay } from '../src/stability';
 import type { Role } from '../src/contracts/roles';
 import type { Db } from './client';
-import { assayPoints, assays, enzymes, invoices, lots, sites, subscriptions, users, vessels } from './schema';
+import { assayPoints, assays, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
 
 // An invented plant for demos and tests. Names, suppliers, lots and figures are made up.
 
@@ -100,6 +100,15 @@ const LOTS: SeedLot[] = [
   { enzyme: 'Lipo LP-3', lotCode: 'CLP-2611-02', receivedOn: '2026-11-12', expiresOn: '2027-11-11', quantityKg: 60, certActivity: 259, certStability: { form: 'residual', tempC: 45, minutes: 720, residualFraction: 0.82 }, qc: { halfLifeH: 34, edKJPerMol: 215, seed: 42, asPercent: true } },
 ];
 
+// Invented recipes on the demo vessels, each with an accepted lot. Ed is an invented demo value inside the
+// 150-700 kJ/mol range typical of enzyme inactivation (common practice, no source).
+const RECIPES = [
+  { name: 'Glucose syrup DE 95', lotCode: 'CGA-2605-11', vessel: 'R-101 Saccharifier', s0GPerL: 300, kmGPerL: 2, doseGPerL: 0.6, vmaxRefGPerLH: 7.5, edKJPerMol: 300, batchH: 48, turnaroundH: 6, fillC: 45, productPricePerKg: 0.45, enzymePricePerKg: 18, heatingCostPerDegCHour: 0.8, currentSetpointC: 59 },
+  { name: 'Lactose-free milk base', lotCode: 'OF-LX5-0926', vessel: 'R-204 Lactose tank', s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, vmaxRefGPerLH: 2, edKJPerMol: 250, batchH: 20, turnaroundH: 3, fillC: 6, productPricePerKg: 2.5, enzymePricePerKg: 20, heatingCostPerDegCHour: 0.05, currentSetpointC: 37 },
+  { name: 'Maltodextrin DE 12 liquefaction', lotCode: 'TAA-4471', vessel: 'R-310 Liquefier', s0GPerL: 320, kmGPerL: 5, doseGPerL: 0.3, vmaxRefGPerLH: 120, edKJPerMol: 350, batchH: 3, turnaroundH: 2, fillC: 60, productPricePerKg: 0.3, enzymePricePerKg: 25, heatingCostPerDegCHour: 0.6, currentSetpointC: 90 },
+];
+const RECIPES_UPDATED_AT = '2026-11-30T09:00:00.000Z';
+
 /**
  * Invented QC measurements: first-order decay at the specification temperature and 4 and 8 °C above it, sampled
  * out to about 1.3 half-lives at each, with 5 % multiplicative noise from a seeded generator. Same seed, same rows.
@@ -161,15 +170,17 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         .get();
       userIds.set(u.role, row.id);
     });
-    tx.insert(vessels)
+    const vesselRows = tx.insert(vessels)
       .values([
         { siteId: site.id, name: 'R-101 Saccharifier', workingVolumeL: 40000, minC: 20, maxC: 75, maxHeatCPerH: 12, maxCoolCPerH: 8, hygienicMinC: 50 },
         { siteId: site.id, name: 'R-204 Lactose tank', workingVolumeL: 12000, minC: 4, maxC: 60, maxHeatCPerH: 10, maxCoolCPerH: 6, hygienicMinC: 8 },
         { siteId: site.id, name: 'R-310 Liquefier', workingVolumeL: 8000, minC: 20, maxC: 105, maxHeatCPerH: 30, maxCoolCPerH: 20, hygienicMinC: 45 },
       ])
-      .run();
+      .returning()
+      .all();
     const enzymeIds = new Map<string, number>();
     for (const e of ENZYMES) enzymeIds.set(e.name, tx.insert(enzymes).values({ ...e, siteId: site.id }).returning().get().id);
+    const lotRows = new Map<string, { id: number; enzymeId: number }>();
     for (const l of LOTS) {
       const lot = tx
         .insert(lots)
@@ -191,6 +202,7 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         })
         .returning()
         .get();
+      lotRows.set(l.lotCode, lot);
       if (!l.qc) continue;
       const enzyme = ENZYMES.find((e) => e.name === l.enzyme)!;
       const points = demoAssayPoints(enzyme.specTempC, l.qc);
@@ -217,6 +229,11 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       tx.insert(assayPoints)
         .values(points.map((p, i) => ({ ...p, assayId: assay.id, line: i + 2, note: null })))
         .run();
+    }
+    for (const { lotCode, vessel, ...r } of RECIPES) {
+      const lot = lotRows.get(lotCode)!;
+      const vesselId = vesselRows.find((v) => v.name === vessel)!.id;
+      tx.insert(recipes).values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT }).run();
     }
     const ids = demoStripeIds(site.id);
     tx.insert(subscriptions)

@@ -14,9 +14,12 @@ import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
 import { billingRouter, billingWebhook } from './routes/billing';
+import { changeRequestsRouter } from './routes/change-requests';
 import { enzymesRouter } from './routes/enzymes';
 import { invitesRouter } from './routes/invites';
 import { lotsRouter } from './routes/lots';
+import { plansRouter } from './routes/plans';
+import { recipesRouter } from './routes/recipes';
 import { mailOutboxRouter } from './routes/mail-outbox';
 import { sessionRouter } from './routes/session';
 import { siteRouter } from './routes/site';
@@ -102,7 +105,13 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/vessels', router: vesselsRouter(services) },
     { prefix: '/enzymes', router: enzymesRouter(services) },
     { prefix: '/lots', router: lotsRouter({ ...services, files: deps.files ?? createFileStore(fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-files-'))) }) },
+    { prefix: '/recipes', router: recipesRouter(services) },
+    { prefix: '/plans', router: plansRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
+    {
+      prefix: '/change-requests',
+      router: changeRequestsRouter({ ...services, mail, publicUrl: billingCtx.publicUrl, signLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
+    },
     { prefix: '/billing', router: billingRouter(billingCtx) },
     { prefix: '/invites', router: invitesRouter({ ...billingCtx, mail }) },
     { prefix: '/mail-outbox', router: mailOutboxRouter({ ...services, mail }) },

@@ -1,6 +1,8 @@
 // One file per area; each new area adds its file and one line here.
 export * from './core';
 export * from './catalog';
+export * from './planning';
 export * from './mail';
 export * from './billing';
 export * from './quality';
+export * from './change-control';

@@ -1,11 +1,23 @@
 import { Router } from 'express';
-import { VesselList } from '../../src/contracts/vessels';
+import { z } from 'zod';
+import { Vessel, VesselInput, VesselList, VesselPatch } from '../../src/contracts/vessels';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
-import { listVessels } from '../services/vessels';
+import { changeVessel, createVessel, listVessels } from '../services/vessels';
 import type { Services } from './services';
 
+const IdParam = z.object({ id: z.coerce.number().int().positive() });
+
 export function vesselsRouter(s: Services): Router {
-  return Router().get('/', allow(...ALL_ROLES), (req, res) => {
+  const router = Router();
+  router.get('/', allow(...ALL_ROLES), (req, res) => {
     res.json(VesselList.parse({ vessels: listVessels(s, currentUser(req)) }));
   });
+  router.post('/', allow('engineer', 'admin'), (req, res) => {
+    res.status(201).json(Vessel.parse(createVessel(s, currentUser(req), VesselInput.parse(req.body))));
+  });
+  router.patch('/:id', allow('engineer', 'admin'), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    res.json(Vessel.parse(changeVessel(s, currentUser(req), id, VesselPatch.parse(req.body))));
+  });
+  return router;
 }

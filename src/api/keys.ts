@@ -10,7 +10,15 @@ export const keys = {
   invoices: '/billing/invoices',
   invites: '/invites',
   mailOutbox: '/mail-outbox',
+  recipes: '/recipes',
 } as const;
+
+export const changeRequestsKey = (status?: string) => (status ? `/change-requests?status=${status}` : '/change-requests');
+export const changeRequestKey = (id: number) => `/change-requests/${id}`;
+
+export const recipeKey = (id: number) => `/recipes/${id}`;
+export const plansKey = (recipeId: number) => `/plans?recipeId=${recipeId}`;
+export const planKey = (id: number) => `/plans/${id}`;
 
 /** The audit trail page for a filter. */
 export const auditKey = (q: { action?: string; offset?: number }) =>

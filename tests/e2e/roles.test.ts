@@ -2,7 +2,7 @@ import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { HOME, navItemsFor } from '../../src/components/shell/navigation';
 import { ROLES } from '../../src/contracts/roles';
-import { accessibilityViolations, acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
+import { accessibilityViolations, acknowledgeCautionsIfShown, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
 const baseURL = inject('baseURL');
 let browser: Browser;
@@ -16,15 +16,12 @@ const screenOf = (href: string) => `screen-${href.slice(1)}`;
 describe.each([
   ['phone', PHONE],
   ['wide', WIDE],
-] as const)('each role on a %s screen', (label, viewport) => {
+] as const)('each role on a %s screen', (_label, viewport) => {
   it.each(ROLES)('%s signs in, lands on its home, sees only its places, and signs out', async (role) => {
     const { page, context, errors } = await watchedPage(browser, viewport);
     await signIn(page, baseURL, role);
-    if (label === 'phone') await acknowledgeCautions(page);
-    else {
-      // The notice was acknowledged on the phone run; the server remembers it per user.
-      await page.getByTestId('first-run-notice').waitFor({ state: 'detached', timeout: 5000 }).catch(() => undefined);
-    }
+    // Other journeys on the same server may have confirmed this user's notice already.
+    await acknowledgeCautionsIfShown(page, screenOf(HOME[role]));
     await page.getByTestId(screenOf(HOME[role])).waitFor();
     expect(new URL(page.url()).pathname).toBe(HOME[role]);
 

@@ -1,0 +1,57 @@
+CREATE TABLE `plans` (
+	`id` integer PRIMARY KEY AUTOINCREMENT NOT NULL,
+	`site_id` integer NOT NULL,
+	`recipe_id` integer NOT NULL,
+	`lot_id` integer NOT NULL,
+	`created_by` integer NOT NULL,
+	`created_at` text NOT NULL,
+	`model_version` text NOT NULL,
+	`inputs` text NOT NULL,
+	`outputs` text NOT NULL,
+	`strategy` text NOT NULL,
+	`setpoint_c` real NOT NULL,
+	`predicted_product_g_per_l` real NOT NULL,
+	`p10_g_per_l` real,
+	`p50_g_per_l` real,
+	`p90_g_per_l` real,
+	`activity_left` real NOT NULL,
+	`profit_per_h` real NOT NULL,
+	`constraints_met` integer NOT NULL,
+	`content_hash` text NOT NULL,
+	FOREIGN KEY (`site_id`) REFERENCES `sites`(`id`) ON UPDATE no action ON DELETE no action,
+	FOREIGN KEY (`recipe_id`) REFERENCES `recipes`(`id`) ON UPDATE no action ON DELETE no action,
+	FOREIGN KEY (`lot_id`) REFERENCES `lots`(`id`) ON UPDATE no action ON DELETE no action,
+	FOREIGN KEY (`created_by`) REFERENCES `users`(`id`) ON UPDATE no action ON DELETE no action
+);
+--> statement-breakpoint
+CREATE INDEX `plans_site_recipe_idx` ON `plans` (`site_id`,`recipe_id`,`id`);--> statement-breakpoint
+CREATE TABLE `recipes` (
+	`id` integer PRIMARY KEY AUTOINCREMENT NOT NULL,
+	`site_id` integer NOT NULL,
+	`name` text NOT NULL,
+	`enzyme_id` integer NOT NULL,
+	`lot_id` integer NOT NULL,
+	`vessel_id` integer NOT NULL,
+	`s0_g_per_l` real NOT NULL,
+	`km_g_per_l` real NOT NULL,
+	`dose_g_per_l` real NOT NULL,
+	`vmax_ref_g_per_l_h` real NOT NULL,
+	`ed_kj_per_mol` real NOT NULL,
+	`batch_h` real NOT NULL,
+	`turnaround_h` real NOT NULL,
+	`fill_c` real NOT NULL,
+	`product_price_per_kg` real NOT NULL,
+	`enzyme_price_per_kg` real NOT NULL,
+	`heating_cost_per_deg_c_hour` real NOT NULL,
+	`current_setpoint_c` real NOT NULL,
+	`released_plan_id` integer,
+	`released_at` text,
+	`created_at` text DEFAULT (strftime('%Y-%m-%dT%H:%M:%fZ','now')) NOT NULL,
+	`updated_at` text NOT NULL,
+	FOREIGN KEY (`site_id`) REFERENCES `sites`(`id`) ON UPDATE no action ON DELETE no action,
+	FOREIGN KEY (`enzyme_id`) REFERENCES `enzymes`(`id`) ON UPDATE no action ON DELETE no action,
+	FOREIGN KEY (`lot_id`) REFERENCES `lots`(`id`) ON UPDATE no action ON DELETE no action,
+	FOREIGN KEY (`vessel_id`) REFERENCES `vessels`(`id`) ON UPDATE no action ON DELETE no action
+);
+--> statement-breakpoint
+CREATE UNIQUE INDEX `recipes_site_name_unique` ON `recipes` (`site_id`,`name`);

@@ -1,0 +1,137 @@
+import crypto from 'node:crypto';
+import type { Db } from '../../db/client';
+import { MODEL_VERSION } from '../../src/model';
+import { computePlanOutputs, planContext } from '../../src/planning';
+import type { Plan, PlanInputs, PlanQuery } from '../../src/contracts/plans';
+import type { SessionUser } from '../../src/contracts/session';
+import { toCsv } from '../csv';
+import { HttpError, notFound } from '../http-error';
+import { findSitePlan, insertPlan, listSitePlans, type PlanJoined } from '../repositories/plans';
+import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
+import { findSiteVessel } from '../repositories/vessels';
+import type { Services } from '../routes/services';
+import { appendAudit } from './audit';
+import { acceptedLot, toPlanningLot } from './recipes';
+
+/** JSON with object keys sorted at every level, so the same content always gives the same text and hash. */
+export function canonicalJson(v: unknown): string {
+  if (Array.isArray(v)) return `[${v.map(canonicalJson).join(',')}]`;
+  if (v && typeof v === 'object')
+    return `{${Object.keys(v)
+      .sort()
+      .filter((k) => (v as Record<string, unknown>)[k] !== undefined)
+      .map((k) => `${JSON.stringify(k)}:${canonicalJson((v as Record<string, unknown>)[k])}`)
+      .join(',')}}`;
+  return JSON.stringify(v);
+}
+
+export const planContentHash = (p: Pick<Plan, 'inputs' | 'outputs' | 'modelVersion'>) =>
+  crypto.createHash('sha256').update(canonicalJson({ inputs: p.inputs, outputs: p.outputs, modelVersion: p.modelVersion })).digest('hex');
+
+const toPlan = ({ plan: p, recipeName, lotCode, vesselName, createdBy }: PlanJoined): Plan => ({
+  id: p.id,
+  recipeId: p.recipeId,
+  recipeName,
+  lotCode,
+  vesselName,
+  createdAt: p.createdAt,
+  createdBy,
+  modelVersion: p.modelVersion,
+  contentHash: p.contentHash,
+  inputs: p.inputs,
+  outputs: p.outputs,
+});
+
+export const listPlans = ({ db }: Services, u: SessionUser, q: PlanQuery): Plan[] => listSitePlans(db, u.siteId, q.recipeId).map(toPlan);
+
+export function getPlan({ db }: Services, u: SessionUser, id: number): Plan {
+  const found = findSitePlan(db, u.siteId, id);
+  if (!found) throw notFound('Plan');
+  return toPlan(found);
+}
+
+/** Recomputes the plan from stored records and the engineer's choices only, then stores it once. */
+export function createPlan({ db, clock }: Services, u: SessionUser, inputs: PlanInputs): Plan {
+  const found = findSiteRecipe(db, u.siteId, inputs.recipeId);
+  if (!found) throw notFound('Recipe');
+  const { recipe } = found;
+  const lot = acceptedLot(db, u.siteId, inputs.lotId);
+  if (lot.enzymeId !== recipe.enzymeId)
+    throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
+  const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
+  const vessel = findSiteVessel(db, u.siteId, recipe.vesselId)!;
+  const outputs = computePlanOutputs(planContext(recipe, enzyme, toPlanningLot(lot), vessel), inputs);
+  const now = clock.now().toISOString();
+  const contentHash = planContentHash({ inputs, outputs, modelVersion: MODEL_VERSION });
+  return db.transaction((tx) => {
+    const t = tx as unknown as Db;
+    const row = insertPlan(t, {
+      siteId: u.siteId,
+      recipeId: recipe.id,
+      lotId: lot.id,
+      createdBy: u.id,
+      createdAt: now,
+      modelVersion: MODEL_VERSION,
+      inputs,
+      outputs,
+      strategy: outputs.strategy,
+      setpointC: outputs.setpointC,
+      predictedProductGPerL: outputs.predictedProductGPerL,
+      p10GPerL: outputs.uncertainty?.p10 ?? null,
+      p50GPerL: outputs.uncertainty?.p50 ?? null,
+      p90GPerL: outputs.uncertainty?.p90 ?? null,
+      activityLeft: outputs.activityLeft,
+      profitPerH: outputs.profitPerH,
+      constraintsMet: outputs.constraintsMet,
+      contentHash,
+    });
+    appendAudit(t, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'plan.create',
+      entity: 'plan',
+      entityId: row.id,
+      newValue: { recipeId: recipe.id, lotId: lot.id, strategy: outputs.strategy, setpointC: outputs.setpointC, contentHash, modelVersion: MODEL_VERSION },
+      at: clock.now(),
+    });
+    return toPlan(findSitePlan(t, u.siteId, row.id)!);
+  });
+}
+
+/** One plan as field/value rows: inputs, outputs, stages and the hash, safe to open in a spreadsheet. */
+export function planCsv(s: Services, u: SessionUser, id: number): { filename: string; csv: string } {
+  const p = getPlan(s, u, id);
+  const o = p.outputs;
+  const rows: unknown[][] = [
+    ['plan_id', p.id, ''],
+    ['recipe', p.recipeName, ''],
+    ['lot', p.lotCode, ''],
+    ['vessel', p.vesselName, ''],
+    ['created_at_utc', p.createdAt, ''],
+    ['created_by', p.createdBy, ''],
+    ['model_version', p.modelVersion, ''],
+    ['content_hash', p.contentHash, 'sha256'],
+    ...Object.entries(p.inputs)
+      .filter(([k]) => k !== 'uncertainty')
+      .map(([k, v]) => [`input.${k}`, v, '']),
+    ...(p.inputs.uncertainty ? Object.entries(p.inputs.uncertainty).map(([k, v]) => [`input.uncertainty.${k}`, v, '']) : []),
+    ['strategy', o.strategy, ''],
+    ['setpoint_c', o.setpointC, 'degC'],
+    ...(o.stages ?? []).map((s, i) => [`stage_${i + 1}`, `${s.hours} h at ${s.c}`, 'h, degC']),
+    ['predicted_product', o.predictedProductGPerL, 'g/L'],
+    ['activity_left', o.activityLeft, 'fraction'],
+    ['profit_per_h', o.profitPerH, 'currency/h'],
+    ['current_setpoint_c', o.current.setpointC, 'degC'],
+    ['current_product', o.current.productGPerL, 'g/L'],
+    ['gain_over_current', o.gainOverCurrent, 'fraction'],
+    ['constraints_met', o.constraintsMet, ''],
+    ['pressure_caution', o.cautions.crossesBoiling, `max ${o.cautions.maxC} degC`],
+    ['below_hygienic_minimum', o.cautions.belowHygienicMin, `${o.cautions.hygienicMinC} degC`],
+    ['p10', o.uncertainty?.p10 ?? null, 'g/L'],
+    ['p50', o.uncertainty?.p50 ?? null, 'g/L'],
+    ['p90', o.uncertainty?.p90 ?? null, 'g/L'],
+    ['robust_setpoint_c', o.uncertainty?.robustSetpointC ?? null, 'degC'],
+  ];
+  return { filename: `plan-${p.id}.csv`, csv: toCsv(['field', 'value', 'unit'], rows) };
+}

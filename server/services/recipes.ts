@@ -1,0 +1,89 @@
+import type { Db } from '../../db/client';
+import type { PlanningLot, Recipe, RecipeDetail, RecipeInput, RecipePatch } from '../../src/contracts/recipes';
+import type { SessionUser } from '../../src/contracts/session';
+import { HttpError, notFound } from '../http-error';
+import { findSiteEnzyme, findSiteLot, findSiteRecipe, findSiteRecipeByName, insertRecipe, listAcceptedLots, listSiteRecipes, updateRecipe } from '../repositories/recipes';
+import { findSiteVessel, type VesselRow } from '../repositories/vessels';
+import type { Services } from '../routes/services';
+import { appendAudit } from './audit';
+
+type Joined = NonNullable<ReturnType<typeof findSiteRecipe>>;
+type LotRow = NonNullable<ReturnType<typeof findSiteLot>>;
+
+const toRecipe = ({ recipe: { siteId: _s, createdAt: _c, ...r }, enzymeName, lotCode, vesselName }: Joined): Recipe => ({ ...r, enzymeName, lotCode, vesselName });
+
+export const toPlanningLot = (l: LotRow): PlanningLot => ({ id: l.id, lotCode: l.lotCode, certKdPerH: l.certKdPerH, certTempC: l.certTempC, expiresOn: l.expiresOn });
+
+export const listRecipes = ({ db }: Services, u: SessionUser): Recipe[] => listSiteRecipes(db, u.siteId).map(toRecipe);
+
+/** A lot the site may plan with: its own, and accepted by procurement. */
+export function acceptedLot(db: Db, siteId: number, lotId: number): LotRow {
+  const lot = findSiteLot(db, siteId, lotId);
+  if (!lot) throw new HttpError(400, 'invalid_input', 'No such lot at this site', { lotId: 'No such lot at this site' });
+  if (lot.status !== 'accepted')
+    throw new HttpError(400, 'lot_not_accepted', `Lot ${lot.lotCode} is ${lot.status}; only accepted lots can be planned with`, { lotId: 'Only accepted lots can be planned with' });
+  return lot;
+}
+
+function siteVessel(db: Db, siteId: number, vesselId: number): VesselRow {
+  const v = findSiteVessel(db, siteId, vesselId);
+  if (!v) throw new HttpError(400, 'invalid_input', 'No such vessel at this site', { vesselId: 'No such vessel at this site' });
+  return v;
+}
+
+function checkSetpoint(v: VesselRow, c: number) {
+  if (c < v.minC || c > v.maxC)
+    throw new HttpError(400, 'invalid_input', `The current setpoint must lie within ${v.name}'s range`, { currentSetpointC: `Must lie between ${v.minC} and ${v.maxC} °C` });
+}
+
+function assertNameFree(db: Db, siteId: number, name: string, exceptId?: number) {
+  const clash = findSiteRecipeByName(db, siteId, name);
+  if (clash && clash.id !== exceptId) throw new HttpError(409, 'name_taken', 'A recipe with this name exists', { name: 'A recipe with this name exists' });
+}
+
+export function getRecipeDetail({ db }: Services, u: SessionUser, id: number): RecipeDetail {
+  const found = findSiteRecipe(db, u.siteId, id);
+  if (!found) throw notFound('Recipe');
+  const vessel = findSiteVessel(db, u.siteId, found.recipe.vesselId)!;
+  const { siteId: _s, createdAt: _c, ...enzyme } = findSiteEnzyme(db, u.siteId, found.recipe.enzymeId)!;
+  const { siteId: _vs, createdAt: _vc, ...vesselOut } = vessel;
+  return { recipe: toRecipe(found), vessel: vesselOut, enzyme, lots: listAcceptedLots(db, u.siteId, found.recipe.enzymeId).map(toPlanningLot) };
+}
+
+export function createRecipe({ db, clock }: Services, u: SessionUser, input: RecipeInput): Recipe {
+  const lot = acceptedLot(db, u.siteId, input.lotId);
+  checkSetpoint(siteVessel(db, u.siteId, input.vesselId), input.currentSetpointC);
+  assertNameFree(db, u.siteId, input.name);
+  const now = clock.now();
+  return db.transaction((tx) => {
+    const t = tx as unknown as Db;
+    const row = insertRecipe(t, u.siteId, { ...input, enzymeId: lot.enzymeId, updatedAt: now.toISOString() });
+    const out = toRecipe(findSiteRecipe(t, u.siteId, row.id)!);
+    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.create', entity: 'recipe', entityId: row.id, newValue: input, at: now });
+    return out;
+  });
+}
+
+/** A partial change; a new lot must be accepted and of the same enzyme, and the setpoint must fit the vessel. */
+export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number, patch: RecipePatch): Recipe {
+  const found = findSiteRecipe(db, u.siteId, id);
+  if (!found) throw notFound('Recipe');
+  const before = found.recipe;
+  if (patch.lotId !== undefined && patch.lotId !== before.lotId) {
+    const lot = acceptedLot(db, u.siteId, patch.lotId);
+    if (lot.enzymeId !== before.enzymeId)
+      throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
+  }
+  const vessel = siteVessel(db, u.siteId, patch.vesselId ?? before.vesselId);
+  if (patch.vesselId !== undefined || patch.currentSetpointC !== undefined) checkSetpoint(vessel, patch.currentSetpointC ?? before.currentSetpointC);
+  if (patch.name !== undefined) assertNameFree(db, u.siteId, patch.name, id);
+  const now = clock.now();
+  return db.transaction((tx) => {
+    const t = tx as unknown as Db;
+    updateRecipe(t, id, { ...patch, updatedAt: now.toISOString() });
+    const after = toRecipe(findSiteRecipe(t, u.siteId, id)!);
+    const old = Object.fromEntries(Object.keys(patch).map((k) => [k, before[k as keyof typeof before]]));
+    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.update', entity: 'recipe', entityId: id, oldValue: old, newValue: patch, at: now });
+    return after;
+  });
+}
