@@ -64,7 +64,7 @@ export function createRecipe({ db, clock }: Services, u: SessionUser, input: Rec
   });
 }
 
-/** A partial change; a new lot must be accepted and of the same enzyme, and the setpoint must fit the vessel. */
+/** A partial change; a new lot must be accepted and of the same enzyme, and a new vessel must fit the setpoint. */
 export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number, patch: RecipePatch): Recipe {
   const found = findSiteRecipe(db, u.siteId, id);
   if (!found) throw notFound('Recipe');
@@ -75,7 +75,7 @@ export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number
       throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
   }
   const vessel = siteVessel(db, u.siteId, patch.vesselId ?? before.vesselId);
-  if (patch.vesselId !== undefined || patch.currentSetpointC !== undefined) checkSetpoint(vessel, patch.currentSetpointC ?? before.currentSetpointC);
+  if (patch.vesselId !== undefined) checkSetpoint(vessel, before.currentSetpointC);
   if (patch.name !== undefined) assertNameFree(db, u.siteId, patch.name, id);
   const now = clock.now();
   return db.transaction((tx) => {

@@ -96,7 +96,7 @@ describe('setpoint planner', () => {
 
     await page.getByTestId('uncertainty-run').click();
     await page.getByTestId('uncertainty-progress').waitFor();
-    await screenshot(page, 'planner-uncertainty-running-390x844');
+    await screenshot(page, 'planner-uncertainty-390x844');
     await page.getByTestId('uncertainty-result').waitFor({ timeout: 60_000 });
     expect(await page.getByTestId('uncertainty-result').textContent()).toMatch(/P10 \d+, P50 \d+, P90 \d+ g\/L/);
     expect(await page.getByTestId('chart-setpoint-summary').textContent()).toMatch(/P10–P90 is shaded/);

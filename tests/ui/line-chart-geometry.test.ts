@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { CHART_MARGIN, lineChartGeometry, MARKER_LABEL_STEP } from '../../src/components/charts/line-chart-geometry';
+import { CHART_MARGIN, lineChartGeometry } from '../../src/components/charts/line-chart-geometry';
 
 const W = 400;
 const H = 240;
@@ -35,32 +35,14 @@ describe('lineChartGeometry', () => {
     expect(g.yTicks.at(-1)!.value).toBeGreaterThanOrEqual(9);
   });
 
-  it('places markers on the data and turns labels inwards near the right edge', () => {
+  it('places markers on the data', () => {
     const g = lineChartGeometry({
       ...base,
       series: [{ id: 'a', points: [{ x: 0, y: 0 }, { x: 10, y: 10 }] }],
-      markers: [
-        { id: 'left', x: 1, y: 1, label: 'L' },
-        { id: 'right', x: 9, y: 9, label: 'R' },
-      ],
+      markers: [{ id: 'm', x: 1, y: 1, label: 'L' }],
     });
-    const [l, r] = g.markers;
-    expect(l!.anchor).toBe('start');
-    expect(r!.anchor).toBe('end');
-    expect(r!.labelX).toBeLessThan(r!.cx);
-    expect(l!.cx).toBeCloseTo(CHART_MARGIN.left + g.plot.width / 10, 9);
-  });
-
-  it('stacks the labels of markers at the same spot instead of drawing them over each other', () => {
-    const g = lineChartGeometry({
-      ...base,
-      series: [{ id: 'a', points: [{ x: 0, y: 0 }, { x: 10, y: 10 }] }],
-      markers: [
-        { id: 'a', x: 5, y: 5, label: 'A' },
-        { id: 'b', x: 5.2, y: 5, label: 'B' },
-      ],
-    });
-    expect(g.markers[0]!.labelY - g.markers[1]!.labelY).toBe(MARKER_LABEL_STEP);
+    expect(g.markers[0]!.cx).toBeCloseTo(CHART_MARGIN.left + g.plot.width / 10, 9);
+    expect(g.markers[0]!.cy).toBeCloseTo(CHART_MARGIN.top + g.plot.height * 0.9, 9);
   });
 
   it('copes with a single flat point without dividing by zero', () => {

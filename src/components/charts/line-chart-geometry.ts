@@ -26,15 +26,13 @@ export type LineChartGeometry = {
   plot: { left: number; top: number; width: number; height: number };
   lines: { id: string; d: string }[];
   bands: { id: string; d: string }[];
-  markers: { id: string; cx: number; cy: number; label: string; labelX: number; labelY: number; anchor: 'start' | 'end' }[];
+  markers: { id: string; cx: number; cy: number; label: string }[];
   xTicks: Tick[];
   yTicks: Tick[];
 };
 
 // The top margin leaves a row for the y-axis title above the plot.
 export const CHART_MARGIN = { left: 52, right: 16, top: 28, bottom: 30 };
-/** Vertical distance between stacked marker labels, px. */
-export const MARKER_LABEL_STEP = 14;
 
 const finite = (v: number) => Number.isFinite(v);
 
@@ -66,20 +64,14 @@ export function lineChartGeometry(input: LineChartInput): LineChartGeometry {
     .x((p) => x(p.x))
     .y0((p) => y(p.lo))
     .y1((p) => y(p.hi));
-  const mid = plot.left + plot.width / 2;
   return {
     plot,
     lines: input.series.map((s) => ({ id: s.id, d: path([...s.points]) ?? '' })),
     bands: (input.bands ?? []).map((b) => ({ id: b.id, d: band([...b.points]) ?? '' })),
     markers: (input.markers ?? [])
       .filter((mk) => finite(mk.x) && finite(mk.y))
-      .map((mk, i) => {
-        const cx = x(mk.x);
-        const cy = y(mk.y);
-        // Labels point into the plot so they are never cut off at the edges, and stack so neighbours do not collide.
-        const labelY = Math.max(plot.top + MARKER_LABEL_STEP * (i + 1) - 4, cy - 8 - MARKER_LABEL_STEP * i);
-        return { id: mk.id, cx, cy, label: mk.label, labelX: cx > mid ? cx - 8 : cx + 8, labelY, anchor: cx > mid ? ('end' as const) : ('start' as const) };
-      }),
+      // Marker labels go in the legend: neighbouring markers (current and best setpoint) sit too close to label in place.
+      .map((mk) => ({ id: mk.id, cx: x(mk.x), cy: y(mk.y), label: mk.label })),
     xTicks: x.ticks(input.xTicks ?? 5).map((v) => ({ value: v, pos: x(v), label: fx(v) })),
     yTicks: y.ticks(input.yTicks ?? 5).map((v) => ({ value: v, pos: y(v), label: fy(v) })),
   };

@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import Svg, { Circle, G, Line, Path, Text as SvgText } from 'react-native-svg';
-import { font, space, useColors, type Palette } from '../../theme';
+import { font, radius, space, useColors, type Palette } from '../../theme';
 import { Text } from '../ui/text';
 import { lineChartGeometry, type BandSeries, type LineSeries, type MarkerSpec } from './line-chart-geometry';
 
@@ -70,9 +70,6 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
                 <G key={m.id}>
                   <Line x1={m.cx} x2={m.cx} y1={m.cy} y2={bottom} stroke={color} strokeWidth={1} strokeDasharray="3 3" />
                   <Circle cx={m.cx} cy={m.cy} r={5} fill={color} stroke={c.surface} strokeWidth={2} />
-                  <SvgText x={m.labelX} y={m.labelY} fontSize={AXIS_FONT + 1} fill={color} textAnchor={m.anchor} fontFamily={font.semibold}>
-                    {m.label}
-                  </SvgText>
                 </G>
               );
             })}
@@ -85,6 +82,14 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
             <View style={[styles.swatch, { backgroundColor: toneColor(c, s.tone) }]} />
             <Text variant="caption" tone="muted">
               {s.label}
+            </Text>
+          </View>
+        ))}
+        {markers.map((m) => (
+          <View key={m.id} style={styles.legendItem}>
+            <View style={[styles.dot, { backgroundColor: toneColor(c, m.tone) }]} />
+            <Text variant="caption" weight="semibold" style={{ color: toneColor(c, m.tone) }}>
+              {m.label}
             </Text>
           </View>
         ))}
@@ -101,4 +106,5 @@ const styles = StyleSheet.create({
   legend: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
   legendItem: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
   swatch: { width: space.md, height: space.xs, borderRadius: space.xxs },
+  dot: { width: space.sm + space.xxs, height: space.sm + space.xxs, borderRadius: radius.pill },
 });

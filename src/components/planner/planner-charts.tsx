@@ -32,9 +32,9 @@ export function SetpointChart({ ev, series, inputs, uncertainty }: Props & { unc
         series={[{ id: 'curve', label: 'Product at the end of the batch, setpoint held', tone: 'primary', points: series.setpointCurve }]}
         bands={band ? [{ id: 'band', label: 'P10–P90', tone: 'primary', points: band }] : []}
         markers={[
-          { id: 'current', x: o.current.setpointC, y: held(o.current.setpointC), label: `now ${fmt(o.current.setpointC)}`, tone: 'accent' },
-          { id: 'best', x: o.setpointC, y: held(o.setpointC), label: `best ${fmt(o.setpointC)}`, tone: 'primary' },
-          ...(robust ? [{ id: 'robust', x: robust.setpointC, y: robust.p10, label: `robust ${fmt(robust.setpointC)}`, tone: 'third' as const }] : []),
+          { id: 'current', x: o.current.setpointC, y: held(o.current.setpointC), label: `Current ${fmt(o.current.setpointC)} °C`, tone: 'accent' },
+          { id: 'best', x: o.setpointC, y: held(o.setpointC), label: `Best ${fmt(o.setpointC)} °C`, tone: 'primary' },
+          ...(robust ? [{ id: 'robust', x: robust.setpointC, y: robust.p10, label: `Robust (best P10) ${fmt(robust.setpointC)} °C`, tone: 'third' as const }] : []),
         ]}
         height={240}
       />
@@ -121,8 +121,8 @@ export function ProfitChart({ ev, series, inputs }: Props) {
         yLabel="profit per hour"
         series={[{ id: 'profit', label: 'Profit per hour, each at its best setpoint', tone: 'primary', points: series.profit.map((p) => ({ x: p.batchH, y: p.profitPerH })) }]}
         markers={[
-          { id: 'best', x: b.batchH, y: b.profitPerH, label: `best ${fmt(b.batchH, 0)} h`, tone: 'primary' },
-          { id: 'chosen', x: chosen.batchH, y: chosen.profitPerH, label: `now ${fmt(inputs.batchH, 0)} h`, tone: 'accent' },
+          { id: 'best', x: b.batchH, y: b.profitPerH, label: `Best ${fmt(b.batchH, 0)} h`, tone: 'primary' },
+          { id: 'chosen', x: chosen.batchH, y: chosen.profitPerH, label: `Chosen ${fmt(inputs.batchH, 0)} h`, tone: 'accent' },
         ]}
       />
     </Card>
