@@ -1,4 +1,4 @@
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { PlanningLot, Recipe, RecipeDetail, RecipeInput, RecipePatch } from '../../src/contracts/recipes';
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError, notFound } from '../http-error';
@@ -55,11 +55,10 @@ export function createRecipe({ db, clock }: Services, u: SessionUser, input: Rec
   checkSetpoint(siteVessel(db, u.siteId, input.vesselId), input.currentSetpointC);
   assertNameFree(db, u.siteId, input.name);
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    const row = insertRecipe(t, u.siteId, { ...input, enzymeId: lot.enzymeId, updatedAt: now.toISOString() });
-    const out = toRecipe(findSiteRecipe(t, u.siteId, row.id)!);
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.create', entity: 'recipe', entityId: row.id, newValue: input, at: now });
+  return writeTx(db, (tx) => {
+    const row = insertRecipe(tx, u.siteId, { ...input, enzymeId: lot.enzymeId, updatedAt: now.toISOString() });
+    const out = toRecipe(findSiteRecipe(tx, u.siteId, row.id)!);
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.create', entity: 'recipe', entityId: row.id, newValue: input, at: now });
     return out;
   });
 }
@@ -78,12 +77,11 @@ export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number
   if (patch.vesselId !== undefined) checkSetpoint(vessel, before.currentSetpointC);
   if (patch.name !== undefined) assertNameFree(db, u.siteId, patch.name, id);
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    updateRecipe(t, id, { ...patch, updatedAt: now.toISOString() });
-    const after = toRecipe(findSiteRecipe(t, u.siteId, id)!);
+  return writeTx(db, (tx) => {
+    updateRecipe(tx, id, { ...patch, updatedAt: now.toISOString() });
+    const after = toRecipe(findSiteRecipe(tx, u.siteId, id)!);
     const old = Object.fromEntries(Object.keys(patch).map((k) => [k, before[k as keyof typeof before]]));
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.update', entity: 'recipe', entityId: id, oldValue: old, newValue: patch, at: now });
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.update', entity: 'recipe', entityId: id, oldValue: old, newValue: patch, at: now });
     return after;
   });
 }
