@@ -1,10 +1,14 @@
 import { FontDisplay, useFonts } from 'expo-font';
 import { Slot } from 'expo-router';
 import { StatusBar } from 'expo-status-bar';
+import { enableScreens } from 'react-native-screens';
 import { SWRConfig } from 'swr';
 import { installFocusRing } from '@/theme/focus-ring';
 
 installFocusRing();
+// On the web, react-native-screens hides inactive tabs with display:none only when enabled; otherwise they stay
+// in the page behind the active one, aria-hidden yet focusable (axe: aria-hidden-focus).
+enableScreens(true);
 
 // `swap`: text paints at once in the fallback face instead of staying invisible while the fonts download.
 const FONTS = {

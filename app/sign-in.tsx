@@ -1,4 +1,4 @@
-import { Redirect, router } from 'expo-router';
+import { Redirect, router, useLocalSearchParams } from 'expo-router';
 import { useState } from 'react';
 import { KeyboardAvoidingView, ScrollView, StyleSheet, View } from 'react-native';
 import { HOME } from '@/components/shell/navigation';
@@ -14,7 +14,9 @@ export default function SignIn() {
   const c = useColors();
   const { session } = useSession();
   const { signIn, error, isSubmitting } = useSignIn();
-  const [email, setEmail] = useState('');
+  // An accepted invite lands here with the address filled in.
+  const params = useLocalSearchParams<{ email?: string; welcome?: string }>();
+  const [email, setEmail] = useState(params.email ?? '');
   const [password, setPassword] = useState('');
   if (session) return <Redirect href={HOME[session.user.role]} />;
 
@@ -35,6 +37,11 @@ export default function SignIn() {
           </View>
           <Card>
             <Text variant="title">Sign in</Text>
+            {params.welcome ? (
+              <Text tone="success" testID="sign-in-welcome">
+                Your password is set. Sign in to start.
+              </Text>
+            ) : null}
             <Field
               label="E-mail"
               testID="sign-in-email"

@@ -2,9 +2,11 @@ import bcrypt from 'bcryptjs';
 import { sql } from 'drizzle-orm';
 import { batchHours, batchProgram, batchStatus, plannedAt } from '../src/batches';
 import type { CertStability } from '../src/contracts/lots';
+import { createRng, KELVIN_OFFSET, R } from '../src/model';
+import { certKdPerH, fitAssay } from '../src/stability';
 import type { Role } from '../src/contracts/roles';
 import type { Db } from './client';
-import { batchReadings, batches, enzymes, lots, recipes, sites, users, vessels } from './schema';
+import { assayPoints, assays, batchReadings, batches, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
 
 // An invented plant for demos and tests. Names, suppliers, lots and figures are made up.
 
@@ -15,21 +17,6 @@ export const DEMO_USERS: { role: Role; email: string; name: string; password: st
   { role: 'procurement', email: 'procurement@haldenbay.test', name: 'Rafael Lindqvist', password: 'demo-procurement-26' },
   { role: 'operator', email: 'operator@haldenbay.test', name: 'Sunniva Achebe', password: 'demo-operator-26' },
 ];
-
-const LN2 = Math.LN2;
-const LN10 = Math.LN10;
-
-/** First-order kd (1/h) at the certificate's temperature from the figure as the supplier states it. */
-export function certKdPerH(s: CertStability): number {
-  switch (s.form) {
-    case 'halfLife':
-      return LN2 / s.halfLifeH;
-    case 'residual':
-      return -Math.log(s.residualFraction) / (s.minutes / 60);
-    case 'dValue':
-      return LN10 / (s.dMinutes / 60);
-  }
-}
 
 const ENZYMES = [
   {
@@ -86,20 +73,32 @@ const ENZYMES = [
   },
 ];
 
-type SeedLot = { enzyme: string; lotCode: string; receivedOn: string; expiresOn: string; quantityKg: number; certActivity: number; certStability: CertStability; status?: 'accepted' | 'rejected'; reason?: string };
+// `qc`: the invented truth behind the lot's QC assay (half-life at the specification temperature, Ed); none = no assay yet.
+type SeedLot = {
+  enzyme: string;
+  lotCode: string;
+  receivedOn: string;
+  expiresOn: string;
+  quantityKg: number;
+  certActivity: number;
+  certStability: CertStability;
+  status?: 'accepted' | 'rejected';
+  reason?: string;
+  qc?: { halfLifeH: number; edKJPerMol: number; seed: number; asPercent?: boolean };
+};
 
 const LOTS: SeedLot[] = [
-  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2605-11', receivedOn: '2026-05-14', expiresOn: '2027-05-13', quantityKg: 800, certActivity: 452, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 26 }, status: 'accepted', reason: 'Half-life 26 h at 60 °C meets the 20 h specification' },
-  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2608-03', receivedOn: '2026-08-21', expiresOn: '2027-08-20', quantityKg: 800, certActivity: 447, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 24 }, status: 'accepted', reason: 'Half-life 24 h at 60 °C meets the 20 h specification' },
-  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2611-07', receivedOn: '2026-11-18', expiresOn: '2027-11-17', quantityKg: 1000, certActivity: 431, certStability: { form: 'residual', tempC: 60, minutes: 480, residualFraction: 0.78 } },
-  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4471', receivedOn: '2026-07-02', expiresOn: '2027-07-01', quantityKg: 250, certActivity: 1310, certStability: { form: 'dValue', tempC: 85, dMinutes: 660, zC: 9.5 }, status: 'accepted', reason: 'D-value 11 h at 85 °C gives a 3.3 h half-life, above 3 h' },
-  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4519', receivedOn: '2026-10-09', expiresOn: '2027-10-08', quantityKg: 250, certActivity: 1275, certStability: { form: 'dValue', tempC: 85, dMinutes: 540, zC: 9.5 } },
-  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4522', receivedOn: '2026-11-24', expiresOn: '2027-11-23', quantityKg: 250, certActivity: 1290, certStability: { form: 'halfLife', tempC: 85, halfLifeH: 3.4 } },
-  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-0926', receivedOn: '2026-09-26', expiresOn: '2027-03-25', quantityKg: 120, certActivity: 5400, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 60 }, status: 'accepted', reason: 'Half-life 60 h at 40 °C meets the 48 h specification' },
-  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1107', receivedOn: '2026-11-07', expiresOn: '2027-05-06', quantityKg: 120, certActivity: 5150, certStability: { form: 'residual', tempC: 40, minutes: 1440, residualFraction: 0.69 }, status: 'rejected', reason: 'QC half-life 38 h at 40 °C, below the 48 h specification' },
+  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2605-11', receivedOn: '2026-05-14', expiresOn: '2027-05-13', quantityKg: 800, certActivity: 452, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 26 }, status: 'accepted', reason: 'Half-life 26 h at 60 °C meets the 20 h specification', qc: { halfLifeH: 27, edKJPerMol: 300, seed: 11 } },
+  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2608-03', receivedOn: '2026-08-21', expiresOn: '2027-08-20', quantityKg: 800, certActivity: 447, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 24 }, status: 'accepted', reason: 'Half-life 24 h at 60 °C meets the 20 h specification', qc: { halfLifeH: 25, edKJPerMol: 290, seed: 12, asPercent: true } },
+  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2611-07', receivedOn: '2026-11-18', expiresOn: '2027-11-17', quantityKg: 1000, certActivity: 431, certStability: { form: 'residual', tempC: 60, minutes: 480, residualFraction: 0.78 }, qc: { halfLifeH: 23, edKJPerMol: 305, seed: 13 } },
+  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4471', receivedOn: '2026-07-02', expiresOn: '2027-07-01', quantityKg: 250, certActivity: 1310, certStability: { form: 'dValue', tempC: 85, dMinutes: 660, zC: 9.5 }, status: 'accepted', reason: 'D-value 11 h at 85 °C gives a 3.3 h half-life, above 3 h', qc: { halfLifeH: 3.6, edKJPerMol: 260, seed: 21 } },
+  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4519', receivedOn: '2026-10-09', expiresOn: '2027-10-08', quantityKg: 250, certActivity: 1275, certStability: { form: 'dValue', tempC: 85, dMinutes: 540, zC: 9.5 }, qc: { halfLifeH: 2.3, edKJPerMol: 255, seed: 22, asPercent: true } },
+  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4522', receivedOn: '2026-11-24', expiresOn: '2027-11-23', quantityKg: 250, certActivity: 1290, certStability: { form: 'halfLife', tempC: 85, halfLifeH: 3.4 }, qc: { halfLifeH: 3.9, edKJPerMol: 265, seed: 23 } },
+  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-0926', receivedOn: '2026-09-26', expiresOn: '2027-03-25', quantityKg: 120, certActivity: 5400, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 60 }, status: 'accepted', reason: 'Half-life 60 h at 40 °C meets the 48 h specification', qc: { halfLifeH: 64, edKJPerMol: 240, seed: 31 } },
+  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1107', receivedOn: '2026-11-07', expiresOn: '2027-05-06', quantityKg: 120, certActivity: 5150, certStability: { form: 'residual', tempC: 40, minutes: 1440, residualFraction: 0.69 }, status: 'rejected', reason: 'QC half-life 38 h at 40 °C, below the 48 h specification', qc: { halfLifeH: 38, edKJPerMol: 235, seed: 32 } },
   { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1128', receivedOn: '2026-11-28', expiresOn: '2027-05-27', quantityKg: 120, certActivity: 5320, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 55 } },
-  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2609-01', receivedOn: '2026-09-03', expiresOn: '2027-09-02', quantityKg: 60, certActivity: 268, certStability: { form: 'halfLife', tempC: 45, halfLifeH: 40 }, status: 'accepted', reason: 'Half-life 40 h at 45 °C meets the 30 h specification' },
-  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2611-02', receivedOn: '2026-11-12', expiresOn: '2027-11-11', quantityKg: 60, certActivity: 259, certStability: { form: 'residual', tempC: 45, minutes: 720, residualFraction: 0.82 } },
+  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2609-01', receivedOn: '2026-09-03', expiresOn: '2027-09-02', quantityKg: 60, certActivity: 268, certStability: { form: 'halfLife', tempC: 45, halfLifeH: 40 }, status: 'accepted', reason: 'Half-life 40 h at 45 °C meets the 30 h specification', qc: { halfLifeH: 43, edKJPerMol: 210, seed: 41 } },
+  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2611-02', receivedOn: '2026-11-12', expiresOn: '2027-11-11', quantityKg: 60, certActivity: 259, certStability: { form: 'residual', tempC: 45, minutes: 720, residualFraction: 0.82 }, qc: { halfLifeH: 34, edKJPerMol: 215, seed: 42, asPercent: true } },
 ];
 
 // Invented recipes on the demo vessels, each with an accepted lot. Ed is an invented demo value inside the
@@ -130,7 +129,44 @@ function demoReadings(program: Parameters<typeof plannedAt>[0], startedAt: strin
   return out;
 }
 
+/**
+ * Invented QC measurements: first-order decay at the specification temperature and 4 and 8 °C above it, sampled
+ * out to about 1.3 half-lives at each, with 5 % multiplicative noise from a seeded generator. Same seed, same rows.
+ */
+export function demoAssayPoints(specTempC: number, qc: { halfLifeH: number; edKJPerMol: number; seed: number }) {
+  const rng = createRng(qc.seed);
+  const kdSpec = Math.LN2 / qc.halfLifeH;
+  const points: { tempC: number; timeH: number; residual: number }[] = [];
+  for (const tempC of [specTempC, specTempC + 4, specTempC + 8]) {
+    const kd = kdSpec * Math.exp(((qc.edKJPerMol * 1000) / R) * (1 / (specTempC + KELVIN_OFFSET) - 1 / (tempC + KELVIN_OFFSET)));
+    const step = (1 / kd) * 0.18;
+    // Round sampling times the way a lab would (to 0.1 h below 5 h, else to 0.5 h).
+    const round = (h: number) => (step < 5 ? Math.round(h * 10) / 10 : Math.round(h * 2) / 2);
+    for (let i = 0; i <= 6; i++) {
+      const timeH = round(i * step);
+      const noise = i === 0 ? 1 : Math.exp(0.05 * rng.normal());
+      points.push({ tempC, timeH, residual: Math.round(Math.exp(-kd * timeH) * noise * 1000) / 1000 });
+    }
+  }
+  return points;
+}
+
+/** The demo points as the CSV a lab would send (per cent when `asPercent`). */
+export function demoAssayCsv(points: { tempC: number; timeH: number; residual: number }[], asPercent = false): string {
+  const head = asPercent ? 'temperature_c,time_h,residual_activity_percent' : 'temperature_c,time_h,residual_activity';
+  return [head, ...points.map((p) => `${p.tempC},${p.timeH},${asPercent ? Math.round(p.residual * 1000) / 10 : p.residual}`)].join('\n') + '\n';
+}
+
 export const DEMO_SITE_NAME = 'Halden Bay Biorefinery';
+
+/** The demo licence: 8 seats (the 5 demo users take 5), monthly, with two paid invoices. Invented. */
+export const DEMO_SEATS = 8;
+const DEMO_SEAT_CENTS = 4900;
+export const demoStripeIds = (siteId: number) => ({ customer: `cus_demo_site${siteId}`, subscription: `sub_demo_site${siteId}`, item: `si_demo_site${siteId}` });
+const DEMO_INVOICES = [
+  { number: 'YP-DEMO-0001', periodStart: '2026-10-01T00:00:00.000Z', periodEnd: '2026-11-01T00:00:00.000Z' },
+  { number: 'YP-DEMO-0002', periodStart: '2026-11-01T00:00:00.000Z', periodEnd: '2026-12-01T00:00:00.000Z' },
+];
 
 /** True when the database has no site yet. */
 export const isEmpty = (db: Db) => (db.select({ n: sql<number>`count(*)` }).from(sites).get()?.n ?? 0) === 0;
@@ -147,7 +183,8 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
     const domain = opts.emailDomain ?? 'haldenbay.test';
     const userIds = new Map<Role, number>();
     DEMO_USERS.forEach((u, i) => {
-      const row = tx.insert(users)
+      const row = tx
+        .insert(users)
         .values({ siteId: site.id, email: u.email.replace('haldenbay.test', domain), name: u.name, role: u.role, passwordHash: hashes[i]! })
         .returning()
         .get();
@@ -165,7 +202,8 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
     for (const e of ENZYMES) enzymeIds.set(e.name, tx.insert(enzymes).values({ ...e, siteId: site.id }).returning().get().id);
     const lotRows = new Map<string, { id: number; enzymeId: number }>();
     for (const l of LOTS) {
-      const row = tx.insert(lots)
+      const lot = tx
+        .insert(lots)
         .values({
           siteId: site.id,
           enzymeId: enzymeIds.get(l.enzyme)!,
@@ -180,10 +218,37 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
           status: l.status ?? 'quarantined',
           decisionReason: l.reason ?? null,
           decidedAt: l.status ? `${l.receivedOn}T12:00:00.000Z` : null,
+          decidedBy: l.status ? userIds.get('procurement')! : null,
         })
         .returning()
         .get();
-      lotRows.set(l.lotCode, row);
+      lotRows.set(l.lotCode, lot);
+      if (!l.qc) continue;
+      const enzyme = ENZYMES.find((e) => e.name === l.enzyme)!;
+      const points = demoAssayPoints(enzyme.specTempC, l.qc);
+      const result = fitAssay(enzyme.tRefC, points.map((p) => ({ c: p.tempC, h: p.timeH, residual: p.residual })));
+      const assay = tx
+        .insert(assays)
+        .values({
+          siteId: site.id,
+          lotId: lot.id,
+          source: 'csv',
+          fileName: `${l.lotCode}-qc.csv`,
+          scale: l.qc.asPercent ? 'percent' : 'fraction',
+          scaleNote: l.qc.asPercent
+            ? 'Residual activity read as per cent: the column header says so.'
+            : 'Residual activity read as fractions of the activity at time 0: every value is 1.5 or below.',
+          fit: result.fit,
+          fitProblem: result.problem,
+          pointCount: points.length,
+          createdBy: userIds.get('engineer')!,
+          createdAt: `${l.receivedOn}T10:00:00.000Z`,
+        })
+        .returning()
+        .get();
+      tx.insert(assayPoints)
+        .values(points.map((p, i) => ({ ...p, assayId: assay.id, line: i + 2, note: null })))
+        .run();
     }
     const recipeRows = new Map<string, typeof recipes.$inferSelect>();
     for (const { lotCode, vessel, ...r } of RECIPES) {
@@ -213,6 +278,38 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
           .run();
       }
     }
+    const ids = demoStripeIds(site.id);
+    tx.insert(subscriptions)
+      .values({
+        siteId: site.id,
+        plan: 'Per seat, billed monthly',
+        seats: DEMO_SEATS,
+        status: 'active',
+        currentPeriodEnd: '2027-01-01T00:00:00.000Z',
+        stripeCustomerId: ids.customer,
+        stripeSubscriptionId: ids.subscription,
+        stripeItemId: ids.item,
+        updatedAt: '2026-12-01T00:00:00.000Z',
+      })
+      .run();
+    DEMO_INVOICES.forEach((inv, i) => {
+      tx.insert(invoices)
+        .values({
+          siteId: site.id,
+          stripeInvoiceId: `in_demo_site${site.id}_${i + 1}`,
+          number: inv.number,
+          status: 'paid',
+          currency: 'eur',
+          amountDueCents: DEMO_SEATS * DEMO_SEAT_CENTS,
+          amountPaidCents: DEMO_SEATS * DEMO_SEAT_CENTS,
+          seats: DEMO_SEATS,
+          periodStart: inv.periodStart,
+          periodEnd: inv.periodEnd,
+          hostedUrl: null,
+          issuedAt: inv.periodStart,
+        })
+        .run();
+    });
     return { siteId: site.id };
   });
 }

@@ -10,19 +10,27 @@ import type { ApiMount } from './route-table';
 import { auditDenials } from './middleware/audit-denials';
 import { authenticate } from './middleware/auth';
 import { requireSameOrigin } from './middleware/csrf';
+import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
 import { batchesRouter } from './routes/batches';
 import { deviationsRouter } from './routes/deviations';
+import { billingRouter, billingWebhook } from './routes/billing';
+import { changeRequestsRouter } from './routes/change-requests';
 import { enzymesRouter } from './routes/enzymes';
+import { invitesRouter } from './routes/invites';
 import { lotsRouter } from './routes/lots';
 import { plansRouter } from './routes/plans';
 import { recipesRouter } from './routes/recipes';
+import { mailOutboxRouter } from './routes/mail-outbox';
 import { sessionRouter } from './routes/session';
 import { siteRouter } from './routes/site';
 import { usersRouter } from './routes/users';
 import { vesselsRouter } from './routes/vessels';
 import type { AuthConfig } from './services/auth';
+import type { Billing } from './services/billing-provider';
+import { createFileStore, type FileStore } from './file-store';
+import os from 'node:os';
 
 export type AppDeps = {
   db: Db;
@@ -32,6 +40,14 @@ export type AppDeps = {
   /** Folder of the exported web app; omitted in API tests. */
   webDir?: string;
   signInLimit?: { perAddress: number; perAccount: number; windowMs: number };
+  /** Base of links in e-mails and of payment return pages. */
+  publicUrl?: string;
+  /** The payment provider; without it the billing screens read local records and payments answer 503. */
+  billing?: Billing;
+  /** Asked to deliver the outbox soon after a write queued mail; the outbox is delivered without it too. */
+  mail?: { kick(): void };
+  /** Where uploaded files (certificates of analysis) live; a fresh temporary folder when omitted (tests). */
+  files?: FileStore;
 };
 
 const DEFAULT_SIGN_IN_LIMIT = { perAddress: 30, perAccount: 10, windowMs: 15 * 60_000 };
@@ -65,12 +81,18 @@ export function createApp(deps: AppDeps): Express {
   );
   app.use(compression());
 
+  const billingCtx = { ...services, billing: deps.billing ?? null, publicUrl: deps.publicUrl ?? 'http://localhost:8080' };
+  const mail = deps.mail ?? null;
+  // Before the API router: the provider's signature covers the raw body, which express.json would consume.
+  app.post('/api/billing/webhook', ...billingWebhook(billingCtx));
+
   const api = express.Router();
   api.use(express.json({ limit: '1mb' }));
   api.use(cookieParser());
   api.use(authenticate({ db: deps.db, clock: deps.clock, auth: deps.auth }));
   api.use(auditDenials(services));
   api.use(requireSameOrigin);
+  api.use(requireWritableSite(services));
   api.use((_req, res, next) => {
     res.set('cache-control', 'no-store');
     next();
@@ -84,12 +106,19 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/site', router: siteRouter(services) },
     { prefix: '/vessels', router: vesselsRouter(services) },
     { prefix: '/enzymes', router: enzymesRouter(services) },
-    { prefix: '/lots', router: lotsRouter(services) },
+    { prefix: '/lots', router: lotsRouter({ ...services, files: deps.files ?? createFileStore(fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-files-'))) }) },
     { prefix: '/recipes', router: recipesRouter(services) },
     { prefix: '/plans', router: plansRouter(services) },
     { prefix: '/batches', router: batchesRouter(services) },
     { prefix: '/deviations', router: deviationsRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
+    {
+      prefix: '/change-requests',
+      router: changeRequestsRouter({ ...services, mail, publicUrl: billingCtx.publicUrl, signLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
+    },
+    { prefix: '/billing', router: billingRouter(billingCtx) },
+    { prefix: '/invites', router: invitesRouter({ ...billingCtx, mail }) },
+    { prefix: '/mail-outbox', router: mailOutboxRouter({ ...services, mail }) },
   ];
   for (const m of mounts) api.use(m.prefix, m.router);
   app.locals.apiMounts = mounts;

@@ -15,7 +15,28 @@ const Env = z.object({
   SEED_DEMO: z.enum(['0', '1']).default('1'),
   LOG_REQUESTS: z.enum(['0', '1']).default('0'),
   API_PORT: z.coerce.number().int().default(8080),
+  // Base of links in e-mails and payment return pages; default http://<host>:<port> of this server.
+  PUBLIC_URL: z.string().url().optional(),
+  // Mail: a real relay when SMTP_HOST is set, else a local sink started with the app (0: any free port).
+  SMTP_HOST: z.string().optional(),
+  SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(587),
+  SMTP_SECURE: z.enum(['0', '1']).default('0'),
+  SMTP_USER: z.string().optional(),
+  SMTP_PASS: z.string().optional(),
+  MAIL_FROM: z.string().default('Yieldpoint <no-reply@yieldpoint.local>'),
+  SMTP_SINK_PORT: z.coerce.number().int().min(0).max(65535).default(0),
+  MAIL_SINK_DIR: z.string().optional(),
+  // Billing: real Stripe when STRIPE_SECRET_KEY is set, else the local fake (0: any free port).
+  STRIPE_SECRET_KEY: z.string().optional(),
+  STRIPE_WEBHOOK_SECRET: z.string().optional(),
+  STRIPE_FAKE_PORT: z.coerce.number().int().min(0).max(65535).default(0),
 });
+
+export type MailEnv =
+  | { mode: 'smtp'; host: string; port: number; secure: boolean; user?: string; pass?: string; from: string }
+  | { mode: 'sink'; sinkPort: number; sinkDir: string; from: string };
+
+export type BillingEnv = { mode: 'stripe'; secretKey: string; webhookSecret: string } | { mode: 'fake'; fakePort: number };
 
 export type ServerEnv = {
   port: number;
@@ -29,6 +50,9 @@ export type ServerEnv = {
   skipWebBuild: boolean;
   seedDemo: boolean;
   apiPort: number;
+  publicUrl: string | null;
+  mail: MailEnv;
+  billing: BillingEnv;
 };
 
 /** Reads and validates the environment once; a bad value stops the process with the variable's name. */
@@ -51,5 +75,16 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): ServerEnv {
     skipWebBuild: e.SKIP_WEB_BUILD === '1',
     seedDemo: e.SEED_DEMO === '1',
     apiPort: e.API_PORT,
+    publicUrl: e.PUBLIC_URL ?? null,
+    mail: e.SMTP_HOST
+      ? { mode: 'smtp', host: e.SMTP_HOST, port: e.SMTP_PORT, secure: e.SMTP_SECURE === '1', user: e.SMTP_USER, pass: e.SMTP_PASS, from: e.MAIL_FROM }
+      : { mode: 'sink', sinkPort: e.SMTP_SINK_PORT, sinkDir: e.MAIL_SINK_DIR ?? path.join(path.dirname(e.DATABASE_FILE), 'mail-sink'), from: e.MAIL_FROM },
+    billing: billingEnv(e.STRIPE_SECRET_KEY, e.STRIPE_WEBHOOK_SECRET, e.STRIPE_FAKE_PORT),
   };
+}
+
+function billingEnv(secretKey: string | undefined, webhookSecret: string | undefined, fakePort: number): BillingEnv {
+  if (!secretKey) return { mode: 'fake', fakePort };
+  if (!webhookSecret) throw new Error('Environment variable STRIPE_WEBHOOK_SECRET: required when STRIPE_SECRET_KEY is set');
+  return { mode: 'stripe', secretKey, webhookSecret };
 }

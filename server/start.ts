@@ -6,7 +6,10 @@ import { DEMO_USERS, isEmpty, seedDemo } from '../db/seed';
 import { createApp } from './app';
 import { systemClock } from './clock';
 import { readEnv } from './env';
+import { startIntegrations } from './integrations';
+import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
+import { createFileStore } from './file-store';
 
 const root = path.resolve(__dirname, '..');
 
@@ -28,17 +31,28 @@ async function main() {
   migrateDb(db);
   const seeded = env.seedDemo && isEmpty(db);
   if (seeded) seedDemo(db);
+  const integrations = await startIntegrations(db, env);
+  const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
+  const publicUrl = env.publicUrl ?? `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
   const app = createApp({
     db,
     clock: systemClock,
     auth: { secret: sessionSecret(env.sessionSecret, env.databaseFile), idleMinutes: env.sessionIdleMinutes, absoluteHours: env.sessionAbsoluteHours },
     cookieSecure: env.cookieSecure,
     webDir: path.resolve(root, env.webDir),
+    publicUrl,
+    billing: integrations.billing,
+    mail,
+    files: createFileStore(path.join(path.dirname(path.resolve(env.databaseFile)), 'files')),
   });
   const server = app.listen(env.port, env.host, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : env.port;
+    integrations.appListening(`http://${env.host === '0.0.0.0' ? '127.0.0.1' : env.host}:${port}`);
+    mail.kick();
     console.log(`\nYieldpoint is running at http://localhost:${port}`);
+    if (integrations.stripeFake) console.log(`Payments: local fake Stripe at ${integrations.stripeFake.url} (test card 4242 4242 4242 4242)`);
+    if (integrations.smtpSink) console.log(`Mail: local sink on 127.0.0.1:${integrations.smtpSink.port}, messages kept in ${path.resolve(env.mail.mode === 'sink' ? env.mail.sinkDir : '')}`);
     console.log(`Database: ${path.resolve(env.databaseFile)}${seeded ? ' (demo site seeded)' : ''}`);
     if (env.seedDemo) {
       console.log('Demo sign-ins:');
@@ -49,8 +63,10 @@ async function main() {
   server.keepAliveTimeout = 65_000;
   const stop = () => {
     server.close(() => {
-      db.$client.close();
-      process.exit(0);
+      void Promise.all([mail.stop(), integrations.close()]).finally(() => {
+        db.$client.close();
+        process.exit(0);
+      });
     });
     setTimeout(() => process.exit(0), 3000);
   };

@@ -12,6 +12,12 @@ const ACTIONS = [
   { value: 'sign-in', label: 'Sign-ins' },
   { value: 'sign-in.failed', label: 'Failed sign-ins' },
   { value: 'user.update', label: 'User changes' },
+  { value: 'change-request.create', label: 'Proposals' },
+  { value: 'signature.create', label: 'Signatures' },
+  { value: 'signature.refused', label: 'Refused signatures' },
+  { value: 'change-request.approve', label: 'Approvals' },
+  { value: 'change-request.reject', label: 'Rejections' },
+  { value: 'recipe.release', label: 'Releases' },
 ] as const;
 
 const summary = (v: unknown) => (v == null ? '' : JSON.stringify(v).slice(0, 120));

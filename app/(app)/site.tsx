@@ -1,19 +1,16 @@
 import { router } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
+import { InviteCard } from '@/components/people/invite-card';
+import { OutboxList } from '@/components/people/outbox-list';
+import { PendingInvites, PeopleList } from '@/components/people/people-list';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
-import { ROLE_LABELS } from '@/contracts/roles';
-import type { User } from '@/contracts/users';
+import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
+import { useInvites } from '@/hooks/use-invites';
+import { useMailOutbox } from '@/hooks/use-mail-outbox';
+import { useSession } from '@/hooks/use-session';
 import { useSite } from '@/hooks/use-site';
 import { useUsers } from '@/hooks/use-users';
 import { space, useBreakpoint } from '@/theme';
-
-const USER_COLUMNS: Column<User>[] = [
-  { key: 'name', label: 'Name', value: (u) => u.name, flex: 1.2 },
-  { key: 'email', label: 'E-mail', value: (u) => u.email, flex: 1.6 },
-  { key: 'role', label: 'Role', value: (u) => ROLE_LABELS[u.role] },
-  { key: 'active', label: 'Status', value: (u) => (u.isActive ? 'Active' : 'Deactivated') },
-];
 
 function Figure({ label, value, testID }: { label: string; value: number; testID: string }) {
   return (
@@ -28,9 +25,40 @@ function Figure({ label, value, testID }: { label: string; value: number; testID
   );
 }
 
+function People() {
+  const users = useUsers();
+  const invites = useInvites();
+  const { session } = useSession();
+  if (users.error) return <ErrorState error={users.error} onRetry={users.retry} />;
+  if (!users.data || !session) return <Loader rows={5} label="Loading people" />;
+  return (
+    <>
+      <PeopleList users={users.data.users} selfId={session.user.id} />
+      <InviteCard />
+      {invites.error ? (
+        <ErrorState error={invites.error} onRetry={invites.retry} />
+      ) : invites.data && invites.data.invites.length > 0 ? (
+        <>
+          <Text variant="title" accessibilityRole="header">
+            Open invites
+          </Text>
+          <PendingInvites invites={invites.data.invites} />
+        </>
+      ) : null}
+    </>
+  );
+}
+
+function Outbox() {
+  const outbox = useMailOutbox();
+  if (outbox.error) return <ErrorState error={outbox.error} onRetry={outbox.retry} />;
+  if (!outbox.data) return <Loader rows={2} label="Loading outgoing mail" />;
+  if (!outbox.data.messages.length) return <EmptyState title="No mail yet" message="Invites and notices sent from this site are listed here with their delivery state." />;
+  return <OutboxList messages={outbox.data.messages} />;
+}
+
 function SiteBody() {
   const site = useSite();
-  const users = useUsers();
   const { isWide } = useBreakpoint();
   if (site.error) return <ErrorState error={site.error} onRetry={site.retry} />;
   if (!site.data) return <Loader rows={2} label="Loading the site" />;
@@ -43,16 +71,20 @@ function SiteBody() {
         <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
-      <Text variant="title" accessibilityRole="header">
-        People
-      </Text>
-      {users.error ? (
-        <ErrorState error={users.error} onRetry={users.retry} />
-      ) : !users.data ? (
-        <Loader rows={5} label="Loading people" />
-      ) : (
-        <DataTable columns={USER_COLUMNS} rows={users.data.users} rowKey={(u) => String(u.id)} caption="People at this site" testID="users-table" />
-      )}
+      <View style={[styles.columns, isWide && styles.columnsWide]}>
+        <View style={styles.column}>
+          <Text variant="title" accessibilityRole="header">
+            People
+          </Text>
+          <People />
+        </View>
+        <View style={styles.column}>
+          <Text variant="title" accessibilityRole="header">
+            Outgoing mail
+          </Text>
+          <Outbox />
+        </View>
+      </View>
     </>
   );
 }
@@ -60,7 +92,10 @@ function SiteBody() {
 function SiteScreenContent() {
   const site = useSite();
   return (
-    <Screen title="Site" subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and licence seats.'} testID="screen-site"
+    <Screen
+      title="Site"
+      subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and outgoing mail.'}
+      testID="screen-site"
       actions={<Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} />}
     >
       <SiteBody />
@@ -80,4 +115,7 @@ const styles = StyleSheet.create({
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
   figuresWide: { flexWrap: 'nowrap' },
   figure: { flexGrow: 1, flexBasis: 140 },
+  columns: { gap: space.lg },
+  columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
+  column: { flex: 1, gap: space.md, minWidth: 0 },
 });

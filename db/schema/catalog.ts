@@ -1,5 +1,5 @@
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { LOT_STATUSES } from '../../src/contracts/lots';
+import { LOT_STATUSES, type CertStability } from '../../src/contracts/lots';
 import { createdAt, sites, users } from './core';
 
 export const vessels = sqliteTable(
@@ -53,7 +53,7 @@ export const lots = sqliteTable(
     quantityKg: real('quantity_kg').notNull(),
     certActivity: real('cert_activity').notNull(),
     // The supplier's stability figure as stated, and the first-order kd at its temperature derived from it.
-    certStability: text('cert_stability', { mode: 'json' }).notNull(),
+    certStability: text('cert_stability', { mode: 'json' }).$type<CertStability>().notNull(),
     certKdPerH: real('cert_kd_per_h').notNull(),
     certTempC: real('cert_temp_c').notNull(),
     status: text('status', { enum: LOT_STATUSES }).notNull().default('quarantined'),

@@ -1,12 +1,39 @@
-import { desc, eq } from 'drizzle-orm';
+import { and, desc, eq } from 'drizzle-orm';
 import type { Db } from '../../db/client';
-import { enzymes, lots } from '../../db/schema';
+import { enzymes, lots, users } from '../../db/schema';
+import type { LotQuery, LotStatus } from '../../src/contracts/lots';
 
-export const listSiteLots = (db: Db, siteId: number) =>
+export type LotRow = typeof lots.$inferSelect;
+export type NewLotRow = Omit<typeof lots.$inferInsert, 'id' | 'createdAt'>;
+
+export const listSiteLots = (db: Db, siteId: number, q: LotQuery = {}) =>
   db
     .select({ lot: lots, enzymeName: enzymes.name })
     .from(lots)
     .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
-    .where(eq(lots.siteId, siteId))
+    .where(
+      and(
+        eq(lots.siteId, siteId),
+        q.status ? eq(lots.status, q.status) : undefined,
+        q.enzymeId ? eq(lots.enzymeId, q.enzymeId) : undefined,
+      ),
+    )
     .orderBy(desc(lots.receivedOn), lots.lotCode)
     .all();
+
+export const findSiteLot = (db: Db, siteId: number, id: number) =>
+  db
+    .select({ lot: lots, enzymeName: enzymes.name, decidedBy: users.name })
+    .from(lots)
+    .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
+    .leftJoin(users, eq(lots.decidedBy, users.id))
+    .where(and(eq(lots.siteId, siteId), eq(lots.id, id)))
+    .get();
+
+export const findLotByCode = (db: Db, enzymeId: number, lotCode: string) =>
+  db.select().from(lots).where(and(eq(lots.enzymeId, enzymeId), eq(lots.lotCode, lotCode))).get();
+
+export const insertLot = (db: Db, row: NewLotRow) => db.insert(lots).values(row).returning().get();
+
+export const setLotDecision = (db: Db, id: number, d: { status: LotStatus; decisionReason: string; decidedBy: number; decidedAt: string }) =>
+  db.update(lots).set(d).where(eq(lots.id, id)).returning().get();

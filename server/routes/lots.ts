@@ -1,11 +1,58 @@
 import { Router } from 'express';
-import { LotList } from '../../src/contracts/lots';
+import { z } from 'zod';
+import { Assay, AssayTableInput, MAX_ASSAY_BYTES } from '../../src/contracts/assays';
+import { CertificateFile, Lot, LOT_DECIDERS, LOT_EDITORS, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
-import { listLots } from '../services/lots';
-import type { Services } from './services';
+import { singleFile } from '../middleware/upload';
+import { ASSAY_TEMPLATE_CSV, readAssayCsv, readAssayTable } from '../services/assay-csv';
+import { addAssay, exportAssayCsv } from '../services/assays';
+import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate, type LotServices } from '../services/lots';
 
-export function lotsRouter(s: Services): Router {
-  return Router().get('/', allow(...ALL_ROLES), (req, res) => {
-    res.json(LotList.parse({ lots: listLots(s, currentUser(req)) }));
+const IdParam = z.object({ id: z.coerce.number().int().positive() });
+const AssayParam = IdParam.extend({ assayId: z.coerce.number().int().positive() });
+
+const attachment = (name: string) => `attachment; filename="${name.replace(/["\\\r\n]/g, '_')}"`;
+
+export function lotsRouter(s: LotServices): Router {
+  const router = Router();
+  router.get('/', allow(...ALL_ROLES), (req, res) => {
+    res.json(LotList.parse({ lots: listLots(s, currentUser(req), LotQuery.parse(req.query)) }));
   });
+  router.post('/', allow(...LOT_EDITORS), (req, res) => {
+    res.status(201).json(Lot.parse(createLot(s, currentUser(req), LotInput.parse(req.body))));
+  });
+  router.get('/assay-template', allow(...ALL_ROLES), (_req, res) => {
+    res.type('text/csv').set('content-disposition', attachment('assay-template.csv')).send(ASSAY_TEMPLATE_CSV);
+  });
+  router.get('/:id', allow(...ALL_ROLES), (req, res) => {
+    res.json(LotDetail.parse(getLot(s, currentUser(req), IdParam.parse(req.params).id)));
+  });
+  router.post('/:id/decision', allow(...LOT_DECIDERS), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    res.json(LotDetail.parse(decideLot(s, currentUser(req), id, LotDecision.parse(req.body))));
+  });
+  router.post('/:id/certificate', allow(...LOT_EDITORS), singleFile('file', MAX_CERTIFICATE_BYTES), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    res.status(201).json(CertificateFile.parse(attachCertificate(s, currentUser(req), id, req.file)));
+  });
+  router.get('/:id/certificate', allow(...ALL_ROLES), (req, res) => {
+    const { file, bytes } = readCertificate(s, currentUser(req), IdParam.parse(req.params).id);
+    res.type(file.mimeType).set({ 'content-disposition': attachment(file.fileName), 'x-sha256': file.sha256 }).send(bytes);
+  });
+  // A CSV file (multipart, field "file") or the editable table's rows (JSON); both are checked the same way.
+  router.post('/:id/assays', allow(...LOT_EDITORS), singleFile('file', MAX_ASSAY_BYTES), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    const user = currentUser(req);
+    const file = req.file;
+    const assay = file
+      ? addAssay(s, user, id, () => readAssayCsv(file.buffer), 'csv', file.originalname.slice(0, 120))
+      : addAssay(s, user, id, () => { const input = AssayTableInput.parse(req.body); return readAssayTable(input.rows, input.scale); }, 'table', null);
+    res.status(201).json(Assay.parse(assay));
+  });
+  router.get('/:id/assays/:assayId/csv', allow(...ALL_ROLES), (req, res) => {
+    const { id, assayId } = AssayParam.parse(req.params);
+    const { fileName, csv } = exportAssayCsv(s, currentUser(req), id, assayId);
+    res.type('text/csv').set('content-disposition', attachment(fileName)).send(csv);
+  });
+  return router;
 }

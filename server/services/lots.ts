@@ -1,7 +1,197 @@
-import type { Lot } from '../../src/contracts/lots';
+import { writeTx, type Db } from '../../db/client';
+import type { Assay } from '../../src/contracts/assays';
+import { MAX_POINTS_SHOWN } from '../../src/contracts/assays';
+import type { CertificateFile, Lot, LotDecision, LotDetail, LotInput, LotQuery } from '../../src/contracts/lots';
 import type { SessionUser } from '../../src/contracts/session';
-import { listSiteLots } from '../repositories/lots';
+import { certConversion, evaluateLot, fitHalfLifeAt } from '../../src/stability';
+import type { FileStore } from '../file-store';
+import { HttpError, notFound } from '../http-error';
+import { listAssayPoints, listLotAssays } from '../repositories/assays';
+import { insertCertificate, latestCertificate } from '../repositories/certificates';
+import { findSiteEnzyme } from '../repositories/enzymes';
+import { findLotByCode, findSiteLot, insertLot, listSiteLots, setLotDecision, type LotRow } from '../repositories/lots';
 import type { Services } from '../routes/services';
+import { appendAudit } from './audit';
 
-export const listLots = ({ db }: Services, u: SessionUser): Lot[] =>
-  listSiteLots(db, u.siteId).map(({ lot, enzymeName }) => ({ ...lot, enzymeName }) as Lot);
+export type LotServices = Services & { files: FileStore };
+
+const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzymeName: string): Lot => ({ ...l, enzymeName });
+
+export const listLots = ({ db }: Services, u: SessionUser, q: LotQuery = {}): Lot[] =>
+  listSiteLots(db, u.siteId, q).map(({ lot, enzymeName }) => toLot(lot, enzymeName));
+
+/** A lot of the caller's site, or 404 (also for another site's id). */
+function siteLot(db: Db, u: SessionUser, id: number) {
+  const found = findSiteLot(db, u.siteId, id);
+  if (!found) throw notFound('Lot');
+  return found;
+}
+
+/**
+ * For plans and batches: the lot if it is accepted, else 409. Only lots that procurement accepted may be used.
+ */
+export function requireUsableLot(db: Db, siteId: number, lotId: number): Lot {
+  const found = findSiteLot(db, siteId, lotId);
+  if (!found) throw notFound('Lot');
+  if (found.lot.status !== 'accepted') {
+    throw new HttpError(409, 'lot_not_accepted', `Lot ${found.lot.lotCode} is ${found.lot.status}; only accepted lots can be used`, { lotId: 'Choose an accepted lot' });
+  }
+  return toLot(found.lot, found.enzymeName);
+}
+
+/** The lots of a site that plans and batches may use. */
+export const listUsableLots = (db: Db, siteId: number): Lot[] =>
+  listSiteLots(db, siteId, { status: 'accepted' }).map(({ lot, enzymeName }) => toLot(lot, enzymeName));
+
+export function listLotAssayViews(db: Db, u: SessionUser, lotId: number, specTempC: number): Assay[] {
+  return listLotAssays(db, u.siteId, lotId).map(({ assay, createdBy }) => ({
+    id: assay.id,
+    lotId: assay.lotId,
+    source: assay.source,
+    fileName: assay.fileName,
+    scale: assay.scale,
+    scaleNote: assay.scaleNote,
+    createdAt: assay.createdAt,
+    createdBy: createdBy ?? 'unknown',
+    fit: assay.fit ?? null,
+    fitProblem: assay.fitProblem,
+    atSpec: assay.fit ? fitHalfLifeAt(assay.fit, specTempC) : null,
+    pointCount: assay.pointCount,
+    points: listAssayPoints(db, assay.id, MAX_POINTS_SHOWN).map(({ id: _i, assayId: _a, ...p }) => p),
+  }));
+}
+
+function certificateView(db: Db, siteId: number, lotId: number): CertificateFile | null {
+  const c = latestCertificate(db, siteId, lotId);
+  if (!c) return null;
+  const { fileName, mimeType, sizeBytes, sha256, uploadedAt } = c.file;
+  return { fileName, mimeType, sizeBytes, sha256, uploadedAt, uploadedBy: c.uploadedBy ?? 'unknown' };
+}
+
+export function getLot({ db }: Services, u: SessionUser, id: number): LotDetail {
+  const { lot, enzymeName, decidedBy } = siteLot(db, u, id);
+  const enzyme = findSiteEnzyme(db, u.siteId, lot.enzymeId)!;
+  const assays = listLotAssayViews(db, u, id, enzyme.specTempC);
+  const fitted = assays.find((a) => a.fit);
+  const { siteId: _s, createdAt: _c, ...e } = enzyme;
+  return {
+    lot: toLot(lot, enzymeName),
+    enzyme: e,
+    conversion: certConversion(lot.certStability),
+    certificate: certificateView(db, u.siteId, id),
+    assays,
+    evaluation: evaluateLot(enzyme, lot, fitted?.fit ?? null),
+    decidedBy: decidedBy ?? null,
+  };
+}
+
+/** Registers an incoming lot; it starts quarantined until procurement decides. */
+export function createLot({ db, clock }: Services, u: SessionUser, input: LotInput): Lot {
+  const enzyme = findSiteEnzyme(db, u.siteId, input.enzymeId);
+  if (!enzyme) throw new HttpError(400, 'invalid_input', 'Some fields are not valid', { enzymeId: 'No such enzyme at this site' });
+  if (findLotByCode(db, enzyme.id, input.lotCode)) {
+    throw new HttpError(409, 'duplicate_lot', 'This lot code is already registered for this enzyme', { lotCode: 'Already registered' });
+  }
+  const conv = certConversion(input.certStability);
+  const now = clock.now();
+  return writeTx(db, (tx) => {
+    const row = insertLot(tx, {
+      siteId: u.siteId,
+      enzymeId: enzyme.id,
+      lotCode: input.lotCode,
+      receivedOn: input.receivedOn,
+      expiresOn: input.expiresOn,
+      quantityKg: input.quantityKg,
+      certActivity: input.certActivity,
+      certStability: input.certStability,
+      certKdPerH: conv.kdPerH,
+      certTempC: conv.tempC,
+      status: 'quarantined',
+    });
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'lot.create', entity: 'lot', entityId: row.id, newValue: { ...input, certKdPerH: conv.kdPerH }, at: now });
+    return toLot(row, enzyme.name);
+  });
+}
+
+/** Procurement's decision on a quarantined lot, with its reason and the evaluation it was shown, audited. */
+export function decideLot(s: Services, u: SessionUser, id: number, d: LotDecision): LotDetail {
+  const { db, clock } = s;
+  const before = getLot(s, u, id);
+  if (before.lot.status !== 'quarantined') {
+    throw new HttpError(409, 'already_decided', `This lot was already ${before.lot.status}`);
+  }
+  const now = clock.now();
+  const status = d.decision === 'accept' ? 'accepted' : 'rejected';
+  writeTx(db, (tx) => {
+    setLotDecision(tx, id, { status, decisionReason: d.reason, decidedBy: u.id, decidedAt: now.toISOString() });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: `lot.${d.decision}`,
+      entity: 'lot',
+      entityId: id,
+      oldValue: { status: before.lot.status },
+      newValue: {
+        status,
+        reason: d.reason,
+        basis: before.evaluation.basis,
+        comparedH: before.evaluation.comparedH,
+        recommendation: before.evaluation.recommendation,
+      },
+      at: now,
+    });
+  });
+  return getLot(s, u, id);
+}
+
+// Magic numbers at the start of each accepted type; the declared type and the name's extension must agree.
+const SIGNATURES: { mime: CertificateFile['mimeType']; bytes: number[]; ext: RegExp; label: string }[] = [
+  { mime: 'application/pdf', bytes: [0x25, 0x50, 0x44, 0x46, 0x2d], ext: /\.pdf$/i, label: 'PDF' },
+  { mime: 'image/png', bytes: [0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a], ext: /\.png$/i, label: 'PNG' },
+  { mime: 'image/jpeg', bytes: [0xff, 0xd8, 0xff], ext: /\.jpe?g$/i, label: 'JPEG' },
+];
+
+export const MAX_CERTIFICATE_BYTES = 10 * 1024 * 1024;
+
+/** The type a file's first bytes show, or null when it is none of PDF, PNG or JPEG. */
+export function sniffCertificateType(bytes: Buffer): CertificateFile['mimeType'] | null {
+  return SIGNATURES.find((s) => s.bytes.every((b, i) => bytes[i] === b))?.mime ?? null;
+}
+
+// A name fit for a Content-Disposition header and a file system: no path, no control characters.
+const safeName = (name: string) =>
+  (name.split(/[\\/]/).pop() ?? 'certificate').replace(/[^\w.\- ()]/g, '_').slice(0, 120) || 'certificate';
+
+export function attachCertificate(s: LotServices, u: SessionUser, id: number, file: { originalname: string; buffer: Buffer } | undefined): CertificateFile {
+  siteLot(s.db, u, id);
+  if (!file) throw new HttpError(400, 'file_missing', 'Attach the certificate as the form field "file"', { file: 'Choose a PDF, PNG or JPEG file' });
+  if (file.buffer.length === 0) throw new HttpError(400, 'file_empty', 'The file is empty', { file: 'The file is empty' });
+  const mime = sniffCertificateType(file.buffer);
+  const byName = SIGNATURES.find((sig) => sig.ext.test(file.originalname));
+  if (!mime) {
+    const named = byName ? ` It is named ${byName.label} but its content is not one.` : '';
+    throw new HttpError(415, 'unsupported_type', `Certificates must be PDF, PNG or JPEG.${named}`, { file: 'Not a PDF, PNG or JPEG file' });
+  }
+  if (!byName || byName.mime !== mime) {
+    const label = SIGNATURES.find((sig) => sig.mime === mime)!.label;
+    throw new HttpError(415, 'type_mismatch', `The file's content is ${label} but its name says otherwise; rename it and try again`, { file: 'Name and content disagree' });
+  }
+  const { sha256 } = s.files.put(file.buffer);
+  const now = s.clock.now();
+  const fileName = safeName(file.originalname);
+  writeTx(s.db, (tx) => {
+    insertCertificate(tx, { siteId: u.siteId, lotId: id, fileName, mimeType: mime, sizeBytes: file.buffer.length, sha256, uploadedBy: u.id, uploadedAt: now.toISOString() });
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'lot.certificate.upload', entity: 'lot', entityId: id, newValue: { fileName, mimeType: mime, sizeBytes: file.buffer.length, sha256 }, at: now });
+  });
+  return certificateView(s.db, u.siteId, id)!;
+}
+
+export function readCertificate(s: LotServices, u: SessionUser, id: number): { file: CertificateFile; bytes: Buffer } {
+  siteLot(s.db, u, id);
+  const file = certificateView(s.db, u.siteId, id);
+  if (!file) throw notFound('Certificate');
+  const bytes = s.files.get(file.sha256);
+  if (!bytes) throw new HttpError(410, 'file_unavailable', 'The stored certificate is missing or no longer matches its SHA-256');
+  return { file, bytes };
+}

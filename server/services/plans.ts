@@ -1,5 +1,5 @@
 import crypto from 'node:crypto';
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import { MODEL_VERSION } from '../../src/model';
 import { computePlanOutputs, planContext } from '../../src/planning';
 import type { Plan, PlanInputs, PlanQuery } from '../../src/contracts/plans';
@@ -63,9 +63,8 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
   const outputs = computePlanOutputs(planContext(recipe, enzyme, toPlanningLot(lot), vessel), inputs);
   const now = clock.now().toISOString();
   const contentHash = planContentHash({ inputs, outputs, modelVersion: MODEL_VERSION });
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    const row = insertPlan(t, {
+  return writeTx(db, (tx) => {
+    const row = insertPlan(tx, {
       siteId: u.siteId,
       recipeId: recipe.id,
       lotId: lot.id,
@@ -85,7 +84,7 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
       constraintsMet: outputs.constraintsMet,
       contentHash,
     });
-    appendAudit(t, {
+    appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -95,7 +94,7 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
       newValue: { recipeId: recipe.id, lotId: lot.id, strategy: outputs.strategy, setpointC: outputs.setpointC, contentHash, modelVersion: MODEL_VERSION },
       at: clock.now(),
     });
-    return toPlan(findSitePlan(t, u.siteId, row.id)!);
+    return toPlan(findSitePlan(tx, u.siteId, row.id)!);
   });
 }
 

@@ -1,4 +1,4 @@
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import type { PlanningLot, Recipe, RecipeDetail, RecipeInput, RecipePatch } from '../../src/contracts/recipes';
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError, notFound } from '../http-error';
@@ -55,16 +55,15 @@ export function createRecipe({ db, clock }: Services, u: SessionUser, input: Rec
   checkSetpoint(siteVessel(db, u.siteId, input.vesselId), input.currentSetpointC);
   assertNameFree(db, u.siteId, input.name);
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    const row = insertRecipe(t, u.siteId, { ...input, enzymeId: lot.enzymeId, updatedAt: now.toISOString() });
-    const out = toRecipe(findSiteRecipe(t, u.siteId, row.id)!);
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.create', entity: 'recipe', entityId: row.id, newValue: input, at: now });
+  return writeTx(db, (tx) => {
+    const row = insertRecipe(tx, u.siteId, { ...input, enzymeId: lot.enzymeId, updatedAt: now.toISOString() });
+    const out = toRecipe(findSiteRecipe(tx, u.siteId, row.id)!);
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.create', entity: 'recipe', entityId: row.id, newValue: input, at: now });
     return out;
   });
 }
 
-/** A partial change; a new lot must be accepted and of the same enzyme, and the setpoint must fit the vessel. */
+/** A partial change; a new lot must be accepted and of the same enzyme, and a new vessel must fit the setpoint. */
 export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number, patch: RecipePatch): Recipe {
   const found = findSiteRecipe(db, u.siteId, id);
   if (!found) throw notFound('Recipe');
@@ -75,15 +74,14 @@ export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number
       throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
   }
   const vessel = siteVessel(db, u.siteId, patch.vesselId ?? before.vesselId);
-  if (patch.vesselId !== undefined || patch.currentSetpointC !== undefined) checkSetpoint(vessel, patch.currentSetpointC ?? before.currentSetpointC);
+  if (patch.vesselId !== undefined) checkSetpoint(vessel, before.currentSetpointC);
   if (patch.name !== undefined) assertNameFree(db, u.siteId, patch.name, id);
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    updateRecipe(t, id, { ...patch, updatedAt: now.toISOString() });
-    const after = toRecipe(findSiteRecipe(t, u.siteId, id)!);
+  return writeTx(db, (tx) => {
+    updateRecipe(tx, id, { ...patch, updatedAt: now.toISOString() });
+    const after = toRecipe(findSiteRecipe(tx, u.siteId, id)!);
     const old = Object.fromEntries(Object.keys(patch).map((k) => [k, before[k as keyof typeof before]]));
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.update', entity: 'recipe', entityId: id, oldValue: old, newValue: patch, at: now });
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.update', entity: 'recipe', entityId: id, oldValue: old, newValue: patch, at: now });
     return after;
   });
 }

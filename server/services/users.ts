@@ -6,6 +6,7 @@ import { HttpError, notFound } from '../http-error';
 import { revokeUserSessions } from '../repositories/sessions';
 import { findSiteUser, listSiteUsers, updateUser, type UserRow } from '../repositories/users';
 import { appendAudit } from './audit';
+import { assertFreeSeat } from './billing';
 
 type Ctx = { db: Db; clock: Clock };
 
@@ -22,7 +23,9 @@ export function changeUser({ db, clock }: Ctx, actor: SessionUser, id: number, p
   }
   const now = clock.now();
   return writeTx(db, (tx) => {
-        const after = updateUser(tx, id, patch);
+    // Reactivating takes a seat like a new user does.
+    if (patch.isActive === true && !before.isActive) assertFreeSeat(tx, actor.siteId, now);
+    const after = updateUser(tx, id, patch);
     if ((patch.role && patch.role !== before.role) || patch.isActive === false) revokeUserSessions(tx, id, now.toISOString());
     appendAudit(tx, {
       siteId: actor.siteId,

@@ -1,6 +1,6 @@
 import type { SessionUser } from '../../src/contracts/session';
 import { VesselInput, type Vessel, type VesselPatch } from '../../src/contracts/vessels';
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import { HttpError, notFound } from '../http-error';
 import { findSiteVessel, findSiteVesselByName, insertVessel, listSiteVessels, updateVessel, type VesselRow } from '../repositories/vessels';
 import type { Services } from '../routes/services';
@@ -18,10 +18,9 @@ function assertNameFree(db: Db, siteId: number, name: string, exceptId?: number)
 export function createVessel({ db, clock }: Services, u: SessionUser, input: VesselInput): Vessel {
   assertNameFree(db, u.siteId, input.name);
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    const row = insertVessel(t, u.siteId, input);
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel.create', entity: 'vessel', entityId: row.id, newValue: toVessel(row), at: now });
+  return writeTx(db, (tx) => {
+    const row = insertVessel(tx, u.siteId, input);
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel.create', entity: 'vessel', entityId: row.id, newValue: toVessel(row), at: now });
     return toVessel(row);
   });
 }
@@ -34,10 +33,9 @@ export function changeVessel({ db, clock }: Services, u: SessionUser, id: number
   const merged = VesselInput.parse({ ...current, ...patch });
   assertNameFree(db, u.siteId, merged.name, id);
   const now = clock.now();
-  return db.transaction((tx) => {
-    const t = tx as unknown as Db;
-    const after = updateVessel(t, id, merged);
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel.update', entity: 'vessel', entityId: id, oldValue: toVessel(before), newValue: toVessel(after), at: now });
+  return writeTx(db, (tx) => {
+    const after = updateVessel(tx, id, merged);
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel.update', entity: 'vessel', entityId: id, oldValue: toVessel(before), newValue: toVessel(after), at: now });
     return toVessel(after);
   });
 }

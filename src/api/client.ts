@@ -22,12 +22,14 @@ type Options = { method?: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'; body?: un
 /** Calls `/api/...`, parses the answer with its contract, and throws ApiError for anything else. */
 export async function api<S extends z.ZodType>(path: string, schema: S | null, opts: Options = {}): Promise<z.infer<S>> {
   let res: Response;
+  const isForm = typeof FormData !== 'undefined' && opts.body instanceof FormData;
   try {
     res = await fetch(`/api${path}`, {
       method: opts.method ?? 'GET',
       credentials: 'same-origin',
-      headers: opts.body === undefined ? CLIENT_HEADERS : { ...CLIENT_HEADERS, 'content-type': opts.contentType ?? 'application/json' },
-      body: opts.body === undefined ? undefined : opts.contentType ? String(opts.body) : JSON.stringify(opts.body),
+      // A FormData body (file upload) sets its own multipart content type and boundary; `contentType` sends a string as it is.
+      headers: opts.body === undefined || isForm ? CLIENT_HEADERS : { ...CLIENT_HEADERS, 'content-type': opts.contentType ?? 'application/json' },
+      body: opts.body === undefined ? undefined : isForm ? (opts.body as FormData) : opts.contentType ? String(opts.body) : JSON.stringify(opts.body),
       signal: opts.signal,
     });
   } catch {

@@ -1,7 +1,7 @@
 import Svg, { Circle, Path, Rect } from 'react-native-svg';
 
 // Yieldpoint's own line icons, drawn on a 24 px grid with a 2 px stroke.
-export type IconName = 'planner' | 'signoffs' | 'lots' | 'batches' | 'site' | 'you' | 'caution';
+export type IconName = 'planner' | 'signoffs' | 'lots' | 'batches' | 'site' | 'billing' | 'you' | 'caution';
 
 type Props = { name: IconName; color: string; size?: number };
 
@@ -32,6 +32,12 @@ export function Icon({ name, color, size = 24 }: Props) {
         <>
           <Path d="M7 3h10M8 3v6l-4 9a2 2 0 0 0 2 3h12a2 2 0 0 0 2-3l-4-9V3" {...stroke} />
           <Path d="M6 15h12" {...stroke} />
+        </>
+      )}
+      {name === 'billing' && (
+        <>
+          <Rect x={3} y={6} width={18} height={13} rx={2} {...stroke} />
+          <Path d="M3 10h18M7 15h4" {...stroke} />
         </>
       )}
       {name === 'site' && (

@@ -1,16 +1,60 @@
 import { z } from 'zod';
+import { Assay, HalfLifeEstimate } from './assays';
+import { Enzyme } from './enzymes';
+
+import type { Role } from './roles';
+
+/** Who keeps the enzyme library, registers lots and uploads certificates and assays; everyone else reads. */
+export const LOT_EDITORS = ['procurement', 'engineer', 'admin'] as const satisfies readonly Role[];
+/** Accepting or rejecting a lot is procurement's call (and the admin's). */
+export const LOT_DECIDERS = ['procurement', 'admin'] as const satisfies readonly Role[];
 
 export const LOT_STATUSES = ['quarantined', 'accepted', 'rejected'] as const;
 export const LotStatus = z.enum(LOT_STATUSES);
 export type LotStatus = z.infer<typeof LotStatus>;
 
+const positive = (what: string) => z.number({ error: 'Enter a number' }).positive(`${what} must be above 0`);
+const certTemp = z.number({ error: 'Enter a number' }).min(-20, 'At least -20 °C').max(150, 'At most 150 °C');
+
 /** The stability figure in the form the supplier's certificate states it. */
 export const CertStability = z.discriminatedUnion('form', [
-  z.object({ form: z.literal('halfLife'), tempC: z.number(), halfLifeH: z.number().positive() }),
-  z.object({ form: z.literal('residual'), tempC: z.number(), minutes: z.number().positive(), residualFraction: z.number().gt(0).lt(1) }),
-  z.object({ form: z.literal('dValue'), tempC: z.number(), dMinutes: z.number().positive(), zC: z.number().positive() }),
+  z.object({ form: z.literal('halfLife'), tempC: certTemp, halfLifeH: positive('Half-life') }),
+  z.object({
+    form: z.literal('residual'),
+    tempC: certTemp,
+    minutes: positive('Hold time'),
+    residualFraction: z.number({ error: 'Enter a number' }).gt(0, 'Above 0').lt(1, 'Below 1 (a fraction, not per cent)'),
+  }),
+  z.object({ form: z.literal('dValue'), tempC: certTemp, dMinutes: positive('D-value'), zC: positive('z-value') }),
 ]);
 export type CertStability = z.infer<typeof CertStability>;
+export type CertForm = CertStability['form'];
+
+const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'A date like 2026-11-28').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'Not a calendar date');
+
+/** What procurement types when a lot arrives. */
+export const LotInput = z
+  .object({
+    enzymeId: z.number().int().positive(),
+    lotCode: z.string().trim().min(1, 'Required').max(40, 'At most 40 characters'),
+    receivedOn: isoDay,
+    expiresOn: isoDay,
+    quantityKg: positive('Quantity'),
+    certActivity: positive('Activity'),
+    certStability: CertStability,
+  })
+  .refine((l) => l.expiresOn > l.receivedOn, { path: ['expiresOn'], message: 'Must be after the received date' });
+export type LotInput = z.infer<typeof LotInput>;
+
+export const CertificateFile = z.object({
+  fileName: z.string(),
+  mimeType: z.enum(['application/pdf', 'image/png', 'image/jpeg']),
+  sizeBytes: z.number().int(),
+  sha256: z.string(),
+  uploadedAt: z.string(),
+  uploadedBy: z.string(),
+});
+export type CertificateFile = z.infer<typeof CertificateFile>;
 
 export const Lot = z.object({
   id: z.number().int(),
@@ -30,5 +74,54 @@ export const Lot = z.object({
 });
 export type Lot = z.infer<typeof Lot>;
 
+export const LotQuery = z.object({
+  status: LotStatus.optional(),
+  enzymeId: z.coerce.number().int().positive().optional(),
+});
+export type LotQuery = z.infer<typeof LotQuery>;
+
 export const LotList = z.object({ lots: z.array(Lot) });
 export type LotList = z.infer<typeof LotList>;
+
+/** The certificate's figure turned into kd at its temperature, with the steps shown to the user. */
+export const CertConversion = z.object({
+  tempC: z.number(),
+  kdPerH: z.number(),
+  halfLifeH: z.number(),
+  /** Inactivation activation energy implied by a z-value, when the certificate gives one. */
+  edKJPerMol: z.number().nullable(),
+  steps: z.array(z.string()),
+});
+export type CertConversion = z.infer<typeof CertConversion>;
+
+/** The figure compared with the specification, and what it suggests. */
+export const LotEvaluation = z.object({
+  basis: z.enum(['assay', 'certificate', 'none']),
+  specTempC: z.number(),
+  specMinHalfLifeH: z.number(),
+  specMinActivity: z.number(),
+  /** The half-life compared with the specification: the lower 95 % bound of the assay fit, else the certificate's. */
+  comparedH: z.number().nullable(),
+  estimate: HalfLifeEstimate.nullable(),
+  isActivityOk: z.boolean(),
+  recommendation: z.enum(['accept', 'reject', 'assay-needed']),
+  summary: z.string(),
+});
+export type LotEvaluation = z.infer<typeof LotEvaluation>;
+
+export const LotDetail = z.object({
+  lot: Lot,
+  enzyme: Enzyme,
+  conversion: CertConversion,
+  certificate: CertificateFile.nullable(),
+  assays: z.array(Assay),
+  evaluation: LotEvaluation,
+  decidedBy: z.string().nullable(),
+});
+export type LotDetail = z.infer<typeof LotDetail>;
+
+export const LotDecision = z.object({
+  decision: z.enum(['accept', 'reject']),
+  reason: z.string().trim().min(5, 'Give a reason of at least 5 characters').max(500, 'At most 500 characters'),
+});
+export type LotDecision = z.infer<typeof LotDecision>;

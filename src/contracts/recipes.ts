@@ -34,7 +34,10 @@ export const RecipeFields = z.object({
 export const RecipeInput = RecipeFields;
 export type RecipeInput = z.infer<typeof RecipeInput>;
 
-export const RecipePatch = RecipeFields.partial().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
+// The current setpoint is the production setpoint: after creation only change control moves it.
+export const RecipePatch = RecipeFields.omit({ currentSetpointC: true })
+  .partial()
+  .refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type RecipePatch = z.infer<typeof RecipePatch>;
 
 export const Recipe = RecipeFields.extend({

@@ -5,6 +5,7 @@ export * from './evaluate';
 export * from './uncertainty';
 export * from './series';
 export * from './reasons';
+export * from './inputs';
 
 import type { PlanInputs, PlanOutputs } from '../contracts/plans';
 import type { PlanContext } from './context';

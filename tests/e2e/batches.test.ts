@@ -2,7 +2,7 @@ import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { plannedAt } from '../../src/batches';
 import type { Batch } from '../../src/contracts/batches';
-import { launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
+import { accessibilityViolations, acknowledgeCautionsIfShown, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
 const baseURL = inject('baseURL');
 const HEADERS = { 'x-yieldpoint-client': 'e2e' };
@@ -11,16 +11,6 @@ beforeAll(async () => {
   browser = await launch();
 });
 afterAll(() => browser?.close());
-
-/** The cautions notice shows once per user; another test file may already have acknowledged it. */
-async function passCautions(page: Page, landing: string) {
-  const button = page.getByTestId('acknowledge-cautions');
-  await Promise.race([button.waitFor({ timeout: 15_000 }), page.getByTestId(landing).waitFor({ timeout: 15_000 })]);
-  if (await button.isVisible()) {
-    await button.click();
-    await button.waitFor({ state: 'detached' });
-  }
-}
 
 /** `YYYY-MM-DD HH:mm` in the browser's own zone, as the time field expects. */
 const localInput = (page: Page, ms: number) =>
@@ -48,7 +38,7 @@ describe('batches on the floor', () => {
     // The supervisor starts a lactose batch four hours ago and the historian fills the first 3.5 h on the plan.
     const sup = await watchedPage(browser, PHONE);
     await signIn(sup.page, baseURL, 'supervisor');
-    await passCautions(sup.page, 'screen-sign-offs');
+    await acknowledgeCautionsIfShown(sup.page, 'screen-sign-offs');
     const recipes = (await (await sup.page.request.get(`${baseURL}/api/recipes`)).json()).recipes as { id: number; name: string; vesselId: number; lotId: number }[];
     const lactose = recipes.find((r) => r.name === 'Lactose-free milk base')!;
     const now = Date.now();
@@ -65,7 +55,7 @@ describe('batches on the floor', () => {
 
     const { page, context, errors } = await watchedPage(browser, PHONE);
     await signIn(page, baseURL, 'operator');
-    await passCautions(page, 'screen-batches');
+    await acknowledgeCautionsIfShown(page, 'screen-batches');
     await page.getByTestId('screen-batches').waitFor();
     await page.getByTestId('my-batches').waitFor();
     await screenshot(page, 'batches-list-390x844');
@@ -101,6 +91,7 @@ describe('batches on the floor', () => {
     await dev.click();
     await expect.poll(() => page.getByTestId(`deviation-state-${devId}`).textContent()).toBe('Acknowledged');
     expect(await smallTargets(page)).toEqual([]);
+    expect(await accessibilityViolations(page)).toEqual([]);
     await page.getByTestId('batch-title').scrollIntoViewIfNeeded();
     await screenshot(page, 'batch-top-390x844');
     await page.getByTestId('deviations').scrollIntoViewIfNeeded();
@@ -136,14 +127,16 @@ describe('batches on the floor', () => {
   it('shows a supervisor the batches with the forecast-vs-measured chart and the start form on a wide screen', async () => {
     const { page, context, errors } = await watchedPage(browser, WIDE);
     await signIn(page, baseURL, 'supervisor');
-    await passCautions(page, 'screen-sign-offs');
+    await acknowledgeCautionsIfShown(page, 'screen-sign-offs');
     await page.goto(`${baseURL}/batches`);
     await page.getByTestId('forecast-accuracy').waitFor();
     expect(await page.getByTestId('forecast-accuracy-sentence').textContent()).toMatch(/Across 3 closed batches/);
     await screenshot(page, 'batches-list-1440x900');
+    expect(await accessibilityViolations(page)).toEqual([]);
     await page.locator('[data-testid="other-batches"] [data-testid^="batch-card-"], [data-testid="my-batches"] [data-testid^="batch-card-"]').first().click();
     await page.getByTestId('batch-temperature-chart').waitFor();
     await screenshot(page, 'batch-1440x900');
+    expect(await accessibilityViolations(page)).toEqual([]);
     await page.getByTestId('batch-report').click();
     await page.getByTestId('batch-report-body').waitFor();
     expect(await page.getByTestId('batch-report-body').textContent()).toMatch(/Planned product.*Deviations \(\d+\).*Readings \(\d+\)/);
@@ -154,6 +147,7 @@ describe('batches on the floor', () => {
     await page.getByTestId('start-source').waitFor();
     expect(await page.getByTestId('start-source').textContent()).toMatch(/No plan has been released|released plan/);
     await screenshot(page, 'batch-start-1440x900');
+    expect(await accessibilityViolations(page)).toEqual([]);
     expect(errors).toEqual([]);
     await context.close();
   });

@@ -51,3 +51,19 @@ export async function acknowledgeCautions(page: Page): Promise<void> {
   await button.click();
   await button.waitFor({ state: 'detached' });
 }
+
+/**
+ * axe-core's WCAG 2.0–2.2 A/AA rules on the page as it stands; returns one line per violation so a failing
+ * test names the rule and the elements.
+ */
+export async function accessibilityViolations(page: Page): Promise<string[]> {
+  const { AxeBuilder } = await import('@axe-core/playwright');
+  const result = await new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa']).analyze();
+  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join('; ')})`);
+}
+
+/** Confirms the cautions notice only if it shows: journeys share one server, and each user confirms it once. */
+export async function acknowledgeCautionsIfShown(page: Page, screenTestId: string): Promise<void> {
+  await page.getByTestId(screenTestId).waitFor();
+  if (await page.getByTestId('acknowledge-cautions').isVisible()) await acknowledgeCautions(page);
+}

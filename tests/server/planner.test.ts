@@ -150,6 +150,21 @@ describe('recipes', () => {
     await engineer.patch(`/api/recipes/${id}`, { lotId: lotIds['CGA-2605-11'], batchH: 48 });
   });
 
+  it('leaves the production setpoint to change control: a PATCH cannot move it, nor a vessel that cannot hold it', async () => {
+    const id = recipeIds['Glucose syrup DE 95']!;
+    const r = await engineer.patch(`/api/recipes/${id}`, { currentSetpointC: 50 });
+    expect(r.status).toBe(400);
+    // With R-204 lowered to 55 °C the recipe's 59 °C no longer fits it.
+    await engineer.patch(`/api/vessels/${vesselIds['R-204 Lactose tank']}`, { maxC: 55, hygienicMinC: 8 });
+    const moved = await engineer.patch(`/api/recipes/${id}`, { vesselId: vesselIds['R-204 Lactose tank'] });
+    await engineer.patch(`/api/vessels/${vesselIds['R-204 Lactose tank']}`, { maxC: 60 });
+    expect(moved.status).toBe(400);
+    expect(moved.body.error.fields.currentSetpointC).toBeDefined();
+    const after = t.db.select().from(recipes).where(eq(recipes.id, id)).get()!;
+    expect(after.currentSetpointC).toBe(59);
+    expect(after.vesselId).toBe(vesselIds['R-101 Saccharifier']);
+  });
+
   it('keeps recipe writes to engineers and admins, and other sites out', async () => {
     const id = recipeIds['Glucose syrup DE 95']!;
     for (const role of ['supervisor', 'operator', 'procurement'] as const) {

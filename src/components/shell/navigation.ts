@@ -11,6 +11,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { name: 'sign-offs', href: '/sign-offs', label: 'Sign-offs', icon: 'signoffs', roles: ['supervisor', 'engineer', 'admin'] },
   { name: 'lots', href: '/lots', label: 'Lots', icon: 'lots', roles: ['procurement', 'engineer', 'supervisor', 'admin'] },
   { name: 'batches', href: '/batches', label: 'Batches', icon: 'batches', roles: ['operator', 'supervisor', 'engineer'] },
+  { name: 'billing', href: '/billing', label: 'Billing', icon: 'billing', roles: ['admin'] },
   { name: 'audit', href: '/audit', label: 'Audit trail', icon: 'signoffs', roles: ['supervisor', 'admin'], inBar: false },
   { name: 'you', href: '/you', label: 'You', icon: 'you', roles: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] },
 ];

@@ -8,7 +8,7 @@ import { Text } from '../ui/text';
 export function TopBar({ siteName }: { siteName: string }) {
   const c = useColors();
   return (
-    <View style={[styles.bar, { backgroundColor: c.navBackground }]} accessibilityRole="header">
+    <View style={[styles.bar, { backgroundColor: c.navBackground }]} accessibilityRole="header" testID="topbar">
       <View style={styles.brand}>
         <Text variant="title" style={{ color: c.navActive }}>
           Yieldpoint

@@ -5,3 +5,6 @@ export { Screen } from './screen';
 export { EmptyState, ErrorState, Loader } from './states';
 export { DataTable, type Column } from './table';
 export { Text } from './text';
+export { Choice } from './choice';
+export { NumberField } from './number-field';
+export { ProgressBar } from './progress-bar';

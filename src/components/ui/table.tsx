@@ -1,23 +1,42 @@
-import { StyleSheet, View } from 'react-native';
+import { Pressable, StyleSheet, View } from 'react-native';
 import { space, useBreakpoint, useColors } from '../../theme';
 import { Text } from './text';
 
 export type Column<T> = { key: string; label: string; value: (row: T) => string; isNumeric?: boolean; flex?: number };
 
-type Props<T> = { columns: Column<T>[]; rows: T[]; rowKey: (row: T) => string; caption: string; testID?: string };
+type Props<T> = {
+  columns: Column<T>[];
+  rows: T[];
+  rowKey: (row: T) => string;
+  caption: string;
+  testID?: string;
+  /** Makes each row a link, e.g. to the record's detail; `rowLabel` names it for screen readers. */
+  onRowPress?: (row: T) => void;
+  rowLabel?: (row: T) => string;
+};
+
+/** A row that opens its record when the table has `onRowPress`; inside a table it keeps the row role (ARIA needs it). */
+function Row({ onPress, label, style, testID, children, role }: { onPress?: () => void; label?: string; style: object[]; testID?: string; children: React.ReactNode; role?: 'row' }) {
+  if (!onPress) return <View role={role} style={style} testID={testID}>{children}</View>;
+  return (
+    <Pressable role={role ?? 'link'} aria-label={label} onPress={onPress} style={({ pressed }) => [...style, pressed && { opacity: 0.7 }]} testID={testID}>
+      {children}
+    </Pressable>
+  );
+}
 
 // Below this width a row becomes a small card of label/value pairs instead of a cramped table row.
 const TABLE_MIN_WIDTH = 640;
 
 /** Rows of records: a table on wide screens, stacked label/value cards on a phone. */
-export function DataTable<T>({ columns, rows, rowKey, caption, testID }: Props<T>) {
+export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPress, rowLabel }: Props<T>) {
   const c = useColors();
   const { width } = useBreakpoint();
   if (width < TABLE_MIN_WIDTH) {
     return (
       <View testID={testID} accessibilityLabel={caption} style={styles.list}>
         {rows.map((row) => (
-          <View key={rowKey(row)} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
+          <Row key={rowKey(row)} onPress={onRowPress && (() => onRowPress(row))} label={rowLabel?.(row)} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
             {columns.map((col, i) => (
               <View key={col.key} style={styles.pair}>
                 <Text variant="small" tone="muted">
@@ -28,7 +47,7 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID }: Props<T
                 </Text>
               </View>
             ))}
-          </View>
+          </Row>
         ))}
       </View>
     );
@@ -45,7 +64,7 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID }: Props<T
         ))}
       </View>
       {rows.map((row) => (
-        <View key={rowKey(row)} role="row" style={[styles.row, { borderColor: c.border }]} testID={testID ? `${testID}-row` : undefined}>
+        <Row key={rowKey(row)} role="row" onPress={onRowPress && (() => onRowPress(row))} label={rowLabel?.(row)} style={[styles.row, { borderColor: c.border }]} testID={testID ? `${testID}-row` : undefined}>
           {columns.map((col) => (
             <View key={col.key} role="cell" style={[styles.cell, { flex: col.flex ?? 1 }]}>
               <Text variant="small" style={col.isNumeric && styles.right}>
@@ -53,7 +72,7 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID }: Props<T
               </Text>
             </View>
           ))}
-        </View>
+        </Row>
       ))}
     </View>
   );

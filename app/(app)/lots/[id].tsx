@@ -1,0 +1,80 @@
+import { router, useLocalSearchParams } from 'expo-router';
+import { StyleSheet, View } from 'react-native';
+import { AssayEntry } from '@/components/lots/assay-entry';
+import { AssayResults } from '@/components/lots/assay-results';
+import { CertificateCard } from '@/components/lots/certificate-card';
+import { DecisionCard } from '@/components/lots/decision-card';
+import { RoleGate } from '@/components/shell/role-gate';
+import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
+import { LOT_DECIDERS, LOT_EDITORS } from '@/contracts/lots';
+import { fmt } from '@/format';
+import { useLot } from '@/hooks/use-lots';
+import { useSession } from '@/hooks/use-session';
+import { space, useBreakpoint } from '@/theme';
+
+const STATUS = { quarantined: 'Quarantined', accepted: 'Accepted', rejected: 'Rejected' } as const;
+
+function LotBody({ id }: { id: number }) {
+  const { session } = useSession();
+  const { isWide } = useBreakpoint();
+  const { data, error, isLoading, retry } = useLot(id);
+  const role = session?.user.role ?? 'operator';
+  if (error) return <ErrorState error={error} onRetry={retry} />;
+  if (isLoading || !data) return <Loader rows={6} label="Loading the lot" />;
+  const { lot, enzyme } = data;
+  const canEdit = (LOT_EDITORS as readonly string[]).includes(role);
+  return (
+    <>
+      <Card>
+        <Text variant="title" testID="lot-title">
+          {lot.lotCode} · {enzyme.name}
+        </Text>
+        <Text tone={lot.status === 'accepted' ? 'success' : lot.status === 'rejected' ? 'danger' : 'warning'} weight="semibold" testID="lot-status">
+          {STATUS[lot.status]}
+        </Text>
+        <Text variant="small" tone="muted">
+          {enzyme.enzymeClass} (EC {enzyme.ecNumber}) from {enzyme.supplier} · received {lot.receivedOn} · expires {lot.expiresOn} · {fmt(lot.quantityKg, 0)} kg
+        </Text>
+      </Card>
+      <View style={[styles.columns, isWide && styles.columnsWide]}>
+        <View style={isWide ? styles.column : styles.stack}>
+          <DecisionCard detail={data} canDecide={(LOT_DECIDERS as readonly string[]).includes(role)} />
+        </View>
+        <View style={isWide ? styles.column : styles.stack}>
+          <CertificateCard lot={lot} conversion={data.conversion} certificate={data.certificate} canEdit={canEdit} />
+        </View>
+      </View>
+      {canEdit ? <AssayEntry lotId={lot.id} /> : null}
+      {data.assays.length ? (
+        data.assays.map((a) => <AssayResults key={a.id} assay={a} specTempC={enzyme.specTempC} />)
+      ) : (
+        <EmptyState title="No assay yet" message="Until QC data are uploaded, the certificate's figure is compared with the specification." />
+      )}
+    </>
+  );
+}
+
+export default function LotScreen() {
+  const { id } = useLocalSearchParams<{ id: string }>();
+  const lotId = Number(id);
+  return (
+    <RoleGate name="lots">
+      <Screen
+        title="Lot"
+        subtitle="Certificate, QC assays and the decision on this lot."
+        testID="screen-lot"
+        actions={<Button label="All lots" variant="ghost" compact onPress={() => (router.canGoBack() ? router.back() : router.replace('/lots'))} />}
+      >
+        {Number.isInteger(lotId) && lotId > 0 ? <LotBody id={lotId} /> : <EmptyState title="No such lot" message="The address does not name a lot." />}
+      </Screen>
+    </RoleGate>
+  );
+}
+
+const styles = StyleSheet.create({
+  columns: { gap: space.lg },
+  columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
+  // flex: 1 only beside another column: in a phone's single column it would collapse the card's height.
+  column: { flex: 1, gap: space.lg },
+  stack: { gap: space.lg },
+});

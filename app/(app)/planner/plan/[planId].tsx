@@ -1,0 +1,30 @@
+import { router, useLocalSearchParams } from 'expo-router';
+import { PlanSheet } from '@/components/planner/plan-sheet';
+import { RoleGate } from '@/components/shell/role-gate';
+import { Button, ErrorState, Loader, Screen } from '@/components/ui';
+import { usePlan } from '@/hooks/use-plans';
+
+function Body({ id }: { id: number | null }) {
+  const { data, error, isLoading, retry } = usePlan(id);
+  if (id === null) return <ErrorState error={new Error('No such plan')} />;
+  if (error) return <ErrorState error={error} onRetry={retry} />;
+  if (isLoading || !data) return <Loader rows={4} label="Loading the plan" />;
+  return <PlanSheet plan={data} />;
+}
+
+export default function PlanScreen() {
+  const { planId } = useLocalSearchParams<{ planId: string }>();
+  const id = Number(planId);
+  return (
+    <RoleGate name="planner">
+      <Screen
+        title="Saved plan"
+        subtitle="Immutable once saved; change control signs exactly this content."
+        testID="screen-plan"
+        actions={id > 0 ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined}
+      >
+        <Body id={Number.isInteger(id) && id > 0 ? id : null} />
+      </Screen>
+    </RoleGate>
+  );
+}

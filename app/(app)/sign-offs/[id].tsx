@@ -1,0 +1,27 @@
+import { useLocalSearchParams } from 'expo-router';
+import { ChangeRequestRecord } from '@/components/change-control/change-request-record';
+import { RoleGate } from '@/components/shell/role-gate';
+import { ErrorState, Loader, Screen } from '@/components/ui';
+import { useChangeRequest } from '@/hooks/use-change-requests';
+import { useSession } from '@/hooks/use-session';
+
+function Body({ id }: { id: number | null }) {
+  const { session } = useSession();
+  const { data, error, isLoading, retry } = useChangeRequest(id);
+  if (id === null) return <ErrorState error={new Error('No such change request')} />;
+  if (error) return <ErrorState error={error} onRetry={retry} />;
+  if (isLoading || !data || !session) return <Loader rows={6} label="Loading the change request" />;
+  return <ChangeRequestRecord detail={data} user={session.user} />;
+}
+
+export default function ChangeRequestScreen() {
+  const { id } = useLocalSearchParams<{ id: string }>();
+  const n = Number(id);
+  return (
+    <RoleGate name="sign-offs">
+      <Screen title="Setpoint change" subtitle="Current against proposed, the reasons, and every signature." testID="screen-change-request">
+        <Body id={Number.isInteger(n) && n > 0 ? n : null} />
+      </Screen>
+    </RoleGate>
+  );
+}

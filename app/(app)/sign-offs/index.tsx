@@ -1,0 +1,65 @@
+import { router } from 'expo-router';
+import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { ChangeRequestList } from '@/components/change-control/change-request-list';
+import { RoleGate } from '@/components/shell/role-gate';
+import { Button, Choice, EmptyState, ErrorState, Loader, Screen } from '@/components/ui';
+import type { ChangeStatus } from '@/contracts/change-requests';
+import { useChangeRequests } from '@/hooks/use-change-requests';
+import { useSession } from '@/hooks/use-session';
+import { space } from '@/theme';
+
+type Filter = ChangeStatus | 'all';
+const FILTERS: { value: Filter; label: string }[] = [
+  { value: 'proposed', label: 'Waiting' },
+  { value: 'approved', label: 'Approved' },
+  { value: 'rejected', label: 'Rejected' },
+  { value: 'all', label: 'All' },
+];
+
+function Body() {
+  const [filter, setFilter] = useState<Filter>('proposed');
+  const { data, error, isLoading, retry } = useChangeRequests(filter === 'all' ? undefined : filter);
+  return (
+    <>
+      <Choice label="Show" value={filter} options={FILTERS} onChange={setFilter} testID="sign-offs-filter" />
+      {error ? (
+        <ErrorState error={error} onRetry={retry} />
+      ) : isLoading || !data ? (
+        <Loader rows={3} label="Loading change requests" />
+      ) : !data.changeRequests.length ? (
+        <EmptyState
+          title={filter === 'proposed' ? 'Nothing waiting for sign-off' : 'No change requests here'}
+          message="When an engineer proposes a saved plan as a setpoint change, it appears here with the current and proposed setpoints side by side."
+        />
+      ) : (
+        <ChangeRequestList items={data.changeRequests} />
+      )}
+    </>
+  );
+}
+
+export default function SignOffsScreen() {
+  const { session } = useSession();
+  const role = session?.user.role;
+  const canAudit = role === 'supervisor' || role === 'admin';
+  return (
+    <RoleGate name="sign-offs">
+      <Screen
+        title="Sign-offs"
+        subtitle="Proposed setpoint changes, their review and electronic signatures."
+        testID="screen-sign-offs"
+        actions={
+          <View style={styles.actions}>
+            {role === 'engineer' || role === 'supervisor' ? <Button label="Propose from a plan" variant="secondary" testID="open-planner" onPress={() => router.navigate('/planner')} /> : null}
+            {canAudit ? <Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} /> : null}
+          </View>
+        }
+      >
+        <Body />
+      </Screen>
+    </RoleGate>
+  );
+}
+
+const styles = StyleSheet.create({ actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm } });

@@ -1,0 +1,29 @@
+import { useLocalSearchParams } from 'expo-router';
+import { ProposeForm } from '@/components/change-control/propose-form';
+import { RoleGate } from '@/components/shell/role-gate';
+import { EmptyState, ErrorState, Loader, Screen } from '@/components/ui';
+import { usePlan } from '@/hooks/use-plans';
+import { useSession } from '@/hooks/use-session';
+
+function Body({ planId }: { planId: number | null }) {
+  const { session } = useSession();
+  const { data, error, isLoading, retry } = usePlan(planId);
+  if (planId === null) return <EmptyState title="Choose a plan first" message="Open a saved plan in the planner and propose it from there." />;
+  if (error) return <ErrorState error={error} onRetry={retry} />;
+  if (isLoading || !data || !session) return <Loader rows={4} label="Loading the plan" />;
+  if (session.user.role !== 'engineer' && session.user.role !== 'supervisor')
+    return <EmptyState title="Not part of your role" message="Engineers and supervisors propose setpoint changes." />;
+  return <ProposeForm plan={data} timeZone={session.user.siteTimeZone} />;
+}
+
+export default function ProposeChangeScreen() {
+  const { planId } = useLocalSearchParams<{ planId?: string }>();
+  const n = Number(planId);
+  return (
+    <RoleGate name="sign-offs">
+      <Screen title="Propose a setpoint change" subtitle="The saved plan goes to the site’s supervisors for review and electronic signature." testID="screen-propose-change">
+        <Body planId={Number.isInteger(n) && n > 0 ? n : null} />
+      </Screen>
+    </RoleGate>
+  );
+}

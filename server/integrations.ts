@@ -1,0 +1,79 @@
+import type { Db } from '../db/client';
+import type { BillingEnv, MailEnv } from './env';
+import { startSmtpSink, type SmtpSink } from './fakes/smtp-sink';
+import { FAKE_API_KEY, startStripeFake, type StripeFake } from './fakes/stripe-fake';
+import { listLinkedSubscriptions } from './repositories/billing';
+import { findSite } from './repositories/sites';
+import { createBilling, stripeClient, type Billing } from './services/billing-provider';
+import { smtpTransport, type MailTransport } from './services/mail';
+
+/** The local fake's webhook secret; real Stripe's comes from STRIPE_WEBHOOK_SECRET. */
+export const FAKE_WEBHOOK_SECRET = 'whsec_yieldpoint_local_fake_secret';
+
+export type Integrations = {
+  billing: Billing;
+  mailTransport: MailTransport;
+  mailFrom: string;
+  stripeFake: StripeFake | null;
+  smtpSink: SmtpSink | null;
+  /** Tells the fake where the app listens (real Stripe is configured in its dashboard instead). */
+  appListening(appUrl: string): void;
+  close(): Promise<void>;
+};
+
+/**
+ * Payment provider and mail relay from the configuration, or the local fakes (loopback only) when none is
+ * configured. With the fake, subscriptions the database already holds (the demo seed) are handed to it.
+ */
+export async function startIntegrations(db: Db, cfg: { billing: BillingEnv; mail: MailEnv }): Promise<Integrations> {
+  let stripeFake: StripeFake | null = null;
+  let billing: Billing;
+  if (cfg.billing.mode === 'stripe') {
+    billing = createBilling(stripeClient(cfg.billing.secretKey), cfg.billing.webhookSecret);
+  } else {
+    stripeFake = await startStripeFake({ port: cfg.billing.fakePort, webhookSecret: FAKE_WEBHOOK_SECRET });
+    billing = createBilling(stripeClient(FAKE_API_KEY, { host: '127.0.0.1', port: stripeFake.port, protocol: 'http' }), FAKE_WEBHOOK_SECRET);
+    await handOverToFake(db, stripeFake, billing);
+  }
+  let smtpSink: SmtpSink | null = null;
+  let mailTransport: MailTransport;
+  if (cfg.mail.mode === 'smtp') {
+    mailTransport = smtpTransport(cfg.mail);
+  } else {
+    smtpSink = await startSmtpSink({ port: cfg.mail.sinkPort, dir: cfg.mail.sinkDir });
+    mailTransport = smtpTransport({ host: '127.0.0.1', port: smtpSink.port, secure: false });
+  }
+  return {
+    billing,
+    mailTransport,
+    mailFrom: cfg.mail.from,
+    stripeFake,
+    smtpSink,
+    appListening: (appUrl) => stripeFake?.setWebhookUrl(`${appUrl}/api/billing/webhook`),
+    close: async () => {
+      await stripeFake?.close();
+      await smtpSink?.close();
+    },
+  };
+}
+
+/** Gives the fake the customers and subscriptions the database refers to, so they can be changed there. */
+export async function handOverToFake(db: Db, fake: StripeFake, billing: Billing): Promise<void> {
+  const rows = listLinkedSubscriptions(db);
+  if (!rows.length) return;
+  const price = await billing.seatPrice();
+  for (const r of rows) {
+    if (r.status === 'none') continue;
+    fake.adopt({
+      customerId: r.stripeCustomerId!,
+      customerName: findSite(db, r.siteId)?.name ?? `Site ${r.siteId}`,
+      subscriptionId: r.stripeSubscriptionId!,
+      itemId: r.stripeItemId ?? `si_${r.siteId}`,
+      priceId: price.priceId,
+      quantity: Math.max(1, r.seats),
+      status: r.status,
+      metadata: { siteId: String(r.siteId) },
+    });
+  }
+}
+

@@ -1,0 +1,47 @@
+import { and, desc, eq } from 'drizzle-orm';
+import type { Db } from '../../db/client';
+import { changeRequests, plans, recipes, signatures, users, vessels } from '../../db/schema';
+import type { ChangeStatus, SetpointSide } from '../../src/contracts/change-requests';
+
+export type ChangeRequestRow = typeof changeRequests.$inferSelect;
+export type SignatureRow = typeof signatures.$inferSelect;
+
+const joined = (db: Db) =>
+  db
+    .select({ request: changeRequests, recipeName: recipes.name, vesselName: vessels.name, proposedBy: users.name, proposedSetpointC: plans.setpointC })
+    .from(changeRequests)
+    .innerJoin(recipes, eq(changeRequests.recipeId, recipes.id))
+    .innerJoin(vessels, eq(recipes.vesselId, vessels.id))
+    .innerJoin(users, eq(changeRequests.proposedBy, users.id))
+    .innerJoin(plans, eq(changeRequests.planId, plans.id));
+
+export type ChangeRequestJoined = NonNullable<ReturnType<typeof findSiteChangeRequest>>;
+
+export const findSiteChangeRequest = (db: Db, siteId: number, id: number) =>
+  joined(db).where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.id, id))).get();
+
+export const listSiteChangeRequests = (db: Db, siteId: number, status?: ChangeStatus) =>
+  joined(db)
+    .where(status ? and(eq(changeRequests.siteId, siteId), eq(changeRequests.status, status)) : eq(changeRequests.siteId, siteId))
+    .orderBy(desc(changeRequests.id))
+    .limit(200)
+    .all();
+
+export const insertChangeRequest = (db: Db, row: Omit<typeof changeRequests.$inferInsert, 'id'>) =>
+  db.insert(changeRequests).values(row).returning().get();
+
+export const decideChangeRequest = (db: Db, id: number, status: ChangeStatus, decidedAt: string, replaced: SetpointSide) =>
+  db.update(changeRequests).set({ status, decidedAt, replaced }).where(eq(changeRequests.id, id)).returning().get();
+
+// Insert only: a signature is never edited or removed.
+export const insertSignature = (db: Db, row: Omit<typeof signatures.$inferInsert, 'id'>) => db.insert(signatures).values(row).returning().get();
+
+export const listSignatures = (db: Db, changeRequestId: number) =>
+  db.select().from(signatures).where(eq(signatures.changeRequestId, changeRequestId)).orderBy(signatures.id).all();
+
+export const listActiveSupervisors = (db: Db, siteId: number) =>
+  db
+    .select()
+    .from(users)
+    .where(and(eq(users.siteId, siteId), eq(users.role, 'supervisor'), eq(users.isActive, true)))
+    .all();

@@ -1,0 +1,39 @@
+import express, { Router, type RequestHandler } from 'express';
+import { BillingSummary, BuySeats, ChangeSeats, CheckoutStarted, InvoiceList } from '../../src/contracts/billing';
+import { allow, currentUser } from '../middleware/auth';
+import { billingSummary, changeSeats, siteInvoices, startCheckout, type BillingContext } from '../services/billing';
+import { handleStripeEvent } from '../services/billing-webhooks';
+
+export function billingRouter(ctx: BillingContext): Router {
+  const router = Router();
+  router.get('/', allow('admin'), (req, res) => {
+    res.json(BillingSummary.parse(billingSummary(ctx, currentUser(req))));
+  });
+  router.get('/invoices', allow('admin'), (req, res) => {
+    res.json(InvoiceList.parse(siteInvoices(ctx, currentUser(req))));
+  });
+  router.post('/checkout', allow('admin'), async (req, res) => {
+    const body = BuySeats.parse(req.body);
+    res.status(201).json(CheckoutStarted.parse(await startCheckout(ctx, currentUser(req), body)));
+  });
+  router.patch('/seats', allow('admin'), async (req, res) => {
+    const body = ChangeSeats.parse(req.body);
+    res.json(BillingSummary.parse(await changeSeats(ctx, currentUser(req), body)));
+  });
+  return router;
+}
+
+/**
+ * POST /api/billing/webhook, mounted before the API's JSON parser: the signature covers the raw bytes.
+ * No session and no client header: the payment provider calls it, and the signature is the proof.
+ */
+export function billingWebhook(ctx: BillingContext): RequestHandler[] {
+  return [
+    express.raw({ type: '*/*', limit: '512kb' }),
+    async (req, res) => {
+      const raw = Buffer.isBuffer(req.body) ? req.body : Buffer.alloc(0);
+      const out = await handleStripeEvent(ctx, raw, req.get('stripe-signature'));
+      res.json({ received: true, duplicate: out.duplicate });
+    },
+  ];
+}

@@ -1,0 +1,29 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { AcceptInvite, CreateInvite, Invite, InviteAccepted, InviteList, InvitePreview, InviteToken } from '../../src/contracts/invites';
+import { allow, currentUser, open } from '../middleware/auth';
+import { acceptInvite, createInvite, listInvites, previewInvite, revokeInvite, type InviteContext } from '../services/invites';
+
+const IdParam = z.object({ id: z.coerce.number().int().positive() });
+
+export function invitesRouter(ctx: InviteContext): Router {
+  const router = Router();
+  router.get('/', allow('admin'), (req, res) => {
+    res.json(InviteList.parse(listInvites(ctx, currentUser(req))));
+  });
+  router.post('/', allow('admin'), (req, res) => {
+    res.status(201).json(Invite.parse(createInvite(ctx, currentUser(req), CreateInvite.parse(req.body))));
+  });
+  router.delete('/:id', allow('admin'), (req, res) => {
+    revokeInvite(ctx, currentUser(req), IdParam.parse(req.params).id);
+    res.status(204).end();
+  });
+  // Open: the invited person has no account yet; the link's token (in the body, kept out of logs) is the key.
+  router.post('/preview', open, (req, res) => {
+    res.json(InvitePreview.parse(previewInvite(ctx, InviteToken.parse(req.body).token)));
+  });
+  router.post('/accept', open, async (req, res) => {
+    res.status(201).json(InviteAccepted.parse(await acceptInvite(ctx, AcceptInvite.parse(req.body))));
+  });
+  return router;
+}

@@ -1,0 +1,21 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { Outbox, OutboxMessage } from '../../src/contracts/mail';
+import { allow, currentUser } from '../middleware/auth';
+import { retryMail, siteOutbox } from '../services/mail';
+import type { Services } from './services';
+
+const IdParam = z.object({ id: z.coerce.number().int().positive() });
+
+export function mailOutboxRouter(s: Services & { mail: { kick(): void } | null }): Router {
+  const router = Router();
+  router.get('/', allow('admin'), (req, res) => {
+    res.json(Outbox.parse(siteOutbox(s.db, currentUser(req))));
+  });
+  router.post('/:id/retry', allow('admin'), (req, res) => {
+    const message = retryMail(s.db, s.clock, currentUser(req), IdParam.parse(req.params).id);
+    s.mail?.kick();
+    res.json(OutboxMessage.parse(message));
+  });
+  return router;
+}

@@ -1,0 +1,100 @@
+import crypto from 'node:crypto';
+import { writeTx, type Db } from '../../db/client';
+import type { AcceptInvite, CreateInvite, Invite, InviteAccepted, InvitePreview, InviteList } from '../../src/contracts/invites';
+import { ROLE_LABELS } from '../../src/contracts/roles';
+import type { SessionUser } from '../../src/contracts/session';
+import type { Clock } from '../clock';
+import { HttpError, notFound } from '../http-error';
+import { findInviteByTokenHash, findOpenInviteByEmail, findSiteInvite, insertInvite, listOpenInvites, updateInvite, type InviteRow } from '../repositories/billing';
+import { findSite } from '../repositories/sites';
+import { findUserByEmail, insertUser } from '../repositories/users';
+import { appendAudit } from './audit';
+import { hashPassword } from './auth';
+import { assertFreeSeat, assertWritable } from './billing';
+import { enqueueMail } from './mail';
+
+export type InviteContext = { db: Db; clock: Clock; publicUrl: string; mail: { kick(): void } | null };
+
+export const INVITE_DAYS = 7;
+
+const hashToken = (token: string) => crypto.createHash('sha256').update(token).digest('hex');
+const toInvite = (r: InviteRow): Invite => ({ id: r.id, email: r.email, role: r.role, createdAt: r.createdAt, expiresAt: r.expiresAt });
+
+export const listInvites = ({ db, clock }: InviteContext, actor: SessionUser): InviteList => ({ invites: listOpenInvites(db, actor.siteId, clock.now().toISOString()).map(toInvite) });
+
+/** Reserves a seat for the invited address and mails them a one-time link (through the outbox). */
+export function createInvite(ctx: InviteContext, actor: SessionUser, req: CreateInvite): Invite {
+  const now = ctx.clock.now();
+  if (findUserByEmail(ctx.db, req.email)) throw new HttpError(409, 'email_taken', 'Someone already signs in with this e-mail', { email: 'Already a Yieldpoint user' });
+  if (findOpenInviteByEmail(ctx.db, req.email, now.toISOString())) throw new HttpError(409, 'already_invited', 'This address already has an open invite', { email: 'Already invited' });
+  const site = findSite(ctx.db, actor.siteId);
+  if (!site) throw notFound('Site');
+  const token = crypto.randomBytes(32).toString('base64url');
+  const expiresAt = new Date(now.getTime() + INVITE_DAYS * 86_400_000);
+  const link = `${ctx.publicUrl}/accept-invite?token=${token}`;
+  const invite = writeTx(ctx.db, (tx) => {
+    // Checked inside the transaction: two invites racing for the last seat cannot both take it.
+    assertFreeSeat(tx, actor.siteId, now);
+    const row = insertInvite(tx, { siteId: actor.siteId, email: req.email, role: req.role, tokenHash: hashToken(token), invitedBy: actor.id, expiresAt: expiresAt.toISOString(), createdAt: now.toISOString() });
+    enqueueMail(tx, {
+      siteId: actor.siteId,
+      to: req.email,
+      kind: 'invite',
+      subject: `${actor.name} invited you to Yieldpoint at ${site.name}`,
+      text: [
+        `${actor.name} invited you to use Yieldpoint at ${site.name} as ${ROLE_LABELS[req.role]}.`,
+        '',
+        `Choose your password here (the link works once, until ${expiresAt.toISOString().slice(0, 16).replace('T', ' ')} UTC):`,
+        link,
+        '',
+        'If you did not expect this, ignore this message.',
+      ].join('\n'),
+      at: now,
+    });
+    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.create', entity: 'invite', entityId: row.id, newValue: { email: req.email, role: req.role, expiresAt: row.expiresAt }, at: now });
+    return row;
+  });
+  ctx.mail?.kick();
+  return toInvite(invite);
+}
+
+export function revokeInvite({ db, clock }: InviteContext, actor: SessionUser, id: number): void {
+  const row = findSiteInvite(db, actor.siteId, id);
+  if (!row || row.acceptedAt || row.revokedAt) throw notFound('Invite');
+  const now = clock.now();
+  writeTx(db, (tx) => {
+    updateInvite(tx, id, { revokedAt: now.toISOString() });
+    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.revoke', entity: 'invite', entityId: id, oldValue: { email: row.email, role: row.role }, at: now });
+  });
+}
+
+function openInvite(db: Db, token: string, now: Date): InviteRow {
+  const row = findInviteByTokenHash(db, hashToken(token));
+  if (!row || row.revokedAt) throw new HttpError(404, 'invite_not_found', 'This invite link is not valid. Ask your site admin for a new one.');
+  if (row.acceptedAt) throw new HttpError(410, 'invite_used', 'This invite was already used. Sign in with your e-mail and password.');
+  if (new Date(row.expiresAt) <= now) throw new HttpError(410, 'invite_expired', 'This invite has expired. Ask your site admin for a new one.');
+  return row;
+}
+
+export function previewInvite({ db, clock }: InviteContext, token: string): InvitePreview {
+  const row = openInvite(db, token, clock.now());
+  return { email: row.email, role: row.role, siteName: findSite(db, row.siteId)?.name ?? '', expiresAt: row.expiresAt };
+}
+
+/** Creates the invited user with the password they chose; they then sign in as anyone does. */
+export async function acceptInvite({ db, clock }: InviteContext, req: AcceptInvite): Promise<InviteAccepted> {
+  const first = openInvite(db, req.token, clock.now());
+  const passwordHash = await hashPassword(req.password);
+  const now = clock.now();
+  return writeTx(db, (tx) => {
+    // Read again after the slow hash: a second submit of the same link may have won meanwhile.
+    const row = openInvite(tx, req.token, now);
+    if (row.id !== first.id) throw new HttpError(409, 'invite_changed', 'This invite changed; open the link again');
+    assertWritable(tx, row.siteId, now);
+    if (findUserByEmail(tx, row.email)) throw new HttpError(409, 'email_taken', 'Someone already signs in with this e-mail');
+    const user = insertUser(tx, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
+    updateInvite(tx, row.id, { acceptedAt: now.toISOString(), userId: user.id });
+    appendAudit(tx, { siteId: row.siteId, userId: user.id, actor: row.email, action: 'invite.accept', entity: 'user', entityId: user.id, newValue: { email: row.email, role: row.role, name: req.name, invite: row.id }, at: now });
+    return { email: user.email };
+  });
+}

@@ -1,0 +1,110 @@
+import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import Svg, { Circle, G, Line, Path, Text as SvgText } from 'react-native-svg';
+import { font, radius, space, useColors, type Palette } from '../../theme';
+import { Text } from '../ui/text';
+import { lineChartGeometry, type BandSeries, type LineSeries, type MarkerSpec } from './line-chart-geometry';
+
+export type ChartTone = 'primary' | 'accent' | 'third' | 'fourth';
+
+const toneColor = (c: Palette, t: ChartTone) => ({ primary: c.chartLine, accent: c.chartLineAlt, third: c.success, fourth: c.warning })[t];
+
+type Props = {
+  title: string;
+  /** The chart's text equivalent: a sentence with the key numbers, shown under it and read by screen readers. */
+  summary: string;
+  series: (LineSeries & { tone: ChartTone; label: string; dashed?: boolean })[];
+  bands?: (BandSeries & { tone: ChartTone; label: string })[];
+  markers?: (MarkerSpec & { tone: ChartTone })[];
+  xLabel: string;
+  yLabel: string;
+  yFromZero?: boolean;
+  formatX?: (v: number) => string;
+  formatY?: (v: number) => string;
+  height?: number;
+  testID: string;
+};
+
+const AXIS_FONT = 11;
+
+/** A thin SVG renderer of lineChartGeometry, with a legend and its sentence equivalent. */
+export function LineChart({ title, summary, series, bands = [], markers = [], xLabel, yLabel, yFromZero, formatX, formatY, height = 220, testID }: Props) {
+  const c = useColors();
+  const [width, setWidth] = useState(0);
+  const g = width > 0 ? lineChartGeometry({ width, height, series, bands, markers, yFromZero, formatX, formatY }) : null;
+  const bottom = g ? g.plot.top + g.plot.height : 0;
+  return (
+    <View style={styles.wrap} testID={testID}>
+      <Text weight="semibold">{title}</Text>
+      <View onLayout={(e) => setWidth(Math.floor(e.nativeEvent.layout.width))} style={{ height }}>
+        {g ? (
+          <Svg width={width} height={height} accessibilityLabel={`${title}. ${summary}`} role="img">
+            {g.yTicks.map((t) => (
+              <G key={`y${t.value}`}>
+                <Line x1={g.plot.left} x2={g.plot.left + g.plot.width} y1={t.pos} y2={t.pos} stroke={c.chartGrid} strokeWidth={1} />
+                <SvgText x={g.plot.left - 6} y={t.pos + 4} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
+                  {t.label}
+                </SvgText>
+              </G>
+            ))}
+            {g.xTicks.map((t) => (
+              <SvgText key={`x${t.value}`} x={t.pos} y={bottom + 16} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="middle" fontFamily={font.regular}>
+                {t.label}
+              </SvgText>
+            ))}
+            <SvgText x={g.plot.left + g.plot.width} y={bottom + 28} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
+              {xLabel}
+            </SvgText>
+            <SvgText x={4} y={AXIS_FONT + 2} fontSize={AXIS_FONT} fill={c.textMuted} fontFamily={font.regular}>
+              {yLabel}
+            </SvgText>
+            {g.bands.map((b, i) => (
+              <Path key={b.id} d={b.d} fill={toneColor(c, bands[i]!.tone)} fillOpacity={0.18} stroke="none" />
+            ))}
+            {g.lines.map((l, i) => (
+              <Path key={l.id} d={l.d} fill="none" stroke={toneColor(c, series[i]!.tone)} strokeWidth={2.5} strokeDasharray={series[i]!.dashed ? '6 4' : undefined} />
+            ))}
+            {g.markers.map((m, i) => {
+              const color = toneColor(c, markers[i]!.tone);
+              return (
+                <G key={m.id}>
+                  <Line x1={m.cx} x2={m.cx} y1={m.cy} y2={bottom} stroke={color} strokeWidth={1} strokeDasharray="3 3" />
+                  <Circle cx={m.cx} cy={m.cy} r={5} fill={color} stroke={c.surface} strokeWidth={2} />
+                </G>
+              );
+            })}
+          </Svg>
+        ) : null}
+      </View>
+      <View style={styles.legend}>
+        {[...series, ...bands].map((s) => (
+          <View key={s.id} style={styles.legendItem}>
+            <View style={[styles.swatch, { backgroundColor: toneColor(c, s.tone) }]} />
+            <Text variant="caption" tone="muted">
+              {s.label}
+            </Text>
+          </View>
+        ))}
+        {markers.map((m) => (
+          <View key={m.id} style={styles.legendItem}>
+            <View style={[styles.dot, { backgroundColor: toneColor(c, m.tone) }]} />
+            <Text variant="caption" weight="semibold" style={{ color: toneColor(c, m.tone) }}>
+              {m.label}
+            </Text>
+          </View>
+        ))}
+      </View>
+      <Text variant="small" tone="muted" testID={`${testID}-summary`}>
+        {summary}
+      </Text>
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  wrap: { gap: space.xs },
+  legend: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
+  legendItem: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
+  swatch: { width: space.md, height: space.xs, borderRadius: space.xxs },
+  dot: { width: space.sm + space.xxs, height: space.sm + space.xxs, borderRadius: radius.pill },
+});

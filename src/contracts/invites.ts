@@ -1,0 +1,39 @@
+import { z } from 'zod';
+import { Role } from './roles';
+import { SignInRequest } from './session';
+
+export const CreateInvite = z.object({
+  email: SignInRequest.shape.email,
+  role: Role,
+});
+export type CreateInvite = z.infer<typeof CreateInvite>;
+
+export const Invite = z.object({
+  id: z.number().int(),
+  email: z.string(),
+  role: Role,
+  createdAt: z.string(),
+  expiresAt: z.string(),
+});
+export type Invite = z.infer<typeof Invite>;
+
+export const InviteList = z.object({ invites: z.array(Invite) });
+export type InviteList = z.infer<typeof InviteList>;
+
+export const InviteToken = z.object({ token: z.string().min(20, 'This invite link is not complete').max(200) });
+export type InviteToken = z.infer<typeof InviteToken>;
+
+/** What the set-password page shows before the invited person chooses a password. */
+export const InvitePreview = z.object({ email: z.string(), role: Role, siteName: z.string(), expiresAt: z.string() });
+export type InvitePreview = z.infer<typeof InvitePreview>;
+
+export const MIN_PASSWORD_LENGTH = 12;
+
+export const AcceptInvite = InviteToken.extend({
+  name: z.string().trim().min(1, 'Enter your name').max(120),
+  password: SignInRequest.shape.password.refine((p) => p.length >= MIN_PASSWORD_LENGTH, `At least ${MIN_PASSWORD_LENGTH} characters`),
+});
+export type AcceptInvite = z.infer<typeof AcceptInvite>;
+
+export const InviteAccepted = z.object({ email: z.string() });
+export type InviteAccepted = z.infer<typeof InviteAccepted>;

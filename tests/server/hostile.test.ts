@@ -1,0 +1,87 @@
+import fc from 'fast-check';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { listApiRoutes, type ApiRoute } from '../../server/route-table';
+import type { Role } from '../../src/contracts/roles';
+import { startTestApp, type Client, type TestApp } from './harness';
+
+// Hostile input against every write route the app has (discovered, not listed): generated bodies and ids must
+// never cause a 5xx or leak a stack trace or SQL, and a refused request must leave the database untouched.
+const SEED = Number(process.env.HOSTILE_SEED ?? 424242);
+const RUNS = Number(process.env.HOSTILE_RUNS ?? 100);
+
+let t: TestApp;
+const clients = new Map<Role, Client>();
+beforeAll(async () => {
+  t = await startTestApp();
+});
+afterAll(() => t.close());
+
+const LEAK = /\bat [\w.<>]+ \(|node_modules|\.ts:\d+|SQLITE_|sqlite_master|SyntaxError|TypeError|ReferenceError|select .* from /i;
+
+const nasty = fc.oneof(
+  fc.constantFrom("' or 1=1 --", '"; drop table users; --', '=cmd|\'/c calc\'!A1', '<script>alert(1)</script>', '../../etc/passwd', '\u0000', 'NaN', 'Infinity', '-1e309', '9'.repeat(400)),
+  fc.string({ maxLength: 40 }),
+  fc.double(),
+  fc.integer(),
+  fc.boolean(),
+  fc.constant(null),
+);
+const body = fc.oneof(
+  fc.dictionary(fc.constantFrom('name', 'email', 'role', 'planId', 'lotId', 'recipeId', 'batchH', 'setpointC', 'c', 'h', 'value', 'password', 'rows', 'decision', 'reason', 'seats', 'quantity', 'meaning', 'comment'), nasty, { maxKeys: 6 }),
+  fc.anything({ maxDepth: 3 }),
+  fc.array(nasty, { maxLength: 5 }),
+);
+const idValue = fc.constantFrom('1', '2', '0', '-1', '999999999', 'abc', '1%20or%201%3D1', '1e3', '%00');
+
+// Rows written on this connection, not counting the audit trail: recording a refusal is a write we want.
+const changes = () => {
+  const { n } = t.db.$client.prepare('select total_changes() as n').get() as { n: number };
+  const { a } = t.db.$client.prepare('select count(*) as a from audit_events').get() as { a: number };
+  return n - a;
+};
+
+async function clientFor(route: ApiRoute): Promise<Client> {
+  const role = (route.roles as Role[])[0]!;
+  if (!clients.has(role)) clients.set(role, await t.signIn(role));
+  return clients.get(role)!;
+}
+
+describe(`hostile input (seed ${SEED})`, () => {
+  it('never answers 5xx or leaks internals, and refused writes change nothing', async () => {
+    // Signing out is left to the session tests: it would end the caller's session half-way.
+    const writes = listApiRoutes(t.mounts).filter((r) => r.method !== 'GET' && r.roles !== 'public' && r.roles !== null && r.path !== '/api/session');
+    expect(writes.length).toBeGreaterThan(3);
+    let sent = 0;
+    for (const route of writes) {
+      const c = await clientFor(route);
+      await fc.assert(
+        fc.asyncProperty(body, idValue, async (b, id) => {
+          const path = route.path.replace(/:(\w+)/g, id);
+          const before = changes();
+          const res = await c.req(route.method, path, b === undefined ? {} : b);
+          sent++;
+          const text = typeof res.body === 'string' ? res.body : JSON.stringify(res.body);
+          if (res.status >= 500 || LEAK.test(text)) throw new Error(`${route.method} ${path} answered ${res.status}: ${text.slice(0, 300)}`);
+          if (res.status >= 400 && changes() !== before) throw new Error(`${route.method} ${path} refused with ${res.status} but wrote to the database`);
+        }),
+        { seed: SEED, numRuns: RUNS, verbose: 1 },
+      );
+    }
+    console.log(`hostile input: ${sent} requests to ${writes.length} write routes`);
+  }, 300_000);
+
+  it('never lets a user of another site read or write this site’s records by id', async () => {
+    const routes = listApiRoutes(t.mounts).filter((r) => r.path.includes(':') && r.roles !== 'public' && r.roles !== null);
+    for (const route of routes) {
+      const role = (route.roles as Role[])[0]!;
+      const stranger = await t.signIn(role, 'other');
+      // Ids 1-3 of every table belong to the first (main) site: it was seeded first.
+      for (const id of ['1', '2', '3']) {
+        const before = changes();
+        const res = await stranger.req(route.method, route.path.replace(/:(\w+)/g, id), route.method === 'GET' ? undefined : {});
+        expect(res.status, `${role} of other site: ${route.method} ${route.path} id ${id}`).toBeGreaterThanOrEqual(400);
+        expect(changes(), `${route.method} ${route.path} wrote`).toBe(before);
+      }
+    }
+  });
+});
