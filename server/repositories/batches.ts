@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, inArray, ne, sql } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { alias } from 'drizzle-orm/sqlite-core';
-import { batchReadings, batches, batchSettings, deviations, lots, recipes, users, vessels } from '../../db/schema';
+import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/schema';
 
 export type BatchRow = typeof batches.$inferSelect;
 export type ReadingRow = typeof batchReadings.$inferSelect;
@@ -126,3 +126,13 @@ export const findBatchSettings = (db: Db, siteId: number) => db.select().from(ba
 
 export const upsertBatchSettings = (db: Db, row: typeof batchSettings.$inferInsert) =>
   db.insert(batchSettings).values(row).onConflictDoUpdate({ target: batchSettings.siteId, set: { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin, updatedAt: row.updatedAt } }).run();
+
+// Change control's signatures on the plan a batch runs: the batch record shows who released it.
+export const planSignatures = (db: Db, siteId: number, planId: number) =>
+  db
+    .select({ signature: signatures, changeRequestId: changeRequests.id, status: changeRequests.status })
+    .from(signatures)
+    .innerJoin(changeRequests, eq(signatures.changeRequestId, changeRequests.id))
+    .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.planId, planId)))
+    .orderBy(asc(signatures.id))
+    .all();

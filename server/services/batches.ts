@@ -56,6 +56,7 @@ import {
   listDeviations,
   listReadings,
   listSiteBatches,
+  planSignatures,
   readingPoints,
   runningBatchOnVessel,
   updateBatch,
@@ -227,7 +228,18 @@ function batchRecord({ db, clock }: Services, u: SessionUser, id: number): Omit<
   const needsCorrective = b.state === 'running' && devs.some((d) => d.state !== 'closed' && CORRECTABLE.has(d.kind));
   const status = batchStatus(b.program, readings, batchHours(b.startedAt, now), needsCorrective);
   const isMine = b.startedBy === u.id || batchesLoggedBy(db, u.id, [b.id]).length > 0;
-  return { batch: toBatch(j, isMine), readings, deviations: devs, status, settings: batchSettingsOf(db, u.siteId), now };
+  const signed = b.planId
+    ? planSignatures(db, u.siteId, b.planId).map(({ signature: sg, changeRequestId }) => ({
+        changeRequestId,
+        printedName: sg.printedName,
+        role: sg.role,
+        meaning: sg.meaning,
+        comment: sg.comment,
+        signedAt: sg.signedAt,
+        recordHash: sg.recordHash,
+      }))
+    : [];
+  return { batch: toBatch(j, isMine), readings, deviations: devs, status, settings: batchSettingsOf(db, u.siteId), signatures: signed, now };
 }
 
 // Start and close ----------------------------------------------------------------------------------------
@@ -485,7 +497,7 @@ export function closeDeviation({ db, clock }: Services, u: SessionUser, id: numb
 
 /** The batch record as section/field/value rows: recipe, plan, status, readings and deviations, spreadsheet-safe. */
 export function batchReportCsv(s: Services, u: SessionUser, id: number): { filename: string; csv: string } {
-  const { batch: b, readings, deviations: devs, status, settings } = batchRecord(s, u, id);
+  const { batch: b, readings, deviations: devs, status, settings, signatures: signed } = batchRecord(s, u, id);
   const p = b.program;
   const rows: unknown[][] = [
     ['batch', 'id', b.id, ''],
@@ -515,6 +527,9 @@ export function batchReportCsv(s: Services, u: SessionUser, id: number): { filen
     ['status', 'thermal_dose', status.equivalentHAtRef, `h at ${status.refC} degC`],
     ['status', 'forecast_at_close', b.forecastAtCloseGPerL, 'g/L'],
     ['status', 'measured_product', b.measuredProductGPerL, 'g/L'],
+    ...(signed.length
+      ? signed.map((g) => ['signature', `${g.printedName} (${g.role})`, g.meaning, `${g.signedAt} ${g.comment}; change request ${g.changeRequestId}; record ${g.recordHash}`])
+      : [['signature', 'none', p.source === 'released_plan' ? 'no signature found for the plan' : 'runs the recipe current setpoint', '']]),
     ...readings.map((r) => ['reading', r.takenAt, r.c, `degC; ${r.source}; ${r.enteredBy}${r.note ? `; ${r.note}` : ''}`]),
     ...devs.map((d) => [
       'deviation',

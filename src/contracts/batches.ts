@@ -174,6 +174,18 @@ export const Batch = z.object({
 });
 export type Batch = z.infer<typeof Batch>;
 
+/** A change-control signature on the plan the batch runs. */
+export const PlanSignature = z.object({
+  changeRequestId: z.number().int(),
+  printedName: z.string(),
+  role: z.string(),
+  meaning: z.string(),
+  comment: z.string(),
+  signedAt: z.string(),
+  recordHash: z.string(),
+});
+export type PlanSignature = z.infer<typeof PlanSignature>;
+
 export const BatchDetail = z.object({
   batch: Batch,
   /** All readings, or for a long historian record an even sample plus the latest ones (see readingsTotal). */
@@ -182,6 +194,8 @@ export const BatchDetail = z.object({
   deviations: z.array(Deviation),
   status: BatchStatus,
   settings: BatchSettings,
+  /** Signatures that released the batch's plan; empty for a batch on the recipe's current setpoint. */
+  signatures: z.array(PlanSignature),
   /** The server's clock, so the phone can show how long ago the last reading was. */
   now: z.string(),
 });

@@ -1,7 +1,7 @@
 import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { auditEvents, batchReadings, deviations, recipes } from '../../db/schema';
-import { startTestApp, type Client, type TestApp } from './harness';
+import { password, startTestApp, type Client, type TestApp } from './harness';
 
 let t: TestApp;
 let sup: Client;
@@ -98,14 +98,21 @@ describe('starting a batch', () => {
       strategy: 'isothermal', stages: 3, maxStepC: 3, uncertainty: { draws: 400, seed: 7, sensorBiasSdC: 0.5, doseRelSd: 0.05 },
     });
     expect(plan.status).toBe(201);
-    // Change control is another branch's job: release the plan the way it will, by writing the recipe's columns.
-    t.db.update(recipes).set({ releasedPlanId: plan.body.id, releasedAt: t.clock.now().toISOString() }).where(eq(recipes.id, rec.id)).run();
+    // Released through change control: the engineer proposes, the supervisor signs with a password.
+    const cr = await eng.post('/api/change-requests', { planId: plan.body.id, rationale: 'Robust setpoint from the uncertainty run.', expectedEffect: 'Fewer low batches', effectiveFrom: '2026-12-01' });
+    expect(cr.status).toBe(201);
+    const signed = await sup.post(`/api/change-requests/${cr.body.id}/signatures`, { password: password('supervisor'), meaning: 'approved', comment: 'Go ahead' });
+    expect(signed.body.status).toBe('approved');
     try {
       const { body } = await startLactose();
       expect(body.program.source).toBe('released_plan');
       expect(body.program.planId).toBe(plan.body.id);
       expect(body.program.stages[0].c).toBeCloseTo(plan.body.outputs.setpointC, 9);
       expect(body.program.p10GPerL).toBeCloseTo(plan.body.outputs.uncertainty.p10, 9);
+      const detail = (await op.get(`/api/batches/${body.id}`)).body;
+      expect(detail.signatures.map((g: any) => [g.printedName, g.meaning, g.changeRequestId])).toEqual([['Marit Oyelaran', 'approved', cr.body.id]]);
+      const csv = (await op.get(`/api/batches/${body.id}/report.csv`)).body as string;
+      expect(csv).toContain('signature,Marit Oyelaran (supervisor),approved,');
       await closeRunning('R-204 Lactose tank');
       // Sixteen hours in, a reading shows the tank fell to 8 degC after the first hour: the forecast drops below P10.
       const late = await startLactose(16);
@@ -124,7 +131,8 @@ describe('starting a batch', () => {
       await send(15.95, 8);
       expect((await op.get(`/api/batches/${late.id}`)).body.deviations.filter((d: any) => d.kind === 'forecast_low')).toHaveLength(1);
     } finally {
-      t.db.update(recipes).set({ releasedPlanId: null, releasedAt: null }).where(eq(recipes.id, rec.id)).run();
+      // Put the recipe back as the later tests expect it (approval also wrote the plan's setpoint).
+      t.db.update(recipes).set({ releasedPlanId: null, releasedAt: null, currentSetpointC: rec.currentSetpointC }).where(eq(recipes.id, rec.id)).run();
     }
   });
 

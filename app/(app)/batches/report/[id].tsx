@@ -64,7 +64,14 @@ function ReportBody({ id }: { id: number }) {
       <Row label="Thermal dose" value={`${fmt(s.equivalentHAtRef, 2)} h equivalent at ${fmt(s.refC, 0)} °C`} />
       <Row label="Product so far · forecast" value={`${fmt(s.productSoFarGPerL)} · ${fmt(s.forecastGPerL)} g/L`} />
       <Row label="Forecast at closing · measured" value={`${b.forecastAtCloseGPerL === null ? '—' : fmt(b.forecastAtCloseGPerL)} · ${b.measuredProductGPerL === null ? '—' : fmt(b.measuredProductGPerL)} g/L`} />
-      <Row label="Signatures" value="Change-control signatures appear here once that module is in place." />
+      <Text variant="title" accessibilityRole="header">
+        Signatures ({data.signatures.length})
+      </Text>
+      {data.signatures.length ? (
+        data.signatures.map((g) => <Row key={`${g.changeRequestId}-${g.signedAt}-${g.printedName}`} label={`${g.printedName} (${g.role})`} value={`${g.meaning} · ${utc(g.signedAt)} · change request ${g.changeRequestId}${g.comment ? ` · “${g.comment}”` : ''}`} />)
+      ) : (
+        <Text tone="muted">{p.source === 'released_plan' ? 'No signature found for the released plan.' : 'None: the batch runs the recipe’s current setpoint, not a released plan.'}</Text>
+      )}
       <Text variant="title" accessibilityRole="header">
         Deviations ({data.deviations.length})
       </Text>
