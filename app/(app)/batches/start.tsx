@@ -1,8 +1,7 @@
 import { router } from 'expo-router';
 import { useEffect, useState } from 'react';
-import { ChoiceList } from '@/components/batches/choice-list';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
+import { Button, Card, Choice, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { Field } from '@/components/ui/field';
 import { localInputValue, parseLocalInput } from '@/batches';
 import { BATCH_STARTERS } from '@/contracts/batches';
@@ -10,6 +9,17 @@ import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
 import { useSession } from '@/hooks/use-session';
 import { useStartBatch, useStartOptions } from '@/hooks/use-start-batch';
+
+// Nothing chosen yet: no option has this value.
+const NONE = -1;
+
+function FieldError({ message, testID }: { message?: string; testID: string }) {
+  return message ? (
+    <Text variant="small" tone="danger" testID={testID}>
+      {message}
+    </Text>
+  ) : null;
+}
 
 function StartForm() {
   const { session } = useSession();
@@ -51,7 +61,8 @@ function StartForm() {
   const f = start.error?.fields ?? {};
   return (
     <Card testID="start-form">
-      <ChoiceList label="Recipe" testID="start-recipe" value={recipeId} onChange={setRecipeId} options={recipes.data.recipes.map((x) => ({ value: x.id, label: x.name, detail: x.enzymeName }))} error={f.recipeId} />
+      <Choice label="Recipe" testID="start-recipe" value={recipeId ?? NONE} onChange={setRecipeId} options={recipes.data.recipes.map((x) => ({ value: x.id, label: x.name }))} />
+      <FieldError message={f.recipeId} testID="start-recipe-error" />
       {source ? (
         <Text variant="small" testID="start-source">
           {source}
@@ -60,15 +71,10 @@ function StartForm() {
       {detail.error ? <ErrorState error={detail.error} onRetry={detail.retry} /> : null}
       {detail.data ? (
         <>
-          <ChoiceList label="Vessel" testID="start-vessel" value={vesselId} onChange={setVesselId} options={vessels.data.vessels.map((v) => ({ value: v.id, label: v.name, detail: `${v.minC}–${v.maxC} °C` }))} error={f.vesselId} />
-          <ChoiceList
-            label="Lot (accepted only)"
-            testID="start-lot"
-            value={lotId}
-            onChange={setLotId}
-            options={detail.data.lots.map((l) => ({ value: l.id, label: l.lotCode, detail: `expires ${l.expiresOn}` }))}
-            error={f.lotId}
-          />
+          <Choice label="Vessel" testID="start-vessel" value={vesselId ?? NONE} onChange={setVesselId} options={vessels.data.vessels.map((v) => ({ value: v.id, label: `${v.name} (${v.minC}–${v.maxC} °C)` }))} />
+          <FieldError message={f.vesselId} testID="start-vessel-error" />
+          <Choice label="Lot (accepted only)" testID="start-lot" value={lotId ?? NONE} onChange={setLotId} options={detail.data.lots.map((l) => ({ value: l.id, label: `${l.lotCode} (expires ${l.expiresOn})` }))} />
+          <FieldError message={f.lotId} testID="start-lot-error" />
         </>
       ) : null}
       <Field label="Start time (your clock)" value={time} onChangeText={setTime} testID="start-time" error={timeError ?? f.startedAt} />
