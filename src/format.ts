@@ -6,3 +6,6 @@ export const halfLifeH = (kdPerH: number) => Math.LN2 / kdPerH;
 
 /** `2026-11-28` as written; dates stay ISO so every site reads them the same. */
 export const isoDate = (s: string) => s.slice(0, 10);
+
+/** A typed number field's text as a number; blank or junk becomes NaN, which the API reports as "Enter a number". */
+export const toNumber = (s: string) => (s.trim() === '' ? NaN : Number(s.replace(',', '.')));

@@ -2,7 +2,7 @@ import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { LotForm } from '@/components/lots/lot-form';
-import { Choice } from '@/components/lots/choice';
+import { Choice } from '@/components/ui/choice';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import { LOT_EDITORS, type Lot, type LotStatus } from '@/contracts/lots';
@@ -62,7 +62,7 @@ function LotsBody() {
           <Text tone="muted" testID="lots-summary">
             {data.lots.length} lots · {waiting} awaiting a decision
           </Text>
-          <Choice label="Show" value={filter} options={FILTERS} onChange={setFilter} testID="lots-filter" />
+          <Choice compact label="Show" value={filter} options={FILTERS} onChange={setFilter} testID="lots-filter" />
           {rows.length ? (
             <DataTable
               columns={COLUMNS}
