@@ -6,7 +6,8 @@ import { Choice } from '@/components/ui/choice';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import { LOT_EDITORS, type Lot, type LotStatus } from '@/contracts/lots';
-import { fmt, halfLifeH } from '@/format';
+import { fmt } from '@/format';
+import { halfLifeFromKd } from '@/model/units';
 import { useEnzymes } from '@/hooks/use-enzymes';
 import { useLots } from '@/hooks/use-lots';
 import { useSession } from '@/hooks/use-session';
@@ -18,7 +19,7 @@ const COLUMNS: Column<Lot>[] = [
   { key: 'lot', label: 'Lot', value: (l) => l.lotCode, flex: 1.2 },
   { key: 'enzyme', label: 'Enzyme', value: (l) => l.enzymeName, flex: 1.2 },
   { key: 'received', label: 'Received', value: (l) => l.receivedOn },
-  { key: 'halfLife', label: 'Certificate half-life', value: (l) => `${fmt(halfLifeH(l.certKdPerH))} h at ${fmt(l.certTempC, 0)} °C`, isNumeric: true, flex: 1.4 },
+  { key: 'halfLife', label: 'Certificate half-life', value: (l) => `${fmt(halfLifeFromKd(l.certKdPerH))} h at ${fmt(l.certTempC, 0)} °C`, isNumeric: true, flex: 1.4 },
   { key: 'status', label: 'Status', value: (l) => STATUS_LABEL[l.status], flex: 1.3 },
 ];
 
