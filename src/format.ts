@@ -1,8 +1,8 @@
 /** Numbers for people: a fixed number of decimals, a thin space before units added by callers. */
 export const fmt = (x: number, digits = 1) => (Number.isFinite(x) ? x.toFixed(digits) : '–');
 
-/** Half-life in hours from a first-order kd in 1/h. */
-export const halfLifeH = (kdPerH: number) => Math.LN2 / kdPerH;
-
 /** `2026-11-28` as written; dates stay ISO so every site reads them the same. */
 export const isoDate = (s: string) => s.slice(0, 10);
+
+/** A typed number field's text as a number; blank or junk becomes NaN, which the API reports as "Enter a number". */
+export const toNumber = (s: string) => (s.trim() === '' ? NaN : Number(s.replace(',', '.')));

@@ -4,7 +4,7 @@ import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
+import { Button, Card, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
 import { useInvites } from '@/hooks/use-invites';
 import { useMailOutbox } from '@/hooks/use-mail-outbox';
 import { useSession } from '@/hooks/use-session';
@@ -12,18 +12,6 @@ import { useSite } from '@/hooks/use-site';
 import { useUsers } from '@/hooks/use-users';
 import { space, useBreakpoint } from '@/theme';
 
-function Figure({ label, value, testID }: { label: string; value: number; testID: string }) {
-  return (
-    <Card style={styles.figure}>
-      <Text variant="figure" testID={testID}>
-        {value}
-      </Text>
-      <Text tone="muted" variant="small">
-        {label}
-      </Text>
-    </Card>
-  );
-}
 
 function People() {
   const users = useUsers();
@@ -114,7 +102,6 @@ export default function SiteScreen() {
 const styles = StyleSheet.create({
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
   figuresWide: { flexWrap: 'nowrap' },
-  figure: { flexGrow: 1, flexBasis: 140 },
   columns: { gap: space.lg },
   columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
   column: { flex: 1, gap: space.md, minWidth: 0 },

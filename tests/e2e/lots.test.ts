@@ -76,7 +76,7 @@ describe('procurement judges an incoming lot', () => {
     await passCautions(page);
     await page.getByTestId('lots-table').waitFor();
     await screenshot(page, `lots-list-${WIDE.width}x${WIDE.height}`);
-    await page.getByRole('link', { name: 'Open lot TAA-4519' }).click();
+    await page.getByRole('row', { name: 'Open lot TAA-4519' }).click();
     await page.getByTestId('screen-lot').waitFor();
     await expect(page.getByTestId('lot-recommendation').textContent()).resolves.toBe('Does not meet the specification');
     await page.getByTestId('arrhenius-chart').first().waitFor();
@@ -97,7 +97,7 @@ describe('procurement judges an incoming lot', () => {
     await page.getByTestId('enzyme-search').fill('corvane');
     await expect(page.getByTestId('enzymes-count').textContent()).resolves.toMatch(/^2 enzymes/);
     await screenshot(page, `enzymes-${WIDE.width}x${WIDE.height}`);
-    await page.getByRole('link', { name: 'Open Amylo GA-17 and its lot history' }).click();
+    await page.getByRole('row', { name: 'Open Amylo GA-17 and its lot history' }).click();
     await page.getByTestId('lot-history-chart').waitFor();
     await shot(page, 'lot-history-chart', `enzyme-history-${WIDE.width}x${WIDE.height}`);
     // The refused typed rows answer 400, which the browser logs: that one is expected, nothing else is.

@@ -2,11 +2,12 @@ import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { LotForm } from '@/components/lots/lot-form';
-import { Choice } from '@/components/lots/choice';
+import { Choice } from '@/components/ui/choice';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import { LOT_EDITORS, type Lot, type LotStatus } from '@/contracts/lots';
-import { fmt, halfLifeH } from '@/format';
+import { fmt } from '@/format';
+import { halfLifeFromKd } from '@/model/units';
 import { useEnzymes } from '@/hooks/use-enzymes';
 import { useLots } from '@/hooks/use-lots';
 import { useSession } from '@/hooks/use-session';
@@ -18,7 +19,7 @@ const COLUMNS: Column<Lot>[] = [
   { key: 'lot', label: 'Lot', value: (l) => l.lotCode, flex: 1.2 },
   { key: 'enzyme', label: 'Enzyme', value: (l) => l.enzymeName, flex: 1.2 },
   { key: 'received', label: 'Received', value: (l) => l.receivedOn },
-  { key: 'halfLife', label: 'Certificate half-life', value: (l) => `${fmt(halfLifeH(l.certKdPerH))} h at ${fmt(l.certTempC, 0)} °C`, isNumeric: true, flex: 1.4 },
+  { key: 'halfLife', label: 'Certificate half-life', value: (l) => `${fmt(halfLifeFromKd(l.certKdPerH))} h at ${fmt(l.certTempC, 0)} °C`, isNumeric: true, flex: 1.4 },
   { key: 'status', label: 'Status', value: (l) => STATUS_LABEL[l.status], flex: 1.3 },
 ];
 
@@ -62,7 +63,7 @@ function LotsBody() {
           <Text tone="muted" testID="lots-summary">
             {data.lots.length} lots · {waiting} awaiting a decision
           </Text>
-          <Choice label="Show" value={filter} options={FILTERS} onChange={setFilter} testID="lots-filter" />
+          <Choice compact label="Show" value={filter} options={FILTERS} onChange={setFilter} testID="lots-filter" />
           {rows.length ? (
             <DataTable
               columns={COLUMNS}

@@ -6,25 +6,13 @@ import { isoDate } from '../../format';
 import { useBuySeats } from '../../hooks/use-buy-seats';
 import { useChangeSeats } from '../../hooks/use-change-seats';
 import { space, useBreakpoint, useColors } from '../../theme';
-import { Button, Card, DataTable, Field, Text, type Column } from '../ui';
+import { Button, Card, DataTable, Field, Figure, Text, type Column } from '../ui';
 
 /** 4900, 'eur' -> '49.00 EUR': amounts stay in the account's currency, with its code. */
 export const money = (cents: number, currency: string) => `${(cents / 100).toFixed(2)} ${currency.toUpperCase()}`;
 
 const STATUS_LABEL: Record<BillingSummary['status'], string> = { none: 'No paid plan', active: 'Paid up', past_due: 'Payment failed', canceled: 'Ended' };
 
-function Figure({ label, value, testID }: { label: string; value: string; testID: string }) {
-  return (
-    <Card style={styles.figure}>
-      <Text variant="figure" testID={testID}>
-        {value}
-      </Text>
-      <Text tone="muted" variant="small">
-        {label}
-      </Text>
-    </Card>
-  );
-}
 
 export function PlanFigures({ b }: { b: BillingSummary }) {
   const { isWide } = useBreakpoint();
@@ -161,5 +149,4 @@ export function InvoicesTable({ invoices }: { invoices: Invoice[] }) {
 const styles = StyleSheet.create({
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
   figuresWide: { flexWrap: 'nowrap' },
-  figure: { flexGrow: 1, flexBasis: 140 },
 });

@@ -4,7 +4,7 @@ import type { ResidualScale } from '../../contracts/assays';
 import { useUploadAssay } from '../../hooks/use-upload-assay';
 import { space, useColors } from '../../theme';
 import { Button, Card, Field, Text } from '../ui';
-import { Choice } from './choice';
+import { Choice } from '../ui/choice';
 import { pickFile } from './pick-file';
 
 type Row = { tempC: string; timeH: string; residual: string };
@@ -68,7 +68,7 @@ export function AssayEntry({ lotId }: { lotId: number }) {
             <Button label="Add row" variant="secondary" compact onPress={() => setRows((rs) => [...rs, { ...EMPTY }])} />
             <Button label="Remove last row" variant="ghost" compact disabled={rows.length <= 1} onPress={() => setRows((rs) => rs.slice(0, -1))} />
           </View>
-          <Choice label="Residual activity is" value={scale} options={SCALES} onChange={setScale} />
+          <Choice compact label="Residual activity is" value={scale} options={SCALES} onChange={setScale} />
           <Button
             label="Save typed rows"
             isBusy={isBusy}

@@ -4,7 +4,7 @@ import type { Enzyme, EnzymeInput } from '../../contracts/enzymes';
 import { useSaveEnzyme } from '../../hooks/use-save-enzyme';
 import { space, useBreakpoint } from '../../theme';
 import { Button, Card, Field, Text } from '../ui';
-import { toNumber } from './choice';
+import { toNumber } from '../../format';
 
 const TEXT_FIELDS = [
   ['name', 'Product name'],

@@ -6,7 +6,8 @@ import { useCreateLot } from '../../hooks/use-create-lot';
 import { certConversion } from '../../stability';
 import { space, useBreakpoint } from '../../theme';
 import { Button, Card, Field, Text } from '../ui';
-import { Choice, toNumber } from './choice';
+import { toNumber } from '../../format';
+import { Choice } from '../ui/choice';
 
 const FORMS = [
   { value: 'halfLife', label: 'Half-life' },
@@ -43,7 +44,7 @@ export function LotForm({ enzymes, onDone }: { enzymes: Enzyme[]; onDone: (lot: 
   return (
     <Card testID="lot-form">
       <Text variant="title">Register a lot</Text>
-      <Choice label="Enzyme" value={enzymeId} options={enzymes.map((e) => ({ value: String(e.id), label: e.name }))} onChange={setEnzymeId} testID="lot-enzyme" />
+      <Choice compact label="Enzyme" value={enzymeId} options={enzymes.map((e) => ({ value: String(e.id), label: e.name }))} onChange={setEnzymeId} testID="lot-enzyme" />
       {f.enzymeId ? <Text tone="danger">{f.enzymeId}</Text> : null}
       <View style={styles.grid}>
         {field('lotCode', 'Lot code', { autoCapitalize: 'characters' })}
@@ -52,7 +53,7 @@ export function LotForm({ enzymes, onDone }: { enzymes: Enzyme[]; onDone: (lot: 
         {field('expiresOn', 'Expires (YYYY-MM-DD)')}
         {field('certActivity', `Certificate activity${enzyme ? `, ${enzyme.activityUnit}` : ''}`, { keyboardType: 'decimal-pad' })}
       </View>
-      <Choice label="Stability as the certificate states it" value={form} options={FORMS} onChange={setForm} testID="lot-form-kind" />
+      <Choice compact label="Stability as the certificate states it" value={form} options={FORMS} onChange={setForm} testID="lot-form-kind" />
       <View style={styles.grid}>
         {field('tempC', 'At temperature, °C', { keyboardType: 'decimal-pad' })}
         {form === 'halfLife' ? field('halfLifeH', 'Half-life, h', { keyboardType: 'decimal-pad' }) : null}

@@ -1,7 +1,8 @@
 import { useMemo } from 'react';
 import { StyleSheet, View } from 'react-native';
 import type { RecipeDetail } from '../../contracts/recipes';
-import { fmt, halfLifeH } from '../../format';
+import { fmt } from '../../format';
+import { halfLifeFromKd } from '../../model/units';
 import { kdAtReference } from '../../planning';
 import { space } from '../../theme';
 import { Card, Choice, NumberField, Text } from '../ui';
@@ -37,7 +38,7 @@ export function PlanInputsPanel({ detail, planner }: { detail: RecipeDetail; pla
         value={inputs.lotId}
         options={detail.lots.map((l) => ({
           value: l.id,
-          label: `${l.lotCode} · t½ ${fmt(halfLifeH(kdAtReference(l, enzyme.tRefC, recipe.edKJPerMol)))} h`,
+          label: `${l.lotCode} · t½ ${fmt(halfLifeFromKd(kdAtReference(l, enzyme.tRefC, recipe.edKJPerMol)))} h`,
         }))}
         onChange={(lotId) => update({ lotId })}
         testID="input-lot"

@@ -8,3 +8,4 @@ export { Text } from './text';
 export { Choice } from './choice';
 export { NumberField } from './number-field';
 export { ProgressBar } from './progress-bar';
+export { Figure } from './figure';

@@ -1,7 +1,7 @@
 import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { Choice } from '@/components/lots/choice';
+import { Choice } from '@/components/ui/choice';
 import { EnzymeForm } from '@/components/lots/enzyme-form';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Field, Loader, Screen, Text, type Column } from '@/components/ui';
@@ -60,8 +60,8 @@ function EnzymesBody() {
         accessibilityRole="search"
       />
       <View style={styles.row}>
-        <Choice label="Sort by" value={sort} options={SORTS} onChange={setSort} testID="enzyme-sort" />
-        <Choice label="Order" value={dir} options={[{ value: 'asc', label: 'Ascending' }, { value: 'desc', label: 'Descending' }]} onChange={setDir} />
+        <Choice compact label="Sort by" value={sort} options={SORTS} onChange={setSort} testID="enzyme-sort" />
+        <Choice compact label="Order" value={dir} options={[{ value: 'asc', label: 'Ascending' }, { value: 'desc', label: 'Descending' }]} onChange={setDir} />
       </View>
       {error ? (
         <ErrorState error={error} onRetry={retry} />
