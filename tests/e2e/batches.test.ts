@@ -114,7 +114,7 @@ describe('batches on the floor', () => {
     await page.getByTestId('reading-queue').waitFor();
     expect(await page.getByTestId('reading-done').textContent()).toMatch(/Saved 37\.3 °C .* on this device/);
     expect(await page.getByTestId('reading-queue').textContent()).toMatch(/1 reading saved on this device/);
-    expect(await page.getByTestId('figure-forecast').locator('xpath=..').textContent()).toMatch(/preview/);
+    expect(await page.getByTestId('status-figures').textContent()).toMatch(/preview/);
     await screenshot(page, 'batch-offline-390x844');
     await context.setOffline(false);
     await page.getByTestId('reading-queue').waitFor({ state: 'detached', timeout: 20_000 });

@@ -8,7 +8,9 @@ import { BATCH_STARTERS } from '@/contracts/batches';
 import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
 import { useSession } from '@/hooks/use-session';
-import { useStartBatch, useStartOptions } from '@/hooks/use-start-batch';
+import { useRecipe, useRecipes } from '@/hooks/use-recipes';
+import { useStartBatch } from '@/hooks/use-start-batch';
+import { useVessels } from '@/hooks/use-vessels';
 
 // Nothing chosen yet: no option has this value.
 const NONE = -1;
@@ -28,7 +30,9 @@ function StartForm() {
   const [lotId, setLotId] = useState<number | null>(null);
   const [time, setTime] = useState(() => localInputValue(new Date()));
   const [timeError, setTimeError] = useState<string | undefined>();
-  const { recipes, detail, vessels } = useStartOptions(recipeId);
+  const recipes = useRecipes();
+  const detail = useRecipe(recipeId);
+  const vessels = useVessels();
   const start = useStartBatch();
 
   // A recipe brings its own vessel and lot as the first choice.
