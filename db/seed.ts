@@ -1,11 +1,12 @@
 import bcrypt from 'bcryptjs';
 import { sql } from 'drizzle-orm';
+import { batchHours, batchProgram, batchStatus, plannedAt } from '../src/batches';
 import type { CertStability } from '../src/contracts/lots';
 import { createRng, KELVIN_OFFSET, R } from '../src/model';
 import { certKdPerH, fitAssay } from '../src/stability';
 import type { Role } from '../src/contracts/roles';
 import type { Db } from './client';
-import { assayPoints, assays, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
+import { assayPoints, assays, batchReadings, batches, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
 
 // An invented plant for demos and tests. Names, suppliers, lots and figures are made up.
 
@@ -108,6 +109,25 @@ const RECIPES = [
   { name: 'Maltodextrin DE 12 liquefaction', lotCode: 'TAA-4471', vessel: 'R-310 Liquefier', s0GPerL: 320, kmGPerL: 5, doseGPerL: 0.3, vmaxRefGPerLH: 120, edKJPerMol: 350, batchH: 3, turnaroundH: 2, fillC: 60, productPricePerKg: 0.3, enzymePricePerKg: 25, heatingCostPerDegCHour: 0.6, currentSetpointC: 90 },
 ];
 const RECIPES_UPDATED_AT = '2026-11-30T09:00:00.000Z';
+
+// Invented batches: one running, three closed with a lab result beside the forecast (the ratios are made up).
+const BATCHES: { recipe: string; startedAt: string; readUntilH: number; closedAt?: string; measuredRatio: number }[] = [
+  { recipe: 'Lactose-free milk base', startedAt: '2026-11-25T06:00:00.000Z', readUntilH: 20, closedAt: '2026-11-26T02:30:00.000Z', measuredRatio: 0.985 },
+  { recipe: 'Glucose syrup DE 95', startedAt: '2026-11-27T05:00:00.000Z', readUntilH: 48, closedAt: '2026-11-29T05:30:00.000Z', measuredRatio: 1.012 },
+  { recipe: 'Lactose-free milk base', startedAt: '2026-11-28T06:00:00.000Z', readUntilH: 20, closedAt: '2026-11-29T02:30:00.000Z', measuredRatio: 0.962 },
+  { recipe: 'Glucose syrup DE 95', startedAt: '2026-12-01T05:00:00.000Z', readUntilH: 4, measuredRatio: 1 },
+];
+
+/** Half-hourly readings near the plan with a deterministic wobble of a few tenths of a degree. */
+function demoReadings(program: Parameters<typeof plannedAt>[0], startedAt: string, untilH: number): { takenAt: string; c: number }[] {
+  const out: { takenAt: string; c: number }[] = [];
+  for (let i = 0; i * 0.5 <= untilH; i++) {
+    const h = i * 0.5;
+    const c = plannedAt(program, h) + 0.35 * Math.sin(1.7 * i) + 0.2 * Math.cos(0.9 * i);
+    out.push({ takenAt: new Date(Date.parse(startedAt) + h * 3_600_000).toISOString(), c: Math.round(c * 10) / 10 });
+  }
+  return out;
+}
 
 /**
  * Invented QC measurements: first-order decay at the specification temperature and 4 and 8 °C above it, sampled
@@ -230,10 +250,33 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         .values(points.map((p, i) => ({ ...p, assayId: assay.id, line: i + 2, note: null })))
         .run();
     }
+    const recipeRows = new Map<string, typeof recipes.$inferSelect>();
     for (const { lotCode, vessel, ...r } of RECIPES) {
       const lot = lotRows.get(lotCode)!;
       const vesselId = vesselRows.find((v) => v.name === vessel)!.id;
-      tx.insert(recipes).values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT }).run();
+      recipeRows.set(r.name, tx.insert(recipes).values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT }).returning().get());
+    }
+    for (const b of BATCHES) {
+      const recipe = recipeRows.get(b.recipe)!;
+      const vessel = vesselRows.find((v) => v.id === recipe.vesselId)!;
+      const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;
+      const enzyme = tx.select().from(enzymes).where(sql`${enzymes.id} = ${recipe.enzymeId}`).get()!;
+      const program = batchProgram({ recipe, enzyme, lot, vessel, plan: null });
+      const row = tx.insert(batches)
+        .values({ siteId: site.id, recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, planId: null, source: program.source, program, state: 'running', startedAt: b.startedAt, startedBy: userIds.get('supervisor')! })
+        .returning()
+        .get();
+      const readings = demoReadings(program, b.startedAt, b.readUntilH);
+      tx.insert(batchReadings)
+        .values(readings.map((r, i) => ({ siteId: site.id, batchId: row.id, clientKey: `demo-${row.id}-${i}`, takenAt: r.takenAt, c: r.c, note: null, source: 'manual' as const, enteredBy: userIds.get('operator')!, receivedAt: r.takenAt })))
+        .run();
+      if (b.closedAt) {
+        const forecast = batchStatus(program, readings.map((r) => ({ h: batchHours(b.startedAt, r.takenAt), c: r.c })), program.batchH).forecastGPerL;
+        tx.update(batches)
+          .set({ state: 'closed', closedAt: b.closedAt, closedBy: userIds.get('supervisor')!, measuredProductGPerL: Math.round(forecast * b.measuredRatio * 10) / 10, forecastAtCloseGPerL: forecast, closeComment: 'Lab result from the end-of-batch sample' })
+          .where(sql`${batches.id} = ${row.id}`)
+          .run();
+      }
     }
     const ids = demoStripeIds(site.id);
     tx.insert(subscriptions)

@@ -13,6 +13,8 @@ import { requireSameOrigin } from './middleware/csrf';
 import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
+import { batchesRouter } from './routes/batches';
+import { deviationsRouter } from './routes/deviations';
 import { billingRouter, billingWebhook } from './routes/billing';
 import { changeRequestsRouter } from './routes/change-requests';
 import { enzymesRouter } from './routes/enzymes';
@@ -107,6 +109,8 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/lots', router: lotsRouter({ ...services, files: deps.files ?? createFileStore(fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-files-'))) }) },
     { prefix: '/recipes', router: recipesRouter(services) },
     { prefix: '/plans', router: plansRouter(services) },
+    { prefix: '/batches', router: batchesRouter(services) },
+    { prefix: '/deviations', router: deviationsRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
     {
       prefix: '/change-requests',

@@ -6,3 +6,4 @@ export * from './mail';
 export * from './billing';
 export * from './quality';
 export * from './change-control';
+export * from './batches';

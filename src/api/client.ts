@@ -16,7 +16,8 @@ export class ApiError extends Error {
 // The server refuses writes without this header: a cross-site form cannot set it.
 const CLIENT_HEADERS = { 'x-yieldpoint-client': 'web' };
 
-type Options = { method?: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'; body?: unknown; signal?: AbortSignal };
+// `contentType` sends a string body as it is (a CSV upload); without it the body goes as JSON.
+type Options = { method?: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'; body?: unknown; contentType?: string; signal?: AbortSignal };
 
 /** Calls `/api/...`, parses the answer with its contract, and throws ApiError for anything else. */
 export async function api<S extends z.ZodType>(path: string, schema: S | null, opts: Options = {}): Promise<z.infer<S>> {
@@ -26,9 +27,9 @@ export async function api<S extends z.ZodType>(path: string, schema: S | null, o
     res = await fetch(`/api${path}`, {
       method: opts.method ?? 'GET',
       credentials: 'same-origin',
-      // A FormData body (file upload) sets its own multipart content type and boundary.
-      headers: opts.body === undefined || isForm ? CLIENT_HEADERS : { ...CLIENT_HEADERS, 'content-type': 'application/json' },
-      body: opts.body === undefined ? undefined : isForm ? (opts.body as FormData) : JSON.stringify(opts.body),
+      // A FormData body (file upload) sets its own multipart content type and boundary; `contentType` sends a string as it is.
+      headers: opts.body === undefined || isForm ? CLIENT_HEADERS : { ...CLIENT_HEADERS, 'content-type': opts.contentType ?? 'application/json' },
+      body: opts.body === undefined ? undefined : isForm ? (opts.body as FormData) : opts.contentType ? String(opts.body) : JSON.stringify(opts.body),
       signal: opts.signal,
     });
   } catch {

@@ -11,7 +11,10 @@ export const keys = {
   invites: '/invites',
   mailOutbox: '/mail-outbox',
   recipes: '/recipes',
+  batches: '/batches',
 } as const;
+
+export const batchKey = (id: number) => `/batches/${id}`;
 
 export const changeRequestsKey = (status?: string) => (status ? `/change-requests?status=${status}` : '/change-requests');
 export const changeRequestKey = (id: number) => `/change-requests/${id}`;

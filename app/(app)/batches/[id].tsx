@@ -1,0 +1,162 @@
+import { router, useLocalSearchParams } from 'expo-router';
+import { useMemo } from 'react';
+import { Linking, StyleSheet, View } from 'react-native';
+import { CloseBatchCard } from '@/components/batches/close-batch-card';
+import { DeviationList } from '@/components/batches/deviation-list';
+import { HistorianUpload } from '@/components/batches/historian-upload';
+import { ReadingEntry } from '@/components/batches/reading-entry';
+import { StatusFigures } from '@/components/batches/status-figures';
+import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
+import { RoleGate } from '@/components/shell/role-gate';
+import { Button, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
+import { batchHours, batchStatus, durationText, shortTime } from '@/batches';
+import { BATCH_STARTERS, READING_LOGGERS, type BatchDetail, type Reading } from '@/contracts/batches';
+import type { Role } from '@/contracts/roles';
+import { fmt } from '@/format';
+import { useBatch } from '@/hooks/use-batches';
+import { useLogReading } from '@/hooks/use-log-reading';
+import { useSession } from '@/hooks/use-session';
+import { space, useBreakpoint } from '@/theme';
+
+const READING_COLUMNS: Column<Reading>[] = [
+  { key: 'time', label: 'Time', value: (r) => shortTime(r.takenAt) },
+  { key: 'h', label: 'Hour', value: (r) => fmt(r.h, 2), isNumeric: true },
+  { key: 'c', label: '°C', value: (r) => fmt(r.c), isNumeric: true },
+  { key: 'by', label: 'By', value: (r) => (r.source === 'historian' ? 'historian' : r.enteredBy), flex: 1.2 },
+  { key: 'note', label: 'Note', value: (r) => r.note ?? '', flex: 1.5 },
+];
+
+/** The plan in words: what runs and where it comes from. */
+function planSentence(d: BatchDetail): string {
+  const p = d.batch.program;
+  const what = p.stages.length === 1 ? `${fmt(p.stages[0].c)} °C` : `a staged profile ${p.stages.map((s) => fmt(s.c)).join(' → ')} °C`;
+  const from = p.source === 'released_plan' ? `the released plan #${p.planId}` : 'the recipe’s current setpoint (no plan released)';
+  return `Runs ${what} for ${fmt(p.batchH, 0)} h from ${from}, heated from the ${fmt(p.fillC, 0)} °C fill. Band ±${d.settings.toleranceC} °C; a reading at least every ${d.settings.gapLimitMin} min.`;
+}
+
+function BatchBody({ id }: { id: number }) {
+  const { session } = useSession();
+  const { isWide } = useBreakpoint();
+  const { data, error, isLoading, retry } = useBatch(id);
+  const logger = useLogReading(id);
+  const role: Role = session?.user.role ?? 'operator';
+
+  // Readings still on the device count in a preview, so the operator sees their effect at once.
+  const preview = useMemo(() => {
+    if (!data) return null;
+    const start = data.batch.startedAt;
+    const queued = logger.queued.map((q) => ({ h: batchHours(start, q.takenAt), c: q.c, isQueued: true }));
+    const all = [...data.readings.map((r) => ({ h: r.h, c: r.c, isQueued: false })), ...queued].sort((a, b) => a.h - b.h);
+    // A sampled historian record cannot be re-integrated here: then the server's figures stand until the readings arrive.
+    const canPreview = queued.length > 0 && data.readings.length === data.readingsTotal;
+    const status = canPreview ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective } : data.status;
+    return { all, status, isPreview: canPreview };
+  }, [data, logger.queued]);
+
+  if (error) return <ErrorState error={error} onRetry={retry} />;
+  if (isLoading || !data || !preview) return <Loader rows={6} label="Loading the batch" />;
+  const { batch: b, status } = data;
+  const isRunning = b.state === 'running';
+  const canLog = isRunning && (READING_LOGGERS as readonly Role[]).includes(role);
+  const canClose = isRunning && (BATCH_STARTERS as readonly Role[]).includes(role);
+  const last = preview.all.at(-1) ?? null;
+  const openDeviations = data.deviations.filter((d) => d.state !== 'closed').length;
+  const nowH = batchHours(b.startedAt, data.now);
+  const sinceLast = data.readings.length ? Date.parse(data.now) - Date.parse(data.readings[data.readings.length - 1].takenAt) : null;
+  const overdue = isRunning && sinceLast !== null && sinceLast > data.settings.gapLimitMin * 60_000;
+  const s = preview.status;
+  const sentence = `${status.readings} readings. Planned now ${fmt(s.plannedNowC)} °C${last ? `, last logged ${fmt(last.c)} °C` : ''}. Activity left ${fmt(s.activityLeft * 100, 0)} %, product so far ${fmt(s.productSoFarGPerL)} g/L; if the plan is followed from now the batch ends with ${fmt(s.forecastGPerL)} g/L against ${fmt(s.plannedProductGPerL)} g/L planned.`;
+
+  const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} logger={logger} /> : null;
+  const deviations = <DeviationList deviations={data.deviations} role={role} current={status.corrective} />;
+  const chart = (
+    <Card>
+      <Text variant="title" accessibilityRole="header">
+        Temperature against the plan
+      </Text>
+      <BatchTemperatureChart
+        label={sentence}
+        input={{ plan: b.program.log, batchH: b.program.batchH, toleranceC: data.settings.toleranceC, readings: preview.all, gapLimitH: data.settings.gapLimitMin / 60, vesselMaxC: b.program.vessel.maxC, nowH: isRunning ? nowH : null }}
+      />
+      <Text variant="small" testID="batch-sentence">
+        {sentence}
+      </Text>
+    </Card>
+  );
+  return (
+    <>
+      <Card>
+        <Text variant="title" testID="batch-title">
+          {b.recipeName} · {b.vesselName}
+        </Text>
+        <Text variant="small" tone={isRunning ? 'success' : 'muted'} weight="semibold" testID="batch-state">
+          {isRunning ? `Running · hour ${fmt(Math.max(0, nowH))} of ${fmt(b.program.batchH, 0)}` : `Closed ${b.closedAt ? shortTime(b.closedAt) : ''} by ${b.closedBy ?? '—'}`}
+        </Text>
+        <Text variant="small" tone="muted">
+          Lot {b.lotCode} · started {shortTime(b.startedAt)} by {b.startedBy}
+        </Text>
+        <Text variant="small" testID="batch-plan">
+          {planSentence(data)}
+        </Text>
+        {overdue ? (
+          <Text variant="small" tone="warning" weight="semibold" testID="batch-overdue">
+            No reading for {durationText(sinceLast!)}: the site asks for one every {data.settings.gapLimitMin} min.
+          </Text>
+        ) : null}
+        {!isRunning ? (
+          <Text variant="small" testID="batch-outcome">
+            Forecast at closing {fmt(b.forecastAtCloseGPerL ?? NaN)} g/L · measured {b.measuredProductGPerL === null ? 'not recorded' : `${fmt(b.measuredProductGPerL)} g/L`}
+          </Text>
+        ) : null}
+      </Card>
+      {/* On a phone the entry comes first: logging is the job at the vessel. */}
+      {isWide ? null : entry}
+      <StatusFigures status={s} isPreview={preview.isPreview} />
+      <View style={[styles.columns, isWide && styles.columnsWide]}>
+        <View style={[styles.column, isWide && styles.columnWide]}>
+          {isWide ? entry : null}
+          {deviations}
+        </View>
+        <View style={[styles.column, isWide && styles.columnWide]}>
+          {chart}
+          <Card>
+            <Text variant="title" accessibilityRole="header">
+              Latest readings
+            </Text>
+            {data.readings.length ? (
+              <DataTable columns={READING_COLUMNS} rows={[...data.readings].reverse().slice(0, 12)} rowKey={(r) => String(r.id)} caption="Latest readings, newest first" testID="readings-table" />
+            ) : (
+              <Text tone="muted">No readings yet.</Text>
+            )}
+            <View style={styles.links}>
+              <Button label="Printable report" variant="secondary" onPress={() => router.push(`/batches/report/${b.id}`)} testID="batch-report" />
+              <Button label="Download CSV" variant="ghost" onPress={() => void Linking.openURL(`/api/batches/${b.id}/report.csv`)} testID="batch-csv" />
+            </View>
+          </Card>
+          {canLog ? <HistorianUpload batchId={b.id} siteTimeZone={session?.user.siteTimeZone ?? 'UTC'} /> : null}
+          {canClose ? <CloseBatchCard batchId={b.id} status={status} openDeviations={openDeviations} /> : null}
+        </View>
+      </View>
+    </>
+  );
+}
+
+export default function BatchScreen() {
+  const { id } = useLocalSearchParams<{ id: string }>();
+  const batchId = Number(id);
+  return (
+    <RoleGate name="batches">
+      <Screen title="Batch" subtitle="Log the reactor temperature; the forecast follows." testID="screen-batch" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}>
+        {Number.isInteger(batchId) && batchId > 0 ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
+      </Screen>
+    </RoleGate>
+  );
+}
+
+const styles = StyleSheet.create({
+  columns: { gap: space.lg },
+  columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
+  column: { gap: space.lg },
+  columnWide: { flex: 1 },
+  links: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+});

@@ -1,0 +1,138 @@
+import { and, asc, desc, eq, inArray, ne, sql } from 'drizzle-orm';
+import type { Db } from '../../db/client';
+import { alias } from 'drizzle-orm/sqlite-core';
+import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/schema';
+
+export type BatchRow = typeof batches.$inferSelect;
+export type ReadingRow = typeof batchReadings.$inferSelect;
+export type DeviationRow = typeof deviations.$inferSelect;
+
+const starter = alias(users, 'starter');
+const closer = alias(users, 'closer');
+
+const joinedBatches = (db: Db) =>
+  db
+    .select({ batch: batches, recipeName: recipes.name, vesselName: vessels.name, lotCode: lots.lotCode, startedBy: starter.name, closedBy: closer.name })
+    .from(batches)
+    .innerJoin(recipes, eq(batches.recipeId, recipes.id))
+    .innerJoin(vessels, eq(batches.vesselId, vessels.id))
+    .innerJoin(lots, eq(batches.lotId, lots.id))
+    .innerJoin(starter, eq(batches.startedBy, starter.id))
+    .leftJoin(closer, eq(batches.closedBy, closer.id));
+
+export type BatchJoined = NonNullable<ReturnType<typeof findSiteBatch>>;
+
+export const findSiteBatch = (db: Db, siteId: number, id: number) => joinedBatches(db).where(and(eq(batches.siteId, siteId), eq(batches.id, id))).get();
+
+export const listSiteBatches = (db: Db, siteId: number) => joinedBatches(db).where(eq(batches.siteId, siteId)).orderBy(desc(batches.id)).limit(500).all();
+
+export const runningBatchOnVessel = (db: Db, siteId: number, vesselId: number) =>
+  db.select({ id: batches.id }).from(batches).where(and(eq(batches.siteId, siteId), eq(batches.vesselId, vesselId), eq(batches.state, 'running'))).get();
+
+export const insertBatch = (db: Db, row: Omit<typeof batches.$inferInsert, 'id' | 'createdAt'>) => db.insert(batches).values(row).returning().get();
+
+export const updateBatch = (db: Db, id: number, patch: Partial<Pick<BatchRow, 'state' | 'closedAt' | 'closedBy' | 'closeComment' | 'measuredProductGPerL' | 'forecastAtCloseGPerL'>>) =>
+  db.update(batches).set(patch).where(eq(batches.id, id)).returning().get();
+
+/** Batch ids among `ids` where the user logged a reading. */
+export const batchesLoggedBy = (db: Db, userId: number, ids: number[]) =>
+  ids.length
+    ? db
+        .selectDistinct({ batchId: batchReadings.batchId })
+        .from(batchReadings)
+        .where(and(eq(batchReadings.enteredBy, userId), inArray(batchReadings.batchId, ids)))
+        .all()
+        .map((r) => r.batchId)
+    : [];
+
+// Readings: the batch's own, in time order (ties by arrival).
+export const listReadings = (db: Db, batchId: number) =>
+  db
+    .select({ reading: batchReadings, enteredBy: users.name })
+    .from(batchReadings)
+    .innerJoin(users, eq(batchReadings.enteredBy, users.id))
+    .where(eq(batchReadings.batchId, batchId))
+    .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
+    .all();
+
+export const readingPoints = (db: Db, batchId: number) =>
+  db.select({ takenAt: batchReadings.takenAt, c: batchReadings.c }).from(batchReadings).where(eq(batchReadings.batchId, batchId)).orderBy(asc(batchReadings.takenAt), asc(batchReadings.id)).all();
+
+export const lastReadingTimes = (db: Db, batchIds: number[]) =>
+  batchIds.length
+    ? db
+        .select({ batchId: batchReadings.batchId, last: sql<string>`max(${batchReadings.takenAt})` })
+        .from(batchReadings)
+        .where(inArray(batchReadings.batchId, batchIds))
+        .groupBy(batchReadings.batchId)
+        .all()
+    : [];
+
+export const findReadingByKey = (db: Db, batchId: number, key: string) =>
+  db.select().from(batchReadings).where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.clientKey, key))).get();
+
+export const findReadingJoined = (db: Db, id: number) =>
+  db.select({ reading: batchReadings, enteredBy: users.name }).from(batchReadings).innerJoin(users, eq(batchReadings.enteredBy, users.id)).where(eq(batchReadings.id, id)).get();
+
+export const existingKeys = (db: Db, batchId: number) =>
+  new Set(db.select({ k: batchReadings.clientKey }).from(batchReadings).where(eq(batchReadings.batchId, batchId)).all().map((r) => r.k));
+
+export const insertReading = (db: Db, row: Omit<typeof batchReadings.$inferInsert, 'id'>) => db.insert(batchReadings).values(row).returning().get();
+
+// 9 columns a row: 1000 rows stay well under SQLite's limit on bound variables.
+export function insertReadings(db: Db, rows: Omit<typeof batchReadings.$inferInsert, 'id'>[]): ReadingRow[] {
+  const out: ReadingRow[] = [];
+  for (let i = 0; i < rows.length; i += 1000) out.push(...db.insert(batchReadings).values(rows.slice(i, i + 1000)).returning().all());
+  return out;
+}
+
+// Deviations, with the names of who acknowledged and closed them.
+const acker = alias(users, 'acker');
+const devCloser = alias(users, 'dev_closer');
+const joinedDeviations = (db: Db) =>
+  db
+    .select({ deviation: deviations, acknowledgedBy: acker.name, closedBy: devCloser.name })
+    .from(deviations)
+    .leftJoin(acker, eq(deviations.acknowledgedBy, acker.id))
+    .leftJoin(devCloser, eq(deviations.closedBy, devCloser.id));
+export type DeviationJoined = NonNullable<ReturnType<typeof findSiteDeviation>>;
+
+export const listDeviations = (db: Db, batchId: number) => joinedDeviations(db).where(eq(deviations.batchId, batchId)).orderBy(asc(deviations.at), asc(deviations.id)).all();
+
+export const findSiteDeviation = (db: Db, siteId: number, id: number) => joinedDeviations(db).where(and(eq(deviations.siteId, siteId), eq(deviations.id, id))).get();
+
+export const deviationsOfReading = (db: Db, readingId: number) => joinedDeviations(db).where(eq(deviations.readingId, readingId)).orderBy(asc(deviations.id)).all();
+
+export const hasActiveDeviation = (db: Db, batchId: number, kind: DeviationRow['kind']) =>
+  !!db.select({ id: deviations.id }).from(deviations).where(and(eq(deviations.batchId, batchId), eq(deviations.kind, kind), ne(deviations.state, 'closed'))).get();
+
+export const countActiveDeviations = (db: Db, batchIds: number[]) =>
+  batchIds.length
+    ? db
+        .select({ batchId: deviations.batchId, n: sql<number>`count(*)` })
+        .from(deviations)
+        .where(and(inArray(deviations.batchId, batchIds), ne(deviations.state, 'closed')))
+        .groupBy(deviations.batchId)
+        .all()
+    : [];
+
+export const insertDeviation = (db: Db, row: Omit<typeof deviations.$inferInsert, 'id'>) => db.insert(deviations).values(row).returning().get();
+
+export const updateDeviation = (db: Db, id: number, patch: Partial<Pick<DeviationRow, 'state' | 'acknowledgedBy' | 'acknowledgedAt' | 'acknowledgeComment' | 'closedBy' | 'closedAt' | 'closeComment'>>) =>
+  db.update(deviations).set(patch).where(eq(deviations.id, id)).run();
+
+// Settings
+export const findBatchSettings = (db: Db, siteId: number) => db.select().from(batchSettings).where(eq(batchSettings.siteId, siteId)).get();
+
+export const upsertBatchSettings = (db: Db, row: typeof batchSettings.$inferInsert) =>
+  db.insert(batchSettings).values(row).onConflictDoUpdate({ target: batchSettings.siteId, set: { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin, updatedAt: row.updatedAt } }).run();
+
+// Change control's signatures on the plan a batch runs: the batch record shows who released it.
+export const planSignatures = (db: Db, siteId: number, planId: number) =>
+  db
+    .select({ signature: signatures, changeRequestId: changeRequests.id, status: changeRequests.status })
+    .from(signatures)
+    .innerJoin(changeRequests, eq(signatures.changeRequestId, changeRequests.id))
+    .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.planId, planId)))
+    .orderBy(asc(signatures.id))
+    .all();

@@ -1,0 +1,66 @@
+import express, { Router } from 'express';
+import { z } from 'zod';
+import {
+  Batch,
+  BATCH_READERS,
+  BATCH_STARTERS,
+  BatchClose,
+  BatchDetail,
+  BatchList,
+  BatchSettings,
+  BatchSettingsPatch,
+  BatchStart,
+  ImportQuery,
+  ImportResult,
+  READING_LOGGERS,
+  ReadingInput,
+  ReadingResult,
+} from '../../src/contracts/batches';
+import { HttpError } from '../http-error';
+import { allow, currentUser } from '../middleware/auth';
+import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, importReadings, listBatches, logReading, startBatch } from '../services/batches';
+import type { Services } from './services';
+
+const IdParam = z.object({ id: z.coerce.number().int().positive() });
+// A historian export of a long batch at one reading a second runs to several megabytes of text.
+const csvBody = express.text({ type: ['text/csv', 'text/plain', 'application/csv'], limit: '8mb' });
+
+export function batchesRouter(s: Services): Router {
+  const router = Router();
+  router.get('/', allow(...BATCH_READERS), (req, res) => {
+    res.json(BatchList.parse({ batches: listBatches(s, currentUser(req)) }));
+  });
+  router.post('/', allow(...BATCH_STARTERS), (req, res) => {
+    res.status(201).json(Batch.parse(startBatch(s, currentUser(req), BatchStart.parse(req.body))));
+  });
+  router.get('/settings', allow(...BATCH_READERS), (req, res) => {
+    res.json(BatchSettings.parse(batchSettingsOf(s.db, currentUser(req).siteId)));
+  });
+  router.patch('/settings', allow('supervisor', 'admin'), (req, res) => {
+    res.json(BatchSettings.parse(changeBatchSettings(s, currentUser(req), BatchSettingsPatch.parse(req.body))));
+  });
+  router.get('/:id', allow(...BATCH_READERS), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    res.json(BatchDetail.parse(getBatchDetail(s, currentUser(req), id)));
+  });
+  router.post('/:id/readings', allow(...READING_LOGGERS), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    const { created, result } = logReading(s, currentUser(req), id, ReadingInput.parse(req.body));
+    res.status(created ? 201 : 200).json(ReadingResult.parse(result));
+  });
+  router.post('/:id/readings/import', allow(...READING_LOGGERS), csvBody, (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    if (typeof req.body !== 'string') throw new HttpError(400, 'invalid_input', 'Send the historian export as text/csv', { file: 'Expected a CSV file' });
+    res.json(ImportResult.parse(importReadings(s, currentUser(req), id, req.body, ImportQuery.parse(req.query))));
+  });
+  router.post('/:id/close', allow(...BATCH_STARTERS), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    res.json(Batch.parse(closeBatch(s, currentUser(req), id, BatchClose.parse(req.body))));
+  });
+  router.get('/:id/report.csv', allow(...BATCH_READERS), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    const { filename, csv } = batchReportCsv(s, currentUser(req), id);
+    res.type('text/csv').attachment(filename).send(csv);
+  });
+  return router;
+}

@@ -1,0 +1,549 @@
+import type { Db } from '../../db/client';
+import {
+  batchHours,
+  batchProgram,
+  batchStatus,
+  forecastDeviation,
+  isTimeZone,
+  parseHistorianCsv,
+  plannedAt,
+  runDeviations,
+  type DeviationDraft,
+  type ReadingRules,
+} from '../../src/batches';
+import {
+  CLOCK_SKEW_MIN,
+  DEFAULT_BATCH_SETTINGS,
+  READING_MAX_C,
+  READING_MIN_C,
+  type Batch,
+  type BatchClose,
+  type BatchDetail,
+  type BatchProgram,
+  type BatchSettings,
+  type BatchSettingsPatch,
+  type BatchStart,
+  type BatchSummary,
+  type Deviation,
+  type DeviationAcknowledge,
+  type DeviationClose,
+  type ImportProblem,
+  type ImportQuery,
+  type ImportResult,
+  type Reading,
+  type ReadingInput,
+  type ReadingResult,
+} from '../../src/contracts/batches';
+import type { SessionUser } from '../../src/contracts/session';
+import { toCsv } from '../csv';
+import { HttpError, notFound } from '../http-error';
+import {
+  batchesLoggedBy,
+  countActiveDeviations,
+  deviationsOfReading,
+  existingKeys,
+  findBatchSettings,
+  findReadingByKey,
+  findReadingJoined,
+  findSiteBatch,
+  findSiteDeviation,
+  hasActiveDeviation,
+  insertBatch,
+  insertDeviation,
+  insertReading,
+  insertReadings,
+  lastReadingTimes,
+  listDeviations,
+  listReadings,
+  listSiteBatches,
+  planSignatures,
+  readingPoints,
+  runningBatchOnVessel,
+  updateBatch,
+  updateDeviation,
+  upsertBatchSettings,
+  type BatchJoined,
+  type DeviationJoined,
+  type ReadingRow,
+} from '../repositories/batches';
+import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
+import { findSiteVessel } from '../repositories/vessels';
+import type { Services } from '../routes/services';
+import { appendAudit } from './audit';
+import { getPlan } from './plans';
+import { acceptedLot, toPlanningLot } from './recipes';
+
+const tx$ = (tx: unknown) => tx as Db;
+// A batch may be registered after it started (the paperwork follows the vessel), but not a week late.
+const LATE_START_LIMIT_H = 7 * 24;
+// Kinds whose cause an operator can correct with the temperature: these get a corrective setpoint.
+const CORRECTABLE = new Set(['band', 'vessel_max', 'forecast_low']);
+
+// Settings -----------------------------------------------------------------------------------------------
+
+export function batchSettingsOf(db: Db, siteId: number): BatchSettings {
+  const row = findBatchSettings(db, siteId);
+  return row ? { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin } : { ...DEFAULT_BATCH_SETTINGS };
+}
+
+export function changeBatchSettings({ db, clock }: Services, u: SessionUser, patch: BatchSettingsPatch): BatchSettings {
+  const before = batchSettingsOf(db, u.siteId);
+  const after = { ...before, ...patch };
+  const now = clock.now();
+  db.transaction((tx) => {
+    upsertBatchSettings(tx$(tx), { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
+    appendAudit(tx$(tx), { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch_settings.update', entity: 'batch_settings', entityId: u.siteId, oldValue: before, newValue: after, at: now });
+  });
+  return after;
+}
+
+// Mapping ------------------------------------------------------------------------------------------------
+
+const toBatch = (j: BatchJoined, isMine: boolean): Batch => ({
+  id: j.batch.id,
+  recipeId: j.batch.recipeId,
+  recipeName: j.recipeName,
+  vesselId: j.batch.vesselId,
+  vesselName: j.vesselName,
+  lotId: j.batch.lotId,
+  lotCode: j.lotCode,
+  state: j.batch.state,
+  startedAt: j.batch.startedAt,
+  startedBy: j.startedBy,
+  closedAt: j.batch.closedAt,
+  closedBy: j.closedBy,
+  closeComment: j.batch.closeComment,
+  measuredProductGPerL: j.batch.measuredProductGPerL,
+  forecastAtCloseGPerL: j.batch.forecastAtCloseGPerL,
+  program: j.batch.program,
+  isMine,
+});
+
+const toReading = (r: ReadingRow, enteredBy: string, startedAt: string): Reading => ({
+  id: r.id,
+  key: r.clientKey,
+  takenAt: r.takenAt,
+  h: batchHours(startedAt, r.takenAt),
+  c: r.c,
+  note: r.note,
+  source: r.source,
+  enteredBy,
+});
+
+const toDeviation = ({ deviation: d, acknowledgedBy, closedBy }: DeviationJoined): Deviation => ({
+  id: d.id,
+  batchId: d.batchId,
+  kind: d.kind,
+  state: d.state,
+  readingId: d.readingId,
+  at: d.at,
+  message: d.message,
+  valueC: d.valueC,
+  expectedC: d.expectedC,
+  corrective: d.corrective ?? null,
+  raisedAt: d.raisedAt,
+  acknowledgedBy,
+  acknowledgedAt: d.acknowledgedAt,
+  acknowledgeComment: d.acknowledgeComment,
+  closedBy,
+  closedAt: d.closedAt,
+  closeComment: d.closeComment,
+});
+
+const pointsOf = (db: Db, b: { id: number; startedAt: string }) => readingPoints(db, b.id).map((r) => ({ h: batchHours(b.startedAt, r.takenAt), c: r.c }));
+
+const rulesOf = (program: BatchProgram, settings: BatchSettings): ReadingRules => ({
+  ...settings,
+  vesselMaxC: program.vessel.maxC,
+  plannedAt: (h) => plannedAt(program, h),
+});
+
+function loadBatch(db: Db, siteId: number, id: number): BatchJoined {
+  const found = findSiteBatch(db, siteId, id);
+  if (!found) throw notFound('Batch');
+  return found;
+}
+
+const isoAfterStart = (startedAt: string, h: number) => new Date(Date.parse(startedAt) + h * 3_600_000).toISOString();
+
+// Reads --------------------------------------------------------------------------------------------------
+
+export function listBatches({ db, clock }: Services, u: SessionUser): BatchSummary[] {
+  const rows = listSiteBatches(db, u.siteId);
+  const ids = rows.map((r) => r.batch.id);
+  const logged = new Set(batchesLoggedBy(db, u.id, ids));
+  const active = new Map(countActiveDeviations(db, ids).map((r) => [r.batchId, r.n]));
+  const last = new Map(lastReadingTimes(db, ids).map((r) => [r.batchId, r.last]));
+  const now = clock.now().toISOString();
+  return rows.map((j) => {
+    const b = j.batch;
+    const forecast =
+      b.state === 'closed' && b.forecastAtCloseGPerL !== null
+        ? b.forecastAtCloseGPerL
+        : batchStatus(b.program, pointsOf(db, b), batchHours(b.startedAt, now)).forecastGPerL;
+    return {
+      id: b.id,
+      recipeName: j.recipeName,
+      vesselName: j.vesselName,
+      lotCode: j.lotCode,
+      source: b.source,
+      state: b.state,
+      startedAt: b.startedAt,
+      closedAt: b.closedAt,
+      batchH: b.program.batchH,
+      isMine: b.startedBy === u.id || logged.has(b.id),
+      openDeviations: active.get(b.id) ?? 0,
+      lastReadingAt: last.get(b.id) ?? null,
+      plannedProductGPerL: b.program.plannedProductGPerL,
+      forecastGPerL: forecast,
+      measuredProductGPerL: b.measuredProductGPerL,
+    };
+  });
+}
+
+// A phone needs neither megabytes of historian data nor 50,000 table rows: past this many it gets a sample.
+const DETAIL_READINGS = 5000;
+const LATEST_KEPT = 50;
+
+/** Every k-th reading and the latest ones, in time order. */
+export function sampleReadings<T>(all: readonly T[], max = DETAIL_READINGS): T[] {
+  if (all.length <= max) return [...all];
+  const k = Math.ceil(all.length / (max - LATEST_KEPT));
+  const tail = all.length - LATEST_KEPT;
+  return all.filter((_, i) => i >= tail || i % k === 0);
+}
+
+export function getBatchDetail(s: Services, u: SessionUser, id: number): BatchDetail {
+  const d = batchRecord(s, u, id);
+  return { ...d, readings: sampleReadings(d.readings), readingsTotal: d.readings.length };
+}
+
+/** The whole batch record, every reading included (the report). */
+function batchRecord({ db, clock }: Services, u: SessionUser, id: number): Omit<BatchDetail, 'readingsTotal'> {
+  const j = loadBatch(db, u.siteId, id);
+  const b = j.batch;
+  const readings = listReadings(db, b.id).map((r) => toReading(r.reading, r.enteredBy, b.startedAt));
+  const devs = listDeviations(db, b.id).map(toDeviation);
+  const now = clock.now().toISOString();
+  const needsCorrective = b.state === 'running' && devs.some((d) => d.state !== 'closed' && CORRECTABLE.has(d.kind));
+  const status = batchStatus(b.program, readings, batchHours(b.startedAt, now), needsCorrective);
+  const isMine = b.startedBy === u.id || batchesLoggedBy(db, u.id, [b.id]).length > 0;
+  const signed = b.planId
+    ? planSignatures(db, u.siteId, b.planId).map(({ signature: sg, changeRequestId }) => ({
+        changeRequestId,
+        printedName: sg.printedName,
+        role: sg.role,
+        meaning: sg.meaning,
+        comment: sg.comment,
+        signedAt: sg.signedAt,
+        recordHash: sg.recordHash,
+      }))
+    : [];
+  return { batch: toBatch(j, isMine), readings, deviations: devs, status, settings: batchSettingsOf(db, u.siteId), signatures: signed, now };
+}
+
+// Start and close ----------------------------------------------------------------------------------------
+
+export function startBatch({ db, clock }: Services, u: SessionUser, input: BatchStart): Batch {
+  const found = findSiteRecipe(db, u.siteId, input.recipeId);
+  if (!found) throw new HttpError(400, 'invalid_input', 'No such recipe at this site', { recipeId: 'Choose a recipe' });
+  const { recipe } = found;
+  const vessel = findSiteVessel(db, u.siteId, input.vesselId);
+  if (!vessel) throw new HttpError(400, 'invalid_input', 'No such vessel at this site', { vesselId: 'Choose a vessel' });
+  const lot = acceptedLot(db, u.siteId, input.lotId);
+  if (lot.enzymeId !== recipe.enzymeId) throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
+  const now = clock.now();
+  const startMs = Date.parse(input.startedAt);
+  if (startMs > now.getTime() + CLOCK_SKEW_MIN * 60_000) throw new HttpError(400, 'invalid_input', 'The start is in the future', { startedAt: 'A batch cannot start in the future' });
+  if (startMs < now.getTime() - LATE_START_LIMIT_H * 3_600_000) throw new HttpError(400, 'invalid_input', 'The start is more than a week ago', { startedAt: 'At most a week ago' });
+  if (runningBatchOnVessel(db, u.siteId, vessel.id)) throw new HttpError(409, 'vessel_busy', `${vessel.name} already has a running batch`, { vesselId: 'This vessel already has a running batch' });
+  const plan = recipe.releasedPlanId ? getPlan({ db, clock }, u, recipe.releasedPlanId) : null;
+  const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
+  const program = batchProgram({ recipe, enzyme, lot: toPlanningLot(lot), vessel, plan });
+  const temps = program.stages.map((s) => s.c);
+  if (Math.min(...temps) < vessel.minC || Math.max(...temps) > vessel.maxC)
+    throw new HttpError(400, 'plan_outside_vessel', `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`, { vesselId: 'The plan does not fit this vessel' });
+  const startedAt = new Date(startMs).toISOString();
+  return db.transaction((tx) => {
+    const t = tx$(tx);
+    const row = insertBatch(t, { siteId: u.siteId, recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, planId: program.planId, source: program.source, program, state: 'running', startedAt, startedBy: u.id });
+    appendAudit(t, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'batch.start',
+      entity: 'batch',
+      entityId: row.id,
+      newValue: { recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, startedAt, source: program.source, planId: program.planId, stages: program.stages },
+      at: now,
+    });
+    return toBatch(findSiteBatch(t, u.siteId, row.id)!, true);
+  });
+}
+
+export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, input: BatchClose): Batch {
+  const j = loadBatch(db, u.siteId, id);
+  const b = j.batch;
+  if (b.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is already closed');
+  const open = listDeviations(db, b.id).filter((d) => d.deviation.state !== 'closed').length;
+  if (open) throw new HttpError(409, 'open_deviations', `Close the batch's ${open} open deviation${open > 1 ? 's' : ''} first`);
+  const now = clock.now();
+  const forecast = batchStatus(b.program, pointsOf(db, b), batchHours(b.startedAt, now.toISOString())).forecastGPerL;
+  const patch = {
+    state: 'closed' as const,
+    closedAt: now.toISOString(),
+    closedBy: u.id,
+    closeComment: input.comment || null,
+    measuredProductGPerL: input.measuredProductGPerL ?? null,
+    forecastAtCloseGPerL: forecast,
+  };
+  return db.transaction((tx) => {
+    const t = tx$(tx);
+    updateBatch(t, b.id, patch);
+    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.close', entity: 'batch', entityId: b.id, oldValue: { state: 'running' }, newValue: { ...patch, closedBy: u.email }, at: now });
+    return toBatch(findSiteBatch(t, u.siteId, b.id)!, b.startedBy === u.id);
+  });
+}
+
+// Readings -----------------------------------------------------------------------------------------------
+
+function raiseDeviations(
+  t: Db,
+  u: SessionUser,
+  b: BatchJoined['batch'],
+  raised: { readingId: number | null; draft: DeviationDraft }[],
+  now: Date,
+): number {
+  const settings = batchSettingsOf(t, u.siteId);
+  const points = pointsOf(t, b);
+  const status = batchStatus(b.program, points, batchHours(b.startedAt, now.toISOString()), true);
+  const lastH = status.lastH;
+  const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hasActiveDeviation(t, b.id, 'forecast_low'), lastH);
+  const all = low ? [...raised, { readingId: null, draft: low }] : raised;
+  for (const { readingId, draft } of all) {
+    const row = insertDeviation(t, {
+      siteId: u.siteId,
+      batchId: b.id,
+      kind: draft.kind,
+      state: 'open',
+      readingId,
+      at: isoAfterStart(b.startedAt, draft.h),
+      message: draft.message,
+      valueC: draft.valueC,
+      expectedC: draft.expectedC,
+      corrective: CORRECTABLE.has(draft.kind) ? status.corrective : null,
+      raisedAt: now.toISOString(),
+    });
+    appendAudit(t, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'deviation.raise',
+      entity: 'deviation',
+      entityId: row.id,
+      newValue: { batchId: b.id, kind: draft.kind, at: row.at, message: draft.message, settings, corrective: row.corrective },
+      at: now,
+    });
+  }
+  return all.length;
+}
+
+function checkReadingTime(startedAt: string, takenMs: number, now: Date): string | null {
+  if (takenMs > now.getTime() + CLOCK_SKEW_MIN * 60_000) return `More than ${CLOCK_SKEW_MIN} min ahead of the server's clock`;
+  if (takenMs < Date.parse(startedAt)) return 'Before the batch started';
+  return null;
+}
+
+function runningBatch(db: Db, siteId: number, id: number): BatchJoined {
+  const j = loadBatch(db, siteId, id);
+  if (j.batch.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is closed; readings can no longer be added');
+  return j;
+}
+
+/** Stores one reading once per key: the first call answers 201, a repeat of the same reading 200 with the same body. */
+export function logReading({ db, clock }: Services, u: SessionUser, id: number, input: ReadingInput): { created: boolean; result: ReadingResult } {
+  const j = loadBatch(db, u.siteId, id);
+  const b = j.batch;
+  const takenAt = new Date(input.takenAt).toISOString();
+  const note = input.note ? input.note : null;
+  const answer = (readingId: number): ReadingResult => {
+    const r = findReadingJoined(db, readingId)!;
+    return { reading: toReading(r.reading, r.enteredBy, b.startedAt), deviations: deviationsOfReading(db, readingId).map(toDeviation) };
+  };
+  const existing = findReadingByKey(db, b.id, input.key);
+  if (existing) {
+    if (existing.takenAt !== takenAt || existing.c !== input.c || existing.note !== note)
+      throw new HttpError(409, 'key_reused', 'This reading key was already used for a different reading', { key: 'Already used for another reading' });
+    return { created: false, result: answer(existing.id) };
+  }
+  if (b.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is closed; readings can no longer be added');
+  const now = clock.now();
+  const bad = checkReadingTime(b.startedAt, Date.parse(takenAt), now);
+  if (bad) throw new HttpError(400, 'invalid_input', bad, { takenAt: bad });
+  const settings = batchSettingsOf(db, u.siteId);
+  const stored = pointsOf(db, b);
+  const point = { h: batchHours(b.startedAt, takenAt), c: input.c };
+  const drafts = runDeviations(rulesOf(b.program, settings), stored, [point]);
+  const readingId = db.transaction((tx) => {
+    const t = tx$(tx);
+    const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
+    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
+    raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: row.id, draft: d.draft })), now);
+    return row.id;
+  });
+  return { created: true, result: answer(readingId) };
+}
+
+const MAX_PROBLEMS = 200;
+
+/** A historian export in one transaction: rows that cannot be stored are reported by line and the rest go in. */
+export function importReadings({ db, clock }: Services, u: SessionUser, id: number, text: string, q: ImportQuery): ImportResult {
+  const j = runningBatch(db, u.siteId, id);
+  const b = j.batch;
+  const timeZone = q.timeZone ?? u.siteTimeZone;
+  if (!isTimeZone(timeZone)) throw new HttpError(400, 'invalid_input', `Unknown time zone ${timeZone}`, { timeZone: 'Give an IANA zone such as Europe/Berlin' });
+  const parsed = parseHistorianCsv(text, { timeZone, dateOrder: q.dateOrder });
+  if (parsed.total === 0) throw new HttpError(400, 'invalid_input', 'The file has no readings', { file: 'Expected lines of time and °C' });
+  const now = clock.now();
+  const problems: ImportProblem[] = parsed.problems.map((p) => ({ line: p.line, kind: 'invalid', message: p.message }));
+  const keys = existingKeys(db, b.id);
+  const seen = new Map<string, number>();
+  const accepted: { line: number; at: string; c: number; key: string }[] = [];
+  let outOfOrder = 0;
+  let lastMs = -Infinity;
+  for (const r of parsed.rows) {
+    const ms = Date.parse(r.at);
+    const key = `historian:${r.at}`;
+    const reject = (kind: ImportProblem['kind'], message: string) => problems.push({ line: r.line, kind, message });
+    if (r.c < READING_MIN_C || r.c > READING_MAX_C) reject('invalid', `${r.c} °C is outside ${READING_MIN_C} to ${READING_MAX_C} °C`);
+    else if (checkReadingTime(b.startedAt, ms, now)) reject('invalid', `${r.at}: ${checkReadingTime(b.startedAt, ms, now)}`);
+    else if (seen.has(key)) reject('duplicate', `Same time as line ${seen.get(key)}`);
+    else if (keys.has(key)) reject('already_stored', `A reading at ${r.at} is already stored`);
+    else {
+      if (ms < lastMs) {
+        outOfOrder++;
+        reject('out_of_order', `Earlier than the line before it; stored in time order`);
+      }
+      lastMs = Math.max(lastMs, ms);
+      seen.set(key, r.line);
+      accepted.push({ line: r.line, at: r.at, c: r.c, key });
+    }
+  }
+  problems.sort((a, b2) => a.line - b2.line);
+  accepted.sort((a, b2) => (a.at < b2.at ? -1 : a.at > b2.at ? 1 : 0));
+  const settings = batchSettingsOf(db, u.siteId);
+  const stored = pointsOf(db, b);
+  const drafts = runDeviations(
+    rulesOf(b.program, settings),
+    stored,
+    accepted.map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })),
+  );
+  const raised = db.transaction((tx) => {
+    const t = tx$(tx);
+    const rows = insertReadings(
+      t,
+      accepted.map((a) => ({ siteId: u.siteId, batchId: b.id, clientKey: a.key, takenAt: a.at, c: a.c, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
+    );
+    appendAudit(t, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'batch.readings_import',
+      entity: 'batch',
+      entityId: b.id,
+      newValue: { rows: parsed.total, imported: rows.length, timeZone, dateOrder: q.dateOrder, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
+      at: now,
+    });
+    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), now) : 0;
+  });
+  const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
+  return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone };
+}
+
+// Deviations ---------------------------------------------------------------------------------------------
+
+function loadDeviation(db: Db, siteId: number, id: number): DeviationJoined {
+  const d = findSiteDeviation(db, siteId, id);
+  if (!d) throw notFound('Deviation');
+  return d;
+}
+
+export function acknowledgeDeviation({ db, clock }: Services, u: SessionUser, id: number, input: DeviationAcknowledge): Deviation {
+  const d = loadDeviation(db, u.siteId, id);
+  if (d.deviation.state !== 'open') throw new HttpError(409, 'already_acknowledged', 'This deviation was already acknowledged');
+  const now = clock.now();
+  db.transaction((tx) => {
+    const t = tx$(tx);
+    updateDeviation(t, id, { state: 'acknowledged', acknowledgedBy: u.id, acknowledgedAt: now.toISOString(), acknowledgeComment: input.comment });
+    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.acknowledge', entity: 'deviation', entityId: id, oldValue: { state: 'open' }, newValue: { state: 'acknowledged', comment: input.comment }, at: now });
+  });
+  return toDeviation(loadDeviation(db, u.siteId, id));
+}
+
+export function closeDeviation({ db, clock }: Services, u: SessionUser, id: number, input: DeviationClose): Deviation {
+  const d = loadDeviation(db, u.siteId, id);
+  if (d.deviation.state === 'open') throw new HttpError(409, 'not_acknowledged', 'The operator acknowledges a deviation before it is closed');
+  if (d.deviation.state === 'closed') throw new HttpError(409, 'already_closed', 'This deviation is already closed');
+  const now = clock.now();
+  db.transaction((tx) => {
+    const t = tx$(tx);
+    updateDeviation(t, id, { state: 'closed', closedBy: u.id, closedAt: now.toISOString(), closeComment: input.comment || null });
+    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.close', entity: 'deviation', entityId: id, oldValue: { state: 'acknowledged' }, newValue: { state: 'closed', comment: input.comment ?? null }, at: now });
+  });
+  return toDeviation(loadDeviation(db, u.siteId, id));
+}
+
+// Report -------------------------------------------------------------------------------------------------
+
+/** The batch record as section/field/value rows: recipe, plan, status, readings and deviations, spreadsheet-safe. */
+export function batchReportCsv(s: Services, u: SessionUser, id: number): { filename: string; csv: string } {
+  const { batch: b, readings, deviations: devs, status, settings, signatures: signed } = batchRecord(s, u, id);
+  const p = b.program;
+  const rows: unknown[][] = [
+    ['batch', 'id', b.id, ''],
+    ['batch', 'recipe', b.recipeName, ''],
+    ['batch', 'vessel', b.vesselName, ''],
+    ['batch', 'lot', b.lotCode, ''],
+    ['batch', 'state', b.state, ''],
+    ['batch', 'started_at_utc', b.startedAt, ''],
+    ['batch', 'started_by', b.startedBy, ''],
+    ['batch', 'closed_at_utc', b.closedAt, ''],
+    ['batch', 'closed_by', b.closedBy, ''],
+    ['batch', 'close_comment', b.closeComment, ''],
+    ['plan', 'source', p.source === 'released_plan' ? 'released plan' : 'recipe current setpoint', ''],
+    ['plan', 'plan_id', p.planId, ''],
+    ['plan', 'batch_length', p.batchH, 'h'],
+    ...p.stages.map((st, i) => ['plan', `stage_${i + 1}`, `${st.hours} h at ${st.c}`, 'h, degC']),
+    ['plan', 'fill_temperature', p.fillC, 'degC'],
+    ['plan', 'planned_product', p.plannedProductGPerL, 'g/L'],
+    ['plan', 'p10_product', p.p10GPerL, 'g/L'],
+    ['plan', 'tolerance_band', settings.toleranceC, '+/- degC'],
+    ['plan', 'gap_limit', settings.gapLimitMin, 'min'],
+    ['plan', 'vessel_max', p.vessel.maxC, 'degC'],
+    ['status', 'readings', status.readings, ''],
+    ['status', 'activity_left', status.activityLeft, 'fraction'],
+    ['status', 'product_so_far', status.productSoFarGPerL, 'g/L'],
+    ['status', 'forecast_product', status.forecastGPerL, 'g/L'],
+    ['status', 'thermal_dose', status.equivalentHAtRef, `h at ${status.refC} degC`],
+    ['status', 'forecast_at_close', b.forecastAtCloseGPerL, 'g/L'],
+    ['status', 'measured_product', b.measuredProductGPerL, 'g/L'],
+    ...(signed.length
+      ? signed.map((g) => ['signature', `${g.printedName} (${g.role})`, g.meaning, `${g.signedAt} ${g.comment}; change request ${g.changeRequestId}; record ${g.recordHash}`])
+      : [['signature', 'none', p.source === 'released_plan' ? 'no signature found for the plan' : 'runs the recipe current setpoint', '']]),
+    ...readings.map((r) => ['reading', r.takenAt, r.c, `degC; ${r.source}; ${r.enteredBy}${r.note ? `; ${r.note}` : ''}`]),
+    ...devs.map((d) => [
+      'deviation',
+      `${d.id} ${d.kind} at ${d.at}`,
+      d.message,
+      [
+        d.state,
+        d.acknowledgedBy ? `acknowledged by ${d.acknowledgedBy} ${d.acknowledgedAt}: ${d.acknowledgeComment}` : null,
+        d.closedBy ? `closed by ${d.closedBy} ${d.closedAt}${d.closeComment ? `: ${d.closeComment}` : ''}` : null,
+        d.corrective ? `suggested ${d.corrective.setpointC.toFixed(1)} degC from hour ${d.corrective.fromH.toFixed(1)}` : null,
+      ]
+        .filter(Boolean)
+        .join('; '),
+    ]),
+  ];
+  return { filename: `batch-${b.id}.csv`, csv: toCsv(['section', 'field', 'value', 'detail'], rows) };
+}

@@ -1,0 +1,171 @@
+// Plant historian exports: a time column and a degC column. Exports differ by site and tool, so the parser
+// accepts the common shapes: comma, semicolon or tab separators (semicolon files may use a decimal comma),
+// an optional header naming the columns, ISO-8601 times with or without a zone, day.month.year or
+// day/month/year (or month/day/year) local times with optional AM/PM, and Unix epoch seconds or milliseconds.
+
+export type DateOrder = 'dmy' | 'mdy';
+export type ParsedRow = { line: number; at: string; c: number };
+export type RowProblem = { line: number; message: string };
+export type ParsedCsv = { rows: ParsedRow[]; problems: RowProblem[]; total: number };
+
+const TIME_HEADER = /^(time|timestamp|date ?time|datetime|date|ts|zeit)$/i;
+const TEMP_HEADER = /(deg ?c|°c|temp|temperature|value|pv)/i;
+
+// Building a formatter costs far more than using one; a 50,000-row import asks for the same zone each time.
+const formatters = new Map<string, Intl.DateTimeFormat>();
+function formatter(timeZone: string): Intl.DateTimeFormat {
+  let f = formatters.get(timeZone);
+  if (!f) {
+    f = new Intl.DateTimeFormat('en-US', { timeZone, hourCycle: 'h23', year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit' });
+    formatters.set(timeZone, f);
+  }
+  return f;
+}
+
+/** Offset of a time zone from UTC at an instant, minutes (positive east); throws on an unknown zone. */
+export function zoneOffsetMin(timeZone: string, utcMs: number): number {
+  const parts = formatter(timeZone).formatToParts(new Date(utcMs));
+  const get = (t: string) => Number(parts.find((p) => p.type === t)!.value);
+  const asUtc = Date.UTC(get('year'), get('month') - 1, get('day'), get('hour'), get('minute'), get('second'));
+  return Math.round((asUtc - Math.floor(utcMs / 1000) * 1000) / 60_000);
+}
+
+/** True when the zone is known to this runtime. */
+export function isTimeZone(tz: string): boolean {
+  try {
+    zoneOffsetMin(tz, 0);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/** A wall-clock time in a zone as UTC ms; in the autumn overlap the earlier instant, in the spring gap the later. */
+export function zonedToUtcMs(y: number, mo: number, d: number, h: number, mi: number, s: number, ms: number, timeZone: string): number {
+  const wall = Date.UTC(y, mo - 1, d, h, mi, s, ms);
+  // A day either side brackets any change of offset; a candidate is valid when the zone reads it back as the wall time.
+  const offsets = [zoneOffsetMin(timeZone, wall - 86_400_000), zoneOffsetMin(timeZone, wall + 86_400_000)];
+  const valid = offsets.map((o) => wall - o * 60_000).filter((t) => zoneOffsetMin(timeZone, t) * 60_000 === wall - t);
+  return valid.length ? Math.min(...valid) : wall - Math.min(...offsets) * 60_000;
+}
+
+function validDate(y: number, mo: number, d: number, h: number, mi: number, s: number) {
+  if (mo < 1 || mo > 12 || d < 1 || h > 23 || mi > 59 || s > 60) return false;
+  return d <= new Date(Date.UTC(y, mo, 0)).getUTCDate();
+}
+
+const ISO = /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2})(?:[.,](\d{1,9}))?)?\s*(Z|[+-]\d{2}:?\d{2})?$/i;
+const LOCAL = /^(\d{1,4})([./-])(\d{1,2})\2(\d{1,4})[ T,]+(\d{1,2}):(\d{2})(?::(\d{2})(?:[.,](\d{1,3}))?)?\s*(AM|PM)?\s*(Z|[+-]\d{2}:?\d{2})?$/i;
+
+/** One time cell as an ISO UTC instant, or an error message. */
+export function parseTime(raw: string, timeZone: string, dateOrder: DateOrder): string | { error: string } {
+  const s = raw.trim().replace(/^"|"$/g, '');
+  if (/^\d{10}(\.\d+)?$/.test(s)) return new Date(Math.round(Number(s) * 1000)).toISOString();
+  if (/^\d{13}$/.test(s)) return new Date(Number(s)).toISOString();
+  let y: number, mo: number, d: number, h: number, mi: number, sec: number, ms: number, zone: string | undefined;
+  let m = ISO.exec(s);
+  if (m) {
+    [y, mo, d, h, mi] = [m[1], m[2], m[3], m[4], m[5]].map(Number);
+    sec = Number(m[6] ?? 0);
+    ms = m[7] ? Math.round(Number(`0.${m[7]}`) * 1000) : 0;
+    zone = m[8];
+  } else if ((m = LOCAL.exec(s))) {
+    const [a, b, c] = [Number(m[1]), Number(m[3]), Number(m[4])];
+    if (m[1].length === 4) [y, mo, d] = [a, b, c];
+    else if (m[2] === '.' || dateOrder === 'dmy') [d, mo, y] = [a, b, c];
+    else [mo, d, y] = [a, b, c];
+    if (y < 100) y += 2000;
+    h = Number(m[5]);
+    mi = Number(m[6]);
+    sec = Number(m[7] ?? 0);
+    ms = m[8] ? Math.round(Number(`0.${m[8]}`) * 1000) : 0;
+    const ampm = m[9]?.toUpperCase();
+    if (ampm) {
+      if (h < 1 || h > 12) return { error: `Hour ${h} does not go with ${ampm}` };
+      h = (h % 12) + (ampm === 'PM' ? 12 : 0);
+    }
+    zone = m[10];
+  } else {
+    return { error: `Cannot read "${s.slice(0, 40)}" as a time` };
+  }
+  if (!validDate(y, mo, d, h, mi, sec)) return { error: `"${s.slice(0, 40)}" is not a calendar date and time` };
+  let utc: number;
+  if (zone) {
+    const z = zone.toUpperCase() === 'Z' ? 0 : (zone[0] === '-' ? -1 : 1) * (Number(zone.slice(1, 3)) * 60 + Number(zone.slice(-2)));
+    utc = Date.UTC(y, mo - 1, d, h, mi, sec, ms) - z * 60_000;
+  } else {
+    utc = zonedToUtcMs(y, mo, d, h, mi, sec, ms, timeZone);
+  }
+  return new Date(utc).toISOString();
+}
+
+function splitLine(line: string, sep: string): string[] {
+  if (!line.includes('"')) return line.split(sep);
+  const out: string[] = [];
+  let cur = '';
+  let quoted = false;
+  for (let i = 0; i < line.length; i++) {
+    const ch = line[i];
+    if (ch === '"') {
+      if (quoted && line[i + 1] === '"') {
+        cur += '"';
+        i++;
+      } else quoted = !quoted;
+    } else if (ch === sep && !quoted) {
+      out.push(cur);
+      cur = '';
+    } else cur += ch;
+  }
+  out.push(cur);
+  return out;
+}
+
+function detectSeparator(sample: string): string {
+  const count = (ch: string) => sample.split(ch).length - 1;
+  if (count('\t') > 0) return '\t';
+  return count(';') > 0 ? ';' : ',';
+}
+
+/** Reads a historian export; rows that cannot be read are reported by line (1-based, header included). */
+export function parseHistorianCsv(text: string, opts: { timeZone: string; dateOrder: DateOrder }): ParsedCsv {
+  const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/);
+  const firstData = lines.findIndex((l) => l.trim() !== '');
+  if (firstData < 0) return { rows: [], problems: [], total: 0 };
+  const sep = detectSeparator(lines[firstData]);
+  let timeCol = 0;
+  let tempCol = 1;
+  let start = firstData;
+  const head = splitLine(lines[firstData], sep).map((h) => h.trim().replace(/^"|"$/g, ''));
+  if (typeof parseTime(head[0] ?? '', opts.timeZone, opts.dateOrder) !== 'string' && !/^-?\d/.test(head[1] ?? '')) {
+    start = firstData + 1;
+    const t = head.findIndex((h) => TIME_HEADER.test(h));
+    const c = head.findIndex((h, i) => i !== t && TEMP_HEADER.test(h));
+    if (t >= 0) timeCol = t;
+    if (c >= 0) tempCol = c;
+    else if (t >= 0) tempCol = t === 0 ? 1 : 0;
+  }
+  const rows: ParsedRow[] = [];
+  const problems: RowProblem[] = [];
+  let total = 0;
+  for (let i = start; i < lines.length; i++) {
+    const line = lines[i];
+    if (line.trim() === '') continue;
+    total++;
+    const cells = splitLine(line, sep);
+    const lineNo = i + 1;
+    const at = parseTime(cells[timeCol] ?? '', opts.timeZone, opts.dateOrder);
+    if (typeof at !== 'string') {
+      problems.push({ line: lineNo, message: at.error });
+      continue;
+    }
+    let raw = (cells[tempCol] ?? '').trim().replace(/^"|"$/g, '');
+    if (sep === ';') raw = raw.replace(',', '.');
+    const c = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(raw) ? Number(raw) : NaN;
+    if (!Number.isFinite(c)) {
+      problems.push({ line: lineNo, message: `Cannot read "${raw.slice(0, 20)}" as a temperature in °C` });
+      continue;
+    }
+    rows.push({ line: lineNo, at, c });
+  }
+  return { rows, problems, total };
+}

@@ -1,0 +1,48 @@
+import { router } from 'expo-router';
+import { Pressable, StyleSheet, View } from 'react-native';
+import { durationText, shortTime } from '../../batches';
+import type { BatchSummary } from '../../contracts/batches';
+import { fmt } from '../../format';
+import { radius, space, touchTarget, useColors } from '../../theme';
+import { Text } from '../ui/text';
+
+/** One batch in the list: what runs where, how it is going, and whether anything needs attention. */
+export function BatchCard({ b, now }: { b: BatchSummary; now: Date }) {
+  const c = useColors();
+  const since = b.lastReadingAt ? `last reading ${durationText(now.getTime() - Date.parse(b.lastReadingAt))} ago` : 'no readings yet';
+  const outcome =
+    b.state === 'running'
+      ? `Forecast ${fmt(b.forecastGPerL)} g/L (plan ${fmt(b.plannedProductGPerL)})`
+      : `Forecast ${fmt(b.forecastGPerL)} g/L · measured ${b.measuredProductGPerL === null ? 'not recorded' : `${fmt(b.measuredProductGPerL)} g/L`}`;
+  return (
+    <Pressable
+      accessibilityRole="link"
+      accessibilityLabel={`${b.recipeName} on ${b.vesselName}, ${b.state}${b.openDeviations ? `, ${b.openDeviations} open deviations` : ''}`}
+      testID={`batch-card-${b.id}`}
+      onPress={() => router.push(`/batches/${b.id}`)}
+      style={({ pressed }) => [styles.card, { backgroundColor: c.surface, borderColor: b.openDeviations ? c.danger : c.border }, pressed && { opacity: 0.85 }]}
+    >
+      <View style={styles.top}>
+        <Text weight="semibold" style={styles.grow}>
+          {b.recipeName}
+        </Text>
+        {b.openDeviations ? (
+          <Text variant="small" weight="semibold" tone="danger">
+            {b.openDeviations} deviation{b.openDeviations > 1 ? 's' : ''}
+          </Text>
+        ) : null}
+      </View>
+      <Text variant="small" tone="muted">
+        {b.vesselName} · lot {b.lotCode} · started {shortTime(b.startedAt, now)}
+        {b.state === 'running' ? ` · ${since}` : ''}
+      </Text>
+      <Text variant="small">{outcome}</Text>
+    </Pressable>
+  );
+}
+
+const styles = StyleSheet.create({
+  card: { minHeight: touchTarget, borderWidth: 1, borderRadius: radius.lg, padding: space.md, gap: space.xxs },
+  top: { flexDirection: 'row', alignItems: 'center', gap: space.sm },
+  grow: { flex: 1 },
+});

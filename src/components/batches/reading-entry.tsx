@@ -1,0 +1,135 @@
+import { useEffect, useState } from 'react';
+import { StyleSheet, TextInput, View } from 'react-native';
+import { localInputValue, parseLocalInput } from '../../batches';
+import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C } from '../../contracts/batches';
+import type { useLogReading } from '../../hooks/use-log-reading';
+import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
+import { Button } from '../ui/button';
+import { Card } from '../ui/card';
+import { Field } from '../ui/field';
+import { Text } from '../ui/text';
+
+type Props = { startedAt: string; lastC: number | null; logger: ReturnType<typeof useLogReading> };
+
+/** The operator's entry: a big temperature field, the time (now unless changed), an optional note, and a one-tap repeat. */
+export function ReadingEntry({ startedAt, lastC, logger }: Props) {
+  const c = useColors();
+  const [temp, setTemp] = useState('');
+  const [time, setTime] = useState(() => localInputValue(new Date()));
+  const [isTimeEdited, setTimeEdited] = useState(false);
+  const [note, setNote] = useState('');
+  const [errors, setErrors] = useState<{ c?: string; time?: string }>({});
+  const [done, setDone] = useState<string | null>(null);
+
+  // Keep the prefilled time current while the operator has not changed it.
+  useEffect(() => {
+    if (isTimeEdited) return;
+    const t = setInterval(() => setTime(localInputValue(new Date())), 20_000);
+    return () => clearInterval(t);
+  }, [isTimeEdited]);
+
+  function checkTime(s: string): { at?: Date; error?: string } {
+    const at = parseLocalInput(s);
+    if (!at) return { error: 'Write the time as YYYY-MM-DD HH:mm' };
+    if (at.getTime() > Date.now() + CLOCK_SKEW_MIN * 60_000) return { error: 'That time is in the future' };
+    if (at.getTime() < Date.parse(startedAt)) return { error: 'That is before the batch started' };
+    return { at };
+  }
+
+  async function submit(valueC: number, timeText: string) {
+    const t = checkTime(timeText);
+    if (t.error) return setErrors({ time: t.error });
+    setErrors({});
+    const outcome = await logger.log({ takenAt: t.at!.toISOString(), c: valueC, note: note.trim() || undefined });
+    setDone(outcome === 'sent' ? `Logged ${valueC.toFixed(1)} °C at ${timeText.slice(11)}` : `Saved ${valueC.toFixed(1)} °C at ${timeText.slice(11)} on this device`);
+    setTemp('');
+    setNote('');
+    setTimeEdited(false);
+    setTime(localInputValue(new Date()));
+  }
+
+  function onLog() {
+    const v = Number(temp.trim().replace(',', '.'));
+    if (temp.trim() === '' || !Number.isFinite(v)) return setErrors({ c: 'Enter the temperature in °C' });
+    if (v < READING_MIN_C || v > READING_MAX_C) return setErrors({ c: `A reactor reading lies between ${READING_MIN_C} and ${READING_MAX_C} °C` });
+    void submit(v, time);
+  }
+
+  return (
+    <Card testID="reading-entry">
+      <Text variant="title" accessibilityRole="header">
+        Log a reading
+      </Text>
+      <View style={styles.wrap}>
+        <Text variant="small" weight="semibold">
+          Reactor temperature, °C
+        </Text>
+        <TextInput
+          accessibilityLabel="Reactor temperature in degrees Celsius"
+          testID="reading-c"
+          value={temp}
+          onChangeText={(s) => {
+            setTemp(s);
+            setDone(null);
+          }}
+          inputMode="decimal"
+          keyboardType="decimal-pad"
+          placeholder={lastC === null ? '37.0' : lastC.toFixed(1)}
+          placeholderTextColor={c.textMuted}
+          onSubmitEditing={onLog}
+          style={[styles.big, { color: c.text, backgroundColor: c.surface, borderColor: errors.c ? c.danger : c.border, fontFamily: font.semibold }]}
+        />
+        {errors.c ? (
+          <Text variant="small" tone="danger" testID="reading-c-error" accessibilityLiveRegion="polite">
+            {errors.c}
+          </Text>
+        ) : null}
+      </View>
+      <Field
+        label="Time (your clock)"
+        testID="reading-time"
+        value={time}
+        onChangeText={(s) => {
+          setTime(s);
+          setTimeEdited(true);
+        }}
+        error={errors.time}
+        hint={isTimeEdited ? undefined : 'Now; change it for a reading taken earlier'}
+      />
+      <Field label="Note (optional)" testID="reading-note" value={note} onChangeText={setNote} maxLength={300} />
+      <View style={styles.buttons}>
+        <Button label="Log reading" onPress={onLog} testID="reading-submit" />
+        {lastC !== null ? (
+          <Button
+            label={`Repeat ${lastC.toFixed(1)} °C now`}
+            variant="secondary"
+            accessibilityLabel={`Log ${lastC.toFixed(1)} degrees again at the current time`}
+            onPress={() => void submit(lastC, localInputValue(new Date()))}
+            testID="reading-repeat"
+          />
+        ) : null}
+      </View>
+      {done ? (
+        <Text variant="small" tone="success" testID="reading-done" accessibilityLiveRegion="polite">
+          {done}
+        </Text>
+      ) : null}
+      {logger.queued.length ? (
+        <Text variant="small" tone="warning" testID="reading-queue">
+          {logger.queued.length} reading{logger.queued.length > 1 ? 's' : ''} saved on this device, waiting for the network{logger.isOffline ? ' (offline)' : ''}. They are sent by themselves.
+        </Text>
+      ) : null}
+      {logger.rejected.map((r) => (
+        <Text key={r.reading.key} variant="small" tone="danger" testID="reading-rejected">
+          Not stored: {r.reading.c} °C at {r.reading.takenAt.slice(11, 16)} UTC. {r.error.message}
+        </Text>
+      ))}
+    </Card>
+  );
+}
+
+const styles = StyleSheet.create({
+  wrap: { gap: space.xs },
+  big: { minHeight: touchTarget * 1.6, borderWidth: 1, borderRadius: radius.md, paddingHorizontal: space.md, ...typeScale.figure },
+  buttons: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+});

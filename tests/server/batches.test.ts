@@ -1,0 +1,394 @@
+import { eq, sql } from 'drizzle-orm';
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { auditEvents, batchReadings, deviations, recipes } from '../../db/schema';
+import { password, startTestApp, type Client, type TestApp } from './harness';
+
+let t: TestApp;
+let sup: Client;
+let op: Client;
+let eng: Client;
+beforeAll(async () => {
+  t = await startTestApp();
+  [sup, op, eng] = await Promise.all([t.signIn('supervisor'), t.signIn('operator'), t.signIn('engineer')]);
+});
+afterAll(() => t.close());
+
+const count = (table: typeof batchReadings | typeof deviations | typeof auditEvents) => t.db.select({ n: sql<number>`count(*)` }).from(table).get()!.n;
+let keySeq = 0;
+const key = () => `test-key-${++keySeq}-abcdef`;
+
+async function recipeByName(name: string) {
+  const list = (await eng.get('/api/recipes')).body.recipes as { id: number; name: string; vesselId: number; lotId: number }[];
+  return list.find((r) => r.name === name)!;
+}
+
+/** A fresh running batch on the lactose tank, started `hoursAgo` before the test clock. */
+async function startLactose(hoursAgo = 2): Promise<{ id: number; startedAt: string; body: any }> {
+  const r = await recipeByName('Lactose-free milk base');
+  const startedAt = new Date(t.clock.now().getTime() - hoursAgo * 3_600_000).toISOString();
+  const res = await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: r.lotId, startedAt });
+  expect(res.status, JSON.stringify(res.body)).toBe(201);
+  return { id: res.body.id, startedAt, body: res.body };
+}
+
+async function closeRunning(vesselName: string) {
+  const list = (await sup.get('/api/batches')).body.batches as { id: number; vesselName: string; state: string }[];
+  for (const b of list.filter((x) => x.vesselName === vesselName && x.state === 'running')) {
+    const d = (await sup.get(`/api/batches/${b.id}`)).body;
+    for (const dev of d.deviations.filter((x: any) => x.state !== 'closed')) {
+      if (dev.state === 'open') await op.post(`/api/deviations/${dev.id}/acknowledge`, { comment: 'seen at the vessel' });
+      await sup.post(`/api/deviations/${dev.id}/close`, {});
+    }
+    expect((await sup.post(`/api/batches/${b.id}/close`, {})).status).toBe(200);
+  }
+}
+
+const at = (batchStart: string, h: number) => new Date(Date.parse(batchStart) + h * 3_600_000).toISOString();
+
+describe('the demo batches', () => {
+  it('lists one running and three closed batches, each closed one with a measured product beside its forecast', async () => {
+    const r = await op.get('/api/batches');
+    expect(r.status).toBe(200);
+    const list = r.body.batches as any[];
+    expect(list.filter((b) => b.state === 'running')).toHaveLength(1);
+    const closed = list.filter((b) => b.state === 'closed');
+    expect(closed).toHaveLength(3);
+    for (const b of closed) {
+      expect(b.measuredProductGPerL).toBeGreaterThan(0);
+      expect(Math.abs(b.measuredProductGPerL / b.forecastGPerL - 1)).toBeLessThan(0.05);
+    }
+    // The operator logged the demo readings: they are "my batches".
+    expect(list.every((b) => b.isMine)).toBe(true);
+  });
+
+  it('shows the running batch with readings, status figures and no deviation', async () => {
+    const list = (await op.get('/api/batches')).body.batches as any[];
+    const running = list.find((b) => b.state === 'running');
+    const d = (await op.get(`/api/batches/${running.id}`)).body;
+    expect(d.readings).toHaveLength(9);
+    expect(d.deviations).toEqual([]);
+    expect(d.batch.program.source).toBe('current_setpoint');
+    expect(d.status.activityLeft).toBeGreaterThan(0);
+    expect(d.status.activityLeft).toBeLessThan(1);
+    expect(d.status.forecastGPerL).toBeGreaterThan(d.status.productSoFarGPerL);
+    expect(d.settings).toEqual({ toleranceC: 1.5, gapLimitMin: 30 });
+  });
+});
+
+describe('starting a batch', () => {
+  beforeEach(() => closeRunning('R-204 Lactose tank'));
+
+  it('lets a supervisor start one on the current setpoint and records it in the audit trail', async () => {
+    const before = count(auditEvents);
+    const { body } = await startLactose();
+    expect(body.program.source).toBe('current_setpoint');
+    expect(body.program.stages).toEqual([{ hours: 20, c: 37 }]);
+    expect(body.program.log[0]).toEqual({ h: 0, c: 6 });
+    expect(body.state).toBe('running');
+    expect(count(auditEvents)).toBe(before + 1);
+  });
+
+  it('runs the released plan when change control has released one, with its P10', async () => {
+    const r = await recipeByName('Lactose-free milk base');
+    const detail = (await eng.get(`/api/recipes/${r.id}`)).body;
+    const rec = detail.recipe;
+    const plan = await eng.post('/api/plans', {
+      recipeId: rec.id, lotId: rec.lotId, batchH: rec.batchH, turnaroundH: rec.turnaroundH, doseGPerL: rec.doseGPerL, s0GPerL: rec.s0GPerL, kmGPerL: rec.kmGPerL,
+      productPricePerKg: rec.productPricePerKg, enzymePricePerKg: rec.enzymePricePerKg, heatingCostPerDegCHour: rec.heatingCostPerDegCHour, currentSetpointC: rec.currentSetpointC,
+      strategy: 'isothermal', stages: 3, maxStepC: 3, uncertainty: { draws: 400, seed: 7, sensorBiasSdC: 0.5, doseRelSd: 0.05 },
+    });
+    expect(plan.status).toBe(201);
+    // Released through change control: the engineer proposes, the supervisor signs with a password.
+    const cr = await eng.post('/api/change-requests', { planId: plan.body.id, rationale: 'Robust setpoint from the uncertainty run.', expectedEffect: 'Fewer low batches', effectiveFrom: '2026-12-01' });
+    expect(cr.status).toBe(201);
+    const signed = await sup.post(`/api/change-requests/${cr.body.id}/signatures`, { password: password('supervisor'), meaning: 'approved', comment: 'Go ahead' });
+    expect(signed.body.status).toBe('approved');
+    try {
+      const { body } = await startLactose();
+      expect(body.program.source).toBe('released_plan');
+      expect(body.program.planId).toBe(plan.body.id);
+      expect(body.program.stages[0].c).toBeCloseTo(plan.body.outputs.setpointC, 9);
+      expect(body.program.p10GPerL).toBeCloseTo(plan.body.outputs.uncertainty.p10, 9);
+      const detail = (await op.get(`/api/batches/${body.id}`)).body;
+      expect(detail.signatures.map((g: any) => [g.printedName, g.meaning, g.changeRequestId])).toEqual([['Marit Oyelaran', 'approved', cr.body.id]]);
+      const csv = (await op.get(`/api/batches/${body.id}/report.csv`)).body as string;
+      expect(csv).toContain('signature,Marit Oyelaran (supervisor),approved,');
+      await closeRunning('R-204 Lactose tank');
+      // Sixteen hours in, a reading shows the tank fell to 8 degC after the first hour: the forecast drops below P10.
+      const late = await startLactose(16);
+      const send = (h: number, c: number) => op.post(`/api/batches/${late.id}/readings`, { key: key(), takenAt: at(late.startedAt, h), c });
+      expect((await send(0.2, 8)).body.deviations).toEqual([]);
+      const cold = await send(15.9, 8);
+      const kinds = cold.body.deviations.map((d: any) => d.kind);
+      expect(kinds).toEqual(['gap', 'band']);
+      const all = (await op.get(`/api/batches/${late.id}`)).body;
+      expect(all.status.forecastGPerL).toBeLessThan(all.batch.program.p10GPerL);
+      const low = all.deviations.find((d: any) => d.kind === 'forecast_low');
+      expect(low).toMatchObject({ readingId: null, state: 'open' });
+      expect(low.message).toMatch(/below the plan's P10/);
+      expect(low.corrective.remainingH).toBeCloseTo(20 - 15.9, 6);
+      // Still below P10 on the next reading: the open one stands, no second is raised.
+      await send(15.95, 8);
+      expect((await op.get(`/api/batches/${late.id}`)).body.deviations.filter((d: any) => d.kind === 'forecast_low')).toHaveLength(1);
+    } finally {
+      // Put the recipe back as the later tests expect it (approval also wrote the plan's setpoint).
+      t.db.update(recipes).set({ releasedPlanId: null, releasedAt: null, currentSetpointC: rec.currentSetpointC }).where(eq(recipes.id, rec.id)).run();
+    }
+  });
+
+  it('refuses a quarantined lot, a busy vessel, a future start, and an operator', async () => {
+    const r = await recipeByName('Glucose syrup DE 95');
+    const lots = (await eng.get('/api/lots')).body.lots as { id: number; lotCode: string }[];
+    const quarantined = lots.find((l) => l.lotCode === 'CGA-2611-07')!;
+    const now = t.clock.now().toISOString();
+    const list0 = (await sup.get('/api/batches')).body.batches.length;
+    expect((await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: quarantined.id, startedAt: now })).body.error.code).toBe('lot_not_accepted');
+    const busy = await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: r.lotId, startedAt: now });
+    expect([busy.status, busy.body.error.code]).toEqual([409, 'vessel_busy']);
+    const lac = await recipeByName('Lactose-free milk base');
+    const future = await sup.post('/api/batches', { recipeId: lac.id, vesselId: lac.vesselId, lotId: lac.lotId, startedAt: at(now, 1) });
+    expect([future.status, future.body.error.fields.startedAt]).toEqual([400, 'A batch cannot start in the future']);
+    expect((await op.post('/api/batches', { recipeId: lac.id, vesselId: lac.vesselId, lotId: lac.lotId, startedAt: now })).status).toBe(403);
+    expect((await sup.get('/api/batches')).body.batches.length).toBe(list0);
+  });
+});
+
+describe('logging readings', () => {
+  let batch: { id: number; startedAt: string };
+  beforeAll(async () => {
+    await closeRunning('R-204 Lactose tank');
+    batch = await startLactose(4);
+  });
+
+  const good = (over: Record<string, unknown> = {}) => ({ key: key(), takenAt: at(batch.startedAt, 3.9), c: 37, ...over });
+
+  it.each([
+    ['a string for the temperature', { c: 'warm' }, 'c'],
+    ['no temperature', { c: undefined }, 'c'],
+    ['null (what JSON makes of NaN)', { c: null }, 'c'],
+    ['-300 degC', { c: -300 }, 'c'],
+    ['300 degC', { c: 300 }, 'c'],
+    ['a time without a zone', { takenAt: '2026-12-01 07:00' }, 'takenAt'],
+    ['a short key', { key: 'abc' }, 'key'],
+  ])('refuses %s with 400 and stores nothing', async (_name, over, field) => {
+    const before = count(batchReadings);
+    const r = await op.post(`/api/batches/${batch.id}/readings`, good(over));
+    expect(r.status).toBe(400);
+    expect(r.body.error.fields[field]).toBeTruthy();
+    expect(count(batchReadings)).toBe(before);
+  });
+
+  it('refuses NaN and Infinity written into the JSON text', async () => {
+    const before = count(batchReadings);
+    for (const lit of ['NaN', 'Infinity', '-Infinity']) {
+      const body = `{"key":"${key()}","takenAt":"${at(batch.startedAt, 3.9)}","c":${lit}}`;
+      const r = await op.req('POST', `/api/batches/${batch.id}/readings`, body);
+      expect(r.status, lit).toBe(400);
+    }
+    expect(count(batchReadings)).toBe(before);
+  });
+
+  it('refuses a reading far in the future or before the start, and takes one within the clock-skew tolerance', async () => {
+    const before = count(batchReadings);
+    const future = await op.post(`/api/batches/${batch.id}/readings`, good({ takenAt: new Date(t.clock.now().getTime() + 3_600_000).toISOString() }));
+    expect([future.status, future.body.error.fields.takenAt]).toEqual([400, "More than 5 min ahead of the server's clock"]);
+    const early = await op.post(`/api/batches/${batch.id}/readings`, good({ takenAt: at(batch.startedAt, -0.1) }));
+    expect([early.status, early.body.error.fields.takenAt]).toEqual([400, 'Before the batch started']);
+    expect(count(batchReadings)).toBe(before);
+    const skewed = await op.post(`/api/batches/${batch.id}/readings`, good({ takenAt: new Date(t.clock.now().getTime() + 3 * 60_000).toISOString() }));
+    expect(skewed.status).toBe(201);
+    expect(count(batchReadings)).toBe(before + 1);
+  });
+
+  it('stores the same reading sent twice once, and answers both the same way', async () => {
+    const body = good({ key: key(), takenAt: at(batch.startedAt, 3.95), note: 'sample taken' });
+    const readings0 = count(batchReadings);
+    const audits0 = count(auditEvents);
+    const first = await op.post(`/api/batches/${batch.id}/readings`, body);
+    const second = await op.post(`/api/batches/${batch.id}/readings`, body);
+    expect(first.status).toBe(201);
+    expect(second.status).toBe(200);
+    expect(second.body).toEqual(first.body);
+    expect(first.body.reading).toMatchObject({ key: body.key, c: 37, note: 'sample taken', source: 'manual', enteredBy: 'Sunniva Achebe' });
+    expect(count(batchReadings)).toBe(readings0 + 1);
+    expect(count(auditEvents)).toBe(audits0 + 1 + first.body.deviations.length);
+    const reused = await op.post(`/api/batches/${batch.id}/readings`, { ...body, c: 38 });
+    expect([reused.status, reused.body.error.code]).toEqual([409, 'key_reused']);
+    expect(count(batchReadings)).toBe(readings0 + 1);
+  });
+
+  it('keeps readings of one site away from another', async () => {
+    const other = await t.signIn('operator', 'other');
+    expect((await other.get(`/api/batches/${batch.id}`)).status).toBe(404);
+    const before = count(batchReadings);
+    expect((await other.post(`/api/batches/${batch.id}/readings`, good())).status).toBe(404);
+    expect(count(batchReadings)).toBe(before);
+  });
+});
+
+describe('deviations', () => {
+  let batch: { id: number; startedAt: string };
+  beforeAll(async () => {
+    await closeRunning('R-204 Lactose tank');
+    batch = await startLactose(4);
+  });
+
+  it('raises a band deviation with a corrective setpoint on an excursion; the operator acknowledges, the supervisor closes', async () => {
+    const post = (h: number, c: number) => op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, h), c });
+    // Lactose tank plan: 6 degC fill, 10 degC/h up to 37 degC (reached at 3.1 h).
+    const onPlan = await post(3.3, 37.2);
+    // In band, but the start-to-first-reading gap (3.3 h) is over the 30 min limit: a gap deviation.
+    expect(onPlan.body.deviations.map((d: any) => d.kind)).toEqual(['gap']);
+    const before = (await op.get(`/api/batches/${batch.id}`)).body;
+    const hot = await post(3.6, 45);
+    expect(hot.status).toBe(201);
+    expect(hot.body.deviations).toHaveLength(1);
+    const dev = hot.body.deviations[0];
+    expect(dev).toMatchObject({ kind: 'band', state: 'open', valueC: 45, readingId: hot.body.reading.id });
+    expect(dev.expectedC).toBeCloseTo(37, 9);
+    expect(dev.corrective.setpointC).toBeGreaterThanOrEqual(8);
+    expect(dev.corrective.setpointC).toBeLessThanOrEqual(60);
+    expect(dev.corrective.remainingH).toBeCloseTo(20 - 3.6, 6);
+    const after = (await op.get(`/api/batches/${batch.id}`)).body;
+    expect(after.status.forecastGPerL).toBeLessThan(before.status.forecastGPerL);
+    expect(after.status.corrective).not.toBeNull();
+
+    // Acknowledge: a comment is required; only operator and supervisor may; closing waits for it.
+    expect((await sup.post(`/api/deviations/${dev.id}/close`, {})).body.error.code).toBe('not_acknowledged');
+    expect((await op.post(`/api/deviations/${dev.id}/acknowledge`, { comment: '' })).status).toBe(400);
+    expect((await eng.post(`/api/deviations/${dev.id}/acknowledge`, { comment: 'not mine' })).status).toBe(403);
+    const ack = await op.post(`/api/deviations/${dev.id}/acknowledge`, { comment: 'Steam valve stuck open; closed by hand' });
+    expect(ack.body).toMatchObject({ state: 'acknowledged', acknowledgedBy: 'Sunniva Achebe', acknowledgeComment: 'Steam valve stuck open; closed by hand' });
+    expect((await op.post(`/api/deviations/${dev.id}/close`, {})).status).toBe(403);
+    const closed = await sup.post(`/api/deviations/${dev.id}/close`, { comment: 'Valve serviced' });
+    expect(closed.body).toMatchObject({ state: 'closed', closedBy: 'Marit Oyelaran' });
+    const actions = t.db.select().from(auditEvents).where(eq(auditEvents.entityId, String(dev.id))).all().filter((e) => e.entity === 'deviation').map((e) => e.action);
+    expect(actions).toEqual(['deviation.raise', 'deviation.acknowledge', 'deviation.close']);
+  });
+
+  it('raises one deviation per excursion, not one per reading', async () => {
+    const n0 = count(deviations);
+    await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 3.7), c: 44 });
+    expect(count(deviations)).toBe(n0);
+  });
+
+  it('raises a vessel-maximum deviation above the vessel limit', async () => {
+    const r = await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 3.8), c: 61 });
+    expect(r.body.deviations.map((d: any) => d.kind)).toEqual(['vessel_max']);
+  });
+
+  it('uses the site tolerance band the supervisor sets', async () => {
+    expect((await op.patch('/api/batches/settings', { toleranceC: 0.5 })).status).toBe(403);
+    const s = await sup.patch('/api/batches/settings', { toleranceC: 0.5 });
+    expect(s.body).toEqual({ toleranceC: 0.5, gapLimitMin: 30 });
+    try {
+      await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 3.85), c: 37 });
+      const r = await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 3.9), c: 37.8 });
+      expect(r.body.deviations.map((d: any) => d.kind)).toEqual(['band']);
+    } finally {
+      await sup.patch('/api/batches/settings', { toleranceC: 1.5 });
+    }
+  });
+
+  it('will not close a batch while deviations are open; closing records the measured product beside the forecast', async () => {
+    const r = await sup.post(`/api/batches/${batch.id}/close`, { measuredProductGPerL: 40 });
+    expect(r.body.error.code).toBe('open_deviations');
+    await closeRunning('R-204 Lactose tank');
+    const d = (await sup.get(`/api/batches/${batch.id}`)).body;
+    expect(d.batch.state).toBe('closed');
+    expect(d.batch.forecastAtCloseGPerL).toBeGreaterThan(0);
+    const late = await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 3.95), c: 37 });
+    expect([late.status, late.body.error.code]).toEqual([409, 'batch_closed']);
+  });
+});
+
+describe('historian import', () => {
+  let batch: { id: number; startedAt: string };
+  beforeAll(async () => {
+    await closeRunning('R-204 Lactose tank');
+    batch = await startLactose(19);
+  });
+
+  const upload = (c: Client, csv: string, query = '') => c.req('POST', `/api/batches/${batch.id}/readings/import${query}`, csv, { 'content-type': 'text/csv' });
+
+  it('imports 50,000 rows in one request and reports a second upload of the same file as already stored', async () => {
+    const start = Date.parse(batch.startedAt);
+    const lines = ['time,degC'];
+    // One reading a second for ~13.9 h, on the plan's hold temperature after the ramp (invented data).
+    for (let i = 0; i < 50_000; i++) lines.push(`${new Date(start + 1000 * i).toISOString()},${i < 11_200 ? (6 + (10 * i) / 3600).toFixed(2) : '37.00'}`);
+    const csv = lines.join('\n');
+    const n0 = count(batchReadings);
+    const t0 = performance.now();
+    const r = await upload(op, csv);
+    const ms = performance.now() - t0;
+    expect(r.status, JSON.stringify(r.body).slice(0, 300)).toBe(200);
+    expect(r.body).toMatchObject({ rows: 50_000, imported: 50_000, skipped: 0, outOfOrder: 0 });
+    expect(count(batchReadings)).toBe(n0 + 50_000);
+    // The batch screen gets a sample of a long record, ending with the latest readings; the CSV report gets all.
+    const detail = (await op.get(`/api/batches/${batch.id}`)).body;
+    expect(detail.readingsTotal).toBe(50_000);
+    expect(detail.readings.length).toBeLessThanOrEqual(5000);
+    expect(detail.readings.at(-1).takenAt).toBe(new Date(start + 1000 * 49_999).toISOString());
+    const report = (await op.get(`/api/batches/${batch.id}/report.csv`)).body as string;
+    expect(report.split('\r\n').filter((l) => l.startsWith('reading,'))).toHaveLength(50_000);
+    console.info(`50,000-row import: ${Math.round(ms)} ms, ${(csv.length / 1e6).toFixed(2)} MB`);
+    const again = await upload(op, csv);
+    expect(again.body).toMatchObject({ rows: 50_000, imported: 0, skipped: 50_000 });
+    expect(again.body.problems).toHaveLength(200);
+    expect(again.body.problems[0]).toMatchObject({ line: 2, kind: 'already_stored' });
+    expect(count(batchReadings)).toBe(n0 + 50_000);
+  });
+
+  it('reads local times in the site zone and reports duplicates, out-of-order and bad rows by line', async () => {
+    // Local Berlin times (UTC+1 in December) after the 50,000 rows; line 4 repeats line 3, line 5 goes back in time.
+    const base = new Date(Date.parse(batch.startedAt) + 14 * 3_600_000);
+    const local = (min: number) => {
+      const d = new Date(base.getTime() + 3_600_000 + min * 60_000);
+      const p = (n: number) => String(n).padStart(2, '0');
+      return `${p(d.getUTCDate())}.${p(d.getUTCMonth() + 1)}.${d.getUTCFullYear()} ${p(d.getUTCHours())}:${p(d.getUTCMinutes())}`;
+    };
+    const csv = ['Zeit;Temperatur °C', `${local(0)};37,1`, `${local(10)};37,2`, `${local(10)};37,3`, `${local(5)};36,9`, `${local(20)};-300`, `${local(30)};abc`, ''].join('\r\n');
+    const r = await upload(op, csv);
+    expect(r.status).toBe(200);
+    expect(r.body.timeZone).toBe('Europe/Berlin');
+    expect(r.body).toMatchObject({ rows: 6, imported: 3, outOfOrder: 1, skipped: 3 });
+    expect(r.body.problems.map((p: any) => [p.line, p.kind])).toEqual([
+      [4, 'duplicate'],
+      [5, 'out_of_order'],
+      [6, 'invalid'],
+      [7, 'invalid'],
+    ]);
+    const d = (await op.get(`/api/batches/${batch.id}`)).body;
+    const mine = d.readings.filter((x: any) => x.takenAt >= base.toISOString());
+    expect(mine.map((x: any) => [x.takenAt, x.c])).toEqual([
+      [base.toISOString(), 37.1],
+      [new Date(base.getTime() + 5 * 60_000).toISOString(), 36.9],
+      [new Date(base.getTime() + 10 * 60_000).toISOString(), 37.2],
+    ]);
+  });
+
+  it('refuses an unknown zone, an empty file and a JSON body', async () => {
+    expect((await upload(op, '2026-12-01 08:00,37', '?timeZone=Mars/Olympus')).body.error.fields.timeZone).toBeTruthy();
+    expect((await upload(op, '\n\n')).status).toBe(400);
+    expect((await op.post(`/api/batches/${batch.id}/readings/import`, { rows: [] })).status).toBe(400);
+  });
+});
+
+describe('batch report', () => {
+  it('exports recipe, plan, readings and deviations as CSV with formula cells made text', async () => {
+    await closeRunning('R-204 Lactose tank');
+    const batch = await startLactose(1);
+    await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 0.25), c: 8.5, note: '=HYPERLINK("http://x.test")' });
+    const r = await op.get(`/api/batches/${batch.id}/report.csv`);
+    expect(r.status).toBe(200);
+    expect(r.headers.get('content-type')).toMatch(/text\/csv/);
+    const text = r.body as string;
+    expect(text.split('\r\n')[0]).toBe('section,field,value,detail');
+    expect(text).toContain('batch,recipe,Lactose-free milk base,');
+    expect(text).toContain('plan,source,recipe current setpoint,');
+    expect(text).toMatch(/reading,[^,]+,8\.5,/);
+    // The note is inside the detail cell, so the cell starts with "degC"; a note alone in a cell gets the quote.
+    expect(text).not.toMatch(/,=HYPERLINK/);
+    expect((await (await t.signIn('procurement')).get(`/api/batches/${batch.id}/report.csv`)).status).toBe(403);
+  });
+});
