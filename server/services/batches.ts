@@ -1,4 +1,4 @@
-import type { Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import {
   batchHours,
   batchProgram,
@@ -73,7 +73,6 @@ import { appendAudit } from './audit';
 import { getPlan } from './plans';
 import { acceptedLot, toPlanningLot } from './recipes';
 
-const tx$ = (tx: unknown) => tx as Db;
 // A batch may be registered after it started (the paperwork follows the vessel), but not a week late.
 const LATE_START_LIMIT_H = 7 * 24;
 // Kinds whose cause an operator can correct with the temperature: these get a corrective setpoint.
@@ -90,9 +89,9 @@ export function changeBatchSettings({ db, clock }: Services, u: SessionUser, pat
   const before = batchSettingsOf(db, u.siteId);
   const after = { ...before, ...patch };
   const now = clock.now();
-  db.transaction((tx) => {
-    upsertBatchSettings(tx$(tx), { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
-    appendAudit(tx$(tx), { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch_settings.update', entity: 'batch_settings', entityId: u.siteId, oldValue: before, newValue: after, at: now });
+  writeTx(db, (tx) => {
+    upsertBatchSettings(tx, { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch_settings.update', entity: 'batch_settings', entityId: u.siteId, oldValue: before, newValue: after, at: now });
   });
   return after;
 }
@@ -264,8 +263,8 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
   if (Math.min(...temps) < vessel.minC || Math.max(...temps) > vessel.maxC)
     throw new HttpError(400, 'plan_outside_vessel', `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`, { vesselId: 'The plan does not fit this vessel' });
   const startedAt = new Date(startMs).toISOString();
-  return db.transaction((tx) => {
-    const t = tx$(tx);
+  return writeTx(db, (tx) => {
+    const t = tx;
     const row = insertBatch(t, { siteId: u.siteId, recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, planId: program.planId, source: program.source, program, state: 'running', startedAt, startedBy: u.id });
     appendAudit(t, {
       siteId: u.siteId,
@@ -297,8 +296,8 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
     measuredProductGPerL: input.measuredProductGPerL ?? null,
     forecastAtCloseGPerL: forecast,
   };
-  return db.transaction((tx) => {
-    const t = tx$(tx);
+  return writeTx(db, (tx) => {
+    const t = tx;
     updateBatch(t, b.id, patch);
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.close', entity: 'batch', entityId: b.id, oldValue: { state: 'running' }, newValue: { ...patch, closedBy: u.email }, at: now });
     return toBatch(findSiteBatch(t, u.siteId, b.id)!, b.startedBy === u.id);
@@ -384,8 +383,8 @@ export function logReading({ db, clock }: Services, u: SessionUser, id: number, 
   const stored = pointsOf(db, b);
   const point = { h: batchHours(b.startedAt, takenAt), c: input.c };
   const drafts = runDeviations(rulesOf(b.program, settings), stored, [point]);
-  const readingId = db.transaction((tx) => {
-    const t = tx$(tx);
+  const readingId = writeTx(db, (tx) => {
+    const t = tx;
     const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
     raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: row.id, draft: d.draft })), now);
@@ -438,8 +437,8 @@ export function importReadings({ db, clock }: Services, u: SessionUser, id: numb
     stored,
     accepted.map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })),
   );
-  const raised = db.transaction((tx) => {
-    const t = tx$(tx);
+  const raised = writeTx(db, (tx) => {
+    const t = tx;
     const rows = insertReadings(
       t,
       accepted.map((a) => ({ siteId: u.siteId, batchId: b.id, clientKey: a.key, takenAt: a.at, c: a.c, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
@@ -472,8 +471,8 @@ export function acknowledgeDeviation({ db, clock }: Services, u: SessionUser, id
   const d = loadDeviation(db, u.siteId, id);
   if (d.deviation.state !== 'open') throw new HttpError(409, 'already_acknowledged', 'This deviation was already acknowledged');
   const now = clock.now();
-  db.transaction((tx) => {
-    const t = tx$(tx);
+  writeTx(db, (tx) => {
+    const t = tx;
     updateDeviation(t, id, { state: 'acknowledged', acknowledgedBy: u.id, acknowledgedAt: now.toISOString(), acknowledgeComment: input.comment });
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.acknowledge', entity: 'deviation', entityId: id, oldValue: { state: 'open' }, newValue: { state: 'acknowledged', comment: input.comment }, at: now });
   });
@@ -485,8 +484,8 @@ export function closeDeviation({ db, clock }: Services, u: SessionUser, id: numb
   if (d.deviation.state === 'open') throw new HttpError(409, 'not_acknowledged', 'The operator acknowledges a deviation before it is closed');
   if (d.deviation.state === 'closed') throw new HttpError(409, 'already_closed', 'This deviation is already closed');
   const now = clock.now();
-  db.transaction((tx) => {
-    const t = tx$(tx);
+  writeTx(db, (tx) => {
+    const t = tx;
     updateDeviation(t, id, { state: 'closed', closedBy: u.id, closedAt: now.toISOString(), closeComment: input.comment || null });
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.close', entity: 'deviation', entityId: id, oldValue: { state: 'acknowledged' }, newValue: { state: 'closed', comment: input.comment ?? null }, at: now });
   });
