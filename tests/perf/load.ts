@@ -7,7 +7,7 @@ import { sessionCookie, startServer } from '../support/server';
 // connection count: requests/s, latency p50 / p99 / max, errors, timeouts and non-2xx answers.
 const DURATION_S = Number(process.env.LOAD_SECONDS ?? 10);
 
-type Mix = { name: string; requests: autocannon.Request[]; cookie: string };
+type Mix = { name: string; requests: autocannon.Request[]; cookie: string; count?: () => Promise<number> };
 
 function run(url: string, mix: Mix, connections: number): Promise<autocannon.Result> {
   return new Promise((resolve, reject) => {
@@ -31,20 +31,48 @@ async function main() {
   const server = await startServer({ env: { WEB_DIR: 'no-web-build' } });
   try {
     const engineer = await sessionCookie(server.baseURL, user('engineer').email, user('engineer').password);
+    const operator = await sessionCookie(server.baseURL, user('operator').email, user('operator').password);
+    const headers = { cookie: operator, 'x-yieldpoint-client': 'load' };
+    const batches = (await (await fetch(`${server.baseURL}/api/batches`, { headers })).json()) as { batches: { id: number; state: string; startedAt: string }[] };
+    const running = batches.batches.find((b) => b.state === 'running');
+    if (!running) throw new Error('the demo site has no running batch');
+    const storedReadings = async () =>
+      ((await (await fetch(`${server.baseURL}/api/batches/${running.id}`, { headers })).json()) as { readingsTotal: number }).readingsTotal;
+    // Each request a new reading with its own idempotency key, between the batch start and now.
+    let k = 0;
+    const span = Date.now() - Date.parse(running.startedAt);
     const mixes: Mix[] = [
       {
         name: 'reads',
         cookie: engineer,
         requests: ['/api/session', '/api/lots', '/api/vessels', '/api/enzymes', '/api/lots?status=accepted'].map((path) => ({ method: 'GET' as const, path })),
       },
+      {
+        name: 'ingest',
+        cookie: operator,
+        count: storedReadings,
+        requests: [
+          {
+            method: 'POST',
+            path: `/api/batches/${running.id}/readings`,
+            setupRequest: (req: autocannon.Request) => {
+              k++;
+              const takenAt = new Date(Date.parse(running.startedAt) + ((k * 7919) % span)).toISOString();
+              return { ...req, body: JSON.stringify({ key: `load-${process.pid}-${k}`, takenAt, c: 50 + (k % 7) / 10 }) };
+            },
+          },
+        ],
+      },
     ];
     console.log(`Load on ${server.baseURL}, ${DURATION_S} s per run\n`);
     console.log('mix        conns   req/s    p50 ms  p99 ms  max ms  errors  timeouts  non-2xx');
     for (const mix of mixes) {
       for (const connections of [50, 200]) {
+        const before = mix.count ? await mix.count() : 0;
         const r = await run(server.baseURL, mix, connections);
+        const after = mix.count ? await mix.count() : 0;
         console.log(
-          `${mix.name.padEnd(10)} ${String(connections).padStart(5)} ${r.requests.average.toFixed(0).padStart(7)} ${String(r.latency.p50).padStart(9)} ${String(r.latency.p99).padStart(7)} ${String(r.latency.max).padStart(7)} ${String(r.errors).padStart(7)} ${String(r.timeouts).padStart(9)} ${String(r.non2xx).padStart(8)}`,
+          `${mix.name.padEnd(10)} ${String(connections).padStart(5)} ${r.requests.average.toFixed(0).padStart(7)} ${String(r.latency.p50).padStart(9)} ${String(r.latency.p99).padStart(7)} ${String(r.latency.max).padStart(7)} ${String(r.errors).padStart(7)} ${String(r.timeouts).padStart(9)} ${String(r.non2xx).padStart(8)}${mix.count ? `  stored ${after - before} of ${r['2xx']} acknowledged (${after - before === r['2xx'] ? 'none lost' : 'MISMATCH'})` : ''}`,
         );
       }
     }

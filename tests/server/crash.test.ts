@@ -21,6 +21,7 @@ function mulberry32(a: number) {
 }
 
 const admin = DEMO_USERS.find((u) => u.role === 'admin')!;
+const operator = DEMO_USERS.find((u) => u.role === 'operator')!;
 let server: RunningServer | null = null;
 afterAll(async () => {
   await server?.stop();
@@ -31,6 +32,7 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
   it('keeps every acknowledged write and a verifiable audit chain across SIGKILLs', async () => {
     const random = mulberry32(SEED);
     const acknowledged = new Set<string>();
+    const acknowledgedReadings = new Set<string>();
     let dir: string | undefined;
     for (let round = 0; round < ROUNDS; round++) {
       server = await startServer(dir ? { dir } : {});
@@ -39,7 +41,23 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
       const cookie = await sessionCookie(baseURL, admin.email, admin.password);
       const headers = { cookie, 'content-type': 'application/json', 'x-yieldpoint-client': 'crash-test' };
       const users = ((await (await fetch(`${baseURL}/api/users`, { headers })).json()) as { users: { id: number }[] }).users;
+      const opHeaders = { ...headers, cookie: await sessionCookie(baseURL, operator.email, operator.password) };
+      const batches = ((await (await fetch(`${baseURL}/api/batches`, { headers: opHeaders })).json()) as { batches: { id: number; state: string; startedAt: string }[] }).batches;
+      const running = batches.find((b) => b.state === 'running')!;
       let stop = false;
+      // Operators' readings, each with its own idempotency key, beside the admin's edits.
+      const loggers = [0, 1].map(async (w) => {
+        for (let k = 0; !stop; k++) {
+          const key = `crash-r${round}-w${w}-${k}`;
+          const takenAt = new Date(Date.parse(running.startedAt) + (round * 100_000 + w * 50_000 + k) * 1000).toISOString();
+          try {
+            const res = await fetch(`${baseURL}/api/batches/${running.id}/readings`, { method: 'POST', headers: opHeaders, body: JSON.stringify({ key, takenAt, c: 50 }) });
+            if (res.ok) acknowledgedReadings.add(key);
+          } catch {
+            return;
+          }
+        }
+      });
       const writers = users.map(async (u, w) => {
         for (let k = 0; !stop; k++) {
           const name = `r${round}-w${w}-${k}`;
@@ -54,7 +72,7 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
       await new Promise((r) => setTimeout(r, 100 + random() * 400));
       server.child.kill('SIGKILL');
       stop = true;
-      await Promise.all(writers);
+      await Promise.all([...writers, ...loggers]);
       await new Promise((r) => server!.child.exitCode !== null || server!.child.signalCode !== null ? r(null) : server!.child.once('exit', r));
     }
     server = null;
@@ -66,7 +84,11 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
     const names = new Set(
       (raw.prepare(`select json_extract(new_value, '$.name') as name from audit_events where action = 'user.update'`).all() as { name: string }[]).map((r) => r.name),
     );
+    const keys = new Set((raw.prepare('select client_key as k from batch_readings').all() as { k: string }[]).map((r) => r.k));
     raw.close();
+    const missingReadings = [...acknowledgedReadings].filter((k) => !keys.has(k));
+    expect(acknowledgedReadings.size).toBeGreaterThan(ROUNDS);
+    expect(missingReadings).toEqual([]);
     const missing = [...acknowledged].filter((n) => !names.has(n));
     expect(acknowledged.size).toBeGreaterThan(ROUNDS * 5);
     expect(missing).toEqual([]);
