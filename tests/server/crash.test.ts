@@ -49,7 +49,7 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
       const loggers = [0, 1].map(async (w) => {
         for (let k = 0; !stop; k++) {
           const key = `crash-r${round}-w${w}-${k}`;
-          const takenAt = new Date(Date.parse(running.startedAt) + (round * 100_000 + w * 50_000 + k) * 1000).toISOString();
+          const takenAt = new Date(Date.parse(running.startedAt) + (round * 1000 + w * 500 + k) * 1000).toISOString();
           try {
             const res = await fetch(`${baseURL}/api/batches/${running.id}/readings`, { method: 'POST', headers: opHeaders, body: JSON.stringify({ key, takenAt, c: 50 }) });
             if (res.ok) acknowledgedReadings.add(key);
