@@ -1,25 +1,7 @@
-import { useState } from 'react';
-import { useSWRConfig } from 'swr';
-import { ApiError } from '../api/client';
+import { useSubmit } from './use-submit';
 
-/** Runs one kind of write: tracks busy and the API error, and revalidates the keys the write changed. */
+/** One-argument form of useSubmit for the billing and people screens: busy, the API error, revalidation. */
 export function useMutation<A, R>(run: (arg: A) => Promise<R>, revalidates: readonly string[]) {
-  const { mutate } = useSWRConfig();
-  const [error, setError] = useState<ApiError | null>(null);
-  const [isSubmitting, setSubmitting] = useState(false);
-  async function submit(arg: A): Promise<R | null> {
-    setSubmitting(true);
-    setError(null);
-    try {
-      const out = await run(arg);
-      await Promise.all(revalidates.map((k) => mutate(k)));
-      return out;
-    } catch (e) {
-      setError(e instanceof ApiError ? e : new ApiError(0, 'unknown', String(e)));
-      return null;
-    } finally {
-      setSubmitting(false);
-    }
-  }
-  return { submit, error, isSubmitting, reset: () => setError(null) };
+  const { submit, error, isBusy, clearError } = useSubmit(run, [...revalidates]);
+  return { submit: (arg: A) => submit(arg), error, isSubmitting: isBusy, reset: clearError };
 }

@@ -9,6 +9,7 @@ import { useSession } from '../../hooks/use-session';
 import { useVessels } from '../../hooks/use-vessels';
 import { radius, space, touchTarget, useBreakpoint, useColors } from '../../theme';
 import { Button, DataTable, EmptyState, ErrorState, Loader, Text, type Column } from '../ui';
+import { RecipeForm } from './recipe-form';
 import { VesselForm } from './vessel-form';
 
 const VESSEL_COLUMNS: Column<Vessel>[] = [
@@ -50,6 +51,7 @@ export function RecipeList() {
   const canEdit = session?.user.role === 'engineer' || session?.user.role === 'admin';
   // null: no form; 'new': adding; a vessel: changing it.
   const [editing, setEditing] = useState<Vessel | 'new' | null>(null);
+  const [isAddingRecipe, setAddingRecipe] = useState(false);
   if (recipes.error) return <ErrorState error={recipes.error} onRetry={recipes.retry} />;
   if (recipes.isLoading || !recipes.data) return <Loader rows={3} label="Loading recipes" />;
   return (
@@ -65,6 +67,15 @@ export function RecipeList() {
       ) : (
         <EmptyState title="No recipes yet" message="A recipe ties an accepted enzyme lot to a vessel, a substrate charge and prices." />
       )}
+      {canEdit ? (
+        isAddingRecipe ? (
+          <RecipeForm onDone={() => setAddingRecipe(false)} />
+        ) : (
+          <View style={styles.actions}>
+            <Button label="Add a recipe" variant="secondary" onPress={() => setAddingRecipe(true)} testID="recipe-add" />
+          </View>
+        )
+      ) : null}
       <Text variant="title" accessibilityRole="header">
         Vessels
       </Text>
