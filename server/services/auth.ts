@@ -1,5 +1,5 @@
 import bcrypt from 'bcryptjs';
-import crypto from 'node:crypto';
+import crypto, { createSecretKey, type KeyObject } from 'node:crypto';
 import { jwtVerify, SignJWT } from 'jose';
 import { writeTx, type Db } from '../../db/client';
 import type { SessionUser, SignInRequest } from '../../src/contracts/session';
@@ -23,6 +23,14 @@ export type AuthContext = { db: Db; clock: Clock; auth: AuthConfig };
 const DUMMY_HASH = bcrypt.hashSync('yieldpoint-no-such-user', BCRYPT_COST);
 
 export const hashPassword = (password: string) => bcrypt.hash(password, BCRYPT_COST);
+
+// jose imports a raw secret on every call; a KeyObject made once per secret saves that on every request.
+const keyObjects = new WeakMap<Uint8Array, KeyObject>();
+function sessionKey(secret: Uint8Array): KeyObject {
+  let key = keyObjects.get(secret);
+  if (!key) keyObjects.set(secret, (key = createSecretKey(secret)));
+  return key;
+}
 
 
 /** Checks a password and opens a server-side session; the JWT only names that session. */
@@ -61,7 +69,7 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
     .setSubject(String(user.id))
     .setIssuedAt(Math.floor(now.getTime() / 1000))
     .setExpirationTime(Math.floor(expiresAt.getTime() / 1000))
-    .sign(ctx.auth.secret);
+    .sign(sessionKey(ctx.auth.secret));
   return { token, expiresAt, user: loadSessionUser(db, user.id)! };
 }
 
@@ -90,7 +98,7 @@ export async function resolveSession(ctx: AuthContext, token: string): Promise<{
   let sid: unknown;
   let sub: string | undefined;
   try {
-    const { payload } = await jwtVerify(token, ctx.auth.secret, { algorithms: ['HS256'], currentDate: now });
+    const { payload } = await jwtVerify(token, sessionKey(ctx.auth.secret), { algorithms: ['HS256'], currentDate: now });
     sid = payload.sid;
     sub = payload.sub;
   } catch {

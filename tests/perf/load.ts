@@ -72,7 +72,7 @@ async function main() {
         const r = await run(server.baseURL, mix, connections);
         const after = mix.count ? await mix.count() : 0;
         console.log(
-          `${mix.name.padEnd(10)} ${String(connections).padStart(5)} ${r.requests.average.toFixed(0).padStart(7)} ${String(r.latency.p50).padStart(9)} ${String(r.latency.p99).padStart(7)} ${String(r.latency.max).padStart(7)} ${String(r.errors).padStart(7)} ${String(r.timeouts).padStart(9)} ${String(r.non2xx).padStart(8)}${mix.count ? `  stored ${after - before} of ${r['2xx']} acknowledged (${after - before === r['2xx'] ? 'none lost' : 'MISMATCH'})` : ''}`,
+          `${mix.name.padEnd(10)} ${String(connections).padStart(5)} ${r.requests.average.toFixed(0).padStart(7)} ${String(r.latency.p50).padStart(9)} ${String(r.latency.p99).padStart(7)} ${String(r.latency.max).padStart(7)} ${String(r.errors).padStart(7)} ${String(r.timeouts).padStart(9)} ${String(r.non2xx).padStart(8)}${mix.count ? `  stored ${after - before}, acknowledged ${r['2xx']}: ${after - before >= r['2xx'] ? 'none lost (requests still in flight at the end are stored too)' : `${r['2xx'] - (after - before)} LOST`}` : ''}`,
         );
       }
     }
