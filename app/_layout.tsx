@@ -4,8 +4,10 @@ import { StatusBar } from 'expo-status-bar';
 import { enableScreens } from 'react-native-screens';
 import { SWRConfig } from 'swr';
 import { installFocusRing } from '@/theme/focus-ring';
+import { installPrintStylesheet } from '@/theme/print';
 
 installFocusRing();
+installPrintStylesheet();
 // On the web, react-native-screens hides inactive tabs with display:none only when enabled; otherwise they stay
 // in the page behind the active one, aria-hidden yet focusable (axe: aria-hidden-focus).
 enableScreens(true);

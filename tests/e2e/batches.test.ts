@@ -141,6 +141,12 @@ describe('batches on the floor', () => {
     await page.getByTestId('batch-report-body').waitFor();
     expect(await page.getByTestId('batch-report-body').textContent()).toMatch(/Planned product.*Deviations \(\d+\).*Readings \(\d+\)/);
     await screenshot(page, 'batch-report-1440x900');
+    // Printed, the report stands alone: no navigation, no buttons.
+    await page.emulateMedia({ media: 'print' });
+    expect(await page.getByTestId('report-actions').isVisible()).toBe(false);
+    expect(await page.getByTestId('nav').isVisible()).toBe(false);
+    expect(await page.getByTestId('batch-report-body').isVisible()).toBe(true);
+    await page.emulateMedia({ media: 'screen' });
     await page.goto(`${baseURL}/batches/start`);
     await page.getByTestId('start-form').waitFor();
     await page.locator('[data-testid^="start-recipe-"]').first().click();

@@ -1,5 +1,4 @@
 import { router } from 'expo-router';
-import { useEffect } from 'react';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
 import type { ChangeRequestDetail } from '../../contracts/change-requests';
 import type { SessionUser } from '../../contracts/session';
@@ -17,22 +16,6 @@ const COLUMNS: Column<Row>[] = [
   { key: 'value', label: 'Value', value: (r) => r.value, flex: 1.6 },
 ];
 
-// The printed record is the request alone: navigation, buttons and the signing form are left off the page.
-const PRINT_CSS = `@media print {
-  [data-testid="nav"], [data-testid="topbar"], [data-testid="record-actions"], [data-testid="sign-form"] { display: none !important; }
-  html, body, #root, #root > div, [data-testid="screen-change-request"] { height: auto !important; overflow: visible !important; }
-  * { box-shadow: none !important; }
-}`;
-
-function usePrintStylesheet() {
-  useEffect(() => {
-    if (Platform.OS !== 'web' || typeof document === 'undefined' || document.getElementById('yp-print-change')) return;
-    const style = document.createElement('style');
-    style.id = 'yp-print-change';
-    style.textContent = PRINT_CSS;
-    document.head.appendChild(style);
-  }, []);
-}
 
 function inputRows(d: ChangeRequestDetail): Row[] {
   const i = d.plan.inputs;
@@ -52,7 +35,6 @@ function inputRows(d: ChangeRequestDetail): Row[] {
 
 /** A change request as a record: what is proposed against what runs now, why, the plan's inputs and every signature. */
 export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequestDetail; user: SessionUser }) {
-  usePrintStylesheet();
   const { isWide } = useBreakpoint();
   const canSign = user.role === 'supervisor' && d.status === 'proposed';
   const isOwn = d.proposedById === user.id;

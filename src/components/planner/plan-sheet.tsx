@@ -1,5 +1,4 @@
 import { router } from 'expo-router';
-import { useEffect } from 'react';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
 import type { Plan } from '../../contracts/plans';
 import { fmt } from '../../format';
@@ -12,26 +11,9 @@ const COLUMNS: Column<Row>[] = [
   { key: 'value', label: 'Value', value: (r) => r.value, flex: 1.6 },
 ];
 
-// Printing shows the plan alone: navigation, buttons and the scroll container's fixed height go.
-const PRINT_CSS = `@media print {
-  [data-testid="nav"], [data-testid="topbar"], [data-testid="plan-actions"] { display: none !important; }
-  html, body, #root, #root > div, [data-testid="screen-plan"] { height: auto !important; overflow: visible !important; }
-  * { box-shadow: none !important; }
-}`;
-
-function usePrintStylesheet() {
-  useEffect(() => {
-    if (Platform.OS !== 'web' || typeof document === 'undefined' || document.getElementById('yp-print-plan')) return;
-    const style = document.createElement('style');
-    style.id = 'yp-print-plan';
-    style.textContent = PRINT_CSS;
-    document.head.appendChild(style);
-  }, []);
-}
 
 /** A saved plan as the server computed and stored it: the printable record change control will sign. */
 export function PlanSheet({ plan }: { plan: Plan }) {
-  usePrintStylesheet();
   const o = plan.outputs;
   const i = plan.inputs;
   const u = o.uncertainty;

@@ -46,7 +46,7 @@ function ReportBody({ id }: { id: number }) {
   const p = b.program;
   return (
     <View style={styles.body} testID="batch-report-body">
-      <View style={styles.actions}>
+      <View style={styles.actions} testID="report-actions">
         {Platform.OS === 'web' ? <Button label="Print" onPress={() => window.print()} testID="report-print" /> : null}
         <Button label="Download CSV" variant="secondary" onPress={() => void Linking.openURL(`/api/batches/${b.id}/report.csv`)} />
         <Button label="Back to the batch" variant="ghost" onPress={() => router.navigate(`/batches/${b.id}`)} />
