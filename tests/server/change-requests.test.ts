@@ -1,3 +1,4 @@
+import { planBody } from '../fixtures/plan-body';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import type { Db } from '../../db/client';
@@ -21,23 +22,7 @@ afterAll(() => t.close());
 
 // Each proposal needs its own saved plan; the batch length makes them differ.
 async function savePlan(batchH: number): Promise<{ id: number; outputs: { setpointC: number } }> {
-  const r = await engineer.post('/api/plans', {
-    recipeId,
-    lotId,
-    batchH,
-    turnaroundH: 6,
-    doseGPerL: 0.6,
-    s0GPerL: 300,
-    kmGPerL: 2,
-    productPricePerKg: 0.45,
-    enzymePricePerKg: 18,
-    heatingCostPerDegCHour: 0.8,
-    currentSetpointC: 59,
-    strategy: 'isothermal',
-    stages: 4,
-    maxStepC: 4,
-    uncertainty: null,
-  });
+  const r = await engineer.post('/api/plans', planBody(recipeId, lotId, { batchH }));
   expect(r.status).toBe(201);
   return r.body;
 }

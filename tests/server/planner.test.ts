@@ -1,3 +1,4 @@
+import { planBody as demoPlanBody } from '../fixtures/plan-body';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { auditEvents, plans, recipes, vessels } from '../../db/schema';
@@ -174,24 +175,7 @@ describe('recipes', () => {
   });
 });
 
-const planBody = (over: Record<string, unknown> = {}) => ({
-  recipeId: recipeIds['Glucose syrup DE 95'],
-  lotId: lotIds['CGA-2605-11'],
-  batchH: 48,
-  turnaroundH: 6,
-  doseGPerL: 0.6,
-  s0GPerL: 300,
-  kmGPerL: 2,
-  productPricePerKg: 0.45,
-  enzymePricePerKg: 18,
-  heatingCostPerDegCHour: 0.8,
-  currentSetpointC: 59,
-  strategy: 'isothermal',
-  stages: 4,
-  maxStepC: 4,
-  uncertainty: null,
-  ...over,
-});
+const planBody = (over: Record<string, unknown> = {}) => demoPlanBody(recipeIds['Glucose syrup DE 95']!, lotIds['CGA-2605-11']!, over);
 
 describe('plans', () => {
   it('recomputes on the server and ignores numbers the client sends', async () => {
