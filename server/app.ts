@@ -2,6 +2,7 @@ import compression from 'compression';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import helmet from 'helmet';
+import os from 'node:os';
 import fs from 'node:fs';
 import path from 'node:path';
 import type { Db } from '../db/client';
@@ -30,7 +31,6 @@ import { vesselsRouter } from './routes/vessels';
 import type { AuthConfig } from './services/auth';
 import type { Billing } from './services/billing-provider';
 import { createFileStore, type FileStore } from './file-store';
-import os from 'node:os';
 
 export type AppDeps = {
   db: Db;

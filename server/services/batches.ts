@@ -263,8 +263,7 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
   if (Math.min(...temps) < vessel.minC || Math.max(...temps) > vessel.maxC)
     throw new HttpError(400, 'plan_outside_vessel', `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`, { vesselId: 'The plan does not fit this vessel' });
   const startedAt = new Date(startMs).toISOString();
-  return writeTx(db, (tx) => {
-    const t = tx;
+  return writeTx(db, (t) => {
     const row = insertBatch(t, { siteId: u.siteId, recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, planId: program.planId, source: program.source, program, state: 'running', startedAt, startedBy: u.id });
     appendAudit(t, {
       siteId: u.siteId,
@@ -296,8 +295,7 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
     measuredProductGPerL: input.measuredProductGPerL ?? null,
     forecastAtCloseGPerL: forecast,
   };
-  return writeTx(db, (tx) => {
-    const t = tx;
+  return writeTx(db, (t) => {
     updateBatch(t, b.id, patch);
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.close', entity: 'batch', entityId: b.id, oldValue: { state: 'running' }, newValue: { ...patch, closedBy: u.email }, at: now });
     return toBatch(findSiteBatch(t, u.siteId, b.id)!, b.startedBy === u.id);
@@ -383,8 +381,7 @@ export function logReading({ db, clock }: Services, u: SessionUser, id: number, 
   const stored = pointsOf(db, b);
   const point = { h: batchHours(b.startedAt, takenAt), c: input.c };
   const drafts = runDeviations(rulesOf(b.program, settings), stored, [point]);
-  const readingId = writeTx(db, (tx) => {
-    const t = tx;
+  const readingId = writeTx(db, (t) => {
     const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
     raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: row.id, draft: d.draft })), now);
@@ -437,8 +434,7 @@ export function importReadings({ db, clock }: Services, u: SessionUser, id: numb
     stored,
     accepted.map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })),
   );
-  const raised = writeTx(db, (tx) => {
-    const t = tx;
+  const raised = writeTx(db, (t) => {
     const rows = insertReadings(
       t,
       accepted.map((a) => ({ siteId: u.siteId, batchId: b.id, clientKey: a.key, takenAt: a.at, c: a.c, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
@@ -471,8 +467,7 @@ export function acknowledgeDeviation({ db, clock }: Services, u: SessionUser, id
   const d = loadDeviation(db, u.siteId, id);
   if (d.deviation.state !== 'open') throw new HttpError(409, 'already_acknowledged', 'This deviation was already acknowledged');
   const now = clock.now();
-  writeTx(db, (tx) => {
-    const t = tx;
+  writeTx(db, (t) => {
     updateDeviation(t, id, { state: 'acknowledged', acknowledgedBy: u.id, acknowledgedAt: now.toISOString(), acknowledgeComment: input.comment });
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.acknowledge', entity: 'deviation', entityId: id, oldValue: { state: 'open' }, newValue: { state: 'acknowledged', comment: input.comment }, at: now });
   });
@@ -484,8 +479,7 @@ export function closeDeviation({ db, clock }: Services, u: SessionUser, id: numb
   if (d.deviation.state === 'open') throw new HttpError(409, 'not_acknowledged', 'The operator acknowledges a deviation before it is closed');
   if (d.deviation.state === 'closed') throw new HttpError(409, 'already_closed', 'This deviation is already closed');
   const now = clock.now();
-  writeTx(db, (tx) => {
-    const t = tx;
+  writeTx(db, (t) => {
     updateDeviation(t, id, { state: 'closed', closedBy: u.id, closedAt: now.toISOString(), closeComment: input.comment || null });
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.close', entity: 'deviation', entityId: id, oldValue: { state: 'acknowledged' }, newValue: { state: 'closed', comment: input.comment ?? null }, at: now });
   });
