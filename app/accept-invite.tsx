@@ -6,8 +6,8 @@ import { Card } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
 import { ErrorState, Loader } from '@/components/ui/states';
 import { Text } from '@/components/ui/text';
-import { MIN_PASSWORD_LENGTH } from '@/contracts/invites';
-import { ROLE_LABELS } from '@/contracts/roles';
+import { MIN_PASSWORD_LENGTH } from '@/contracts/rules';
+import { ROLE_LABELS } from '@/contracts/rules';
 import { useAcceptInvite, useInvitePreview } from '@/hooks/use-accept-invite';
 import { space, useColors } from '@/theme';
 

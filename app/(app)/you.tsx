@@ -1,7 +1,7 @@
 import { router } from 'expo-router';
 import { CautionsList } from '@/components/shell/cautions';
 import { Button, Card, Screen, Text } from '@/components/ui';
-import { ROLE_LABELS } from '@/contracts/roles';
+import { ROLE_LABELS } from '@/contracts/rules';
 import { useSession } from '@/hooks/use-session';
 import { useSignOut } from '@/hooks/use-sign-out';
 

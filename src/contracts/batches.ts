@@ -1,16 +1,7 @@
 import { z } from 'zod';
+import { BATCH_READERS, BATCH_STARTERS, CLOCK_SKEW_MIN, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, READING_LOGGERS, READING_MAX_C, READING_MIN_C } from './rules';
 
-// Plausible reactor temperatures: wider than any vessel, narrow enough to catch a slipped decimal or a unit mix-up.
-export const READING_MIN_C = -50;
-export const READING_MAX_C = 250;
-/** How far ahead of the server's clock a reading may be stamped (phone clocks drift), minutes. */
-export const CLOCK_SKEW_MIN = 5;
-
-export const BATCH_STARTERS = ['supervisor', 'engineer'] as const;
-export const READING_LOGGERS = ['operator', 'supervisor', 'engineer'] as const;
-export const BATCH_READERS = ['operator', 'supervisor', 'engineer', 'admin'] as const;
-export const DEVIATION_ACKNOWLEDGERS = ['operator', 'supervisor'] as const;
-export const DEVIATION_CLOSERS = ['supervisor'] as const;
+export { BATCH_READERS, BATCH_STARTERS, CLOCK_SKEW_MIN, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, READING_LOGGERS, READING_MAX_C, READING_MIN_C };
 
 export const PLAN_SOURCES = ['released_plan', 'current_setpoint'] as const;
 export const BATCH_STATUSES = ['running', 'closed'] as const;

@@ -1,4 +1,7 @@
 import { z } from 'zod';
+import { MIN_PASSWORD_LENGTH } from './rules';
+
+export { MIN_PASSWORD_LENGTH };
 import { Role } from './roles';
 import { SignInRequest } from './session';
 
@@ -27,7 +30,6 @@ export type InviteToken = z.infer<typeof InviteToken>;
 export const InvitePreview = z.object({ email: z.string(), role: Role, siteName: z.string(), expiresAt: z.string() });
 export type InvitePreview = z.infer<typeof InvitePreview>;
 
-export const MIN_PASSWORD_LENGTH = 12;
 
 export const AcceptInvite = InviteToken.extend({
   name: z.string().trim().min(1, 'Enter your name').max(120),

@@ -1,13 +1,9 @@
 import { z } from 'zod';
 import { Assay, HalfLifeEstimate } from './assays';
 import { Enzyme } from './enzymes';
+import { LOT_DECIDERS, LOT_EDITORS } from './rules';
 
-import type { Role } from './roles';
-
-/** Who keeps the enzyme library, registers lots and uploads certificates and assays; everyone else reads. */
-export const LOT_EDITORS = ['procurement', 'engineer', 'admin'] as const satisfies readonly Role[];
-/** Accepting or rejecting a lot is procurement's call (and the admin's). */
-export const LOT_DECIDERS = ['procurement', 'admin'] as const satisfies readonly Role[];
+export { LOT_DECIDERS, LOT_EDITORS };
 
 export const LOT_STATUSES = ['quarantined', 'accepted', 'rejected'] as const;
 export const LotStatus = z.enum(LOT_STATUSES);

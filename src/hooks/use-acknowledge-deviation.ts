@@ -1,7 +1,7 @@
 import { api } from '../api/client';
 import { keys } from '../api/keys';
-import { Deviation } from '../contracts/batches';
+import type { Deviation } from '../contracts/batches';
 import { useSubmit } from './use-submit';
 
 export const useAcknowledgeDeviation = () =>
-  useSubmit((id: number, comment: string) => api(`/deviations/${id}/acknowledge`, Deviation, { method: 'POST', body: { comment } }), [keys.batches]);
+  useSubmit((id: number, comment: string) => api<Deviation>(`/deviations/${id}/acknowledge`, { method: 'POST', body: { comment } }), [keys.batches]);

@@ -1,7 +1,7 @@
 import { batchKey, keys } from '../api/keys';
-import { BatchDetail, BatchList } from '../contracts/batches';
+import type { BatchDetail, BatchList } from '../contracts/batches';
 import { useResource } from './use-resource';
 
-export const useBatches = () => useResource(keys.batches, BatchList);
+export const useBatches = () => useResource<BatchList>(keys.batches);
 
-export const useBatch = (id: number | null) => useResource(id ? batchKey(id) : null, BatchDetail);
+export const useBatch = (id: number | null) => useResource<BatchDetail>(id ? batchKey(id) : null);

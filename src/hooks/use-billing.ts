@@ -1,6 +1,6 @@
 import { keys } from '../api/keys';
-import { BillingSummary, InvoiceList } from '../contracts/billing';
+import type { BillingSummary, InvoiceList } from '../contracts/billing';
 import { useResource } from './use-resource';
 
-export const useBilling = () => useResource(keys.billing, BillingSummary);
-export const useInvoices = () => useResource(keys.invoices, InvoiceList);
+export const useBilling = () => useResource<BillingSummary>(keys.billing);
+export const useInvoices = () => useResource<InvoiceList>(keys.invoices);

@@ -1,6 +1,6 @@
 import { api } from '../api/client';
-import { CheckoutStarted, type BuySeats } from '../contracts/billing';
+import type { CheckoutStarted, BuySeats } from '../contracts/billing';
 import { useMutation } from './use-mutation';
 
 /** Opens a payment page for more seats; the caller sends the browser there. */
-export const useBuySeats = () => useMutation((body: BuySeats) => api('/billing/checkout', CheckoutStarted, { method: 'POST', body }), []);
+export const useBuySeats = () => useMutation((body: BuySeats) => api<CheckoutStarted>('/billing/checkout', { method: 'POST', body }), []);

@@ -1,7 +1,7 @@
 import { changeRequestKey, changeRequestsKey } from '../api/keys';
-import { ChangeRequestDetail, ChangeRequestList, type ChangeStatus } from '../contracts/change-requests';
+import type { ChangeRequestDetail, ChangeRequestList, ChangeStatus } from '../contracts/change-requests';
 import { useResource } from './use-resource';
 
-export const useChangeRequests = (status?: ChangeStatus) => useResource(changeRequestsKey(status), ChangeRequestList);
+export const useChangeRequests = (status?: ChangeStatus) => useResource<ChangeRequestList>(changeRequestsKey(status));
 
-export const useChangeRequest = (id: number | null) => useResource(id ? changeRequestKey(id) : null, ChangeRequestDetail);
+export const useChangeRequest = (id: number | null) => useResource<ChangeRequestDetail>(id ? changeRequestKey(id) : null);

@@ -1,6 +1,6 @@
 import { api } from '../api/client';
 import { keys } from '../api/keys';
-import { Batch, type BatchClose } from '../contracts/batches';
+import type { Batch, BatchClose } from '../contracts/batches';
 import { useSubmit } from './use-submit';
 
-export const useCloseBatch = (id: number) => useSubmit((input: BatchClose) => api(`/batches/${id}/close`, Batch, { method: 'POST', body: input }), [keys.batches]);
+export const useCloseBatch = (id: number) => useSubmit((input: BatchClose) => api<Batch>(`/batches/${id}/close`, { method: 'POST', body: input }), [keys.batches]);

@@ -1,6 +1,6 @@
 import { api } from '../api/client';
 import { keys } from '../api/keys';
-import { Invite, type CreateInvite } from '../contracts/invites';
+import type { Invite, CreateInvite } from '../contracts/invites';
 import { useMutation } from './use-mutation';
 
-export const useCreateInvite = () => useMutation((body: CreateInvite) => api('/invites', Invite, { method: 'POST', body }), [keys.invites, keys.billing, keys.mailOutbox]);
+export const useCreateInvite = () => useMutation((body: CreateInvite) => api<Invite>('/invites', { method: 'POST', body }), [keys.invites, keys.billing, keys.mailOutbox]);

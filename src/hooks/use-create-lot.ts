@@ -1,5 +1,5 @@
 import { api } from '../api/client';
-import { Lot, type LotInput } from '../contracts/lots';
+import type { Lot, LotInput } from '../contracts/lots';
 import { useSubmit } from './use-submit';
 
-export const useCreateLot = () => useSubmit((body: LotInput) => api('/lots', Lot, { method: 'POST', body }), ['/lots', '/enzymes']);
+export const useCreateLot = () => useSubmit((body: LotInput) => api<Lot>('/lots', { method: 'POST', body }), ['/lots', '/enzymes']);

@@ -2,7 +2,7 @@ import { useState } from 'react';
 import { useSWRConfig } from 'swr';
 import { api, ApiError } from '../api/client';
 import { plansKey } from '../api/keys';
-import { Plan, type PlanInputs } from '../contracts/plans';
+import type { Plan, PlanInputs } from '../contracts/plans';
 
 /** Saves a plan: the server recomputes every figure from the inputs and answers with the stored plan. */
 export function useCreatePlan() {
@@ -13,7 +13,7 @@ export function useCreatePlan() {
     setBusy(true);
     setError(null);
     try {
-      const plan = await api('/plans', Plan, { method: 'POST', body: inputs });
+      const plan = await api<Plan>('/plans', { method: 'POST', body: inputs });
       await mutate(plansKey(inputs.recipeId));
       return plan;
     } catch (e) {

@@ -1,6 +1,6 @@
 import { api } from '../api/client';
-import { LotDetail, type LotDecision } from '../contracts/lots';
+import type { LotDetail, LotDecision } from '../contracts/lots';
 import { useSubmit } from './use-submit';
 
 export const useDecideLot = (lotId: number) =>
-  useSubmit((body: LotDecision) => api(`/lots/${lotId}/decision`, LotDetail, { method: 'POST', body }), ['/lots', '/enzymes']);
+  useSubmit((body: LotDecision) => api<LotDetail>(`/lots/${lotId}/decision`, { method: 'POST', body }), ['/lots', '/enzymes']);

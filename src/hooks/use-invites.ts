@@ -1,5 +1,5 @@
 import { keys } from '../api/keys';
-import { InviteList } from '../contracts/invites';
+import type { InviteList } from '../contracts/invites';
 import { useResource } from './use-resource';
 
-export const useInvites = () => useResource(keys.invites, InviteList);
+export const useInvites = () => useResource<InviteList>(keys.invites);

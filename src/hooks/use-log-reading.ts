@@ -3,7 +3,7 @@ import { useSWRConfig } from 'swr';
 import { api, type ApiError } from '../api/client';
 import { keys } from '../api/keys';
 import { deviceStore, enqueue, flushQueue, newReadingKey, type QueuedReading } from '../api/reading-queue';
-import { ReadingResult } from '../contracts/batches';
+import type { ReadingResult } from '../contracts/batches';
 
 // One store for the app: the queue outlives the screen that filled it.
 const store = deviceStore();
@@ -24,7 +24,7 @@ export function useLogReading(batchId: number) {
     if (busy.current) return;
     busy.current = true;
     try {
-      const r = await flushQueue(store, (x) => api(`/batches/${x.batchId}/readings`, ReadingResult, { method: 'POST', body: { key: x.key, takenAt: x.takenAt, c: x.c, ...(x.note ? { note: x.note } : {}) } }));
+      const r = await flushQueue(store, (x) => api<ReadingResult>(`/batches/${x.batchId}/readings`, { method: 'POST', body: { key: x.key, takenAt: x.takenAt, c: x.c, ...(x.note ? { note: x.note } : {}) } }));
       setOffline(r.isOffline);
       if (r.rejected.length) setRejected((prev) => [...prev, ...r.rejected]);
       if (r.sent.length || r.rejected.length) await mutate((k) => typeof k === 'string' && k.startsWith(keys.batches));

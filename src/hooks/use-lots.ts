@@ -1,6 +1,6 @@
 import { keys, lotKey } from '../api/keys';
-import { LotDetail, LotList } from '../contracts/lots';
+import type { LotDetail, LotList } from '../contracts/lots';
 import { useResource } from './use-resource';
 
-export const useLots = () => useResource(keys.lots, LotList);
-export const useLot = (id: number | null) => useResource(id ? lotKey(id) : null, LotDetail);
+export const useLots = () => useResource<LotList>(keys.lots);
+export const useLot = (id: number | null) => useResource<LotDetail>(id ? lotKey(id) : null);

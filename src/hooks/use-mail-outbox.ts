@@ -1,5 +1,5 @@
 import { keys } from '../api/keys';
-import { Outbox } from '../contracts/mail';
+import type { Outbox } from '../contracts/mail';
 import { useResource } from './use-resource';
 
-export const useMailOutbox = () => useResource(keys.mailOutbox, Outbox);
+export const useMailOutbox = () => useResource<Outbox>(keys.mailOutbox);

@@ -1,7 +1,7 @@
 import { planKey, plansKey } from '../api/keys';
-import { Plan, PlanList } from '../contracts/plans';
+import type { Plan, PlanList } from '../contracts/plans';
 import { useResource } from './use-resource';
 
-export const usePlans = (recipeId: number | null) => useResource(recipeId ? plansKey(recipeId) : null, PlanList);
+export const usePlans = (recipeId: number | null) => useResource<PlanList>(recipeId ? plansKey(recipeId) : null);
 
-export const usePlan = (id: number | null) => useResource(id ? planKey(id) : null, Plan);
+export const usePlan = (id: number | null) => useResource<Plan>(id ? planKey(id) : null);

@@ -2,7 +2,7 @@ import { useState } from 'react';
 import { useSWRConfig } from 'swr';
 import { api, ApiError } from '../api/client';
 import { keys } from '../api/keys';
-import { Vessel, type VesselInput } from '../contracts/vessels';
+import type { Vessel, VesselInput } from '../contracts/vessels';
 
 /** Adds a vessel (no id) or changes one; field errors come back from the server's limit rules. */
 export function useSaveVessel() {
@@ -13,7 +13,7 @@ export function useSaveVessel() {
     setBusy(true);
     setError(null);
     try {
-      const v = await api(id ? `/vessels/${id}` : '/vessels', Vessel, { method: id ? 'PATCH' : 'POST', body });
+      const v = await api<Vessel>(id ? `/vessels/${id}` : '/vessels', { method: id ? 'PATCH' : 'POST', body });
       await mutate(keys.vessels);
       return v;
     } catch (e) {

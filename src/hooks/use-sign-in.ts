@@ -2,7 +2,7 @@ import { useState } from 'react';
 import { useSWRConfig } from 'swr';
 import { api, ApiError } from '../api/client';
 import { keys } from '../api/keys';
-import { Session, type SignInRequest } from '../contracts/session';
+import type { Session, SignInRequest } from '../contracts/session';
 
 export function useSignIn() {
   const { mutate } = useSWRConfig();
@@ -12,7 +12,7 @@ export function useSignIn() {
     setSubmitting(true);
     setError(null);
     try {
-      const session = await api(keys.session, Session, { method: 'POST', body });
+      const session = await api<Session>(keys.session, { method: 'POST', body });
       // A new user: drop every cached answer of the previous one, then prime the session.
       await mutate(() => true, undefined, { revalidate: false });
       await mutate(keys.session, session, { revalidate: false });

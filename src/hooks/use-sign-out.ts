@@ -5,7 +5,7 @@ import { keys } from '../api/keys';
 export function useSignOut() {
   const { mutate } = useSWRConfig();
   return async function signOut() {
-    await api(keys.session, null, { method: 'DELETE' }).catch(() => undefined);
+    await api<void>(keys.session, { method: 'DELETE' }).catch(() => undefined);
     await mutate(() => true, undefined, { revalidate: false });
     await mutate(keys.session, null, { revalidate: false });
   };

@@ -1,5 +1,5 @@
 import { keys } from '../api/keys';
-import { SiteSummary } from '../contracts/site';
+import type { SiteSummary } from '../contracts/site';
 import { useResource } from './use-resource';
 
-export const useSite = () => useResource(keys.site, SiteSummary);
+export const useSite = () => useResource<SiteSummary>(keys.site);

@@ -1,5 +1,5 @@
 import { api } from '../api/client';
-import { Assay, type AssayTableInput } from '../contracts/assays';
+import type { Assay, AssayTableInput } from '../contracts/assays';
 import { useSubmit } from './use-submit';
 
 /** A picked CSV file (web: the browser File) or the editable table's rows. */
@@ -8,7 +8,7 @@ export const useUploadAssay = (lotId: number) =>
     if ('file' in input) {
       const form = new FormData();
       form.append('file', input.file, input.name);
-      return api(`/lots/${lotId}/assays`, Assay, { method: 'POST', body: form });
+      return api<Assay>(`/lots/${lotId}/assays`, { method: 'POST', body: form });
     }
-    return api(`/lots/${lotId}/assays`, Assay, { method: 'POST', body: input });
+    return api<Assay>(`/lots/${lotId}/assays`, { method: 'POST', body: input });
   }, ['/lots', '/enzymes']);

@@ -1,5 +1,5 @@
 import { keys } from '../api/keys';
-import { UserList } from '../contracts/users';
+import type { UserList } from '../contracts/users';
 import { useResource } from './use-resource';
 
-export const useUsers = () => useResource(keys.users, UserList);
+export const useUsers = () => useResource<UserList>(keys.users);

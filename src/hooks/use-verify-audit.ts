@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import { api, ApiError } from '../api/client';
-import { AuditVerification } from '../contracts/audit-events';
+import type { AuditVerification } from '../contracts/audit-events';
 
 /** Runs the chain check on demand; the answer is not cached because the point is to ask now. */
 export function useVerifyAudit() {
@@ -11,7 +11,7 @@ export function useVerifyAudit() {
     setBusy(true);
     setError(null);
     try {
-      setResult(await api('/audit-events/verify', AuditVerification));
+      setResult(await api<AuditVerification>('/audit-events/verify'));
     } catch (e) {
       setError(e instanceof ApiError ? e : new ApiError(0, 'unknown', String(e)));
     } finally {

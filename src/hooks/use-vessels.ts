@@ -1,5 +1,5 @@
 import { keys } from '../api/keys';
-import { VesselList } from '../contracts/vessels';
+import type { VesselList } from '../contracts/vessels';
 import { useResource } from './use-resource';
 
-export const useVessels = () => useResource(keys.vessels, VesselList);
+export const useVessels = () => useResource<VesselList>(keys.vessels);

@@ -10,7 +10,8 @@ import { BatchTemperatureChart } from '@/components/charts/batch-temperature-cha
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import { batchHours, batchStatus, durationText, shortTime } from '@/batches';
-import { BATCH_STARTERS, READING_LOGGERS, type BatchDetail, type Reading } from '@/contracts/batches';
+import type { BatchDetail, Reading } from '@/contracts/batches';
+import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';

@@ -5,7 +5,8 @@ import { ForecastAccuracyChart } from '@/components/charts/forecast-accuracy-cha
 import { forecastAccuracyGeometry } from '@/components/charts/forecast-accuracy-geometry';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
-import { BATCH_STARTERS, type BatchSummary } from '@/contracts/batches';
+import type { BatchSummary } from '@/contracts/batches';
+import { BATCH_STARTERS } from '@/contracts/rules';
 import { fmt } from '@/format';
 import { useBatches } from '@/hooks/use-batches';
 import { useSession } from '@/hooks/use-session';

@@ -4,7 +4,7 @@ import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Choice, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { Field } from '@/components/ui/field';
 import { localInputValue, parseLocalInput } from '@/batches';
-import { BATCH_STARTERS } from '@/contracts/batches';
+import { BATCH_STARTERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
 import { useSession } from '@/hooks/use-session';

@@ -6,7 +6,7 @@ import { CertificateCard } from '@/components/lots/certificate-card';
 import { DecisionCard } from '@/components/lots/decision-card';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
-import { LOT_DECIDERS, LOT_EDITORS } from '@/contracts/lots';
+import { LOT_DECIDERS, LOT_EDITORS } from '@/contracts/rules';
 import { fmt } from '@/format';
 import { useLot } from '@/hooks/use-lots';
 import { useSession } from '@/hooks/use-session';

@@ -1,7 +1,8 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { shortTime } from '../../batches';
-import { DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, type Corrective, type Deviation } from '../../contracts/batches';
+import type { Corrective, Deviation } from '../../contracts/batches';
+import { DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS } from '../../contracts/rules';
 import type { Role } from '../../contracts/roles';
 import { fmt } from '../../format';
 import { useAcknowledgeDeviation } from '../../hooks/use-acknowledge-deviation';

@@ -1,7 +1,7 @@
 import { useEffect, useState } from 'react';
 import { StyleSheet, TextInput, View } from 'react-native';
 import { localInputValue, parseLocalInput } from '../../batches';
-import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C } from '../../contracts/batches';
+import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C } from '../../contracts/rules';
 import type { useLogReading } from '../../hooks/use-log-reading';
 import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
 import { Button } from '../ui/button';

@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { ROLE_LABELS, type Role } from '../../contracts/roles';
+import type { Role } from '../../contracts/roles';
+import { ROLE_LABELS } from '../../contracts/rules';
 import type { Invite } from '../../contracts/invites';
 import type { User } from '../../contracts/users';
 import { isoDate } from '../../format';

@@ -1,5 +1,6 @@
 import { Pressable, StyleSheet, View } from 'react-native';
-import { ROLE_LABELS, ROLES, type Role } from '../../contracts/roles';
+import type { Role } from '../../contracts/roles';
+import { ROLE_LABELS, ROLES } from '../../contracts/rules';
 import { radius, space, touchTarget, useColors } from '../../theme';
 import { Text } from '../ui';
 

@@ -1,7 +1,7 @@
 import { router } from 'expo-router';
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { SessionUser } from '../../contracts/session';
-import { ROLE_LABELS } from '../../contracts/roles';
+import { ROLE_LABELS } from '../../contracts/rules';
 import { font, radius, sidebarWidth, space, touchTarget, useColors } from '../../theme';
 import { Icon } from '../icons';
 import { Text } from '../ui/text';

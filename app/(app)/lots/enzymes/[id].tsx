@@ -6,7 +6,7 @@ import { EnzymeForm } from '@/components/lots/enzyme-form';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { LotHistoryPoint } from '@/contracts/enzymes';
-import { LOT_EDITORS } from '@/contracts/lots';
+import { LOT_EDITORS } from '@/contracts/rules';
 import { fmt } from '@/format';
 import { useEnzyme } from '@/hooks/use-enzymes';
 import { useSession } from '@/hooks/use-session';

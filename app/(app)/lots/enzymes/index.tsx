@@ -6,7 +6,7 @@ import { EnzymeForm } from '@/components/lots/enzyme-form';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Field, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Enzyme, EnzymeSort } from '@/contracts/enzymes';
-import { LOT_EDITORS } from '@/contracts/lots';
+import { LOT_EDITORS } from '@/contracts/rules';
 import { fmt } from '@/format';
 import { useEnzymes } from '@/hooks/use-enzymes';
 import { useSession } from '@/hooks/use-session';

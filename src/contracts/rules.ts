@@ -1,0 +1,32 @@
+// Plain constants of the API's rules, without zod: the contracts build their schemas on them, the server
+// enforces them, and the web app imports them from here so zod stays out of its bundle.
+
+export const ROLES = ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] as const;
+export type RoleName = (typeof ROLES)[number];
+
+export const ROLE_LABELS: Record<RoleName, string> = {
+  admin: 'Site admin',
+  engineer: 'Process engineer',
+  supervisor: 'Plant supervisor',
+  procurement: 'Procurement',
+  operator: 'Shift operator',
+};
+
+/** Who may register and edit enzymes, lots and assays. */
+export const LOT_EDITORS = ['procurement', 'engineer', 'admin'] as const satisfies readonly RoleName[];
+/** Accepting or rejecting a lot is procurement's call (and the admin's). */
+export const LOT_DECIDERS = ['procurement', 'admin'] as const satisfies readonly RoleName[];
+
+/** Plausible reactor readings, °C. */
+export const READING_MIN_C = -50;
+export const READING_MAX_C = 250;
+/** How far ahead of the server's clock a reading may be stamped (phone clocks drift), minutes. */
+export const CLOCK_SKEW_MIN = 5;
+
+export const BATCH_STARTERS = ['supervisor', 'engineer'] as const;
+export const READING_LOGGERS = ['operator', 'supervisor', 'engineer'] as const;
+export const BATCH_READERS = ['operator', 'supervisor', 'engineer', 'admin'] as const;
+export const DEVIATION_ACKNOWLEDGERS = ['operator', 'supervisor'] as const;
+export const DEVIATION_CLOSERS = ['supervisor'] as const;
+
+export const MIN_PASSWORD_LENGTH = 12;
