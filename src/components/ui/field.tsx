@@ -34,17 +34,24 @@ export function Field({ label, error, hint, style, testID, ...rest }: FieldProps
           style,
         ]}
       />
-      {error ? (
-        <Text variant="small" tone="danger" accessibilityLiveRegion="polite" testID={testID ? `${testID}-error` : undefined}>
-          {error}
-        </Text>
-      ) : hint ? (
-        <Text variant="caption" tone="muted">
-          {hint}
-        </Text>
-      ) : null}
+      <FieldNote error={error} hint={hint} testID={testID} />
     </View>
   );
+}
+
+/** Under an input: the API's field error (announced), else the hint. */
+export function FieldNote({ error, hint, testID }: { error?: string | null; hint?: string; testID?: string }) {
+  if (error)
+    return (
+      <Text variant="small" tone="danger" accessibilityLiveRegion="polite" testID={testID ? `${testID}-error` : undefined}>
+        {error}
+      </Text>
+    );
+  return hint ? (
+    <Text variant="caption" tone="muted">
+      {hint}
+    </Text>
+  ) : null;
 }
 
 const styles = StyleSheet.create({

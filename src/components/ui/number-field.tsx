@@ -2,6 +2,7 @@ import { memo, useEffect, useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
 import { Text } from './text';
+import { FieldNote } from './field';
 
 type Props = {
   label: string;
@@ -76,15 +77,7 @@ export const NumberField = memo(function NumberField({ label, value, onChange, s
         />
         {button(1)}
       </View>
-      {error ? (
-        <Text variant="caption" tone="danger" accessibilityLiveRegion="polite">
-          {error}
-        </Text>
-      ) : hint ? (
-        <Text variant="caption" tone="muted">
-          {hint}
-        </Text>
-      ) : null}
+      <FieldNote error={error} hint={hint} />
     </View>
   );
 });
