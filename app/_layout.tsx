@@ -12,10 +12,11 @@ installPrintStylesheet();
 // in the page behind the active one, aria-hidden yet focusable (axe: aria-hidden-focus).
 enableScreens(true);
 
+// Latin subsets in WOFF2 (`npm run fonts`, about 24 KB each instead of 340 KB TTF).
 // `swap`: text paints at once in the fallback face instead of staying invisible while the fonts download.
 const FONTS = {
-  Inter_400Regular: { uri: require('../assets/fonts/Inter_400Regular.ttf'), display: FontDisplay.SWAP },
-  Inter_600SemiBold: { uri: require('../assets/fonts/Inter_600SemiBold.ttf'), display: FontDisplay.SWAP },
+  Inter_400Regular: { uri: require('../assets/fonts/Inter_400Regular.woff2'), display: FontDisplay.SWAP },
+  Inter_600SemiBold: { uri: require('../assets/fonts/Inter_600SemiBold.woff2'), display: FontDisplay.SWAP },
 };
 
 export default function RootLayout() {

@@ -1,6 +1,8 @@
 // Times as the operator types and reads them: the device's own clock and zone, minutes only.
 
 const p2 = (n: number) => String(n).padStart(2, '0');
+// A table, not toLocaleString: building an Intl formatter per call cost a phone tens of ms on a long list.
+const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
 /** `2026-12-01 09:05` in the device's zone. */
 export const localInputValue = (d: Date) => `${d.getFullYear()}-${p2(d.getMonth() + 1)}-${p2(d.getDate())} ${p2(d.getHours())}:${p2(d.getMinutes())}`;
@@ -20,7 +22,7 @@ export function shortTime(iso: string, now = new Date()): string {
   const d = new Date(iso);
   const hm = `${p2(d.getHours())}:${p2(d.getMinutes())}`;
   if (d.toDateString() === now.toDateString()) return hm;
-  return `${d.getDate()} ${d.toLocaleString('en-GB', { month: 'short' })} ${hm}`;
+  return `${d.getDate()} ${MONTHS[d.getMonth()]} ${hm}`;
 }
 
 /** `25 min`, `3.5 h` or `2.1 d` for a duration in ms. */

@@ -1,14 +1,16 @@
 // Runs Lighthouse on one page and prints the figures as JSON. Plain JavaScript on purpose: Lighthouse sends
 // functions into the page as source text, and a TypeScript runner's injected helpers would not exist there.
+import fs from 'node:fs';
 import lighthouse, { desktopConfig } from 'lighthouse';
 
-const [url, port, form, cookie] = process.argv.slice(2);
+const [url, port, form, cookie, reportPath] = process.argv.slice(2);
 const result = await lighthouse(
   url,
   { port: Number(port), output: 'json', logLevel: 'error', onlyCategories: ['performance', 'accessibility'], extraHeaders: cookie ? { Cookie: cookie } : undefined },
   form === 'desktop' ? desktopConfig : undefined,
 );
 const lhr = result.lhr;
+if (reportPath) fs.writeFileSync(reportPath, JSON.stringify(lhr));
 const a11yIds = new Set(lhr.categories.accessibility.auditRefs.map((r) => r.id));
 process.stdout.write(
   JSON.stringify({

@@ -10,6 +10,10 @@ import { ROOT, sessionCookie, startServer } from '../support/server';
 
 // npm run lighthouse: every role's home (and the sign-in page) on the production build, mobile and desktop.
 // Budgets (mobile) from the tracker: performance >= 0.90, LCP <= 2.5 s, TBT <= 200 ms, CLS <= 0.1, a11y 1.0.
+// LIGHTHOUSE_REPORTS=dir keeps each page's full report (JSON) for a closer look; LIGHTHOUSE_PAGES=operator,sign-in
+// measures only the pages whose names contain one of those words.
+const REPORTS = process.env.LIGHTHOUSE_REPORTS;
+const ONLY = process.env.LIGHTHOUSE_PAGES?.split(',').filter(Boolean);
 const BUDGET = { performance: 0.9, lcpMs: 2500, tbtMs: 200, cls: 0.1, accessibility: 1 };
 
 type Row = { page: string; form: 'mobile' | 'desktop'; performance: number; lcpMs: number; tbtMs: number; cls: number; accessibility: number; failing: string[] };
@@ -26,12 +30,13 @@ async function main() {
     const pages: { page: string; path: string; role: Role | null }[] = [
       { page: 'sign-in', path: '/sign-in', role: null },
       ...(Object.keys(HOME) as Role[]).map((role) => ({ page: `${role} home`, path: HOME[role], role })),
-    ];
+    ].filter((p) => !ONLY || ONLY.some((w) => p.page.includes(w)));
+    if (REPORTS) fs.mkdirSync(REPORTS, { recursive: true });
     for (const p of pages) {
       const user = p.role ? DEMO_USERS.find((u) => u.role === p.role)! : null;
       const cookie = user ? await sessionCookie(server.baseURL, user.email, user.password) : undefined;
       for (const form of ['mobile', 'desktop'] as const) {
-        const out = execFileSync(process.execPath, [path.join(__dirname, 'lighthouse-page.mjs'), `${server.baseURL}${p.path}`, String(chrome.port), form, cookie ?? ''], {
+        const out = execFileSync(process.execPath, [path.join(__dirname, 'lighthouse-page.mjs'), `${server.baseURL}${p.path}`, String(chrome.port), form, cookie ?? '', REPORTS ? path.join(REPORTS, `${p.page.replace(/ /g, '-')}-${form}.json`) : ''], {
           encoding: 'utf8',
           maxBuffer: 64 * 1024 * 1024,
         });
