@@ -8,6 +8,7 @@ import path from 'node:path';
 import type { Db } from '../db/client';
 import type { Clock } from './clock';
 import type { ApiMount } from './route-table';
+import { serveWeb } from './web-app';
 import { auditDenials } from './middleware/audit-denials';
 import { authenticate } from './middleware/auth';
 import { requireSameOrigin } from './middleware/csrf';
@@ -125,27 +126,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(apiNotFound);
   app.use('/api', api);
 
-  if (deps.webDir) serveWeb(app, deps.webDir);
+  if (deps.webDir) serveWeb(app, deps.webDir, { db: deps.db, clock: deps.clock, auth: deps.auth });
   app.use(errorHandler);
   return app;
-}
-
-/** Serves the exported single-page app: hashed bundles cached for a year, index.html for every other GET. */
-function serveWeb(app: Express, webDir: string): void {
-  const root = path.resolve(webDir);
-  const indexHtml = path.join(root, 'index.html');
-  app.use(
-    express.static(root, {
-      index: false,
-      setHeaders: (res, file) => {
-        const hashed = file.includes(`${path.sep}_expo${path.sep}`) || file.includes(`${path.sep}assets${path.sep}`);
-        res.setHeader('cache-control', hashed ? 'public, max-age=31536000, immutable' : 'no-cache');
-      },
-    }),
-  );
-  app.get('/{*splat}', (_req, res, next) => {
-    if (!fs.existsSync(indexHtml)) return next();
-    res.setHeader('cache-control', 'no-cache');
-    res.sendFile(indexHtml);
-  });
 }

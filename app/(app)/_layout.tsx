@@ -1,5 +1,6 @@
 import { Redirect } from 'expo-router';
 import { Tabs } from 'expo-router/js-tabs';
+import { useDeferredValue } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { FirstRunNotice } from '@/components/shell/first-run-notice';
 import { NavBar } from '@/components/shell/nav-bar';
@@ -10,7 +11,10 @@ import { useSession } from '@/hooks/use-session';
 import { space, useBreakpoint, useColors } from '@/theme';
 
 export default function SignedInLayout() {
-  const { session, error, isLoading, mutate } = useSession();
+  const { session: latest, error, mutate } = useSession();
+  // The whole signed-in shell mounts when the session arrives: render it in a transition so React slices that
+  // work into short tasks instead of one long freeze on a slow phone.
+  const session = useDeferredValue(latest);
   const { isWide } = useBreakpoint();
   const c = useColors();
   if (error) {
@@ -20,7 +24,7 @@ export default function SignedInLayout() {
       </View>
     );
   }
-  if (isLoading || session === undefined) {
+  if (session === undefined) {
     return (
       <View style={[styles.center, { backgroundColor: c.background }]}>
         <Loader label="Checking your sign-in" />

@@ -30,3 +30,6 @@ export const DEVIATION_ACKNOWLEDGERS = ['operator', 'supervisor'] as const;
 export const DEVIATION_CLOSERS = ['supervisor'] as const;
 
 export const MIN_PASSWORD_LENGTH = 12;
+
+/** The page carries the session it was served for in a JSON block with this id, so the app starts without asking. */
+export const PAGE_SESSION_ID = 'yieldpoint-session';

@@ -1,8 +1,12 @@
+import { useDeferredValue } from 'react';
 import useSWR from 'swr';
 import { api, type ApiError } from '../api/client';
 
 /** SWR read of one API path, typed by its contract; `null` path skips the request. */
 export function useResource<T>(path: string | null) {
-  const { data, error, isLoading, mutate } = useSWR(path, (p: string) => api<T>(p));
+  const { data: latest, error, isLoading, mutate } = useSWR(path, (p: string) => api<T>(p));
+  // Arriving data renders in a transition: React slices the screen's render into short tasks, so a slow phone
+  // stays responsive to taps while a long list or chart draws (screens show their loader until then).
+  const data = useDeferredValue(latest);
   return { data, error: error as ApiError | undefined, isLoading, retry: () => mutate() };
 }

@@ -1,13 +1,29 @@
-import useSWR from 'swr';
+import useSWR, { preload } from 'swr';
 import { api, type ApiError } from '../api/client';
 import { keys } from '../api/keys';
+import { PAGE_SESSION_ID } from '../contracts/rules';
 import type { SessionState, Session } from '../contracts/session';
+
+const toSession = (state: SessionState): Session | null => (state.user ? { user: state.user } : null);
+
+/** The session the server wrote into the page, if any (read once: later changes come from the API). */
+function pageSession(): SessionState | undefined {
+  if (typeof document === 'undefined') return undefined;
+  const block = document.getElementById(PAGE_SESSION_ID);
+  if (!block?.textContent) return undefined;
+  try {
+    return JSON.parse(block.textContent) as SessionState;
+  } catch {
+    return undefined;
+  }
+}
+
+// The first read of the session is answered from the page: no round trip before the signed-in shell renders.
+const fromPage = pageSession();
+if (fromPage) preload(keys.session, () => Promise.resolve(toSession(fromPage)));
 
 /** The signed-in user's session, `null` when signed out. */
 export function useSession() {
-  const { data, error, isLoading, mutate } = useSWR(keys.session, async (): Promise<Session | null> => {
-    const state = await api<SessionState>(keys.session);
-    return state.user ? { user: state.user } : null;
-  });
+  const { data, error, isLoading, mutate } = useSWR(keys.session, async (): Promise<Session | null> => toSession(await api<SessionState>(keys.session)));
   return { session: data, error: error as ApiError | undefined, isLoading, mutate };
 }

@@ -1,0 +1,110 @@
+import fs from 'node:fs';
+import http from 'node:http';
+import os from 'node:os';
+import path from 'node:path';
+import zlib from 'node:zlib';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { precompress } from '../../server/web-build';
+import { pageWithSession } from '../../server/web-app';
+import { PAGE_SESSION_ID } from '../../src/contracts/rules';
+import { startTestApp, type TestApp } from './harness';
+
+// The exported web app as the server hands it to a phone: precompressed bundles chosen by Accept-Encoding,
+// hashed files cached for a year, the page itself revalidated.
+const raw = (base: string, urlPath: string, acceptEncoding?: string) =>
+  new Promise<{ status: number; headers: http.IncomingHttpHeaders; body: Buffer }>((resolve, reject) => {
+    http
+      .get(`${base}${urlPath}`, { headers: acceptEncoding ? { 'accept-encoding': acceptEncoding } : {} }, (res) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => resolve({ status: res.statusCode!, headers: res.headers, body: Buffer.concat(chunks) }));
+      })
+      .on('error', reject);
+  });
+
+describe('serving the exported web app', () => {
+  let t: TestApp;
+  let webDir: string;
+  const bundle = `globalThis.x = ${JSON.stringify('yieldpoint '.repeat(5000))};\n`;
+  const bundlePath = '/_expo/static/js/web/entry-0123abcd.js';
+
+  beforeAll(async () => {
+    webDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-web-'));
+    fs.mkdirSync(path.join(webDir, '_expo/static/js/web'), { recursive: true });
+    fs.writeFileSync(path.join(webDir, bundlePath), bundle);
+    fs.writeFileSync(path.join(webDir, 'index.html'), '<!doctype html><html><head><title>Yieldpoint</title></head><body><div id="root"></div></body></html>');
+    precompress(webDir);
+    t = await startTestApp({ webDir });
+  });
+  afterAll(async () => {
+    await t.close();
+    fs.rmSync(webDir, { recursive: true, force: true });
+  });
+
+  it('writes a brotli and a gzip copy beside each text file', () => {
+    const file = path.join(webDir, bundlePath);
+    expect(zlib.brotliDecompressSync(fs.readFileSync(`${file}.br`)).toString()).toBe(bundle);
+    expect(zlib.gunzipSync(fs.readFileSync(`${file}.gz`)).toString()).toBe(bundle);
+  });
+
+  it('sends brotli to a browser that takes it, gzip to one that takes only gzip, plain text otherwise', async () => {
+    const br = await raw(t.base, bundlePath, 'gzip, deflate, br');
+    expect(br.status).toBe(200);
+    expect(br.headers['content-encoding']).toBe('br');
+    expect(br.headers.vary).toMatch(/accept-encoding/i);
+    expect(br.headers['content-type']).toMatch(/javascript/);
+    expect(zlib.brotliDecompressSync(br.body).toString()).toBe(bundle);
+    expect(br.body.length).toBeLessThan(bundle.length / 10);
+
+    const gz = await raw(t.base, bundlePath, 'gzip');
+    expect(gz.headers['content-encoding']).toBe('gzip');
+    expect(zlib.gunzipSync(gz.body).toString()).toBe(bundle);
+
+    const plain = await raw(t.base, bundlePath);
+    expect(plain.headers['content-encoding']).toBeUndefined();
+    expect(plain.body.toString()).toBe(bundle);
+  });
+
+  it('caches hashed bundles for a year and never the page, which names the signed-in user', async () => {
+    const js = await raw(t.base, bundlePath, 'br');
+    expect(js.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    const page = await raw(t.base, '/batches', 'br');
+    expect(page.status).toBe(200);
+    expect(page.headers['cache-control']).toBe('no-store');
+    expect(page.headers.vary).toMatch(/cookie/i);
+    expect(page.headers['content-type']).toMatch(/html/);
+  });
+
+  const sessionBlock = (html: string) => {
+    const m = new RegExp(`<script id="${PAGE_SESSION_ID}" type="application/json">(.*?)</script>`).exec(html);
+    return m ? JSON.parse(m[1]!) : undefined;
+  };
+
+  it('writes the session the page is served for into it: the signed-in user, or none', async () => {
+    const operator = await t.signIn('operator');
+    const signedIn = await operator.get('/batches');
+    expect(signedIn.status).toBe(200);
+    const mine = await operator.get('/api/session');
+    expect(sessionBlock(signedIn.body as string)).toEqual(mine.body);
+    expect((mine.body as { user: { role: string } }).user.role).toBe('operator');
+
+    expect(sessionBlock((await t.client().get('/sign-in')).body as string)).toEqual({ user: null });
+
+    await operator.del('/api/session');
+    expect(sessionBlock((await operator.get('/batches')).body as string)).toEqual({ user: null });
+  });
+
+  it('escapes the session so no name can close the block and run as script', () => {
+    const user = { id: 1, email: 'a@b.test', name: '</script><script>alert(1)</script>', role: 'operator' as const, siteId: 1, siteName: 'S', siteTimeZone: 'UTC', cautionsAcknowledgedAt: null };
+    const html = pageWithSession('<html><head></head><body></body></html>', { user });
+    expect(html).not.toContain('</script><script>');
+    expect(html.match(/<script/g)).toHaveLength(1);
+    expect(sessionBlock(html).user.name).toBe(user.name);
+  });
+
+  it('answers an unknown API path with JSON 404, not the page', async () => {
+    const r = await raw(t.base, '/api/no-such-thing');
+    expect(r.status).toBe(404);
+    expect(r.headers['content-type']).toMatch(/json/);
+  });
+});
