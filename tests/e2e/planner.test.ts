@@ -61,7 +61,8 @@ describe('setpoint planner', () => {
     await page.getByTestId('vessel-hygienicMinC').fill('45');
     await page.getByTestId('vessel-save').click();
     await page.getByTestId('vessel-form').waitFor({ state: 'detached' });
-    expect(await page.getByTestId('vessels-table').textContent()).toContain('R-450 Pilot');
+    // The list redraws in a transition once the saved vessel comes back from the server.
+    await expect.poll(() => page.getByTestId('vessels-table').textContent()).toContain('R-450 Pilot');
     // The failed attempt's 400 is the one expected console error.
     expect(errors.filter((e) => !e.includes('400'))).toEqual([]);
     await context.close();

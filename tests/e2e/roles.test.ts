@@ -45,6 +45,23 @@ describe.each([
 });
 
 describe('shell', () => {
+  it('opens a signed-in page from the session the page carries, without asking the API who is signed in', async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await signIn(page, baseURL, 'procurement');
+    await acknowledgeCautionsIfShown(page, screenOf(HOME.procurement));
+    const asked: string[] = [];
+    page.on('request', (r) => {
+      if (new URL(r.url()).pathname.startsWith('/api/')) asked.push(`${r.method()} ${new URL(r.url()).pathname}`);
+    });
+    await page.reload();
+    await page.getByTestId(screenOf(HOME.procurement)).waitFor();
+    await page.getByTestId('nav-you').waitFor();
+    expect(asked).not.toContain('GET /api/session');
+    expect(asked).toContain('GET /api/lots');
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+
   it('shows a wrong password under the form without console errors', async () => {
     const { page, context, errors } = await watchedPage(browser, PHONE);
     await page.goto(`${baseURL}/`);
