@@ -175,7 +175,11 @@ export const isEmpty = (db: Db) => (db.select({ n: sql<number>`count(*)` }).from
  * Writes the demo site in one transaction. Deterministic: the same rows every time, except bcrypt salts.
  * `bcryptCost` is lowered only by tests that seed many databases.
  */
-export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string; emailDomain?: string } = {}): { siteId: number } {
+/**
+ * `now`: the running batch starts four hours before it (on the half hour) with its readings up to then, so the
+ * demo's floor screens look like a live shift on any day. Without it (the tests) every date is the fixed one above.
+ */
+export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string; emailDomain?: string; now?: Date } = {}): { siteId: number } {
   const cost = opts.bcryptCost ?? 12;
   const hashes = DEMO_USERS.map((u) => bcrypt.hashSync(u.password, cost));
   return db.transaction((tx) => {
@@ -256,7 +260,8 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       const vesselId = vesselRows.find((v) => v.name === vessel)!.id;
       recipeRows.set(r.name, tx.insert(recipes).values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT }).returning().get());
     }
-    for (const b of BATCHES) {
+    for (const demo of BATCHES) {
+      const b = !demo.closedAt && opts.now ? { ...demo, startedAt: new Date(Math.floor(opts.now.getTime() / 1_800_000) * 1_800_000 - demo.readUntilH * 3_600_000).toISOString() } : demo;
       const recipe = recipeRows.get(b.recipe)!;
       const vessel = vesselRows.find((v) => v.id === recipe.vesselId)!;
       const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;

@@ -30,7 +30,7 @@ async function main() {
   const db = openDb(env.databaseFile);
   migrateDb(db);
   const seeded = env.seedDemo && isEmpty(db);
-  if (seeded) seedDemo(db);
+  if (seeded) seedDemo(db, { now: systemClock.now() });
   const integrations = await startIntegrations(db, env);
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const publicUrl = env.publicUrl ?? `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;

@@ -1,0 +1,33 @@
+import { eq } from 'drizzle-orm';
+import { describe, expect, it } from 'vitest';
+import { migrateDb, openDb } from '../../db/client';
+import { batches, batchReadings } from '../../db/schema';
+import { seedDemo } from '../../db/seed';
+
+// The demo site as `npm start` seeds it: a live-looking shift on whatever day it is started.
+describe('demo seed', () => {
+  const seeded = (now?: Date) => {
+    const db = openDb(':memory:');
+    migrateDb(db);
+    seedDemo(db, { bcryptCost: 4, now });
+    const running = db.select().from(batches).where(eq(batches.state, 'running')).all();
+    const readings = running.length ? db.select().from(batchReadings).where(eq(batchReadings.batchId, running[0]!.id)).all() : [];
+    db.$client.close();
+    return { running, readings };
+  };
+
+  it('starts the running batch four hours before now, on the half hour, with readings up to now', () => {
+    const now = new Date('2027-03-14T16:47:12Z');
+    const { running, readings } = seeded(now);
+    expect(running).toHaveLength(1);
+    expect(running[0]!.startedAt).toBe('2027-03-14T12:30:00.000Z');
+    const times = readings.map((r) => Date.parse(r.takenAt));
+    expect(Math.min(...times)).toBe(Date.parse('2027-03-14T12:30:00.000Z'));
+    expect(Math.max(...times)).toBeLessThanOrEqual(now.getTime());
+    expect(now.getTime() - Math.max(...times)).toBeLessThan(30 * 60_000);
+  });
+
+  it('keeps the fixed dates the tests rely on when no time is given', () => {
+    expect(seeded().running[0]!.startedAt).toBe('2026-12-01T05:00:00.000Z');
+  });
+});
