@@ -19,11 +19,21 @@ const FONTS = {
   Inter_600SemiBold: { uri: require('../assets/fonts/Inter_600SemiBold.woff2'), display: FontDisplay.SWAP },
 };
 
-export default function RootLayout() {
-  // Rendering does not wait for the fonts: text shows at once in the fallback face and swaps when they load.
+/**
+ * Rendering does not wait for the fonts: text shows at once in the fallback face and swaps when they load. A leaf
+ * of its own, so the fonts arriving re-render nothing else (in the root layout they re-rendered the whole app).
+ */
+function Fonts() {
   useFonts(FONTS);
+  return null;
+}
+
+const SWR_OPTIONS = { shouldRetryOnError: false, revalidateOnFocus: true, dedupingInterval: 2000 };
+
+export default function RootLayout() {
   return (
-    <SWRConfig value={{ shouldRetryOnError: false, revalidateOnFocus: true, dedupingInterval: 2000 }}>
+    <SWRConfig value={SWR_OPTIONS}>
+      <Fonts />
       <StatusBar style="auto" />
       <Slot />
     </SWRConfig>
