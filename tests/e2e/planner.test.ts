@@ -44,6 +44,17 @@ describe('setpoint planner', () => {
     await page.getByText('Maltose trial 30 h').click();
     await page.getByTestId('recommended-setpoint').waitFor();
     expect(await setpoint(page)).toBeGreaterThan(20);
+    expect(await page.getByTestId('input-batchH').inputValue()).toBe('30');
+
+    // Changing the saved recipe: no setpoint field (change control moves it), and the planner starts again from it.
+    await page.getByTestId('recipe-edit').click();
+    expect(await page.getByTestId('recipe-currentSetpointC').count()).toBe(0);
+    expect(await page.getByTestId('recipe-name').inputValue()).toBe('Maltose trial 30 h');
+    await page.getByTestId('recipe-batchH').fill('36');
+    await page.getByTestId('recipe-save').click();
+    await page.getByTestId('recipe-form').waitFor({ state: 'detached' });
+    await expect.poll(() => page.getByTestId('input-batchH').inputValue()).toBe('36');
+    await screenshot(page, 'planner-recipe-changed-1440x900');
     // The refused first attempt's 400 is the one expected console error.
     expect(errors.filter((e) => !e.includes('400'))).toEqual([]);
     await context.close();

@@ -1,8 +1,27 @@
 import { useLocalSearchParams } from 'expo-router';
+import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { RecipeForm } from '@/components/planner/recipe-form';
 import { RecipePlanner } from '@/components/planner/recipe-planner';
 import { RoleGate } from '@/components/shell/role-gate';
-import { ErrorState, Loader, Screen } from '@/components/ui';
+import { Button, ErrorState, Loader, Screen } from '@/components/ui';
+import type { Recipe } from '@/contracts/recipes';
 import { useRecipe } from '@/hooks/use-recipes';
+import { useSession } from '@/hooks/use-session';
+import { space } from '@/theme';
+
+/** Engineers and admins change the saved recipe here; the planner above redraws from the saved values. */
+function RecipeChange({ recipe }: { recipe: Recipe }) {
+  const { session } = useSession();
+  const [isOpen, setOpen] = useState(false);
+  if (session?.user.role !== 'engineer' && session?.user.role !== 'admin') return null;
+  if (isOpen) return <RecipeForm recipe={recipe} onDone={() => setOpen(false)} />;
+  return (
+    <View style={styles.change}>
+      <Button label="Change the recipe" variant="secondary" onPress={() => setOpen(true)} testID="recipe-edit" />
+    </View>
+  );
+}
 
 function Body({ id }: { id: number | null }) {
   const { data, error, isLoading, retry } = useRecipe(id);
@@ -16,7 +35,11 @@ function Body({ id }: { id: number | null }) {
       ) : isLoading || !data ? (
         <Loader rows={4} label="Loading the recipe" />
       ) : (
-        <RecipePlanner key={data.recipe.id} detail={data} />
+        <>
+          <RecipeChange recipe={data.recipe} />
+          {/* A saved change starts the planner again from the recipe's new values. */}
+          <RecipePlanner key={`${data.recipe.id}-${data.recipe.updatedAt}`} detail={data} />
+        </>
       )}
     </Screen>
   );
@@ -31,3 +54,7 @@ export default function RecipePlannerScreen() {
     </RoleGate>
   );
 }
+
+const styles = StyleSheet.create({
+  change: { alignSelf: 'flex-start', marginBottom: space.sm },
+});

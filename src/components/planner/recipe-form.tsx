@@ -1,9 +1,10 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import type { RecipeInput } from '../../contracts/recipes';
-import { toNumber } from '../../format';
+import type { Recipe, RecipeInput, RecipePatch } from '../../contracts/recipes';
+import { fmt, toNumber } from '../../format';
 import { useCreateRecipe } from '../../hooks/use-create-recipe';
 import { useLots } from '../../hooks/use-lots';
+import { useUpdateRecipe } from '../../hooks/use-update-recipe';
 import { useVessels } from '../../hooks/use-vessels';
 import { space } from '../../theme';
 import { Button, Card, Choice, ErrorState, Field, Loader, Text } from '../ui';
@@ -25,35 +26,43 @@ const FIELDS: { key: NumberKey; label: string; hint?: string }[] = [
   { key: 'heatingCostPerDegCHour', label: 'Heating cost (per °C·h)' },
 ];
 
-/** A new recipe: an accepted lot in a vessel with its substrate charge, dose and prices. */
-export function RecipeForm({ onDone }: { onDone: () => void }) {
+/**
+ * A new recipe (an accepted lot in a vessel with its substrate charge, dose and prices), or changes to one. A saved
+ * recipe's setpoint is not a field here: it moves only through change control.
+ */
+export function RecipeForm({ recipe, onDone }: { recipe?: Recipe; onDone: () => void }) {
   const lots = useLots();
   const vessels = useVessels();
-  const { submit, error, isBusy } = useCreateRecipe();
-  const [name, setName] = useState('');
-  const [lotId, setLotId] = useState<string>('');
-  const [vesselId, setVesselId] = useState<string>('');
-  const [text, setText] = useState<Record<NumberKey, string>>(() => Object.fromEntries(FIELDS.map((f) => [f.key, ''])) as Record<NumberKey, string>);
+  const create = useCreateRecipe();
+  const update = useUpdateRecipe();
+  const { error, isBusy } = recipe ? update : create;
+  const fields = recipe ? FIELDS.filter((f) => f.key !== 'currentSetpointC') : FIELDS;
+  const [name, setName] = useState(recipe?.name ?? '');
+  const [lotId, setLotId] = useState<string>(recipe ? String(recipe.lotId) : '');
+  const [vesselId, setVesselId] = useState<string>(recipe ? String(recipe.vesselId) : '');
+  const [text, setText] = useState<Record<NumberKey, string>>(() => Object.fromEntries(FIELDS.map((f) => [f.key, recipe ? String(recipe[f.key]) : ''])) as Record<NumberKey, string>);
   if (lots.error) return <ErrorState error={lots.error} onRetry={lots.retry} />;
   if (vessels.error) return <ErrorState error={vessels.error} onRetry={vessels.retry} />;
   if (!lots.data || !vessels.data) return <Loader rows={4} label="Loading lots and vessels" />;
   const accepted = lots.data.lots.filter((l) => l.status === 'accepted');
   const save = async () => {
-    const body = { name, lotId: Number(lotId), vesselId: Number(vesselId), ...Object.fromEntries(FIELDS.map((f) => [f.key, toNumber(text[f.key])])) } as RecipeInput;
-    if (await submit(body)) onDone();
+    const body = { name, lotId: Number(lotId), vesselId: Number(vesselId), ...Object.fromEntries(fields.map((f) => [f.key, toNumber(text[f.key])])) };
+    const saved = recipe ? await update.submit(recipe.id, body as RecipePatch) : await create.submit(body as RecipeInput);
+    if (saved) onDone();
   };
   return (
     <Card testID="recipe-form">
       <Text variant="title" accessibilityRole="header">
-        New recipe
+        {recipe ? `Change ${recipe.name}` : 'New recipe'}
       </Text>
+      {recipe ? <Text tone="muted">Setpoint {fmt(recipe.currentSetpointC)} °C: only a signed-off change moves it.</Text> : null}
       <Field label="Name" value={name} onChangeText={setName} error={error?.fields.name} testID="recipe-name" />
       <Choice compact label="Accepted lot" value={lotId} options={accepted.map((l) => ({ value: String(l.id), label: `${l.lotCode} · ${l.enzymeName}` }))} onChange={setLotId} testID="recipe-lot" />
       {error?.fields.lotId ? <Text tone="danger">{error.fields.lotId}</Text> : null}
       <Choice compact label="Vessel" value={vesselId} options={vessels.data.vessels.map((v) => ({ value: String(v.id), label: v.name }))} onChange={setVesselId} testID="recipe-vessel" />
       {error?.fields.vesselId ? <Text tone="danger">{error.fields.vesselId}</Text> : null}
       <View style={styles.grid}>
-        {FIELDS.map((f) => (
+        {fields.map((f) => (
           <View key={f.key} style={styles.cell}>
             <Field
               label={f.label}
@@ -69,7 +78,7 @@ export function RecipeForm({ onDone }: { onDone: () => void }) {
       </View>
       {error && !Object.keys(error.fields).length ? <Text tone="danger">{error.message}</Text> : null}
       <View style={styles.actions}>
-        <Button label="Add recipe" onPress={save} isBusy={isBusy} testID="recipe-save" />
+        <Button label={recipe ? 'Save changes' : 'Add recipe'} onPress={save} isBusy={isBusy} testID="recipe-save" />
         <Button label="Cancel" variant="ghost" onPress={onDone} />
       </View>
     </Card>
