@@ -12,6 +12,7 @@ export const keys = {
   mailOutbox: '/mail-outbox',
   recipes: '/recipes',
   batches: '/batches',
+  batchSettings: '/batches/settings',
 } as const;
 
 export const batchKey = (id: number) => `/batches/${id}`;

@@ -1,6 +1,7 @@
 import { router } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
 import { BatchCard } from '@/components/batches/batch-card';
+import { DeviationRulesCard } from '@/components/batches/deviation-rules-card';
 import { ForecastAccuracyChart } from '@/components/charts/forecast-accuracy-chart';
 import { forecastAccuracyGeometry } from '@/components/charts/forecast-accuracy-geometry';
 import { RoleGate } from '@/components/shell/role-gate';
@@ -67,6 +68,7 @@ function BatchesBody() {
         <View style={[styles.column, isWide && styles.columnWide]}>
           <Section title="My batches" batches={running.filter((b) => b.isMine)} now={now} testID="my-batches" empty="None yet: batches you start or log readings on come here first." />
           <Section title="Other running batches" batches={running.filter((b) => !b.isMine)} now={now} testID="other-batches" />
+          <DeviationRulesCard canChange={session?.user.role === 'supervisor' || session?.user.role === 'admin'} />
         </View>
         <View style={[styles.column, isWide && styles.columnWide]}>
           <Accuracy closed={closed} />
