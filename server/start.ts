@@ -7,6 +7,7 @@ import { createApp } from './app';
 import { systemClock } from './clock';
 import { readEnv } from './env';
 import { startIntegrations } from './integrations';
+import { proposeDemoChange } from './services/demo-proposal';
 import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
 import { createFileStore } from './file-store';
@@ -29,11 +30,11 @@ async function main() {
   if (!env.skipWebBuild) ensureWebBuild(root, env.webDir);
   const db = openDb(env.databaseFile);
   migrateDb(db);
-  const seeded = env.seedDemo && isEmpty(db);
-  if (seeded) seedDemo(db, { now: systemClock.now() });
+  const seeded = env.seedDemo && isEmpty(db) ? seedDemo(db, { now: systemClock.now() }) : null;
   const integrations = await startIntegrations(db, env);
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const publicUrl = env.publicUrl ?? `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
+  if (seeded) proposeDemoChange({ db, clock: systemClock, mail, publicUrl }, seeded.siteId);
   const app = createApp({
     db,
     clock: systemClock,
