@@ -33,3 +33,17 @@ export function migrateDb(db: Db): void {
 export function writeTx<T>(db: Db, fn: (tx: Db) => T): T {
   return db.transaction((tx) => fn(tx as unknown as Db), { behavior: 'immediate' });
 }
+
+/**
+ * Memoises a drizzle prepared query per connection handle. Building the SQL on every call cost more than running
+ * it on the hot paths (session check, list reads; profiled under `npm run load`). A transaction handle is a
+ * different object, so it prepares its own on first use.
+ */
+export function preparedPer<T>(build: (db: Db) => T): (db: Db) => T {
+  const cache = new WeakMap<Db, T>();
+  return (db) => {
+    let q = cache.get(db);
+    if (q === undefined) cache.set(db, (q = build(db)));
+    return q;
+  };
+}

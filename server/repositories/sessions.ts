@@ -1,12 +1,13 @@
-import { and, eq, isNull } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { and, eq, isNull, sql } from 'drizzle-orm';
+import { preparedPer, type Db } from '../../db/client';
 import { sessions } from '../../db/schema';
 
 export type SessionRow = typeof sessions.$inferSelect;
 
 export const insertSession = (db: Db, row: typeof sessions.$inferInsert) => db.insert(sessions).values(row).run();
 
-export const findSession = (db: Db, id: string) => db.select().from(sessions).where(eq(sessions.id, id)).get();
+const sessionById = preparedPer((db) => db.select().from(sessions).where(eq(sessions.id, sql.placeholder('id'))).prepare());
+export const findSession = (db: Db, id: string) => sessionById(db).get({ id });
 
 export const touchSession = (db: Db, id: string, at: string) =>
   db.update(sessions).set({ lastSeenAt: at }).where(eq(sessions.id, id)).run();

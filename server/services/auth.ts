@@ -32,6 +32,28 @@ function sessionKey(secret: Uint8Array): KeyObject {
   return key;
 }
 
+type Claims = { sid: string; sub: string; expMs: number };
+// The same token verifies the same way every time, so its claims are remembered (per secret, bounded) instead of
+// checking the signature on every request. Expiry is still checked here, and the session row on every request.
+const verifiedTokens = new WeakMap<Uint8Array, Map<string, Claims>>();
+const MAX_VERIFIED_TOKENS = 10_000;
+
+async function verifiedClaims(secret: Uint8Array, token: string, now: Date): Promise<Claims | null> {
+  let known = verifiedTokens.get(secret);
+  if (!known) verifiedTokens.set(secret, (known = new Map()));
+  const hit = known.get(token);
+  if (hit) return hit.expMs > now.getTime() ? hit : null;
+  try {
+    const { payload } = await jwtVerify(token, sessionKey(secret), { algorithms: ['HS256'], currentDate: now });
+    if (typeof payload.sid !== 'string' || !payload.sub || typeof payload.exp !== 'number') return null;
+    const claims = { sid: payload.sid, sub: payload.sub, expMs: payload.exp * 1000 };
+    if (known.size >= MAX_VERIFIED_TOKENS) known.clear();
+    known.set(token, claims);
+    return claims;
+  } catch {
+    return null;
+  }
+}
 
 /** Checks a password and opens a server-side session; the JWT only names that session. */
 export async function signIn(ctx: AuthContext, req: SignInRequest, from: string): Promise<{ token: string; expiresAt: Date; user: SessionUser }> {
@@ -95,16 +117,9 @@ export function loadSessionUser(db: Db, userId: number): SessionUser | null {
  */
 export async function resolveSession(ctx: AuthContext, token: string): Promise<{ sessionId: string; user: SessionUser } | null> {
   const now = ctx.clock.now();
-  let sid: unknown;
-  let sub: string | undefined;
-  try {
-    const { payload } = await jwtVerify(token, sessionKey(ctx.auth.secret), { algorithms: ['HS256'], currentDate: now });
-    sid = payload.sid;
-    sub = payload.sub;
-  } catch {
-    return null;
-  }
-  if (typeof sid !== 'string' || !sub) return null;
+  const claims = await verifiedClaims(ctx.auth.secret, token, now);
+  if (!claims) return null;
+  const { sid, sub } = claims;
   const session = findSession(ctx.db, sid);
   if (!session || session.revokedAt || String(session.userId) !== sub) return null;
   if (new Date(session.expiresAt) <= now) return null;
