@@ -1,4 +1,5 @@
 import Database from 'better-sqlite3';
+import { sql } from 'drizzle-orm';
 import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3';
 import { migrate } from 'drizzle-orm/better-sqlite3/migrator';
 import fs from 'node:fs';
@@ -46,4 +47,21 @@ export function preparedPer<T>(build: (db: Db) => T): (db: Db) => T {
     if (q === undefined) cache.set(db, (q = build(db)));
     return q;
   };
+}
+
+/**
+ * Runs part of a writeTx under a savepoint: if `fn` throws, only its own writes are undone and the error goes to
+ * the caller, while the surrounding transaction carries on (one bad item of a group commit fails alone).
+ */
+export function savepoint<T>(tx: Db, fn: () => T): T {
+  tx.run(sql`savepoint item`);
+  try {
+    const out = fn();
+    tx.run(sql`release item`);
+    return out;
+  } catch (err) {
+    tx.run(sql`rollback to item`);
+    tx.run(sql`release item`);
+    throw err;
+  }
 }

@@ -1,14 +1,20 @@
 import { and, asc, desc, eq, gte, isNull, lt, sql, type SQL } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { preparedPer, type Db } from '../../db/client';
 import { auditEvents } from '../../db/schema';
 
 export type AuditRow = typeof auditEvents.$inferSelect;
 
 const sameSite = (siteId: number | null) => (siteId === null ? isNull(auditEvents.siteId) : eq(auditEvents.siteId, siteId));
 
-export const lastAuditHash = (db: Db, siteId: number | null) =>
-  db.select({ hash: auditEvents.hash }).from(auditEvents).where(sameSite(siteId)).orderBy(desc(auditEvents.id)).limit(1).get()?.hash;
+// On every write path, so prepared (per connection or transaction handle).
+const lastHashOfSite = preparedPer((db) =>
+  db.select({ hash: auditEvents.hash }).from(auditEvents).where(eq(auditEvents.siteId, sql.placeholder('siteId'))).orderBy(desc(auditEvents.id)).limit(1).prepare(),
+);
+const lastHashOfNoSite = preparedPer((db) => db.select({ hash: auditEvents.hash }).from(auditEvents).where(isNull(auditEvents.siteId)).orderBy(desc(auditEvents.id)).limit(1).prepare());
 
+export const lastAuditHash = (db: Db, siteId: number | null) => (siteId === null ? lastHashOfNoSite(db).get() : lastHashOfSite(db).get({ siteId }))?.hash;
+
+// Not prepared: a placeholder in a JSON column would store a null as the text 'null' instead of NULL.
 export const insertAudit = (db: Db, row: typeof auditEvents.$inferInsert) => db.insert(auditEvents).values(row).returning().get();
 
 export const listAudit = (db: Db, siteId: number | null, opts: { action?: string; limit?: number } = {}) =>

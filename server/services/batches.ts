@@ -1,4 +1,4 @@
-import { writeTx, type Db } from '../../db/client';
+import { savepoint, writeTx, type Db } from '../../db/client';
 import {
   batchHours,
   batchProgram,
@@ -7,8 +7,10 @@ import {
   isTimeZone,
   parseHistorianCsv,
   plannedAt,
+  readingDeviations,
   runDeviations,
   type DeviationDraft,
+  type Point,
   type ReadingRules,
 } from '../../src/batches';
 import {
@@ -304,20 +306,24 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
 
 // Readings -----------------------------------------------------------------------------------------------
 
+/**
+ * Stores the deviations new readings raised, each with its audit event, and a low forecast if the batch's readings
+ * (`points`, sorted by h, the new ones included) now forecast below P10. `by` is who logged the reading, else `u`.
+ */
 function raiseDeviations(
   t: Db,
   u: SessionUser,
   b: BatchJoined['batch'],
-  raised: { readingId: number | null; draft: DeviationDraft }[],
+  raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
+  points: readonly Point[],
   now: Date,
 ): number {
   const settings = batchSettingsOf(t, u.siteId);
-  const points = pointsOf(t, b);
   const status = batchStatus(b.program, points, batchHours(b.startedAt, now.toISOString()), true);
   const lastH = status.lastH;
   const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hasActiveDeviation(t, b.id, 'forecast_low'), lastH);
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
-  for (const { readingId, draft } of all) {
+  for (const { readingId, draft, by = u } of all) {
     const row = insertDeviation(t, {
       siteId: u.siteId,
       batchId: b.id,
@@ -333,8 +339,8 @@ function raiseDeviations(
     });
     appendAudit(t, {
       siteId: u.siteId,
-      userId: u.id,
-      actor: u.email,
+      userId: by.id,
+      actor: by.email,
       action: 'deviation.raise',
       entity: 'deviation',
       entityId: row.id,
@@ -357,37 +363,122 @@ function runningBatch(db: Db, siteId: number, id: number): BatchJoined {
   return j;
 }
 
-/** Stores one reading once per key: the first call answers 201, a repeat of the same reading 200 with the same body. */
-export function logReading({ db, clock }: Services, u: SessionUser, id: number, input: ReadingInput): { created: boolean; result: ReadingResult } {
-  const j = loadBatch(db, u.siteId, id);
-  const b = j.batch;
+type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput };
+type Logged = { created: boolean; result: ReadingResult };
+type Stored = { created: boolean; readingId: number; startedAt: string } | { error: unknown };
+/** What a flush knows of one batch: loaded once, its points kept in step with the readings it adds. */
+type BatchGroup = {
+  b: BatchJoined['batch'];
+  rules: ReadingRules;
+  points: Point[] | null;
+  raised: { readingId: number; draft: DeviationDraft; by: SessionUser }[];
+  lastBy: SessionUser | null;
+};
+
+/**
+ * Group commit for logged readings. Each reading is its own fsync'd write under synchronous=FULL, so one
+ * transaction per request caps ingest at the disk's flush rate. Requests are queued and the queue is stored on
+ * the next turn of the event loop in ONE transaction: each reading with its own audit event, in arrival order,
+ * under its own savepoint so a refused reading (bad time, reused key, closed batch) fails alone. Every request
+ * is answered only after the transaction committed, so a 2xx still means the reading is on disk.
+ */
+export function readingIngest(s: Services): { log(u: SessionUser, batchId: number, input: ReadingInput): Promise<Logged> } {
+  let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
+  const flush = () => {
+    const items = queue;
+    queue = [];
+    let stored: Stored[];
+    try {
+      stored = storeReadings(s, items.map((i) => i.req));
+    } catch (err) {
+      for (const i of items) i.reject(err);
+      return;
+    }
+    items.forEach((item, k) => {
+      const o = stored[k];
+      if ('error' in o) return item.reject(o.error);
+      try {
+        item.resolve({ created: o.created, result: readingAnswer(s.db, o.readingId, o.startedAt) });
+      } catch (err) {
+        item.reject(err);
+      }
+    });
+  };
+  return {
+    log: (u, batchId, input) =>
+      new Promise<Logged>((resolve, reject) => {
+        if (queue.push({ req: { u, batchId, input }, resolve, reject }) === 1) setImmediate(flush);
+      }),
+  };
+}
+
+function readingAnswer(db: Db, readingId: number, startedAt: string): ReadingResult {
+  const r = findReadingJoined(db, readingId)!;
+  return { reading: toReading(r.reading, r.enteredBy, startedAt), deviations: deviationsOfReading(db, readingId).map(toDeviation) };
+}
+
+/** One transaction for a group of readings; per reading its stored id or the error that refused it. */
+function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[] {
+  const now = clock.now();
+  return writeTx(db, (t) => {
+    const groups = new Map<string, BatchGroup>();
+    const out = reqs.map((req): Stored => {
+      try {
+        return savepoint(t, () => storeReading(t, groups, req, now));
+      } catch (error) {
+        return { error };
+      }
+    });
+    // Once per batch and flush: the status (and so a low forecast and the corrective setpoints) needs every reading.
+    for (const g of groups.values())
+      if (g.lastBy) raiseDeviations(t, g.lastBy, g.b, g.raised, g.points!, now);
+    return out;
+  });
+}
+
+// Where p goes among points sorted by h: after those at the same time, as the stored order (time, then id) has it.
+function insertionIndex(points: readonly Point[], h: number): number {
+  let lo = 0;
+  let hi = points.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (points[mid].h <= h) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** Stores one reading once per key: the first answers 201, a repeat of the same reading 200 with the same body. */
+function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input }: ReadingRequest, now: Date): Stored {
+  const groupKey = `${u.siteId}:${batchId}`;
+  let g = groups.get(groupKey);
+  if (!g) {
+    const b = loadBatch(t, u.siteId, batchId).batch;
+    g = { b, rules: rulesOf(b.program, batchSettingsOf(t, u.siteId)), points: null, raised: [], lastBy: null };
+    groups.set(groupKey, g);
+  }
+  const b = g.b;
   const takenAt = new Date(input.takenAt).toISOString();
   const note = input.note ? input.note : null;
-  const answer = (readingId: number): ReadingResult => {
-    const r = findReadingJoined(db, readingId)!;
-    return { reading: toReading(r.reading, r.enteredBy, b.startedAt), deviations: deviationsOfReading(db, readingId).map(toDeviation) };
-  };
-  const existing = findReadingByKey(db, b.id, input.key);
+  const existing = findReadingByKey(t, b.id, input.key);
   if (existing) {
     if (existing.takenAt !== takenAt || existing.c !== input.c || existing.note !== note)
       throw new HttpError(409, 'key_reused', 'This reading key was already used for a different reading', { key: 'Already used for another reading' });
-    return { created: false, result: answer(existing.id) };
+    return { created: false, readingId: existing.id, startedAt: b.startedAt };
   }
   if (b.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is closed; readings can no longer be added');
-  const now = clock.now();
   const bad = checkReadingTime(b.startedAt, Date.parse(takenAt), now);
   if (bad) throw new HttpError(400, 'invalid_input', bad, { takenAt: bad });
-  const settings = batchSettingsOf(db, u.siteId);
-  const stored = pointsOf(db, b);
+  const points = (g.points ??= pointsOf(t, b));
   const point = { h: batchHours(b.startedAt, takenAt), c: input.c };
-  const drafts = runDeviations(rulesOf(b.program, settings), stored, [point]);
-  const readingId = writeTx(db, (t) => {
-    const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
-    raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: row.id, draft: d.draft })), now);
-    return row.id;
-  });
-  return { created: true, result: answer(readingId) };
+  const at = insertionIndex(points, point.h);
+  const drafts = readingDeviations(g.rules, at > 0 ? points[at - 1] : null, point);
+  const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
+  appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
+  points.splice(at, 0, point);
+  for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
+  g.lastBy = u;
+  return { created: true, readingId: row.id, startedAt: b.startedAt };
 }
 
 const MAX_PROBLEMS = 200;
@@ -449,7 +540,7 @@ export function importReadings({ db, clock }: Services, u: SessionUser, id: numb
       newValue: { rows: parsed.total, imported: rows.length, timeZone, dateOrder: q.dateOrder, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
       at: now,
     });
-    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), now) : 0;
+    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), pointsOf(t, b), now) : 0;
   });
   const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
   return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone };
