@@ -1,5 +1,4 @@
 import Database from 'better-sqlite3';
-import { sql } from 'drizzle-orm';
 import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3';
 import { migrate } from 'drizzle-orm/better-sqlite3/migrator';
 import fs from 'node:fs';
@@ -27,12 +26,26 @@ export function migrateDb(db: Db): void {
   migrate(db, { migrationsFolder: MIGRATIONS });
 }
 
+/** Runs `fn` under a savepoint: if it throws, only its own writes are undone and the transaction carries on. */
+export type Savepoint = <T>(fn: () => T) => T;
+
+// better-sqlite3 turns a transaction function called inside a transaction into a savepoint, with its statements
+// prepared once per connection.
+const savepoints = new WeakMap<Database.Database, Savepoint>();
+function savepointOf(client: Database.Database): Savepoint {
+  let sp = savepoints.get(client);
+  if (!sp) savepoints.set(client, (sp = client.transaction((fn: () => unknown) => fn()) as unknown as Savepoint));
+  return sp;
+}
+
 /**
  * Runs a write as one BEGIN IMMEDIATE transaction: it takes the write lock up front, so concurrent writers queue
  * on busy_timeout instead of failing half-way with SQLITE_BUSY. Synchronous: an async callback would commit early.
+ * `savepoint` lets one item of a group commit fail alone.
  */
-export function writeTx<T>(db: Db, fn: (tx: Db) => T): T {
-  return db.transaction((tx) => fn(tx as unknown as Db), { behavior: 'immediate' });
+export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => T): T {
+  const savepoint: Savepoint = (inner) => savepointOf(db.$client)(inner);
+  return db.transaction((tx) => fn(tx as unknown as Db, savepoint), { behavior: 'immediate' });
 }
 
 /**
@@ -49,19 +62,3 @@ export function preparedPer<T>(build: (db: Db) => T): (db: Db) => T {
   };
 }
 
-/**
- * Runs part of a writeTx under a savepoint: if `fn` throws, only its own writes are undone and the error goes to
- * the caller, while the surrounding transaction carries on (one bad item of a group commit fails alone).
- */
-export function savepoint<T>(tx: Db, fn: () => T): T {
-  tx.run(sql`savepoint item`);
-  try {
-    const out = fn();
-    tx.run(sql`release item`);
-    return out;
-  } catch (err) {
-    tx.run(sql`rollback to item`);
-    tx.run(sql`release item`);
-    throw err;
-  }
-}

@@ -14,8 +14,26 @@ const lastHashOfNoSite = preparedPer((db) => db.select({ hash: auditEvents.hash 
 
 export const lastAuditHash = (db: Db, siteId: number | null) => (siteId === null ? lastHashOfNoSite(db).get() : lastHashOfSite(db).get({ siteId }))?.hash;
 
-// Not prepared: a placeholder in a JSON column would store a null as the text 'null' instead of NULL.
-export const insertAudit = (db: Db, row: typeof auditEvents.$inferInsert) => db.insert(auditEvents).values(row).returning().get();
+type NewAuditRow = typeof auditEvents.$inferInsert;
+const AUDIT_COLUMNS = ['siteId', 'userId', 'actor', 'action', 'entity', 'entityId', 'oldValue', 'newValue', 'at', 'prevHash', 'hash'] as const;
+// A placeholder in a JSON column would store null as the text 'null', so a null value is written as SQL NULL
+// instead: one prepared insert for each combination of null old and new values.
+const insertAuditVariant = (oldNull: boolean, newNull: boolean) =>
+  preparedPer((db) =>
+    db
+      .insert(auditEvents)
+      .values({
+        ...(Object.fromEntries(AUDIT_COLUMNS.map((c) => [c, sql.placeholder(c)])) as unknown as NewAuditRow),
+        oldValue: oldNull ? sql`null` : sql.placeholder('oldValue'),
+        newValue: newNull ? sql`null` : sql.placeholder('newValue'),
+      })
+      .returning()
+      .prepare(),
+  );
+const insertAuditVariants = [insertAuditVariant(false, false), insertAuditVariant(false, true), insertAuditVariant(true, false), insertAuditVariant(true, true)];
+
+export const insertAudit = (db: Db, row: NewAuditRow): AuditRow =>
+  insertAuditVariants[(row.oldValue == null ? 2 : 0) + (row.newValue == null ? 1 : 0)](db).get(Object.fromEntries(AUDIT_COLUMNS.map((c) => [c, row[c] ?? null])))!;
 
 export const listAudit = (db: Db, siteId: number | null, opts: { action?: string; limit?: number } = {}) =>
   db

@@ -1,4 +1,4 @@
-import { savepoint, writeTx, type Db } from '../../db/client';
+import { writeTx, type Db } from '../../db/client';
 import {
   batchHours,
   batchProgram,
@@ -420,11 +420,11 @@ function readingAnswer(db: Db, readingId: number, startedAt: string): ReadingRes
 /** One transaction for a group of readings; per reading its stored id or the error that refused it. */
 function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[] {
   const now = clock.now();
-  return writeTx(db, (t) => {
+  return writeTx(db, (t, savepoint) => {
     const groups = new Map<string, BatchGroup>();
     const out = reqs.map((req): Stored => {
       try {
-        return savepoint(t, () => storeReading(t, groups, req, now));
+        return savepoint(() => storeReading(t, groups, req, now));
       } catch (error) {
         return { error };
       }
