@@ -66,6 +66,7 @@ import {
   upsertBatchSettings,
   type BatchJoined,
   type DeviationJoined,
+  type DeviationRow,
   type ReadingRow,
 } from '../repositories/batches';
 import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
@@ -317,13 +318,13 @@ function raiseDeviations(
   raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
   points: readonly Point[],
   now: Date,
-): number {
+): DeviationRow[] {
   const settings = batchSettingsOf(t, u.siteId);
   const status = batchStatus(b.program, points, batchHours(b.startedAt, now.toISOString()), true);
   const lastH = status.lastH;
   const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hasActiveDeviation(t, b.id, 'forecast_low'), lastH);
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
-  for (const { readingId, draft, by = u } of all) {
+  return all.map(({ readingId, draft, by = u }) => {
     const row = insertDeviation(t, {
       siteId: u.siteId,
       batchId: b.id,
@@ -347,8 +348,8 @@ function raiseDeviations(
       newValue: { batchId: b.id, kind: draft.kind, at: row.at, message: draft.message, settings, corrective: row.corrective },
       at: now,
     });
-  }
-  return all.length;
+    return row;
+  });
 }
 
 function checkReadingTime(startedAt: string, takenMs: number, now: Date): string | null {
@@ -365,7 +366,8 @@ function runningBatch(db: Db, siteId: number, id: number): BatchJoined {
 
 type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput };
 type Logged = { created: boolean; result: ReadingResult };
-type Stored = { created: boolean; readingId: number; startedAt: string } | { error: unknown };
+// A new reading carries its answer from the transaction; a repeat is answered from the database.
+type Stored = { created: true; result: ReadingResult } | { created: false; readingId: number; startedAt: string } | { error: unknown };
 /** What a flush knows of one batch: loaded once, its points kept in step with the readings it adds. */
 type BatchGroup = {
   b: BatchJoined['batch'];
@@ -397,8 +399,9 @@ export function readingIngest(s: Services): { log(u: SessionUser, batchId: numbe
     items.forEach((item, k) => {
       const o = stored[k];
       if ('error' in o) return item.reject(o.error);
+      if (o.created) return item.resolve(o);
       try {
-        item.resolve({ created: o.created, result: readingAnswer(s.db, o.readingId, o.startedAt) });
+        item.resolve({ created: false, result: readingAnswer(s.db, o.readingId, o.startedAt) });
       } catch (err) {
         item.reject(err);
       }
@@ -430,8 +433,12 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[
       }
     });
     // Once per batch and flush: the status (and so a low forecast and the corrective setpoints) needs every reading.
-    for (const g of groups.values())
-      if (g.lastBy) raiseDeviations(t, g.lastBy, g.b, g.raised, g.points!, now);
+    const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
+    for (const g of groups.values()) {
+      if (!g.lastBy) continue;
+      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, g.points!, now))
+        if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
+    }
     return out;
   });
 }
@@ -478,7 +485,7 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
   points.splice(at, 0, point);
   for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
   g.lastBy = u;
-  return { created: true, readingId: row.id, startedAt: b.startedAt };
+  return { created: true, result: { reading: toReading(row, u.name, b.startedAt), deviations: [] } };
 }
 
 const MAX_PROBLEMS = 200;
@@ -540,7 +547,7 @@ export function importReadings({ db, clock }: Services, u: SessionUser, id: numb
       newValue: { rows: parsed.total, imported: rows.length, timeZone, dateOrder: q.dateOrder, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
       at: now,
     });
-    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), pointsOf(t, b), now) : 0;
+    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), pointsOf(t, b), now).length : 0;
   });
   const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
   return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone };
