@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, inArray, ne, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, lte, ne, sql } from 'drizzle-orm';
 import { preparedPer, type Db } from '../../db/client';
 import { alias } from 'drizzle-orm/sqlite-core';
 import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/schema';
@@ -66,6 +66,19 @@ const pointsOfBatch = preparedPer((db) =>
     .prepare(),
 );
 export const readingPoints = (db: Db, batchId: number) => pointsOfBatch(db).all({ batchId });
+
+// Times are stored as toISOString() text, so text order is time order; among equal times the later id is later.
+const readingBefore = preparedPer((db) =>
+  db
+    .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
+    .from(batchReadings)
+    .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), lte(batchReadings.takenAt, sql.placeholder('takenAt'))))
+    .orderBy(desc(batchReadings.takenAt), desc(batchReadings.id))
+    .limit(1)
+    .prepare(),
+);
+/** The latest stored reading taken at or before `takenAt`, as the deviation rules see "the reading before". */
+export const readingAtOrBefore = (db: Db, batchId: number, takenAt: string) => readingBefore(db).get({ batchId, takenAt });
 
 export const lastReadingTimes = (db: Db, batchIds: number[]) =>
   batchIds.length

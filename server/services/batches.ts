@@ -10,7 +10,6 @@ import {
   readingDeviations,
   runDeviations,
   type DeviationDraft,
-  type Point,
   type ReadingRules,
 } from '../../src/batches';
 import {
@@ -59,6 +58,7 @@ import {
   listReadings,
   listSiteBatches,
   planSignatures,
+  readingAtOrBefore,
   readingPoints,
   runningBatchOnVessel,
   updateBatch,
@@ -309,20 +309,21 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
 
 /**
  * Stores the deviations new readings raised, each with its audit event, and a low forecast if the batch's readings
- * (`points`, sorted by h, the new ones included) now forecast below P10. `by` is who logged the reading, else `u`.
+ * (stored, the new ones included) now forecast below P10. `by` is who logged the reading, else `u`.
  */
 function raiseDeviations(
   t: Db,
   u: SessionUser,
   b: BatchJoined['batch'],
   raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
-  points: readonly Point[],
   now: Date,
 ): DeviationRow[] {
   const settings = batchSettingsOf(t, u.siteId);
-  const status = batchStatus(b.program, points, batchHours(b.startedAt, now.toISOString()), true);
-  const lastH = status.lastH;
-  const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hasActiveDeviation(t, b.id, 'forecast_low'), lastH);
+  // The status integrates every reading of the batch; it is needed only for a corrective setpoint or a P10 check.
+  const checksForecast = b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
+  const status =
+    checksForecast || raised.some((r) => CORRECTABLE.has(r.draft.kind)) ? batchStatus(b.program, pointsOf(t, b), batchHours(b.startedAt, now.toISOString()), true) : null;
+  const low = status && checksForecast ? forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH) : null;
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
   return all.map(({ readingId, draft, by = u }) => {
     const row = insertDeviation(t, {
@@ -335,7 +336,7 @@ function raiseDeviations(
       message: draft.message,
       valueC: draft.valueC,
       expectedC: draft.expectedC,
-      corrective: CORRECTABLE.has(draft.kind) ? status.corrective : null,
+      corrective: CORRECTABLE.has(draft.kind) ? status!.corrective : null,
       raisedAt: now.toISOString(),
     });
     appendAudit(t, {
@@ -368,11 +369,10 @@ type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput };
 type Logged = { created: boolean; result: ReadingResult };
 // A new reading carries its answer from the transaction; a repeat is answered from the database.
 type Stored = { created: true; result: ReadingResult } | { created: false; readingId: number; startedAt: string } | { error: unknown };
-/** What a flush knows of one batch: loaded once, its points kept in step with the readings it adds. */
+/** What a flush knows of one batch, loaded once, and the deviations its new readings raised. */
 type BatchGroup = {
   b: BatchJoined['batch'];
   rules: ReadingRules;
-  points: Point[] | null;
   raised: { readingId: number; draft: DeviationDraft; by: SessionUser }[];
   lastBy: SessionUser | null;
 };
@@ -436,23 +436,11 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[
     const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
     for (const g of groups.values()) {
       if (!g.lastBy) continue;
-      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, g.points!, now))
+      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now))
         if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
     }
     return out;
   });
-}
-
-// Where p goes among points sorted by h: after those at the same time, as the stored order (time, then id) has it.
-function insertionIndex(points: readonly Point[], h: number): number {
-  let lo = 0;
-  let hi = points.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >>> 1;
-    if (points[mid].h <= h) lo = mid + 1;
-    else hi = mid;
-  }
-  return lo;
 }
 
 /** Stores one reading once per key: the first answers 201, a repeat of the same reading 200 with the same body. */
@@ -461,7 +449,7 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
   let g = groups.get(groupKey);
   if (!g) {
     const b = loadBatch(t, u.siteId, batchId).batch;
-    g = { b, rules: rulesOf(b.program, batchSettingsOf(t, u.siteId)), points: null, raised: [], lastBy: null };
+    g = { b, rules: rulesOf(b.program, batchSettingsOf(t, u.siteId)), raised: [], lastBy: null };
     groups.set(groupKey, g);
   }
   const b = g.b;
@@ -476,13 +464,12 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
   if (b.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is closed; readings can no longer be added');
   const bad = checkReadingTime(b.startedAt, Date.parse(takenAt), now);
   if (bad) throw new HttpError(400, 'invalid_input', bad, { takenAt: bad });
-  const points = (g.points ??= pointsOf(t, b));
-  const point = { h: batchHours(b.startedAt, takenAt), c: input.c };
-  const at = insertionIndex(points, point.h);
-  const drafts = readingDeviations(g.rules, at > 0 ? points[at - 1] : null, point);
+  // Only the reading before this one in time matters to the rules; earlier readings of this group count too.
+  const before = readingAtOrBefore(t, b.id, takenAt);
+  const prev = before ? { h: batchHours(b.startedAt, before.takenAt), c: before.c } : null;
+  const drafts = readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c });
   const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
   appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
-  points.splice(at, 0, point);
   for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
   g.lastBy = u;
   return { created: true, result: { reading: toReading(row, u.name, b.startedAt), deviations: [] } };
@@ -547,7 +534,7 @@ export function importReadings({ db, clock }: Services, u: SessionUser, id: numb
       newValue: { rows: parsed.total, imported: rows.length, timeZone, dateOrder: q.dateOrder, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
       at: now,
     });
-    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), pointsOf(t, b), now).length : 0;
+    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), now).length : 0;
   });
   const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
   return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone };
