@@ -61,6 +61,8 @@ export function createApp(deps: AppDeps): Express {
   const app = express();
   const services = { db: deps.db, clock: deps.clock };
   app.disable('x-powered-by');
+  // API answers are no-store, so an ETag (a hash of every body) is never used to revalidate; static files keep theirs.
+  app.set('etag', false);
   app.set('trust proxy', 'loopback');
   app.use(fairTurns(REQUESTS_PER_TURN));
   app.use(
