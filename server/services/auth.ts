@@ -5,8 +5,8 @@ import { writeTx, type Db } from '../../db/client';
 import type { SessionUser, SignInRequest } from '../../src/contracts/session';
 import type { Clock } from '../clock';
 import { HttpError } from '../http-error';
-import { findSession, insertSession, revokeSession, touchSession } from '../repositories/sessions';
-import { findUserByEmail, findUserWithSite } from '../repositories/users';
+import { findSessionWithUser, insertSession, revokeSession, touchSession } from '../repositories/sessions';
+import { findUserByEmail, findUserWithSite, type UserRow } from '../repositories/users';
 import { appendAudit } from './audit';
 
 export const BCRYPT_COST = 12;
@@ -97,8 +97,11 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
 
 export function loadSessionUser(db: Db, userId: number): SessionUser | null {
   const found = findUserWithSite(db, userId);
-  if (!found || !found.user.isActive) return null;
-  const { user, siteName, siteTimeZone } = found;
+  return found ? toSessionUser(found) : null;
+}
+
+function toSessionUser({ user, siteName, siteTimeZone }: { user: UserRow; siteName: string; siteTimeZone: string }): SessionUser | null {
+  if (!user.isActive) return null;
   return {
     id: user.id,
     email: user.email,
@@ -120,11 +123,13 @@ export async function resolveSession(ctx: AuthContext, token: string): Promise<{
   const claims = await verifiedClaims(ctx.auth.secret, token, now);
   if (!claims) return null;
   const { sid, sub } = claims;
-  const session = findSession(ctx.db, sid);
-  if (!session || session.revokedAt || String(session.userId) !== sub) return null;
+  const found = findSessionWithUser(ctx.db, sid);
+  if (!found) return null;
+  const { session } = found;
+  if (session.revokedAt || String(session.userId) !== sub) return null;
   if (new Date(session.expiresAt) <= now) return null;
   if (now.getTime() - new Date(session.lastSeenAt).getTime() > ctx.auth.idleMinutes * 60_000) return null;
-  const user = loadSessionUser(ctx.db, session.userId);
+  const user = toSessionUser(found);
   if (!user || user.role !== session.role) return null;
   // Writing on every request would serialise reads behind the writer; a minute's resolution is enough.
   if (now.getTime() - new Date(session.lastSeenAt).getTime() > 60_000) touchSession(ctx.db, sid, now.toISOString());
