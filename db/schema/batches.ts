@@ -77,5 +77,5 @@ export const deviations = sqliteTable(
     closedAt: text('closed_at'),
     closeComment: text('close_comment'),
   },
-  (t) => [index('deviations_batch_idx').on(t.batchId, t.id)],
+  (t) => [index('deviations_batch_idx').on(t.batchId, t.id), index('deviations_reading_idx').on(t.readingId)],
 );

@@ -1,15 +1,39 @@
 import { and, asc, desc, eq, gte, isNull, lt, sql, type SQL } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { preparedPer, type Db } from '../../db/client';
 import { auditEvents } from '../../db/schema';
 
 export type AuditRow = typeof auditEvents.$inferSelect;
 
 const sameSite = (siteId: number | null) => (siteId === null ? isNull(auditEvents.siteId) : eq(auditEvents.siteId, siteId));
 
-export const lastAuditHash = (db: Db, siteId: number | null) =>
-  db.select({ hash: auditEvents.hash }).from(auditEvents).where(sameSite(siteId)).orderBy(desc(auditEvents.id)).limit(1).get()?.hash;
+// On every write path, so prepared (per connection or transaction handle).
+const lastHashOfSite = preparedPer((db) =>
+  db.select({ hash: auditEvents.hash }).from(auditEvents).where(eq(auditEvents.siteId, sql.placeholder('siteId'))).orderBy(desc(auditEvents.id)).limit(1).prepare(),
+);
+const lastHashOfNoSite = preparedPer((db) => db.select({ hash: auditEvents.hash }).from(auditEvents).where(isNull(auditEvents.siteId)).orderBy(desc(auditEvents.id)).limit(1).prepare());
 
-export const insertAudit = (db: Db, row: typeof auditEvents.$inferInsert) => db.insert(auditEvents).values(row).returning().get();
+export const lastAuditHash = (db: Db, siteId: number | null) => (siteId === null ? lastHashOfNoSite(db).get() : lastHashOfSite(db).get({ siteId }))?.hash;
+
+type NewAuditRow = typeof auditEvents.$inferInsert;
+const AUDIT_COLUMNS = ['siteId', 'userId', 'actor', 'action', 'entity', 'entityId', 'oldValue', 'newValue', 'at', 'prevHash', 'hash'] as const;
+// A placeholder in a JSON column would store null as the text 'null', so a null value is written as SQL NULL
+// instead: one prepared insert for each combination of null old and new values.
+const insertAuditVariant = (oldNull: boolean, newNull: boolean) =>
+  preparedPer((db) =>
+    db
+      .insert(auditEvents)
+      .values({
+        ...(Object.fromEntries(AUDIT_COLUMNS.map((c) => [c, sql.placeholder(c)])) as unknown as NewAuditRow),
+        oldValue: oldNull ? sql`null` : sql.placeholder('oldValue'),
+        newValue: newNull ? sql`null` : sql.placeholder('newValue'),
+      })
+      .returning()
+      .prepare(),
+  );
+const insertAuditVariants = [insertAuditVariant(false, false), insertAuditVariant(false, true), insertAuditVariant(true, false), insertAuditVariant(true, true)];
+
+export const insertAudit = (db: Db, row: NewAuditRow): AuditRow =>
+  insertAuditVariants[(row.oldValue == null ? 2 : 0) + (row.newValue == null ? 1 : 0)](db).get(Object.fromEntries(AUDIT_COLUMNS.map((c) => [c, row[c] ?? null])))!;
 
 export const listAudit = (db: Db, siteId: number | null, opts: { action?: string; limit?: number } = {}) =>
   db

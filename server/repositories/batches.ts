@@ -1,5 +1,5 @@
-import { and, asc, desc, eq, inArray, ne, sql } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { and, asc, desc, eq, inArray, lte, ne, sql } from 'drizzle-orm';
+import { preparedPer, type Db } from '../../db/client';
 import { alias } from 'drizzle-orm/sqlite-core';
 import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/schema';
 
@@ -22,7 +22,9 @@ const joinedBatches = (db: Db) =>
 
 export type BatchJoined = NonNullable<ReturnType<typeof findSiteBatch>>;
 
-export const findSiteBatch = (db: Db, siteId: number, id: number) => joinedBatches(db).where(and(eq(batches.siteId, siteId), eq(batches.id, id))).get();
+// Prepared (per connection or transaction handle) where a reading's path runs them: see preparedPer.
+const siteBatch = preparedPer((db) => joinedBatches(db).where(and(eq(batches.siteId, sql.placeholder('siteId')), eq(batches.id, sql.placeholder('id')))).prepare());
+export const findSiteBatch = (db: Db, siteId: number, id: number) => siteBatch(db).get({ siteId, id });
 
 export const listSiteBatches = (db: Db, siteId: number) => joinedBatches(db).where(eq(batches.siteId, siteId)).orderBy(desc(batches.id)).limit(500).all();
 
@@ -55,8 +57,28 @@ export const listReadings = (db: Db, batchId: number) =>
     .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
     .all();
 
-export const readingPoints = (db: Db, batchId: number) =>
-  db.select({ takenAt: batchReadings.takenAt, c: batchReadings.c }).from(batchReadings).where(eq(batchReadings.batchId, batchId)).orderBy(asc(batchReadings.takenAt), asc(batchReadings.id)).all();
+const pointsOfBatch = preparedPer((db) =>
+  db
+    .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
+    .from(batchReadings)
+    .where(eq(batchReadings.batchId, sql.placeholder('batchId')))
+    .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
+    .prepare(),
+);
+export const readingPoints = (db: Db, batchId: number) => pointsOfBatch(db).all({ batchId });
+
+// Times are stored as toISOString() text, so text order is time order; among equal times the later id is later.
+const readingBefore = preparedPer((db) =>
+  db
+    .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
+    .from(batchReadings)
+    .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), lte(batchReadings.takenAt, sql.placeholder('takenAt'))))
+    .orderBy(desc(batchReadings.takenAt), desc(batchReadings.id))
+    .limit(1)
+    .prepare(),
+);
+/** The latest stored reading taken at or before `takenAt`, as the deviation rules see "the reading before". */
+export const readingAtOrBefore = (db: Db, batchId: number, takenAt: string) => readingBefore(db).get({ batchId, takenAt });
 
 export const lastReadingTimes = (db: Db, batchIds: number[]) =>
   batchIds.length
@@ -68,16 +90,29 @@ export const lastReadingTimes = (db: Db, batchIds: number[]) =>
         .all()
     : [];
 
-export const findReadingByKey = (db: Db, batchId: number, key: string) =>
-  db.select().from(batchReadings).where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.clientKey, key))).get();
+const readingByKey = preparedPer((db) =>
+  db.select().from(batchReadings).where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), eq(batchReadings.clientKey, sql.placeholder('key')))).prepare(),
+);
+export const findReadingByKey = (db: Db, batchId: number, key: string) => readingByKey(db).get({ batchId, key });
 
-export const findReadingJoined = (db: Db, id: number) =>
-  db.select({ reading: batchReadings, enteredBy: users.name }).from(batchReadings).innerJoin(users, eq(batchReadings.enteredBy, users.id)).where(eq(batchReadings.id, id)).get();
+const readingJoined = preparedPer((db) =>
+  db.select({ reading: batchReadings, enteredBy: users.name }).from(batchReadings).innerJoin(users, eq(batchReadings.enteredBy, users.id)).where(eq(batchReadings.id, sql.placeholder('id'))).prepare(),
+);
+export const findReadingJoined = (db: Db, id: number) => readingJoined(db).get({ id });
 
 export const existingKeys = (db: Db, batchId: number) =>
   new Set(db.select({ k: batchReadings.clientKey }).from(batchReadings).where(eq(batchReadings.batchId, batchId)).all().map((r) => r.k));
 
-export const insertReading = (db: Db, row: Omit<typeof batchReadings.$inferInsert, 'id'>) => db.insert(batchReadings).values(row).returning().get();
+type NewReading = Omit<typeof batchReadings.$inferInsert, 'id'>;
+const READING_COLUMNS = ['siteId', 'batchId', 'clientKey', 'takenAt', 'c', 'note', 'source', 'enteredBy', 'receivedAt'] as const;
+const insertReadingRow = preparedPer((db) =>
+  db
+    .insert(batchReadings)
+    .values(Object.fromEntries(READING_COLUMNS.map((c) => [c, sql.placeholder(c)])) as unknown as NewReading)
+    .returning()
+    .prepare(),
+);
+export const insertReading = (db: Db, row: NewReading): ReadingRow => insertReadingRow(db).get(Object.fromEntries(READING_COLUMNS.map((c) => [c, row[c] ?? null])))!;
 
 // 9 columns a row: 1000 rows stay well under SQLite's limit on bound variables.
 export function insertReadings(db: Db, rows: Omit<typeof batchReadings.$inferInsert, 'id'>[]): ReadingRow[] {
@@ -101,10 +136,17 @@ export const listDeviations = (db: Db, batchId: number) => joinedDeviations(db).
 
 export const findSiteDeviation = (db: Db, siteId: number, id: number) => joinedDeviations(db).where(and(eq(deviations.siteId, siteId), eq(deviations.id, id))).get();
 
-export const deviationsOfReading = (db: Db, readingId: number) => joinedDeviations(db).where(eq(deviations.readingId, readingId)).orderBy(asc(deviations.id)).all();
+const readingDeviations = preparedPer((db) => joinedDeviations(db).where(eq(deviations.readingId, sql.placeholder('readingId'))).orderBy(asc(deviations.id)).prepare());
+export const deviationsOfReading = (db: Db, readingId: number) => readingDeviations(db).all({ readingId });
 
-export const hasActiveDeviation = (db: Db, batchId: number, kind: DeviationRow['kind']) =>
-  !!db.select({ id: deviations.id }).from(deviations).where(and(eq(deviations.batchId, batchId), eq(deviations.kind, kind), ne(deviations.state, 'closed'))).get();
+const activeDeviation = preparedPer((db) =>
+  db
+    .select({ id: deviations.id })
+    .from(deviations)
+    .where(and(eq(deviations.batchId, sql.placeholder('batchId')), eq(deviations.kind, sql.placeholder('kind')), ne(deviations.state, 'closed')))
+    .prepare(),
+);
+export const hasActiveDeviation = (db: Db, batchId: number, kind: DeviationRow['kind']) => !!activeDeviation(db).get({ batchId, kind });
 
 export const countActiveDeviations = (db: Db, batchIds: number[]) =>
   batchIds.length
@@ -122,7 +164,8 @@ export const updateDeviation = (db: Db, id: number, patch: Partial<Pick<Deviatio
   db.update(deviations).set(patch).where(eq(deviations.id, id)).run();
 
 // Settings
-export const findBatchSettings = (db: Db, siteId: number) => db.select().from(batchSettings).where(eq(batchSettings.siteId, siteId)).get();
+const settingsOfSite = preparedPer((db) => db.select().from(batchSettings).where(eq(batchSettings.siteId, sql.placeholder('siteId'))).prepare());
+export const findBatchSettings = (db: Db, siteId: number) => settingsOfSite(db).get({ siteId });
 
 export const upsertBatchSettings = (db: Db, row: typeof batchSettings.$inferInsert) =>
   db.insert(batchSettings).values(row).onConflictDoUpdate({ target: batchSettings.siteId, set: { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin, updatedAt: row.updatedAt } }).run();

@@ -1,12 +1,13 @@
 import { and, desc, eq, gt, isNull, isNotNull, sql } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { preparedPer, type Db } from '../../db/client';
 import { billingEvents, invites, invoices, subscriptions, users } from '../../db/schema';
 
 export type SubscriptionRow = typeof subscriptions.$inferSelect;
 export type InvoiceRow = typeof invoices.$inferSelect;
 export type InviteRow = typeof invites.$inferSelect;
 
-export const findSubscription = (db: Db, siteId: number) => db.select().from(subscriptions).where(eq(subscriptions.siteId, siteId)).get();
+const subscriptionOfSite = preparedPer((db) => db.select().from(subscriptions).where(eq(subscriptions.siteId, sql.placeholder('siteId'))).prepare());
+export const findSubscription = (db: Db, siteId: number) => subscriptionOfSite(db).get({ siteId });
 
 export const findSubscriptionByCustomer = (db: Db, customerId: string) =>
   db.select().from(subscriptions).where(eq(subscriptions.stripeCustomerId, customerId)).get();

@@ -1,5 +1,5 @@
 import { and, asc, desc, eq, or, sql, type SQL, type SQLWrapper } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { preparedPer, type Db } from '../../db/client';
 import { enzymes } from '../../db/schema';
 import type { EnzymeInput, EnzymeQuery, EnzymeUpdate } from '../../src/contracts/enzymes';
 
@@ -11,26 +11,37 @@ export const listSiteEnzymes = (db: Db, siteId: number) =>
 // LIKE treats % and _ as wildcards: a search for "10%" must match the text, not everything.
 const likeText = (q: string) => `%${q.replace(/[\\%_]/g, (ch) => `\\${ch}`)}%`;
 
+function enzymeFilter(search: boolean): SQL | undefined {
+  const siteIs = eq(enzymes.siteId, sql.placeholder('siteId'));
+  if (!search) return siteIs;
+  const pattern = sql.placeholder('pattern');
+  const esc = (col: SQLWrapper) => sql`${col} like ${pattern} escape '\\'`;
+  return and(siteIs, or(esc(enzymes.name), esc(enzymes.enzymeClass), esc(enzymes.ecNumber), esc(enzymes.supplier)));
+}
+
+// Prepared once per search/sort/direction combination (a handful), so a page read does not rebuild its SQL.
+const enzymePages = new Map<string, ReturnType<typeof enzymePageQueries>>();
+const enzymePageQueries = (search: boolean, sort: EnzymeQuery['sort'], dir: EnzymeQuery['dir']) =>
+  preparedPer((db) => ({
+    page: db
+      .select()
+      .from(enzymes)
+      .where(enzymeFilter(search))
+      .orderBy(dir === 'desc' ? desc(enzymes[sort]) : asc(enzymes[sort]), asc(enzymes.id))
+      .limit(sql.placeholder('limit'))
+      .offset(sql.placeholder('offset'))
+      .prepare(),
+    total: db.select({ n: sql<number>`count(*)` }).from(enzymes).where(enzymeFilter(search)).prepare(),
+  }));
+
 /** One page of a site's enzymes matching a free-text search, and how many match in all. */
 export function querySiteEnzymes(db: Db, siteId: number, q: EnzymeQuery): { rows: EnzymeRow[]; total: number } {
-  const conditions: SQL[] = [eq(enzymes.siteId, siteId)];
-  if (q.q) {
-    const pattern = likeText(q.q);
-    const esc = (col: SQLWrapper) => sql`${col} like ${pattern} escape '\\'`;
-    conditions.push(or(esc(enzymes.name), esc(enzymes.enzymeClass), esc(enzymes.ecNumber), esc(enzymes.supplier))!);
-  }
-  const where = and(...conditions);
-  const order = q.dir === 'desc' ? desc(enzymes[q.sort]) : asc(enzymes[q.sort]);
-  const rows = db
-    .select()
-    .from(enzymes)
-    .where(where)
-    .orderBy(order, asc(enzymes.id))
-    .limit(q.pageSize)
-    .offset((q.page - 1) * q.pageSize)
-    .all();
-  const total = db.select({ n: sql<number>`count(*)` }).from(enzymes).where(where).get()?.n ?? 0;
-  return { rows, total };
+  const key = `${!!q.q}:${q.sort}:${q.dir}`;
+  let queries = enzymePages.get(key);
+  if (!queries) enzymePages.set(key, (queries = enzymePageQueries(!!q.q, q.sort, q.dir)));
+  const { page, total } = queries(db);
+  const args = { siteId, pattern: q.q ? likeText(q.q) : undefined, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
+  return { rows: page.all(args), total: total.get(args)?.n ?? 0 };
 }
 
 export const findSiteEnzyme = (db: Db, siteId: number, id: number) =>

@@ -1,25 +1,32 @@
-import { and, desc, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { and, desc, eq, sql } from 'drizzle-orm';
+import { preparedPer, type Db } from '../../db/client';
 import { enzymes, lots, users } from '../../db/schema';
 import type { LotQuery, LotStatus } from '../../src/contracts/lots';
 
 export type LotRow = typeof lots.$inferSelect;
 export type NewLotRow = Omit<typeof lots.$inferInsert, 'id' | 'createdAt'>;
 
+// One prepared query for each combination of the optional filters.
+const siteLotsQuery = (byStatus: boolean, byEnzyme: boolean) =>
+  preparedPer((db) =>
+    db
+      .select({ lot: lots, enzymeName: enzymes.name })
+      .from(lots)
+      .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
+      .where(
+        and(
+          eq(lots.siteId, sql.placeholder('siteId')),
+          byStatus ? eq(lots.status, sql.placeholder('status')) : undefined,
+          byEnzyme ? eq(lots.enzymeId, sql.placeholder('enzymeId')) : undefined,
+        ),
+      )
+      .orderBy(desc(lots.receivedOn), lots.lotCode)
+      .prepare(),
+  );
+const siteLotsQueries = [siteLotsQuery(false, false), siteLotsQuery(false, true), siteLotsQuery(true, false), siteLotsQuery(true, true)];
+
 export const listSiteLots = (db: Db, siteId: number, q: LotQuery = {}) =>
-  db
-    .select({ lot: lots, enzymeName: enzymes.name })
-    .from(lots)
-    .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
-    .where(
-      and(
-        eq(lots.siteId, siteId),
-        q.status ? eq(lots.status, q.status) : undefined,
-        q.enzymeId ? eq(lots.enzymeId, q.enzymeId) : undefined,
-      ),
-    )
-    .orderBy(desc(lots.receivedOn), lots.lotCode)
-    .all();
+  siteLotsQueries[(q.status ? 2 : 0) + (q.enzymeId ? 1 : 0)](db).all({ siteId, status: q.status, enzymeId: q.enzymeId });
 
 export const findSiteLot = (db: Db, siteId: number, id: number) =>
   db

@@ -1,12 +1,22 @@
-import { and, eq, isNull } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { sessions } from '../../db/schema';
+import { and, eq, isNull, sql } from 'drizzle-orm';
+import { preparedPer, type Db } from '../../db/client';
+import { sessions, sites, users } from '../../db/schema';
 
 export type SessionRow = typeof sessions.$inferSelect;
 
 export const insertSession = (db: Db, row: typeof sessions.$inferInsert) => db.insert(sessions).values(row).run();
 
-export const findSession = (db: Db, id: string) => db.select().from(sessions).where(eq(sessions.id, id)).get();
+// The session check on every request: the session row with its user and site in one statement.
+const sessionWithUser = preparedPer((db) =>
+  db
+    .select({ session: sessions, user: users, siteName: sites.name, siteTimeZone: sites.timeZone })
+    .from(sessions)
+    .innerJoin(users, eq(sessions.userId, users.id))
+    .innerJoin(sites, eq(users.siteId, sites.id))
+    .where(eq(sessions.id, sql.placeholder('id')))
+    .prepare(),
+);
+export const findSessionWithUser = (db: Db, id: string) => sessionWithUser(db).get({ id });
 
 export const touchSession = (db: Db, id: string, at: string) =>
   db.update(sessions).set({ lastSeenAt: at }).where(eq(sessions.id, id)).run();

@@ -1,5 +1,5 @@
 import { and, eq, sql } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { preparedPer, type Db } from '../../db/client';
 import { sites, users } from '../../db/schema';
 import type { Role } from '../../src/contracts/roles';
 
@@ -8,13 +8,15 @@ export type UserRow = typeof users.$inferSelect;
 export const findUserByEmail = (db: Db, email: string) =>
   db.select().from(users).where(eq(users.email, email)).get();
 
-export const findUserWithSite = (db: Db, id: number) =>
+const userWithSite = preparedPer((db) =>
   db
     .select({ user: users, siteName: sites.name, siteTimeZone: sites.timeZone })
     .from(users)
     .innerJoin(sites, eq(users.siteId, sites.id))
-    .where(eq(users.id, id))
-    .get();
+    .where(eq(users.id, sql.placeholder('id')))
+    .prepare(),
+);
+export const findUserWithSite = (db: Db, id: number) => userWithSite(db).get({ id });
 
 export const listSiteUsers = (db: Db, siteId: number) =>
   db.select().from(users).where(eq(users.siteId, siteId)).orderBy(users.name).all();

@@ -1,12 +1,12 @@
-import { and, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { and, eq, sql } from 'drizzle-orm';
+import { preparedPer, type Db } from '../../db/client';
 import { vessels } from '../../db/schema';
 import type { VesselInput } from '../../src/contracts/vessels';
 
 export type VesselRow = typeof vessels.$inferSelect;
 
-export const listSiteVessels = (db: Db, siteId: number) =>
-  db.select().from(vessels).where(eq(vessels.siteId, siteId)).orderBy(vessels.name).all();
+const vesselsOfSite = preparedPer((db) => db.select().from(vessels).where(eq(vessels.siteId, sql.placeholder('siteId'))).orderBy(vessels.name).prepare());
+export const listSiteVessels = (db: Db, siteId: number) => vesselsOfSite(db).all({ siteId });
 
 export const findSiteVessel = (db: Db, siteId: number, id: number) =>
   db.select().from(vessels).where(and(eq(vessels.siteId, siteId), eq(vessels.id, id))).get();

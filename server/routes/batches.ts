@@ -18,7 +18,7 @@ import {
 } from '../../src/contracts/batches';
 import { HttpError } from '../http-error';
 import { allow, currentUser } from '../middleware/auth';
-import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, importReadings, listBatches, logReading, startBatch } from '../services/batches';
+import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
 import type { Services } from './services';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
@@ -27,6 +27,7 @@ const csvBody = express.text({ type: ['text/csv', 'text/plain', 'application/csv
 
 export function batchesRouter(s: Services): Router {
   const router = Router();
+  const readings = readingIngest(s);
   router.get('/', allow(...BATCH_READERS), (req, res) => {
     res.json(BatchList.parse({ batches: listBatches(s, currentUser(req)) }));
   });
@@ -43,9 +44,9 @@ export function batchesRouter(s: Services): Router {
     const { id } = IdParam.parse(req.params);
     res.json(BatchDetail.parse(getBatchDetail(s, currentUser(req), id)));
   });
-  router.post('/:id/readings', allow(...READING_LOGGERS), (req, res) => {
+  router.post('/:id/readings', allow(...READING_LOGGERS), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    const { created, result } = logReading(s, currentUser(req), id, ReadingInput.parse(req.body));
+    const { created, result } = await readings.log(currentUser(req), id, ReadingInput.parse(req.body));
     res.status(created ? 201 : 200).json(ReadingResult.parse(result));
   });
   router.post('/:id/readings/import', allow(...READING_LOGGERS), csvBody, (req, res) => {

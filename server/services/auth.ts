@@ -5,8 +5,8 @@ import { writeTx, type Db } from '../../db/client';
 import type { SessionUser, SignInRequest } from '../../src/contracts/session';
 import type { Clock } from '../clock';
 import { HttpError } from '../http-error';
-import { findSession, insertSession, revokeSession, touchSession } from '../repositories/sessions';
-import { findUserByEmail, findUserWithSite } from '../repositories/users';
+import { findSessionWithUser, insertSession, revokeSession, touchSession } from '../repositories/sessions';
+import { findUserByEmail, findUserWithSite, type UserRow } from '../repositories/users';
 import { appendAudit } from './audit';
 
 export const BCRYPT_COST = 12;
@@ -32,6 +32,28 @@ function sessionKey(secret: Uint8Array): KeyObject {
   return key;
 }
 
+type Claims = { sid: string; sub: string; expMs: number };
+// The same token verifies the same way every time, so its claims are remembered (per secret, bounded) instead of
+// checking the signature on every request. Expiry is still checked here, and the session row on every request.
+const verifiedTokens = new WeakMap<Uint8Array, Map<string, Claims>>();
+const MAX_VERIFIED_TOKENS = 10_000;
+
+async function verifiedClaims(secret: Uint8Array, token: string, now: Date): Promise<Claims | null> {
+  let known = verifiedTokens.get(secret);
+  if (!known) verifiedTokens.set(secret, (known = new Map()));
+  const hit = known.get(token);
+  if (hit) return hit.expMs > now.getTime() ? hit : null;
+  try {
+    const { payload } = await jwtVerify(token, sessionKey(secret), { algorithms: ['HS256'], currentDate: now });
+    if (typeof payload.sid !== 'string' || !payload.sub || typeof payload.exp !== 'number') return null;
+    const claims = { sid: payload.sid, sub: payload.sub, expMs: payload.exp * 1000 };
+    if (known.size >= MAX_VERIFIED_TOKENS) known.clear();
+    known.set(token, claims);
+    return claims;
+  } catch {
+    return null;
+  }
+}
 
 /** Checks a password and opens a server-side session; the JWT only names that session. */
 export async function signIn(ctx: AuthContext, req: SignInRequest, from: string): Promise<{ token: string; expiresAt: Date; user: SessionUser }> {
@@ -75,8 +97,11 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
 
 export function loadSessionUser(db: Db, userId: number): SessionUser | null {
   const found = findUserWithSite(db, userId);
-  if (!found || !found.user.isActive) return null;
-  const { user, siteName, siteTimeZone } = found;
+  return found ? toSessionUser(found) : null;
+}
+
+function toSessionUser({ user, siteName, siteTimeZone }: { user: UserRow; siteName: string; siteTimeZone: string }): SessionUser | null {
+  if (!user.isActive) return null;
   return {
     id: user.id,
     email: user.email,
@@ -95,21 +120,16 @@ export function loadSessionUser(db: Db, userId: number): SessionUser | null {
  */
 export async function resolveSession(ctx: AuthContext, token: string): Promise<{ sessionId: string; user: SessionUser } | null> {
   const now = ctx.clock.now();
-  let sid: unknown;
-  let sub: string | undefined;
-  try {
-    const { payload } = await jwtVerify(token, sessionKey(ctx.auth.secret), { algorithms: ['HS256'], currentDate: now });
-    sid = payload.sid;
-    sub = payload.sub;
-  } catch {
-    return null;
-  }
-  if (typeof sid !== 'string' || !sub) return null;
-  const session = findSession(ctx.db, sid);
-  if (!session || session.revokedAt || String(session.userId) !== sub) return null;
+  const claims = await verifiedClaims(ctx.auth.secret, token, now);
+  if (!claims) return null;
+  const { sid, sub } = claims;
+  const found = findSessionWithUser(ctx.db, sid);
+  if (!found) return null;
+  const { session } = found;
+  if (session.revokedAt || String(session.userId) !== sub) return null;
   if (new Date(session.expiresAt) <= now) return null;
   if (now.getTime() - new Date(session.lastSeenAt).getTime() > ctx.auth.idleMinutes * 60_000) return null;
-  const user = loadSessionUser(ctx.db, session.userId);
+  const user = toSessionUser(found);
   if (!user || user.role !== session.role) return null;
   // Writing on every request would serialise reads behind the writer; a minute's resolution is enough.
   if (now.getTime() - new Date(session.lastSeenAt).getTime() > 60_000) touchSession(ctx.db, sid, now.toISOString());

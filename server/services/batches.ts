@@ -7,6 +7,7 @@ import {
   isTimeZone,
   parseHistorianCsv,
   plannedAt,
+  readingDeviations,
   runDeviations,
   type DeviationDraft,
   type ReadingRules,
@@ -57,6 +58,7 @@ import {
   listReadings,
   listSiteBatches,
   planSignatures,
+  readingAtOrBefore,
   readingPoints,
   runningBatchOnVessel,
   updateBatch,
@@ -64,6 +66,7 @@ import {
   upsertBatchSettings,
   type BatchJoined,
   type DeviationJoined,
+  type DeviationRow,
   type ReadingRow,
 } from '../repositories/batches';
 import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
@@ -304,20 +307,25 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
 
 // Readings -----------------------------------------------------------------------------------------------
 
+/**
+ * Stores the deviations new readings raised, each with its audit event, and a low forecast if the batch's readings
+ * (stored, the new ones included) now forecast below P10. `by` is who logged the reading, else `u`.
+ */
 function raiseDeviations(
   t: Db,
   u: SessionUser,
   b: BatchJoined['batch'],
-  raised: { readingId: number | null; draft: DeviationDraft }[],
+  raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
   now: Date,
-): number {
+): DeviationRow[] {
   const settings = batchSettingsOf(t, u.siteId);
-  const points = pointsOf(t, b);
-  const status = batchStatus(b.program, points, batchHours(b.startedAt, now.toISOString()), true);
-  const lastH = status.lastH;
-  const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hasActiveDeviation(t, b.id, 'forecast_low'), lastH);
+  // The status integrates every reading of the batch; it is needed only for a corrective setpoint or a P10 check.
+  const checksForecast = b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
+  const status =
+    checksForecast || raised.some((r) => CORRECTABLE.has(r.draft.kind)) ? batchStatus(b.program, pointsOf(t, b), batchHours(b.startedAt, now.toISOString()), true) : null;
+  const low = status && checksForecast ? forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH) : null;
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
-  for (const { readingId, draft } of all) {
+  return all.map(({ readingId, draft, by = u }) => {
     const row = insertDeviation(t, {
       siteId: u.siteId,
       batchId: b.id,
@@ -328,21 +336,21 @@ function raiseDeviations(
       message: draft.message,
       valueC: draft.valueC,
       expectedC: draft.expectedC,
-      corrective: CORRECTABLE.has(draft.kind) ? status.corrective : null,
+      corrective: CORRECTABLE.has(draft.kind) ? status!.corrective : null,
       raisedAt: now.toISOString(),
     });
     appendAudit(t, {
       siteId: u.siteId,
-      userId: u.id,
-      actor: u.email,
+      userId: by.id,
+      actor: by.email,
       action: 'deviation.raise',
       entity: 'deviation',
       entityId: row.id,
       newValue: { batchId: b.id, kind: draft.kind, at: row.at, message: draft.message, settings, corrective: row.corrective },
       at: now,
     });
-  }
-  return all.length;
+    return row;
+  });
 }
 
 function checkReadingTime(startedAt: string, takenMs: number, now: Date): string | null {
@@ -357,37 +365,114 @@ function runningBatch(db: Db, siteId: number, id: number): BatchJoined {
   return j;
 }
 
-/** Stores one reading once per key: the first call answers 201, a repeat of the same reading 200 with the same body. */
-export function logReading({ db, clock }: Services, u: SessionUser, id: number, input: ReadingInput): { created: boolean; result: ReadingResult } {
-  const j = loadBatch(db, u.siteId, id);
-  const b = j.batch;
+type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput };
+type Logged = { created: boolean; result: ReadingResult };
+// A new reading carries its answer from the transaction; a repeat is answered from the database.
+type Stored = { created: true; result: ReadingResult } | { created: false; readingId: number; startedAt: string } | { error: unknown };
+/** What a flush knows of one batch, loaded once, and the deviations its new readings raised. */
+type BatchGroup = {
+  b: BatchJoined['batch'];
+  rules: ReadingRules;
+  raised: { readingId: number; draft: DeviationDraft; by: SessionUser }[];
+  lastBy: SessionUser | null;
+};
+
+/**
+ * Group commit for logged readings. Each reading is its own fsync'd write under synchronous=FULL, so one
+ * transaction per request caps ingest at the disk's flush rate. Requests are queued and the queue is stored on
+ * the next turn of the event loop in ONE transaction: each reading with its own audit event, in arrival order,
+ * under its own savepoint so a refused reading (bad time, reused key, closed batch) fails alone. Every request
+ * is answered only after the transaction committed, so a 2xx still means the reading is on disk.
+ */
+export function readingIngest(s: Services): { log(u: SessionUser, batchId: number, input: ReadingInput): Promise<Logged> } {
+  let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
+  const flush = () => {
+    const items = queue;
+    queue = [];
+    let stored: Stored[];
+    try {
+      stored = storeReadings(s, items.map((i) => i.req));
+    } catch (err) {
+      for (const i of items) i.reject(err);
+      return;
+    }
+    items.forEach((item, k) => {
+      const o = stored[k];
+      if ('error' in o) return item.reject(o.error);
+      if (o.created) return item.resolve(o);
+      try {
+        item.resolve({ created: false, result: readingAnswer(s.db, o.readingId, o.startedAt) });
+      } catch (err) {
+        item.reject(err);
+      }
+    });
+  };
+  return {
+    log: (u, batchId, input) =>
+      new Promise<Logged>((resolve, reject) => {
+        if (queue.push({ req: { u, batchId, input }, resolve, reject }) === 1) setImmediate(flush);
+      }),
+  };
+}
+
+function readingAnswer(db: Db, readingId: number, startedAt: string): ReadingResult {
+  const r = findReadingJoined(db, readingId)!;
+  return { reading: toReading(r.reading, r.enteredBy, startedAt), deviations: deviationsOfReading(db, readingId).map(toDeviation) };
+}
+
+/** One transaction for a group of readings; per reading its stored id or the error that refused it. */
+function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[] {
+  const now = clock.now();
+  return writeTx(db, (t, savepoint) => {
+    const groups = new Map<string, BatchGroup>();
+    const out = reqs.map((req): Stored => {
+      try {
+        return savepoint(() => storeReading(t, groups, req, now));
+      } catch (error) {
+        return { error };
+      }
+    });
+    // Once per batch and flush: the status (and so a low forecast and the corrective setpoints) needs every reading.
+    const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
+    for (const g of groups.values()) {
+      if (!g.lastBy) continue;
+      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now))
+        if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
+    }
+    return out;
+  });
+}
+
+/** Stores one reading once per key: the first answers 201, a repeat of the same reading 200 with the same body. */
+function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input }: ReadingRequest, now: Date): Stored {
+  const groupKey = `${u.siteId}:${batchId}`;
+  let g = groups.get(groupKey);
+  if (!g) {
+    const b = loadBatch(t, u.siteId, batchId).batch;
+    g = { b, rules: rulesOf(b.program, batchSettingsOf(t, u.siteId)), raised: [], lastBy: null };
+    groups.set(groupKey, g);
+  }
+  const b = g.b;
   const takenAt = new Date(input.takenAt).toISOString();
   const note = input.note ? input.note : null;
-  const answer = (readingId: number): ReadingResult => {
-    const r = findReadingJoined(db, readingId)!;
-    return { reading: toReading(r.reading, r.enteredBy, b.startedAt), deviations: deviationsOfReading(db, readingId).map(toDeviation) };
-  };
-  const existing = findReadingByKey(db, b.id, input.key);
+  const existing = findReadingByKey(t, b.id, input.key);
   if (existing) {
     if (existing.takenAt !== takenAt || existing.c !== input.c || existing.note !== note)
       throw new HttpError(409, 'key_reused', 'This reading key was already used for a different reading', { key: 'Already used for another reading' });
-    return { created: false, result: answer(existing.id) };
+    return { created: false, readingId: existing.id, startedAt: b.startedAt };
   }
   if (b.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is closed; readings can no longer be added');
-  const now = clock.now();
   const bad = checkReadingTime(b.startedAt, Date.parse(takenAt), now);
   if (bad) throw new HttpError(400, 'invalid_input', bad, { takenAt: bad });
-  const settings = batchSettingsOf(db, u.siteId);
-  const stored = pointsOf(db, b);
-  const point = { h: batchHours(b.startedAt, takenAt), c: input.c };
-  const drafts = runDeviations(rulesOf(b.program, settings), stored, [point]);
-  const readingId = writeTx(db, (t) => {
-    const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
-    raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: row.id, draft: d.draft })), now);
-    return row.id;
-  });
-  return { created: true, result: answer(readingId) };
+  // Only the reading before this one in time matters to the rules; earlier readings of this group count too.
+  const before = readingAtOrBefore(t, b.id, takenAt);
+  const prev = before ? { h: batchHours(b.startedAt, before.takenAt), c: before.c } : null;
+  const drafts = readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c });
+  const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
+  appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
+  for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
+  g.lastBy = u;
+  return { created: true, result: { reading: toReading(row, u.name, b.startedAt), deviations: [] } };
 }
 
 const MAX_PROBLEMS = 200;
@@ -449,7 +534,7 @@ export function importReadings({ db, clock }: Services, u: SessionUser, id: numb
       newValue: { rows: parsed.total, imported: rows.length, timeZone, dateOrder: q.dateOrder, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
       at: now,
     });
-    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), now) : 0;
+    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), now).length : 0;
   });
   const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
   return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone };

@@ -5,7 +5,10 @@ import { sessionCookie, startServer } from '../support/server';
 
 // npm run load: loopback-only load against a freshly seeded server, bounded in time. Prints per mix and
 // connection count: requests/s, latency p50 / p99 / max, errors, timeouts and non-2xx answers.
+// LOAD_MIX=reads|ingest runs one mix; LOAD_CPU_PROF=dir writes the server's CPU profile there when it stops.
 const DURATION_S = Number(process.env.LOAD_SECONDS ?? 10);
+const ONLY_MIX = process.env.LOAD_MIX;
+const CPU_PROF_DIR = process.env.LOAD_CPU_PROF;
 
 type Mix = { name: string; requests: autocannon.Request[]; cookie: string; count?: () => Promise<number> };
 
@@ -28,7 +31,7 @@ const user = (role: string) => DEMO_USERS.find((u) => u.role === role)!;
 
 async function main() {
   // The API alone: no web build needed.
-  const server = await startServer({ env: { WEB_DIR: 'no-web-build' } });
+  const server = await startServer({ env: { WEB_DIR: 'no-web-build' }, nodeArgs: CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : [] });
   try {
     const engineer = await sessionCookie(server.baseURL, user('engineer').email, user('engineer').password);
     const operator = await sessionCookie(server.baseURL, user('operator').email, user('operator').password);
@@ -66,7 +69,7 @@ async function main() {
     ];
     console.log(`Load on ${server.baseURL}, ${DURATION_S} s per run\n`);
     console.log('mix        conns   req/s    p50 ms  p99 ms  max ms  errors  timeouts  non-2xx');
-    for (const mix of mixes) {
+    for (const mix of mixes.filter((m) => !ONLY_MIX || m.name === ONLY_MIX)) {
       for (const connections of [50, 200]) {
         const before = mix.count ? await mix.count() : 0;
         const r = await run(server.baseURL, mix, connections);

@@ -20,11 +20,11 @@ export type RunningServer = { baseURL: string; dir: string; databaseFile: string
  * Runs the real server (`server/start.ts`, as `npm start` does) on a fresh demo database in a temp folder,
  * on loopback only. The web app must already be exported to dist/.
  */
-export async function startServer(opts: { dir?: string; env?: Record<string, string> } = {}): Promise<RunningServer> {
+export async function startServer(opts: { dir?: string; env?: Record<string, string>; nodeArgs?: string[] } = {}): Promise<RunningServer> {
   const dir = opts.dir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-'));
   const databaseFile = path.join(dir, 'yieldpoint.db');
   const port = await freePort();
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/start.ts'], {
+  const child = spawn(process.execPath, [...(opts.nodeArgs ?? []), '--import', 'tsx', 'server/start.ts'], {
     cwd: ROOT,
     env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', DATABASE_FILE: databaseFile, SKIP_WEB_BUILD: '1', ...opts.env },
     stdio: ['ignore', 'pipe', 'pipe'],

@@ -1,0 +1,1 @@
+CREATE INDEX `deviations_reading_idx` ON `deviations` (`reading_id`);
