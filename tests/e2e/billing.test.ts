@@ -71,8 +71,11 @@ describe('billing and invites', () => {
     const link = /(http:\/\/\S+\/accept-invite\?token=[\w-]+)/.exec(mail.text)![1]!;
     // The mail reached the sink, so the outbox lists it as sent.
     await page.reload();
-    await page.getByTestId('mail-status-sent').waitFor();
-    expect(await page.getByTestId('mail-outbox-row').count()).toBe(1);
+    // The invite sits beside the demo's sign-off notice to the supervisor.
+    const inviteRow = page.getByTestId('mail-outbox-row').filter({ hasText: `To ${NEW_USER.email}` });
+    await inviteRow.getByTestId('mail-status-sent').waitFor();
+    expect(await inviteRow.count()).toBe(1);
+    expect(await page.getByTestId('mail-outbox-row').filter({ hasText: 'Sign-off needed: Lactose-free milk base' }).count()).toBe(1);
     await screenshot(page, 'site-people-outbox-1440x900');
     expect(admin.errors).toEqual([]);
     await admin.context.close();
