@@ -1,6 +1,5 @@
 import { Redirect } from 'expo-router';
 import { Tabs } from 'expo-router/js-tabs';
-import { useDeferredValue } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { FirstRunNotice } from '@/components/shell/first-run-notice';
 import { NavBar } from '@/components/shell/nav-bar';
@@ -11,10 +10,7 @@ import { useSession } from '@/hooks/use-session';
 import { space, useBreakpoint, useColors } from '@/theme';
 
 export default function SignedInLayout() {
-  const { session: latest, error, mutate } = useSession();
-  // The whole signed-in shell mounts when the session arrives: render it in a transition so React slices that
-  // work into short tasks instead of one long freeze on a slow phone.
-  const session = useDeferredValue(latest);
+  const { session, error, mutate } = useSession();
   const { isWide } = useBreakpoint();
   const c = useColors();
   if (error) {

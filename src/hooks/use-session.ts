@@ -1,4 +1,4 @@
-import useSWR, { preload } from 'swr';
+import useSWR from 'swr';
 import { api, type ApiError } from '../api/client';
 import { keys } from '../api/keys';
 import { PAGE_SESSION_ID } from '../contracts/rules';
@@ -18,12 +18,13 @@ function pageSession(): SessionState | undefined {
   }
 }
 
-// The first read of the session is answered from the page: no round trip before the signed-in shell renders.
+// Until the app has read the session itself, the page's copy stands in: the signed-in shell renders in the first
+// pass with no round trip. Sign-in and sign-out write the cache (null when signed out), so it never shows again.
 const fromPage = pageSession();
-if (fromPage) preload(keys.session, () => Promise.resolve(toSession(fromPage)));
+const OPTIONS = fromPage ? { fallbackData: toSession(fromPage), revalidateOnMount: false } : {};
 
 /** The signed-in user's session, `null` when signed out. */
 export function useSession() {
-  const { data, error, isLoading, mutate } = useSWR(keys.session, async (): Promise<Session | null> => toSession(await api<SessionState>(keys.session)));
+  const { data, error, isLoading, mutate } = useSWR(keys.session, async (): Promise<Session | null> => toSession(await api<SessionState>(keys.session)), OPTIONS);
   return { session: data, error: error as ApiError | undefined, isLoading, mutate };
 }

@@ -68,11 +68,12 @@ function BatchesBody() {
         <View style={[styles.column, isWide && styles.columnWide]}>
           <Section title="My batches" batches={running.filter((b) => b.isMine)} now={now} testID="my-batches" empty="None yet: batches you start or log readings on come here first." />
           <Section title="Other running batches" batches={running.filter((b) => !b.isMine)} now={now} testID="other-batches" />
-          <DeviationRulesCard canChange={session?.user.role === 'supervisor' || session?.user.role === 'admin'} />
         </View>
         <View style={[styles.column, isWide && styles.columnWide]}>
           <Accuracy closed={closed} />
           <Section title="Closed batches" batches={closed} now={now} testID="closed-batches" />
+          {/* Last: it loads on its own, and below everything it moves nothing when it arrives. */}
+          <DeviationRulesCard canChange={session?.user.role === 'supervisor' || session?.user.role === 'admin'} />
         </View>
       </View>
     </>
