@@ -45,6 +45,32 @@ describe.each([
 });
 
 describe('shell', () => {
+  it('serves the real app with its security headers and breaks none of its own content security policy', async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await page.addInitScript(() => {
+      (window as unknown as { cspViolations: string[] }).cspViolations = [];
+      document.addEventListener('securitypolicyviolation', (e) =>
+        (window as unknown as { cspViolations: string[] }).cspViolations.push(`${e.violatedDirective} ${e.blockedURI}`),
+      );
+    });
+    const response = await page.goto(`${baseURL}/`);
+    const headers = response!.headers();
+    expect(headers['content-security-policy']).toMatch(/default-src 'self'/);
+    expect(headers['content-security-policy']).toMatch(/script-src 'self'(;|$)/);
+    expect(headers['content-security-policy']).toMatch(/frame-ancestors 'none'/);
+    expect(headers['x-content-type-options']).toBe('nosniff');
+    expect(headers['referrer-policy']).toBe('no-referrer');
+    expect(headers['cache-control']).toBe('no-store');
+    // A signed-in journey: the shell, a chart (SVG) and the fonts all load under the policy.
+    await signIn(page, baseURL, 'operator');
+    await acknowledgeCautionsIfShown(page, screenOf(HOME.operator));
+    await page.getByTestId('forecast-accuracy').waitFor();
+    await page.evaluate(() => document.fonts.ready);
+    expect(await page.evaluate(() => (window as unknown as { cspViolations: string[] }).cspViolations)).toEqual([]);
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+
   it('opens a signed-in page from the session the page carries, without asking the API who is signed in', async () => {
     const { page, context, errors } = await watchedPage(browser, PHONE);
     await signIn(page, baseURL, 'procurement');
