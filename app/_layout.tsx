@@ -19,10 +19,8 @@ const FONTS = {
   Inter_600SemiBold: { uri: require('../assets/fonts/Inter_600SemiBold.woff2'), display: FontDisplay.SWAP },
 };
 
-/**
- * Rendering does not wait for the fonts: text shows at once in the fallback face and swaps when they load. A leaf
- * of its own, so the fonts arriving re-render nothing else (in the root layout they re-rendered the whole app).
- */
+// Rendering does not wait for the fonts. A leaf of its own, so their arrival re-renders nothing else (called in
+// the root layout, it re-rendered the whole app).
 function Fonts() {
   useFonts(FONTS);
   return null;
