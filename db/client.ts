@@ -1,4 +1,5 @@
 import Database from 'better-sqlite3';
+import { sql } from 'drizzle-orm';
 import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3';
 import { migrate } from 'drizzle-orm/better-sqlite3/migrator';
 import fs from 'node:fs';
@@ -49,16 +50,25 @@ export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => T): T {
 }
 
 /**
- * Memoises a drizzle prepared query per connection handle. Building the SQL on every call cost more than running
- * it on the hot paths (session check, list reads; profiled under `npm run load`). A transaction handle is a
- * different object, so it prepares its own on first use.
+ * Memoises a drizzle prepared query per connection handle, and per variant when the SQL itself differs (which
+ * optional filters are present, the sort order). Building the SQL on every call cost more than running it on the
+ * hot paths (session check, list reads; profiled under `npm run load`). A transaction handle is a different
+ * object, so it prepares its own on first use.
  */
-export function preparedPer<T>(build: (db: Db) => T): (db: Db) => T {
-  const cache = new WeakMap<Db, T>();
-  return (db) => {
-    let q = cache.get(db);
-    if (q === undefined) cache.set(db, (q = build(db)));
+export function preparedPer<T, V = void>(build: (db: Db, variant: V) => T): (db: Db, variant: V) => T {
+  const cache = new WeakMap<Db, Map<string | undefined, T>>();
+  return (db, variant) => {
+    let byVariant = cache.get(db);
+    if (!byVariant) cache.set(db, (byVariant = new Map()));
+    const key = variant === undefined ? undefined : JSON.stringify(variant);
+    let q = byVariant.get(key);
+    if (q === undefined) byVariant.set(key, (q = build(db, variant)));
     return q;
   };
 }
 
+/** A prepared insert's values: a placeholder named after each column. */
+export const columnPlaceholders = (columns: readonly string[]) => Object.fromEntries(columns.map((c) => [c, sql.placeholder(c)]));
+
+/** A row as the values bound to those placeholders (a missing value is NULL). */
+export const boundRow = <C extends string>(columns: readonly C[], row: Partial<Record<C, unknown>>) => Object.fromEntries(columns.map((c) => [c, row[c] ?? null]));

@@ -1,5 +1,5 @@
 import { and, asc, desc, eq, gte, isNull, lt, sql, type SQL } from 'drizzle-orm';
-import { preparedPer, type Db } from '../../db/client';
+import { boundRow, columnPlaceholders, preparedPer, type Db } from '../../db/client';
 import { auditEvents } from '../../db/schema';
 
 export type AuditRow = typeof auditEvents.$inferSelect;
@@ -18,22 +18,20 @@ type NewAuditRow = typeof auditEvents.$inferInsert;
 const AUDIT_COLUMNS = ['siteId', 'userId', 'actor', 'action', 'entity', 'entityId', 'oldValue', 'newValue', 'at', 'prevHash', 'hash'] as const;
 // A placeholder in a JSON column would store null as the text 'null', so a null value is written as SQL NULL
 // instead: one prepared insert for each combination of null old and new values.
-const insertAuditVariant = (oldNull: boolean, newNull: boolean) =>
-  preparedPer((db) =>
-    db
-      .insert(auditEvents)
-      .values({
-        ...(Object.fromEntries(AUDIT_COLUMNS.map((c) => [c, sql.placeholder(c)])) as unknown as NewAuditRow),
-        oldValue: oldNull ? sql`null` : sql.placeholder('oldValue'),
-        newValue: newNull ? sql`null` : sql.placeholder('newValue'),
-      })
-      .returning()
-      .prepare(),
-  );
-const insertAuditVariants = [insertAuditVariant(false, false), insertAuditVariant(false, true), insertAuditVariant(true, false), insertAuditVariant(true, true)];
+const insertAuditRow = preparedPer((db, nulls: { old: boolean; new: boolean }) =>
+  db
+    .insert(auditEvents)
+    .values({
+      ...(columnPlaceholders(AUDIT_COLUMNS) as unknown as NewAuditRow),
+      oldValue: nulls.old ? sql`null` : sql.placeholder('oldValue'),
+      newValue: nulls.new ? sql`null` : sql.placeholder('newValue'),
+    })
+    .returning()
+    .prepare(),
+);
 
 export const insertAudit = (db: Db, row: NewAuditRow): AuditRow =>
-  insertAuditVariants[(row.oldValue == null ? 2 : 0) + (row.newValue == null ? 1 : 0)](db).get(Object.fromEntries(AUDIT_COLUMNS.map((c) => [c, row[c] ?? null])))!;
+  insertAuditRow(db, { old: row.oldValue == null, new: row.newValue == null }).get(boundRow(AUDIT_COLUMNS, row))!;
 
 export const listAudit = (db: Db, siteId: number | null, opts: { action?: string; limit?: number } = {}) =>
   db

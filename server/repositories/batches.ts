@@ -1,5 +1,5 @@
 import { and, asc, desc, eq, inArray, lte, ne, sql } from 'drizzle-orm';
-import { preparedPer, type Db } from '../../db/client';
+import { boundRow, columnPlaceholders, preparedPer, type Db } from '../../db/client';
 import { alias } from 'drizzle-orm/sqlite-core';
 import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/schema';
 
@@ -108,11 +108,11 @@ const READING_COLUMNS = ['siteId', 'batchId', 'clientKey', 'takenAt', 'c', 'note
 const insertReadingRow = preparedPer((db) =>
   db
     .insert(batchReadings)
-    .values(Object.fromEntries(READING_COLUMNS.map((c) => [c, sql.placeholder(c)])) as unknown as NewReading)
+    .values(columnPlaceholders(READING_COLUMNS) as unknown as NewReading)
     .returning()
     .prepare(),
 );
-export const insertReading = (db: Db, row: NewReading): ReadingRow => insertReadingRow(db).get(Object.fromEntries(READING_COLUMNS.map((c) => [c, row[c] ?? null])))!;
+export const insertReading = (db: Db, row: NewReading): ReadingRow => insertReadingRow(db).get(boundRow(READING_COLUMNS, row))!;
 
 // 9 columns a row: 1000 rows stay well under SQLite's limit on bound variables.
 export function insertReadings(db: Db, rows: Omit<typeof batchReadings.$inferInsert, 'id'>[]): ReadingRow[] {

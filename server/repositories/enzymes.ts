@@ -20,26 +20,21 @@ function enzymeFilter(search: boolean): SQL | undefined {
 }
 
 // Prepared once per search/sort/direction combination (a handful), so a page read does not rebuild its SQL.
-const enzymePages = new Map<string, ReturnType<typeof enzymePageQueries>>();
-const enzymePageQueries = (search: boolean, sort: EnzymeQuery['sort'], dir: EnzymeQuery['dir']) =>
-  preparedPer((db) => ({
-    page: db
-      .select()
-      .from(enzymes)
-      .where(enzymeFilter(search))
-      .orderBy(dir === 'desc' ? desc(enzymes[sort]) : asc(enzymes[sort]), asc(enzymes.id))
-      .limit(sql.placeholder('limit'))
-      .offset(sql.placeholder('offset'))
-      .prepare(),
-    total: db.select({ n: sql<number>`count(*)` }).from(enzymes).where(enzymeFilter(search)).prepare(),
-  }));
+const enzymePage = preparedPer((db, v: { search: boolean; sort: EnzymeQuery['sort']; dir: EnzymeQuery['dir'] }) => ({
+  page: db
+    .select()
+    .from(enzymes)
+    .where(enzymeFilter(v.search))
+    .orderBy(v.dir === 'desc' ? desc(enzymes[v.sort]) : asc(enzymes[v.sort]), asc(enzymes.id))
+    .limit(sql.placeholder('limit'))
+    .offset(sql.placeholder('offset'))
+    .prepare(),
+  total: db.select({ n: sql<number>`count(*)` }).from(enzymes).where(enzymeFilter(v.search)).prepare(),
+}));
 
 /** One page of a site's enzymes matching a free-text search, and how many match in all. */
 export function querySiteEnzymes(db: Db, siteId: number, q: EnzymeQuery): { rows: EnzymeRow[]; total: number } {
-  const key = `${!!q.q}:${q.sort}:${q.dir}`;
-  let queries = enzymePages.get(key);
-  if (!queries) enzymePages.set(key, (queries = enzymePageQueries(!!q.q, q.sort, q.dir)));
-  const { page, total } = queries(db);
+  const { page, total } = enzymePage(db, { search: !!q.q, sort: q.sort, dir: q.dir });
   const args = { siteId, pattern: q.q ? likeText(q.q) : undefined, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
   return { rows: page.all(args), total: total.get(args)?.n ?? 0 };
 }

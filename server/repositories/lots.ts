@@ -7,26 +7,24 @@ export type LotRow = typeof lots.$inferSelect;
 export type NewLotRow = Omit<typeof lots.$inferInsert, 'id' | 'createdAt'>;
 
 // One prepared query for each combination of the optional filters.
-const siteLotsQuery = (byStatus: boolean, byEnzyme: boolean) =>
-  preparedPer((db) =>
-    db
-      .select({ lot: lots, enzymeName: enzymes.name })
-      .from(lots)
-      .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
-      .where(
-        and(
-          eq(lots.siteId, sql.placeholder('siteId')),
-          byStatus ? eq(lots.status, sql.placeholder('status')) : undefined,
-          byEnzyme ? eq(lots.enzymeId, sql.placeholder('enzymeId')) : undefined,
-        ),
-      )
-      .orderBy(desc(lots.receivedOn), lots.lotCode)
-      .prepare(),
-  );
-const siteLotsQueries = [siteLotsQuery(false, false), siteLotsQuery(false, true), siteLotsQuery(true, false), siteLotsQuery(true, true)];
+const siteLots = preparedPer((db, filter: { byStatus: boolean; byEnzyme: boolean }) =>
+  db
+    .select({ lot: lots, enzymeName: enzymes.name })
+    .from(lots)
+    .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
+    .where(
+      and(
+        eq(lots.siteId, sql.placeholder('siteId')),
+        filter.byStatus ? eq(lots.status, sql.placeholder('status')) : undefined,
+        filter.byEnzyme ? eq(lots.enzymeId, sql.placeholder('enzymeId')) : undefined,
+      ),
+    )
+    .orderBy(desc(lots.receivedOn), lots.lotCode)
+    .prepare(),
+);
 
 export const listSiteLots = (db: Db, siteId: number, q: LotQuery = {}) =>
-  siteLotsQueries[(q.status ? 2 : 0) + (q.enzymeId ? 1 : 0)](db).all({ siteId, status: q.status, enzymeId: q.enzymeId });
+  siteLots(db, { byStatus: !!q.status, byEnzyme: !!q.enzymeId }).all({ siteId, status: q.status, enzymeId: q.enzymeId });
 
 export const findSiteLot = (db: Db, siteId: number, id: number) =>
   db

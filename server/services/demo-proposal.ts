@@ -1,4 +1,5 @@
 import { DEMO_USERS } from '../../db/seed';
+import { inputsFromRecipe } from '../../src/planning/inputs';
 import { findSiteRecipeByName } from '../repositories/recipes';
 import { findUserByEmail } from '../repositories/users';
 import { siteDay } from '../site-time';
@@ -18,23 +19,7 @@ export function proposeDemoChange(ctx: ChangeControlCtx, siteId: number): void {
   const engineer = engineerRow && loadSessionUser(ctx.db, engineerRow.id);
   const recipe = findSiteRecipeByName(ctx.db, siteId, RECIPE);
   if (!engineer || !recipe) return;
-  const plan = createPlan(ctx, engineer, {
-    recipeId: recipe.id,
-    lotId: recipe.lotId,
-    batchH: recipe.batchH,
-    turnaroundH: recipe.turnaroundH,
-    doseGPerL: recipe.doseGPerL,
-    s0GPerL: recipe.s0GPerL,
-    kmGPerL: recipe.kmGPerL,
-    productPricePerKg: recipe.productPricePerKg,
-    enzymePricePerKg: recipe.enzymePricePerKg,
-    heatingCostPerDegCHour: recipe.heatingCostPerDegCHour,
-    currentSetpointC: recipe.currentSetpointC,
-    strategy: 'isothermal',
-    stages: 4,
-    maxStepC: 4,
-    uncertainty: null,
-  });
+  const plan = createPlan(ctx, engineer, inputsFromRecipe(recipe));
   const o = plan.outputs;
   proposeChange(ctx, engineer, {
     planId: plan.id,

@@ -1,8 +1,13 @@
 import type { PlanInputs } from '../contracts/plans';
 import type { Recipe } from '../contracts/recipes';
 
+type RecipeFigures = Pick<
+  Recipe,
+  'id' | 'lotId' | 'batchH' | 'turnaroundH' | 'doseGPerL' | 's0GPerL' | 'kmGPerL' | 'productPricePerKg' | 'enzymePricePerKg' | 'heatingCostPerDegCHour' | 'currentSetpointC'
+>;
+
 /** The planner's starting point: the recipe as stored, held at one setpoint, no uncertainty run yet. */
-export function inputsFromRecipe(r: Recipe): PlanInputs {
+export function inputsFromRecipe(r: RecipeFigures): PlanInputs {
   return {
     recipeId: r.id,
     lotId: r.lotId,

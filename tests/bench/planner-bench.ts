@@ -14,7 +14,7 @@ const { siteId } = seedDemo(db, { bcryptCost: 4 });
 const N = 40;
 for (const { recipe } of listSiteRecipes(db, siteId)) {
   const ctx = planContext(recipe, findSiteEnzyme(db, siteId, recipe.enzymeId)!, toPlanningLot(findSiteLot(db, siteId, recipe.lotId)!), findSiteVessel(db, siteId, recipe.vesselId)!);
-  const base = inputsFromRecipe({ ...recipe, enzymeName: '', lotCode: '', vesselName: '' });
+  const base = inputsFromRecipe(recipe);
   const times: number[] = [];
   for (let i = 0; i < N; i++) {
     // Each run a slightly different batch length, as a stepper press would give.

@@ -4,6 +4,7 @@ import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_USERS } from '../../db/seed';
 import { readSinkDir } from '../../server/fakes/smtp-sink';
+import { inputsFromRecipe } from '../../src/planning/inputs';
 import { sessionCookie, startServer, type RunningServer } from '../support/server';
 import { acknowledgeCautions, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
@@ -46,20 +47,7 @@ describe('change control', () => {
     // A saved plan for the demo recipe, through the API as the planner saves it.
     const recipe = (await apiAs('engineer', 'GET', '/recipes')).body.recipes.find((r: { name: string }) => r.name === 'Glucose syrup DE 95');
     const plan = await apiAs('engineer', 'POST', '/plans', {
-      recipeId: recipe.id,
-      lotId: recipe.lotId,
-      batchH: recipe.batchH,
-      turnaroundH: recipe.turnaroundH,
-      doseGPerL: recipe.doseGPerL,
-      s0GPerL: recipe.s0GPerL,
-      kmGPerL: recipe.kmGPerL,
-      productPricePerKg: recipe.productPricePerKg,
-      enzymePricePerKg: recipe.enzymePricePerKg,
-      heatingCostPerDegCHour: recipe.heatingCostPerDegCHour,
-      currentSetpointC: recipe.currentSetpointC,
-      strategy: 'isothermal',
-      stages: 4,
-      maxStepC: 4,
+      ...inputsFromRecipe(recipe),
       uncertainty: { draws: 400, seed: 7, sensorBiasSdC: 0.3, doseRelSd: 0.05 },
     });
     expect(plan.status).toBe(201);
