@@ -5,6 +5,7 @@ import { enableScreens } from 'react-native-screens';
 import { SWRConfig } from 'swr';
 import { installFocusRing } from '@/theme/focus-ring';
 import { installPrintStylesheet } from '@/theme/print';
+import { useSnapshotReplaced } from '@/web/snapshot';
 
 installFocusRing();
 installPrintStylesheet();
@@ -29,6 +30,7 @@ function Fonts() {
 const SWR_OPTIONS = { shouldRetryOnError: false, revalidateOnFocus: true, dedupingInterval: 2000 };
 
 export default function RootLayout() {
+  useSnapshotReplaced();
   return (
     <SWRConfig value={SWR_OPTIONS}>
       <Fonts />

@@ -7,6 +7,7 @@ import { PAGE_SESSION_ID } from '../src/contracts/rules';
 import { SessionState } from '../src/contracts/session';
 import { authenticate } from './middleware/auth';
 import type { AuthContext } from './services/auth';
+import { pageFor, pageRoutes, type PageRoute } from './web-pages';
 
 /**
  * The page with the session it is served for, as a JSON data block (never executed, so the content security
@@ -19,12 +20,20 @@ export function pageWithSession(html: string, state: SessionState): string {
 }
 
 /**
- * Serves the exported single-page app: hashed bundles cached for a year (brotli or gzip from the files the build
- * compressed beforehand), the page itself for every other GET, never cached since it names the signed-in user.
+ * Serves the exported app: hashed bundles cached for a year (brotli or gzip from the files the build compressed
+ * beforehand), and for every other GET the page of the route it names, rendered at build time, with the session
+ * written in; never cached, since it names the signed-in user. A path no route matches gets the not-found page.
  */
 export function serveWeb(app: Express, webDir: string, auth: AuthContext): void {
   const root = path.resolve(webDir);
   const indexHtml = path.join(root, 'index.html');
+  // The route table is read again whenever the export is rebuilt (index.html is written anew), without a restart.
+  let routes: { builtAt: number; list: PageRoute[] } | null = null;
+  const currentRoutes = () => {
+    const builtAt = fs.statSync(indexHtml).mtimeMs;
+    if (routes?.builtAt !== builtAt) routes = { builtAt, list: pageRoutes(root) };
+    return routes.list;
+  };
   app.use(
     expressStaticGzip(root, {
       enableBrotli: true,
@@ -32,6 +41,8 @@ export function serveWeb(app: Express, webDir: string, auth: AuthContext): void 
       index: false,
       serveStatic: {
         index: false,
+        // `/planner` is a page, not a request to be redirected to the folder `/planner/`.
+        redirect: false,
         setHeaders: (res, file) => {
           const hashed = file.includes(`${path.sep}_expo${path.sep}`) || file.includes(`${path.sep}assets${path.sep}`);
           res.setHeader('cache-control', hashed ? 'public, max-age=31536000, immutable' : 'no-cache');
@@ -41,8 +52,10 @@ export function serveWeb(app: Express, webDir: string, auth: AuthContext): void 
   );
   app.get('/{*splat}', cookieParser(), authenticate(auth), (req, res, next) => {
     if (!fs.existsSync(indexHtml)) return next();
+    const page = pageFor(currentRoutes(), root, req.path) ?? { file: indexHtml, notFound: false };
     res.setHeader('cache-control', 'no-store');
     res.vary('cookie');
-    res.type('html').send(pageWithSession(fs.readFileSync(indexHtml, 'utf8'), { user: req.user ?? null }));
+    res.status(page.notFound ? 404 : 200);
+    res.type('html').send(pageWithSession(fs.readFileSync(page.file, 'utf8'), { user: req.user ?? null }));
   });
 }

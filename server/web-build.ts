@@ -30,7 +30,27 @@ export function ensureWebBuild(root: string, webDir: string): void {
     env: { ...process.env, CI: '1', EXPO_NO_TELEMETRY: '1' },
   });
   if (r.status !== 0) throw new Error(`expo export failed with exit code ${r.status}`);
+  renderOverSnapshots(path.join(root, webDir));
   precompress(path.join(root, webDir));
+}
+
+// Expo Router's static pages set this flag in an inline script so the app hydrates the page's HTML.
+const HYDRATE_FLAG = '<script type="module">globalThis.__EXPO_ROUTER_HYDRATE__=true;</script>';
+// Its head manager also writes an empty title ahead of the page's own (`app/+html.tsx`), which would win.
+const EMPTY_TITLE = '<title data-rh="true"></title>';
+
+/**
+ * Takes the hydration flag out of every page, so the app renders afresh over the build-time snapshot instead of
+ * hydrating it: the snapshot is rendered without a session and a screen width, which the app's first render has,
+ * so the two differ by design (the role's navigation, the sidebar). The content security policy would refuse the
+ * inline script anyway (`script-src 'self'`).
+ */
+export function renderOverSnapshots(dir: string): void {
+  for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
+    const file = path.join(dir, entry.name);
+    if (entry.isDirectory()) renderOverSnapshots(file);
+    else if (entry.name.endsWith('.html')) fs.writeFileSync(file, fs.readFileSync(file, 'utf8').replace(HYDRATE_FLAG, '').replace(EMPTY_TITLE, ''));
+  }
 }
 
 /** Writes `<file>.br` and `<file>.gz` beside every text file of the export (served by express-static-gzip). */

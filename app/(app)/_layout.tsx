@@ -8,6 +8,7 @@ import { TopBar } from '@/components/shell/top-bar';
 import { ErrorState, Loader } from '@/components/ui/states';
 import { useSession } from '@/hooks/use-session';
 import { space, useBreakpoint, useColors } from '@/theme';
+import { isBuildSnapshot } from '@/web/snapshot';
 
 export default function SignedInLayout() {
   const { session, error, mutate } = useSession();
@@ -20,18 +21,19 @@ export default function SignedInLayout() {
       </View>
     );
   }
-  if (session === undefined) {
+  // The build-time snapshot has no session: it draws the frame and the screen, without the role's navigation.
+  if (session === undefined && !isBuildSnapshot) {
     return (
       <View style={[styles.center, { backgroundColor: c.background }]}>
         <Loader label="Checking your sign-in" />
       </View>
     );
   }
-  if (!session) return <Redirect href="/sign-in" />;
-  const { user } = session;
+  if (session === null) return <Redirect href="/sign-in" />;
+  const user = session?.user ?? null;
   return (
     <View style={[styles.fill, { backgroundColor: c.background }]}>
-      {isWide ? null : <TopBar siteName={user.siteName} />}
+      {isWide ? null : <TopBar siteName={user?.siteName ?? ''} />}
       <Tabs
         tabBar={(props) => (
           <NavBar user={user} layout={isWide ? 'side' : 'bottom'} activeName={props.state.routes[props.state.index]?.name} />
@@ -43,7 +45,7 @@ export default function SignedInLayout() {
           <Tabs.Screen key={item.name} name={item.name} options={{ title: `${item.label} · Yieldpoint` }} />
         ))}
       </Tabs>
-      {user.cautionsAcknowledgedAt ? null : <FirstRunNotice />}
+      {user && !user.cautionsAcknowledgedAt ? <FirstRunNotice /> : null}
     </View>
   );
 }

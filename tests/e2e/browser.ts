@@ -36,9 +36,15 @@ export async function screenshot(page: Page, name: string): Promise<void> {
   await page.screenshot({ path: path.join(SHOTS, `${name}.png`), fullPage: false });
 }
 
+/** Waits until the app has replaced the page's build-time snapshot (which is inert). */
+export async function appRendered(page: Page): Promise<void> {
+  await page.waitForFunction(() => !document.body.inert);
+}
+
 export async function signIn(page: Page, baseURL: string, role: Role): Promise<void> {
   const user = DEMO_USERS.find((u) => u.role === role)!;
   await page.goto(`${baseURL}/`);
+  await appRendered(page);
   await page.getByTestId('sign-in-email').fill(user.email);
   await page.getByTestId('sign-in-password').fill(user.password);
   await page.getByTestId('sign-in-submit').click();

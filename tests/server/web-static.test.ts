@@ -22,6 +22,11 @@ const raw = (base: string, urlPath: string, acceptEncoding?: string) =>
       .on('error', reject);
   });
 
+const sessionBlock = (html: string) => {
+  const m = new RegExp(`<script id="${PAGE_SESSION_ID}" type="application/json">(.*?)</script>`).exec(html);
+  return m ? JSON.parse(m[1]!) : undefined;
+};
+
 describe('serving the exported web app', () => {
   let t: TestApp;
   let webDir: string;
@@ -75,11 +80,6 @@ describe('serving the exported web app', () => {
     expect(page.headers['content-type']).toMatch(/html/);
   });
 
-  const sessionBlock = (html: string) => {
-    const m = new RegExp(`<script id="${PAGE_SESSION_ID}" type="application/json">(.*?)</script>`).exec(html);
-    return m ? JSON.parse(m[1]!) : undefined;
-  };
-
   it('writes the session the page is served for into it: the signed-in user, or none', async () => {
     const operator = await t.signIn('operator');
     const signedIn = await operator.get('/batches');
@@ -106,5 +106,69 @@ describe('serving the exported web app', () => {
     const r = await raw(t.base, '/api/no-such-thing');
     expect(r.status).toBe(404);
     expect(r.headers['content-type']).toMatch(/json/);
+  });
+});
+
+// A static export (`web.output: "static"`): one page per route, named like the route file, plus the group copies,
+// the sitemap and the not-found page.
+describe('serving the page of each route', () => {
+  let t: TestApp;
+  let webDir: string;
+  const pages: Record<string, string> = {
+    'index.html': 'home',
+    'sign-in.html': 'sign-in',
+    'planner/index.html': 'planner',
+    'planner/[recipeId].html': 'recipe',
+    'planner/plan/[planId].html': 'plan',
+    'batches/index.html': 'batches',
+    'batches/start.html': 'start',
+    'batches/[id].html': 'batch',
+    '(app)/batches/[id].html': 'group copy',
+    '_sitemap.html': 'sitemap',
+    '+not-found.html': 'not found',
+  };
+  const page = (name: string) => `<!doctype html><html><head><title>${name}</title></head><body><div id="root">${name}</div></body></html>`;
+
+  beforeAll(async () => {
+    webDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-pages-'));
+    for (const [file, name] of Object.entries(pages)) {
+      fs.mkdirSync(path.dirname(path.join(webDir, file)), { recursive: true });
+      fs.writeFileSync(path.join(webDir, file), page(name));
+    }
+    t = await startTestApp({ webDir });
+  });
+  afterAll(async () => {
+    await t.close();
+    fs.rmSync(webDir, { recursive: true, force: true });
+  });
+
+  const servedAs = async (urlPath: string) => {
+    const r = await raw(t.base, urlPath);
+    return { status: r.status, name: /<div id="root">(.*?)<\/div>/.exec(r.body.toString())?.[1], location: r.headers.location };
+  };
+
+  it('answers each path with its route’s page, a fixed segment before a parameter', async () => {
+    expect(await servedAs('/')).toEqual({ status: 200, name: 'home', location: undefined });
+    expect(await servedAs('/sign-in')).toMatchObject({ status: 200, name: 'sign-in' });
+    expect(await servedAs('/planner')).toMatchObject({ status: 200, name: 'planner' });
+    expect(await servedAs('/planner/')).toMatchObject({ status: 200, name: 'planner' });
+    expect(await servedAs('/planner/3')).toMatchObject({ status: 200, name: 'recipe' });
+    expect(await servedAs('/planner/plan/12')).toMatchObject({ status: 200, name: 'plan' });
+    expect(await servedAs('/batches/start')).toMatchObject({ status: 200, name: 'start' });
+    expect(await servedAs('/batches/42?tab=readings')).toMatchObject({ status: 200, name: 'batch' });
+  });
+
+  it('answers a path no route names with the not-found page and 404, and never serves the sitemap or group copies', async () => {
+    expect(await servedAs('/no/such/place')).toMatchObject({ status: 404, name: 'not found' });
+    expect(await servedAs('/batches/42/more')).toMatchObject({ status: 404, name: 'not found' });
+    expect(await servedAs('/_sitemap')).toMatchObject({ status: 404, name: 'not found' });
+    expect(await servedAs('/(app)/batches/42')).toMatchObject({ status: 404, name: 'not found' });
+  });
+
+  it('writes the session into every page it serves', async () => {
+    const operator = await t.signIn('operator');
+    const r = await operator.get('/batches/42');
+    expect(r.status).toBe(200);
+    expect(sessionBlock(r.body as string)?.user?.role).toBe('operator');
   });
 });

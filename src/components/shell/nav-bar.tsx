@@ -7,12 +7,12 @@ import { Icon } from '../icons';
 import { Text } from '../ui/text';
 import { navItemsFor } from './navigation';
 
-type Props = { activeName: string | undefined; user: SessionUser; layout: 'bottom' | 'side' };
+type Props = { activeName: string | undefined; user: SessionUser | null; layout: 'bottom' | 'side' };
 
-/** The role's places: a bottom bar on a phone, a sidebar on a wide screen. */
+/** The role's places: a bottom bar on a phone, a sidebar on a wide screen. Empty until the user is known. */
 export function NavBar({ activeName, user, layout }: Props) {
   const c = useColors();
-  const items = navItemsFor(user.role);
+  const items = user ? navItemsFor(user.role) : [];
   const side = layout === 'side';
   return (
     <View
@@ -27,7 +27,7 @@ export function NavBar({ activeName, user, layout }: Props) {
             Yieldpoint
           </Text>
           <Text variant="caption" style={{ color: c.navText }}>
-            {user.siteName}
+            {user?.siteName}
           </Text>
         </View>
       ) : null}
@@ -60,9 +60,11 @@ export function NavBar({ activeName, user, layout }: Props) {
             <Icon name="caution" color={c.navActive} size={20} />
             <Text style={{ color: c.navText }}>Cautions</Text>
           </Pressable>
-          <Text variant="caption" style={{ color: c.navText }}>
-            {user.name} · {ROLE_LABELS[user.role]}
-          </Text>
+          {user ? (
+            <Text variant="caption" style={{ color: c.navText }}>
+              {user.name} · {ROLE_LABELS[user.role]}
+            </Text>
+          ) : null}
         </View>
       ) : null}
     </View>
@@ -71,7 +73,7 @@ export function NavBar({ activeName, user, layout }: Props) {
 
 const styles = StyleSheet.create({
   bottom: { borderTopWidth: 0, paddingHorizontal: space.xs, paddingVertical: space.xs },
-  bottomItems: { flexDirection: 'row', justifyContent: 'space-around' },
+  bottomItems: { flexDirection: 'row', justifyContent: 'space-around', minHeight: touchTarget + 8 },
   bottomItem: { flex: 1, minHeight: touchTarget + 8, alignItems: 'center', justifyContent: 'center', gap: space.xxs, borderRadius: radius.md, marginHorizontal: space.xxs },
   side: { width: sidebarWidth, height: '100%', paddingVertical: space.xl, paddingHorizontal: space.md, gap: space.xl },
   brand: { paddingHorizontal: space.sm, gap: space.xxs },

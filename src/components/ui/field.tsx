@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { StyleSheet, TextInput, View, type TextInputProps } from 'react-native';
 import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
+import { isBuildSnapshot } from '../../web/snapshot';
 import { Text } from './text';
 
 export type FieldProps = TextInputProps & { label: string; error?: string; hint?: string };
@@ -19,6 +20,8 @@ export function Field({ label, error, hint, style, testID, ...rest }: FieldProps
         testID={testID}
         placeholderTextColor={c.textMuted}
         {...rest}
+        // Read-only in the build-time snapshot: what is typed there would be lost when the app takes over.
+        editable={isBuildSnapshot ? false : rest.editable}
         onFocus={(e) => {
           setFocused(true);
           rest.onFocus?.(e);

@@ -2,6 +2,7 @@ import { memo, useEffect, useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
 import { Text } from './text';
+import { isBuildSnapshot } from '../../web/snapshot';
 import { FieldNote } from './field';
 
 type Props = {
@@ -73,6 +74,7 @@ export const NumberField = memo(function NumberField({ label, value, onChange, s
           onChangeText={apply}
           onBlur={() => setText(shown(value))}
           inputMode="decimal"
+          editable={!isBuildSnapshot}
           style={[styles.input, { color: c.text, backgroundColor: c.surface, borderColor: error ? c.danger : c.border, fontFamily: font.regular }]}
         />
         {button(1)}
