@@ -3,7 +3,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
 
-const SOURCES = ['app', 'src', 'assets', 'app.json', 'package-lock.json', 'metro.config.js', 'server/web-build.ts'];
+const SOURCES = ['app', 'src', 'assets', 'index.ts', 'app.json', 'package.json', 'package-lock.json', 'metro.config.js', 'server/web-build.ts'];
 // Text files are stored compressed beside themselves once, at build time, at the highest levels (brotli 11 is
 // ~20 % smaller than gzip on the bundle but far too slow to run per request). Fonts are WOFF2, compressed already.
 const COMPRESSIBLE = /\.(js|css|html|json|svg|txt)$/;

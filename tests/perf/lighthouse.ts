@@ -11,9 +11,11 @@ import { ROOT, sessionCookie, startServer } from '../support/server';
 // npm run lighthouse: every role's home (and the sign-in page) on the production build, mobile and desktop.
 // Budgets (mobile) from the tracker: performance >= 0.90, LCP <= 2.5 s, TBT <= 200 ms, CLS <= 0.1, a11y 1.0.
 // LIGHTHOUSE_REPORTS=dir keeps each page's full report (JSON) for a closer look; LIGHTHOUSE_PAGES=operator,sign-in
-// measures only the pages whose names contain one of those words.
+// measures only the pages whose names contain one of those words; LIGHTHOUSE_FORMS=mobile only the phone form.
 const REPORTS = process.env.LIGHTHOUSE_REPORTS;
 const ONLY = process.env.LIGHTHOUSE_PAGES?.split(',').filter(Boolean);
+// LIGHTHOUSE_FORMS=mobile measures only the phone form (both by default).
+const FORMS = (process.env.LIGHTHOUSE_FORMS?.split(',') ?? ['mobile', 'desktop']) as ('mobile' | 'desktop')[];
 const BUDGET = { performance: 0.9, lcpMs: 2500, tbtMs: 200, cls: 0.1, accessibility: 1 };
 
 type Row = { page: string; form: 'mobile' | 'desktop'; performance: number; lcpMs: number; tbtMs: number; cls: number; accessibility: number; failing: string[] };
@@ -35,7 +37,7 @@ async function main() {
     for (const p of pages) {
       const user = p.role ? DEMO_USERS.find((u) => u.role === p.role)! : null;
       const cookie = user ? await sessionCookie(server.baseURL, user.email, user.password) : undefined;
-      for (const form of ['mobile', 'desktop'] as const) {
+      for (const form of FORMS) {
         const out = execFileSync(process.execPath, [path.join(__dirname, 'lighthouse-page.mjs'), `${server.baseURL}${p.path}`, String(chrome.port), form, cookie ?? '', REPORTS ? path.join(REPORTS, `${p.page.replace(/ /g, '-')}-${form}.json`) : ''], {
           encoding: 'utf8',
           maxBuffer: 64 * 1024 * 1024,

@@ -1,0 +1,7 @@
+// The app's entry: Expo Router's own (`expo-router/entry`), started once the bundle's modules are initialised in
+// short slices (src/web/warm-up.ts). Its runtime set-up comes first, as Expo Router requires.
+import '@expo/metro-runtime';
+import { warmUp } from './src/web/warm-up';
+
+const entry = new Set([require.resolveWeak('expo-router/entry'), require.resolveWeak('expo-router/entry-classic')]);
+warmUp(entry).then(() => require('expo-router/entry'));
