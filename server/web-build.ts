@@ -2,6 +2,7 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
+import { WARM_ORDER_ID } from '../src/web/warm-up';
 
 const SOURCES = ['app', 'src', 'assets', 'index.ts', 'app.json', 'package.json', 'package-lock.json', 'metro.config.js', 'server/web-build.ts'];
 // Text files are stored compressed beside themselves once, at build time, at the highest levels (brotli 11 is
@@ -43,13 +44,53 @@ const EMPTY_TITLE = '<title data-rh="true"></title>';
  * Takes the hydration flag out of every page, so the app renders afresh over the build-time snapshot instead of
  * hydrating it: the snapshot is rendered without a session and a screen width, which the app's first render has,
  * so the two differ by design (the role's navigation, the sidebar). The content security policy would refuse the
- * inline script anyway (`script-src 'self'`).
+ * inline script anyway (`script-src 'self'`). The empty title goes too. Each page carries the order in which
+ * `src/web/warm-up.ts` initialises the bundle's modules, as a JSON data block (never executed).
  */
 export function renderOverSnapshots(dir: string): void {
+  const order = `<script id="${WARM_ORDER_ID}" type="application/json">${JSON.stringify(warmOrder(dir))}</script>`;
+  rewritePages(dir, (html) => html.replace(HYDRATE_FLAG, '').replace(EMPTY_TITLE, '').replace('</head>', `${order}</head>`));
+}
+
+/**
+ * The export's modules with each one after the modules it imports (depth-first, dependencies first), from the
+ * bundles' `__d(factory, id, [dependency ids])` registrations.
+ */
+export function warmOrder(dir: string): number[] {
+  const js = path.join(dir, '_expo/static/js/web');
+  const deps = new Map<number, number[]>();
+  for (const f of fs.existsSync(js) ? fs.readdirSync(js).filter((n) => n.endsWith('.js')) : []) {
+    for (const m of fs.readFileSync(path.join(js, f), 'utf8').matchAll(/\},(\d+),\[([^\]]*)\]\);?$/gm)) {
+      deps.set(Number(m[1]), m[2]!.split(',').filter((d) => /^\d+$/.test(d)).map(Number));
+    }
+  }
+  const order: number[] = [];
+  const seen = new Set<number>();
+  const visit = (root: number) => {
+    // Iterative, so a deep import chain cannot overflow the stack.
+    const stack: [number, number][] = [[root, 0]];
+    seen.add(root);
+    while (stack.length) {
+      const top = stack[stack.length - 1]!;
+      const next = deps.get(top[0])?.[top[1]++];
+      if (next === undefined) {
+        order.push(top[0]);
+        stack.pop();
+      } else if (!seen.has(next) && deps.has(next)) {
+        seen.add(next);
+        stack.push([next, 0]);
+      }
+    }
+  };
+  for (const id of [...deps.keys()].sort((a, b) => a - b)) if (!seen.has(id)) visit(id);
+  return order;
+}
+
+function rewritePages(dir: string, edit: (html: string) => string): void {
   for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
     const file = path.join(dir, entry.name);
-    if (entry.isDirectory()) renderOverSnapshots(file);
-    else if (entry.name.endsWith('.html')) fs.writeFileSync(file, fs.readFileSync(file, 'utf8').replace(HYDRATE_FLAG, '').replace(EMPTY_TITLE, ''));
+    if (entry.isDirectory()) rewritePages(file, edit);
+    else if (entry.name.endsWith('.html')) fs.writeFileSync(file, edit(fs.readFileSync(file, 'utf8')));
   }
 }
 

@@ -3,11 +3,17 @@
  * Metro runs each module the first time it is required (`inlineRequires`); left alone, the app's first render
  * requires about six hundred of them inside a handful of tasks that each block a phone for a third of a second.
  * Run first, this spreads the same work over short tasks, so a tap on the page is answered while the app starts.
+ *
+ * The build writes into each page the order to go in: every module after the modules it imports, so each step
+ * runs one module (in Metro's numbering, the first module that imports `react-native` runs some two hundred in
+ * one task).
  */
 type MetroRequire = ((id: number) => unknown) & { unguarded?: (id: number) => unknown };
 
+/** The id of the page's JSON data block with that order (written by the build, `server/web-build.ts`). */
+export const WARM_ORDER_ID = 'yieldpoint-warm-order';
 const SLICE_MS = 4;
-// Metro numbers modules from 0 in the order it meets them; a run of unknown numbers is the end of the bundle.
+// Without the order (the development server), go up Metro's numbers until a run of unknown ones ends the bundle.
 const END_AFTER_UNKNOWN = 32;
 
 function nextTask(): Promise<void> {
@@ -18,25 +24,40 @@ function nextTask(): Promise<void> {
   });
 }
 
+function pageOrder(): number[] | null {
+  if (typeof document === 'undefined') return null;
+  try {
+    const order: unknown = JSON.parse(document.getElementById(WARM_ORDER_ID)?.textContent ?? 'null');
+    return Array.isArray(order) && order.every((id) => Number.isInteger(id)) ? (order as number[]) : null;
+  } catch {
+    return null;
+  }
+}
+
 /** `skip`: modules that must not run early (the entry that renders the app). */
-export async function warmUp(skip: ReadonlySet<number>): Promise<void> {
-  const metro = (globalThis as { __r?: MetroRequire }).__r;
-  const load = metro?.unguarded;
+export async function warmUp(skip: ReadonlySet<number>, order: readonly number[] | null = pageOrder()): Promise<void> {
+  const load = (globalThis as { __r?: MetroRequire }).__r?.unguarded;
   if (!load) return;
-  let unknownInARow = 0;
   let sliceStart = performance.now();
-  for (let id = 0; unknownInARow < END_AFTER_UNKNOWN; id += 1) {
-    if (skip.has(id)) continue;
-    try {
-      load(id);
-      unknownInARow = 0;
-    } catch (e) {
-      // A module that fails here fails the same way when the app requires it, and is reported then.
-      unknownInARow = String((e as Error)?.message).startsWith('Requiring unknown module') ? unknownInARow + 1 : 0;
+  const step = async (id: number): Promise<boolean> => {
+    let known = true;
+    if (!skip.has(id)) {
+      try {
+        load(id);
+      } catch (e) {
+        // A module that fails here fails the same way when the app requires it, and is reported then.
+        known = !String((e as Error)?.message).startsWith('Requiring unknown module');
+      }
     }
     if (performance.now() - sliceStart > SLICE_MS) {
       await nextTask();
       sliceStart = performance.now();
     }
+    return known;
+  };
+  if (order) {
+    for (const id of order) await step(id);
+    return;
   }
+  for (let id = 0, unknownInARow = 0; unknownInARow < END_AFTER_UNKNOWN; id += 1) unknownInARow = (await step(id)) ? 0 : unknownInARow + 1;
 }

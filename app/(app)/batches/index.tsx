@@ -70,8 +70,9 @@ function BatchesBody() {
           <Section title="Other running batches" batches={running.filter((b) => !b.isMine)} now={now} testID="other-batches" />
         </View>
         <View style={[styles.column, isWide && styles.columnWide]}>
-          <Accuracy closed={closed} />
           <Section title="Closed batches" batches={closed} now={now} testID="closed-batches" />
+          {/* After the batches it summarises; on a phone the running batches and their history come first. */}
+          <Accuracy closed={closed} />
           {/* Last: it loads on its own, and below everything it moves nothing when it arrives. */}
           <DeviationRulesCard canChange={session?.user.role === 'supervisor' || session?.user.role === 'admin'} />
         </View>
