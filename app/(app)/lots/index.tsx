@@ -73,7 +73,6 @@ function LotsBody() {
               caption="Enzyme lots"
               testID="lots-table"
               onRowPress={(l) => router.push(`/lots/${l.id}`)}
-              rowLabel={(l) => `Open lot ${l.lotCode}`}
             />
           ) : (
             <EmptyState title="None here" message="No lot has this status." />

@@ -6,7 +6,10 @@ import { fmt } from '../../format';
 import { radius, space, touchTarget, useColors } from '../../theme';
 import { Text } from '../ui/text';
 
-/** One batch in the list: what runs where, how it is going, and whether anything needs attention. */
+/**
+ * One batch in the list: what runs where, how it is going, and whether anything needs attention. The link's name
+ * is its visible text (WCAG 2.5.3), deviations included.
+ */
 export function BatchCard({ b, now }: { b: BatchSummary; now: Date }) {
   const c = useColors();
   const since = b.lastReadingAt ? `last reading ${durationText(now.getTime() - Date.parse(b.lastReadingAt))} ago` : 'no readings yet';
@@ -17,7 +20,6 @@ export function BatchCard({ b, now }: { b: BatchSummary; now: Date }) {
   return (
     <Pressable
       accessibilityRole="link"
-      accessibilityLabel={`${b.recipeName} on ${b.vesselName}, ${b.state}${b.openDeviations ? `, ${b.openDeviations} open deviations` : ''}`}
       testID={`batch-card-${b.id}`}
       onPress={() => router.push(`/batches/${b.id}`)}
       style={({ pressed }) => [styles.card, { backgroundColor: c.surface, borderColor: b.openDeviations ? c.danger : c.border }, pressed && { opacity: 0.85 }]}

@@ -103,7 +103,6 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
           <Button
             label={`Repeat ${lastC.toFixed(1)} °C now`}
             variant="secondary"
-            accessibilityLabel={`Log ${lastC.toFixed(1)} degrees again at the current time`}
             onPress={() => void submit(lastC, localInputValue(new Date()))}
             testID="reading-repeat"
           />

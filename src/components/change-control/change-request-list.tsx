@@ -15,7 +15,6 @@ export function ChangeRequestList({ items }: { items: ChangeRequestSummary[] }) 
         <Pressable
           key={r.id}
           accessibilityRole="link"
-          accessibilityLabel={`Change request ${r.id}: ${r.recipeName} to ${fmt(r.proposedSetpointC)} °C, ${STATUS_LABELS[r.status]}`}
           onPress={() => router.push(`/sign-offs/${r.id}`)}
           testID={`change-request-${r.id}`}
           style={({ pressed }) => [styles.row, { borderColor: c.border, backgroundColor: pressed ? c.surfaceRaised : c.surface }]}

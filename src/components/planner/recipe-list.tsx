@@ -25,7 +25,6 @@ function RecipeCard({ recipe }: { recipe: Recipe }) {
   return (
     <Pressable
       role="link"
-      accessibilityLabel={`Plan ${recipe.name}`}
       testID={`recipe-${recipe.id}`}
       onPress={() => router.push(`/planner/${recipe.id}`)}
       style={({ pressed }) => [styles.card, { backgroundColor: c.surface, borderColor: c.border }, pressed && { opacity: 0.85 }]}

@@ -10,16 +10,15 @@ type Props<T> = {
   rowKey: (row: T) => string;
   caption: string;
   testID?: string;
-  /** Makes each row a link, e.g. to the record's detail; `rowLabel` names it for screen readers. */
+  /** Makes each row a link, e.g. to the record's detail, named by its visible text (WCAG 2.5.3). */
   onRowPress?: (row: T) => void;
-  rowLabel?: (row: T) => string;
 };
 
 /** A row that opens its record when the table has `onRowPress`; inside a table it keeps the row role (ARIA needs it). */
-function Row({ onPress, label, style, testID, children, role }: { onPress?: () => void; label?: string; style: object[]; testID?: string; children: React.ReactNode; role?: 'row' }) {
+function Row({ onPress, style, testID, children, role }: { onPress?: () => void; style: object[]; testID?: string; children: React.ReactNode; role?: 'row' }) {
   if (!onPress) return <View role={role} style={style} testID={testID}>{children}</View>;
   return (
-    <Pressable role={role ?? 'link'} aria-label={label} onPress={onPress} style={({ pressed }) => [...style, pressed && { opacity: 0.7 }]} testID={testID}>
+    <Pressable role={role ?? 'link'} onPress={onPress} style={({ pressed }) => [...style, pressed && { opacity: 0.7 }]} testID={testID}>
       {children}
     </Pressable>
   );
@@ -29,14 +28,14 @@ function Row({ onPress, label, style, testID, children, role }: { onPress?: () =
 const TABLE_MIN_WIDTH = 640;
 
 /** Rows of records: a table on wide screens, stacked label/value cards on a phone. */
-export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPress, rowLabel }: Props<T>) {
+export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPress }: Props<T>) {
   const c = useColors();
   const { width } = useBreakpoint();
   if (width < TABLE_MIN_WIDTH) {
     return (
       <View testID={testID} accessibilityLabel={caption} style={styles.list}>
         {rows.map((row) => (
-          <Row key={rowKey(row)} onPress={onRowPress && (() => onRowPress(row))} label={rowLabel?.(row)} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
+          <Row key={rowKey(row)} onPress={onRowPress && (() => onRowPress(row))} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
             {columns.map((col, i) => (
               <View key={col.key} style={styles.pair}>
                 <Text variant="small" tone="muted">
@@ -64,7 +63,7 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPres
         ))}
       </View>
       {rows.map((row) => (
-        <Row key={rowKey(row)} role="row" onPress={onRowPress && (() => onRowPress(row))} label={rowLabel?.(row)} style={[styles.row, { borderColor: c.border }]} testID={testID ? `${testID}-row` : undefined}>
+        <Row key={rowKey(row)} role="row" onPress={onRowPress && (() => onRowPress(row))} style={[styles.row, { borderColor: c.border }]} testID={testID ? `${testID}-row` : undefined}>
           {columns.map((col) => (
             <View key={col.key} role="cell" style={[styles.cell, { flex: col.flex ?? 1 }]}>
               <Text variant="small" style={col.isNumeric && styles.right}>

@@ -58,7 +58,7 @@ function EnzymeBody({ id }: { id: number }) {
               Filled dots: assay fit with its 95 % interval; hollow dots: certificate figure. Dashed line: the specification.
             </Text>
             <LotHistoryChart points={data.history} specMinHalfLifeH={e.specMinHalfLifeH} specTempC={e.specTempC} />
-            <DataTable columns={COLUMNS} rows={data.history} rowKey={(p) => String(p.lotId)} caption="Lot history" testID="lot-history-table" onRowPress={(p) => router.push(`/lots/${p.lotId}`)} rowLabel={(p) => `Open lot ${p.lotCode}`} />
+            <DataTable columns={COLUMNS} rows={data.history} rowKey={(p) => String(p.lotId)} caption="Lot history" testID="lot-history-table" onRowPress={(p) => router.push(`/lots/${p.lotId}`)} />
           </>
         ) : (
           <EmptyState title="No lots yet" message="Each lot of this enzyme will appear here with its half-life." />

@@ -81,7 +81,6 @@ function EnzymesBody() {
             caption="Enzyme library"
             testID="enzymes-table"
             onRowPress={(e) => router.push(`/lots/enzymes/${e.id}`)}
-            rowLabel={(e) => `Open ${e.name} and its lot history`}
           />
           <View style={styles.row}>
             <Button label="Previous page" compact variant="secondary" disabled={page <= 1} onPress={() => setPage(page - 1)} />
