@@ -3,5 +3,9 @@
 import '@expo/metro-runtime';
 import { warmUp } from './src/web/warm-up';
 
+// The development server's pages ask to be hydrated; the app renders over the snapshot instead, as in production
+// (the exported pages carry no such flag: server/web-build.ts).
+delete (globalThis as { __EXPO_ROUTER_HYDRATE__?: unknown }).__EXPO_ROUTER_HYDRATE__;
+
 const entry = new Set([require.resolveWeak('expo-router/entry'), require.resolveWeak('expo-router/entry-classic')]);
 warmUp(entry).then(() => require('expo-router/entry'));

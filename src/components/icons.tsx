@@ -8,7 +8,7 @@ type Props = { name: IconName; color: string; size?: number };
 export function Icon({ name, color, size = 24 }: Props) {
   const stroke = { stroke: color, strokeWidth: 2, fill: 'none', strokeLinecap: 'round' as const, strokeLinejoin: 'round' as const };
   return (
-    <Svg width={size} height={size} viewBox="0 0 24 24" accessibilityElementsHidden importantForAccessibility="no" aria-hidden>
+    <Svg width={size} height={size} viewBox="0 0 24 24" aria-hidden>
       {name === 'planner' && (
         <>
           <Path d="M3 20h18" {...stroke} />
