@@ -3,6 +3,7 @@ import express, { type Express } from 'express';
 import expressStaticGzip from 'express-static-gzip';
 import fs from 'node:fs';
 import path from 'node:path';
+import { HOME } from '../src/components/shell/navigation';
 import { PAGE_SESSION_ID } from '../src/contracts/rules';
 import { SessionState } from '../src/contracts/session';
 import { authenticate } from './middleware/auth';
@@ -50,6 +51,12 @@ export function serveWeb(app: Express, webDir: string, auth: AuthContext): void 
       },
     }),
   );
+  // `/` is only a way in: the server sends each role to its home, and anyone else to the sign-in page, at once.
+  app.get('/', cookieParser(), authenticate(auth), (req, res) => {
+    res.setHeader('cache-control', 'no-store');
+    res.vary('cookie');
+    res.redirect(302, req.user ? HOME[req.user.role] : '/sign-in');
+  });
   app.get('/{*splat}', cookieParser(), authenticate(auth), (req, res, next) => {
     if (!fs.existsSync(indexHtml)) return next();
     const page = pageFor(currentRoutes(), root, req.path) ?? { file: indexHtml, notFound: false };

@@ -148,7 +148,6 @@ describe('serving the page of each route', () => {
   };
 
   it('answers each path with its route’s page, a fixed segment before a parameter', async () => {
-    expect(await servedAs('/')).toEqual({ status: 200, name: 'home', location: undefined });
     expect(await servedAs('/sign-in')).toMatchObject({ status: 200, name: 'sign-in' });
     expect(await servedAs('/planner')).toMatchObject({ status: 200, name: 'planner' });
     expect(await servedAs('/planner/')).toMatchObject({ status: 200, name: 'planner' });
@@ -163,6 +162,15 @@ describe('serving the page of each route', () => {
     expect(await servedAs('/batches/42/more')).toMatchObject({ status: 404, name: 'not found' });
     expect(await servedAs('/_sitemap')).toMatchObject({ status: 404, name: 'not found' });
     expect(await servedAs('/(app)/batches/42')).toMatchObject({ status: 404, name: 'not found' });
+  });
+
+  it('sends `/` to the signed-in role’s home, or to the sign-in page', async () => {
+    expect(await servedAs('/')).toMatchObject({ status: 302, location: '/sign-in' });
+    const engineer = await t.signIn('engineer');
+    const r = await fetch(`${t.base}/`, { headers: { cookie: engineer.cookie! }, redirect: 'manual' });
+    expect(r.status).toBe(302);
+    expect(r.headers.get('location')).toBe('/planner');
+    expect(r.headers.get('cache-control')).toBe('no-store');
   });
 
   it('writes the session into every page it serves', async () => {
