@@ -86,23 +86,23 @@ export function warmOrder(dir: string): number[] {
   return order;
 }
 
+/** Every file under `dir`, as paths relative to it. */
+export const filesUnder = (dir: string): string[] =>
+  fs.readdirSync(dir, { recursive: true, withFileTypes: true }).filter((e) => e.isFile()).map((e) => path.relative(dir, path.join(e.parentPath, e.name)));
+
 function rewritePages(dir: string, edit: (html: string) => string): void {
-  for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
-    const file = path.join(dir, entry.name);
-    if (entry.isDirectory()) rewritePages(file, edit);
-    else if (entry.name.endsWith('.html')) fs.writeFileSync(file, edit(fs.readFileSync(file, 'utf8')));
+  for (const rel of filesUnder(dir).filter((f) => f.endsWith('.html'))) {
+    const file = path.join(dir, rel);
+    fs.writeFileSync(file, edit(fs.readFileSync(file, 'utf8')));
   }
 }
 
 /** Writes `<file>.br` and `<file>.gz` beside every text file of the export (served by express-static-gzip). */
 export function precompress(dir: string): void {
-  for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
-    const file = path.join(dir, entry.name);
-    if (entry.isDirectory()) precompress(file);
-    else if (COMPRESSIBLE.test(entry.name)) {
-      const body = fs.readFileSync(file);
-      fs.writeFileSync(`${file}.br`, zlib.brotliCompressSync(body, { params: { [zlib.constants.BROTLI_PARAM_QUALITY]: 11, [zlib.constants.BROTLI_PARAM_SIZE_HINT]: body.length } }));
-      fs.writeFileSync(`${file}.gz`, zlib.gzipSync(body, { level: 9 }));
-    }
+  for (const rel of filesUnder(dir).filter((f) => COMPRESSIBLE.test(f))) {
+    const file = path.join(dir, rel);
+    const body = fs.readFileSync(file);
+    fs.writeFileSync(`${file}.br`, zlib.brotliCompressSync(body, { params: { [zlib.constants.BROTLI_PARAM_QUALITY]: 11, [zlib.constants.BROTLI_PARAM_SIZE_HINT]: body.length } }));
+    fs.writeFileSync(`${file}.gz`, zlib.gzipSync(body, { level: 9 }));
   }
 }

@@ -1,5 +1,6 @@
 import fs from 'node:fs';
 import path from 'node:path';
+import { filesUnder } from './web-build';
 
 /**
  * The pages of a static export (`web.output: "static"`): Expo Router writes one HTML file per route, named like
@@ -34,17 +35,11 @@ export function routeOf(relFile: string): PageRoute {
 
 /** Every routable page of the export, the most specific first. Group copies, the sitemap and +-files stay out. */
 export function pageRoutes(root: string): PageRoute[] {
-  const files: string[] = [];
-  const walk = (dir: string, rel: string) => {
-    for (const e of fs.readdirSync(dir, { withFileTypes: true })) {
-      if (e.name.startsWith('(') || e.name.startsWith('_') || e.name.startsWith('+')) continue;
-      const r = rel ? `${rel}/${e.name}` : e.name;
-      if (e.isDirectory()) walk(path.join(dir, e.name), r);
-      else if (e.name.endsWith('.html')) files.push(r);
-    }
-  };
-  walk(root, '');
-  return files.map(routeOf).sort((a, b) => Number(a.catchAll) - Number(b.catchAll) || a.dynamic - b.dynamic);
+  return filesUnder(root)
+    .map((f) => f.split(path.sep).join('/'))
+    .filter((f) => f.endsWith('.html') && !f.split('/').some((seg) => /^[(_+]/.test(seg)))
+    .map(routeOf)
+    .sort((a, b) => Number(a.catchAll) - Number(b.catchAll) || a.dynamic - b.dynamic);
 }
 
 /** The file that answers `urlPath` and whether it is the export's not-found page. */

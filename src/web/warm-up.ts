@@ -16,10 +16,11 @@ const SLICE_MS = 4;
 // Without the order (the development server), go up Metro's numbers until a run of unknown ones ends the bundle.
 const END_AFTER_UNKNOWN = 32;
 
-function nextTask(): Promise<void> {
+/** Hands the thread to the browser for one task; resolves with the time the next slice starts. */
+function nextSlice(): Promise<number> {
   return new Promise((resolve) => {
     const channel = new MessageChannel();
-    channel.port1.onmessage = () => resolve();
+    channel.port1.onmessage = () => resolve(performance.now());
     channel.port2.postMessage(null);
   });
 }
@@ -38,26 +39,28 @@ function pageOrder(): number[] | null {
 export async function warmUp(skip: ReadonlySet<number>, order: readonly number[] | null = pageOrder()): Promise<void> {
   const load = (globalThis as { __r?: MetroRequire }).__r?.unguarded;
   if (!load) return;
-  let sliceStart = performance.now();
-  const step = async (id: number): Promise<boolean> => {
-    let known = true;
-    if (!skip.has(id)) {
-      try {
-        load(id);
-      } catch (e) {
-        // A module that fails here fails the same way when the app requires it, and is reported then.
-        known = !String((e as Error)?.message).startsWith('Requiring unknown module');
-      }
+  /** Runs one module; false when the bundle has no module of that number. */
+  const run = (id: number): boolean => {
+    if (skip.has(id)) return true;
+    try {
+      load(id);
+      return true;
+    } catch (e) {
+      // A module that fails here fails the same way when the app requires it, and is reported then.
+      return !String((e as Error)?.message).startsWith('Requiring unknown module');
     }
-    if (performance.now() - sliceStart > SLICE_MS) {
-      await nextTask();
-      sliceStart = performance.now();
-    }
-    return known;
   };
+  let sliceStart = performance.now();
+  const sliceOver = () => performance.now() - sliceStart > SLICE_MS;
   if (order) {
-    for (const id of order) await step(id);
+    for (const id of order) {
+      run(id);
+      if (sliceOver()) sliceStart = await nextSlice();
+    }
     return;
   }
-  for (let id = 0, unknownInARow = 0; unknownInARow < END_AFTER_UNKNOWN; id += 1) unknownInARow = (await step(id)) ? 0 : unknownInARow + 1;
+  for (let id = 0, unknownInARow = 0; unknownInARow < END_AFTER_UNKNOWN; id += 1) {
+    unknownInARow = run(id) ? 0 : unknownInARow + 1;
+    if (sliceOver()) sliceStart = await nextSlice();
+  }
 }

@@ -1,9 +1,9 @@
 import { memo, useEffect, useState } from 'react';
 import { Pressable, StyleSheet, TextInput, View } from 'react-native';
 import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
-import { Text } from './text';
 import { isBuildSnapshot } from '../../web/snapshot';
 import { FieldNote } from './field';
+import { Text } from './text';
 
 type Props = {
   label: string;
