@@ -9,6 +9,7 @@ import type { Db } from '../db/client';
 import type { Clock } from './clock';
 import type { ApiMount } from './route-table';
 import { serveWeb } from './web-app';
+import { BUNDLE_LOADER_CSP } from './web-build';
 import { auditDenials } from './middleware/audit-denials';
 import { authenticate } from './middleware/auth';
 import { fairTurns } from './middleware/fair-turns';
@@ -71,7 +72,8 @@ export function createApp(deps: AppDeps): Express {
       contentSecurityPolicy: {
         directives: {
           'default-src': ["'self'"],
-          'script-src': ["'self'"],
+          // The bundle's files, and the pages' one inline script that loads them (server/web-build.ts).
+          'script-src': ["'self'", BUNDLE_LOADER_CSP],
           // react-native-web writes its styles into <style> elements at run time.
           'style-src': ["'self'", "'unsafe-inline'"],
           'img-src': ["'self'", 'data:', 'blob:'],

@@ -12,7 +12,7 @@ import { pageFor, pageRoutes, type PageRoute } from './web-pages';
 
 /**
  * The page with the session it is served for, as a JSON data block (never executed, so the content security
- * policy stays `script-src 'self'`): the app renders the signed-in shell without first asking /api/session,
+ * policy need not allow it): the app renders the signed-in shell without first asking /api/session,
  * one round trip less on a slow plant network. `<` is escaped so no name can close the block.
  */
 export function pageWithSession(html: string, state: SessionState): string {

@@ -11,6 +11,7 @@ const result = await lighthouse(
 );
 const lhr = result.lhr;
 if (reportPath) fs.writeFileSync(reportPath, JSON.stringify(lhr));
+if (reportPath && process.env.LIGHTHOUSE_TRACE) fs.writeFileSync(reportPath.replace(/\.json$/, '.trace.json'), JSON.stringify(result.artifacts.Trace ?? result.artifacts.traces?.defaultPass));
 const a11yIds = new Set(lhr.categories.accessibility.auditRefs.map((r) => r.id));
 process.stdout.write(
   JSON.stringify({

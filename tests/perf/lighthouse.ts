@@ -11,7 +11,8 @@ import { ROOT, sessionCookie, startServer } from '../support/server';
 // npm run lighthouse: every role's home (and the sign-in page) on the production build, mobile and desktop.
 // Budgets (mobile) from the tracker: performance >= 0.90, LCP <= 2.5 s, TBT <= 200 ms, CLS <= 0.1, a11y 1.0.
 // LIGHTHOUSE_REPORTS=dir keeps each page's full report (JSON) for a closer look; LIGHTHOUSE_PAGES=operator,sign-in
-// measures only the pages whose names contain one of those words; LIGHTHOUSE_FORMS=mobile only the phone form.
+// measures only the pages whose names contain one of those words; LIGHTHOUSE_FORMS=mobile only the phone form;
+// LIGHTHOUSE_TRACE=1 (with LIGHTHOUSE_REPORTS) keeps each page's trace too, to see which tasks count as blocking.
 const REPORTS = process.env.LIGHTHOUSE_REPORTS;
 const ONLY = process.env.LIGHTHOUSE_PAGES?.split(',').filter(Boolean);
 // LIGHTHOUSE_FORMS=mobile measures only the phone form (both by default).
