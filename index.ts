@@ -1,7 +1,6 @@
 // The app's entry: Expo Router's own (`expo-router/entry`), started once the bundle's modules are initialised in
 // short slices (src/web/warm-up.ts). Its runtime set-up comes first, as Expo Router requires.
 import '@expo/metro-runtime';
-import { startTransition } from 'react';
 import { warmUp } from './src/web/warm-up';
 
 // The development server's pages ask to be hydrated; the app renders over the snapshot instead, as in production
@@ -9,5 +8,4 @@ import { warmUp } from './src/web/warm-up';
 delete (globalThis as { __EXPO_ROUTER_HYDRATE__?: unknown }).__EXPO_ROUTER_HYDRATE__;
 
 const entry = new Set([require.resolveWeak('expo-router/entry'), require.resolveWeak('expo-router/entry-classic')]);
-// The first render is a transition, so React renders it in short slices too (an ordinary first render is one task).
-warmUp(entry).then(() => startTransition(() => require('expo-router/entry')));
+warmUp(entry).then(() => require('expo-router/entry'));

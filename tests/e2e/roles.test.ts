@@ -1,9 +1,9 @@
-import type { Browser } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { BUNDLE_LOADER_CSP } from '../../server/web-build';
+import { BUNDLE_LOADER_CSP, BUNDLE_PARTS_ID } from '../../server/web-build';
 import { HOME, navItemsFor } from '../../src/components/shell/navigation';
 import { ROLES } from '../../src/contracts/roles';
-import { accessibilityViolations, acknowledgeCautionsIfShown, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
+import { accessibilityViolations, acknowledgeCautionsIfShown, appRendered, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
 const baseURL = inject('baseURL');
 let browser: Browser;
@@ -175,6 +175,44 @@ describe('the page before its JavaScript has run', () => {
     await signIn(page, baseURL, 'operator');
     await page.getByTestId('screen-batches').waitFor();
     expect(await page.getByTestId('screen-batches').count()).toBe(1);
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+
+  /** When the page's first contentful paint happened, and when each of the bundle's parts began to download. */
+  const partTimes = (page: Page) =>
+    page.evaluate((id) => {
+      const list = JSON.parse(document.getElementById(id)!.textContent!) as string[];
+      const entries = performance.getEntriesByType('resource') as PerformanceResourceTiming[];
+      return {
+        fcp: performance.getEntriesByName('first-contentful-paint')[0]!.startTime,
+        fetched: list.map((url) => entries.find((e) => new URL(e.name).pathname === url)?.startTime ?? -1),
+      };
+    }, BUNDLE_PARTS_ID);
+
+  it("fetches the app's script, in parts, once the snapshot has painted", async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await page.goto(`${baseURL}/sign-in`);
+    await appRendered(page);
+    const { fcp, fetched } = await partTimes(page);
+    expect(fetched.length).toBeGreaterThan(1);
+    for (const start of fetched) expect(start).toBeGreaterThanOrEqual(fcp);
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+
+  it.each([
+    ['in a background tab, which paints nothing', () => Object.defineProperty(Document.prototype, 'hidden', { get: () => true })],
+    ['in a browser that reports no paints', () => delete (window as { PerformanceObserver?: unknown }).PerformanceObserver],
+  ])('fetches it at once %s', async (_, change) => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await page.addInitScript(change);
+    await page.goto(`${baseURL}/sign-in`);
+    await appRendered(page);
+    await page.getByTestId('sign-in-submit').waitFor();
+    const { fcp, fetched } = await partTimes(page);
+    expect(fetched[0]).toBeGreaterThanOrEqual(0);
+    expect(fetched[0]).toBeLessThan(fcp);
     expect(errors).toEqual([]);
     await context.close();
   });
