@@ -32,9 +32,15 @@ export function ensureWebBuild(root: string, webDir: string): void {
     env: { ...process.env, CI: '1', EXPO_NO_TELEMETRY: '1' },
   });
   if (r.status !== 0) throw new Error(`expo export failed with exit code ${r.status}`);
-  renderOverSnapshots(path.join(root, webDir));
-  splitBundle(path.join(root, webDir));
-  precompress(path.join(root, webDir));
+  try {
+    renderOverSnapshots(path.join(root, webDir));
+    splitBundle(path.join(root, webDir));
+    precompress(path.join(root, webDir));
+  } catch (err) {
+    // A half-finished export must not pass for an up-to-date one on the next start.
+    fs.rmSync(index, { force: true });
+    throw err;
+  }
 }
 
 // Expo Router's static pages set this flag in an inline script so the app hydrates the page's HTML.
