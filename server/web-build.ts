@@ -3,6 +3,7 @@ import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
+import { SNAPSHOT_HIDDEN_MEDIA } from '../src/web/snapshot';
 import { WARM_ORDER_ID } from '../src/web/warm-up';
 
 const SOURCES = ['app', 'src', 'assets', 'index.ts', 'app.json', 'package.json', 'package-lock.json', 'metro.config.js', 'server/web-build.ts'];
@@ -105,14 +106,15 @@ export const BUNDLE_PARTS = 8;
 /**
  * Each page's one inline script: it loads the bundle's parts in order (`async = false`) once the snapshot is on the
  * screen (the first contentful paint), so the first paint never waits on 450 KB of script sharing a slow link with
- * the page's HTML and fonts. A hidden page (a background tab) paints nothing and loads them at once; a browser
- * that reports no paint loads them after a second.
+ * the page's HTML and fonts. Where nothing will paint before the app, it loads them at once: where the snapshot is
+ * hidden (a wide or dark screen) and in a hidden page (a background tab). A browser that reports no paint loads
+ * them after a second.
  */
 export const BUNDLE_LOADER =
   `(function(){var started=0;function load(){if(started)return;started=1;` +
   `JSON.parse(document.getElementById('${BUNDLE_PARTS_ID}').textContent).forEach(function(src){` +
   `var s=document.createElement('script');s.src=src;s.async=false;document.head.appendChild(s)})}` +
-  `if(document.hidden)return load();setTimeout(load,1000);` +
+  `if(document.hidden||matchMedia('${SNAPSHOT_HIDDEN_MEDIA}').matches)return load();setTimeout(load,1000);` +
   `try{new PerformanceObserver(function(list){if(list.getEntriesByName('first-contentful-paint').length)load()})` +
   `.observe({type:'paint',buffered:true})}catch(e){load()}})()`;
 /** The content security policy's source for `BUNDLE_LOADER`, the only inline script it allows. */

@@ -1,7 +1,5 @@
 import { useWindowDimensions } from 'react-native';
-
-/** Wide layout (sidebar + content, extra columns) from this width in px. */
-export const WIDE_MIN_WIDTH = 1024;
+import { WIDE_MIN_WIDTH } from './tokens';
 
 export function useBreakpoint(): { isWide: boolean; width: number } {
   const { width } = useWindowDimensions();

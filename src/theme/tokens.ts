@@ -1,6 +1,9 @@
 /** Spacing scale in px; screens use these names, never raw numbers. */
 export const space = { xxs: 2, xs: 4, sm: 8, md: 12, lg: 16, xl: 24, xxl: 32, xxxl: 48 } as const;
 
+/** Wide layout (sidebar + content, extra columns) from this width in px. */
+export const WIDE_MIN_WIDTH = 1024;
+
 export const radius = { sm: 6, md: 10, lg: 16, pill: 999 } as const;
 
 // Two weights keep the download small; headings use the semibold face.

@@ -1,5 +1,5 @@
 import { useLayoutEffect } from 'react';
-import { WIDE_MIN_WIDTH } from '../theme/breakpoints';
+import { WIDE_MIN_WIDTH } from '../theme/tokens';
 
 /**
  * True while Expo Router renders a page's HTML at build time: there is no window, no session and no screen width,
@@ -14,7 +14,8 @@ export const isBuildSnapshot = typeof window === 'undefined';
  * it), and hidden where it would not match: on a wide screen (the snapshot has the phone layout) and in the dark
  * scheme (the snapshot is light).
  */
-export const SNAPSHOT_CSS = `@media (min-width: ${WIDE_MIN_WIDTH}px), (prefers-color-scheme: dark) { body[data-snapshot] #root { visibility: hidden; } }`;
+export const SNAPSHOT_HIDDEN_MEDIA = `(min-width: ${WIDE_MIN_WIDTH}px), (prefers-color-scheme: dark)`;
+export const SNAPSHOT_CSS = `@media ${SNAPSHOT_HIDDEN_MEDIA} { body[data-snapshot] #root { visibility: hidden; } }`;
 
 /** Called once by the root layout: its first commit has replaced the snapshot. */
 export function useSnapshotReplaced(): void {

@@ -3,7 +3,7 @@
 // would not exist there.
 import fs from 'node:fs';
 import lighthouse, { desktopConfig } from 'lighthouse';
-import { computeMedianRun } from 'lighthouse/core/lib/median-run.js';
+import { computeMedianRun, filterToValidRuns } from 'lighthouse/core/lib/median-run.js';
 
 const [url, port, form, cookie, reportPath, runsArg] = process.argv.slice(2);
 const runs = Math.max(1, Number(runsArg) || 1);
@@ -32,8 +32,10 @@ if (!valid.length) {
   process.stdout.write(JSON.stringify({ runtimeError: failures.join('; ') }));
   process.exit(0);
 }
-// Lighthouse's own choice of the representative run: the one nearest the median first paint and time to interactive.
-const lhr = computeMedianRun(valid);
+// Lighthouse's own choice of the representative run: the one nearest the median first paint and time to interactive
+// (among the runs that have both; a run without them is only taken when no run has them).
+const timed = filterToValidRuns(valid);
+const lhr = timed.length ? computeMedianRun(timed) : valid[0];
 const a11yIds = new Set(lhr.categories.accessibility.auditRefs.map((r) => r.id));
 process.stdout.write(
   JSON.stringify({
