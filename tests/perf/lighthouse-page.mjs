@@ -1,9 +1,8 @@
-// Runs Lighthouse on one page several times and prints the figures of the median run as JSON. Plain JavaScript on
+// Runs Lighthouse on one page several times and prints each run's figures as JSON. Plain JavaScript on
 // purpose: Lighthouse sends functions into the page as source text, and a TypeScript runner's injected helpers
 // would not exist there.
 import fs from 'node:fs';
 import lighthouse, { desktopConfig } from 'lighthouse';
-import { computeMedianRun, filterToValidRuns } from 'lighthouse/core/lib/median-run.js';
 
 const [url, port, form, cookie, reportPath, runsArg] = process.argv.slice(2);
 const runs = Math.max(1, Number(runsArg) || 1);
@@ -29,25 +28,22 @@ for (let attempt = 0; valid.length < runs && attempt < runs + 2; attempt++) {
   valid.push(lhr);
 }
 if (!valid.length) {
-  process.stdout.write(JSON.stringify({ runtimeError: failures.join('; ') }));
+  process.stdout.write(JSON.stringify({ runtimeError: failures.join('; '), runs: [] }));
   process.exit(0);
 }
-// Lighthouse's own choice of the representative run: the one nearest the median first paint and time to interactive
-// (among the runs that have both; a run without them is only taken when no run has them).
-const timed = filterToValidRuns(valid);
-const lhr = timed.length ? computeMedianRun(timed) : valid[0];
-const a11yIds = new Set(lhr.categories.accessibility.auditRefs.map((r) => r.id));
 process.stdout.write(
   JSON.stringify({
-    performance: lhr.categories.performance.score ?? 0,
-    accessibility: lhr.categories.accessibility.score ?? 0,
-    lcpMs: lhr.audits['largest-contentful-paint'].numericValue,
-    tbtMs: lhr.audits['total-blocking-time'].numericValue,
-    cls: lhr.audits['cumulative-layout-shift'].numericValue,
-    fcpMs: lhr.audits['first-contentful-paint'].numericValue,
-    tbtRangeMs: [Math.min(...valid.map((r) => r.audits['total-blocking-time'].numericValue)), Math.max(...valid.map((r) => r.audits['total-blocking-time'].numericValue))],
-    runs: valid.length,
-    failedA11y: Object.values(lhr.audits).filter((a) => a.score === 0 && a11yIds.has(a.id)).map((a) => a.id),
     runtimeError: null,
+    runs: valid.map((lhr) => {
+      const a11yIds = new Set(lhr.categories.accessibility.auditRefs.map((r) => r.id));
+      return {
+        performance: lhr.categories.performance.score ?? 0,
+        accessibility: lhr.categories.accessibility.score ?? 0,
+        lcpMs: lhr.audits['largest-contentful-paint'].numericValue,
+        tbtMs: lhr.audits['total-blocking-time'].numericValue,
+        cls: lhr.audits['cumulative-layout-shift'].numericValue,
+        failedA11y: Object.values(lhr.audits).filter((a) => a.score === 0 && a11yIds.has(a.id)).map((a) => a.id),
+      };
+    }),
   }),
 );
