@@ -99,13 +99,13 @@ export function warmOrder(dir: string): number[] {
 export const BUNDLE_PARTS_ID = 'yieldpoint-bundle-parts';
 /**
  * Parts the bundle is cut into. The browser compiles each script file in a task of its own: one 1.6 MB file made
- * one task of about 50 ms on this machine under Lighthouse's trace (four times that on its simulated phone), eight
- * parts make tasks of under 10 ms each.
+ * one task of about 50 ms on this machine under Lighthouse's trace (four times that on its simulated phone); eight
+ * parts make tasks of about 5–20 ms.
  */
 export const BUNDLE_PARTS = 8;
 /**
  * Each page's one inline script: it loads the bundle's parts in order (`async = false`) once the snapshot is on the
- * screen (the first contentful paint), so the first paint never waits on 450 KB of script sharing a slow link with
+ * screen (the first contentful paint), so the first paint never waits on 370 KB (brotli) of script sharing a slow link with
  * the page's HTML and fonts. Where nothing will paint before the app, it loads them at once: where the snapshot is
  * hidden (a wide or dark screen) and in a hidden page (a background tab). A browser that reports no paint loads
  * them after a second.
