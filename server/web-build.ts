@@ -53,8 +53,8 @@ const EMPTY_TITLE = '<title data-rh="true"></title>';
  * Takes the hydration flag out of every page, so the app renders afresh over the build-time snapshot instead of
  * hydrating it: the snapshot is rendered without a session and a screen width, which the app's first render has,
  * so the two differ by design (the role's navigation, the sidebar). The content security policy would refuse that
- * inline script anyway (it allows only `BUNDLE_LOADER`). The empty title goes too. Each page carries the order in which
- * `src/web/warm-up.ts` initialises the bundle's modules, as a JSON data block (never executed).
+ * inline script anyway (it allows only `BUNDLE_LOADER`). The empty title goes too. Each page carries the order in
+ * which `src/web/warm-up.ts` initialises the bundle's modules, as a JSON data block (never executed).
  */
 export function renderOverSnapshots(dir: string): void {
   const order = `<script id="${WARM_ORDER_ID}" type="application/json">${JSON.stringify(warmOrder(dir))}</script>`;
@@ -105,10 +105,10 @@ export const BUNDLE_PARTS_ID = 'yieldpoint-bundle-parts';
 export const BUNDLE_PARTS = 8;
 /**
  * Each page's one inline script: it loads the bundle's parts in order (`async = false`) once the snapshot is on the
- * screen (the first contentful paint), so the first paint never waits on 370 KB (brotli) of script sharing a slow link with
- * the page's HTML and fonts. Where nothing will paint before the app, it loads them at once: where the snapshot is
- * hidden (a wide or dark screen) and in a hidden page (a background tab). A browser that reports no paint loads
- * them after a second.
+ * screen (the first contentful paint), so the first paint never waits on 370 KB (brotli) of script sharing a slow
+ * link with the page's HTML and fonts. Where nothing will paint before the app, it loads them at once: where the
+ * snapshot is hidden (a wide or dark screen) and in a hidden page (a background tab). A browser that reports no
+ * paint loads them after a second.
  */
 export const BUNDLE_LOADER =
   `(function(){var started=0;function load(){if(started)return;started=1;` +

@@ -2,6 +2,7 @@ import * as chromeLauncher from 'chrome-launcher';
 import fs from 'node:fs';
 import { execFileSync } from 'node:child_process';
 import path from 'node:path';
+import { median } from 'mathjs';
 import { DEMO_USERS } from '../../db/seed';
 import { ensureWebBuild } from '../../server/web-build';
 import { HOME } from '../../src/components/shell/navigation';
@@ -14,20 +15,12 @@ import { ROOT, sessionCookie, startServer } from '../support/server';
 // and judged on the median of each figure over those runs; the TBT of every run is printed beside it.
 // LIGHTHOUSE_REPORTS=dir keeps each run's full report (JSON) for a closer look; LIGHTHOUSE_PAGES=operator,sign-in
 // measures only the pages whose names contain one of those words; LIGHTHOUSE_FORMS=mobile only the phone form;
-// LIGHTHOUSE_TRACE=1 (with LIGHTHOUSE_REPORTS) keeps each page's trace too, to see which tasks count as blocking.
+// LIGHTHOUSE_TRACE=1 (with LIGHTHOUSE_REPORTS) keeps each run's trace too, to see which tasks count as blocking.
 const REPORTS = process.env.LIGHTHOUSE_REPORTS;
 const ONLY = process.env.LIGHTHOUSE_PAGES?.split(',').filter(Boolean);
-// LIGHTHOUSE_FORMS=mobile measures only the phone form (both by default).
 const FORMS = (process.env.LIGHTHOUSE_FORMS?.split(',') ?? ['mobile', 'desktop']) as ('mobile' | 'desktop')[];
 const RUNS = Math.max(1, Number(process.env.LIGHTHOUSE_RUNS ?? 5));
 const BUDGET = { performance: 0.9, lcpMs: 2500, tbtMs: 200, cls: 0.1, accessibility: 1 };
-
-/** The middle value (the mean of the two middle ones for an even count). */
-function median(values: number[]): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  const half = Math.floor(sorted.length / 2);
-  return sorted.length % 2 ? sorted[half]! : (sorted[half - 1]! + sorted[half]!) / 2;
-}
 
 type Row = { page: string; form: 'mobile' | 'desktop'; performance: number; lcpMs: number; tbtMs: number; tbtRangeMs: [number, number]; cls: number; accessibility: number; failing: string[] };
 
@@ -47,9 +40,9 @@ async function main() {
     if (REPORTS) fs.mkdirSync(REPORTS, { recursive: true });
     // Every sign-in first: a request after minutes of measuring could meet a kept-alive socket the server is closing.
     const cookies = new Map<Role, string>();
-    for (const p of pages) {
-      const user = p.role ? DEMO_USERS.find((u) => u.role === p.role)! : null;
-      if (user && p.role) cookies.set(p.role, await sessionCookie(server.baseURL, user.email, user.password));
+    for (const { role } of pages) {
+      const user = DEMO_USERS.find((u) => u.role === role);
+      if (role && user) cookies.set(role, await sessionCookie(server.baseURL, user.email, user.password));
     }
     for (const p of pages) {
       const cookie = p.role ? cookies.get(p.role) : undefined;
@@ -62,7 +55,7 @@ async function main() {
           }),
         );
         if (out.runtimeError) throw new Error(`${p.page} ${form}: ${out.runtimeError}`);
-        const mid = (pick: (r: Run) => number) => median(out.runs.map(pick));
+        const mid = (pick: (r: Run) => number) => median(out.runs.map(pick)) as number;
         const tbts = out.runs.map((r) => r.tbtMs);
         const row: Row = {
           page: p.page,
