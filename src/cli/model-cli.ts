@@ -1,6 +1,7 @@
 // Yieldpoint engine on the command line: one JSON object on stdin, one on stdout; exit 2 on invalid input.
 import {
   MODEL_VERSION,
+  calibrate,
   ModelInputError,
   fitInactivation,
   halfLifeAt,
@@ -12,6 +13,7 @@ import {
   economics,
   simulate,
   thermalDose,
+  validateCalibrateInput,
   validateDoseInput,
   validateEconomicsInput,
   validateFitInput,
@@ -21,7 +23,7 @@ import {
   validateUncertaintyInput,
 } from '../model';
 
-const COMMANDS = ['simulate', 'optimize', 'profile', 'fit', 'dose', 'uncertainty', 'economics'] as const;
+const COMMANDS = ['simulate', 'optimize', 'profile', 'fit', 'dose', 'uncertainty', 'economics', 'calibrate'] as const;
 
 function run(command: string, input: unknown): unknown {
   switch (command) {
@@ -60,6 +62,10 @@ function run(command: string, input: unknown): unknown {
       const curve = profitCurve(v.enzyme, v.substrate, v.boundsC, lengths, v.economics);
       const plan = v.plan ? economics(v.enzyme, v.substrate, v.plan.batchH, v.plan.temperature, v.economics) : null;
       return { best, curve, plan, modelVersion: MODEL_VERSION };
+    }
+    case 'calibrate': {
+      const v = validateCalibrateInput(input);
+      return { ...calibrate(v), modelVersion: MODEL_VERSION };
     }
     default:
       throw new ModelInputError('command', `must be one of ${COMMANDS.join(', ')}`);

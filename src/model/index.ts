@@ -69,3 +69,13 @@ export { studentTQuantile, studentTCdf } from './stats';
 export { thermalDose, type DoseResult } from './dose';
 export { waterSaturationPressureKPa, pressureCaution } from './safety';
 export * from './validate';
+export {
+  calibrate,
+  OUTLIER_LIMIT,
+  type CalibrationInput,
+  type CalibrationBatch,
+  type CalibrationResult,
+  type CalibratedBatch,
+} from './calibrate';
+export { productSensitivity, type ProductSensitivity } from './sensitivity';
+export { validateCalibrateInput } from './validate-calibrate';

@@ -270,3 +270,6 @@ export function validateEconomicsInput(v: unknown) {
   }
   return out;
 }
+
+// Building blocks for the validators of commands kept in files of their own (validate-calibrate.ts).
+export { object as inputObject, array as inputArray, number as inputNumber };
