@@ -162,9 +162,10 @@ function solve(
     hessian = h;
     const hInv = invert(h, 'posterior');
     const step = [0, 1, 2].map((a) => -(hInv[a][0] * g[0] + hInv[a][1] * g[1] + hInv[a][2] * g[2]));
-    // Newton decrement: the step's length in posterior standard deviations, squared.
+    // Newton decrement: the step's length in posterior standard deviations, squared; 1e-8 leaves the mode
+    // within 1e-4 sd (the iteration converges linearly, by a factor of about 300 per step in the benchmark).
     const decrement = -(g[0] * step[0] + g[1] * step[1] + g[2] * step[2]);
-    if (!(decrement > 1e-12)) {
+    if (!(decrement > 1e-8)) {
       converged = true;
       break;
     }

@@ -59,51 +59,50 @@ export interface ProductSensitivity {
   gradient: [number, number, number];
 }
 
-interface Piece {
-  c0: number;
-  c1: number;
-  dur: number;
+// Local bindings of hot imports (see batch.ts): tsx routes every imported call through a getter.
+const lnVFast = lnVAt;
+const lnKFast = lnKAt;
+
+/** Growable node and segment store of one compile. */
+class Layout {
+  kind = new Uint8Array(256);
+  dur = new Float64Array(256);
+  first = new Uint32Array(256);
+  u = new Float64Array(1024);
+  lnV = new Float64Array(1024);
+  lnKOff = new Float64Array(1024);
+  segs = 0;
+  nodes = 0;
+  constructor(
+    private readonly rates: Rates,
+    private readonly offRates: Rates,
+  ) {}
+  segment(kind: number, dur: number): void {
+    if (this.segs === this.kind.length) {
+      this.kind = grow(this.kind, new Uint8Array(2 * this.segs));
+      this.dur = grow(this.dur, new Float64Array(2 * this.segs));
+      this.first = grow(this.first, new Uint32Array(2 * this.segs));
+    }
+    this.kind[this.segs] = kind;
+    this.dur[this.segs] = dur;
+    this.first[this.segs++] = this.nodes;
+  }
+  node(invT: number): void {
+    if (this.nodes === this.u.length) {
+      this.u = grow(this.u, new Float64Array(2 * this.nodes));
+      this.lnV = grow(this.lnV, new Float64Array(2 * this.nodes));
+      this.lnKOff = grow(this.lnKOff, new Float64Array(2 * this.nodes));
+    }
+    const r = this.rates;
+    this.u[this.nodes] = invT - r.invTRef;
+    this.lnV[this.nodes] = lnVFast(r, invT);
+    this.lnKOff[this.nodes++] = r.hasEq ? lnKFast(this.offRates, invT) : 0;
+  }
 }
 
-// Constant and linear pieces of a program from 0 to batchH, cut as integrateProgram cuts them.
-function pieces(temp: TemperatureInput, batchH: number): Piece[] {
-  if ('setpointC' in temp) return [{ c0: temp.setpointC, c1: temp.setpointC, dur: batchH }];
-  const out: Piece[] = [];
-  if ('stages' in temp) {
-    const st = temp.stages;
-    let t = 0;
-    for (let i = 0; i < st.length && t < batchH; i++) {
-      const end = i === st.length - 1 ? Math.max(batchH, t + st[i].hours) : t + st[i].hours;
-      const b = Math.min(end, batchH);
-      if (b > t) out.push({ c0: st[i].c, c1: st[i].c, dur: b - t });
-      t = end;
-    }
-    return out;
-  }
-  const log = temp.log;
-  const n = log.length;
-  let i = 0;
-  while (i < n && log[i].h <= 0) i++;
-  let t = 0;
-  if (i === 0) {
-    t = Math.min(log[0].h, batchH);
-    out.push({ c0: log[0].c, c1: log[0].c, dur: t });
-    i = 1;
-  }
-  for (; t < batchH && i < n; i++) {
-    const ra = log[i - 1];
-    const rb = log[i];
-    const b = Math.min(rb.h, batchH);
-    if (b > t && rb.h > ra.h) {
-      const slope = (rb.c - ra.c) / (rb.h - ra.h);
-      const ca = t === ra.h ? ra.c : ra.c + slope * (t - ra.h);
-      const cb = b === rb.h ? rb.c : ra.c + slope * (b - ra.h);
-      out.push({ c0: ca, c1: cb, dur: b - t });
-    }
-    if (b > t) t = b;
-  }
-  if (t < batchH) out.push({ c0: log[n - 1].c, c1: log[n - 1].c, dur: batchH - t });
-  return out;
+function grow<T extends Float64Array | Uint32Array | Uint8Array>(from: T, to: T): T {
+  to.set(from);
+  return to;
 }
 
 /** Lay out a batch for evaluation near ln kd = lnKdC and Ed/R = edRC (K); the enzyme's own values are ignored for those. */
@@ -112,65 +111,91 @@ export function compileBatch(rates: Rates, temperature: TemperatureInput, batchH
   const offRates: Rates = { ...rates, lnKdRef: 0, edR: 0 };
   const edRMax = edRC + Math.max(ED_MARGIN * Math.abs(edRC), 10 * KJ_PER_R);
   const slopeK = slopeBoundK({ ...rates, edR: Math.max(rates.eaR, edRMax) });
-  const kind: number[] = [];
-  const dur: number[] = [];
-  const first: number[] = [];
-  const u: number[] = [];
-  const lnV: number[] = [];
-  const lnKOff: number[] = [];
-  const node = (invT: number) => {
-    u.push(invT - rates.invTRef);
-    lnV.push(lnVAt(rates, invT));
-    lnKOff.push(lnKAt(offRates, invT));
+  const out = new Layout(rates, offRates);
+  const invTRef = rates.invTRef;
+  const constant = (c: number, dur: number) => {
+    if (!(dur > 0)) return;
+    out.segment(1, dur);
+    out.node(1 / (c + KELVIN_OFFSET));
   };
-  const kdMaxAt = (invT: number) => KD_MARGIN * Math.exp(lnKdC + lnKAt(offRates, invT) - edRC * (invT - rates.invTRef));
-  for (const p of pieces(temperature, batchH)) {
-    if (!(p.dur > 0)) continue;
-    if (p.c0 === p.c1) {
-      kind.push(1);
-      dur.push(p.dur);
-      first.push(u.length);
-      node(1 / (p.c0 + KELVIN_OFFSET));
-      continue;
-    }
-    const t0 = p.c0 + KELVIN_OFFSET;
-    const dT = p.c1 - p.c0;
-    const tMin = Math.min(p.c0, p.c1) + KELVIN_OFFSET;
-    const slopeLn = (slopeK * Math.abs(dT)) / (tMin * tMin * p.dur);
+  // Linear piece c0 -> c1 (degC) over dur hours, cut as batch.ts's advanceRamp cuts it for any theta in the box.
+  const ramp = (c0: number, c1: number, dur: number) => {
+    if (!(dur > 0)) return;
+    if (c0 === c1) return constant(c0, dur);
+    const t0 = c0 + KELVIN_OFFSET;
+    const dT = c1 - c0;
+    const tMin = Math.min(c0, c1) + KELVIN_OFFSET;
+    const slopeLn = (slopeK * Math.abs(dT)) / (tMin * tMin * dur);
     let tau = 0;
-    while (tau < p.dur) {
-      const ta = t0 + (dT * tau) / p.dur;
-      const bound = Math.max(slopeLn, kdMaxAt(1 / ta) * E_DELTA);
-      let h = p.dur - tau;
+    while (tau < dur) {
+      const ta = t0 + (dT * tau) / dur;
+      const invTa = 1 / ta;
+      const lnKMax = LN_KD_MARGIN + lnKdC - edRC * (invTa - invTRef) + (rates.hasEq ? lnKFast(offRates, invTa) : 0);
+      const bound = Math.max(slopeLn, Math.exp(lnKMax) * E_DELTA);
+      let h = dur - tau;
       if (bound * h > DELTA) {
         h = DELTA / bound;
-        if (p.dur - tau - h < 1e-9 * p.dur) h = p.dur - tau;
+        if (dur - tau - h < 1e-9 * dur) h = dur - tau;
       }
-      const last = tau + h >= p.dur;
-      const tb = last ? t0 + dT : t0 + (dT * (tau + h)) / p.dur;
+      const last = tau + h >= dur;
+      const tb = last ? t0 + dT : t0 + (dT * (tau + h)) / dur;
       const variation = bound * h;
       const rule = variation <= 0.02 ? RULE_3 : variation <= 0.1 ? RULE_4 : RULE_6;
-      kind.push(rule.n);
-      dur.push(h);
-      first.push(u.length);
-      for (let j = 0; j < rule.n; j++) node(1 / (ta + (tb - ta) * rule.s[j]));
+      out.segment(rule.n, h);
+      for (let j = 0; j < rule.n; j++) out.node(1 / (ta + (tb - ta) * rule.s[j]));
       if (last) break;
       tau += h;
     }
+  };
+  // The program from 0 to batchH, in the pieces batch.ts's integrateProgram takes.
+  if ('setpointC' in temperature) constant(temperature.setpointC, batchH);
+  else if ('stages' in temperature) {
+    const st = temperature.stages;
+    let t = 0;
+    for (let i = 0; i < st.length && t < batchH; i++) {
+      const end = i === st.length - 1 ? Math.max(batchH, t + st[i].hours) : t + st[i].hours;
+      constant(st[i].c, Math.min(end, batchH) - t);
+      t = end;
+    }
+  } else {
+    const log = temperature.log;
+    const n = log.length;
+    let i = 0;
+    while (i < n && log[i].h <= 0) i++;
+    let t = 0;
+    if (i === 0) {
+      t = Math.min(log[0].h, batchH);
+      constant(log[0].c, t);
+      i = 1;
+    }
+    for (; t < batchH && i < n; i++) {
+      const ra = log[i - 1];
+      const rb = log[i];
+      const b = Math.min(rb.h, batchH);
+      if (b > t && rb.h > ra.h) {
+        const slope = (rb.c - ra.c) / (rb.h - ra.h);
+        const ca = t === ra.h ? ra.c : ra.c + slope * (t - ra.h);
+        const cb = b === rb.h ? rb.c : ra.c + slope * (b - ra.h);
+        ramp(ca, cb, b - t);
+      }
+      if (b > t) t = b;
+    }
+    if (t < batchH) constant(log[n - 1].c, batchH - t);
   }
   let uMin = Infinity;
   let uMax = -Infinity;
-  for (const x of u) {
-    if (x < uMin) uMin = x;
-    if (x > uMax) uMax = x;
+  const u = out.u.subarray(0, out.nodes);
+  for (let k = 0; k < u.length; k++) {
+    if (u[k] < uMin) uMin = u[k];
+    if (u[k] > uMax) uMax = u[k];
   }
   return {
-    kind: Uint8Array.from(kind),
-    dur: Float64Array.from(dur),
-    first: Uint32Array.from(first),
-    u: Float64Array.from(u),
-    lnV: Float64Array.from(lnV),
-    lnKOff: Float64Array.from(lnKOff),
+    kind: out.kind.subarray(0, out.segs),
+    dur: out.dur.subarray(0, out.segs),
+    first: out.first.subarray(0, out.segs),
+    u,
+    lnV: out.lnV.subarray(0, out.nodes),
+    lnKOff: out.lnKOff.subarray(0, out.nodes),
     uMin,
     uMax,
     lnKdC,
