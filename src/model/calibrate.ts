@@ -6,7 +6,16 @@ import { R } from './constants';
 import { ModelInputError } from './errors';
 import { compileRates, type Rates } from './kinetics';
 import { cholesky } from './random';
-import { compileBatch, coversTheta, productAndSlope, workSensitivity, type CompiledBatch } from './sensitivity';
+import { gaussHermite } from './quadrature';
+import {
+  compileBatch,
+  coversTheta,
+  productAndSlope,
+  productDerivatives,
+  workCurvature,
+  workSensitivity,
+  type CompiledBatch,
+} from './sensitivity';
 import { invertSymmetric } from './stats';
 import type { EnzymeParams, Substrate, TemperatureInput } from './types';
 
@@ -64,9 +73,10 @@ const KJ_PER_R = 1000 / R;
 type Vec3 = [number, number, number];
 
 interface Evaluation {
-  /** Forecast product (g/L) and its gradient by theta, per batch. */
+  /** Forecast product (g/L), its gradient and (on request) Hessian by theta, per batch. */
   f: number[];
   j: Vec3[];
+  h?: number[][][];
 }
 
 interface Solution {
@@ -88,9 +98,10 @@ class Model {
     this.compiled = batches.map((b) => compileBatch(rates, b.temperature, b.batchH, theta[0], theta[1] * KJ_PER_R));
   }
 
-  evaluate(theta: Vec3): Evaluation {
+  evaluate(theta: Vec3, second = false): Evaluation {
     const f: number[] = [];
     const j: Vec3[] = [];
+    const h: number[][][] = [];
     const lnKd = theta[0];
     const edR = theta[1] * KJ_PER_R;
     for (let i = 0; i < this.compiled.length; i++) {
@@ -98,12 +109,19 @@ class Model {
         const b = this.batches[i];
         this.compiled[i] = compileBatch(this.rates, b.temperature, b.batchH, lnKd, edR);
       }
+      if (second) {
+        const d = productDerivatives(workCurvature(this.compiled[i], lnKd, edR, theta[2]), this.substrate);
+        f.push(d.productGPerL);
+        j.push(d.gradient as Vec3);
+        h.push(d.hessian);
+        continue;
+      }
       const w = workSensitivity(this.compiled[i], lnKd, edR, theta[2]);
       const { productGPerL, slope } = productAndSlope(w.x, this.substrate);
       f.push(productGPerL);
       j.push([slope * w.dLnKd, slope * w.dEdR * KJ_PER_R, slope * w.dLnScale]);
     }
-    return { f, j };
+    return second ? { f, j, h } : { f, j };
   }
 }
 
@@ -188,6 +206,75 @@ function solve(
   return { theta, ev, hessian, iterations, converged };
 }
 
+// 7 points a side: exact for polynomials to degree 13 against the normal base, outer nodes at 3.75 sd.
+const HERMITE = gaussHermite(7);
+
+/**
+ * Posterior mean and covariance beyond the Laplace mode: importance weights of the normal at the mode (exact
+ * Hessian) on a 7^3 Gauss-Hermite grid, each batch's forecast expanded to second order about the mode. The
+ * mode is not the mean where a batch's product curves in theta over a posterior sd (few batches, wide prior).
+ */
+function posteriorMoments(
+  batches: CalibrationBatch[],
+  mean0: Vec3,
+  precision: number[][],
+  sol: Solution,
+  ev2: Evaluation,
+): { mean: Vec3; covariance: number[][] } {
+  const h = precision.map((row) => [...row]);
+  for (let i = 0; i < batches.length; i++) {
+    const sd2 = batches[i].measurementSdGPerL ** 2;
+    const r = batches[i].measuredProductGPerL - ev2.f[i];
+    for (let a = 0; a < 3; a++)
+      for (let b = 0; b < 3; b++) h[a][b] += (ev2.j[i][a] * ev2.j[i][b] - r * ev2.h![i][a][b]) / sd2;
+  }
+  // Far from the data's fit the exact Hessian may not be positive definite: keep the Gauss-Newton one then.
+  const exact = invertSymmetric(h);
+  const base = exact && cholesky(exact)?.every((row, i) => row[i] > 0) ? exact : invert(sol.hessian, 'posterior');
+  const l = cholesky(base)!;
+  const theta = sol.theta;
+  const phi = (d: number[]) => {
+    const p = [theta[0] + d[0] - mean0[0], theta[1] + d[1] - mean0[1], theta[2] + d[2] - mean0[2]];
+    let s = 0.5 * quad(precision, p, p);
+    for (let i = 0; i < batches.length; i++) {
+      const ji = ev2.j[i];
+      const f = ev2.f[i] + ji[0] * d[0] + ji[1] * d[1] + ji[2] * d[2] + 0.5 * quad(ev2.h![i], d, d);
+      const r = (batches[i].measuredProductGPerL - f) / batches[i].measurementSdGPerL;
+      s += 0.5 * r * r;
+    }
+    return s;
+  };
+  const phi0 = phi([0, 0, 0]);
+  const { x, w } = HERMITE;
+  const pts: number[][] = [];
+  const logW: number[] = [];
+  for (let a = 0; a < x.length; a++)
+    for (let b = 0; b < x.length; b++)
+      for (let c = 0; c < x.length; c++) {
+        const z = [x[a], x[b], x[c]];
+        const d = [0, 1, 2].map((i) => l[i][0] * z[0] + l[i][1] * z[1] + l[i][2] * z[2]);
+        pts.push(d);
+        logW.push(Math.log(w[a] * w[b] * w[c]) - (phi(d) - phi0) + 0.5 * (z[0] * z[0] + z[1] * z[1] + z[2] * z[2]));
+      }
+  const top = Math.max(...logW);
+  let total = 0;
+  const m = [0, 0, 0];
+  const c2 = [0, 1, 2].map(() => [0, 0, 0]);
+  pts.forEach((d, k) => {
+    const wk = Math.exp(logW[k] - top);
+    total += wk;
+    for (let i = 0; i < 3; i++) {
+      m[i] += wk * d[i];
+      for (let j = 0; j < 3; j++) c2[i][j] += wk * d[i] * d[j];
+    }
+  });
+  const dm = m.map((v) => v / total);
+  return {
+    mean: [theta[0] + dm[0], theta[1] + dm[1], theta[2] + dm[2]],
+    covariance: c2.map((row, i) => row.map((v, j) => v / total - dm[i] * dm[j])),
+  };
+}
+
 interface LooBatch {
   forecast: number;
   variance: number;
@@ -222,6 +309,9 @@ export function calibrate(input: CalibrationInput): CalibrationResult {
   const prior = model.evaluate(mean);
   const all = batches.map(() => true);
   const full = solve(model, batches, all, mean, precision, mean, prior);
+  const moments = batches.length ? posteriorMoments(batches, mean, precision, full, model.evaluate(full.theta, true)) : null;
+  const post = moments ? moments.mean : full.theta;
+  const postForecast = moments ? model.evaluate(post).f : full.ev.f;
 
   // Flag the worst batch first and judge the others without it, until no batch left in is beyond the limit.
   const active = [...all];
@@ -239,15 +329,15 @@ export function calibrate(input: CalibrationInput): CalibrationResult {
 
   return {
     posterior: {
-      kdRefPerH: Math.exp(full.theta[0]),
-      edKJPerMol: full.theta[1],
-      vmaxScale: Math.exp(full.theta[2]),
-      covariance: invert(full.hessian, 'posterior'),
+      kdRefPerH: Math.exp(post[0]),
+      edKJPerMol: post[1],
+      vmaxScale: Math.exp(post[2]),
+      covariance: moments ? moments.covariance : invert(full.hessian, 'posterior'),
     },
     batches: batches.map((_, i) => ({
       priorForecastGPerL: prior.f[i],
       priorSdGPerL: Math.sqrt(Math.max(quad(covariance, prior.j[i], prior.j[i]), 0)),
-      posteriorForecastGPerL: full.ev.f[i],
+      posteriorForecastGPerL: postForecast[i],
       leaveOneOutForecastGPerL: loo[i].forecast,
       leaveOneOutSdGPerL: Math.sqrt(loo[i].variance),
       standardisedResidual: loo[i].z,

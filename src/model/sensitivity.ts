@@ -53,10 +53,11 @@ export interface WorkSensitivity {
   dLnScale: number;
 }
 
-/** Product (g/L) and its gradient by [ln kdRefPerH, edKJPerMol (kJ/mol), ln vmaxScale]. */
+/** Product (g/L), its gradient and Hessian by [ln kdRefPerH, edKJPerMol (kJ/mol), ln vmaxScale]. */
 export interface ProductSensitivity {
   productGPerL: number;
-  gradient: [number, number, number];
+  gradient: number[];
+  hessian: number[][];
 }
 
 // Local bindings of hot imports (see batch.ts): tsx routes every imported call through a getter.
@@ -333,14 +334,146 @@ export function workSensitivity(cb: CompiledBatch, lnKd: number, edR: number, ln
 }
 const KK = new Float64Array(8);
 
-/** Product (g/L) and dP/dX from the integrated Michaelis-Menten law: dX/dP = 1 + Km/S, so dP/dX = S/(S + Km). */
-export function productAndSlope(x: number, substrate: Substrate): { productGPerL: number; slope: number } {
-  const p = productFromWork(x, substrate.s0GPerL, substrate.kmGPerL);
-  const s = Math.max(substrate.s0GPerL - p, 0);
-  return { productGPerL: p, slope: s / (s + substrate.kmGPerL) };
+/** Second derivatives of work (g/L) by ln kd and Ed/R (K); those with ln vmaxScale follow from the first (X is linear in it). */
+export interface WorkCurvature extends WorkSensitivity {
+  dLnKd2: number;
+  dLnKdEdR: number;
+  dEdR2: number;
 }
 
-/** Product (g/L) of a fresh batch and its gradient by [ln kdRefPerH, edKJPerMol, ln vmaxScale] at the enzyme's values (scale 1). */
+// J_m / h with J_m = integral over [0, h] of e^(-k t) (k t)^m dt, z = k h, i.e. gamma(m + 1, z) / z: series below 1.
+function jm(m: number, z: number): number {
+  if (z < 1) {
+    let sum = 0;
+    let term = 1;
+    for (let n = 0; n < 25; n++) {
+      sum += term / (n + m + 1);
+      term *= -z / (n + 1);
+    }
+    return sum * z ** m;
+  }
+  const e = Math.exp(-z);
+  return (m === 0 ? -Math.expm1(-z) : m === 1 ? 1 - e * (1 + z) : 2 - e * (2 + z * (2 + z))) / z;
+}
+
+/**
+ * Work with first and second derivatives, for the Hessian at the posterior mode (one pass, all rules generic).
+ * Second order: d2a/d ln kd2 = a (K^2 - K), d2a/d ln kd d(Ed/R) = a M (1 - K), d2a/d(Ed/R)2 = a (M^2 - N),
+ * N = integral of kd (1/T - 1/TRef)^2 dt.
+ */
+export function workCurvature(cb: CompiledBatch, lnKd: number, edR: number, lnScale: number): WorkCurvature {
+  const { kind, dur, first, u, lnV, lnKOff } = cb;
+  const kk = KK;
+  let x = 0;
+  let iK = 0;
+  let iM = 0;
+  let iKK = 0;
+  let iKM = 0;
+  let iMM = 0;
+  let iN = 0;
+  let a = 1;
+  let bigK = 0;
+  let bigM = 0;
+  let bigN = 0;
+  for (let s = 0; s < kind.length; s++) {
+    const n = kind[s];
+    const h = dur[s];
+    const o = first[s];
+    if (n === 1) {
+      const uo = u[o];
+      const k = Math.exp(lnKd + lnKOff[o] - edR * uo);
+      const z = k * h;
+      if (a > 0) {
+        const va = Math.exp(lnV[o] + lnScale) * a * h;
+        const j0 = jm(0, z);
+        const j1 = jm(1, z);
+        const j2 = jm(2, z);
+        x += va * j0;
+        iK += va * (bigK * j0 + j1);
+        iM += va * (bigM * j0 + uo * j1);
+        iKK += va * (bigK * bigK * j0 + 2 * bigK * j1 + j2);
+        iKM += va * (bigK * bigM * j0 + (bigK * uo + bigM) * j1 + uo * j2);
+        iMM += va * (bigM * bigM * j0 + 2 * bigM * uo * j1 + uo * uo * j2);
+        iN += va * (bigN * j0 + uo * uo * j1);
+        a *= Math.exp(-z);
+      }
+      bigK += z;
+      bigM += z * uo;
+      bigN += z * uo * uo;
+      continue;
+    }
+    const rule = ruleOf(n);
+    const w = rule.w;
+    const q = rule.q;
+    let kEnd = 0;
+    let mEnd = 0;
+    let nEnd = 0;
+    for (let j = 0; j < n; j++) {
+      const k = Math.exp(lnKd + lnKOff[o + j] - edR * u[o + j]);
+      kk[j] = k;
+      kEnd += w[j] * k;
+      mEnd += w[j] * k * u[o + j];
+      nEnd += w[j] * k * u[o + j] * u[o + j];
+    }
+    if (a > 0) {
+      const ah = a * h;
+      for (let i = 0; i < n; i++) {
+        let ki = 0;
+        let mi = 0;
+        let ni = 0;
+        const row = i * n;
+        for (let j = 0; j < n; j++) {
+          const c = q[row + j] * kk[j];
+          const uj = u[o + j];
+          ki += c;
+          mi += c * uj;
+          ni += c * uj * uj;
+        }
+        const e = ah * w[i] * Math.exp(lnV[o + i] + lnScale - h * ki);
+        const kI = bigK + h * ki;
+        const mI = bigM + h * mi;
+        x += e;
+        iK += e * kI;
+        iM += e * mI;
+        iKK += e * kI * kI;
+        iKM += e * kI * mI;
+        iMM += e * mI * mI;
+        iN += e * (bigN + h * ni);
+      }
+      a *= Math.exp(-h * kEnd);
+    }
+    bigK += h * kEnd;
+    bigM += h * mEnd;
+    bigN += h * nEnd;
+  }
+  return { x, dLnKd: -iK, dEdR: iM, dLnScale: x, dLnKd2: iKK - iK, dLnKdEdR: iM - iKM, dEdR2: iMM - iN };
+}
+
+/** Product (g/L), dP/dX and d2P/dX2 (L/g) from the integrated Michaelis-Menten law: dX/dP = 1 + Km/S, so dP/dX = S/(S + Km). */
+export function productAndSlope(x: number, substrate: Substrate): { productGPerL: number; slope: number; curvature: number } {
+  const km = substrate.kmGPerL;
+  const p = productFromWork(x, substrate.s0GPerL, km);
+  const s = Math.max(substrate.s0GPerL - p, 0);
+  return { productGPerL: p, slope: s / (s + km), curvature: (-km * s) / (s + km) ** 3 };
+}
+
+/** Gradient and Hessian of product by theta = [ln kdRefPerH, edKJPerMol, ln vmaxScale] from work's (kJ/mol units). */
+export function productDerivatives(w: WorkCurvature, substrate: Substrate): { productGPerL: number; gradient: number[]; hessian: number[][] } {
+  const { productGPerL, slope, curvature } = productAndSlope(w.x, substrate);
+  const dx = [w.dLnKd, w.dEdR * KJ_PER_R, w.x];
+  const ddx = [
+    [w.dLnKd2, w.dLnKdEdR * KJ_PER_R, w.dLnKd],
+    [w.dLnKdEdR * KJ_PER_R, w.dEdR2 * KJ_PER_R * KJ_PER_R, w.dEdR * KJ_PER_R],
+    [w.dLnKd, w.dEdR * KJ_PER_R, w.x],
+  ];
+  return {
+    productGPerL,
+    gradient: dx.map((d) => slope * d),
+    hessian: ddx.map((row, i) => row.map((v, k) => curvature * dx[i] * dx[k] + slope * v)),
+  };
+}
+
+/** Product (g/L) of a fresh batch, its gradient and Hessian by [ln kdRefPerH, edKJPerMol, ln vmaxScale] at the enzyme's values (scale 1). */
 export function productSensitivity(
   enzyme: EnzymeParams,
   substrate: Substrate,
@@ -349,7 +482,5 @@ export function productSensitivity(
 ): ProductSensitivity {
   const rates = compileRates(enzyme);
   const cb = compileBatch(rates, temperature, batchH, rates.lnKdRef, rates.edR);
-  const w = workSensitivity(cb, rates.lnKdRef, rates.edR, 0);
-  const { productGPerL, slope } = productAndSlope(w.x, substrate);
-  return { productGPerL, gradient: [slope * w.dLnKd, slope * w.dEdR * KJ_PER_R, slope * w.dLnScale] };
+  return productDerivatives(workCurvature(cb, rates.lnKdRef, rates.edR, 0), substrate);
 }

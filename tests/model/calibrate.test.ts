@@ -123,10 +123,11 @@ describe('forward-mode derivatives of product', () => {
 });
 
 describe('posterior against a dense grid (two parameters, Ed held by a prior sd of 0.001 kJ/mol)', () => {
-  const rng = createRng(8);
-  const cov = covarianceOf([0.1, 0.001, 0.3]);
-  const truth = at([prior[0] + 0.08, prior[1], -0.21]);
-  const batches = batchesFrom(rng, truth, 3);
+  // Few batches, wide prior: the posterior of ln kd is skewed (its Laplace mode lies 0.18 sd above the grid's mean).
+  const rng = createRng(5);
+  const cov = covarianceOf([0.3, 0.001, 0.3]);
+  const truth = at([prior[0] + 0.24, prior[1], -0.21]);
+  const batches = batchesFrom(rng, truth, 3, 0.03);
   const r = calibrate({ enzyme, substrate, covariance: cov, batches });
   const mode = [Math.log(r.posterior.kdRefPerH), Math.log(r.posterior.vmaxScale)];
   const sd = [Math.sqrt(r.posterior.covariance[0][0]), Math.sqrt(r.posterior.covariance[2][2])];
@@ -285,8 +286,10 @@ describe('leave-one-out residuals and outliers', () => {
     const g = s.gradient;
     let v = 0;
     for (let i = 0; i < 3; i++) for (let k = 0; k < 3; k++) v += g[i] * without.posterior.covariance[i][k] * g[k];
-    expect(r.batches[4].leaveOneOutForecastGPerL).toBeCloseTo(s.productGPerL, 4);
-    expect(r.batches[4].standardisedResidual).toBeCloseTo((bad.measuredProductGPerL - s.productGPerL) / Math.sqrt(bad.measurementSdGPerL ** 2 + v), 4);
+    // Leave-one-out works about the others' Laplace mode; the posterior reported is their mean: 5 % of the sd apart at most here.
+    expect(Math.abs(r.batches[4].leaveOneOutForecastGPerL - s.productGPerL)).toBeLessThan(0.05 * bad.measurementSdGPerL);
+    const z = (bad.measuredProductGPerL - s.productGPerL) / Math.sqrt(bad.measurementSdGPerL ** 2 + v);
+    expect(Math.abs(r.batches[4].standardisedResidual - z)).toBeLessThan(0.05);
   });
   it('the one-step leave-one-out of a good batch agrees with calibrating on the other batches', () => {
     const k = 2;
@@ -297,8 +300,8 @@ describe('leave-one-out residuals and outliers', () => {
     let v = 0;
     for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) v += s.gradient[i] * rest.posterior.covariance[i][j] * s.gradient[j];
     const z = (good[k].measuredProductGPerL - s.productGPerL) / Math.sqrt(good[k].measurementSdGPerL ** 2 + v);
-    expect(Math.abs(all.batches[k].standardisedResidual - z)).toBeLessThan(0.01);
-    expect(Math.abs(all.batches[k].leaveOneOutForecastGPerL - s.productGPerL)).toBeLessThan(0.01 * good[k].measurementSdGPerL);
+    expect(Math.abs(all.batches[k].standardisedResidual - z)).toBeLessThan(0.05);
+    expect(Math.abs(all.batches[k].leaveOneOutForecastGPerL - s.productGPerL)).toBeLessThan(0.05 * good[k].measurementSdGPerL);
   });
   it('forecasts are the model at the prior means and at the posterior values', () => {
     const post = at([Math.log(r.posterior.kdRefPerH), r.posterior.edKJPerMol, Math.log(r.posterior.vmaxScale)]);
