@@ -79,17 +79,21 @@ export function advanceRamp(r: Rates, c0: number, c1: number, dur: number, st: W
   const dT = c1 - c0;
   const tMin = Math.min(c0, c1) + KELVIN_OFFSET;
   const slopeLn = (slopeBoundK(r) * Math.abs(dT)) / (tMin * tMin * dur);
-  const two = st.b > 0;
+  let two = st.b > 0;
   let tau = 0;
   while (tau < dur) {
     const ta = t0 + (dT * tau) / dur;
-    let kc = Math.exp(lnKFast(r, 1 / ta));
-    if (two) kc = Math.max(kc, Math.exp(lnK2Fast(r, 1 / ta)));
+    // Pieces are cut by the decay inside them only while there is activity to decay: once it has underflowed,
+    // only the change of the rates matters (an enormous kd would otherwise ask for astronomically many pieces).
+    let kc = st.a > 0 ? Math.exp(lnKFast(r, 1 / ta)) : 0;
+    if (two && st.b > 0) kc = Math.max(kc, Math.exp(lnK2Fast(r, 1 / ta)));
     const bound = Math.max(slopeLn, kc * E_DELTA);
     let h = dur - tau;
     if (bound * h > DELTA) {
       h = DELTA / bound;
-      if (dur - tau - h < 1e-9 * dur) h = dur - tau;
+      // A piece below the rounding of tau cannot advance it: the activity then dies within a few ulps, and
+      // whatever work is left there is far below rounding of the total.
+      if (dur - tau - h < 1e-9 * dur || tau + h === tau) h = dur - tau;
     }
     const last = tau + h >= dur;
     const tb = last ? t0 + dT : t0 + (dT * (tau + h)) / dur;
@@ -129,7 +133,15 @@ export function advanceRamp(r: Rates, c0: number, c1: number, dur: number, st: W
       }
       st.x += h * sum;
       st.a *= Math.exp(-kend);
-      if (two) st.b *= Math.exp(-kend2 * h);
+      // Activity below 1e-300 of the start is gone: flush it, as a denormal times e^-0.5 rounds back to itself.
+      if (st.a < 1e-300) st.a = 0;
+      if (two) {
+        st.b *= Math.exp(-kend2 * h);
+        if (st.b < 1e-300) {
+          st.b = 0;
+          two = false;
+        }
+      }
     }
     st.kint += kend;
     if (last) break;
