@@ -303,6 +303,10 @@ export function calibrate(input: CalibrationInput): CalibrationResult {
   const l = cholesky(covariance);
   if (!l || l.some((row, i) => !(row[i] > 0))) throw new ModelInputError('covariance', 'must be positive definite');
   if (!(enzyme.kdRefPerH > 0)) throw new ModelInputError('enzyme.kdRefPerH', 'must be > 0 for the calibrate command');
+  // The forward-mode pass covers one decaying fraction and the plain integrated Michaelis-Menten law.
+  if (enzyme.stableFraction !== undefined) throw new ModelInputError('enzyme.stableFraction', 'is not yet supported by the calibrate command');
+  for (const k of ['kiGPerL', 'ksiGPerL'] as const)
+    if (substrate[k] !== undefined) throw new ModelInputError(`substrate.${k}`, 'is not yet supported by the calibrate command');
   const precision = invert(covariance, 'prior');
   const mean: Vec3 = [Math.log(enzyme.kdRefPerH), enzyme.edKJPerMol, 0];
   const model = new Model(compileRates(enzyme), substrate, batches, mean);

@@ -452,7 +452,7 @@ export function workCurvature(cb: CompiledBatch, lnKd: number, edR: number, lnSc
 /** Product (g/L), dP/dX and d2P/dX2 (L/g) from the integrated Michaelis-Menten law: dX/dP = 1 + Km/S, so dP/dX = S/(S + Km). */
 export function productAndSlope(x: number, substrate: Substrate): { productGPerL: number; slope: number; curvature: number } {
   const km = substrate.kmGPerL;
-  const p = productFromWork(x, substrate.s0GPerL, km);
+  const p = productFromWork(x, substrate);
   const s = Math.max(substrate.s0GPerL - p, 0);
   return { productGPerL: p, slope: s / (s + km), curvature: (-km * s) / (s + km) ** 3 };
 }
