@@ -385,9 +385,11 @@ const MAX_RESIDUAL = 1.5;
 export function fitInactivation(
   tRefC: number,
   points: InactivationPoint[],
-  options: { errorModel?: ErrorModel } = {},
+  options: { errorModel?: ErrorModel; extendedModels?: boolean } = {},
 ): InactivationFit {
   const errorModel = options.errorModel ?? 'relative';
+  // false fits first order only: the caller's choice for very large files, where the extended models cost seconds.
+  const extended = options.extendedModels ?? true;
   if (!Number.isFinite(tRefC)) throw new ModelInputError('tRefC', 'must be a finite number');
   if (!Array.isArray(points) || points.length < 3) throw new ModelInputError('points', 'needs at least three points');
   const minResidual = errorModel === 'relative' ? 0 : -MAX_RESIDUAL;
@@ -447,14 +449,15 @@ export function fitInactivation(
   tryModel('first-order', [start]);
   const fo = raws.get('first-order');
   if (!fo || models[0].singular) throw new ModelInputError('points', 'gives a singular fit');
-  tryModel('first-order-a0', [[fo.th[0], fo.th[1], 0]]);
+  if (extended) tryModel('first-order-a0', [[fo.th[0], fo.th[1], 0]]);
   // Two fractions from the first-order fit: a faster labile part and a slower stable one, a few spreads.
   const [l0, e0] = fo.th;
-  tryModel('two-fraction', [
-    [l0 + 0.5, e0, l0 - 2.3, e0, -1.5],
-    [l0 + 1, e0, l0 - 4, e0, -2.5],
-    [l0 + 0.2, e0, l0 - 1, e0, 0],
-  ]);
+  if (extended)
+    tryModel('two-fraction', [
+      [l0 + 0.5, e0, l0 - 2.3, e0, -1.5],
+      [l0 + 1, e0, l0 - 4, e0, -2.5],
+      [l0 + 0.2, e0, l0 - 1, e0, 0],
+    ]);
   const tf = models.find((m) => m.name === 'two-fraction');
   if (tf && tf.stableFraction && tf.stableFraction.kdRefPerH > tf.kdRefPerH) {
     // The fractions came out the other way round: the labile one is the faster at tRefC.

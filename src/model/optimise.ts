@@ -343,7 +343,9 @@ export function optimizeProfile(
 
   const origin = startC ?? lo;
   const target = Math.max(span / 20000, Math.min(span / 1600, step / 8));
-  const h0 = step < span ? step / Math.max(1, Math.round(step / target)) : span / 1600;
+  // A step limit finer than the finest grid cell (span / 20000) cannot be put on the lattice without an unbounded
+  // grid: the grid stays at that cell, where the limit only allows holding a temperature (never below isothermal).
+  const h0 = step < span ? (step < target / 2 ? target : step / Math.max(1, Math.round(step / target))) : span / 1600;
   const base = latticePoints(origin, h0, lo, hi, 0.5 * (lo + hi), span);
   base.push(iso.setpointC);
   if (startC !== undefined) base.push(firstLo, firstHi);
