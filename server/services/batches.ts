@@ -74,7 +74,8 @@ import { findSiteVessel } from '../repositories/vessels';
 import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
 import { getPlan } from './plans';
-import { acceptedLot, toPlanningLot } from './recipes';
+import { planningLot } from './evidence';
+import { acceptedLot } from './recipes';
 
 // A batch may be registered after it started (the paperwork follows the vessel), but not a week late.
 const LATE_START_LIMIT_H = 7 * 24;
@@ -261,7 +262,7 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
   if (runningBatchOnVessel(db, u.siteId, vessel.id)) throw new HttpError(409, 'vessel_busy', `${vessel.name} already has a running batch`, { vesselId: 'This vessel already has a running batch' });
   const plan = recipe.releasedPlanId ? getPlan({ db, clock }, u, recipe.releasedPlanId) : null;
   const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
-  const program = batchProgram({ recipe, enzyme, lot: toPlanningLot(lot), vessel, plan });
+  const program = batchProgram({ recipe, enzyme, lot: planningLot(db, u.siteId, lot, recipe.id), vessel, plan });
   const temps = program.stages.map((s) => s.c);
   if (Math.min(...temps) < vessel.minC || Math.max(...temps) > vessel.maxC)
     throw new HttpError(400, 'plan_outside_vessel', `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`, { vesselId: 'The plan does not fit this vessel' });
