@@ -74,6 +74,7 @@ import { findSiteVessel } from '../repositories/vessels';
 import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
 import { getPlan } from './plans';
+import { recalibrate } from './calibrations';
 import { planningLot } from './evidence';
 import { acceptedLot } from './recipes';
 
@@ -299,11 +300,14 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
     measuredProductGPerL: input.measuredProductGPerL ?? null,
     forecastAtCloseGPerL: forecast,
   };
-  return writeTx(db, (t) => {
+  const closed = writeTx(db, (t) => {
     updateBatch(t, b.id, patch);
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.close', entity: 'batch', entityId: b.id, oldValue: { state: 'running' }, newValue: { ...patch, closedBy: u.email }, at: now });
     return toBatch(findSiteBatch(t, u.siteId, b.id)!, b.startedBy === u.id);
   });
+  // A measured product makes the batch evidence: a new calibration is proposed (used only once an engineer accepts it).
+  if (patch.measuredProductGPerL !== null) recalibrate(db, u, b.recipeId, b.lotId, now);
+  return closed;
 }
 
 // Readings -----------------------------------------------------------------------------------------------

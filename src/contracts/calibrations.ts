@@ -113,6 +113,7 @@ export type CalibrationAccept = z.infer<typeof CalibrationAccept>;
 
 /** The engineer leaves a batch out of calibration (or takes it back in), always with a reason. */
 export const CalibrationExclusion = z.object({
+  batchId: z.number().int().positive(),
   isExcluded: z.boolean(),
   reason: z.string().trim().min(3, 'Say why').max(500),
 });
