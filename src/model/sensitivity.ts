@@ -310,7 +310,7 @@ const KK = new Float64Array(8);
 
 /** Product (g/L) and dP/dX from the integrated Michaelis-Menten law: dX/dP = 1 + Km/S, so dP/dX = S/(S + Km). */
 export function productAndSlope(x: number, substrate: Substrate): { productGPerL: number; slope: number } {
-  const p = productFromWork(x, substrate.s0GPerL, substrate.kmGPerL);
+  const p = productFromWork(x, substrate);
   const s = Math.max(substrate.s0GPerL - p, 0);
   return { productGPerL: p, slope: s / (s + substrate.kmGPerL) };
 }

@@ -13,7 +13,7 @@ import {
 
 /** Input of the calibrate command: prior (enzyme means, 3x3 covariance) and closed batches with measured product (g/L). */
 export function validateCalibrateInput(v: unknown): CalibrationInput {
-  const o = inputObject(v, 'input');
+  const o = inputObject(v, 'input', ['enzyme', 'substrate', 'covariance', 'batches']);
   const enzyme = validateEnzyme(o.enzyme);
   if (!(enzyme.kdRefPerH > 0)) throw new ModelInputError('enzyme.kdRefPerH', 'must be > 0 for the calibrate command');
   const substrate = validateSubstrate(o.substrate);
@@ -21,7 +21,7 @@ export function validateCalibrateInput(v: unknown): CalibrationInput {
   if (covariance.length !== 3) throw new ModelInputError('covariance', 'must be 3x3 (ln kdRefPerH, edKJPerMol, ln vmaxScale)');
   const batches = inputArray(o.batches, 'batches', 0).map((item, i): CalibrationBatch => {
     const field = `batches[${i}]`;
-    const b = inputObject(item, field);
+    const b = inputObject(item, field, ['batchH', 'temperature', 'measuredProductGPerL', 'measurementSdGPerL']);
     return {
       batchH: validateBatchH(b.batchH, `${field}.batchH`),
       temperature: validateTemperature(b.temperature, `${field}.temperature`),
