@@ -17,6 +17,7 @@ import { requireSameOrigin } from './middleware/csrf';
 import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
+import { calibrationsRouter } from './routes/calibrations';
 import { batchesRouter } from './routes/batches';
 import { deviationsRouter } from './routes/deviations';
 import { billingRouter, billingWebhook } from './routes/billing';
@@ -120,6 +121,7 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/recipes', router: recipesRouter(services) },
     { prefix: '/plans', router: plansRouter(services) },
     { prefix: '/batches', router: batchesRouter(services) },
+    { prefix: '/calibrations', router: calibrationsRouter(services) },
     { prefix: '/deviations', router: deviationsRouter(services) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
     {

@@ -7,3 +7,4 @@ export * from './billing';
 export * from './quality';
 export * from './change-control';
 export * from './batches';
+export * from './calibration';

@@ -74,7 +74,9 @@ import { findSiteVessel } from '../repositories/vessels';
 import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
 import { getPlan } from './plans';
-import { acceptedLot, toPlanningLot } from './recipes';
+import { recalibrate } from './calibrations';
+import { planningLot } from './evidence';
+import { acceptedLot } from './recipes';
 
 // A batch may be registered after it started (the paperwork follows the vessel), but not a week late.
 const LATE_START_LIMIT_H = 7 * 24;
@@ -261,7 +263,7 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
   if (runningBatchOnVessel(db, u.siteId, vessel.id)) throw new HttpError(409, 'vessel_busy', `${vessel.name} already has a running batch`, { vesselId: 'This vessel already has a running batch' });
   const plan = recipe.releasedPlanId ? getPlan({ db, clock }, u, recipe.releasedPlanId) : null;
   const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
-  const program = batchProgram({ recipe, enzyme, lot: toPlanningLot(lot), vessel, plan });
+  const program = batchProgram({ recipe, enzyme, lot: planningLot(db, u.siteId, lot, recipe.id), vessel, plan });
   const temps = program.stages.map((s) => s.c);
   if (Math.min(...temps) < vessel.minC || Math.max(...temps) > vessel.maxC)
     throw new HttpError(400, 'plan_outside_vessel', `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`, { vesselId: 'The plan does not fit this vessel' });
@@ -298,11 +300,14 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
     measuredProductGPerL: input.measuredProductGPerL ?? null,
     forecastAtCloseGPerL: forecast,
   };
-  return writeTx(db, (t) => {
+  const closed = writeTx(db, (t) => {
     updateBatch(t, b.id, patch);
     appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.close', entity: 'batch', entityId: b.id, oldValue: { state: 'running' }, newValue: { ...patch, closedBy: u.email }, at: now });
     return toBatch(findSiteBatch(t, u.siteId, b.id)!, b.startedBy === u.id);
   });
+  // A measured product makes the batch evidence: a new calibration is proposed (used only once an engineer accepts it).
+  if (patch.measuredProductGPerL !== null) recalibrate(db, u, b.recipeId, b.lotId, now);
+  return closed;
 }
 
 // Readings -----------------------------------------------------------------------------------------------

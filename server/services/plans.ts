@@ -11,7 +11,8 @@ import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
 import { findSiteVessel } from '../repositories/vessels';
 import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
-import { acceptedLot, toPlanningLot } from './recipes';
+import { olderEvidence, planningLot } from './evidence';
+import { acceptedLot } from './recipes';
 
 /** JSON with object keys sorted at every level, so the same content always gives the same text and hash. */
 export function canonicalJson(v: unknown): string {
@@ -28,7 +29,7 @@ export function canonicalJson(v: unknown): string {
 export const planContentHash = (p: Pick<Plan, 'inputs' | 'outputs' | 'modelVersion'>) =>
   crypto.createHash('sha256').update(canonicalJson({ inputs: p.inputs, outputs: p.outputs, modelVersion: p.modelVersion })).digest('hex');
 
-const toPlan = ({ plan: p, recipeName, lotCode, vesselName, createdBy }: PlanJoined): Plan => ({
+const toPlan = (db: Db, { plan: p, recipeName, lotCode, vesselName, createdBy }: PlanJoined): Plan => ({
   id: p.id,
   recipeId: p.recipeId,
   recipeName,
@@ -40,14 +41,15 @@ const toPlan = ({ plan: p, recipeName, lotCode, vesselName, createdBy }: PlanJoi
   contentHash: p.contentHash,
   inputs: p.inputs,
   outputs: p.outputs,
+  olderEvidence: olderEvidence(db, p.siteId, p),
 });
 
-export const listPlans = ({ db }: Services, u: SessionUser, q: PlanQuery): Plan[] => listSitePlans(db, u.siteId, q.recipeId).map(toPlan);
+export const listPlans = ({ db }: Services, u: SessionUser, q: PlanQuery): Plan[] => listSitePlans(db, u.siteId, q.recipeId).map((j) => toPlan(db, j));
 
 export function getPlan({ db }: Services, u: SessionUser, id: number): Plan {
   const found = findSitePlan(db, u.siteId, id);
   if (!found) throw notFound('Plan');
-  return toPlan(found);
+  return toPlan(db, found);
 }
 
 /** Recomputes the plan from stored records and the engineer's choices only, then stores it once. */
@@ -60,7 +62,7 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
     throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
   const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
   const vessel = findSiteVessel(db, u.siteId, recipe.vesselId)!;
-  const outputs = computePlanOutputs(planContext(recipe, enzyme, toPlanningLot(lot), vessel), inputs);
+  const outputs = computePlanOutputs(planContext(recipe, enzyme, planningLot(db, u.siteId, lot, recipe.id), vessel), inputs);
   const now = clock.now().toISOString();
   const contentHash = planContentHash({ inputs, outputs, modelVersion: MODEL_VERSION });
   return writeTx(db, (tx) => {
@@ -91,10 +93,10 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
       action: 'plan.create',
       entity: 'plan',
       entityId: row.id,
-      newValue: { recipeId: recipe.id, lotId: lot.id, strategy: outputs.strategy, setpointC: outputs.setpointC, contentHash, modelVersion: MODEL_VERSION },
+      newValue: { recipeId: recipe.id, lotId: lot.id, strategy: outputs.strategy, setpointC: outputs.setpointC, contentHash, modelVersion: MODEL_VERSION, evidence: outputs.kinetics.evidence?.text },
       at: clock.now(),
     });
-    return toPlan(findSitePlan(tx, u.siteId, row.id)!);
+    return toPlan(tx, findSitePlan(tx, u.siteId, row.id)!);
   });
 }
 
@@ -124,6 +126,8 @@ export function planCsv(s: Services, u: SessionUser, id: number): { filename: st
     ['current_setpoint_c', o.current.setpointC, 'degC'],
     ['current_product', o.current.productGPerL, 'g/L'],
     ['gain_over_current', o.gainOverCurrent, 'fraction'],
+    ['kinetics_evidence', o.kinetics.evidence?.text ?? o.kinetics.stabilitySource, ''],
+    ['older_evidence', p.olderEvidence ?? '', ''],
     ['constraints_met', o.constraintsMet, ''],
     ['pressure_caution', o.cautions.crossesBoiling, `max ${o.cautions.maxC} degC`],
     ['below_hygienic_minimum', o.cautions.belowHygienicMin, `${o.cautions.hygienicMinC} degC`],

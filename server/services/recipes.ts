@@ -1,18 +1,17 @@
 import { writeTx, type Db } from '../../db/client';
-import type { PlanningLot, Recipe, RecipeDetail, RecipeInput, RecipePatch } from '../../src/contracts/recipes';
+import type { Recipe, RecipeDetail, RecipeInput, RecipePatch } from '../../src/contracts/recipes';
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError, notFound } from '../http-error';
 import { findSiteEnzyme, findSiteLot, findSiteRecipe, findSiteRecipeByName, insertRecipe, listAcceptedLots, listSiteRecipes, updateRecipe } from '../repositories/recipes';
 import { findSiteVessel, type VesselRow } from '../repositories/vessels';
 import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
+import { planningLot } from './evidence';
 
 type Joined = NonNullable<ReturnType<typeof findSiteRecipe>>;
 type LotRow = NonNullable<ReturnType<typeof findSiteLot>>;
 
 const toRecipe = ({ recipe: { siteId: _s, createdAt: _c, ...r }, enzymeName, lotCode, vesselName }: Joined): Recipe => ({ ...r, enzymeName, lotCode, vesselName });
-
-export const toPlanningLot = (l: LotRow): PlanningLot => ({ id: l.id, lotCode: l.lotCode, certKdPerH: l.certKdPerH, certTempC: l.certTempC, expiresOn: l.expiresOn });
 
 export const listRecipes = ({ db }: Services, u: SessionUser): Recipe[] => listSiteRecipes(db, u.siteId).map(toRecipe);
 
@@ -47,7 +46,7 @@ export function getRecipeDetail({ db }: Services, u: SessionUser, id: number): R
   const vessel = findSiteVessel(db, u.siteId, found.recipe.vesselId)!;
   const { siteId: _s, createdAt: _c, ...enzyme } = findSiteEnzyme(db, u.siteId, found.recipe.enzymeId)!;
   const { siteId: _vs, createdAt: _vc, ...vesselOut } = vessel;
-  return { recipe: toRecipe(found), vessel: vesselOut, enzyme, lots: listAcceptedLots(db, u.siteId, found.recipe.enzymeId).map(toPlanningLot) };
+  return { recipe: toRecipe(found), vessel: vesselOut, enzyme, lots: listAcceptedLots(db, u.siteId, found.recipe.enzymeId).map((l) => planningLot(db, u.siteId, l, id)) };
 }
 
 export function createRecipe({ db, clock }: Services, u: SessionUser, input: RecipeInput): Recipe {

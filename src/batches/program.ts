@@ -2,14 +2,14 @@ import { simulate, stagesWithRamps, type Stage } from '../model';
 import type { BatchProgram } from '../contracts/batches';
 import type { Enzyme } from '../contracts/enzymes';
 import type { Plan } from '../contracts/plans';
-import type { PlanningLot, Recipe } from '../contracts/recipes';
+import type { Recipe } from '../contracts/recipes';
 import type { Vessel } from '../contracts/vessels';
-import { enzymeFor, planContext } from '../planning';
+import { enzymeFor, planContext, type EvidenceLot } from '../planning';
 
 type ProgramInputs = {
   recipe: Pick<Recipe, 'batchH' | 'currentSetpointC' | 'doseGPerL' | 'vmaxRefGPerLH' | 'edKJPerMol' | 'fillC' | 's0GPerL' | 'kmGPerL'>;
   enzyme: Pick<Enzyme, 'tRefC' | 'eaKJPerMol'>;
-  lot: Pick<PlanningLot, 'certKdPerH' | 'certTempC'>;
+  lot: EvidenceLot;
   vessel: Pick<Vessel, 'minC' | 'maxC' | 'maxHeatCPerH' | 'maxCoolCPerH' | 'hygienicMinC' | 'workingVolumeL'>;
   /** The recipe's released plan, if change control has released one. */
   plan: Pick<Plan, 'id' | 'inputs' | 'outputs'> | null;
@@ -42,6 +42,7 @@ export function batchProgram({ recipe, enzyme, lot, vessel, plan }: ProgramInput
     plannedProductGPerL: simulate(enzymeParams, substrate, batchH, { log }).productGPerL,
     p10GPerL: plan?.outputs.uncertainty?.p10 ?? null,
     vessel: { minC: vessel.minC, maxC: vessel.maxC, hygienicMinC: vessel.hygienicMinC },
+    evidence: ctx.evidence,
   };
 }
 

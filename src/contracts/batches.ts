@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { KineticsEvidence } from './plans';
 import { BATCH_READERS, BATCH_STARTERS, CLOCK_SKEW_MIN, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, READING_LOGGERS, READING_MAX_C, READING_MIN_C } from './rules';
 
 export { BATCH_READERS, BATCH_STARTERS, CLOCK_SKEW_MIN, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, READING_LOGGERS, READING_MAX_C, READING_MIN_C };
@@ -42,6 +43,8 @@ export const BatchProgram = z.object({
   /** The plan's P10 product when its Monte Carlo was run; null otherwise. */
   p10GPerL: z.number().nullable(),
   vessel: z.object({ minC: z.number(), maxC: z.number(), hygienicMinC: z.number() }),
+  /** Where the frozen kinetics came from; absent on batches started before evidence was recorded. */
+  evidence: KineticsEvidence.optional(),
 });
 export type BatchProgram = z.infer<typeof BatchProgram>;
 

@@ -40,6 +40,22 @@ export const PlanInputs = z.object({
 });
 export type PlanInputs = z.infer<typeof PlanInputs>;
 
+export const STABILITY_SOURCES = ['certificate', 'fit', 'calibration'] as const;
+
+/** Where a computation's kinetics came from, in words and by record, so a stored result can say when it is older. */
+export const KineticsEvidence = z.object({
+  source: z.enum(STABILITY_SOURCES),
+  /** "assay fit of 2026-11-28, 16 points, t½ 25.4 h (95 % 24.6–26.3 h) at 60 °C" or "certificate only, default spread". */
+  text: z.string(),
+  fitAssayId: z.number().int().nullable(),
+  calibrationId: z.number().int().nullable(),
+  /** Multiplies the recipe's Vmax: 1 until a calibration is accepted. */
+  vmaxScale: z.number(),
+  /** The certificate's half-life outside the fit's 95 % interval, in words; null when they agree or there is no fit. */
+  disagreement: z.string().nullable(),
+});
+export type KineticsEvidence = z.infer<typeof KineticsEvidence>;
+
 export const PlanStage = z.object({ hours: z.number(), c: z.number() });
 export type PlanStage = z.infer<typeof PlanStage>;
 
@@ -78,7 +94,7 @@ export const PlanOutputs = z.object({
     .object({
       draws: z.number().int(),
       seed: z.number().int(),
-      parameterSpread: z.enum(['fit', 'default']),
+      parameterSpread: z.enum(['fit', 'default', 'calibration']),
       p10: z.number(),
       p50: z.number(),
       p90: z.number(),
@@ -92,7 +108,9 @@ export const PlanOutputs = z.object({
     eaKJPerMol: z.number(),
     kdRefPerH: z.number(),
     edKJPerMol: z.number(),
-    stabilitySource: z.enum(['certificate', 'fit']),
+    stabilitySource: z.enum(STABILITY_SOURCES),
+    /** Absent on plans stored before evidence was recorded. */
+    evidence: KineticsEvidence.optional(),
   }),
 });
 export type PlanOutputs = z.infer<typeof PlanOutputs>;
@@ -110,6 +128,8 @@ export const Plan = z.object({
   contentHash: z.string(),
   inputs: PlanInputs,
   outputs: PlanOutputs,
+  /** Set when the lot has a newer assay fit or calibration than the plan was computed from; never recomputed silently. */
+  olderEvidence: z.string().nullable(),
 });
 export type Plan = z.infer<typeof Plan>;
 

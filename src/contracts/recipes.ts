@@ -1,4 +1,6 @@
 import { z } from 'zod';
+import { AssayFit } from './assays';
+import { AcceptedCalibration } from './calibrations';
 import { Enzyme } from './enzymes';
 import { Vessel } from './vessels';
 
@@ -56,13 +58,22 @@ export type Recipe = z.infer<typeof Recipe>;
 export const RecipeList = z.object({ recipes: z.array(Recipe) });
 export type RecipeList = z.infer<typeof RecipeList>;
 
-/** An accepted lot as the planner uses it: the certificate's first-order kd at its temperature. */
+/** The lot's newest assay fit, as planning uses it. */
+export const LotFit = z.object({ assayId: z.number().int(), createdAt: z.string(), fit: AssayFit });
+export type LotFit = z.infer<typeof LotFit>;
+
+/**
+ * An accepted lot as the planner uses it: the certificate's first-order kd at its temperature, the lot's assay
+ * fit when it has one, and the calibration the engineer accepted for this recipe and lot.
+ */
 export const PlanningLot = z.object({
   id: z.number().int(),
   lotCode: z.string(),
   certKdPerH: z.number(),
   certTempC: z.number(),
   expiresOn: z.string(),
+  fit: LotFit.nullable(),
+  calibration: AcceptedCalibration.nullable(),
 });
 export type PlanningLot = z.infer<typeof PlanningLot>;
 

@@ -33,3 +33,7 @@ export const MIN_PASSWORD_LENGTH = 12;
 
 /** The page carries the session it was served for in a JSON block with this id, so the app starts without asking. */
 export const PAGE_SESSION_ID = 'yieldpoint-session';
+
+/** Who sees a recipe and lot's calibration and model quality, and who decides on it (accepts, leaves batches out). */
+export const CALIBRATION_READERS = ['engineer', 'supervisor', 'admin'] as const satisfies readonly RoleName[];
+export const CALIBRATION_DECIDERS = ['engineer'] as const satisfies readonly RoleName[];

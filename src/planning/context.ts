@@ -1,7 +1,9 @@
-import { arrheniusFactor, type EnzymeParams } from '../model';
+import type { EnzymeParams } from '../model';
 import type { Enzyme } from '../contracts/enzymes';
-import type { PlanningLot, Recipe } from '../contracts/recipes';
+import type { KineticsEvidence } from '../contracts/plans';
+import type { Recipe } from '../contracts/recipes';
 import type { Vessel } from '../contracts/vessels';
+import { lotKinetics, type EvidenceLot } from './evidence';
 
 /** Everything a plan is computed from besides the engineer's choices; built from stored records only. */
 export type PlanContext = {
@@ -10,9 +12,13 @@ export type PlanContext = {
   /** First-order inactivation rate at tRefC, 1/h. */
   kdRefPerH: number;
   edKJPerMol: number;
-  stabilitySource: 'certificate' | 'fit';
-  /** Covariance of [ln kdRef, Ed] from an assay fit; null until the lot has one. */
-  covariance: number[][] | null;
+  stabilitySource: KineticsEvidence['source'];
+  /** Covariance of [ln kdRef, Ed (kJ/mol)]: the fit's or calibration's, else the stated default spread. */
+  covariance: number[][];
+  /** Multiplies the recipe's Vmax (an accepted calibration's catalytic scale; 1 otherwise) and its ln sd. */
+  vmaxScale: number;
+  lnVmaxScaleSd: number;
+  evidence: KineticsEvidence;
   /** The recipe's dose and the Vmax measured at it: Vmax scales in proportion to the dose. */
   recipeDoseGPerL: number;
   recipeVmaxRefGPerLH: number;
@@ -20,27 +26,23 @@ export type PlanContext = {
   fillC: number;
 };
 
-/**
- * The lot's kd at the enzyme's reference temperature. The certificate states kd at its own temperature;
- * moving it to tRefC needs an inactivation activation energy, the recipe's Ed until an assay fit exists.
- */
-export function kdAtReference(lot: Pick<PlanningLot, 'certKdPerH' | 'certTempC'>, tRefC: number, edKJPerMol: number): number {
-  return lot.certKdPerH * arrheniusFactor(edKJPerMol, tRefC, lot.certTempC);
-}
-
 export function planContext(
   recipe: Pick<Recipe, 'doseGPerL' | 'vmaxRefGPerLH' | 'edKJPerMol' | 'fillC'>,
   enzyme: Pick<Enzyme, 'tRefC' | 'eaKJPerMol'>,
-  lot: Pick<PlanningLot, 'certKdPerH' | 'certTempC'>,
+  lot: EvidenceLot,
   vessel: PlanContext['vessel'],
 ): PlanContext {
+  const k = lotKinetics(recipe, enzyme.tRefC, lot);
   return {
     tRefC: enzyme.tRefC,
     eaKJPerMol: enzyme.eaKJPerMol,
-    kdRefPerH: kdAtReference(lot, enzyme.tRefC, recipe.edKJPerMol),
-    edKJPerMol: recipe.edKJPerMol,
-    stabilitySource: 'certificate',
-    covariance: null,
+    kdRefPerH: k.kdRefPerH,
+    edKJPerMol: k.edKJPerMol,
+    stabilitySource: k.evidence.source,
+    covariance: k.covariance,
+    vmaxScale: k.vmaxScale,
+    lnVmaxScaleSd: k.lnVmaxScaleSd,
+    evidence: k.evidence,
     recipeDoseGPerL: recipe.doseGPerL,
     recipeVmaxRefGPerLH: recipe.vmaxRefGPerLH,
     vessel: {
@@ -59,27 +61,14 @@ export function planContext(
 export function enzymeFor(ctx: PlanContext, doseGPerL: number): EnzymeParams {
   return {
     tRefC: ctx.tRefC,
-    vmaxRef: (ctx.recipeVmaxRefGPerLH * doseGPerL) / ctx.recipeDoseGPerL,
+    vmaxRef: (ctx.recipeVmaxRefGPerLH * doseGPerL * ctx.vmaxScale) / ctx.recipeDoseGPerL,
     eaKJPerMol: ctx.eaKJPerMol,
     kdRefPerH: ctx.kdRefPerH,
     edKJPerMol: ctx.edKJPerMol,
   };
 }
 
-// Stated default when the lot has no fit: kdRef +-20 % (1 sd, log-normal) and Ed +-10 % (1 sd), independent.
-// Common practice for certificate-only stability, no source; shown to the user beside the result.
-export const DEFAULT_LN_KD_SD = 0.2;
-export const DEFAULT_ED_REL_SD = 0.1;
-
-/** Covariance of [ln kdRef, Ed (kJ/mol)] for the Monte Carlo: the fit's, else the stated default. */
-export function parameterCovariance(ctx: PlanContext): { covariance: number[][]; source: 'fit' | 'default' } {
-  if (ctx.covariance) return { covariance: ctx.covariance, source: 'fit' };
-  const edSd = DEFAULT_ED_REL_SD * ctx.edKJPerMol;
-  return {
-    covariance: [
-      [DEFAULT_LN_KD_SD ** 2, 0],
-      [0, edSd * edSd],
-    ],
-    source: 'default',
-  };
+/** Covariance of [ln kdRef, Ed (kJ/mol)] for the Monte Carlo and where its spread came from. */
+export function parameterCovariance(ctx: PlanContext): { covariance: number[][]; source: 'fit' | 'default' | 'calibration' } {
+  return { covariance: ctx.covariance, source: ctx.stabilitySource === 'certificate' ? 'default' : ctx.stabilitySource };
 }

@@ -108,6 +108,7 @@ export function evaluatePlan(ctx: PlanContext, inputs: PlanInputs): PlanEvaluati
         kdRefPerH: enzyme.kdRefPerH,
         edKJPerMol: enzyme.edKJPerMol,
         stabilitySource: ctx.stabilitySource,
+        evidence: ctx.evidence,
       },
     },
     enzyme,

@@ -1,6 +1,7 @@
 // Planning: the recipe-level use of src/model, shared by the planner screen and the server's recompute.
 // Imports only src/model and src/contracts, so both sides run the same code on the same inputs.
 export * from './context';
+export * from './evidence';
 export * from './evaluate';
 export * from './uncertainty';
 export * from './series';

@@ -20,7 +20,9 @@ export function uncertaintyInput(ctx: PlanContext, ev: PlanEvaluation, settings:
     boundsC: ev.boundsC,
     covariance: parameterCovariance(ctx).covariance,
     sensorBiasSdC: settings.sensorBiasSdC,
-    doseRelSd: settings.doseRelSd,
+    // A calibration's catalytic scale is uncertain as a dose is: both scale Vmax log-normally, so their ln sds add in
+    // quadrature (its correlation with kd and Ed is left out: an approximation, the posterior's marginal sds kept exactly).
+    doseRelSd: Math.hypot(settings.doseRelSd, ctx.lnVmaxScaleSd),
     draws: settings.draws,
     seed: settings.seed,
     candidatesC: candidateSetpoints(ev.boundsC, ev.outputs.setpointC),

@@ -5,7 +5,7 @@ import { migrateDb, openDb } from '../../db/client';
 import { seedDemo } from '../../db/seed';
 import { findSiteEnzyme, findSiteLot, listSiteRecipes } from '../../server/repositories/recipes';
 import { findSiteVessel } from '../../server/repositories/vessels';
-import { toPlanningLot } from '../../server/services/recipes';
+import { planningLot } from '../../server/services/evidence';
 import { evaluatePlan, inputsFromRecipe, planContext, planReasons, planSeries } from '../../src/planning';
 
 const db = openDb(':memory:');
@@ -13,7 +13,7 @@ migrateDb(db);
 const { siteId } = seedDemo(db, { bcryptCost: 4 });
 const N = 40;
 for (const { recipe } of listSiteRecipes(db, siteId)) {
-  const ctx = planContext(recipe, findSiteEnzyme(db, siteId, recipe.enzymeId)!, toPlanningLot(findSiteLot(db, siteId, recipe.lotId)!), findSiteVessel(db, siteId, recipe.vesselId)!);
+  const ctx = planContext(recipe, findSiteEnzyme(db, siteId, recipe.enzymeId)!, planningLot(db, siteId, findSiteLot(db, siteId, recipe.lotId)!, recipe.id), findSiteVessel(db, siteId, recipe.vesselId)!);
   const base = inputsFromRecipe(recipe);
   const times: number[] = [];
   for (let i = 0; i < N; i++) {

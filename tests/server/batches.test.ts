@@ -240,11 +240,11 @@ describe('deviations', () => {
     // In band, but the start-to-first-reading gap (3.3 h) is over the 30 min limit: a gap deviation.
     expect(onPlan.body.deviations.map((d: any) => d.kind)).toEqual(['gap']);
     const before = (await op.get(`/api/batches/${batch.id}`)).body;
-    const hot = await post(3.6, 45);
+    const hot = await post(3.6, 55);
     expect(hot.status).toBe(201);
     expect(hot.body.deviations).toHaveLength(1);
     const dev = hot.body.deviations[0];
-    expect(dev).toMatchObject({ kind: 'band', state: 'open', valueC: 45, readingId: hot.body.reading.id });
+    expect(dev).toMatchObject({ kind: 'band', state: 'open', valueC: 55, readingId: hot.body.reading.id });
     expect(dev.expectedC).toBeCloseTo(37, 9);
     expect(dev.corrective.setpointC).toBeGreaterThanOrEqual(8);
     expect(dev.corrective.setpointC).toBeLessThanOrEqual(60);

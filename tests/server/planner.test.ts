@@ -190,9 +190,10 @@ describe('plans', () => {
     expect(r.body.modelVersion).toBe(MODEL_VERSION);
     expect(o.predictedProductGPerL).not.toBe(9999);
     expect(r.body.inputs).not.toHaveProperty('outputs');
-    // Independent of the planning module: the seed's lot (half-life 26 h at 60 °C = tRef), Ea 55, Ed 300, Vmax 7.5 g/L/h,
+    // Independent of the planning module: the lot's assay fit (kd and Ed at tRef 60 °C), Ea 55, Vmax 7.5 g/L/h,
     // run with a heat-up from 45 °C at 12 °C/h, as stated in db/seed.ts.
-    const enzyme = { tRefC: 60, vmaxRef: 7.5, eaKJPerMol: 55, kdRefPerH: Math.LN2 / 26, edKJPerMol: 300 };
+    const fit = (await engineer.get(`/api/lots/${r.body.inputs.lotId}`)).body.assays.find((a: { fit: unknown }) => a.fit).fit;
+    const enzyme = { tRefC: 60, vmaxRef: 7.5, eaKJPerMol: 55, kdRefPerH: fit.kdRefPerH, edKJPerMol: fit.edKJPerMol };
     const log = stagesWithRamps([{ hours: 48, c: o.setpointC }], 45, 12, 8);
     expect(o.predictedProductGPerL).toBeCloseTo(simulate(enzyme, { s0GPerL: 300, kmGPerL: 2 }, 48, { log }).productGPerL, 9);
     // The recommendation is the best setpoint held for the batch: half a degree either way makes less.
@@ -217,7 +218,7 @@ describe('plans', () => {
     const ua = a.body.outputs.uncertainty;
     expect(ua.p10).toBeLessThan(ua.p50);
     expect(ua.p50).toBeLessThan(ua.p90);
-    expect(ua.parameterSpread).toBe('default');
+    expect(ua.parameterSpread).toBe('fit');
     expect(b.body.outputs.uncertainty).toEqual(ua);
     expect(b.body.contentHash).toBe(a.body.contentHash);
     const row = t.db.select().from(plans).where(eq(plans.id, a.body.id)).get()!;

@@ -1,0 +1,24 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationView } from '../../src/contracts/calibrations';
+import { CALIBRATION_DECIDERS, CALIBRATION_READERS } from '../../src/contracts/rules';
+import { allow, currentUser } from '../middleware/auth';
+import { acceptCalibration, getCalibrationView, setExclusion } from '../services/calibrations';
+import type { Services } from './services';
+
+const IdParam = z.object({ id: z.coerce.number().int().positive() });
+
+export function calibrationsRouter(s: Services): Router {
+  const router = Router();
+  router.get('/', allow(...CALIBRATION_READERS), (req, res) => {
+    res.json(CalibrationView.parse(getCalibrationView(s, currentUser(req), CalibrationQuery.parse(req.query))));
+  });
+  router.post('/:id/accept', allow(...CALIBRATION_DECIDERS), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    res.json(Calibration.parse(acceptCalibration(s, currentUser(req), id, CalibrationAccept.parse(req.body ?? {}))));
+  });
+  router.post('/exclusions', allow(...CALIBRATION_DECIDERS), (req, res) => {
+    res.json(CalibrationView.parse(setExclusion(s, currentUser(req), CalibrationExclusion.parse(req.body))));
+  });
+  return router;
+}
