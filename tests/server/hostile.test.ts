@@ -85,3 +85,44 @@ describe(`hostile input (seed ${SEED})`, () => {
     }
   });
 });
+
+describe('refused calls cannot grow the audit trail without bound', () => {
+  const audit = () => t.db.$client.prepare('select action, actor, entity_id as entityId, new_value as newValue from audit_events order by id').all() as { action: string; actor: string; entityId: string; newValue: string }[];
+  const bytes = () => (t.db.$client.pragma('page_count', { simple: true }) as number) * (t.db.$client.pragma('page_size', { simple: true }) as number);
+
+  it('one address: the first denial of a minute is an event, the rest one counted event, with the path cut', async () => {
+    t.clock.advanceMinutes(1);
+    const before = audit().length;
+    const grownFrom = bytes();
+    const long = `/api/lots/${'a'.repeat(8000)}`;
+    const anonymous = t.client();
+    for (let i = 0; i < 300; i++) expect((await anonymous.get(long)).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    t.clock.advanceMinutes(1);
+    expect((await anonymous.get('/api/users')).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    const added = audit().slice(before);
+    expect(added.map((e) => e.action)).toEqual(['access.denied', 'access.denied.repeated', 'access.denied']);
+    expect(added[0]!.entityId.length).toBeLessThan(250);
+    expect(added[0]!.entityId).toMatch(/… \(8014 characters\)$/);
+    expect(JSON.parse(added[1]!.newValue)).toMatchObject({ count: 299, statuses: { 401: 299 } });
+    // 300 full rows of 8 KB each would be 2.4 MB.
+    expect(bytes() - grownFrom).toBeLessThan(64 * 1024);
+  });
+
+  it('many spoofed addresses share one record beyond the per-minute limit of callers', async () => {
+    t.clock.advanceMinutes(1);
+    const before = audit().length;
+    for (let i = 0; i < 400; i++) expect((await t.client().get('/api/lots', { 'x-forwarded-for': `10.0.${i >> 8}.${i & 255}` })).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    t.clock.advanceMinutes(1);
+    expect((await t.client().get('/api/lots')).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    const added = audit().slice(before);
+    // 100 callers one by one, one shared record for the other 300 (its first event and its count), the next minute's.
+    expect(added.length).toBe(100 + 2 + 1);
+    const shared = added.find((e) => e.action === 'access.denied.repeated')!;
+    expect(shared.actor).toBe('more than 100 callers this minute');
+    expect(JSON.parse(shared.newValue).count).toBe(299);
+  });
+});
