@@ -33,3 +33,10 @@ export const MIN_PASSWORD_LENGTH = 12;
 
 /** The page carries the session it was served for in a JSON block with this id, so the app starts without asking. */
 export const PAGE_SESSION_ID = 'yieldpoint-session';
+
+// Upper limits that keep every computed figure (profit per hour, cost of a batch) a finite number. Common
+// practice, no source: the largest industrial fermenters hold about 1,000 m3, and no enzyme or product sells
+// for a million per kilogram.
+export const MAX_PRICE_PER_KG = 1e6;
+export const MAX_HEATING_COST_PER_DEGC_H = 1e6;
+export const MAX_VESSEL_VOLUME_L = 1e6;

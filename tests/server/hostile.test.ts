@@ -126,3 +126,52 @@ describe('refused calls cannot grow the audit trail without bound', () => {
     expect(JSON.parse(shared.newValue).count).toBe(299);
   });
 });
+
+describe('unknown keys', () => {
+  it('every write route that reads a JSON body refuses a misspelt key by name and writes nothing', async () => {
+    const writes = listApiRoutes(t.mounts).filter((r) => r.method !== 'GET' && r.method !== 'DELETE' && r.roles !== 'public' && r.roles !== null);
+    const named: string[] = [];
+    for (const route of writes) {
+      const c = await clientFor(route);
+      // The tests above moved the clock on: let the session's idle-timeout touch (a write) happen first.
+      await c.get('/api/session');
+      const before = changes();
+      const res = await c.req(route.method, route.path.replace(/:(\w+)/g, '1'), { zzMisspeltKey: 1 });
+      // Routes that take a file (CSV text, a multipart upload) say so under `file` instead.
+      if (res.status !== 400 || res.body?.error?.code !== 'invalid_input' || 'file' in (res.body.error.fields ?? {})) continue;
+      expect(res.body.error.fields, `${route.method} ${route.path}`).toHaveProperty('zzMisspeltKey');
+      expect(changes()).toBe(before);
+      named.push(`${route.method} ${route.path}`);
+    }
+    console.log(`unknown key refused by name on ${named.length} of ${writes.length} write routes`);
+    expect(named.length).toBeGreaterThan(15);
+  });
+
+  it('signing in refuses an unknown key by name', async () => {
+    const res = await t.client().post('/api/session', { email: 'admin@haldenbay.test', password: 'x'.repeat(12), remember: true });
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields.remember).toMatch(/Unknown field "remember"/);
+  });
+});
+
+describe('text that is not well-formed Unicode', () => {
+  it.each([
+    ['a vessel name', '/api/vessels', { name: 'tank\ud800end', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 }, 'name'],
+    ['a change rationale', '/api/change-requests', { planId: 1, rationale: 'Because \udc00 of this', expectedEffect: 'More product' }, 'rationale'],
+    ['a nested key', '/api/plans', { uncertainty: { ['seed\ud83d']: 1 } }, 'uncertainty.seed\ud83d'],
+  ])('refuses a lone surrogate in %s at the boundary, naming the field, and writes nothing', async (_label, path, body, field) => {
+    const c = await t.signIn('engineer');
+    const before = changes();
+    const res = await c.post(path, body);
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields[field]).toMatch(/unpaired surrogate/);
+    expect(changes()).toBe(before);
+  });
+
+  it('keeps well-formed text outside the basic plane (a surrogate pair)', async () => {
+    const c = await t.signIn('engineer');
+    const res = await c.post('/api/vessels', { name: 'Tank 🌾 7', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 });
+    expect(res.status).toBe(201);
+    expect(res.body.name).toBe('Tank 🌾 7');
+  });
+});
