@@ -71,10 +71,16 @@ export function certHalfLifeAt(s: CertStability, c: number): number | null {
 
 export type AssayFitResult = { fit: AssayFit; problem: null } | { fit: null; problem: string };
 
+/**
+ * Files above this many points are fitted first order only: the three-model comparison of 100,000 points takes
+ * over a minute here (measured), while the extended models' extra parameters are settled long before that size.
+ */
+export const EXTENDED_FIT_MAX_POINTS = 20_000;
+
 /** The engine's one-step fit of residual activity (fractions) at several temperatures, or why it cannot fit. */
 export function fitAssay(tRefC: number, points: readonly InactivationPoint[]): AssayFitResult {
   try {
-    const f = fitInactivation(tRefC, [...points]);
+    const f = fitInactivation(tRefC, [...points], { extendedModels: points.length <= EXTENDED_FIT_MAX_POINTS });
     const fit: AssayFit = {
       tRefC: f.tRefC,
       kdRefPerH: f.kdRefPerH,
