@@ -9,6 +9,8 @@ import * as schema from './schema';
 export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database };
 
 const MIGRATIONS = path.resolve(__dirname, '..', 'migrations');
+// How long a write waits for another connection's lock before the database counts as not writable.
+const BUSY_TIMEOUT_MS = 5000;
 
 /** Opens (creating if needed) a SQLite file, or ':memory:', with the pragmas every connection needs. */
 export function openDb(file: string): Db {
@@ -17,7 +19,7 @@ export function openDb(file: string): Db {
   sqlite.pragma('journal_mode = WAL');
   // FULL: an acknowledged write survives power loss, which the audit trail and readings need.
   sqlite.pragma('synchronous = FULL');
-  sqlite.pragma('busy_timeout = 5000');
+  sqlite.pragma(`busy_timeout = ${BUSY_TIMEOUT_MS}`);
   sqlite.pragma('foreign_keys = ON');
   return drizzle(sqlite, { schema }) as Db;
 }
@@ -39,14 +41,66 @@ function savepointOf(client: Database.Database): Savepoint {
   return sp;
 }
 
+/** Why the database file cannot take a write just now. */
+export type UnwritableReason = 'locked' | 'full' | 'read-only' | 'io';
+
+/** A write refused because the file cannot be written (nothing was changed); the error middleware answers 503. */
+export class DatabaseUnwritable extends Error {
+  constructor(
+    readonly reason: UnwritableReason,
+    readonly sqliteCode: string,
+  ) {
+    super(`database not writable (${reason}, ${sqliteCode})`);
+  }
+}
+
+// SQLite's result codes for a file that cannot be written now, as opposed to a write the data refuses
+// (SQLITE_CONSTRAINT and the like stay errors of the request).
+export function unwritableReason(err: unknown): UnwritableReason | null {
+  const code = (err as { code?: unknown })?.code;
+  if (typeof code !== 'string') return null;
+  if (/^SQLITE_(BUSY|LOCKED)/.test(code)) return 'locked';
+  if (code === 'SQLITE_FULL') return 'full';
+  if (/^SQLITE_(READONLY|PERM|CANTOPEN)/.test(code)) return 'read-only';
+  if (/^SQLITE_IOERR/.test(code)) return 'io';
+  return null;
+}
+
+// Per connection: did the last write fail because the file was not writable? While it did, each write tries once
+// without waiting on busy_timeout, so a held lock costs every write a blocked event loop only the first time.
+const failing = new WeakMap<Database.Database, UnwritableReason>();
+
+/** Whether the last write on this connection found the file not writable (and no write has succeeded since). */
+export const writeFailing = (db: Db): UnwritableReason | null => failing.get(db.$client) ?? null;
+
 /**
  * Runs a write as one BEGIN IMMEDIATE transaction: it takes the write lock up front, so concurrent writers queue
  * on busy_timeout instead of failing half-way with SQLITE_BUSY. Synchronous: an async callback would commit early.
- * `savepoint` lets one item of a group commit fail alone.
+ * `savepoint` lets one item of a group commit fail alone. A file that cannot be written (locked by another
+ * process, full, read-only, I/O error) rolls the whole write back and throws DatabaseUnwritable; the first write
+ * that succeeds afterwards clears that state by itself.
  */
 export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => T): T {
-  const savepoint: Savepoint = (inner) => savepointOf(db.$client)(inner);
-  return db.transaction((tx) => fn(tx as unknown as Db, savepoint), { behavior: 'immediate' });
+  const client = db.$client;
+  const wasFailing = failing.get(client);
+  const savepoint: Savepoint = (inner) => savepointOf(client)(inner);
+  if (wasFailing) client.pragma('busy_timeout = 0');
+  try {
+    const result = db.transaction((tx) => fn(tx as unknown as Db, savepoint), { behavior: 'immediate' });
+    if (wasFailing) {
+      failing.delete(client);
+      console.error(`[${new Date().toISOString()}] database writable again`);
+    }
+    return result;
+  } catch (err) {
+    const reason = unwritableReason(err);
+    if (!reason) throw err;
+    if (!wasFailing) console.error(`[${new Date().toISOString()}] database not writable (${reason}): ${(err as Error).message}`);
+    failing.set(client, reason);
+    throw new DatabaseUnwritable(reason, (err as { code: string }).code);
+  } finally {
+    if (wasFailing) client.pragma(`busy_timeout = ${BUSY_TIMEOUT_MS}`);
+  }
 }
 
 /**

@@ -13,6 +13,7 @@ import { BUNDLE_LOADER_CSP } from './web-build';
 import { auditDenials } from './middleware/audit-denials';
 import { authenticate } from './middleware/auth';
 import { fairTurns } from './middleware/fair-turns';
+import { requireWellFormedText } from './middleware/well-formed';
 import { requireSameOrigin } from './middleware/csrf';
 import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
@@ -99,6 +100,7 @@ export function createApp(deps: AppDeps): Express {
 
   const api = express.Router();
   api.use(express.json({ limit: '1mb' }));
+  api.use(requireWellFormedText);
   api.use(cookieParser());
   api.use(authenticate({ db: deps.db, clock: deps.clock, auth: deps.auth }));
   api.use(auditDenials(services));

@@ -1,11 +1,19 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
 import { fieldErrors, type ApiErrorBody } from '../../src/contracts/errors';
+import { DatabaseUnwritable } from '../../db/client';
 import { HttpError } from '../http-error';
 
 const body = (code: string, message: string, fields?: Record<string, string>): ApiErrorBody => ({
   error: fields ? { code, message, fields } : { code, message },
 });
+
+const UNWRITABLE_MESSAGE: Record<DatabaseUnwritable['reason'], string> = {
+  locked: 'The database is locked by another program, so nothing was saved; reading still works. Try again in a minute.',
+  full: 'The disk holding the database is full, so nothing was saved; reading still works. Tell your site admin.',
+  'read-only': 'The database file is read-only, so nothing was saved; reading still works. Tell your site admin.',
+  io: 'The database file could not be written, so nothing was saved; reading still works. Tell your site admin.',
+};
 
 export const apiNotFound: RequestHandler = (req, res) => {
   res.status(404).json(body('not_found', `No API route ${req.method} ${req.path}`));
@@ -16,6 +24,12 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   if (res.headersSent) return;
   if (err instanceof HttpError) {
     res.status(err.status).json(body(err.code, err.message, err.fields));
+    return;
+  }
+  if (err instanceof DatabaseUnwritable) {
+    // The transaction was rolled back; reads keep working and the next write that succeeds ends this state.
+    res.set('retry-after', '10');
+    res.status(503).json(body('database_unwritable', UNWRITABLE_MESSAGE[err.reason]));
     return;
   }
   if (err instanceof ZodError) {

@@ -1,7 +1,7 @@
 import bcrypt from 'bcryptjs';
 import crypto, { createSecretKey, type KeyObject } from 'node:crypto';
 import { jwtVerify, SignJWT } from 'jose';
-import { writeTx, type Db } from '../../db/client';
+import { DatabaseUnwritable, writeTx, type Db } from '../../db/client';
 import type { SessionUser, SignInRequest } from '../../src/contracts/session';
 import type { Clock } from '../clock';
 import { HttpError } from '../http-error';
@@ -132,8 +132,17 @@ export async function resolveSession(ctx: AuthContext, token: string): Promise<{
   const user = toSessionUser(found);
   if (!user || user.role !== session.role) return null;
   // Writing on every request would serialise reads behind the writer; a minute's resolution is enough.
-  if (now.getTime() - new Date(session.lastSeenAt).getTime() > 60_000) touchSession(ctx.db, sid, now.toISOString());
+  if (now.getTime() - new Date(session.lastSeenAt).getTime() > 60_000) touchQuietly(ctx.db, sid, now);
   return { sessionId: sid, user };
+}
+
+// Only the idle timeout needs it: a file that cannot be written must not turn a read into an error.
+function touchQuietly(db: Db, sid: string, now: Date): void {
+  try {
+    writeTx(db, (tx) => touchSession(tx, sid, now.toISOString()));
+  } catch (err) {
+    if (!(err instanceof DatabaseUnwritable)) throw err;
+  }
 }
 
 export function signOut(ctx: AuthContext, sessionId: string, user: SessionUser): void {

@@ -1,4 +1,4 @@
-import { writeTx, type Db } from '../../db/client';
+import { unwritableReason, writeTx, type Db } from '../../db/client';
 import {
   batchHours,
   batchProgram,
@@ -434,6 +434,8 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[
       try {
         return savepoint(() => storeReading(t, groups, req, now));
       } catch (error) {
+        // A file that cannot be written fails the whole group, not one reading.
+        if (unwritableReason(error)) throw error;
         return { error };
       }
     });

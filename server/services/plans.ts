@@ -5,6 +5,7 @@ import { computePlanOutputs, planContext } from '../../src/planning';
 import type { Plan, PlanInputs, PlanQuery } from '../../src/contracts/plans';
 import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
+import { assertFiniteResult } from '../finite';
 import { HttpError, notFound } from '../http-error';
 import { findSitePlan, insertPlan, listSitePlans, type PlanJoined } from '../repositories/plans';
 import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
@@ -63,6 +64,7 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
   const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
   const vessel = findSiteVessel(db, u.siteId, recipe.vesselId)!;
   const outputs = computePlanOutputs(planContext(recipe, enzyme, planningLot(db, u.siteId, lot, recipe.id), vessel), inputs);
+  assertFiniteResult(outputs, 'plan');
   const now = clock.now().toISOString();
   const contentHash = planContentHash({ inputs, outputs, modelVersion: MODEL_VERSION });
   return writeTx(db, (tx) => {

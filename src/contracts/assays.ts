@@ -13,7 +13,7 @@ export type ResidualScale = z.infer<typeof ResidualScale>;
 const Cell = z.union([z.number(), z.string().max(40)], { error: 'A number or the text typed' });
 
 /** One typed row of the editable table (residual as typed: fraction or percent). */
-export const AssayRowInput = z.object({
+export const AssayRowInput = z.strictObject({
   tempC: Cell,
   timeH: Cell,
   residual: Cell,
@@ -21,7 +21,7 @@ export const AssayRowInput = z.object({
 });
 export type AssayRowInput = z.infer<typeof AssayRowInput>;
 
-export const AssayTableInput = z.object({
+export const AssayTableInput = z.strictObject({
   rows: z.array(AssayRowInput).min(1, 'Add at least one row').max(MAX_ASSAY_ROWS),
   scale: ResidualScale.optional(),
 });

@@ -22,7 +22,7 @@ export const BatchSettings = z.object({
 export type BatchSettings = z.infer<typeof BatchSettings>;
 export const DEFAULT_BATCH_SETTINGS: BatchSettings = { toleranceC: 1.5, gapLimitMin: 30 };
 
-export const BatchSettingsPatch = BatchSettings.partial().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
+export const BatchSettingsPatch = BatchSettings.partial().strict().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type BatchSettingsPatch = z.infer<typeof BatchSettingsPatch>;
 
 const Point = z.object({ h: z.number(), c: z.number() });
@@ -48,7 +48,7 @@ export const BatchProgram = z.object({
 });
 export type BatchProgram = z.infer<typeof BatchProgram>;
 
-export const BatchStart = z.object({
+export const BatchStart = z.strictObject({
   recipeId: z.number().int().positive(),
   vesselId: z.number().int().positive(),
   lotId: z.number().int().positive(),
@@ -56,14 +56,14 @@ export const BatchStart = z.object({
 });
 export type BatchStart = z.infer<typeof BatchStart>;
 
-export const BatchClose = z.object({
+export const BatchClose = z.strictObject({
   /** Product measured at the end (lab result), g/L; optional. */
   measuredProductGPerL: z.number().min(0, 'Must be 0 or more').max(5000).nullable().optional(),
   comment: z.string().trim().max(500).optional(),
 });
 export type BatchClose = z.infer<typeof BatchClose>;
 
-export const ReadingInput = z.object({
+export const ReadingInput = z.strictObject({
   /** Made on the device once per reading, so a resend after a lost answer is stored once. */
   key: z.string().regex(/^[A-Za-z0-9_.:-]{8,80}$/, 'A key of 8-80 letters, digits or _.:-'),
   takenAt: isoInstant,
@@ -123,9 +123,9 @@ export const Deviation = z.object({
 });
 export type Deviation = z.infer<typeof Deviation>;
 
-export const DeviationAcknowledge = z.object({ comment: z.string().trim().min(3, 'Say what happened or what you did (at least 3 characters)').max(500) });
+export const DeviationAcknowledge = z.strictObject({ comment: z.string().trim().min(3, 'Say what happened or what you did (at least 3 characters)').max(500) });
 export type DeviationAcknowledge = z.infer<typeof DeviationAcknowledge>;
-export const DeviationClose = z.object({ comment: z.string().trim().max(500).optional() });
+export const DeviationClose = z.strictObject({ comment: z.string().trim().max(500).optional() });
 export type DeviationClose = z.infer<typeof DeviationClose>;
 
 /** The engine's view of the batch now, from the stored readings. */

@@ -8,7 +8,7 @@ export type SignatureMeaning = (typeof SIGNATURE_MEANINGS)[number];
 
 const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-15');
 
-export const ChangeRequestInput = z.object({
+export const ChangeRequestInput = z.strictObject({
   planId: z.number().int().positive(),
   rationale: z.string().trim().min(10, 'Say why, in a sentence at least').max(2000),
   expectedEffect: z.string().trim().min(3, 'Say what you expect to change').max(1000),
@@ -17,7 +17,7 @@ export const ChangeRequestInput = z.object({
 });
 export type ChangeRequestInput = z.infer<typeof ChangeRequestInput>;
 
-export const SignatureInput = z.object({
+export const SignatureInput = z.strictObject({
   /** Re-entered at the moment of signing; never stored. */
   password: z.string().min(1, 'Enter your password to sign').max(200),
   meaning: z.enum(SIGNATURE_MEANINGS),

@@ -21,7 +21,7 @@ const text = (max: number) => z.string().trim().min(1, 'Required').max(max, `At 
 const tempC = z.number({ error: 'Enter a number' }).min(-20, 'At least -20 °C').max(150, 'At most 150 °C');
 
 /** What a user types to create an enzyme product. */
-export const EnzymeInput = z.object({
+export const EnzymeInput = z.strictObject({
   name: text(80),
   enzymeClass: text(80),
   // EC numbers have four parts; the last may be '-' or a preliminary 'n1'.

@@ -5,7 +5,7 @@ export { MIN_PASSWORD_LENGTH };
 import { Role } from './roles';
 import { SignInRequest } from './session';
 
-export const CreateInvite = z.object({
+export const CreateInvite = z.strictObject({
   email: SignInRequest.shape.email,
   role: Role,
 });
@@ -23,7 +23,7 @@ export type Invite = z.infer<typeof Invite>;
 export const InviteList = z.object({ invites: z.array(Invite) });
 export type InviteList = z.infer<typeof InviteList>;
 
-export const InviteToken = z.object({ token: z.string().min(20, 'This invite link is not complete').max(200) });
+export const InviteToken = z.strictObject({ token: z.string().min(20, 'This invite link is not complete').max(200) });
 export type InviteToken = z.infer<typeof InviteToken>;
 
 /** What the set-password page shows before the invited person chooses a password. */

@@ -30,7 +30,7 @@ const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'A date like 2026-11-28')
 
 /** What procurement types when a lot arrives. */
 export const LotInput = z
-  .object({
+  .strictObject({
     enzymeId: z.number().int().positive(),
     lotCode: z.string().trim().min(1, 'Required').max(40, 'At most 40 characters'),
     receivedOn: isoDay,
@@ -116,7 +116,7 @@ export const LotDetail = z.object({
 });
 export type LotDetail = z.infer<typeof LotDetail>;
 
-export const LotDecision = z.object({
+export const LotDecision = z.strictObject({
   decision: z.enum(['accept', 'reject']),
   reason: z.string().trim().min(5, 'Give a reason of at least 5 characters').max(500, 'At most 500 characters'),
 });

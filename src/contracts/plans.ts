@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { heatingCost, pricePerKg } from './recipes';
 
 const positive = z.number().positive('Must be more than 0');
 const nonNegative = z.number().min(0, 'Must be 0 or more');
@@ -6,7 +7,7 @@ const nonNegative = z.number().min(0, 'Must be 0 or more');
 export const PLAN_STRATEGIES = ['isothermal', 'staged'] as const;
 
 /** Spread the user sets for the Monte Carlo; the parameter spread comes from the lot. */
-export const UncertaintySettings = z.object({
+export const UncertaintySettings = z.strictObject({
   draws: z.number().int().min(200).max(20000),
   seed: z.number().int().min(0).max(4294967295),
   /** Standard deviation of the reactor's temperature-sensor bias, degC. */
@@ -20,7 +21,7 @@ export type UncertaintySettings = z.infer<typeof UncertaintySettings>;
  * What the engineer chose. Everything else (enzyme kinetics, lot stability, vessel limits) the server reads
  * from its own records, and every output it computes itself.
  */
-export const PlanInputs = z.object({
+export const PlanInputs = z.strictObject({
   recipeId: z.number().int().positive(),
   lotId: z.number().int().positive(),
   batchH: positive.max(500, 'At most 500 h'),
@@ -28,9 +29,9 @@ export const PlanInputs = z.object({
   doseGPerL: positive.max(1000),
   s0GPerL: positive.max(2000),
   kmGPerL: positive.max(2000),
-  productPricePerKg: nonNegative,
-  enzymePricePerKg: nonNegative,
-  heatingCostPerDegCHour: nonNegative,
+  productPricePerKg: pricePerKg,
+  enzymePricePerKg: pricePerKg,
+  heatingCostPerDegCHour: heatingCost,
   currentSetpointC: z.number().min(-20).max(250),
   strategy: z.enum(PLAN_STRATEGIES),
   /** Staged profile: number of equal stages and the largest step between neighbours, degC. */

@@ -1,11 +1,15 @@
 import { z } from 'zod';
 import { AssayFit } from './assays';
 import { AcceptedCalibration } from './calibrations';
+import { MAX_HEATING_COST_PER_DEGC_H, MAX_PRICE_PER_KG } from './rules';
 import { Enzyme } from './enzymes';
 import { Vessel } from './vessels';
 
 const positive = z.number().positive('Must be more than 0');
 const nonNegative = z.number().min(0, 'Must be 0 or more');
+export const heatingCost = nonNegative.max(MAX_HEATING_COST_PER_DEGC_H, `At most ${MAX_HEATING_COST_PER_DEGC_H.toLocaleString('en')}`);
+/** A price per kilogram; the ceiling keeps profit per hour finite. */
+export const pricePerKg = nonNegative.max(MAX_PRICE_PER_KG, `At most ${MAX_PRICE_PER_KG.toLocaleString('en')} per kg`);
 
 // The recipe's own numbers; the enzyme follows from the lot, the limits from the vessel.
 export const RecipeFields = z.object({
@@ -26,19 +30,20 @@ export const RecipeFields = z.object({
   turnaroundH: nonNegative.max(500),
   /** Temperature the batch is filled at; heating starts here and heating cost counts degrees above it. */
   fillC: z.number().min(-20).max(150),
-  productPricePerKg: nonNegative,
-  enzymePricePerKg: nonNegative,
+  productPricePerKg: pricePerKg,
+  enzymePricePerKg: pricePerKg,
   /** Heating and holding cost per (degC above the fill temperature x hour). */
-  heatingCostPerDegCHour: nonNegative,
+  heatingCostPerDegCHour: heatingCost,
   currentSetpointC: z.number().min(-20).max(250),
 });
 
-export const RecipeInput = RecipeFields;
+export const RecipeInput = RecipeFields.strict();
 export type RecipeInput = z.infer<typeof RecipeInput>;
 
 // The current setpoint is the production setpoint: after creation only change control moves it.
 export const RecipePatch = RecipeFields.omit({ currentSetpointC: true })
   .partial()
+  .strict()
   .refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type RecipePatch = z.infer<typeof RecipePatch>;
 

@@ -37,3 +37,10 @@ export const PAGE_SESSION_ID = 'yieldpoint-session';
 /** Who sees a recipe and lot's calibration and model quality, and who decides on it (accepts, leaves batches out). */
 export const CALIBRATION_READERS = ['engineer', 'supervisor', 'admin'] as const satisfies readonly RoleName[];
 export const CALIBRATION_DECIDERS = ['engineer'] as const satisfies readonly RoleName[];
+
+// Upper limits that keep every computed figure (profit per hour, cost of a batch) a finite number. Common
+// practice, no source: the largest industrial fermenters hold about 1,000 m3, and no enzyme or product sells
+// for a million per kilogram.
+export const MAX_PRICE_PER_KG = 1e6;
+export const MAX_HEATING_COST_PER_DEGC_H = 1e6;
+export const MAX_VESSEL_VOLUME_L = 1e6;

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { Role } from './roles';
 
-export const SignInRequest = z.object({
+export const SignInRequest = z.strictObject({
   email: z.string().trim().toLowerCase().email('Enter an e-mail address').max(254),
   // bcrypt reads only the first 72 bytes; longer passwords would be silently truncated.
   password: z
@@ -30,5 +30,5 @@ export type Session = z.infer<typeof Session>;
 export const SessionState = z.object({ user: SessionUser.nullable() });
 export type SessionState = z.infer<typeof SessionState>;
 
-export const UpdateMe = z.object({ cautionsAcknowledged: z.literal(true) });
+export const UpdateMe = z.strictObject({ cautionsAcknowledged: z.literal(true) });
 export type UpdateMe = z.infer<typeof UpdateMe>;

@@ -15,6 +15,6 @@ export const UserList = z.object({ users: z.array(User) });
 export type UserList = z.infer<typeof UserList>;
 
 export const UpdateUser = z
-  .object({ role: Role.optional(), isActive: z.boolean().optional(), name: z.string().trim().min(1).max(120).optional() })
+  .strictObject({ role: Role.optional(), isActive: z.boolean().optional(), name: z.string().trim().min(1).max(120).optional() })
   .refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type UpdateUser = z.infer<typeof UpdateUser>;

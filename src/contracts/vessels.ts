@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { MAX_VESSEL_VOLUME_L } from './rules';
 
 export const Vessel = z.object({
   id: z.number().int(),
@@ -20,7 +21,7 @@ const temperatureC = z.number().min(-20).max(250);
 // Field rules on their own, so a PATCH can take any subset and the merged record is checked as a whole.
 export const VesselFields = z.object({
   name: z.string().trim().min(1, 'Give the vessel a name').max(80),
-  workingVolumeL: z.number().positive('Must be more than 0'),
+  workingVolumeL: z.number().positive('Must be more than 0').max(MAX_VESSEL_VOLUME_L, `At most ${MAX_VESSEL_VOLUME_L.toLocaleString('en')} L`),
   minC: temperatureC,
   maxC: temperatureC,
   maxHeatCPerH: z.number().positive('Must be more than 0'),
@@ -29,12 +30,12 @@ export const VesselFields = z.object({
 });
 
 /** A whole vessel: the range must be a range, and the hygienic minimum must lie inside it. */
-export const VesselInput = VesselFields.superRefine((v, ctx) => {
+export const VesselInput = VesselFields.strict().superRefine((v, ctx) => {
   if (!(v.minC < v.maxC)) ctx.addIssue({ code: 'custom', path: ['maxC'], message: 'Must be above the minimum temperature' });
   if (v.hygienicMinC < v.minC || v.hygienicMinC > v.maxC)
     ctx.addIssue({ code: 'custom', path: ['hygienicMinC'], message: 'Must lie between the minimum and maximum temperature' });
 });
 export type VesselInput = z.infer<typeof VesselInput>;
 
-export const VesselPatch = VesselFields.partial().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
+export const VesselPatch = VesselFields.partial().strict().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type VesselPatch = z.infer<typeof VesselPatch>;

@@ -97,4 +97,32 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
     db.$client.close();
     fs.rmSync(dir!, { recursive: true, force: true });
   }, 600_000);
+
+  it('stays up while another process holds the write lock: refused calls answered, writes 503, then 2xx again', async () => {
+    const s = await startServer();
+    try {
+      const cookie = await sessionCookie(s.baseURL, admin.email, admin.password);
+      const headers = { cookie, 'content-type': 'application/json', 'x-yieldpoint-client': 'crash-test' };
+      // Another program holds BEGIN IMMEDIATE for longer than the server's busy timeout (5 s).
+      const holder = new Database(s.databaseFile);
+      holder.exec('BEGIN IMMEDIATE');
+      try {
+        expect((await fetch(`${s.baseURL}/api/users`)).status).toBe(401);
+        const write = await fetch(`${s.baseURL}/api/users/2`, { method: 'PATCH', headers, body: JSON.stringify({ name: 'While locked' }) });
+        expect(write.status).toBe(503);
+        expect((await fetch(`${s.baseURL}/api/users`, { headers })).status).toBe(200);
+        for (let i = 0; i < 5; i++) expect((await fetch(`${s.baseURL}/api/lots/${'x'.repeat(2000)}`)).status).toBe(401);
+        expect(s.child.exitCode).toBeNull();
+      } finally {
+        holder.exec('ROLLBACK');
+        holder.close();
+      }
+      const after = await fetch(`${s.baseURL}/api/users/2`, { method: 'PATCH', headers, body: JSON.stringify({ name: 'After the lock' }) });
+      expect(after.status).toBe(200);
+      expect(s.child.exitCode).toBeNull();
+    } finally {
+      await s.stop();
+      fs.rmSync(s.dir, { recursive: true, force: true });
+    }
+  }, 120_000);
 });

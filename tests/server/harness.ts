@@ -65,9 +65,12 @@ export const password = (role: Role) => DEMO_USERS.find((u) => u.role === role)!
 export const email = (role: Role, site: 'main' | 'other' = 'main') =>
   DEMO_USERS.find((u) => u.role === role)!.email.replace('haldenbay.test', site === 'main' ? 'haldenbay.test' : 'otherplant.test');
 
-/** The app on an in-memory database with the demo site and a second site, listening on a free port. */
-export async function startTestApp(overrides: Partial<AppDeps> = {}): Promise<TestApp> {
-  const db = openDb(':memory:');
+/**
+ * The app on an in-memory database (or the SQLite file `opts.file`) with the demo site and a second site,
+ * listening on a free port.
+ */
+export async function startTestApp(overrides: Partial<AppDeps> = {}, opts: { file?: string } = {}): Promise<TestApp> {
+  const db = openDb(opts.file ?? ':memory:');
   migrateDb(db);
   // Cost 4 keeps seeding fast; the production cost is checked on its own.
   seedDemo(db, { bcryptCost: 4 });

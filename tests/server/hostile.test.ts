@@ -85,3 +85,93 @@ describe(`hostile input (seed ${SEED})`, () => {
     }
   });
 });
+
+describe('refused calls cannot grow the audit trail without bound', () => {
+  const audit = () => t.db.$client.prepare('select action, actor, entity_id as entityId, new_value as newValue from audit_events order by id').all() as { action: string; actor: string; entityId: string; newValue: string }[];
+  const bytes = () => (t.db.$client.pragma('page_count', { simple: true }) as number) * (t.db.$client.pragma('page_size', { simple: true }) as number);
+
+  it('one address: the first denial of a minute is an event, the rest one counted event, with the path cut', async () => {
+    t.clock.advanceMinutes(1);
+    const before = audit().length;
+    const grownFrom = bytes();
+    const long = `/api/lots/${'a'.repeat(8000)}`;
+    const anonymous = t.client();
+    for (let i = 0; i < 300; i++) expect((await anonymous.get(long)).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    t.clock.advanceMinutes(1);
+    expect((await anonymous.get('/api/users')).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    const added = audit().slice(before);
+    expect(added.map((e) => e.action)).toEqual(['access.denied', 'access.denied.repeated', 'access.denied']);
+    expect(added[0]!.entityId.length).toBeLessThan(250);
+    expect(added[0]!.entityId).toMatch(/… \(8014 characters\)$/);
+    expect(JSON.parse(added[1]!.newValue)).toMatchObject({ count: 299, statuses: { 401: 299 } });
+    // 300 full rows of 8 KB each would be 2.4 MB.
+    expect(bytes() - grownFrom).toBeLessThan(64 * 1024);
+  });
+
+  it('many spoofed addresses share one record beyond the per-minute limit of callers', async () => {
+    t.clock.advanceMinutes(1);
+    const before = audit().length;
+    for (let i = 0; i < 400; i++) expect((await t.client().get('/api/lots', { 'x-forwarded-for': `10.0.${i >> 8}.${i & 255}` })).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    t.clock.advanceMinutes(1);
+    expect((await t.client().get('/api/lots')).status).toBe(401);
+    await new Promise((r) => setTimeout(r, 20));
+    const added = audit().slice(before);
+    // 100 callers one by one, one shared record for the other 300 (its first event and its count), the next minute's.
+    expect(added.length).toBe(100 + 2 + 1);
+    const shared = added.find((e) => e.action === 'access.denied.repeated')!;
+    expect(shared.actor).toBe('more than 100 callers this minute');
+    expect(JSON.parse(shared.newValue).count).toBe(299);
+  });
+});
+
+describe('unknown keys', () => {
+  it('every write route that reads a JSON body refuses a misspelt key by name and writes nothing', async () => {
+    const writes = listApiRoutes(t.mounts).filter((r) => r.method !== 'GET' && r.method !== 'DELETE' && r.roles !== 'public' && r.roles !== null);
+    const named: string[] = [];
+    for (const route of writes) {
+      const c = await clientFor(route);
+      // The tests above moved the clock on: let the session's idle-timeout touch (a write) happen first.
+      await c.get('/api/session');
+      const before = changes();
+      const res = await c.req(route.method, route.path.replace(/:(\w+)/g, '1'), { zzMisspeltKey: 1 });
+      // Routes that take a file (CSV text, a multipart upload) say so under `file` instead.
+      if (res.status !== 400 || res.body?.error?.code !== 'invalid_input' || 'file' in (res.body.error.fields ?? {})) continue;
+      expect(res.body.error.fields, `${route.method} ${route.path}`).toHaveProperty('zzMisspeltKey');
+      expect(changes()).toBe(before);
+      named.push(`${route.method} ${route.path}`);
+    }
+    console.log(`unknown key refused by name on ${named.length} of ${writes.length} write routes`);
+    expect(named.length).toBeGreaterThan(15);
+  });
+
+  it('signing in refuses an unknown key by name', async () => {
+    const res = await t.client().post('/api/session', { email: 'admin@haldenbay.test', password: 'x'.repeat(12), remember: true });
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields.remember).toMatch(/Unknown field "remember"/);
+  });
+});
+
+describe('text that is not well-formed Unicode', () => {
+  it.each([
+    ['a vessel name', '/api/vessels', { name: 'tank\ud800end', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 }, 'name'],
+    ['a change rationale', '/api/change-requests', { planId: 1, rationale: 'Because \udc00 of this', expectedEffect: 'More product' }, 'rationale'],
+    ['a nested key', '/api/plans', { uncertainty: { ['seed\ud83d']: 1 } }, 'uncertainty.seed\ud83d'],
+  ])('refuses a lone surrogate in %s at the boundary, naming the field, and writes nothing', async (_label, path, body, field) => {
+    const c = await t.signIn('engineer');
+    const before = changes();
+    const res = await c.post(path, body);
+    expect(res.status).toBe(400);
+    expect(res.body.error.fields[field]).toMatch(/unpaired surrogate/);
+    expect(changes()).toBe(before);
+  });
+
+  it('keeps well-formed text outside the basic plane (a surrogate pair)', async () => {
+    const c = await t.signIn('engineer');
+    const res = await c.post('/api/vessels', { name: 'Tank 🌾 7', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 });
+    expect(res.status).toBe(201);
+    expect(res.body.name).toBe('Tank 🌾 7');
+  });
+});

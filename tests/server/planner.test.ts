@@ -41,6 +41,8 @@ describe('vessels', () => {
     ['a zero heating rate', { ...GOOD_VESSEL, name: 'X4', maxHeatCPerH: 0 }, 'maxHeatCPerH'],
     ['a negative cooling rate', { ...GOOD_VESSEL, name: 'X5', maxCoolCPerH: -3 }, 'maxCoolCPerH'],
     ['no volume', { ...GOOD_VESSEL, name: 'X6', workingVolumeL: 0 }, 'workingVolumeL'],
+    ['a volume of 1e308 L', { ...GOOD_VESSEL, name: 'X7', workingVolumeL: 1e308 }, 'workingVolumeL'],
+    ['a misspelt key', { ...GOOD_VESSEL, name: 'X8', workingVolumL: 500 }, 'workingVolumL'],
   ])('refuses %s with the field named', async (_label, body, field) => {
     const before = count(vessels);
     const r = await engineer.post('/api/vessels', body);
@@ -178,17 +180,22 @@ describe('recipes', () => {
 const planBody = (over: Record<string, unknown> = {}) => demoPlanBody(recipeIds['Glucose syrup DE 95']!, lotIds['CGA-2605-11']!, over);
 
 describe('plans', () => {
-  it('recomputes on the server and ignores numbers the client sends', async () => {
-    const r = await engineer.post('/api/plans', {
+  it('refuses numbers the client sends for the server to compute, naming each, and recomputes from the inputs', async () => {
+    const plansBefore = (t.db.$client.prepare('select count(*) as n from plans').get() as { n: number }).n;
+    const forged = await engineer.post('/api/plans', {
       ...planBody(),
       outputs: { setpointC: 70, predictedProductGPerL: 9999 },
       predictedProductGPerL: 9999,
       modelVersion: 'forged',
     });
+    expect(forged.status).toBe(400);
+    expect(Object.keys(forged.body.error.fields).sort()).toEqual(['modelVersion', 'outputs', 'predictedProductGPerL']);
+    expect(forged.body.error.fields.modelVersion).toMatch(/Unknown field "modelVersion"/);
+    expect((t.db.$client.prepare('select count(*) as n from plans').get() as { n: number }).n).toBe(plansBefore);
+    const r = await engineer.post('/api/plans', planBody());
     expect(r.status).toBe(201);
     const o = r.body.outputs;
     expect(r.body.modelVersion).toBe(MODEL_VERSION);
-    expect(o.predictedProductGPerL).not.toBe(9999);
     expect(r.body.inputs).not.toHaveProperty('outputs');
     // Independent of the planning module: the lot's assay fit (kd and Ed at tRef 60 °C), Ea 55, Vmax 7.5 g/L/h,
     // run with a heat-up from 45 °C at 12 °C/h, as stated in db/seed.ts.
@@ -203,6 +210,32 @@ describe('plans', () => {
     expect(o.setpointC).toBeGreaterThanOrEqual(20);
     expect(o.setpointC).toBeLessThanOrEqual(75);
     expect(r.body.contentHash).toMatch(/^[0-9a-f]{64}$/);
+  });
+
+  it('refuses a plan priced at 1e308 before anything is written, naming the field', async () => {
+    const before = { plans: count(plans), audit: count(auditEvents) };
+    const r = await engineer.post('/api/plans', planBody({ productPricePerKg: 1e308 }));
+    expect(r.status).toBe(400);
+    expect(r.body.error.fields.productPricePerKg).toMatch(/At most 1,000,000 per kg/);
+    expect({ plans: count(plans), audit: count(auditEvents) }).toEqual(before);
+    expect((await engineer.get('/api/plans')).status).toBe(200);
+  });
+
+  it('refuses a plan whose figures would not be finite (a vessel stored before the volume limit) and keeps the plan list readable', async () => {
+    const id = vesselIds['R-101 Saccharifier']!;
+    const { workingVolumeL } = t.db.select().from(vessels).where(eq(vessels.id, id)).get()!;
+    t.db.update(vessels).set({ workingVolumeL: 1e308 }).where(eq(vessels.id, id)).run();
+    try {
+      const before = { plans: count(plans), audit: count(auditEvents) };
+      const r = await engineer.post('/api/plans', planBody({ productPricePerKg: 1e6 }));
+      expect(r.status).toBe(400);
+      expect(r.body.error.code).toBe('not_computable');
+      expect(r.body.error.message).toMatch(/profitPerH/);
+      expect({ plans: count(plans), audit: count(auditEvents) }).toEqual(before);
+      expect((await engineer.get('/api/plans')).status).toBe(200);
+    } finally {
+      t.db.update(vessels).set({ workingVolumeL }).where(eq(vessels.id, id)).run();
+    }
   });
 
   it('recommends a lower setpoint for a longer batch', async () => {
