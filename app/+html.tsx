@@ -12,6 +12,9 @@ export default function Root({ children }: PropsWithChildren) {
         <meta httpEquiv="X-UA-Compatible" content="IE=edge" />
         <meta name="viewport" content="width=device-width, initial-scale=1, shrink-to-fit=no" />
         <meta name="theme-color" content={light.primary} />
+        {/* Installable: the manifest and icons are written by the build (server/web-offline.ts). */}
+        <link rel="manifest" href="/manifest.webmanifest" />
+        <link rel="apple-touch-icon" href="/icons/icon-192.png" />
         <title>Yieldpoint</title>
         <ScrollViewStyleReset />
         <style dangerouslySetInnerHTML={{ __html: SNAPSHOT_CSS }} />

@@ -2,9 +2,11 @@ import { FontDisplay, useFonts } from 'expo-font';
 import { Slot } from 'expo-router';
 import { StatusBar } from 'expo-status-bar';
 import { enableScreens } from 'react-native-screens';
+import { useEffect } from 'react';
 import { SWRConfig } from 'swr';
 import { installFocusRing } from '@/theme/focus-ring';
 import { installPrintStylesheet } from '@/theme/print';
+import { registerServiceWorker } from '@/web/offline';
 import { useSnapshotReplaced } from '@/web/snapshot';
 
 installFocusRing();
@@ -31,6 +33,7 @@ const SWR_OPTIONS = { shouldRetryOnError: false, revalidateOnFocus: true, dedupi
 
 export default function RootLayout() {
   useSnapshotReplaced();
+  useEffect(registerServiceWorker, []);
   return (
     <SWRConfig value={SWR_OPTIONS}>
       <Fonts />

@@ -27,7 +27,7 @@ function sessionSecret(configured: Uint8Array | null, databaseFile: string): Uin
 
 async function main() {
   const env = readEnv();
-  if (!env.skipWebBuild) ensureWebBuild(root, env.webDir);
+  if (!env.skipWebBuild) await ensureWebBuild(root, env.webDir);
   const db = openDb(env.databaseFile);
   migrateDb(db);
   const seeded = env.seedDemo && isEmpty(db) ? seedDemo(db, { now: systemClock.now() }) : null;

@@ -5,8 +5,9 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 import { SNAPSHOT_HIDDEN_MEDIA } from '../src/web/snapshot';
 import { WARM_ORDER_ID } from '../src/web/warm-up';
+import { writeOffline } from './web-offline';
 
-const SOURCES = ['app', 'src', 'assets', 'index.ts', 'app.json', 'package.json', 'package-lock.json', 'metro.config.js', 'server/web-build.ts'];
+const SOURCES = ['app', 'src', 'assets', 'index.ts', 'app.json', 'package.json', 'package-lock.json', 'metro.config.js', 'server/web-build.ts', 'server/web-offline.ts'];
 // Text files are stored compressed beside themselves once, at build time, at the highest levels (brotli 11 is
 // ~20 % smaller than gzip on the bundle but far too slow to run per request). Fonts are WOFF2, compressed already.
 const COMPRESSIBLE = /\.(js|css|html|json|svg|txt)$/;
@@ -21,7 +22,7 @@ function newestMtime(p: string): number {
 }
 
 /** Exports the web app into `webDir` when it is missing or older than any of its sources. */
-export function ensureWebBuild(root: string, webDir: string): void {
+export async function ensureWebBuild(root: string, webDir: string): Promise<void> {
   const index = path.join(root, webDir, 'index.html');
   const builtAt = fs.existsSync(index) ? fs.statSync(index).mtimeMs : 0;
   const sourcesAt = Math.max(...SOURCES.map((s) => newestMtime(path.join(root, s))));
@@ -36,6 +37,9 @@ export function ensureWebBuild(root: string, webDir: string): void {
   try {
     renderOverSnapshots(path.join(root, webDir));
     splitBundle(path.join(root, webDir));
+    // Over the finished pages and parts, so the service worker precaches what the server will serve.
+    const offline = await writeOffline(root, path.join(root, webDir));
+    console.log(`Service worker: ${offline.precached} files precached (${(offline.bytes / 1024).toFixed(0)} KB).`);
     precompress(path.join(root, webDir));
   } catch (err) {
     // A half-finished export must not pass for an up-to-date one on the next start.

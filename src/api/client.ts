@@ -1,4 +1,5 @@
 import type { ApiErrorBody } from '../contracts/errors';
+import { noteAnswer } from './cached-answers';
 
 /** Any failed API call: the server's code, message and field errors, or a network failure (status 0). */
 export class ApiError extends Error {
@@ -44,6 +45,7 @@ export async function api<T>(path: string, opts: Options = {}): Promise<T> {
     if (isErrorBody(body)) throw new ApiError(res.status, body.error.code, body.error.message, body.error.fields ?? {});
     throw new ApiError(res.status, 'http', `The server answered ${res.status}`);
   }
+  if ((opts.method ?? 'GET') === 'GET') noteAnswer(path, res.headers);
   if (res.status === 204) return undefined as T;
   return (await res.json()) as T;
 }

@@ -6,33 +6,41 @@ import { ApiError } from './client';
 // lost answer stores it once.
 
 export type QueuedReading = ReadingInput & { batchId: number; queuedAt: string };
+/** A reading the server refused on arrival (the batch closed meanwhile, a key reused): kept until dismissed. */
+export type RefusedReading = { reading: QueuedReading; code: string; message: string };
 
 export interface QueueStore {
   load(): QueuedReading[];
   save(q: QueuedReading[]): void;
+  loadRefused(): RefusedReading[];
+  saveRefused(r: RefusedReading[]): void;
 }
 
-const STORAGE_KEY = 'yieldpoint.readingQueue.v1';
-
-/** localStorage on the web; memory where there is none (native, tests). */
-export function deviceStore(): QueueStore {
+/**
+ * One user's queue and refusals: localStorage on the web, under keys of that user, so a shared phone never
+ * sends or shows one operator's readings in another's session; memory where there is no localStorage (tests).
+ */
+export function deviceStore(userId: number): QueueStore {
   const ls = typeof globalThis.localStorage === 'undefined' ? null : globalThis.localStorage;
-  let memory: QueuedReading[] = [];
-  return {
-    load() {
-      if (!ls) return memory;
+  const memory = new Map<string, unknown[]>();
+  const list = <T>(key: string) => ({
+    load(): T[] {
+      if (!ls) return (memory.get(key) ?? []) as T[];
       try {
-        const parsed: unknown = JSON.parse(ls.getItem(STORAGE_KEY) ?? '[]');
-        return Array.isArray(parsed) ? (parsed as QueuedReading[]) : [];
+        const parsed: unknown = JSON.parse(ls.getItem(key) ?? '[]');
+        return Array.isArray(parsed) ? (parsed as T[]) : [];
       } catch {
         return [];
       }
     },
-    save(q) {
-      if (ls) ls.setItem(STORAGE_KEY, JSON.stringify(q));
-      else memory = q;
+    save(items: T[]) {
+      if (ls) ls.setItem(key, JSON.stringify(items));
+      else memory.set(key, items);
     },
-  };
+  });
+  const queue = list<QueuedReading>(`yieldpoint.readingQueue.v2.${userId}`);
+  const refused = list<RefusedReading>(`yieldpoint.readingsRefused.v1.${userId}`);
+  return { load: queue.load, save: queue.save, loadRefused: refused.load, saveRefused: refused.save };
 }
 
 /** A key unique to this reading on this device. */
@@ -50,7 +58,8 @@ export function enqueue(store: QueueStore, r: QueuedReading): void {
 export type FlushResult = { sent: QueuedReading[]; rejected: { reading: QueuedReading; error: ApiError }[]; isOffline: boolean };
 
 /**
- * Sends queued readings oldest first. A refusal (4xx) is final: the reading leaves the queue and is reported.
+ * Sends queued readings oldest first. A refusal (4xx) is final: the reading leaves the queue for the store's
+ * refusals, with the server's reason, and is reported.
  * No connection or a server failure stops the round and keeps the rest for the next one.
  */
 export async function flushQueue(store: QueueStore, send: (r: QueuedReading) => Promise<unknown>): Promise<FlushResult> {
@@ -66,6 +75,7 @@ export async function flushQueue(store: QueueStore, send: (r: QueuedReading) => 
         break;
       }
       result.rejected.push({ reading: r, error: err });
+      store.saveRefused([...store.loadRefused(), { reading: r, code: err.code, message: err.message }]);
     }
     // Remove as we go, re-reading the store so readings queued meanwhile are kept.
     store.save(store.load().filter((x) => x.key !== r.key));

@@ -3,6 +3,7 @@ import { useSWRConfig } from 'swr';
 import { api, ApiError } from '../api/client';
 import { keys } from '../api/keys';
 import type { Session, SignInRequest } from '../contracts/session';
+import { clearUserCaches } from '../web/offline';
 
 export function useSignIn() {
   const { mutate } = useSWRConfig();
@@ -13,7 +14,8 @@ export function useSignIn() {
     setError(null);
     try {
       const session = await api<Session>(keys.session, { method: 'POST', body });
-      // A new user: drop every cached answer of the previous one, then prime the session.
+      // A new user: drop every cached answer of the previous one (the service worker's too), then prime the session.
+      await clearUserCaches();
       await mutate(() => true, undefined, { revalidate: false });
       await mutate(keys.session, session, { revalidate: false });
       return session;

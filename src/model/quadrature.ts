@@ -53,3 +53,48 @@ export function quadRule(n: number): QuadRule {
   }
   return { n, s, w, q };
 }
+
+/** Gauss-Hermite rule for the standard normal density (probabilists' He_n): nodes and weights summing to 1; exact to degree 2n - 1. */
+export function gaussHermite(n: number): { x: Float64Array; w: Float64Array } {
+  // He_{j+1} = x He_j - j He_{j-1}; returns [He_n(x), He_{n-1}(x)].
+  const he = (x: number): [number, number] => {
+    let p0 = 1;
+    let p1 = x;
+    if (n === 0) return [1, 0];
+    for (let j = 1; j < n; j++) {
+      const p2 = x * p1 - j * p0;
+      p0 = p1;
+      p1 = p2;
+    }
+    return [p1, p0];
+  };
+  const x = new Float64Array(n);
+  const w = new Float64Array(n);
+  let fact = 1;
+  for (let j = 2; j <= n; j++) fact *= j;
+  // Roots lie within +-2 sqrt(n): bracket sign changes on a fine scan, then bisect to rounding.
+  const lim = 2 * Math.sqrt(n) + 1;
+  const step = 1e-3;
+  let found = 0;
+  let a = -lim;
+  let fa = he(a)[0];
+  for (let b = -lim + step; found < n && b <= lim + step; b += step) {
+    const fb = he(b)[0];
+    if (fa === 0 || fa * fb < 0) {
+      let lo = a;
+      let hi = b;
+      for (let it = 0; it < 200 && hi - lo > 1e-15 * (1 + Math.abs(lo)); it++) {
+        const mid = 0.5 * (lo + hi);
+        if (he(lo)[0] * he(mid)[0] <= 0) hi = mid;
+        else lo = mid;
+      }
+      const r = 0.5 * (lo + hi);
+      x[found] = r;
+      w[found] = fact / (n * n * he(r)[1] ** 2);
+      found++;
+    }
+    a = b;
+    fa = fb;
+  }
+  return { x, w };
+}

@@ -1,10 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { ApiError } from '../../src/api/client';
-import { enqueue, flushQueue, newReadingKey, type QueuedReading, type QueueStore } from '../../src/api/reading-queue';
+import { deviceStore, enqueue, flushQueue, newReadingKey, type QueuedReading, type QueueStore } from '../../src/api/reading-queue';
 
-function memoryStore(): QueueStore & { items: QueuedReading[] } {
-  const s = { items: [] as QueuedReading[], load: () => s.items, save: (q: QueuedReading[]) => (s.items = q) };
-  return s;
+// No localStorage under vitest's node environment: deviceStore keeps each user's lists in memory.
+function memoryStore(userId = 1): QueueStore & { readonly items: QueuedReading[] } {
+  const s = deviceStore(userId);
+  return Object.defineProperty(s, 'items', { get: () => s.load() }) as QueueStore & { readonly items: QueuedReading[] };
 }
 const reading = (key: string, c = 50): QueuedReading => ({ batchId: 1, key, takenAt: '2026-12-01T08:00:00Z', c, queuedAt: '2026-12-01T08:00:01Z' });
 
@@ -48,6 +49,16 @@ describe('reading queue', () => {
     expect(r.rejected.map((x) => [x.reading.key, x.error.status])).toEqual([['k-00000001', 400]]);
     expect(r.sent.map((x) => x.key)).toEqual(['k-00000002']);
     expect(s.items).toEqual([]);
+    // Kept with the server's reason until dismissed, never silently dropped.
+    expect(s.loadRefused()).toEqual([{ reading: reading('k-00000001', 300), code: 'invalid_input', message: 'out of range' }]);
+  });
+
+  it("keeps each user's queue apart", () => {
+    const a = memoryStore(1);
+    const b = memoryStore(2);
+    enqueue(a, reading('k-00000001'));
+    expect(b.items).toEqual([]);
+    expect(a.items).toHaveLength(1);
   });
 
   it('stops at a server failure and keeps the rest', async () => {

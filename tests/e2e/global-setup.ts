@@ -11,7 +11,7 @@ declare module 'vitest' {
 
 /** Builds the web app if needed and runs the real server on a fresh demo database, as `npm start` does. */
 export default async function setup(project: TestProject) {
-  ensureWebBuild(ROOT, 'dist');
+  await ensureWebBuild(ROOT, 'dist');
   const server = await startServer();
   project.provide('baseURL', server.baseURL);
   return async () => {

@@ -25,7 +25,7 @@ const BUDGET = { performance: 0.9, lcpMs: 2500, tbtMs: 200, cls: 0.1, accessibil
 type Row = { page: string; form: 'mobile' | 'desktop'; performance: number; lcpMs: number; tbtMs: number; tbtRangeMs: [number, number]; cls: number; accessibility: number; failing: string[] };
 
 async function main() {
-  ensureWebBuild(ROOT, 'dist');
+  await ensureWebBuild(ROOT, 'dist');
   const server = await startServer();
   const chrome = await chromeLauncher.launch({
     chromePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',

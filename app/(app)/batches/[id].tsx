@@ -8,9 +8,9 @@ import { ReadingEntry } from '@/components/batches/reading-entry';
 import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
+import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import { batchHours, batchStatus, durationText, shortTime } from '@/batches';
-import type { BatchDetail, Reading } from '@/contracts/batches';
+import type { BatchDetail } from '@/contracts/batches';
 import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
@@ -19,12 +19,15 @@ import { useLogReading } from '@/hooks/use-log-reading';
 import { useSession } from '@/hooks/use-session';
 import { space, useBreakpoint } from '@/theme';
 
-const READING_COLUMNS: Column<Reading>[] = [
+/** A row of the readings table: stored on the server, still on this device, or refused by the server. */
+type ReadingRow = { key: string; takenAt: string; h: number; c: number; by: string; note: string };
+
+const READING_COLUMNS: Column<ReadingRow>[] = [
   { key: 'time', label: 'Time', value: (r) => shortTime(r.takenAt) },
   { key: 'h', label: 'Hour', value: (r) => fmt(r.h, 2), isNumeric: true },
   { key: 'c', label: '°C', value: (r) => fmt(r.c), isNumeric: true },
-  { key: 'by', label: 'By', value: (r) => (r.source === 'historian' ? 'historian' : r.enteredBy), flex: 1.2 },
-  { key: 'note', label: 'Note', value: (r) => r.note ?? '', flex: 1.5 },
+  { key: 'by', label: 'By', value: (r) => r.by, flex: 1.2 },
+  { key: 'note', label: 'Note', value: (r) => r.note, flex: 1.5 },
 ];
 
 /** The plan in words: what runs and where it comes from. */
@@ -38,7 +41,7 @@ function planSentence(d: BatchDetail): string {
 function BatchBody({ id }: { id: number }) {
   const { session } = useSession();
   const { isWide } = useBreakpoint();
-  const { data, error, isLoading, retry } = useBatch(id);
+  const { data, error, isLoading, retry, cachedAt } = useBatch(id);
   const logger = useLogReading(id);
   const role: Role = session?.user.role ?? 'operator';
 
@@ -46,13 +49,21 @@ function BatchBody({ id }: { id: number }) {
   const preview = useMemo(() => {
     if (!data) return null;
     const start = data.batch.startedAt;
-    const queued = logger.queued.map((q) => ({ h: batchHours(start, q.takenAt), c: q.c, isQueued: true }));
+    // A reading sent meanwhile may already be among the stored ones.
+    const stored = new Set(data.readings.map((r) => r.key));
+    const onDevice = logger.queued.filter((q) => !stored.has(q.key));
+    const queued = onDevice.map((q) => ({ h: batchHours(start, q.takenAt), c: q.c, isQueued: true }));
     const all = [...data.readings.map((r) => ({ h: r.h, c: r.c, isQueued: false })), ...queued].sort((a, b) => a.h - b.h);
     // A sampled historian record cannot be re-integrated here: then the server's figures stand until the readings arrive.
     const canPreview = queued.length > 0 && data.readings.length === data.readingsTotal;
     const status = canPreview ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective } : data.status;
-    return { all, status, isPreview: canPreview };
-  }, [data, logger.queued]);
+    const rows: ReadingRow[] = [
+      ...data.readings.map((r) => ({ key: r.key, takenAt: r.takenAt, h: r.h, c: r.c, by: r.source === 'historian' ? 'historian' : r.enteredBy, note: r.note ?? '' })),
+      ...onDevice.map((q) => ({ key: q.key, takenAt: q.takenAt, h: batchHours(start, q.takenAt), c: q.c, by: 'on this device', note: q.note ?? '' })),
+      ...logger.refused.map(({ reading: q, message }) => ({ key: q.key, takenAt: q.takenAt, h: batchHours(start, q.takenAt), c: q.c, by: 'not stored', note: message })),
+    ].sort((a, b) => Date.parse(a.takenAt) - Date.parse(b.takenAt));
+    return { all, status, isPreview: canPreview || (cachedAt !== null && queued.length > 0), rows, count: data.status.readings + onDevice.length };
+  }, [data, logger.queued, logger.refused, cachedAt]);
 
   if (error) return <ErrorState error={error} onRetry={retry} />;
   if (isLoading || !data || !preview) return <Loader rows={6} label="Loading the batch" />;
@@ -66,7 +77,7 @@ function BatchBody({ id }: { id: number }) {
   const sinceLast = data.readings.length ? Date.parse(data.now) - Date.parse(data.readings[data.readings.length - 1].takenAt) : null;
   const overdue = isRunning && sinceLast !== null && sinceLast > data.settings.gapLimitMin * 60_000;
   const s = preview.status;
-  const sentence = `${status.readings} readings. Planned now ${fmt(s.plannedNowC)} °C${last ? `, last logged ${fmt(last.c)} °C` : ''}. Activity left ${fmt(s.activityLeft * 100, 0)} %, product so far ${fmt(s.productSoFarGPerL)} g/L; if the plan is followed from now the batch ends with ${fmt(s.forecastGPerL)} g/L against ${fmt(s.plannedProductGPerL)} g/L planned.`;
+  const sentence = `${preview.count} readings. Planned now ${fmt(s.plannedNowC)} °C${last ? `, last logged ${fmt(last.c)} °C` : ''}. Activity left ${fmt(s.activityLeft * 100, 0)} %, product so far ${fmt(s.productSoFarGPerL)} g/L; if the plan is followed from now the batch ends with ${fmt(s.forecastGPerL)} g/L against ${fmt(s.plannedProductGPerL)} g/L planned.`;
 
   const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} logger={logger} /> : null;
   const deviations = <DeviationList deviations={data.deviations} role={role} current={status.corrective} />;
@@ -110,6 +121,7 @@ function BatchBody({ id }: { id: number }) {
           </Text>
         ) : null}
       </Card>
+      {cachedAt !== null ? <CachedNote cachedAt={cachedAt} /> : null}
       {/* On a phone the entry comes first: logging is the job at the vessel. */}
       {isWide ? null : entry}
       <StatusFigures status={s} isPreview={preview.isPreview} />
@@ -124,8 +136,16 @@ function BatchBody({ id }: { id: number }) {
             <Text variant="title" accessibilityRole="header">
               Latest readings
             </Text>
-            {data.readings.length ? (
-              <DataTable columns={READING_COLUMNS} rows={[...data.readings].reverse().slice(0, 12)} rowKey={(r) => String(r.id)} caption="Latest readings, newest first" testID="readings-table" />
+            {logger.refused.length ? (
+              <View style={styles.links}>
+                <Text variant="small" tone="danger" testID="readings-refused">
+                  {logger.refused.length} reading{logger.refused.length > 1 ? 's were' : ' was'} not stored: {logger.refused.map((r) => r.message).join(' ')}
+                </Text>
+                <Button label="Dismiss" variant="ghost" onPress={logger.dismissRefused} testID="readings-refused-dismiss" />
+              </View>
+            ) : null}
+            {preview.rows.length ? (
+              <DataTable columns={READING_COLUMNS} rows={[...preview.rows].reverse().slice(0, 12)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
             ) : (
               <Text tone="muted">No readings yet.</Text>
             )}

@@ -36,12 +36,19 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
     return { at };
   }
 
-  async function submit(valueC: number, timeText: string) {
-    const t = checkTime(timeText);
+  // The device's copy of a queued reading is announced by the queue's line below, and gone once it is sent.
+  useEffect(() => {
+    if (logger.sentCount) setDone((d) => (d?.endsWith('on this device') ? null : d));
+  }, [logger.sentCount]);
+
+  /** `timeText` null: the reading is taken now, to the second (the field shows minutes only). */
+  async function submit(valueC: number, timeText: string | null) {
+    const t = timeText === null ? { at: new Date() } : checkTime(timeText);
     if (t.error) return setErrors({ time: t.error });
     setErrors({});
+    const shown = localInputValue(t.at!).slice(11);
     const outcome = await logger.log({ takenAt: t.at!.toISOString(), c: valueC, note: note.trim() || undefined });
-    setDone(outcome === 'sent' ? `Logged ${valueC.toFixed(1)} °C at ${timeText.slice(11)}` : `Saved ${valueC.toFixed(1)} °C at ${timeText.slice(11)} on this device`);
+    setDone(outcome === 'sent' ? `Logged ${valueC.toFixed(1)} °C at ${shown}` : `Saved ${valueC.toFixed(1)} °C at ${shown} on this device`);
     setTemp('');
     setNote('');
     setTimeEdited(false);
@@ -52,7 +59,8 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
     const v = Number(temp.trim().replace(',', '.'));
     if (temp.trim() === '' || !Number.isFinite(v)) return setErrors({ c: 'Enter the temperature in °C' });
     if (v < READING_MIN_C || v > READING_MAX_C) return setErrors({ c: `A reactor reading lies between ${READING_MIN_C} and ${READING_MAX_C} °C` });
-    void submit(v, time);
+    // An untouched time field means now: the moment of the tap, seconds included, so readings of one minute keep their order.
+    void submit(v, isTimeEdited ? time : null);
   }
 
   return (
@@ -103,7 +111,7 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
           <Button
             label={`Repeat ${lastC.toFixed(1)} °C now`}
             variant="secondary"
-            onPress={() => void submit(lastC, localInputValue(new Date()))}
+            onPress={() => void submit(lastC, null)}
             testID="reading-repeat"
           />
         ) : null}
@@ -117,12 +125,11 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
         <Text variant="small" tone="warning" testID="reading-queue">
           {logger.queued.length} reading{logger.queued.length > 1 ? 's' : ''} saved on this device, waiting for the network{logger.isOffline ? ' (offline)' : ''}. They are sent by themselves.
         </Text>
-      ) : null}
-      {logger.rejected.map((r) => (
-        <Text key={r.reading.key} variant="small" tone="danger" testID="reading-rejected">
-          Not stored: {r.reading.c} °C at {r.reading.takenAt.slice(11, 16)} UTC. {r.error.message}
+      ) : logger.sentCount ? (
+        <Text variant="small" tone="success" testID="reading-sent" accessibilityLiveRegion="polite">
+          {logger.sentCount} reading{logger.sentCount > 1 ? 's' : ''} sent
         </Text>
-      ))}
+      ) : null}
     </Card>
   );
 }

@@ -1,5 +1,6 @@
 import { StyleSheet, View } from 'react-native';
 import type { ApiError } from '../../api/client';
+import { shortTime } from '../../batches/local-time';
 import { radius, space, useColors } from '../../theme';
 import { Button } from './button';
 import { Card } from './card';
@@ -43,3 +44,16 @@ const styles = StyleSheet.create({
   loader: { gap: space.sm },
   skeleton: { height: 56, borderRadius: radius.md },
 });
+
+/**
+ * The figures beside it are the device's last good answer, not the server's current one: `cachedAt` is that
+ * answer's server time (an HTTP date), shown to the minute ("As of 14:02, offline").
+ */
+export function CachedNote({ cachedAt }: { cachedAt: string }) {
+  const at = Date.parse(cachedAt);
+  return (
+    <Text variant="small" tone="warning" weight="semibold" testID="cached-note" accessibilityLiveRegion="polite">
+      {Number.isFinite(at) ? `As of ${shortTime(new Date(at).toISOString())}, offline` : 'Offline: the last answer saved on this device'}: readings you log are kept here and sent when the network returns.
+    </Text>
+  );
+}
