@@ -153,7 +153,7 @@ export function demoAssayPoints(specTempC: number, qc: { halfLifeH: number; edKJ
 
 /** The demo points as the CSV a lab would send (per cent when `asPercent`). */
 export function demoAssayCsv(points: { tempC: number; timeH: number; residual: number }[], asPercent = false): string {
-  const head = asPercent ? 'temperature_c,time_h,residual_activity_percent' : 'temperature_c,time_h,residual_activity';
+  const head = asPercent ? 'temperature_c,time_h,residual_activity_percent' : 'temperature_c,time_h,residual_activity_fraction';
   return [head, ...points.map((p) => `${p.tempC},${p.timeH},${asPercent ? Math.round(p.residual * 1000) / 10 : p.residual}`)].join('\n') + '\n';
 }
 

@@ -10,20 +10,23 @@ import {
   BatchSettings,
   BatchSettingsPatch,
   BatchStart,
+  ImportProgress,
   ImportQuery,
   ImportResult,
+  MAX_IMPORT_BYTES,
   READING_LOGGERS,
   ReadingInput,
   ReadingResult,
 } from '../../src/contracts/batches';
 import { HttpError } from '../http-error';
 import { allow, currentUser } from '../middleware/auth';
-import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
+import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, importProgress, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
 import type { Services } from './services';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
-// A historian export of a long batch at one reading a second runs to several megabytes of text.
-const csvBody = express.text({ type: ['text/csv', 'text/plain', 'application/csv'], limit: '8mb' });
+// A historian export of a long batch at one reading a second runs to several megabytes. Kept as bytes: the
+// import worker finds the file's encoding (UTF-8, UTF-16, Latin-1) itself; the limit is checked as it streams in.
+const csvBody = express.raw({ type: ['text/csv', 'text/plain', 'application/csv'], limit: MAX_IMPORT_BYTES });
 
 export function batchesRouter(s: Services): Router {
   const router = Router();
@@ -49,10 +52,13 @@ export function batchesRouter(s: Services): Router {
     const { created, result } = await readings.log(currentUser(req), id, ReadingInput.parse(req.body));
     res.status(created ? 201 : 200).json(ReadingResult.parse(result));
   });
-  router.post('/:id/readings/import', allow(...READING_LOGGERS), csvBody, (req, res) => {
+  router.post('/:id/readings/import', allow(...READING_LOGGERS), csvBody, async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    if (typeof req.body !== 'string') throw new HttpError(400, 'invalid_input', 'Send the historian export as text/csv', { file: 'Expected a CSV file' });
-    res.json(ImportResult.parse(importReadings(s, currentUser(req), id, req.body, ImportQuery.parse(req.query))));
+    if (!Buffer.isBuffer(req.body)) throw new HttpError(400, 'invalid_input', 'Send the historian export as text/csv', { file: 'Expected a CSV file' });
+    res.json(ImportResult.parse(await importReadings(s, currentUser(req), id, req.body, ImportQuery.parse(req.query))));
+  });
+  router.get('/:id/readings/import', allow(...READING_LOGGERS), (req, res) => {
+    res.json(ImportProgress.parse(importProgress(s, currentUser(req), IdParam.parse(req.params).id)));
   });
   router.post('/:id/close', allow(...BATCH_STARTERS), (req, res) => {
     const { id } = IdParam.parse(req.params);

@@ -1,10 +1,10 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { Assay, AssayTableInput, MAX_ASSAY_BYTES } from '../../src/contracts/assays';
+import { Assay, AssayTableInput, AssayUpload, MAX_ASSAY_BYTES } from '../../src/contracts/assays';
 import { CertificateFile, Lot, LOT_DECIDERS, LOT_EDITORS, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { singleFile } from '../middleware/upload';
-import { ASSAY_TEMPLATE_CSV, readAssayCsv, readAssayTable } from '../services/assay-csv';
+import { ASSAY_TEMPLATE_CSV } from '../services/assay-csv';
 import { addAssay, exportAssayCsv } from '../services/assays';
 import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate, type LotServices } from '../services/lots';
 
@@ -39,14 +39,13 @@ export function lotsRouter(s: LotServices): Router {
     const { file, bytes } = readCertificate(s, currentUser(req), IdParam.parse(req.params).id);
     res.type(file.mimeType).set({ 'content-disposition': attachment(file.fileName), 'x-sha256': file.sha256 }).send(bytes);
   });
-  // A CSV file (multipart, field "file") or the editable table's rows (JSON); both are checked the same way.
-  router.post('/:id/assays', allow(...LOT_EDITORS), singleFile('file', MAX_ASSAY_BYTES), (req, res) => {
+  // A CSV file (multipart, field "file", optional field "scale") or the editable table's rows (JSON); both are checked the same way.
+  router.post('/:id/assays', allow(...LOT_EDITORS), singleFile('file', MAX_ASSAY_BYTES), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    const user = currentUser(req);
     const file = req.file;
     const assay = file
-      ? addAssay(s, user, id, () => readAssayCsv(file.buffer), 'csv', file.originalname.slice(0, 120))
-      : addAssay(s, user, id, () => { const input = AssayTableInput.parse(req.body); return readAssayTable(input.rows, input.scale); }, 'table', null);
+      ? await addAssay(s, currentUser(req), id, () => ({ kind: 'assay-csv', bytes: file.buffer, scale: AssayUpload.parse(req.body ?? {}).scale }), file.originalname.slice(0, 120))
+      : await addAssay(s, currentUser(req), id, () => ({ kind: 'assay-table', input: AssayTableInput.parse(req.body) }), null);
     res.status(201).json(Assay.parse(assay));
   });
   router.get('/:id/assays/:assayId/csv', allow(...ALL_ROLES), (req, res) => {

@@ -1,27 +1,28 @@
 import { writeTx, type Db } from '../../db/client';
 import type { Assay } from '../../src/contracts/assays';
 import type { SessionUser } from '../../src/contracts/session';
-import { fitAssay } from '../../src/stability';
 import { notFound } from '../http-error';
 import { findLotAssay, insertAssay, listAssayPoints } from '../repositories/assays';
 import { findSiteEnzyme } from '../repositories/enzymes';
 import { findSiteLot } from '../repositories/lots';
 import type { Services } from '../routes/services';
-import { assayPointsCsv, type CheckedAssay } from './assay-csv';
+import { runImport, type ImportTask } from '../imports';
+import { assayPointsCsv } from './assay-csv';
 import { appendAudit } from './audit';
 import { listLotAssayViews } from './lots';
 
-/** Stores checked points with the engine's fit about the enzyme's reference temperature, audited. */
-export function addAssay({ db, clock }: Services, u: SessionUser, lotId: number, read: () => CheckedAssay, source: 'csv' | 'table', fileName: string | null): Assay {
+type AssayJob = Extract<ImportTask, { kind: 'assay-csv' | 'assay-table' }>;
+type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
+
+/** Checks the rows and fits them about the enzyme's reference temperature on the import worker, then stores them, audited. */
+export async function addAssay({ db, clock }: Services, u: SessionUser, lotId: number, job: () => DistributiveOmit<AssayJob, 'tRefC'>, fileName: string | null): Promise<Assay> {
   const found = findSiteLot(db, u.siteId, lotId);
   if (!found) throw notFound('Lot');
-  // Read after the lot check, so another site's lot id answers 404 whatever the file holds.
-  const checked = read();
   const enzyme = findSiteEnzyme(db, u.siteId, found.lot.enzymeId)!;
-  const result = fitAssay(
-    enzyme.tRefC,
-    checked.points.map((p) => ({ c: p.tempC, h: p.timeH, residual: p.residual })),
-  );
+  // Read after the lot check, so another site's lot id answers 404 whatever the file holds.
+  const task = job();
+  const source = task.kind === 'assay-csv' ? 'csv' : 'table';
+  const { checked, fit: result } = await runImport({ ...task, tRefC: enzyme.tRefC } as AssayJob);
   const now = clock.now();
   const id = writeTx(db, (tx) => {
     const row = insertAssay(

@@ -5,7 +5,6 @@ import {
   batchStatus,
   forecastDeviation,
   isTimeZone,
-  parseHistorianCsv,
   plannedAt,
   readingDeviations,
   runDeviations,
@@ -29,6 +28,7 @@ import {
   type DeviationAcknowledge,
   type DeviationClose,
   type ImportProblem,
+  type ImportProgress,
   type ImportQuery,
   type ImportResult,
   type Reading,
@@ -38,6 +38,7 @@ import {
 import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
 import { HttpError, notFound } from '../http-error';
+import { runImport } from '../imports';
 import {
   batchesLoggedBy,
   countActiveDeviations,
@@ -483,68 +484,104 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
 }
 
 const MAX_PROBLEMS = 200;
+// Rows checked between turns of the event loop: a few milliseconds of work, so other requests get in between.
+const ROWS_PER_TURN = 10_000;
+const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
 
-/** A historian export in one transaction: rows that cannot be stored are reported by line and the rest go in. */
-export function importReadings({ db, clock }: Services, u: SessionUser, id: number, text: string, q: ImportQuery): ImportResult {
-  const j = runningBatch(db, u.siteId, id);
-  const b = j.batch;
+/** Imports under way, by batch id: bytes read of the upload's total, for the progress answer. */
+const importsRunning = new Map<number, { bytesRead: number; bytesTotal: number; phase: 'reading' | 'storing' }>();
+
+/** How far a running import into the batch is, or null when none runs. */
+export function importProgress(s: Services, u: SessionUser, id: number): ImportProgress {
+  loadBatch(s.db, u.siteId, id);
+  const p = importsRunning.get(id);
+  return p ? { isRunning: true, ...p } : { isRunning: false, bytesRead: 0, bytesTotal: 0, phase: null };
+}
+
+/**
+ * A historian export: read and checked on the import worker, then stored in one transaction; rows that cannot
+ * be stored are reported by line and the rest go in. One import per batch at a time.
+ */
+export async function importReadings(s: Services, u: SessionUser, id: number, bytes: Uint8Array, q: ImportQuery): Promise<ImportResult> {
+  const { db, clock } = s;
+  runningBatch(db, u.siteId, id);
   const timeZone = q.timeZone ?? u.siteTimeZone;
   if (!isTimeZone(timeZone)) throw new HttpError(400, 'invalid_input', `Unknown time zone ${timeZone}`, { timeZone: 'Give an IANA zone such as Europe/Berlin' });
-  const parsed = parseHistorianCsv(text, { timeZone, dateOrder: q.dateOrder });
-  if (parsed.total === 0) throw new HttpError(400, 'invalid_input', 'The file has no readings', { file: 'Expected lines of time and °C' });
-  const now = clock.now();
-  const problems: ImportProblem[] = parsed.problems.map((p) => ({ line: p.line, kind: 'invalid', message: p.message }));
-  const keys = existingKeys(db, b.id);
-  const seen = new Map<string, number>();
-  const accepted: { line: number; at: string; c: number; key: string }[] = [];
-  let outOfOrder = 0;
-  let lastMs = -Infinity;
-  for (const r of parsed.rows) {
-    const ms = Date.parse(r.at);
-    const key = `historian:${r.at}`;
-    const reject = (kind: ImportProblem['kind'], message: string) => problems.push({ line: r.line, kind, message });
-    if (r.c < READING_MIN_C || r.c > READING_MAX_C) reject('invalid', `${r.c} °C is outside ${READING_MIN_C} to ${READING_MAX_C} °C`);
-    else if (checkReadingTime(b.startedAt, ms, now)) reject('invalid', `${r.at}: ${checkReadingTime(b.startedAt, ms, now)}`);
-    else if (seen.has(key)) reject('duplicate', `Same time as line ${seen.get(key)}`);
-    else if (keys.has(key)) reject('already_stored', `A reading at ${r.at} is already stored`);
-    else {
-      if (ms < lastMs) {
-        outOfOrder++;
-        reject('out_of_order', `Earlier than the line before it; stored in time order`);
+  if (importsRunning.has(id)) throw new HttpError(409, 'import_running', 'Another import into this batch is running; try again when it has finished');
+  const progress = { bytesRead: 0, bytesTotal: bytes.length, phase: 'reading' as 'reading' | 'storing' };
+  importsRunning.set(id, progress);
+  try {
+    const parsed = await runImport({ kind: 'historian', bytes, timeZone, dateOrder: q.dateOrder }, (n) => (progress.bytesRead = n));
+    progress.bytesRead = bytes.length;
+    progress.phase = 'storing';
+    if (parsed.total === 0) throw new HttpError(400, 'invalid_input', 'The file has no readings', { file: 'Expected lines of time and °C' });
+    // Read again: the batch may have closed while the file was being read.
+    const b = runningBatch(db, u.siteId, id).batch;
+    const now = clock.now();
+    const problems: ImportProblem[] = parsed.problems.map((p) => ({ line: p.line, kind: 'invalid', message: p.message }));
+    const keys = existingKeys(db, b.id);
+    const seen = new Map<number, number>();
+    const accepted: { line: number; at: string; ms: number; c: number; key: string }[] = [];
+    let outOfOrder = 0;
+    let lastMs = -Infinity;
+    const { lines, atMs, c: temps } = parsed;
+    for (let i = 0; i < lines.length; i++) {
+      if (i % ROWS_PER_TURN === ROWS_PER_TURN - 1) await nextTurn();
+      const line = lines[i]!;
+      const ms = atMs[i]!;
+      const c = temps[i]!;
+      const at = new Date(ms).toISOString();
+      const key = `historian:${at}`;
+      const reject = (kind: ImportProblem['kind'], message: string) => problems.push({ line, kind, message });
+      const badTime = checkReadingTime(b.startedAt, ms, now);
+      if (c < READING_MIN_C || c > READING_MAX_C) reject('invalid', `${c} °C is outside ${READING_MIN_C} to ${READING_MAX_C} °C`);
+      else if (badTime) reject('invalid', `${at}: ${badTime}`);
+      else if (seen.has(ms)) reject('duplicate', `Same time as line ${seen.get(ms)}`);
+      else if (keys.has(key)) reject('already_stored', `A reading at ${at} is already stored`);
+      else {
+        if (ms < lastMs) {
+          outOfOrder++;
+          reject('out_of_order', `Earlier than the line before it; stored in time order`);
+        }
+        lastMs = Math.max(lastMs, ms);
+        seen.set(ms, line);
+        accepted.push({ line, at, ms, c, key });
       }
-      lastMs = Math.max(lastMs, ms);
-      seen.set(key, r.line);
-      accepted.push({ line: r.line, at: r.at, c: r.c, key });
     }
-  }
-  problems.sort((a, b2) => a.line - b2.line);
-  accepted.sort((a, b2) => (a.at < b2.at ? -1 : a.at > b2.at ? 1 : 0));
-  const settings = batchSettingsOf(db, u.siteId);
-  const stored = pointsOf(db, b);
-  const drafts = runDeviations(
-    rulesOf(b.program, settings),
-    stored,
-    accepted.map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })),
-  );
-  const raised = writeTx(db, (t) => {
-    const rows = insertReadings(
-      t,
-      accepted.map((a) => ({ siteId: u.siteId, batchId: b.id, clientKey: a.key, takenAt: a.at, c: a.c, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
+    await nextTurn();
+    problems.sort((a, b2) => a.line - b2.line);
+    accepted.sort((a, b2) => a.ms - b2.ms);
+    await nextTurn();
+    const settings = batchSettingsOf(db, u.siteId);
+    const stored = pointsOf(db, b);
+    const drafts = runDeviations(
+      rulesOf(b.program, settings),
+      stored,
+      accepted.map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })),
     );
-    appendAudit(t, {
-      siteId: u.siteId,
-      userId: u.id,
-      actor: u.email,
-      action: 'batch.readings_import',
-      entity: 'batch',
-      entityId: b.id,
-      newValue: { rows: parsed.total, imported: rows.length, timeZone, dateOrder: q.dateOrder, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
-      at: now,
+    await nextTurn();
+    const raised = writeTx(db, (t) => {
+      const rows = insertReadings(
+        t,
+        accepted.map((a) => ({ siteId: u.siteId, batchId: b.id, clientKey: a.key, takenAt: a.at, c: a.c, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
+      );
+      appendAudit(t, {
+        siteId: u.siteId,
+        userId: u.id,
+        actor: u.email,
+        action: 'batch.readings_import',
+        entity: 'batch',
+        entityId: b.id,
+        newValue: { rows: parsed.total, imported: rows.length, timeZone, dateOrder: q.dateOrder, encoding: parsed.encoding, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
+        at: now,
+      });
+      return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index]!.id, draft: d.draft })), now).length : 0;
     });
-    return accepted.length ? raiseDeviations(t, u, b, drafts.map((d) => ({ readingId: rows[d.index].id, draft: d.draft })), now).length : 0;
-  });
-  const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
-  return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone };
+    const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
+    return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone, encoding: parsed.encoding };
+  } finally {
+    importsRunning.delete(id);
+  }
 }
 
 // Deviations ---------------------------------------------------------------------------------------------

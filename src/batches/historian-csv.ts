@@ -1,15 +1,8 @@
-// Plant historian exports: a time column and a degC column. Exports differ by site and tool, so the parser
-// accepts the common shapes: comma, semicolon or tab separators (semicolon files may use a decimal comma),
-// an optional header naming the columns, ISO-8601 times with or without a zone, day.month.year or
-// day/month/year (or month/day/year) local times with optional AM/PM, and Unix epoch seconds or milliseconds.
+// Times in plant historian exports: ISO-8601 with or without a zone, day.month.year or day/month/year (or
+// month/day/year) local times with optional AM/PM, and Unix epoch seconds or milliseconds. The file itself is
+// read on the server (server/services/historian-csv.ts); these rules are pure so any caller reads times alike.
 
 export type DateOrder = 'dmy' | 'mdy';
-export type ParsedRow = { line: number; at: string; c: number };
-export type RowProblem = { line: number; message: string };
-export type ParsedCsv = { rows: ParsedRow[]; problems: RowProblem[]; total: number };
-
-const TIME_HEADER = /^(time|timestamp|date ?time|datetime|date|ts|zeit)$/i;
-const TEMP_HEADER = /(deg ?c|°c|temp|temperature|value|pv)/i;
 
 // Building a formatter costs far more than using one; a 50,000-row import asks for the same zone each time.
 const formatters = new Map<string, Intl.DateTimeFormat>();
@@ -97,75 +90,4 @@ export function parseTime(raw: string, timeZone: string, dateOrder: DateOrder): 
     utc = zonedToUtcMs(y, mo, d, h, mi, sec, ms, timeZone);
   }
   return new Date(utc).toISOString();
-}
-
-function splitLine(line: string, sep: string): string[] {
-  if (!line.includes('"')) return line.split(sep);
-  const out: string[] = [];
-  let cur = '';
-  let quoted = false;
-  for (let i = 0; i < line.length; i++) {
-    const ch = line[i];
-    if (ch === '"') {
-      if (quoted && line[i + 1] === '"') {
-        cur += '"';
-        i++;
-      } else quoted = !quoted;
-    } else if (ch === sep && !quoted) {
-      out.push(cur);
-      cur = '';
-    } else cur += ch;
-  }
-  out.push(cur);
-  return out;
-}
-
-function detectSeparator(sample: string): string {
-  const count = (ch: string) => sample.split(ch).length - 1;
-  if (count('\t') > 0) return '\t';
-  return count(';') > 0 ? ';' : ',';
-}
-
-/** Reads a historian export; rows that cannot be read are reported by line (1-based, header included). */
-export function parseHistorianCsv(text: string, opts: { timeZone: string; dateOrder: DateOrder }): ParsedCsv {
-  const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/);
-  const firstData = lines.findIndex((l) => l.trim() !== '');
-  if (firstData < 0) return { rows: [], problems: [], total: 0 };
-  const sep = detectSeparator(lines[firstData]);
-  let timeCol = 0;
-  let tempCol = 1;
-  let start = firstData;
-  const head = splitLine(lines[firstData], sep).map((h) => h.trim().replace(/^"|"$/g, ''));
-  if (typeof parseTime(head[0] ?? '', opts.timeZone, opts.dateOrder) !== 'string' && !/^-?\d/.test(head[1] ?? '')) {
-    start = firstData + 1;
-    const t = head.findIndex((h) => TIME_HEADER.test(h));
-    const c = head.findIndex((h, i) => i !== t && TEMP_HEADER.test(h));
-    if (t >= 0) timeCol = t;
-    if (c >= 0) tempCol = c;
-    else if (t >= 0) tempCol = t === 0 ? 1 : 0;
-  }
-  const rows: ParsedRow[] = [];
-  const problems: RowProblem[] = [];
-  let total = 0;
-  for (let i = start; i < lines.length; i++) {
-    const line = lines[i];
-    if (line.trim() === '') continue;
-    total++;
-    const cells = splitLine(line, sep);
-    const lineNo = i + 1;
-    const at = parseTime(cells[timeCol] ?? '', opts.timeZone, opts.dateOrder);
-    if (typeof at !== 'string') {
-      problems.push({ line: lineNo, message: at.error });
-      continue;
-    }
-    let raw = (cells[tempCol] ?? '').trim().replace(/^"|"$/g, '');
-    if (sep === ';') raw = raw.replace(',', '.');
-    const c = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(raw) ? Number(raw) : NaN;
-    if (!Number.isFinite(c)) {
-      problems.push({ line: lineNo, message: `Cannot read "${raw.slice(0, 20)}" as a temperature in °C` });
-      continue;
-    }
-    rows.push({ line: lineNo, at, c });
-  }
-  return { rows, problems, total };
 }

@@ -27,6 +27,10 @@ export const AssayTableInput = z.strictObject({
 });
 export type AssayTableInput = z.infer<typeof AssayTableInput>;
 
+/** Form fields sent with an assay CSV: the residual unit, when the column header does not name it. */
+export const AssayUpload = z.object({ scale: ResidualScale.optional() });
+export type AssayUpload = z.infer<typeof AssayUpload>;
+
 /** A stored measurement; residual is always a fraction of the activity at time 0. */
 export const AssayPoint = z.object({
   line: z.number().int(),

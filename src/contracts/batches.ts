@@ -224,6 +224,10 @@ export type ReadingResult = z.infer<typeof ReadingResult>;
 export const ImportProblem = z.object({ line: z.number().int(), kind: z.enum(['invalid', 'duplicate', 'already_stored', 'out_of_order']), message: z.string() });
 export type ImportProblem = z.infer<typeof ImportProblem>;
 
+/** Largest historian import: readings (data rows) and bytes of CSV, both checked while the upload streams in. */
+export const MAX_IMPORT_ROWS = 300_000;
+export const MAX_IMPORT_BYTES = 12 * 1024 * 1024;
+
 export const ImportQuery = z.object({
   /** Zone of times written without one; the site's zone when omitted. */
   timeZone: z.string().max(64).optional(),
@@ -240,5 +244,16 @@ export const ImportResult = z.object({
   /** First problems by line (at most 200); counts above cover all. */
   problems: z.array(ImportProblem),
   timeZone: z.string(),
+  /** How the file's bytes were read (UTF-8, UTF-16 from its BOM or bytes, or Windows-1252 / Latin-1). */
+  encoding: z.string(),
 });
 export type ImportResult = z.infer<typeof ImportResult>;
+
+/** A running historian import into a batch: bytes read of the upload, then storing. */
+export const ImportProgress = z.object({
+  isRunning: z.boolean(),
+  bytesRead: z.number().int(),
+  bytesTotal: z.number().int(),
+  phase: z.enum(['reading', 'storing']).nullable(),
+});
+export type ImportProgress = z.infer<typeof ImportProgress>;

@@ -1,5 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { parseHistorianCsv, parseTime, zonedToUtcMs } from '../../src/batches';
+import { readHistorianCsv } from '../../server/services/historian-csv';
+import { parseTime, zonedToUtcMs } from '../../src/batches';
+
+const parseHistorianCsv = (text: string, opts: { timeZone: string; dateOrder: 'dmy' | 'mdy' }) => readHistorianCsv(Buffer.from(text), opts);
 
 describe('parseTime', () => {
   // Europe/Berlin is UTC+1 in winter and UTC+2 in summer (EU summer time: last Sunday of March to last Sunday of October).
@@ -33,10 +36,10 @@ describe('parseTime', () => {
   });
 });
 
-describe('parseHistorianCsv', () => {
-  it('finds the columns by header and reports bad lines by number', () => {
+describe('readHistorianCsv', () => {
+  it('finds the columns by header and reports bad lines by number', async () => {
     const text = ['Tag,Timestamp,Temperature degC', 'R1,2026-12-01T08:00:00Z,50.1', 'R1,not a time,50', 'R1,2026-12-01T08:01:00Z,warm', 'R1,2026-12-01T08:02:00Z,50.3', ''].join('\r\n');
-    const r = parseHistorianCsv(text, { timeZone: 'UTC', dateOrder: 'dmy' });
+    const r = await parseHistorianCsv(text, { timeZone: 'UTC', dateOrder: 'dmy' });
     expect(r.total).toBe(4);
     expect(r.rows).toEqual([
       { line: 2, at: '2026-12-01T08:00:00.000Z', c: 50.1 },
@@ -45,16 +48,16 @@ describe('parseHistorianCsv', () => {
     expect(r.problems.map((p) => p.line)).toEqual([3, 4]);
   });
 
-  it('reads semicolon files with a decimal comma and local times', () => {
-    const r = parseHistorianCsv('Zeit;°C\n01.12.2026 09:00;50,5\n01.12.2026 09:30;51,25\n', { timeZone: 'Europe/Berlin', dateOrder: 'dmy' });
+  it('reads semicolon files with a decimal comma and local times', async () => {
+    const r = await parseHistorianCsv('Zeit;°C\n01.12.2026 09:00;50,5\n01.12.2026 09:30;51,25\n', { timeZone: 'Europe/Berlin', dateOrder: 'dmy' });
     expect(r.rows.map((x) => [x.at, x.c])).toEqual([
       ['2026-12-01T08:00:00.000Z', 50.5],
       ['2026-12-01T08:30:00.000Z', 51.25],
     ]);
   });
 
-  it('reads a file without a header', () => {
-    const r = parseHistorianCsv('2026-12-01T08:00:00Z,50\n2026-12-01T08:10:00Z,51\n', { timeZone: 'UTC', dateOrder: 'dmy' });
+  it('reads a file without a header', async () => {
+    const r = await parseHistorianCsv('2026-12-01T08:00:00Z,50\n2026-12-01T08:10:00Z,51\n', { timeZone: 'UTC', dateOrder: 'dmy' });
     expect(r.rows).toHaveLength(2);
     expect(r.problems).toEqual([]);
   });

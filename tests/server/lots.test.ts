@@ -188,13 +188,15 @@ describe('assays', () => {
     expect(after.evaluation).toMatchObject({ basis: 'assay', comparedH: est.lowerH, recommendation: 'accept' });
   });
 
-  it('detects per cent and converts to fractions', async () => {
+  it('reads per cent when the header says so, converts to fractions, and refuses a file that names no unit', async () => {
     const c = await t.signIn('engineer');
     const id = await lotId(c, 'OF-LX5-1128');
-    const r = await upload(c, `/api/lots/${id}/assays`, 'qc-pct.csv', demoAssayCsv(points, true).replace('residual_activity_percent', 'remaining activity'), 'text/csv');
+    const unnamed = await upload(c, `/api/lots/${id}/assays`, 'qc-pct.csv', demoAssayCsv(points, true).replace('residual_activity_percent', 'remaining activity'), 'text/csv');
+    expect([unnamed.status, unnamed.body.error.code]).toEqual([400, 'scale_missing']);
+    const r = await upload(c, `/api/lots/${id}/assays`, 'qc-pct.csv', demoAssayCsv(points, true), 'text/csv');
     expect(r.status).toBe(201);
     expect(r.body.scale).toBe('percent');
-    expect(r.body.scaleNote).toMatch(/above 1.5/);
+    expect(r.body.scaleNote).toMatch(/header says so/);
     expect(Math.max(...r.body.points.map((p: { residual: number }) => p.residual))).toBeLessThanOrEqual(1);
   });
 
@@ -226,7 +228,7 @@ describe('assays', () => {
     const c = await t.signIn('procurement');
     const id = await lotId(c, 'CLP-2611-02');
     const n0 = pointCount();
-    const csv = 'temperature_c,time_h,residual_activity\n45,0,1\n45,abc,0.9\n\n318,2,0.8\n45,4,0\n45,6,-0.1\n';
+    const csv = 'temperature_c,time_h,residual_activity_fraction\n45,0,1\n45,abc,0.9\n\n318,2,0.8\n45,4,0\n45,6,-0.1\n';
     const r = await upload(c, `/api/lots/${id}/assays`, 'bad.csv', csv, 'text/csv');
     expect(r.status).toBe(400);
     expect(r.body.error.code).toBe('invalid_rows');
@@ -260,7 +262,7 @@ describe('assays', () => {
     const c = await t.signIn('procurement');
     const id = await lotId(c, 'CLP-2611-02');
     const rows = (n: number) => {
-      const lines = ['temperature_c,time_h,residual_activity'];
+      const lines = ['temperature_c,time_h,residual_activity_fraction'];
       for (let i = 0; i < n; i++) {
         const tempC = i % 2 ? 45 : 50;
         const h = (i % 50) * 0.5;
@@ -294,7 +296,7 @@ describe('assays', () => {
     const c = await t.signIn('procurement');
     const id = await lotId(c, 'TAA-4522');
     const csv = [
-      'temperature_c,time_h,residual_activity,note',
+      'temperature_c,time_h,residual_activity_fraction,note',
       '85,0,1,=cmd|\' /C calc\'!A0',
       '85,1,0.83,+SUM(A1:A2)',
       '89,0,1,-2+3',
@@ -316,7 +318,7 @@ describe('assays', () => {
       '93,1,0.35,"plain, with comma"',
     ]);
     // A formula in a number column is not a number: refused with its line.
-    const bad = await upload(c, `/api/lots/${id}/assays`, 'f.csv', 'temperature_c,time_h,residual_activity\n=1+84,1,0.5\n', 'text/csv');
+    const bad = await upload(c, `/api/lots/${id}/assays`, 'f.csv', 'temperature_c,time_h,residual_activity_fraction\n=1+84,1,0.5\n', 'text/csv');
     expect(bad.body.error.fields['line 2']).toMatch(/temperature "=1\+84" is not a number/);
   });
 
