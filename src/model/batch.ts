@@ -1,5 +1,5 @@
 import { KELVIN_OFFSET, R } from './constants';
-import { compileRates, lnKAt, lnVAt, slopeBoundK, softplus, type Rates } from './kinetics';
+import { compileRates, lnK2At, lnKAt, lnVAt, LN_RATE_CAP, slopeBoundK, softplus, type Rates } from './kinetics';
 import { wrightOmega } from './lambert-w';
 import { quadRule } from './quadrature';
 import type {
@@ -16,13 +16,18 @@ import type {
 // function through a getter, which blocks inlining in the inner loops.
 const lnVFast = lnVAt;
 const lnKFast = lnKAt;
+const lnK2Fast = lnK2At;
 const omega = wrightOmega;
 const softplusFast = softplus;
 
-/** Mutable integration state: work x (g/L), activity a (fraction), inactivation integral kint = integral of kd dt. */
+/**
+ * Mutable integration state: work x (g/L); activity a of the labile fraction and b of the stable fraction,
+ * each as a fraction of the total activity at h = 0 (one fraction: b = 0); kint = integral of the labile kd dt.
+ */
 export interface WorkState {
   x: number;
   a: number;
+  b: number;
   kint: number;
 }
 
@@ -36,16 +41,29 @@ const RULE_4 = quadRule(4);
 const RULE_6 = quadRule(6);
 const LV = new Float64Array(8);
 const KK = new Float64Array(8);
+const KK2 = new Float64Array(8);
 
-/** Advance through a constant temperature (1/T in 1/K) for dur hours: closed form. */
+/** (1 - e^(-k t))/k in h for k in 1/h: the work per unit rate and activity over t hours at constant k. */
+function decayIntegral(k: number, t: number): number {
+  const kt = k * t;
+  return kt > 1e-300 ? -Math.expm1(-kt) / k : t;
+}
+
+/** Advance through a constant temperature (1/T in 1/K) for dur hours: closed form, a sum of two exponential integrals with two fractions. */
 export function advanceConstant(r: Rates, invT: number, dur: number, st: WorkState): void {
   if (!(dur > 0)) return;
   const k = Math.exp(lnKFast(r, invT));
   const kd = k * dur;
-  if (st.a > 0) {
-    const phi = kd > 1e-300 ? -Math.expm1(-kd) / k : dur;
-    st.x += Math.exp(lnVFast(r, invT)) * st.a * phi;
+  if (st.a > 0 || st.b > 0) {
+    let w = st.a * decayIntegral(k, dur);
     st.a *= Math.exp(-kd);
+    if (st.b > 0) {
+      const k2 = Math.exp(lnK2Fast(r, invT));
+      w += st.b * decayIntegral(k2, dur);
+      st.b *= Math.exp(-k2 * dur);
+    }
+    // In logs: a huge Arrhenius factor on V meets a vanishing integral of the activity (Infinity x 0).
+    if (w > 0) st.x += Math.exp(lnVFast(r, invT) + Math.log(w));
   }
   st.kint += kd;
 }
@@ -61,15 +79,21 @@ export function advanceRamp(r: Rates, c0: number, c1: number, dur: number, st: W
   const dT = c1 - c0;
   const tMin = Math.min(c0, c1) + KELVIN_OFFSET;
   const slopeLn = (slopeBoundK(r) * Math.abs(dT)) / (tMin * tMin * dur);
+  let two = st.b > 0;
   let tau = 0;
   while (tau < dur) {
     const ta = t0 + (dT * tau) / dur;
-    const kc = Math.exp(lnKFast(r, 1 / ta));
+    // Pieces are cut by the decay inside them only while there is activity to decay: once it has underflowed,
+    // only the change of the rates matters (an enormous kd would otherwise ask for astronomically many pieces).
+    let kc = st.a > 0 ? Math.exp(lnKFast(r, 1 / ta)) : 0;
+    if (two && st.b > 0) kc = Math.max(kc, Math.exp(lnK2Fast(r, 1 / ta)));
     const bound = Math.max(slopeLn, kc * E_DELTA);
     let h = dur - tau;
     if (bound * h > DELTA) {
       h = DELTA / bound;
-      if (dur - tau - h < 1e-9 * dur) h = dur - tau;
+      // A piece below the rounding of tau cannot advance it: the activity then dies within a few ulps, and
+      // whatever work is left there is far below rounding of the total.
+      if (dur - tau - h < 1e-9 * dur || tau + h === tau) h = dur - tau;
     }
     const last = tau + h >= dur;
     const tb = last ? t0 + dT : t0 + (dT * (tau + h)) / dur;
@@ -81,23 +105,43 @@ export function advanceRamp(r: Rates, c0: number, c1: number, dur: number, st: W
     const q = rule.q;
     const span = tb - ta;
     let kend = 0;
+    let kend2 = 0;
     for (let j = 0; j < n; j++) {
       const invT = 1 / (ta + span * s[j]);
       LV[j] = lnVFast(r, invT);
       KK[j] = Math.exp(lnKFast(r, invT));
       kend += w[j] * KK[j];
+      if (two) {
+        KK2[j] = Math.exp(lnK2Fast(r, invT));
+        kend2 += w[j] * KK2[j];
+      }
     }
     kend *= h;
-    if (st.a > 0) {
+    if (st.a > 0 || two) {
       let sum = 0;
       for (let i = 0; i < n; i++) {
         let ki = 0;
         const row = i * n;
         for (let j = 0; j < n; j++) ki += q[row + j] * KK[j];
-        sum += w[i] * Math.exp(LV[i] - h * ki);
+        let term = st.a * Math.exp(LV[i] - h * ki);
+        if (two) {
+          let ki2 = 0;
+          for (let j = 0; j < n; j++) ki2 += q[row + j] * KK2[j];
+          term += st.b * Math.exp(LV[i] - h * ki2);
+        }
+        sum += w[i] * term;
       }
-      st.x += st.a * h * sum;
+      st.x += h * sum;
       st.a *= Math.exp(-kend);
+      // Activity below 1e-300 of the start is gone: flush it, as a denormal times e^-0.5 rounds back to itself.
+      if (st.a < 1e-300) st.a = 0;
+      if (two) {
+        st.b *= Math.exp(-kend2 * h);
+        if (st.b < 1e-300) {
+          st.b = 0;
+          two = false;
+        }
+      }
     }
     st.kint += kend;
     if (last) break;
@@ -185,9 +229,8 @@ export function integrateProgram(r: Rates, temp: TemperatureInput, from: number,
 }
 
 /** Product (g/L) made by accumulated work x (g/L): S = Km W0((S0/Km) e^((S0-x)/Km)) in log form, polished with log1p. */
-export function productFromWork(x: number, s0: number, km: number): number {
-  if (!(x > 0)) return 0;
-  const l = Math.log(s0 / km) + (s0 - x) / km;
+function productMichaelisMenten(x: number, s0: number, km: number): number {
+  const l = Math.log(s0) - Math.log(km) + (s0 - x) / km;
   let s = km * omega(l);
   if (s > s0) s = s0;
   let p = s0 - s;
@@ -201,9 +244,85 @@ export function productFromWork(x: number, s0: number, km: number): number {
   return p;
 }
 
-/** Start state of a fresh batch, or a copy of a given one. */
-export function startState(start?: BatchState): WorkState {
-  return { x: start ? start.workGPerL : 0, a: start ? start.activity : 1, kint: 0 };
+/**
+ * Product (g/L) for work x (g/L) with competitive product inhibition (1/Ki, L/g) and substrate inhibition
+ * (1/Ksi, L/g): the root of x = c1 ln(S0/S) + (1 - Km/Ki) P + (S0^2 - S^2)/(2 Ksi), c1 = Km (1 + S0/Ki),
+ * P = S0 - S, by Newton kept inside a bracket (bisection when a step leaves it). The left side rises with P
+ * (its derivative is 1/rate), so the root is unique. Low conversion: Newton on P with log1p, so P keeps its
+ * digits; high conversion: Newton on ln S, so S keeps its digits down to underflow.
+ */
+function productInhibited(x: number, s0: number, km: number, iKi: number, iKsi: number): number {
+  const c1 = km * (1 + s0 * iKi);
+  const lin = 1 - km * iKi;
+  const half = 0.5 * s0;
+  if (c1 * Math.LN2 + lin * half + 0.375 * s0 * s0 * iKsi - x >= 0) {
+    let lo = 0;
+    let hi = half;
+    // x / F'(0): from below the root when F is convex, which it is unless substrate inhibition is strong.
+    let p = Math.min(half, x / (km / s0 + 1 + s0 * iKsi));
+    for (let i = 0; i < 100; i++) {
+      const s = s0 - p;
+      const f = -c1 * Math.log1p(-p / s0) + lin * p + 0.5 * p * (s0 + s) * iKsi - x;
+      if (f === 0) return p;
+      if (f > 0) hi = p;
+      else lo = p;
+      let next = p - f / ((km * (1 + p * iKi)) / s + 1 + s * iKsi);
+      if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
+      const done = Math.abs(next - p) <= 2e-16 * next || hi - lo <= 2e-16 * hi;
+      p = next;
+      if (done) break;
+    }
+    return p;
+  }
+  const lnS0 = Math.log(s0);
+  // Asymptote for S << S0; the true root lies below it (or above by under eps S0), so S has underflowed
+  // against S0 once the asymptote is 40 e-folds down.
+  let y = lnS0 - (x - lin * s0 - 0.5 * s0 * s0 * iKsi) / c1;
+  if (!(y > lnS0 - 40)) return s0;
+  // G(yLo) >= 0 because the non-logarithmic terms are at least -Km S0/Ki.
+  let yLo = lnS0 - (x + km * s0 * iKi) / c1;
+  let yHi = lnS0 - Math.LN2;
+  if (!(y > yLo && y < yHi)) y = 0.5 * (yLo + yHi);
+  for (let i = 0; i < 100; i++) {
+    const s = Math.exp(y);
+    const p = s0 - s;
+    const g = c1 * (lnS0 - y) + lin * p + 0.5 * p * (s0 + s) * iKsi - x;
+    if (g === 0) break;
+    if (g > 0) yLo = y;
+    else yHi = y;
+    let next = y + g / (km * (1 + p * iKi) + s + s * s * iKsi);
+    if (!(next > yLo && next < yHi)) next = 0.5 * (yLo + yHi);
+    const done = Math.abs(next - y) <= 4e-16 * Math.max(1, Math.abs(y)) || yHi - yLo <= 4e-16 * Math.max(1, Math.abs(y));
+    y = next;
+    if (done) break;
+  }
+  return s0 - Math.exp(y);
+}
+
+/** Product (g/L) made by accumulated work x (g/L) for a substrate charge; absent Ki and Ksi: the plain integrated Michaelis-Menten law. */
+export function productFromWork(x: number, substrate: Substrate): number {
+  if (!(x > 0)) return 0;
+  const s0 = substrate.s0GPerL;
+  const ki = substrate.kiGPerL;
+  const ksi = substrate.ksiGPerL;
+  if (ki === undefined && ksi === undefined) return productMichaelisMenten(x, s0, substrate.kmGPerL);
+  return productInhibited(x, s0, substrate.kmGPerL, ki === undefined ? 0 : 1 / ki, ksi === undefined ? 0 : 1 / ksi);
+}
+
+/** Start state of a fresh batch, or of a given one (no stable part given: split as at h = 0). */
+export function startState(r: Rates, start?: BatchState): WorkState {
+  const total = start ? start.activity : 1;
+  const b = r.share > 0 ? (start?.stableActivity ?? r.share * total) : 0;
+  return { x: start ? start.workGPerL : 0, a: total - b, b, kint: 0 };
+}
+
+/** The engine's answer for a state: work saturates at the largest double instead of overflowing (product is then S0). */
+export function resultOf(st: WorkState, substrate: Substrate, hasStable: boolean): SimulationResult {
+  const x = Math.min(st.x, Number.MAX_VALUE);
+  const p = productFromWork(x, substrate);
+  const out: SimulationResult = { productGPerL: p, conversion: p / substrate.s0GPerL, residualActivity: st.a + st.b, workGPerL: x };
+  if (hasStable) out.stableActivity = st.b;
+  return out;
 }
 
 /** Simulate a batch of batchH hours: product and conversion (g/L, fraction), activity left, work done (g/L). */
@@ -214,29 +333,33 @@ export function simulate(
   temperature: TemperatureInput,
   start?: BatchState,
 ): SimulationResult {
-  const s0 = substrate.s0GPerL;
-  if ('setpointC' in temperature) {
+  if ('setpointC' in temperature && !enzyme.stableFraction) {
     // One constant segment: skip compiling the rates (two logarithms and an object) on this hot path.
     const dInv = 1 / (temperature.setpointC + KELVIN_OFFSET) - 1 / (enzyme.tRefC + KELVIN_OFFSET);
-    let k = enzyme.kdRefPerH * Math.exp(((-enzyme.edKJPerMol * 1000) / R) * dInv);
-    let v = enzyme.vmaxRef * Math.exp(((-enzyme.eaKJPerMol * 1000) / R) * dInv);
+    let lnK = Math.log(enzyme.kdRefPerH) + ((-enzyme.edKJPerMol * 1000) / R) * dInv;
+    let lnV = Math.log(enzyme.vmaxRef) + ((-enzyme.eaKJPerMol * 1000) / R) * dInv;
     const eq = enzyme.equilibrium;
     if (eq) {
       const lnKeq = ((eq.dHeqKJPerMol * 1000) / R) * (1 / (eq.teqC + KELVIN_OFFSET) - 1 / (temperature.setpointC + KELVIN_OFFSET));
-      v *= Math.exp(-softplusFast(lnKeq));
-      k *= Math.exp(-softplusFast(-lnKeq));
+      lnV -= softplusFast(lnKeq);
+      lnK -= softplusFast(-lnKeq);
     }
+    if (lnK > LN_RATE_CAP) lnK = LN_RATE_CAP;
+    if (lnV > LN_RATE_CAP) lnV = LN_RATE_CAP;
+    const k = Math.exp(lnK);
     const a0 = start ? start.activity : 1;
     const kt = k * batchH;
-    const x = (start ? start.workGPerL : 0) + v * a0 * (kt > 1e-300 ? -Math.expm1(-kt) / k : batchH);
-    const p = productFromWork(x, s0, substrate.kmGPerL);
-    return { productGPerL: p, conversion: p / s0, residualActivity: a0 * Math.exp(-kt), workGPerL: x };
+    // In logs, so that a huge Arrhenius factor on V meets the vanishing integral of activity without Infinity x 0.
+    const phi = kt > 1e-300 ? -Math.expm1(-kt) / k : batchH;
+    let x = (start ? start.workGPerL : 0) + (a0 > 0 ? Math.exp(lnV + Math.log(a0 * phi)) : 0);
+    if (x > Number.MAX_VALUE) x = Number.MAX_VALUE;
+    const p = productFromWork(x, substrate);
+    return { productGPerL: p, conversion: p / substrate.s0GPerL, residualActivity: a0 * Math.exp(-kt), workGPerL: x };
   }
   const r = compileRates(enzyme);
-  const st = startState(start);
+  const st = startState(r, start);
   integrateProgram(r, temperature, 0, batchH, st);
-  const p = productFromWork(st.x, s0, substrate.kmGPerL);
-  return { productGPerL: p, conversion: p / s0, residualActivity: st.a, workGPerL: st.x };
+  return resultOf(st, substrate, r.share > 0);
 }
 
 /** Product and activity at `points` evenly spaced times over the batch (h, degC, g/L, fraction), for charts. */
@@ -249,7 +372,7 @@ export function trajectory(
   start?: BatchState,
 ): TrajectoryPoint[] {
   const r = compileRates(enzyme);
-  const st = startState(start);
+  const st = startState(r, start);
   const n = Math.max(2, Math.floor(points));
   const out: TrajectoryPoint[] = [];
   let prev = 0;
@@ -260,8 +383,8 @@ export function trajectory(
     out.push({
       h: t,
       c: temperatureAt(temperature, t),
-      productGPerL: productFromWork(st.x, substrate.s0GPerL, substrate.kmGPerL),
-      activity: st.a,
+      productGPerL: productFromWork(Math.min(st.x, Number.MAX_VALUE), substrate),
+      activity: st.a + st.b,
     });
   }
   return out;

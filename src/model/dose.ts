@@ -1,6 +1,6 @@
 import { KELVIN_OFFSET } from './constants';
 import { compileRates, lnKAt } from './kinetics';
-import { integrateProgram, productFromWork, type WorkState } from './batch';
+import { integrateProgram, productFromWork, startState, type WorkState } from './batch';
 import type { BatchState, EnzymeParams, Reading, Substrate, TemperatureInput } from './types';
 
 export interface DoseResult {
@@ -16,6 +16,20 @@ export interface DoseResult {
   forecastResidualActivity: number;
   /** State at the last reading, to continue from. */
   state: BatchState;
+  /** Two fractions only: equivalent hours at refC under the stable fraction's own Ed. */
+  stableEquivalentHAtRef?: number;
+  /** Two fractions only: the stable fraction's part of residualActivity and of forecastResidualActivity. */
+  stableActivity?: number;
+  forecastStableActivity?: number;
+}
+
+// Dose is a shape of temperature alone, so take it with unit kd at the reference (also when kdRef is 0).
+function equivalentHours(enzyme: EnzymeParams, edKJPerMol: number, log: readonly Reading[], lastH: number, ref: number): number {
+  const unit = compileRates({ ...enzyme, stableFraction: undefined, edKJPerMol, kdRefPerH: 1, tRefC: ref });
+  const kRef = Math.exp(lnKAt(unit, 1 / (ref + KELVIN_OFFSET)));
+  const du: WorkState = { x: 0, a: 1, b: 0, kint: 0 };
+  integrateProgram(unit, { log }, 0, lastH, du);
+  return du.kint / kRef;
 }
 
 /** Thermal dose of a logged history (h, degC): equivalent hours at refC (default the enzyme's tRefC), activity and product so far, forecast under the plan. */
@@ -30,24 +44,26 @@ export function thermalDose(
   const ref = refC ?? enzyme.tRefC;
   const r = compileRates(enzyme);
   const lastH = Math.min(batchH, log.length > 0 ? log[log.length - 1].h : 0);
-  const st: WorkState = { x: 0, a: 1, kint: 0 };
+  const st = startState(r);
   integrateProgram(r, { log }, 0, lastH, st);
-  // Dose is a shape of temperature alone, so take it with unit kd at the reference (also when kdRef is 0).
-  const unit = compileRates({ ...enzyme, kdRefPerH: 1, tRefC: ref });
-  const kRef = Math.exp(lnKAt(unit, 1 / (ref + KELVIN_OFFSET)));
-  const du: WorkState = { x: 0, a: 1, kint: 0 };
-  integrateProgram(unit, { log }, 0, lastH, du);
-  const now = { x: st.x, a: st.a };
+  const now = { x: st.x, a: st.a, b: st.b };
   integrateProgram(r, plan, lastH, batchH, st);
-  const { s0GPerL: s0, kmGPerL: km } = substrate;
-  return {
-    equivalentHAtRef: du.kint / kRef,
+  const out: DoseResult = {
+    equivalentHAtRef: equivalentHours(enzyme, enzyme.edKJPerMol, log, lastH, ref),
     refC: ref,
     lastH,
-    residualActivity: now.a,
-    productGPerL: productFromWork(now.x, s0, km),
-    forecastProductGPerL: productFromWork(st.x, s0, km),
-    forecastResidualActivity: st.a,
-    state: { workGPerL: now.x, activity: now.a },
+    residualActivity: now.a + now.b,
+    productGPerL: productFromWork(Math.min(now.x, Number.MAX_VALUE), substrate),
+    forecastProductGPerL: productFromWork(Math.min(st.x, Number.MAX_VALUE), substrate),
+    forecastResidualActivity: st.a + st.b,
+    state: { workGPerL: Math.min(now.x, Number.MAX_VALUE), activity: now.a + now.b },
   };
+  const sf = enzyme.stableFraction;
+  if (sf) {
+    out.stableEquivalentHAtRef = equivalentHours(enzyme, sf.edKJPerMol, log, lastH, ref);
+    out.stableActivity = now.b;
+    out.forecastStableActivity = st.b;
+    out.state.stableActivity = now.b;
+  }
+  return out;
 }

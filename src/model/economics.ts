@@ -134,10 +134,9 @@ export function profitSetpointC(
   const best = optimalSetpointC(enzyme, batchH, boundsC);
   if (!(econ.heatingCostPerDegCHour > 0)) return best;
   const r = compileRates(enzyme);
-  const { s0GPerL: s0, kmGPerL: km } = substrate;
   const money = (c: number) => {
     const x = Math.exp(lnWorkFast(r, c, batchH));
-    const p = productFast(x, s0, km);
+    const p = productFast(x, substrate);
     return costs(econ, p, Math.max(0, c - econ.ambientC) * batchH, batchH).profitPerBatch;
   };
   // Heating cost only pulls the setpoint down from the work optimum.

@@ -2,7 +2,7 @@ import { KELVIN_OFFSET, R } from './constants';
 import { ModelInputError } from './errors';
 import { softplus } from './kinetics';
 import { levenbergMarquardt } from './lm';
-import { studentTQuantile } from './stats';
+import { incompleteBeta, studentTQuantile } from './stats';
 
 export interface InactivationPoint {
   /** Hold temperature, degC. */
@@ -20,24 +20,74 @@ export interface TwoStepEstimate {
   edKJPerMol: number | null;
 }
 
+/** Noise on the readings: relative (multiplicative, least squares on ln residual) or absolute (additive on the fraction). */
+export type ErrorModel = 'relative' | 'absolute';
+
+export type InactivationModelName = 'first-order' | 'first-order-a0' | 'two-fraction';
+
+/** One model fitted to the points: parameters, standard errors, covariance of its fitted parameters and AICc. */
+export interface InactivationModelFit {
+  name: InactivationModelName;
+  /** First order at tRefC (two fractions: the labile fraction's), 1/h; Ed in kJ/mol. */
+  kdRefPerH: number;
+  edKJPerMol: number;
+  /** first-order-a0: activity at h = 0 relative to the unheated reference (lost during heat-up when < 1). */
+  a0?: number;
+  /** two-fraction: the stable fraction. */
+  stableFraction?: { share: number; kdRefPerH: number; edKJPerMol: number };
+  /** Time to half the activity at h = 0 at tRefC, h (two fractions: of the mixture). */
+  halfLifeRefH: number;
+  se: Record<string, number>;
+  /** Covariance of the fitted parameters, in the order of `parameters`. */
+  parameters: string[];
+  covariance: number[][];
+  /** Null when there are too few points for AICc (it needs the parameters + 3). */
+  aicc: number | null;
+  /** Standard deviation of the residuals (ln residual for the relative model, fraction for the absolute one). */
+  residualSd: number;
+  dof: number;
+  /** Set when the fit is singular or a parameter is not identified; such a model is never chosen. */
+  singular?: string;
+}
+
 export interface InactivationFit {
   tRefC: number;
   kdRefPerH: number;
   edKJPerMol: number;
   halfLifeRefH: number;
   se: { kdRefPerH: number; edKJPerMol: number; halfLifeRefH: number };
-  /** Covariance of [ln kdRefPerH, edKJPerMol] (kJ/mol units); feed it to the Monte Carlo. */
+  /** Covariance of [ln kdRefPerH, edKJPerMol] (kJ/mol units) of the chosen model; feed it to the Monte Carlo. */
   covariance: number[][];
   twoStep: TwoStepEstimate;
-  /** Standard deviation of ln(residual) about the fit. */
+  /** Standard deviation of the residuals about the chosen model (ln residual when relative, fraction when absolute). */
   residualSd: number;
   n: number;
   dof: number;
+  /** The model chosen by AICc: the lowest, then the simplest within 2 of it. */
+  chosen: InactivationModelName;
+  errorModel: ErrorModel;
+  models: InactivationModelFit[];
+  /** Models that could not be fitted to these points, and why. */
+  unfitted: { name: InactivationModelName; reason: string }[];
+  /** Null, or one sentence on how the chosen model misses the data (pure-error F test with replicates, else a runs test). */
+  lackOfFit: string | null;
+  a0?: number;
+  stableFraction?: { share: number; kdRefPerH: number; edKJPerMol: number };
+  /** Two fractions chosen: each fraction's own half-life at tRefC, h. */
+  fractionHalfLivesRefH?: { labile: number; stable: number };
 }
 
-/** 'percent' when readings look like percentages (any value above 1.5), else 'fraction'. */
+/**
+ * Suggested unit of a column of residual activities, for a template's default only: 'percent' when the median
+ * is above 1.5. One out-of-range reading never flips a file (it is a bad point in the stated unit); the
+ * person states the unit and the fit takes fractions.
+ */
 export function residualScale(values: number[]): 'fraction' | 'percent' {
-  return values.some((v) => v > 1.5) ? 'percent' : 'fraction';
+  if (values.length === 0) return 'fraction';
+  const sorted = [...values].sort((a, b) => a - b);
+  const mid = sorted.length >> 1;
+  const median = sorted.length % 2 ? sorted[mid] : 0.5 * (sorted[mid - 1] + sorted[mid]);
+  return median > 1.5 ? 'percent' : 'fraction';
 }
 
 function xOf(c: number, tRefC: number): number {
@@ -59,12 +109,14 @@ export function twoStepInactivation(tRefC: number, points: InactivationPoint[]):
       let stt = 0;
       let sty = 0;
       for (const p of pts) {
+        if (!(p.residual > 0)) continue;
         stt += p.h * p.h;
         sty += p.h * Math.log(p.residual);
       }
       const kd = stt > 0 ? -sty / stt : 0;
       let ss = 0;
       for (const p of pts) {
+        if (!(p.residual > 0)) continue;
         const e = Math.log(p.residual) + kd * p.h;
         ss += e * e;
       }
@@ -87,31 +139,282 @@ export function twoStepInactivation(tRefC: number, points: InactivationPoint[]):
   return { perTemperature, kdRefPerH: Math.exp(my - slope * mx), edKJPerMol: -slope };
 }
 
-/** Fit kdRefPerH (1/h) and edKJPerMol from residual activity at several temperatures: one-step NLS on ln residual, covariance s^2 (J^T J)^-1. */
-export function fitInactivation(tRefC: number, points: InactivationPoint[]): InactivationFit {
+interface Prepared {
+  xs: Float64Array;
+  ts: Float64Array;
+  ys: Float64Array;
+  /** ln of the readings, for the relative error model. */
+  ly: Float64Array;
+  n: number;
+}
+
+// A model's mean residual activity m(theta) at point i and its gradient, written into `grad`.
+type MeanFn = (th: number[], i: number, grad: number[]) => number;
+
+const MEANS: Record<InactivationModelName, { k: number; names: string[]; mean: (p: Prepared) => MeanFn }> = {
+  'first-order': {
+    k: 2,
+    names: ['lnKdRefPerH', 'edKJPerMol'],
+    mean: (p) => (th, i, g) => {
+      const kt = Math.exp(th[0] - th[1] * p.xs[i]) * p.ts[i];
+      const m = Math.exp(-kt);
+      g[0] = -m * kt;
+      g[1] = m * kt * p.xs[i];
+      return m;
+    },
+  },
+  'first-order-a0': {
+    k: 3,
+    names: ['lnKdRefPerH', 'edKJPerMol', 'lnA0'],
+    mean: (p) => (th, i, g) => {
+      const kt = Math.exp(th[0] - th[1] * p.xs[i]) * p.ts[i];
+      const m = Math.exp(th[2] - kt);
+      g[0] = -m * kt;
+      g[1] = m * kt * p.xs[i];
+      g[2] = m;
+      return m;
+    },
+  },
+  'two-fraction': {
+    k: 5,
+    names: ['lnKdRefPerH', 'edKJPerMol', 'lnStableKdRefPerH', 'stableEdKJPerMol', 'logitShare'],
+    mean: (p) => (th, i, g) => {
+      const x = p.xs[i];
+      const t = p.ts[i];
+      const k1t = Math.exp(th[0] - th[1] * x) * t;
+      const k2t = Math.exp(th[2] - th[3] * x) * t;
+      const e1 = Math.exp(-k1t);
+      const e2 = Math.exp(-k2t);
+      const sh = 1 / (1 + Math.exp(-th[4]));
+      g[0] = -(1 - sh) * e1 * k1t;
+      g[1] = (1 - sh) * e1 * k1t * x;
+      g[2] = -sh * e2 * k2t;
+      g[3] = sh * e2 * k2t * x;
+      g[4] = (e2 - e1) * sh * (1 - sh);
+      return (1 - sh) * e1 + sh * e2;
+    },
+  },
+};
+
+interface RawFit {
+  th: number[];
+  ssr: number;
+  jtjInverse: number[][] | null;
+  /** Residual per point at the solution (ln scale or fraction scale). */
+  res: number[];
+}
+
+function fitModel(p: Prepared, name: InactivationModelName, errorModel: ErrorModel, start: number[]): RawFit {
+  const mean = MEANS[name].mean(p);
+  const k = MEANS[name].k;
+  const g = new Array(k).fill(0);
+  const rel = errorModel === 'relative';
+  const residuals = (th: number[]) => {
+    const r = new Array(p.n);
+    for (let i = 0; i < p.n; i++) {
+      const m = mean(th, i, g);
+      r[i] = rel ? p.ly[i] - Math.log(m) : p.ys[i] - m;
+    }
+    return r;
+  };
+  const jacobian = (th: number[]) => {
+    const rows: number[][] = new Array(p.n);
+    for (let i = 0; i < p.n; i++) {
+      const m = mean(th, i, g);
+      const f = rel ? -1 / m : -1;
+      rows[i] = g.map((v) => v * f);
+    }
+    return rows;
+  };
+  const lm = levenbergMarquardt(residuals, jacobian, start);
+  return { th: lm.params, ssr: lm.ssr, jtjInverse: lm.jtjInverse, res: residuals(lm.params) };
+}
+
+/** AICc of a Gaussian least-squares fit with k parameters besides the noise variance (science.md, Definitions). */
+function aiccOf(ssr: number, n: number, kFitted: number): number | null {
+  const k = kFitted + 1;
+  if (n - k - 1 < 1) return null;
+  return n * Math.log(Math.max(ssr, 1e-300) / n) + 2 * k + (2 * k * (k + 1)) / (n - k - 1);
+}
+
+/** Time (h) at which f1 e^(-k1 t) + f2 e^(-k2 t) falls to half, by bisection on the monotone decay. */
+function twoFractionHalfLife(share: number, k1: number, k2: number): number {
+  const f = (t: number) => (1 - share) * Math.exp(-k1 * t) + share * Math.exp(-k2 * t) - 0.5;
+  let lo = 0;
+  let hi = Math.LN2 / Math.max(k1, k2);
+  while (f(hi) > 0 && hi < 1e300) hi *= 2;
+  for (let i = 0; i < 200 && hi - lo > 1e-14 * hi; i++) {
+    const mid = 0.5 * (lo + hi);
+    if (f(mid) > 0) lo = mid;
+    else hi = mid;
+  }
+  return 0.5 * (lo + hi);
+}
+
+function summarise(p: Prepared, name: InactivationModelName, raw: RawFit): InactivationModelFit {
+  const k = MEANS[name].k;
+  const dof = p.n - k;
+  const s2 = raw.ssr / dof;
+  const th = raw.th;
+  const cov = raw.jtjInverse ? raw.jtjInverse.map((row) => row.map((v) => v * s2)) : th.map(() => th.map(() => NaN));
+  const sd = (i: number) => Math.sqrt(cov[i][i]);
+  const kd = Math.exp(th[0]);
+  const out: InactivationModelFit = {
+    name,
+    kdRefPerH: kd,
+    edKJPerMol: th[1],
+    halfLifeRefH: Math.LN2 / kd,
+    se: { kdRefPerH: kd * sd(0), edKJPerMol: sd(1), halfLifeRefH: (Math.LN2 / kd) * sd(0) },
+    parameters: MEANS[name].names,
+    covariance: cov,
+    aicc: aiccOf(raw.ssr, p.n, k),
+    residualSd: Math.sqrt(s2),
+    dof,
+  };
+  if (name === 'first-order-a0') {
+    out.a0 = Math.exp(th[2]);
+    out.se.a0 = out.a0 * sd(2);
+  }
+  if (name === 'two-fraction') {
+    const share = 1 / (1 + Math.exp(-th[4]));
+    const k2 = Math.exp(th[2]);
+    out.stableFraction = { share, kdRefPerH: k2, edKJPerMol: th[3] };
+    out.halfLifeRefH = twoFractionHalfLife(share, kd, k2);
+    // Delta method on t1/2 by central differences in theta.
+    const grad = [0, 2, 4].map((j) => {
+      const hStep = 1e-6 * Math.max(1, Math.abs(th[j]));
+      const at = (d: number) => {
+        const t = [...th];
+        t[j] += d;
+        return twoFractionHalfLife(1 / (1 + Math.exp(-t[4])), Math.exp(t[0]), Math.exp(t[2]));
+      };
+      return { j, d: (at(hStep) - at(-hStep)) / (2 * hStep) };
+    });
+    let v = 0;
+    for (const a of grad) for (const b of grad) v += a.d * b.d * cov[a.j][b.j];
+    out.se.halfLifeRefH = Math.sqrt(Math.max(0, v));
+    out.se.share = share * (1 - share) * sd(4);
+    out.se.stableKdRefPerH = k2 * sd(2);
+    out.se.stableEdKJPerMol = sd(3);
+  }
+  const ses = Object.values(out.se);
+  if (!raw.jtjInverse || !ses.every(Number.isFinite)) out.singular = 'the fit is singular: its parameters are not identified by these points';
+  else if (name === 'two-fraction') {
+    const sf = out.stableFraction!;
+    if (out.se.share > sf.share || out.se.share > 1 - sf.share || out.se.stableKdRefPerH > 10 * sf.kdRefPerH + 1e-300)
+      out.singular = 'ill-conditioned: the data do not separate two fractions (share or stable kd has a standard error above its value)';
+  }
+  return out;
+}
+
+/** Wald-Wolfowitz runs test on residual signs: one-sided p of so few runs (normal approximation). */
+function runsTest(signs: number[]): { runs: number; expected: number; p: number } | null {
+  const s = signs.filter((v) => v !== 0);
+  const n1 = s.filter((v) => v > 0).length;
+  const n2 = s.length - n1;
+  const n = s.length;
+  if (n1 < 2 || n2 < 2) return null;
+  let runs = 1;
+  for (let i = 1; i < n; i++) if (s[i] !== s[i - 1]) runs++;
+  const expected = (2 * n1 * n2) / n + 1;
+  const variance = (2 * n1 * n2 * (2 * n1 * n2 - n)) / (n * n * (n - 1));
+  const z = (runs - expected) / Math.sqrt(variance);
+  return { runs, expected, p: normalCdf(z) };
+}
+
+/** Standard normal cumulative distribution (dimensionless). */
+function normalCdf(z: number): number {
+  // erfc by the Chebyshev fit of Numerical Recipes (erfcc, |error| < 1.2e-7, from memory of the coefficients
+  // checked in tests/model/fit.test.ts): ample for a p-value shown to two digits.
+  const x = Math.abs(z) / Math.SQRT2;
+  const t = 1 / (1 + 0.5 * x);
+  const erfc =
+    t *
+    Math.exp(
+      -x * x -
+        1.26551223 +
+        t * (1.00002368 + t * (0.37409196 + t * (0.09678418 + t * (-0.18628806 + t * (0.27886807 + t * (-1.13520398 + t * (1.48851587 + t * (-0.82215223 + t * 0.17087277)))))))),
+    );
+  return z >= 0 ? 1 - 0.5 * erfc : 0.5 * erfc;
+}
+
+/** F distribution upper tail P(F > f) with d1, d2 degrees of freedom. */
+function fUpperTail(f: number, d1: number, d2: number): number {
+  return incompleteBeta(d2 / (d2 + d1 * f), d2 / 2, d1 / 2);
+}
+
+function lackOfFitOf(points: readonly InactivationPoint[], res: number[], k: number): string | null {
+  const groups = new Map<string, number[]>();
+  points.forEach((p, i) => {
+    const key = `${p.c}|${p.h}`;
+    const g = groups.get(key);
+    if (g) g.push(res[i]);
+    else groups.set(key, [res[i]]);
+  });
+  let ssPe = 0;
+  let dfPe = 0;
+  for (const g of groups.values()) {
+    if (g.length < 2) continue;
+    const m = g.reduce((a, b) => a + b, 0) / g.length;
+    for (const v of g) ssPe += (v - m) ** 2;
+    dfPe += g.length - 1;
+  }
+  const dfLof = groups.size - k;
+  if (dfPe > 0 && dfLof > 0 && ssPe > 0) {
+    const ssr = res.reduce((a, v) => a + v * v, 0);
+    const f = (Math.max(0, ssr - ssPe) / dfLof) / (ssPe / dfPe);
+    const p = fUpperTail(f, dfLof, dfPe);
+    if (p >= 0.05) return null;
+    return `The model misses the data by more than the replicates' scatter allows (pure-error F test: F = ${f.toPrecision(3)} on ${dfLof} and ${dfPe} degrees of freedom, p = ${p.toPrecision(2)}).`;
+  }
+  // No replicates: signs of the residuals in temperature then time order.
+  const order = points.map((p, i) => i).sort((a, b) => points[a].c - points[b].c || points[a].h - points[b].h);
+  const rt = runsTest(order.map((i) => Math.sign(res[i])));
+  if (!rt || rt.p >= 0.05) return null;
+  return `The residuals run in long stretches of one sign (runs test: ${rt.runs} runs where ${rt.expected.toFixed(1)} are expected, p = ${rt.p.toPrecision(2)}): the model's shape misses the data.`;
+}
+
+/** Highest readings the fit accepts (fractions; noisy readings near h = 0 can exceed 1, science.md Definitions). */
+const MAX_RESIDUAL = 1.5;
+
+/**
+ * Fit residual activity (fractions of the activity at h = 0) at several temperatures with three models on the
+ * same points: first order, first order with a free initial activity a0, two fractions. Each by
+ * Levenberg-Marquardt with covariance s^2 (J^T J)^-1; the chosen one by AICc (lowest, then the simplest within 2).
+ */
+export function fitInactivation(
+  tRefC: number,
+  points: InactivationPoint[],
+  options: { errorModel?: ErrorModel } = {},
+): InactivationFit {
+  const errorModel = options.errorModel ?? 'relative';
   if (!Number.isFinite(tRefC)) throw new ModelInputError('tRefC', 'must be a finite number');
   if (!Array.isArray(points) || points.length < 3) throw new ModelInputError('points', 'needs at least three points');
+  const minResidual = errorModel === 'relative' ? 0 : -MAX_RESIDUAL;
   points.forEach((p, i) => {
     if (!Number.isFinite(p.c)) throw new ModelInputError(`points[${i}].c`, 'must be a finite number');
     if (!Number.isFinite(p.h) || p.h < 0) throw new ModelInputError(`points[${i}].h`, 'must be a finite number >= 0');
-    if (!Number.isFinite(p.residual) || p.residual <= 0 || p.residual > 1.5)
-      throw new ModelInputError(`points[${i}].residual`, 'must be > 0 and <= 1.5 (a fraction, not a percentage)');
+    if (!Number.isFinite(p.residual) || p.residual <= minResidual || p.residual > MAX_RESIDUAL)
+      throw new ModelInputError(
+        `points[${i}].residual`,
+        errorModel === 'relative'
+          ? `must be a fraction > 0 and <= ${MAX_RESIDUAL} (got ${p.residual}${p.residual > MAX_RESIDUAL ? ': per cent? give fractions' : ''})`
+          : `must be a fraction > ${minResidual} and <= ${MAX_RESIDUAL} (got ${p.residual}${p.residual > MAX_RESIDUAL ? ': per cent? give fractions' : ''})`,
+      );
   });
   const temps = new Set(points.map((p) => p.c));
   if (temps.size < 2) throw new ModelInputError('points', 'needs at least two temperatures');
   const twoStep = twoStepInactivation(tRefC, points);
   if (!twoStep.perTemperature.some((t) => t.kdPerH > 0)) throw new ModelInputError('points', 'shows no decay');
 
-  const xs = points.map((p) => xOf(p.c, tRefC));
-  const ys = points.map((p) => Math.log(p.residual));
-  const ts = points.map((p) => p.h);
-  const residuals = (th: number[]) =>
-    ys.map((y, i) => y + Math.exp(th[0] - th[1] * xs[i]) * ts[i]);
-  const jacobian = (th: number[]) =>
-    xs.map((x, i) => {
-      const kt = Math.exp(th[0] - th[1] * x) * ts[i];
-      return [kt, -x * kt];
-    });
+  const n = points.length;
+  const prep: Prepared = {
+    xs: Float64Array.from(points, (p) => xOf(p.c, tRefC)),
+    ts: Float64Array.from(points, (p) => p.h),
+    ys: Float64Array.from(points, (p) => p.residual),
+    ly: Float64Array.from(points, (p) => (p.residual > 0 ? Math.log(p.residual) : NaN)),
+    n,
+  };
   let start: number[];
   if (twoStep.kdRefPerH !== null && twoStep.edKJPerMol !== null && twoStep.edKJPerMol > 0)
     start = [Math.log(twoStep.kdRefPerH), twoStep.edKJPerMol];
@@ -120,28 +423,75 @@ export function fitInactivation(tRefC: number, points: InactivationPoint[]): Ina
     const mean = pos.reduce((s, t) => s + Math.log(t.kdPerH) + 200 * xOf(t.c, tRefC), 0) / pos.length;
     start = [mean, 200];
   }
-  const lm = levenbergMarquardt(residuals, jacobian, start);
-  const n = points.length;
-  const dof = n - 2;
-  if (!lm.jtjInverse || !lm.params.every(Number.isFinite)) throw new ModelInputError('points', 'gives a singular fit');
-  const s2 = lm.ssr / dof;
-  const cov = lm.jtjInverse.map((row) => row.map((v) => v * s2));
-  const [lnKd, ed] = lm.params;
-  const kd = Math.exp(lnKd);
-  const seLn = Math.sqrt(cov[0][0]);
-  if (!Number.isFinite(seLn) || !Number.isFinite(cov[1][1])) throw new ModelInputError('points', 'gives a singular fit');
-  return {
-    tRefC,
-    kdRefPerH: kd,
-    edKJPerMol: ed,
-    halfLifeRefH: Math.LN2 / kd,
-    se: { kdRefPerH: kd * seLn, edKJPerMol: Math.sqrt(cov[1][1]), halfLifeRefH: (Math.LN2 / kd) * seLn },
-    covariance: cov,
-    twoStep,
-    residualSd: Math.sqrt(s2),
-    n,
-    dof,
+  const models: InactivationModelFit[] = [];
+  const unfitted: InactivationFit['unfitted'] = [];
+  const raws = new Map<InactivationModelName, RawFit>();
+  const tryModel = (name: InactivationModelName, starts: number[][]) => {
+    const k = MEANS[name].k;
+    if (name !== 'first-order' && n - k - 2 < 1) {
+      unfitted.push({ name, reason: `needs at least ${k + 3} points` });
+      return;
+    }
+    let best: RawFit | null = null;
+    for (const st of starts) {
+      const raw = fitModel(prep, name, errorModel, st);
+      if (raw.th.every(Number.isFinite) && Number.isFinite(raw.ssr) && (!best || raw.ssr < best.ssr)) best = raw;
+    }
+    if (!best) {
+      unfitted.push({ name, reason: 'did not converge' });
+      return;
+    }
+    raws.set(name, best);
+    models.push(summarise(prep, name, best));
   };
+  tryModel('first-order', [start]);
+  const fo = raws.get('first-order');
+  if (!fo || models[0].singular) throw new ModelInputError('points', 'gives a singular fit');
+  tryModel('first-order-a0', [[fo.th[0], fo.th[1], 0]]);
+  // Two fractions from the first-order fit: a faster labile part and a slower stable one, a few spreads.
+  const [l0, e0] = fo.th;
+  tryModel('two-fraction', [
+    [l0 + 0.5, e0, l0 - 2.3, e0, -1.5],
+    [l0 + 1, e0, l0 - 4, e0, -2.5],
+    [l0 + 0.2, e0, l0 - 1, e0, 0],
+  ]);
+  const tf = models.find((m) => m.name === 'two-fraction');
+  if (tf && tf.stableFraction && tf.stableFraction.kdRefPerH > tf.kdRefPerH) {
+    // The fractions came out the other way round: the labile one is the faster at tRefC.
+    tf.singular ??= 'the fractions swap: the stable fraction decays faster than the labile one at tRefC';
+  }
+
+  const eligible = models.filter((m) => !m.singular && m.aicc !== null);
+  const minAicc = Math.min(...eligible.map((m) => m.aicc!));
+  // Models come simplest first, so the first within 2 of the lowest AICc is the simplest such.
+  const chosenFit = eligible.find((m) => m.aicc! <= minAicc + 2) ?? models[0];
+  const raw = raws.get(chosenFit.name)!;
+  const out: InactivationFit = {
+    tRefC,
+    kdRefPerH: chosenFit.kdRefPerH,
+    edKJPerMol: chosenFit.edKJPerMol,
+    halfLifeRefH: chosenFit.halfLifeRefH,
+    se: { kdRefPerH: chosenFit.se.kdRefPerH, edKJPerMol: chosenFit.se.edKJPerMol, halfLifeRefH: chosenFit.se.halfLifeRefH },
+    covariance: [
+      [chosenFit.covariance[0][0], chosenFit.covariance[0][1]],
+      [chosenFit.covariance[1][0], chosenFit.covariance[1][1]],
+    ],
+    twoStep,
+    residualSd: chosenFit.residualSd,
+    n,
+    dof: chosenFit.dof,
+    chosen: chosenFit.name,
+    errorModel,
+    models,
+    unfitted,
+    lackOfFit: lackOfFitOf(points, raw.res, MEANS[chosenFit.name].k),
+  };
+  if (chosenFit.a0 !== undefined) out.a0 = chosenFit.a0;
+  if (chosenFit.stableFraction) {
+    out.stableFraction = chosenFit.stableFraction;
+    out.fractionHalfLivesRefH = { labile: Math.LN2 / chosenFit.kdRefPerH, stable: Math.LN2 / chosenFit.stableFraction.kdRefPerH };
+  }
+  return out;
 }
 
 /** Half-life (h) at a temperature (degC) with a 95 % interval: delta method on ln t1/2, Student t with n - 2 dof. */

@@ -1,6 +1,7 @@
 export { MODEL_VERSION, R, KELVIN_OFFSET } from './constants';
 export { ModelInputError, ModelCancelledError } from './errors';
 export type {
+  StableFraction,
   EnzymeParams,
   Substrate,
   Stage,
@@ -20,7 +21,9 @@ export {
   eyringRatePerS,
   twoFractionResidual,
   firstOrderResidual,
+  observedKdRefPerH,
 } from './kinetics';
+export { convert, type ConvertInput, type ConvertResult } from './convert';
 export { simulate, trajectory, temperatureAt, productFromWork } from './batch';
 export {
   optimizeSetpoint,
@@ -47,6 +50,8 @@ export {
 export {
   monteCarlo,
   monteCarloSteps,
+  MAX_CANDIDATES,
+  MAX_EVALUATIONS,
   type UncertaintyInput,
   type UncertaintyResult,
   type ChunkOptions,
@@ -61,6 +66,9 @@ export {
   residualScale,
   type InactivationPoint,
   type InactivationFit,
+  type InactivationModelFit,
+  type InactivationModelName,
+  type ErrorModel,
   type TwoStepEstimate,
   type InitialRatePoint,
   type InitialRateFit,

@@ -14,11 +14,16 @@ export interface Rates {
   /** dHeq / R, K. */
   dHeqR: number;
   invTeq: number;
+  /** Two fractions: share of the stable fraction (0 when one fraction), its ln kd at TRef and Ed / R (K). */
+  share: number;
+  lnKd2Ref: number;
+  ed2R: number;
 }
 
 /** Compile enzyme parameters (API units) into kelvin / J/mol constants. */
 export function compileRates(e: EnzymeParams): Rates {
   const eq = e.equilibrium;
+  const sf = e.stableFraction;
   return {
     lnVRef: Math.log(e.vmaxRef),
     eaR: (e.eaKJPerMol * 1000) / R,
@@ -28,8 +33,17 @@ export function compileRates(e: EnzymeParams): Rates {
     hasEq: eq !== undefined,
     dHeqR: eq ? (eq.dHeqKJPerMol * 1000) / R : 0,
     invTeq: eq ? 1 / (eq.teqC + KELVIN_OFFSET) : 0,
+    share: sf ? sf.share : 0,
+    lnKd2Ref: sf && sf.kdRefPerH > 0 ? Math.log(sf.kdRefPerH) : -Infinity,
+    ed2R: sf ? (sf.edKJPerMol * 1000) / R : 0,
   };
 }
+
+/**
+ * Rates are capped at e^600 (1/h or g/L/h): far past anything physical (an enzyme gone in 1e-260 h), and
+ * it keeps sums and products of rates finite where an extreme Arrhenius factor would overflow.
+ */
+export const LN_RATE_CAP = 600;
 
 /** ln(1 + e^x) without overflow. */
 export function softplus(x: number): number {
@@ -38,21 +52,31 @@ export function softplus(x: number): number {
 
 /** ln of the effective Vmax (g/L/h) at 1/T (1/K): Arrhenius, times the active fraction under the Equilibrium Model. */
 export function lnVAt(r: Rates, invT: number): number {
-  const lnV = r.lnVRef - r.eaR * (invT - r.invTRef);
+  const lnV = Math.min(LN_RATE_CAP, r.lnVRef - r.eaR * (invT - r.invTRef));
   if (!r.hasEq) return lnV;
   return lnV - softplus(r.dHeqR * (r.invTeq - invT));
 }
 
 /** ln of the effective inactivation constant (1/h) at 1/T (1/K); only the inactive fraction is lost under the Equilibrium Model. */
 export function lnKAt(r: Rates, invT: number): number {
-  const lnK = r.lnKdRef - r.edR * (invT - r.invTRef);
+  const lnK = Math.min(LN_RATE_CAP, r.lnKdRef - r.edR * (invT - r.invTRef));
   if (!r.hasEq) return lnK;
   return lnK - softplus(-r.dHeqR * (r.invTeq - invT));
 }
 
+/** ln of the stable fraction's inactivation constant (1/h) at 1/T (1/K). */
+export function lnK2At(r: Rates, invT: number): number {
+  return Math.min(LN_RATE_CAP, r.lnKd2Ref - r.ed2R * (invT - r.invTRef));
+}
+
 /** Largest |d ln v/dT| and |d ln k/dT| times T^2, K: bounds how fast rates can change along a ramp. */
 export function slopeBoundK(r: Rates): number {
-  return Math.max(r.eaR, r.edR) + Math.abs(r.dHeqR);
+  return Math.max(r.eaR, r.edR, r.ed2R) + Math.abs(r.dHeqR);
+}
+
+/** Observed first-order loss rate (1/h) at tRefC: under the Equilibrium Model kdRefPerH times the inactive share Keq/(1+Keq). */
+export function observedKdRefPerH(e: EnzymeParams): number {
+  return kdAt(e, e.tRefC);
 }
 
 /** Effective Vmax at a temperature, g/L/h. */

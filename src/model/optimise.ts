@@ -1,15 +1,16 @@
 import { scanMax } from './brent';
 import { KELVIN_OFFSET } from './constants';
 import { ModelInputError } from './errors';
-import { compileRates, lnKAt, lnVAt, type Rates } from './kinetics';
+import { compileRates, lnK2At, lnKAt, lnVAt, type Rates } from './kinetics';
 import { lambertWm1 } from './lambert-w';
-import { advanceConstant, productFromWork, simulate } from './batch';
+import { advanceConstant, productFromWork, simulate, startState } from './batch';
 import type { EnzymeParams, Reading, Stage, Substrate } from './types';
 
 // Local bindings of hot imports: CommonJS transforms (tsx, esbuild) route every call to an imported
 // function through a getter, which blocks inlining in the inner loops.
 const lnVFast = lnVAt;
 const lnKFast = lnKAt;
+const lnK2Fast = lnK2At;
 const advance = advanceConstant;
 const wm1 = lambertWm1;
 
@@ -58,17 +59,23 @@ export function isothermalOptimumU(eps: number): number {
   return u;
 }
 
-/** ln of the work (g/L) done over batchH hours at one temperature, from fresh enzyme. */
+/** ln of the work (g/L) done over batchH hours at one temperature, from fresh enzyme (both fractions). */
 export function lnWorkIsothermal(r: Rates, c: number, batchH: number): number {
   const invT = 1 / (c + KELVIN_OFFSET);
   const lnK = lnKFast(r, invT);
   const kt = Math.exp(lnK) * batchH;
-  const lnPhi = kt > 1e-300 ? Math.log(-Math.expm1(-kt)) - lnK : Math.log(batchH);
+  let lnPhi = kt > 1e-300 ? Math.log(-Math.expm1(-kt)) - lnK : Math.log(batchH);
+  if (r.share > 0) {
+    const k2 = Math.exp(lnK2Fast(r, invT));
+    const k2t = k2 * batchH;
+    lnPhi = Math.log((1 - r.share) * Math.exp(lnPhi) + r.share * (k2t > 1e-300 ? -Math.expm1(-k2t) / k2 : batchH));
+  }
   return lnVFast(r, invT) + lnPhi;
 }
 
-/** Work (g/L) done over batchH hours at one temperature, from fresh enzyme. */
+/** Work (g/L) done over batchH hours at one temperature, from fresh enzyme (both fractions). */
 export function workIsothermal(r: Rates, c: number, batchH: number): number {
+  if (r.share > 0) return Math.exp(lnWorkIsothermal(r, c, batchH));
   const invT = 1 / (c + KELVIN_OFFSET);
   const k = Math.exp(lnKFast(r, invT));
   const kt = k * batchH;
@@ -85,7 +92,9 @@ function boundSide(x: number, lo: number, hi: number): BoundSide {
 export function optimalSetpointC(enzyme: EnzymeParams, batchH: number, boundsC: [number, number]): number {
   const [lo, hi] = boundsC;
   if (hi <= lo) return lo;
-  if (enzyme.equilibrium) {
+  if (enzyme.equilibrium || enzyme.stableFraction) {
+    // No closed form: ln X can have two local maxima with two fractions, so scan the bounds (0.25 degC) first
+    // and bracket the best.
     const r = compileRates(enzyme);
     const n = Math.min(801, Math.max(41, Math.ceil((hi - lo) / 0.25) + 1));
     const best = scanMax((c) => lnWorkIsothermal(r, c, batchH), lo, hi, n, 1e-7);
@@ -125,49 +134,85 @@ export interface ProfileOptimum {
   residualActivity: number;
   isothermal: { setpointC: number; productGPerL: number };
   gainFraction: number;
+  /** Two fractions only: the best program's work is at most this fraction above the result's (a certified bound). */
+  optimalityGapBound?: number;
 }
 
+/** Per-stage tables on a grid: work g and activity factor e of a unit of labile activity; g2, e2 of a unit of stable activity. */
 interface StageTables {
   g: Float64Array;
   e: Float64Array;
+  g2: Float64Array;
+  e2: Float64Array;
 }
 
 function stageTables(r: Rates, grid: Float64Array, tau: number): StageTables {
-  const g = new Float64Array(grid.length);
-  const e = new Float64Array(grid.length);
-  const st = { x: 0, a: 1, kint: 0 };
-  for (let p = 0; p < grid.length; p++) {
+  const m = grid.length;
+  const t: StageTables = { g: new Float64Array(m), e: new Float64Array(m), g2: new Float64Array(m), e2: new Float64Array(m) };
+  const st = { x: 0, a: 1, b: 0, kint: 0 };
+  for (let p = 0; p < m; p++) {
+    const invT = 1 / (grid[p] + KELVIN_OFFSET);
     st.x = 0;
     st.a = 1;
-    st.kint = 0;
-    advance(r, 1 / (grid[p] + KELVIN_OFFSET), tau, st);
-    g[p] = st.x;
-    e[p] = st.a;
+    st.b = 0;
+    advance(r, invT, tau, st);
+    t.g[p] = st.x;
+    t.e[p] = st.a;
+    if (r.share > 0) {
+      st.x = 0;
+      st.a = 0;
+      st.b = 1;
+      advance(r, invT, tau, st);
+      t.g2[p] = st.x;
+      t.e2[p] = st.b;
+    }
   }
-  return { g, e };
+  return t;
 }
 
-// Exact dynamic programme on per-stage grids: work to go per unit activity V_i(T) = g(T) + e(T) max V_{i+1}(T')
-// over |T' - T| <= step, because activity entering a stage scales everything after it.
+type Fraction = 'labile' | 'stable' | 'mix';
+
+// Dynamic programme on per-stage grids, neighbours at most `step` apart. One fraction: work to go per unit
+// activity V_i(T) = g(T) + e(T) max V_{i+1}(T'), exact on the grids, because activity entering a stage scales
+// everything after it. Two fractions ('mix'): work to go is (1 - rho) W1 + rho W2 with rho the stable share
+// of the activity entering the stage; rho is frozen at the values along the current path (rhoIn), so the
+// choice is exact on that path and first-order elsewhere; the caller re-evaluates every path exactly.
 function dpSolve(
   grids: Float64Array[],
   tables: StageTables[],
   step: number,
   firstLo: number,
   firstHi: number,
+  fraction: Fraction,
+  rhoIn: Float64Array | null,
 ): { temps: number[]; work: number } {
   const n = grids.length;
-  const values: Float64Array[] = new Array(n);
+  const w1: Float64Array[] = new Array(n);
+  const w2: Float64Array[] = new Array(n);
+  const val: Float64Array[] = new Array(n);
   const args: Int32Array[] = new Array(n);
   const tol = 1e-9;
-  values[n - 1] = Float64Array.from(tables[n - 1].g);
+  const mix = fraction === 'mix';
+  const pick = (t: StageTables) => (fraction === 'stable' ? { g: t.g2, e: t.e2 } : { g: t.g, e: t.e });
+  const combine = (i: number, a: Float64Array, b: Float64Array) => {
+    if (!mix) return a;
+    const rho = rhoIn ? rhoIn[i] : 0;
+    const out = new Float64Array(a.length);
+    for (let p = 0; p < a.length; p++) out[p] = (1 - rho) * a[p] + rho * b[p];
+    return out;
+  };
+  const last = pick(tables[n - 1]);
+  w1[n - 1] = Float64Array.from(last.g);
+  w2[n - 1] = mix ? Float64Array.from(tables[n - 1].g2) : w1[n - 1];
+  val[n - 1] = combine(n - 1, w1[n - 1], w2[n - 1]);
   args[n - 1] = new Int32Array(grids[n - 1].length).fill(-1);
   for (let i = n - 2; i >= 0; i--) {
     const g = grids[i];
     const gn = grids[i + 1];
-    const vn = values[i + 1];
-    const { g: gi, e: ei } = tables[i];
-    const vi = new Float64Array(g.length);
+    const vn = val[i + 1];
+    const { g: gi, e: ei } = pick(tables[i]);
+    const a1 = new Float64Array(g.length);
+    const a2 = mix ? new Float64Array(g.length) : a1;
     const ai = new Int32Array(g.length);
     const dq = new Int32Array(gn.length);
     let head = 0;
@@ -182,14 +227,19 @@ function dpSolve(
       }
       while (tail > head && gn[dq[head]] < t - step - tol) head++;
       if (tail === head || vn[dq[head]] === -Infinity) {
-        vi[p] = -Infinity;
+        a1[p] = -Infinity;
+        if (mix) a2[p] = -Infinity;
         ai[p] = -1;
       } else {
-        vi[p] = gi[p] + ei[p] * vn[dq[head]];
-        ai[p] = dq[head];
+        const j = dq[head];
+        a1[p] = gi[p] + ei[p] * w1[i + 1][j];
+        if (mix) a2[p] = tables[i].g2[p] + tables[i].e2[p] * w2[i + 1][j];
+        ai[p] = j;
       }
     }
-    values[i] = vi;
+    w1[i] = a1;
+    w2[i] = a2;
+    val[i] = combine(i, a1, a2);
     args[i] = ai;
   }
   let best = -1;
@@ -197,8 +247,8 @@ function dpSolve(
   const g0 = grids[0];
   for (let p = 0; p < g0.length; p++) {
     if (g0[p] < firstLo - tol || g0[p] > firstHi + tol) continue;
-    if (values[0][p] > bestV) {
-      bestV = values[0][p];
+    if (val[0][p] > bestV) {
+      bestV = val[0][p];
       best = p;
     }
   }
@@ -214,7 +264,36 @@ function dpSolve(
 function sortedGrid(values: number[]): Float64Array {
   const a = Float64Array.from(values);
   a.sort();
-  return a;
+  // Drop exact duplicates so the window maximum sees each temperature once.
+  let m = 0;
+  for (let i = 0; i < a.length; i++) if (i === 0 || a[i] !== a[m - 1]) a[m++] = a[i];
+  return a.slice(0, m);
+}
+
+// Work (g/L) of equal stages from fresh enzyme, and the stable share of the activity entering each stage.
+function pathWork(r: Rates, temps: readonly number[], tau: number, rho?: Float64Array): number {
+  const st = { x: 0, a: 1 - r.share, b: r.share, kint: 0 };
+  for (let i = 0; i < temps.length; i++) {
+    if (rho) rho[i] = st.a + st.b > 0 ? st.b / (st.a + st.b) : 0;
+    advance(r, 1 / (temps[i] + KELVIN_OFFSET), tau, st);
+  }
+  return st.x;
+}
+
+/**
+ * Lattice points origin + k h and hi - k h inside [max(lo, centre - hw), min(hi, centre + hw)], with the bounds:
+ * the step is a whole number of cells, so ramps of exactly maxStepC a stage (from startC or from a bound) lie
+ * on every grid and the step limit is never quantised below itself.
+ */
+function latticePoints(origin: number, h: number, lo: number, hi: number, centre: number, hw: number): number[] {
+  const a = Math.max(lo, centre - hw);
+  const b = Math.min(hi, centre + hw);
+  const pts: number[] = [];
+  for (let k = Math.ceil((a - origin) / h - 1e-9); origin + k * h <= b + 1e-12; k++) pts.push(origin + k * h);
+  for (let k = Math.ceil((hi - b) / h - 1e-9); hi - k * h >= a - 1e-12; k++) pts.push(hi - k * h);
+  if (lo >= a && lo <= b) pts.push(lo);
+  if (hi >= a && hi <= b) pts.push(hi);
+  return pts.filter((c) => c >= lo && c <= hi);
 }
 
 /** Best profile of `stages` equal stages within boundsC (degC), neighbours at most maxStepC apart (and from startC); never below the best isothermal setpoint. */
@@ -232,6 +311,7 @@ export function optimizeProfile(
   const tau = batchH / n;
   const step = Math.max(0, maxStepC);
   const r = compileRates(enzyme);
+  const two = r.share > 0;
   const iso = optimizeSetpoint(enzyme, substrate, batchH, boundsC);
   let firstLo = lo;
   let firstHi = hi;
@@ -241,52 +321,96 @@ export function optimizeProfile(
     if (firstLo > firstHi) throw new ModelInputError('startC', 'must be within maxStepC of boundsC');
   }
   const isoFeasible = iso.setpointC >= firstLo - 1e-9 && iso.setpointC <= firstHi + 1e-9;
-
+  const finish = (temps: number[], gapBound?: number): ProfileOptimum => {
+    const out = temps.map((c) => ({ hours: tau, c }));
+    const sim = simulate(enzyme, substrate, batchH, { stages: out });
+    const res: ProfileOptimum = {
+      stages: out,
+      productGPerL: sim.productGPerL,
+      residualActivity: sim.residualActivity,
+      isothermal: { setpointC: iso.setpointC, productGPerL: iso.productGPerL },
+      gainFraction: iso.productGPerL > 0 ? sim.productGPerL / iso.productGPerL - 1 : 0,
+    };
+    if (gapBound !== undefined) res.optimalityGapBound = gapBound;
+    return res;
+  };
   const span = hi - lo;
-  let h = span > 0 ? Math.max(span / 20000, Math.min(span / 1600, step > 0 ? step / 8 : span / 1600)) : 1;
-  const base: number[] = [];
-  const m0 = span > 0 ? Math.round(span / h) : 0;
-  for (let i = 0; i <= m0; i++) base.push(i === m0 ? hi : lo + (i * span) / m0);
+  if (step === 0 || !(span > 0)) {
+    // Every stage at one temperature: the best setpoint the first stage may take.
+    const c = optimalSetpointC(enzyme, batchH, [firstLo, firstHi]);
+    return finish(new Array(n).fill(c), two ? 0 : undefined);
+  }
+
+  const origin = startC ?? lo;
+  const target = Math.max(span / 20000, Math.min(span / 1600, step / 8));
+  const h0 = step < span ? step / Math.max(1, Math.round(step / target)) : span / 1600;
+  const base = latticePoints(origin, h0, lo, hi, 0.5 * (lo + hi), span);
   base.push(iso.setpointC);
   if (startC !== undefined) base.push(firstLo, firstHi);
   const grid0 = sortedGrid(base.filter((c) => c >= lo && c <= hi));
   const tab0 = stageTables(r, grid0, tau);
-  let sol = dpSolve(new Array(n).fill(grid0), new Array(n).fill(tab0), step, firstLo, firstHi);
-  h = span > 0 ? span / Math.max(m0, 1) : 0;
-  for (let level = 0; level < 4 && h > 0; level++) {
-    const width = 2 * h;
-    const grids: Float64Array[] = [];
-    const tables: StageTables[] = [];
-    for (let i = 0; i < n; i++) {
-      const centre = sol.temps[i];
-      const pts: number[] = [];
-      for (let j = 0; j <= 40; j++) {
-        const c = j === 20 ? centre : centre + width * (j / 20 - 1);
-        if (c >= lo && c <= hi) pts.push(c);
-      }
-      if (i === 0 && startC !== undefined) pts.push(Math.max(firstLo, Math.min(firstHi, centre)));
-      const gi = sortedGrid(pts);
-      grids.push(gi);
-      tables.push(stageTables(r, gi, tau));
-    }
-    const next = dpSolve(grids, tables, step, firstLo, firstHi);
-    if (next.work >= sol.work) sol = next;
-    h /= 10;
-  }
+  const rho = new Float64Array(n);
 
-  let out = sol.temps.map((c) => ({ hours: tau, c }));
-  let sim = simulate(enzyme, substrate, batchH, { stages: out });
-  if (isoFeasible && sim.productGPerL < iso.productGPerL) {
-    out = out.map(() => ({ hours: tau, c: iso.setpointC }));
-    sim = simulate(enzyme, substrate, batchH, { stages: out });
-  }
-  return {
-    stages: out,
-    productGPerL: sim.productGPerL,
-    residualActivity: sim.residualActivity,
-    isothermal: { setpointC: iso.setpointC, productGPerL: iso.productGPerL },
-    gainFraction: iso.productGPerL > 0 ? sim.productGPerL / iso.productGPerL - 1 : 0,
+  const solve = (fraction: Fraction) => {
+    const rounds = fraction === 'mix' ? 4 : 1;
+    const score = (temps: number[], work: number) => (fraction === 'mix' ? pathWork(r, temps, tau) : work);
+    let grids: Float64Array[] = new Array(n).fill(grid0);
+    let tables: StageTables[] = new Array(n).fill(tab0);
+    let sol: { temps: number[]; work: number } | null = null;
+    let h = h0;
+    for (let level = 0; level <= 4; level++) {
+      if (level > 0) {
+        h /= 10;
+        grids = [];
+        tables = [];
+        for (let i = 0; i < n; i++) {
+          const centre = sol!.temps[i];
+          const pts = latticePoints(origin, h, lo, hi, centre, 20 * h);
+          pts.push(centre);
+          if (i === 0 && startC !== undefined) pts.push(Math.max(firstLo, Math.min(firstHi, centre)));
+          const gi = sortedGrid(pts);
+          grids.push(gi);
+          tables.push(stageTables(r, gi, tau));
+        }
+      }
+      for (let round = 0; round < rounds; round++) {
+        if (fraction === 'mix') {
+          if (sol) pathWork(r, sol.temps, tau, rho);
+          else rho.fill(r.share);
+        }
+        const next = dpSolve(grids, tables, step, firstLo, firstHi, fraction, fraction === 'mix' ? rho : null);
+        const v = score(next.temps, next.work);
+        if (!sol || v > sol.work) sol = { temps: next.temps, work: v };
+        else if (level > 0 || round > 0) break;
+      }
+    }
+    return sol!;
   };
+
+  const candidates: number[][] = [];
+  let gapBound: number | undefined;
+  if (!two) candidates.push(solve('labile').temps);
+  else {
+    const mix = solve('mix');
+    const labile = solve('labile');
+    const stable = solve('stable');
+    candidates.push(mix.temps, labile.temps, stable.temps);
+    // (1 - s) max W1 + s max W2 bounds the work of every program from above.
+    const upper = (1 - r.share) * labile.work + r.share * stable.work;
+    const bestWork = Math.max(...candidates.map((t) => pathWork(r, t, tau)), isoFeasible ? pathWork(r, new Array(n).fill(iso.setpointC), tau) : 0);
+    gapBound = Math.max(0, upper / bestWork - 1);
+  }
+  if (isoFeasible) candidates.push(new Array(n).fill(iso.setpointC));
+  let best = candidates[0];
+  let bestW = pathWork(r, best, tau);
+  for (const c of candidates.slice(1)) {
+    const w = pathWork(r, c, tau);
+    if (w > bestW) {
+      best = c;
+      bestW = w;
+    }
+  }
+  return finish(best, gapBound);
 }
 
 /** Turn planned stages into a temperature log (h, degC) that includes the vessel's heating and cooling limits (degC/h). */
@@ -315,12 +439,12 @@ export function stagesWithRamps(stages: readonly Stage[], startC: number, maxHea
 /** Work (g/L) for a stage list, from fresh enzyme: the objective the profile search maximises. */
 export function workOfStages(enzyme: EnzymeParams, stages: readonly Stage[]): number {
   const r = compileRates(enzyme);
-  const st = { x: 0, a: 1, kint: 0 };
+  const st = startState(r);
   for (const s of stages) advance(r, 1 / (s.c + KELVIN_OFFSET), s.hours, st);
   return st.x;
 }
 
 /** Product (g/L) from work (g/L) for a substrate: re-exported for callers that hold X. */
 export function productForWork(substrate: Substrate, workGPerL: number): number {
-  return productFromWork(workGPerL, substrate.s0GPerL, substrate.kmGPerL);
+  return productFromWork(workGPerL, substrate);
 }

@@ -12,12 +12,25 @@ export interface EnzymeParams {
   edKJPerMol: number;
   /** Equilibrium Model: active <-> inactive with Keq = 1 at teqC; kd then applies to the inactive fraction. */
   equilibrium?: { teqC: number; dHeqKJPerMol: number };
+  /** Two-fraction decay: this share of the activity decays by its own Arrhenius law; kdRefPerH and edKJPerMol apply to the rest. */
+  stableFraction?: StableFraction;
+}
+
+/** The slowly decaying fraction of a two-fraction lot: share (0..1) of the activity at h = 0, its kd at tRefC (1/h) and Ed (kJ/mol). */
+export interface StableFraction {
+  share: number;
+  kdRefPerH: number;
+  edKJPerMol: number;
 }
 
 /** Substrate charge and Michaelis constant, g/L. */
 export interface Substrate {
   s0GPerL: number;
   kmGPerL: number;
+  /** Competitive product inhibition constant, g/L (absent: none). */
+  kiGPerL?: number;
+  /** Substrate inhibition constant, g/L (absent: none). */
+  ksiGPerL?: number;
 }
 
 export interface Stage {
@@ -37,8 +50,10 @@ export type TemperatureInput = { setpointC: number } | { stages: readonly Stage[
 export interface BatchState {
   /** Accumulated catalytic work X = integral of Vmax(T) a dt, g/L. */
   workGPerL: number;
-  /** Enzyme activity left, fraction 0..1. */
+  /** Enzyme activity left, fraction 0..1 of the activity at h = 0. */
   activity: number;
+  /** Two fractions: the stable fraction's part of `activity` (same unit); absent = split as at h = 0. */
+  stableActivity?: number;
 }
 
 export interface SimulationResult {
@@ -46,6 +61,8 @@ export interface SimulationResult {
   conversion: number;
   residualActivity: number;
   workGPerL: number;
+  /** Two fractions only: the stable fraction's part of residualActivity. */
+  stableActivity?: number;
 }
 
 export interface TrajectoryPoint {

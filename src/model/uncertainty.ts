@@ -1,4 +1,4 @@
-import { scanMax } from './brent';
+import { brentMax, scanMax } from './brent';
 import { KELVIN_OFFSET, R } from './constants';
 import { ModelCancelledError, ModelInputError } from './errors';
 import { compileRates, type Rates } from './kinetics';
@@ -24,13 +24,13 @@ export interface UncertaintyInput {
   covariance: number[][];
   /** Standard deviation of the reactor's temperature-sensor bias, degC (actual = setpoint + bias). */
   sensorBiasSdC?: number;
-  /** Relative standard deviation of the dose (vmaxRef), drawn log-normal with median 1. */
+  /** Relative standard deviation (sd / mean) of the dose (vmaxRef), drawn log-normal with mean 1. */
   doseRelSd?: number;
   /** Number of draws; default 10000. */
   draws?: number;
   /** PRNG seed; default 1. */
   seed?: number;
-  /** Setpoints (degC) at which to report P10/P50/P90; default 21 evenly spaced across boundsC. */
+  /** Setpoints (degC) at which to report P10/P50/P90; default 11 evenly spaced across boundsC. The robust search scans them and the bounds. */
   candidatesC?: number[];
   /** Also evaluate product at the candidates and find the setpoint with the best P10; default true. */
   robust?: boolean;
@@ -82,7 +82,16 @@ function setRates(base: Rates, d: Draws, i: number, out: Rates): void {
   out.hasEq = base.hasEq;
   out.dHeqR = base.dHeqR;
   out.invTeq = base.invTeq;
+  out.share = base.share;
+  out.lnKd2Ref = base.lnKd2Ref;
+  out.ed2R = base.ed2R;
 }
+
+/** Most candidates the robust search reports, and most draws x (candidates + searched setpoints) it evaluates. */
+export const MAX_CANDIDATES = 101;
+export const MAX_EVALUATIONS = 5_000_000;
+/** Setpoint evaluations the robust search adds to the candidates and bounds (Brent on the P10 curve, 0.005 degC). */
+export const SEARCH_EVALUATIONS = 30;
 
 function percentiles(values: Float64Array, scratch: Float64Array, map: (x: number) => number): Percentiles {
   const [p10, p50, p90] = quantilesBySelection(values, [0.1, 0.5, 0.9], scratch, map);
@@ -126,9 +135,9 @@ function drawRange(sp: Sampler, start: number, end: number): void {
     d.edR[i] = (ed * 1000) / R;
     d.eaR[i] = (ea * 1000) / R;
     d.bias[i] = sp.biasSd > 0 ? sp.biasSd * rng.normal() : 0;
-    d.lnDose[i] = sp.doseSd > 0 ? sp.doseSd * rng.normal() : 0;
+    d.lnDose[i] = sp.doseSd > 0 ? sp.doseSd * rng.normal() - 0.5 * sp.doseSd * sp.doseSd : 0;
     let opt: number;
-    if (base.hasEq) {
+    if (base.hasEq || base.share > 0) {
       setRates(base, d, i, work);
       const b = d.bias[i];
       opt = scanMax((c) => lnWorkFast(work, c + b, batchH), lo, hi, 21, 1e-6).x;
@@ -198,7 +207,8 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
     dim,
     mean: [Math.log(enzyme.kdRefPerH), enzyme.edKJPerMol, enzyme.eaKJPerMol],
     biasSd: input.sensorBiasSdC ?? 0,
-    doseSd: input.doseRelSd ?? 0,
+    // Log-normal with mean 1 and sd/mean = doseRelSd: sd of ln(dose) = sqrt(ln(1 + doseRelSd^2)).
+    doseSd: Math.sqrt(Math.log1p((input.doseRelSd ?? 0) ** 2)),
     batchH,
     lo,
     hi,
@@ -222,10 +232,9 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
     mean: sum / n,
   };
   const nominalC = optimalSetpointC(enzyme, batchH, boundsC);
-  const { s0GPerL: s0, kmGPerL: km } = substrate;
   const nominal = {
     setpointC: nominalC,
-    productGPerL: productFast(workFast(base, nominalC, batchH), s0, km),
+    productGPerL: productFast(workFast(base, nominalC, batchH), substrate),
   };
   if (!robust) {
     return { draws: n, seed, clampedDraws: sp.clamped, nominal, optimum, candidates: [], robust: null };
@@ -234,11 +243,14 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
   const cands =
     input.candidatesC && input.candidatesC.length > 0
       ? [...input.candidatesC].sort((a, b) => a - b)
-      : Array.from({ length: 21 }, (_, j) => (j === 20 ? hi : lo + ((hi - lo) * j) / 20));
+      : Array.from({ length: 11 }, (_, j) => (j === 10 ? hi : lo + ((hi - lo) * j) / 10));
+  if (cands.length > MAX_CANDIDATES) throw new ModelInputError('candidatesC', `must have at most ${MAX_CANDIDATES} setpoints`);
+  if (n * (cands.length + 2 + SEARCH_EVALUATIONS) > MAX_EVALUATIONS)
+    throw new ModelInputError('draws', `draws x (candidates + ${2 + SEARCH_EVALUATIONS}) must be <= ${MAX_EVALUATIONS}`);
   const m = cands.length;
   // Product rises strictly with work and every draw shares the substrate, so quantiles are taken on work
   // and only the order statistics are turned into product.
-  const toProduct = (x: number) => productFast(x, s0, km);
+  const toProduct = (x: number) => productFast(x, substrate);
   const works: Float64Array[] = cands.map(() => new Float64Array(n));
   const candChunk = Math.max(1, Math.floor(chunk / 4));
   for (let start = 0; start < n; start += candChunk) {
@@ -248,50 +260,33 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
   }
   const scratch = new Float64Array(n);
   const candidates = cands.map((c, j) => ({ c, ...percentiles(works[j], scratch, toProduct) }));
-  let bestJ = 0;
-  for (let j = 1; j < m; j++) if (candidates[j].p10 > candidates[bestJ].p10) bestJ = j;
 
-  // Golden section on P10 with common random numbers, between the best candidate's neighbours.
+  // The P10 curve over the whole bounds: the candidates and both bounds are its scan, then Brent (common
+  // random numbers, so the curve is smooth between scan points) on the bracket around the best of them.
   const col = new Float64Array(n);
   const p10At = (c: number) => {
     workColumn(sp, c, col);
     return quantilesBySelection(col, [0.1], scratch, toProduct)[0];
   };
-  let a = bestJ > 0 ? cands[bestJ - 1] : cands[0];
-  let b = bestJ < m - 1 ? cands[bestJ + 1] : cands[m - 1];
-  let bestC = cands[bestJ];
-  let bestP = candidates[bestJ].p10;
-  const gr = 0.6180339887498949;
-  let x1 = b - gr * (b - a);
-  let x2 = a + gr * (b - a);
-  let f1 = p10At(x1);
-  let f2 = p10At(x2);
-  const tolC = 0.005;
-  const steps = Math.max(1, Math.ceil(Math.log(Math.max(b - a, 1e-9) / tolC) / Math.log(1 / gr)));
-  for (let k = 0; k < steps && b - a > tolC; k++) {
-    if (f1 >= f2) {
-      b = x2;
-      x2 = x1;
-      f2 = f1;
-      x1 = b - gr * (b - a);
-      f1 = p10At(x1);
-    } else {
-      a = x1;
-      x1 = x2;
-      f1 = f2;
-      x2 = a + gr * (b - a);
-      f2 = p10At(x2);
+  const scan = cands.map((c, j) => ({ c, p10: candidates[j].p10 }));
+  if (cands[0] > lo) scan.unshift({ c: lo, p10: p10At(lo) });
+  if (cands[m - 1] < hi) scan.push({ c: hi, p10: p10At(hi) });
+  let bestJ = 0;
+  for (let j = 1; j < scan.length; j++) if (scan[j].p10 > scan[bestJ].p10) bestJ = j;
+  yield phase1 + 0.55;
+  let bestC = scan[bestJ].c;
+  let bestP = scan[bestJ].p10;
+  const a = scan[Math.max(0, bestJ - 1)].c;
+  const b = scan[Math.min(scan.length - 1, bestJ + 1)].c;
+  if (b > a) {
+    let evals = 0;
+    const res = brentMax((c) => (evals++ < SEARCH_EVALUATIONS ? p10At(c) : -Infinity), a, b, 0.005);
+    if (res.fx > bestP) {
+      bestP = res.fx;
+      bestC = res.x;
     }
-    yield phase1 + 0.5 + (0.2 * (k + 1)) / steps;
   }
-  if (f1 > bestP) {
-    bestP = f1;
-    bestC = x1;
-  }
-  if (f2 > bestP) {
-    bestP = f2;
-    bestC = x2;
-  }
+  yield phase1 + 0.68;
   workColumn(sp, bestC, col);
   const robustRes = { setpointC: bestC, ...percentiles(col, scratch, toProduct) };
   return { draws: n, seed, clampedDraws: sp.clamped, nominal, optimum, candidates, robust: robustRes };

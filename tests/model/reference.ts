@@ -46,7 +46,23 @@ export function program(temp: TemperatureInput, batchH: number): { knots: number
   return { knots: [...log.map((r) => r.h).filter((h) => h > 0 && h < batchH), batchH], at };
 }
 
-/** Product (g/L) and activity from odex on dP/dt = V a (S0-P)/(Km+S0-P), da/dt = -kd a, restarting at each knot. */
+/** Rate law written out from the textbook: v = V a S / (Km (1 + P/Ki) + S + S^2/Ksi), P = S0 - S (science.md). */
+function rawRate(s: Substrate, v: number, a: number, p: number): number {
+  const sLeft = s.s0GPerL - p;
+  const km = s.kmGPerL * (1 + (s.kiGPerL ? p / s.kiGPerL : 0));
+  return (v * a * sLeft) / (km + sLeft + (s.ksiGPerL ? (sLeft * sLeft) / s.ksiGPerL : 0));
+}
+
+/** The stable fraction's own Arrhenius kd at c (1/h). */
+function stableKd(e: EnzymeParams, c: number): number {
+  const f = e.stableFraction!;
+  return f.kdRefPerH * Math.exp(-((f.edKJPerMol * 1000) / GAS) * (1 / (c + KELVIN) - 1 / (e.tRefC + KELVIN)));
+}
+
+/**
+ * Product (g/L) and activity from odex on the raw ODE: dP/dt = rate(V, a1 + a2, P), da1/dt = -kd a1,
+ * da2/dt = -kd2 a2 (a2 = 0 with one fraction), restarting at each knot.
+ */
 export function odexReference(
   e: EnzymeParams,
   s: Substrate,
@@ -54,30 +70,27 @@ export function odexReference(
   temp: TemperatureInput,
 ): { product: number; activity: number } {
   const midpoint = !('log' in temp);
-  const solver = new Solver(2);
+  const solver = new Solver(3);
   solver.relativeTolerance = 1e-13;
   solver.absoluteTolerance = 1e-300;
   solver.maxSteps = 1e6;
   const { knots, at } = program(temp, batchH);
-  const f = (h: number, y: number[]) => {
-    const { v, k } = rawRates(e, at(h));
-    const sLeft = s.s0GPerL - y[0];
-    return [(v * y[1] * sLeft) / (s.kmGPerL + sLeft), -k * y[1]];
+  const share = e.stableFraction?.share ?? 0;
+  const rhs = (c: number, y: number[]) => {
+    const { v, k } = rawRates(e, c);
+    const k2 = share > 0 ? stableKd(e, c) : 0;
+    return [rawRate(s, v, y[1] + y[2], y[0]), -k * y[1], -k2 * y[2]];
   };
-  let y = [0, 1];
+  let y = [0, 1 - share, share];
   let t = 0;
   for (const kt of knots) {
     if (kt <= t) continue;
     const a = t;
     // For stages the piece's midpoint decides its temperature, so a step never samples the next stage.
-    const g = midpoint ? (h: number, yy: number[]) => {
-      const { v, k } = rawRates(e, at(0.5 * (a + kt)));
-      const sLeft = s.s0GPerL - yy[0];
-      return [(v * yy[1] * sLeft) / (s.kmGPerL + sLeft), -k * yy[1]];
-    } : f;
+    const g = midpoint ? (_h: number, yy: number[]) => rhs(at(0.5 * (a + kt)), yy) : (h: number, yy: number[]) => rhs(at(h), yy);
     const r = solver.solve(g, t, y, kt);
     y = r.y;
     t = kt;
   }
-  return { product: y[0], activity: y[1] };
+  return { product: y[0], activity: y[1] + y[2] };
 }
