@@ -46,7 +46,10 @@ export type AppDeps = {
   webDir?: string;
   signInLimit?: { perAddress: number; perAccount: number; windowMs: number };
   /** Base of links in e-mails and of payment return pages. */
+  /** PUBLIC_URL when set: the address for mail links and the payment page's return. */
   publicUrl?: string;
+  /** The address for mail links when PUBLIC_URL is not set (the server's own). */
+  localUrl?: string;
   /** The payment provider; without it the billing screens read local records and payments answer 503. */
   billing?: Billing;
   /** Asked to deliver the outbox soon after a write queued mail; the outbox is delivered without it too. */
@@ -93,7 +96,9 @@ export function createApp(deps: AppDeps): Express {
   );
   app.use(compression());
 
-  const billingCtx = { ...services, billing: deps.billing ?? null, publicUrl: deps.publicUrl ?? 'http://localhost:8080' };
+  const linkUrl = deps.publicUrl ?? deps.localUrl ?? 'http://localhost:8080';
+  // The payment page sends the browser back to PUBLIC_URL, else to the address the admin's browser used.
+  const billingCtx = { ...services, billing: deps.billing ?? null, publicUrl: deps.publicUrl ?? null };
   const mail = deps.mail ?? null;
   // Before the API router: the provider's signature covers the raw body, which express.json would consume.
   app.post('/api/billing/webhook', ...billingWebhook(billingCtx));
@@ -128,10 +133,10 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/audit-events', router: auditEventsRouter(services) },
     {
       prefix: '/change-requests',
-      router: changeRequestsRouter({ ...services, mail, publicUrl: billingCtx.publicUrl, signLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
+      router: changeRequestsRouter({ ...services, mail, publicUrl: linkUrl, signLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
     },
     { prefix: '/billing', router: billingRouter(billingCtx) },
-    { prefix: '/invites', router: invitesRouter({ ...billingCtx, mail }) },
+    { prefix: '/invites', router: invitesRouter({ ...billingCtx, publicUrl: linkUrl, mail }) },
     { prefix: '/mail-outbox', router: mailOutboxRouter({ ...services, mail }) },
   ];
   for (const m of mounts) api.use(m.prefix, m.router);

@@ -33,15 +33,16 @@ async function main() {
   const seeded = env.seedDemo && isEmpty(db) ? seedDemo(db, { now: systemClock.now() }) : null;
   const integrations = await startIntegrations(db, env);
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
-  const publicUrl = env.publicUrl ?? `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
-  if (seeded) proposeDemoChange({ db, clock: systemClock, mail, publicUrl }, seeded.siteId);
+  const localUrl = `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
+  if (seeded) proposeDemoChange({ db, clock: systemClock, mail, publicUrl: env.publicUrl ?? localUrl }, seeded.siteId);
   const app = createApp({
     db,
     clock: systemClock,
     auth: { secret: sessionSecret(env.sessionSecret, env.databaseFile), idleMinutes: env.sessionIdleMinutes, absoluteHours: env.sessionAbsoluteHours },
     cookieSecure: env.cookieSecure,
     webDir: path.resolve(root, env.webDir),
-    publicUrl,
+    publicUrl: env.publicUrl ?? undefined,
+    localUrl,
     billing: integrations.billing,
     mail,
     files: createFileStore(path.join(path.dirname(path.resolve(env.databaseFile)), 'files')),

@@ -1,10 +1,8 @@
 import { useLocalSearchParams } from 'expo-router';
-import { StyleSheet, View } from 'react-native';
 import { BuySeatsCard, InvoicesTable, PaymentNotice, PlanCard, PlanFigures, ReduceSeatsCard } from '@/components/billing/billing-panels';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
+import { Card, Columns, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { useBilling, useInvoices } from '@/hooks/use-billing';
-import { space, useBreakpoint } from '@/theme';
 
 function ReturnNotice() {
   const { checkout } = useLocalSearchParams<{ checkout?: string }>();
@@ -24,7 +22,6 @@ function ReturnNotice() {
 function BillingBody() {
   const billing = useBilling();
   const invoices = useInvoices();
-  const { isWide } = useBreakpoint();
   if (billing.error) return <ErrorState error={billing.error} onRetry={billing.retry} />;
   if (!billing.data) return <Loader rows={3} label="Loading the plan" />;
   const b = billing.data;
@@ -35,16 +32,10 @@ function BillingBody() {
       <PaymentNotice b={b} openInvoiceUrl={openInvoice?.payUrl ?? null} />
       <PlanCard b={b} />
       <PlanFigures b={b} />
-      <View style={[styles.columns, isWide && styles.columnsWide]}>
-        <View style={styles.column}>
-          <BuySeatsCard b={b} />
-        </View>
-        {b.canChangeSeats ? (
-          <View style={styles.column}>
-            <ReduceSeatsCard key={b.seats} b={b} />
-          </View>
-        ) : null}
-      </View>
+      <Columns>
+        <BuySeatsCard b={b} />
+        {b.canChangeSeats ? <ReduceSeatsCard key={b.seats} b={b} /> : null}
+      </Columns>
       <Text variant="title" accessibilityRole="header">
         Invoices
       </Text>
@@ -70,9 +61,3 @@ export default function BillingScreen() {
     </RoleGate>
   );
 }
-
-const styles = StyleSheet.create({
-  columns: { gap: space.lg },
-  columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
-  column: { flex: 1, gap: space.lg },
-});

@@ -4,7 +4,7 @@ import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, Card, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
+import { Button, Card, Columns, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
 import { useInvites } from '@/hooks/use-invites';
 import { useMailOutbox } from '@/hooks/use-mail-outbox';
 import { useSession } from '@/hooks/use-session';
@@ -59,20 +59,20 @@ function SiteBody() {
         <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
-      <View style={[styles.columns, isWide && styles.columnsWide]}>
-        <View style={styles.column}>
+      <Columns gap={space.md}>
+        <>
           <Text variant="title" accessibilityRole="header">
             People
           </Text>
           <People />
-        </View>
-        <View style={styles.column}>
+        </>
+        <>
           <Text variant="title" accessibilityRole="header">
             Outgoing mail
           </Text>
           <Outbox />
-        </View>
-      </View>
+        </>
+      </Columns>
     </>
   );
 }
@@ -102,7 +102,4 @@ export default function SiteScreen() {
 const styles = StyleSheet.create({
   figures: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
   figuresWide: { flexWrap: 'nowrap' },
-  columns: { gap: space.lg },
-  columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
-  column: { flex: 1, gap: space.md, minWidth: 0 },
 });

@@ -1,7 +1,7 @@
 import express, { Router, type RequestHandler } from 'express';
 import { BillingSummary, BuySeats, ChangeSeats, CheckoutStarted, InvoiceList } from '../../src/contracts/billing';
-import { allow, currentUser } from '../middleware/auth';
-import { billingSummary, changeSeats, siteInvoices, startCheckout, type BillingContext } from '../services/billing';
+import { allow, currentUser, open } from '../middleware/auth';
+import { billingReturnPage, billingSummary, changeSeats, siteInvoices, startCheckout, type BillingContext } from '../services/billing';
 import { handleStripeEvent } from '../services/billing-webhooks';
 
 export function billingRouter(ctx: BillingContext): Router {
@@ -14,7 +14,12 @@ export function billingRouter(ctx: BillingContext): Router {
   });
   router.post('/checkout', allow('admin'), async (req, res) => {
     const body = BuySeats.parse(req.body);
-    res.status(201).json(CheckoutStarted.parse(await startCheckout(ctx, currentUser(req), body)));
+    const origin = `${req.protocol}://${req.get('host')}`;
+    res.status(201).json(CheckoutStarted.parse(await startCheckout(ctx, currentUser(req), body, origin)));
+  });
+  // Open: the browser comes back from the payment page without its session cookie (see billingReturnPage).
+  router.get('/return', open, (req, res) => {
+    res.type('html').send(billingReturnPage(req.query));
   });
   router.patch('/seats', allow('admin'), async (req, res) => {
     const body = ChangeSeats.parse(req.body);

@@ -9,7 +9,8 @@ import { findSite } from '../repositories/sites';
 import { appendAudit } from './audit';
 import { PLAN_NAME, SEAT_PRICE, type Billing } from './billing-provider';
 
-export type BillingContext = { db: Db; clock: Clock; billing: Billing | null; publicUrl: string };
+/** `publicUrl`: PUBLIC_URL when set; else the payment page returns to the address the request came to. */
+export type BillingContext = { db: Db; clock: Clock; billing: Billing | null; publicUrl: string | null };
 
 /** Days a site keeps working after a failed payment before it turns read-only (Yieldpoint's own rule). */
 export const GRACE_DAYS = 7;
@@ -134,12 +135,16 @@ async function ensureCustomer(ctx: BillingContext, billing: Billing, actor: Sess
  * Opens a payment page for more seats. The seat count changes later, when the provider's signed event says
  * the payment went through; nothing the browser sends back is taken as proof of payment.
  */
-export async function startCheckout(ctx: BillingContext, actor: SessionUser, req: BuySeats): Promise<CheckoutStarted> {
+export async function startCheckout(ctx: BillingContext, actor: SessionUser, req: BuySeats, requestOrigin: string): Promise<CheckoutStarted> {
   const billing = requireBilling(ctx.billing);
   const row = await ensureCustomer(ctx, billing, actor);
   const price = await provider(() => billing.seatPrice());
   const site = String(actor.siteId);
-  const back = (outcome: string) => `${ctx.publicUrl}/billing?checkout=${outcome}`;
+  // Back through the landing page (see billingReturnPage): the session cookie is SameSite=Strict, so it is not
+  // sent on the provider's cross-site redirect, only on the landing page's own same-site navigation.
+  // The seat figures in it only word the notice; the seat count itself changes from the provider's signed event.
+  const base = (ctx.publicUrl ?? requestOrigin).replace(/\/$/, '');
+  const back = (outcome: string) => `${base}/api/billing/return?checkout=${outcome}&added=${req.addSeats}&from=${row.seats}`;
   const hasPlan = !!row.stripeSubscriptionId && (row.status === 'active' || row.status === 'past_due');
   const session = await provider(() =>
     hasPlan
@@ -186,4 +191,17 @@ export async function changeSeats(ctx: BillingContext, actor: SessionUser, req: 
   await provider(() => billing.stripe.subscriptions.update(row.stripeSubscriptionId!, { items: [{ id: row.stripeItemId!, quantity: req.seats }], proration_behavior: 'none' }));
   appendAudit(ctx.db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'billing.seats.request', entity: 'subscription', entityId: actor.siteId, oldValue: { seats: row.seats }, newValue: { seats: req.seats }, at: now });
   return billingSummary(ctx, actor);
+}
+
+/**
+ * The page the payment provider sends the browser back to. Its only job is to move on to the billing screen
+ * with a navigation of its own (a meta refresh, which the content security policy allows where a script is not):
+ * that navigation starts on this site, so the browser sends the SameSite=Strict session cookie with it.
+ */
+export function billingReturnPage(query: Record<string, unknown>): string {
+  const checkout = query.checkout === 'done' ? 'done' : 'canceled';
+  const int = (v: unknown) => (typeof v === 'string' && /^\d{1,4}$/.test(v) ? v : null);
+  const added = int(query.added), from = int(query.from);
+  const target = `/billing?checkout=${checkout}${added && from ? `&added=${added}&from=${from}` : ''}`;
+  return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width"><meta http-equiv="refresh" content="0;url=${target}"><title>Back to billing · Yieldpoint</title></head><body><p><a href="${target}">Back to billing</a></p></body></html>`;
 }

@@ -115,11 +115,29 @@ describe('buying seats', () => {
     // The same page then takes a good card.
     const ok = await pay(url, TEST_CARDS.accepted);
     expect(ok.status).toBe(303);
-    expect(ok.headers.get('location')).toBe('http://yieldpoint.test/billing?checkout=done');
+    // Back to PUBLIC_URL through the landing page, which names the seats for the notice.
+    expect(ok.headers.get('location')).toBe(`http://yieldpoint.test/api/billing/return?checkout=done&added=3&from=${DEMO_SEATS}`);
     expect(seats()).toBe(DEMO_SEATS + 3);
     const invoices = listSiteInvoices(t.db, SITE);
     expect(invoices).toHaveLength(invoicesBefore + 1);
     expect(invoices[0]).toMatchObject({ status: 'paid', seats: 3, amountPaidCents: 3 * 4900, currency: 'eur' });
+  });
+
+  it('without PUBLIC_URL the payment page returns to the address the admin used, and the landing page moves on to billing', async () => {
+    await t.closeAll();
+    t = await startBillingTestApp({ publicUrl: null });
+    const url = await checkout(2);
+    const ok = await pay(url, TEST_CARDS.accepted);
+    const back = ok.headers.get('location')!;
+    expect(back).toBe(`${t.base}/api/billing/return?checkout=done&added=2&from=${DEMO_SEATS}`);
+    // Open to a browser without its cookie; the page moves on by a navigation of its own, to billing only.
+    const landing = await fetch(back);
+    expect(landing.status).toBe(200);
+    expect(landing.headers.get('content-type')).toMatch(/^text\/html/);
+    expect(await landing.text()).toContain(`<meta http-equiv="refresh" content="0;url=/billing?checkout=done&added=2&from=${DEMO_SEATS}">`);
+    const odd = await (await fetch(`${t.base}/api/billing/return?checkout=%22%3E%3Cscript%3E&added=x&from=1`)).text();
+    expect(odd).toContain('content="0;url=/billing?checkout=canceled">');
+    expect(odd).not.toContain('<script');
   });
 
   it('refuses a checkout request from a non-admin and a bad seat count, and needs no browser word for seats', async () => {

@@ -1,22 +1,19 @@
 import { router, useLocalSearchParams } from 'expo-router';
-import { StyleSheet, View } from 'react-native';
 import { AssayEntry } from '@/components/lots/assay-entry';
 import { AssayResults } from '@/components/lots/assay-results';
 import { CertificateCard } from '@/components/lots/certificate-card';
 import { DecisionCard } from '@/components/lots/decision-card';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
+import { Button, Card, Columns, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { LOT_DECIDERS, LOT_EDITORS } from '@/contracts/rules';
 import { fmt } from '@/format';
 import { useLot } from '@/hooks/use-lots';
 import { useSession } from '@/hooks/use-session';
-import { space, useBreakpoint } from '@/theme';
 
 const STATUS = { quarantined: 'Quarantined', accepted: 'Accepted', rejected: 'Rejected' } as const;
 
 function LotBody({ id }: { id: number }) {
   const { session } = useSession();
-  const { isWide } = useBreakpoint();
   const { data, error, isLoading, retry } = useLot(id);
   const role = session?.user.role ?? 'operator';
   if (error) return <ErrorState error={error} onRetry={retry} />;
@@ -36,14 +33,10 @@ function LotBody({ id }: { id: number }) {
           {enzyme.enzymeClass} (EC {enzyme.ecNumber}) from {enzyme.supplier} · received {lot.receivedOn} · expires {lot.expiresOn} · {fmt(lot.quantityKg, 0)} kg
         </Text>
       </Card>
-      <View style={[styles.columns, isWide && styles.columnsWide]}>
-        <View style={isWide ? styles.column : styles.stack}>
-          <DecisionCard detail={data} canDecide={(LOT_DECIDERS as readonly string[]).includes(role)} />
-        </View>
-        <View style={isWide ? styles.column : styles.stack}>
-          <CertificateCard lot={lot} conversion={data.conversion} certificate={data.certificate} canEdit={canEdit} />
-        </View>
-      </View>
+      <Columns>
+        <DecisionCard detail={data} canDecide={(LOT_DECIDERS as readonly string[]).includes(role)} />
+        <CertificateCard lot={lot} conversion={data.conversion} certificate={data.certificate} canEdit={canEdit} />
+      </Columns>
       {canEdit ? <AssayEntry lotId={lot.id} /> : null}
       {data.assays.length ? (
         data.assays.map((a) => <AssayResults key={a.id} assay={a} specTempC={enzyme.specTempC} />)
@@ -70,11 +63,3 @@ export default function LotScreen() {
     </RoleGate>
   );
 }
-
-const styles = StyleSheet.create({
-  columns: { gap: space.lg },
-  columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
-  // flex: 1 only beside another column: in a phone's single column it would collapse the card's height.
-  column: { flex: 1, gap: space.lg },
-  stack: { gap: space.lg },
-});

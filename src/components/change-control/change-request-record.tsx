@@ -3,8 +3,8 @@ import { Linking, Platform, StyleSheet, View } from 'react-native';
 import type { ChangeRequestDetail } from '../../contracts/change-requests';
 import type { SessionUser } from '../../contracts/session';
 import { fmt } from '../../format';
-import { space, useBreakpoint } from '../../theme';
-import { Button, Card, DataTable, Text, type Column } from '../ui';
+import { space } from '../../theme';
+import { Button, Card, Columns, DataTable, Text, type Column } from '../ui';
 import { Comparison } from './comparison';
 import { STATUS_LABELS, STATUS_TONES, utcTime } from './labels';
 import { SignForm } from './sign-form';
@@ -35,7 +35,6 @@ function inputRows(d: ChangeRequestDetail): Row[] {
 
 /** A change request as a record: what is proposed against what runs now, why, the plan's inputs and every signature. */
 export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequestDetail; user: SessionUser }) {
-  const { isWide } = useBreakpoint();
   const canSign = user.role === 'supervisor' && d.status === 'proposed';
   const isOwn = d.proposedById === user.id;
   const cautions = d.plan.outputs.cautions;
@@ -62,8 +61,8 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
           <Text tone="muted">The stored plan or request no longer matches the submitted hash. It cannot be signed; ask for a new proposal.</Text>
         </Card>
       ) : null}
-      <View style={[styles.columns, isWide && styles.columnsWide]}>
-        <View style={styles.column}>
+      <Columns>
+        <>
           <Card>
             <Text variant="title" accessibilityRole="header">
               Current and proposed
@@ -88,8 +87,8 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
             </Text>
             <DataTable columns={COLUMNS} rows={inputRows(d)} rowKey={(r) => r.label} caption="Plan inputs" testID="record-inputs" />
           </Card>
-        </View>
-        <View style={styles.column}>
+        </>
+        <>
           <Card>
             <Text variant="title" accessibilityRole="header">
               Signatures
@@ -106,8 +105,8 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
           ) : canSign && d.isIntact ? (
             <SignForm id={d.id} signerName={user.name} recordHash={d.recordHash} />
           ) : null}
-        </View>
-      </View>
+        </>
+      </Columns>
       <Text variant="small" tone="muted">
         Advisory. The released setpoint is set on the vessel by qualified staff under the site’s procedures; Yieldpoint never writes to a control system.
       </Text>
@@ -118,7 +117,4 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
 const styles = StyleSheet.create({
   headline: { gap: space.xs },
   actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
-  columns: { gap: space.lg },
-  columnsWide: { flexDirection: 'row', alignItems: 'flex-start' },
-  column: { flex: 1, gap: space.lg, minWidth: 0 },
 });

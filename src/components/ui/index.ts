@@ -9,3 +9,4 @@ export { Choice } from './choice';
 export { NumberField } from './number-field';
 export { ProgressBar } from './progress-bar';
 export { Figure } from './figure';
+export { Columns } from './columns';
