@@ -108,11 +108,11 @@ export type CalibrationView = z.infer<typeof CalibrationView>;
 export const CalibrationQuery = z.object({ recipeId: z.coerce.number().int().positive(), lotId: z.coerce.number().int().positive() });
 export type CalibrationQuery = z.infer<typeof CalibrationQuery>;
 
-export const CalibrationAccept = z.object({ comment: z.string().trim().max(500).optional() });
+export const CalibrationAccept = z.strictObject({ comment: z.string().trim().max(500).optional() });
 export type CalibrationAccept = z.infer<typeof CalibrationAccept>;
 
 /** The engineer leaves a batch out of calibration (or takes it back in), always with a reason. */
-export const CalibrationExclusion = z.object({
+export const CalibrationExclusion = z.strictObject({
   batchId: z.number().int().positive(),
   isExcluded: z.boolean(),
   reason: z.string().trim().min(3, 'Say why').max(500),
