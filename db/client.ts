@@ -86,7 +86,8 @@ export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => T): T {
   const savepoint: Savepoint = (inner) => savepointOf(client)(inner);
   if (wasFailing) client.pragma('busy_timeout = 0');
   try {
-    const result = db.transaction((tx) => fn(tx as unknown as Db, savepoint), { behavior: 'immediate' });
+    // The transaction handle gets the connection as `$client` too, as the Db type promises (caches key on it).
+    const result = db.transaction((tx) => fn(Object.assign(tx, { $client: client }) as unknown as Db, savepoint), { behavior: 'immediate' });
     if (wasFailing) {
       failing.delete(client);
       console.error(`[${new Date().toISOString()}] database writable again`);

@@ -10,7 +10,12 @@ export function csvCell(value: unknown): string {
   return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
+/** Rows as CSV lines, each ending CRLF (a part of a document written in pieces). */
+export function csvLines(rows: readonly unknown[][]): string {
+  return rows.map((r) => r.map(csvCell).join(',') + '\r\n').join('');
+}
+
 /** A whole CSV document with a header row and CRLF line ends. */
 export function toCsv(header: string[], rows: unknown[][]): string {
-  return [header, ...rows].map((r) => r.map(csvCell).join(',')).join('\r\n') + '\r\n';
+  return csvLines([header, ...rows]);
 }

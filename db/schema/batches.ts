@@ -52,7 +52,14 @@ export const batchReadings = sqliteTable(
     enteredBy: integer('entered_by').notNull().references(() => users.id),
     receivedAt: text('received_at').notNull(),
   },
-  (t) => [uniqueIndex('batch_readings_key_unique').on(t.batchId, t.clientKey), index('batch_readings_time_idx').on(t.batchId, t.takenAt)],
+  // The batch index alone is (batch_id, rowid): a batch's newest reading, its record's version, in O(log n).
+  // By person and batch: "batches this operator logged" without reading a long record.
+  (t) => [
+    uniqueIndex('batch_readings_key_unique').on(t.batchId, t.clientKey),
+    index('batch_readings_time_idx').on(t.batchId, t.takenAt),
+    index('batch_readings_batch_idx').on(t.batchId),
+    index('batch_readings_entered_idx').on(t.enteredBy, t.batchId),
+  ],
 );
 
 export const deviations = sqliteTable(

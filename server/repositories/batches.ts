@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, inArray, lte, ne, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, inArray, lt, lte, ne, or, sql } from 'drizzle-orm';
 import { boundRow, columnPlaceholders, preparedPer, type Db } from '../../db/client';
 import { alias } from 'drizzle-orm/sqlite-core';
 import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/schema';
@@ -67,6 +67,85 @@ const pointsOfBatch = preparedPer((db) =>
 );
 export const readingPoints = (db: Db, batchId: number) => pointsOfBatch(db).all({ batchId });
 
+// The same in columns, rows as arrays (no per-row objects): the cache of long records reads these.
+const pointColumnsOfBatch = preparedPer((db) =>
+  db
+    .select({ id: batchReadings.id, takenAt: batchReadings.takenAt, c: batchReadings.c })
+    .from(batchReadings)
+    .where(eq(batchReadings.batchId, sql.placeholder('batchId')))
+    .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
+    .prepare(),
+);
+export const readingPointRows = (db: Db, batchId: number) => pointColumnsOfBatch(db).values({ batchId }) as [number, string, number][];
+const pointColumnsAfter = preparedPer((db) =>
+  db
+    .select({ id: batchReadings.id, takenAt: batchReadings.takenAt, c: batchReadings.c })
+    .from(batchReadings)
+    .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), gt(batchReadings.id, sql.placeholder('afterId'))))
+    .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
+    .prepare(),
+);
+/** The readings added after the one with id `afterId`, as readingPointRows. */
+export const readingPointRowsAfter = (db: Db, batchId: number, afterId: number) => pointColumnsAfter(db).values({ batchId, afterId }) as [number, string, number][];
+
+// Readings are only ever added, and ids only grow: the newest id is the version of a batch's record.
+const newestReading = preparedPer((db) =>
+  db
+    .select({ id: sql<number | null>`max(${batchReadings.id})` })
+    .from(batchReadings)
+    .where(eq(batchReadings.batchId, sql.placeholder('batchId')))
+    .prepare(),
+);
+export const newestReadingId = (db: Db, batchId: number): number => newestReading(db).get({ batchId })?.id ?? 0;
+
+/** Whole readings with who entered them, for the given ids, in time order. */
+export const readingsByIds = (db: Db, ids: readonly number[]) =>
+  ids.length
+    ? db
+        .select({ reading: batchReadings, enteredBy: users.name })
+        .from(batchReadings)
+        .innerJoin(users, eq(batchReadings.enteredBy, users.id))
+        .where(sql`${batchReadings.id} in (select value from json_each(${JSON.stringify(ids)}))`)
+        .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
+        .all()
+    : [];
+
+/** Readings in time order after `after` (the last of the previous page), `limit` at a time: the report. */
+export function readingsAfter(db: Db, batchId: number, limit: number, after: { takenAt: string; id: number } | null) {
+  return db
+    .select({ reading: batchReadings, enteredBy: users.name })
+    .from(batchReadings)
+    .innerJoin(users, eq(batchReadings.enteredBy, users.id))
+    .where(
+      and(
+        eq(batchReadings.batchId, batchId),
+        after ? or(gt(batchReadings.takenAt, after.takenAt), and(eq(batchReadings.takenAt, after.takenAt), gt(batchReadings.id, after.id))) : undefined,
+      ),
+    )
+    .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
+    .limit(limit)
+    .all();
+}
+
+/** A page of a batch's readings, newest first, older than the reading `beforeId` when given. */
+export function readingsPage(db: Db, batchId: number, limit: number, beforeId: number | null) {
+  const before = beforeId === null ? undefined : db.select({ takenAt: batchReadings.takenAt }).from(batchReadings).where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.id, beforeId))).get();
+  if (beforeId !== null && !before) return null;
+  return db
+    .select({ reading: batchReadings, enteredBy: users.name })
+    .from(batchReadings)
+    .innerJoin(users, eq(batchReadings.enteredBy, users.id))
+    .where(
+      and(
+        eq(batchReadings.batchId, batchId),
+        before ? or(lt(batchReadings.takenAt, before.takenAt), and(eq(batchReadings.takenAt, before.takenAt), lt(batchReadings.id, beforeId!))) : undefined,
+      ),
+    )
+    .orderBy(desc(batchReadings.takenAt), desc(batchReadings.id))
+    .limit(limit)
+    .all();
+}
+
 // Times are stored as toISOString() text, so text order is time order; among equal times the later id is later.
 const readingBefore = preparedPer((db) =>
   db
@@ -114,11 +193,17 @@ const insertReadingRow = preparedPer((db) =>
 );
 export const insertReading = (db: Db, row: NewReading): ReadingRow => insertReadingRow(db).get(boundRow(READING_COLUMNS, row))!;
 
-// 9 columns a row: 1000 rows stay well under SQLite's limit on bound variables.
-export function insertReadings(db: Db, rows: Omit<typeof batchReadings.$inferInsert, 'id'>[]): ReadingRow[] {
-  const out: ReadingRow[] = [];
-  for (let i = 0; i < rows.length; i += 1000) out.push(...db.insert(batchReadings).values(rows.slice(i, i + 1000)).returning().all());
-  return out;
+const insertReadingId = preparedPer((db) =>
+  db
+    .insert(batchReadings)
+    .values(columnPlaceholders(READING_COLUMNS) as unknown as NewReading)
+    .returning({ id: batchReadings.id })
+    .prepare(),
+);
+/** Many readings through one prepared statement (no SQL built per row); their new ids in order. */
+export function insertReadings(db: Db, rows: readonly NewReading[]): number[] {
+  const insert = insertReadingId(db);
+  return rows.map((row) => insert.get(boundRow(READING_COLUMNS, row))!.id);
 }
 
 // Deviations, with the names of who acknowledged and closed them.

@@ -1,4 +1,6 @@
 import express, { Router } from 'express';
+import { Readable } from 'node:stream';
+import { pipeline } from 'node:stream/promises';
 import { z } from 'zod';
 import {
   Batch,
@@ -17,10 +19,12 @@ import {
   READING_LOGGERS,
   ReadingInput,
   ReadingResult,
+  ReadingsPage,
+  ReadingsPageQuery,
 } from '../../src/contracts/batches';
 import { HttpError } from '../http-error';
 import { allow, currentUser } from '../middleware/auth';
-import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, importProgress, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
+import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, getReadingsPage, importProgress, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
 import type { Services } from './services';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
@@ -47,6 +51,10 @@ export function batchesRouter(s: Services): Router {
     const { id } = IdParam.parse(req.params);
     res.json(BatchDetail.parse(getBatchDetail(s, currentUser(req), id)));
   });
+  router.get('/:id/readings', allow(...BATCH_READERS), (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    res.json(ReadingsPage.parse(getReadingsPage(s, currentUser(req), id, ReadingsPageQuery.parse(req.query))));
+  });
   router.post('/:id/readings', allow(...READING_LOGGERS), async (req, res) => {
     const { id } = IdParam.parse(req.params);
     const { created, result } = await readings.log(currentUser(req), id, ReadingInput.parse(req.body));
@@ -64,10 +72,11 @@ export function batchesRouter(s: Services): Router {
     const { id } = IdParam.parse(req.params);
     res.json(Batch.parse(closeBatch(s, currentUser(req), id, BatchClose.parse(req.body))));
   });
-  router.get('/:id/report.csv', allow(...BATCH_READERS), (req, res) => {
+  router.get('/:id/report.csv', allow(...BATCH_READERS), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    const { filename, csv } = batchReportCsv(s, currentUser(req), id);
-    res.type('text/csv').attachment(filename).send(csv);
+    const { filename, parts } = batchReportCsv(s, currentUser(req), id);
+    res.type('text/csv').attachment(filename);
+    await pipeline(Readable.from(parts), res);
   });
   return router;
 }

@@ -195,6 +195,18 @@ export const BatchDetail = z.object({
 });
 export type BatchDetail = z.infer<typeof BatchDetail>;
 
+/** The readings table, a page at a time, newest first. */
+export const ReadingsPageQuery = z.strictObject({
+  before: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(500).default(50),
+});
+export const ReadingsPage = z.object({
+  readings: z.array(Reading),
+  /** Pass as `before` for the next (older) page; null on the last page. */
+  nextBefore: z.number().int().nullable(),
+});
+export type ReadingsPage = z.infer<typeof ReadingsPage>;
+
 export const BatchSummary = z.object({
   id: z.number().int(),
   recipeName: z.string(),

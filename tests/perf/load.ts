@@ -1,11 +1,14 @@
 import autocannon from 'autocannon';
 import fs from 'node:fs';
 import { DEMO_USERS } from '../../db/seed';
+import { MAX_IMPORT_ROWS } from '../../src/contracts/batches';
 import { sessionCookie, startServer } from '../support/server';
 
 // npm run load: loopback-only load against a freshly seeded server, bounded in time. Prints per mix and
 // connection count: requests/s, latency p50 / p99 / max, errors, timeouts and non-2xx answers.
-// LOAD_MIX=reads|ingest runs one mix; LOAD_CPU_PROF=dir writes the server's CPU profile there when it stops.
+// Then the import mix: other users' reads (20 connections) while the largest allowed historian import
+// (300,000 rows) runs, and afterwards the time to read the big batch's list, page and report.
+// LOAD_MIX=reads|ingest|import runs one mix; LOAD_CPU_PROF=dir writes the server's CPU profile there when it stops.
 const DURATION_S = Number(process.env.LOAD_SECONDS ?? 10);
 const ONLY_MIX = process.env.LOAD_MIX;
 const CPU_PROF_DIR = process.env.LOAD_CPU_PROF;
@@ -79,9 +82,54 @@ async function main() {
         );
       }
     }
+    if (!ONLY_MIX || ONLY_MIX === 'import') await importMix(server.baseURL, mixes[0]!, operator, running);
   } finally {
     await server.stop();
     fs.rmSync(server.dir, { recursive: true, force: true });
+  }
+}
+
+async function timed(url: string, cookie: string): Promise<number> {
+  const t0 = performance.now();
+  const r = await fetch(url, { headers: { cookie, 'x-yieldpoint-client': 'load' } });
+  await r.arrayBuffer();
+  if (!r.ok) throw new Error(`${url}: ${r.status}`);
+  return performance.now() - t0;
+}
+
+async function importMix(baseURL: string, reads: Mix, operator: string, running: { id: number; startedAt: string }) {
+  // Invented readings 40 ms apart from the batch start: 300,000 rows span 3.3 h, inside the running batch.
+  const start = Date.parse(running.startedAt);
+  const rows = MAX_IMPORT_ROWS;
+  let csv = 'time,degC\n';
+  for (let i = 0; i < rows; i++) csv += `${new Date(start + 40 * i).toISOString()},${(55 + (i % 40) / 10).toFixed(1)}\n`;
+  const t0 = performance.now();
+  let importMs = 0;
+  const upload = fetch(`${baseURL}/api/batches/${running.id}/readings/import`, {
+    method: 'POST',
+    headers: { cookie: operator, 'x-yieldpoint-client': 'load', 'content-type': 'text/csv' },
+    body: csv,
+  }).then(async (r) => {
+    importMs = performance.now() - t0;
+    const body = (await r.json()) as { imported?: number; message?: string };
+    if (!r.ok) throw new Error(`import refused: ${r.status} ${body.message}`);
+    return body.imported ?? 0;
+  });
+  const r = await run(baseURL, reads, 20);
+  const imported = await upload;
+  console.log(
+    `\nimport mix: ${rows.toLocaleString('en')} rows (${(csv.length / 1e6).toFixed(1)} MB) imported ${imported.toLocaleString('en')} in ${(importMs / 1000).toFixed(1)} s; ` +
+      `other reads meanwhile (20 conns, ${DURATION_S} s): ${r.requests.average.toFixed(0)} req/s, p50 ${r.latency.p50} ms, p99 ${r.latency.p99} ms, max ${r.latency.max} ms, non-2xx ${r.non2xx}`,
+  );
+  for (const [name, path] of [
+    ['batch list', '/api/batches'],
+    ['batch page', `/api/batches/${running.id}`],
+    ['report CSV', `/api/batches/${running.id}/report.csv`],
+  ] as const) {
+    const ms: number[] = [];
+    for (let i = 0; i < 5; i++) ms.push(await timed(baseURL + path, operator));
+    ms.sort((a, b) => a - b);
+    console.log(`after the import, ${name}: median ${ms[2]!.toFixed(0)} ms (5 requests, max ${ms[4]!.toFixed(0)} ms)`);
   }
 }
 

@@ -1,6 +1,9 @@
 import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import { auditEvents, batchReadings, deviations, recipes } from '../../db/schema';
+import { writeTx } from '../../db/client';
+import { auditEvents, batchReadings, deviations, recipes, users } from '../../db/schema';
+import { insertReadings, readingPoints } from '../../server/repositories/batches';
+import { batchRecordOf } from '../../server/services/batch-record';
 import { password, startTestApp, type Client, type TestApp } from './harness';
 
 let t: TestApp;
@@ -339,6 +342,47 @@ describe('historian import', () => {
     expect(count(batchReadings)).toBe(n0 + 50_000);
   });
 
+  it('keeps a one-reading excursion in the batch page sample of a long record, and pages the table newest first', async () => {
+    // One invented reading of 39.5 °C between two stored ones halfway through the 50,000.
+    const spikeAt = new Date(Date.parse(batch.startedAt) + 25_000_500).toISOString();
+    expect((await upload(op, `time,degC\n${spikeAt},39.5\n`)).body).toMatchObject({ imported: 1 });
+    const d = (await op.get(`/api/batches/${batch.id}`)).body;
+    expect(d.readingsTotal).toBe(50_001);
+    expect(d.readings.length).toBeLessThanOrEqual(5000);
+    expect(d.readings.some((r: any) => r.takenAt === spikeAt && r.c === 39.5)).toBe(true);
+    // The first reading of the record starts the sample; it is in time order.
+    expect(d.readings[0].takenAt).toBe(batch.startedAt);
+    const times = d.readings.map((r: any) => r.takenAt);
+    expect([...times].sort()).toEqual(times);
+    expect(d.status.readings).toBe(50_001);
+
+    const seen = new Set<number>();
+    let before: number | null = null;
+    let last = '9999';
+    for (let page = 0; page < 3; page++) {
+      const r = await op.get(`/api/batches/${batch.id}/readings?limit=500${before ? `&before=${before}` : ''}`);
+      expect(r.status).toBe(200);
+      expect(r.body.readings).toHaveLength(500);
+      if (page === 0) expect(r.body.readings[0].takenAt).toBe(d.readings.at(-1).takenAt);
+      for (const x of r.body.readings) {
+        expect(seen.has(x.id)).toBe(false);
+        seen.add(x.id);
+        expect(x.takenAt <= last).toBe(true);
+        last = x.takenAt;
+      }
+      before = r.body.nextBefore;
+    }
+    expect((await op.get(`/api/batches/${batch.id}/readings?before=999999999`)).status).toBe(400);
+    expect((await op.get(`/api/batches/${batch.id}/readings?limit=100000`)).status).toBe(400);
+
+    // A phone reading reaches the figures at once (the kept record is versioned by the newest reading).
+    const logged = await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 13.95), c: 37 });
+    expect(logged.status).toBe(201);
+    const after = (await op.get(`/api/batches/${batch.id}`)).body;
+    expect(after.readingsTotal).toBe(50_002);
+    expect(after.status.readings).toBe(50_002);
+  });
+
   it('reads local times in the site zone and reports duplicates, out-of-order and bad rows by line', async () => {
     // Local Berlin times (UTC+1 in December) after the 50,000 rows; line 4 repeats line 3, line 5 goes back in time.
     const base = new Date(Date.parse(batch.startedAt) + 14 * 3_600_000);
@@ -371,6 +415,30 @@ describe('historian import', () => {
     expect((await upload(op, '2026-12-01 08:00,37', '?timeZone=Mars/Olympus')).body.error.fields.timeZone).toBeTruthy();
     expect((await upload(op, '\n\n')).status).toBe(400);
     expect((await op.post(`/api/batches/${batch.id}/readings/import`, { rows: [] })).status).toBe(400);
+  });
+});
+
+describe('the kept reading record', () => {
+  it('is never fooled by a rolled-back write whose ids are given out again', async () => {
+    await closeRunning('R-204 Lactose tank');
+    const b = await startLactose(3);
+    const user = t.db.select().from(users).where(eq(users.email, 'operator@haldenbay.test')).get()!;
+    const row = (k: string, h: number, c: number) => ({ siteId: user.siteId, batchId: b.id, clientKey: k, takenAt: at(b.startedAt, h), c, note: null, source: 'manual' as const, enteredBy: user.id, receivedAt: at(b.startedAt, h) });
+    writeTx(t.db, (tx) => insertReadings(tx, [row('kept-1', 0.5, 30), row('kept-2', 1, 31)]));
+    expect(batchRecordOf(t.db, b).points.map((p) => p.c)).toEqual([30, 31]);
+    // Inside the transaction the record sees its own uncommitted reading; after the rollback it is gone.
+    expect(() =>
+      writeTx(t.db, (tx) => {
+        insertReadings(tx, [row('rolled-back', 1.5, 99)]);
+        expect(batchRecordOf(tx, b).points.map((p) => p.c)).toEqual([30, 31, 99]);
+        throw new Error('rolled back on purpose');
+      }),
+    ).toThrow('rolled back on purpose');
+    // The next reading takes the rolled-back id (AUTOINCREMENT's counter rolls back too): the record shows it,
+    // not the value that was rolled back.
+    writeTx(t.db, (tx) => insertReadings(tx, [row('after', 0.75, 32)]));
+    expect(batchRecordOf(t.db, b).points.map((p) => p.c)).toEqual([30, 32, 31]);
+    expect(batchRecordOf(t.db, b).points.length).toBe(readingPoints(t.db, b.id).length);
   });
 });
 

@@ -4,11 +4,12 @@ import { Linking, StyleSheet, View } from 'react-native';
 import { CloseBatchCard } from '@/components/batches/close-batch-card';
 import { DeviationList } from '@/components/batches/deviation-list';
 import { HistorianUpload } from '@/components/batches/historian-upload';
+import { READING_COLUMNS, ReadingPages, readingRow, type ReadingRow } from '@/components/batches/reading-pages';
 import { ReadingEntry } from '@/components/batches/reading-entry';
 import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
+import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { batchHours, batchStatus, durationText, shortTime } from '@/batches';
 import type { BatchDetail } from '@/contracts/batches';
 import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
@@ -19,16 +20,9 @@ import { useLogReading } from '@/hooks/use-log-reading';
 import { useSession } from '@/hooks/use-session';
 import { space, useBreakpoint } from '@/theme';
 
-/** A row of the readings table: stored on the server, still on this device, or refused by the server. */
-type ReadingRow = { key: string; takenAt: string; h: number; c: number; by: string; note: string };
 
-const READING_COLUMNS: Column<ReadingRow>[] = [
-  { key: 'time', label: 'Time', value: (r) => shortTime(r.takenAt) },
-  { key: 'h', label: 'Hour', value: (r) => fmt(r.h, 2), isNumeric: true },
-  { key: 'c', label: '°C', value: (r) => fmt(r.c), isNumeric: true },
-  { key: 'by', label: 'By', value: (r) => r.by, flex: 1.2 },
-  { key: 'note', label: 'Note', value: (r) => r.note, flex: 1.5 },
-];
+// The newest readings shown at once; a longer record pages below them.
+const LATEST_SHOWN = 12;
 
 /** The plan in words: what runs and where it comes from. */
 function planSentence(d: BatchDetail): string {
@@ -58,7 +52,7 @@ function BatchBody({ id }: { id: number }) {
     const canPreview = queued.length > 0 && data.readings.length === data.readingsTotal;
     const status = canPreview ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective } : data.status;
     const rows: ReadingRow[] = [
-      ...data.readings.map((r) => ({ key: r.key, takenAt: r.takenAt, h: r.h, c: r.c, by: r.source === 'historian' ? 'historian' : r.enteredBy, note: r.note ?? '' })),
+      ...data.readings.map(readingRow),
       ...onDevice.map((q) => ({ key: q.key, takenAt: q.takenAt, h: batchHours(start, q.takenAt), c: q.c, by: 'on this device', note: q.note ?? '' })),
       ...logger.refused.map(({ reading: q, message }) => ({ key: q.key, takenAt: q.takenAt, h: batchHours(start, q.takenAt), c: q.c, by: 'not stored', note: message })),
     ].sort((a, b) => Date.parse(a.takenAt) - Date.parse(b.takenAt));
@@ -145,10 +139,11 @@ function BatchBody({ id }: { id: number }) {
               </View>
             ) : null}
             {preview.rows.length ? (
-              <DataTable columns={READING_COLUMNS} rows={[...preview.rows].reverse().slice(0, 12)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
+              <DataTable columns={READING_COLUMNS} rows={[...preview.rows].reverse().slice(0, LATEST_SHOWN)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
             ) : (
               <Text tone="muted">No readings yet.</Text>
             )}
+            {data.readingsTotal > LATEST_SHOWN ? <ReadingPages batchId={b.id} total={data.readingsTotal} /> : null}
             <View style={styles.links}>
               <Button label="Printable report" variant="secondary" onPress={() => router.push(`/batches/report/${b.id}`)} testID="batch-report" />
               <Button label="Download CSV" variant="ghost" onPress={() => void Linking.openURL(`/api/batches/${b.id}/report.csv`)} testID="batch-csv" />

@@ -1,0 +1,91 @@
+// A batch's reading record as the engine sees it (hours since start and °C, in time order), kept per database
+// connection and batch until a reading is added. A 300,000-row historian record takes a second to load and
+// integrate; the list, the batch page and each phone reading would otherwise pay that every time.
+//
+// Readings are only ever added and ids only grow, so the newest id (an index lookup) is the record's version. A
+// record read inside a transaction is not kept: the transaction may roll back and its ids be given out again.
+import type Database from 'better-sqlite3';
+import type { Db } from '../../db/client';
+import { batchHours, batchStatus, statusAtHour } from '../../src/batches';
+import type { BatchProgram, BatchStatus } from '../../src/contracts/batches';
+import type { Reading as Point } from '../../src/model';
+import { newestReadingId, readingPointRows, readingPointRowsAfter } from '../repositories/batches';
+
+export type BatchRecord = {
+  version: number;
+  ids: Int32Array;
+  points: Point[];
+  /** Each reading's stored time (ISO text), for merging in later readings. */
+  at: string[];
+  /** Status at batch hour 0 without and with a corrective setpoint: the integration, kept; see statusNow. */
+  status?: BatchStatus;
+  withCorrective?: BatchStatus;
+};
+
+const KEPT_PER_CONNECTION = 32;
+const kept = new WeakMap<Database.Database, Map<number, BatchRecord>>();
+
+type BatchRef = { id: number; startedAt: string };
+
+type Row = [id: number, takenAt: string, c: number];
+
+function fromRows(rows: readonly Row[], startedAt: string): { ids: Int32Array; points: Point[]; at: string[] } {
+  const ids = new Int32Array(rows.length);
+  const points: Point[] = new Array(rows.length);
+  const at: string[] = new Array(rows.length);
+  const startMs = Date.parse(startedAt);
+  for (let i = 0; i < rows.length; i++) {
+    const [id, takenAt, c] = rows[i]!;
+    ids[i] = id;
+    at[i] = takenAt;
+    points[i] = { h: (Date.parse(takenAt) - startMs) / 3_600_000, c };
+  }
+  return { ids, points, at };
+}
+
+/** The kept record with the readings added since merged in, in the stored order (time, then id). */
+function merged(old: BatchRecord, added: ReturnType<typeof fromRows>, version: number): BatchRecord {
+  const n = old.ids.length + added.ids.length;
+  const ids = new Int32Array(n);
+  const points: Point[] = new Array(n);
+  const at: string[] = new Array(n);
+  let i = 0;
+  let j = 0;
+  for (let k = 0; k < n; k++) {
+    // Times are toISOString() text: text order is time order; equal times keep id order (old ids are lower).
+    const takeOld = j >= added.ids.length || (i < old.ids.length && old.at[i]! <= added.at[j]!);
+    if (takeOld) {
+      ids[k] = old.ids[i]!;
+      points[k] = old.points[i]!;
+      at[k] = old.at[i++]!;
+    } else {
+      ids[k] = added.ids[j]!;
+      points[k] = added.points[j]!;
+      at[k] = added.at[j++]!;
+    }
+  }
+  return { version, ids, points, at };
+}
+
+export function batchRecordOf(db: Db, b: BatchRef): BatchRecord {
+  const version = newestReadingId(db, b.id);
+  let byBatch = kept.get(db.$client);
+  const hit = byBatch?.get(b.id);
+  if (hit && hit.version === version) return hit;
+  const record = hit && hit.version < version ? merged(hit, fromRows(readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version) : { version, ...fromRows(readingPointRows(db, b.id), b.startedAt) };
+  if (db.$client.inTransaction) return record;
+  if (!byBatch) kept.set(db.$client, (byBatch = new Map()));
+  byBatch.delete(b.id);
+  byBatch.set(b.id, record);
+  if (byBatch.size > KEPT_PER_CONNECTION) byBatch.delete(byBatch.keys().next().value!);
+  return record;
+}
+
+/** The batch's status now: the kept integration with the figures that depend on the clock brought up to date. */
+export function statusNow(db: Db, b: BatchRef & { program: BatchProgram }, nowIso: string, withCorrective = false): BatchStatus {
+  const record = batchRecordOf(db, b);
+  const nowH = batchHours(b.startedAt, nowIso);
+  // Neither the integration nor the corrective setpoint (from the state at the last reading) depends on the clock.
+  const base = withCorrective ? (record.withCorrective ??= batchStatus(b.program, record.points, 0, true)) : (record.status ??= batchStatus(b.program, record.points, 0));
+  return statusAtHour(b.program, base, nowH);
+}
