@@ -1,7 +1,7 @@
 import { KELVIN_OFFSET, R } from './constants';
 import { ModelInputError } from './errors';
 import { softplus } from './kinetics';
-import { levenbergMarquardt } from './lm';
+import { leastSquares, levenbergMarquardt, type LeastSquaresProblem } from './lm';
 import { incompleteBeta, studentTQuantile } from './stats';
 
 export interface InactivationPoint {
@@ -149,7 +149,7 @@ interface Prepared {
 }
 
 // A model's mean residual activity m(theta) at point i and its gradient, written into `grad`.
-type MeanFn = (th: number[], i: number, grad: number[]) => number;
+type MeanFn = (th: ArrayLike<number>, i: number, grad: number[]) => number;
 
 const MEANS: Record<InactivationModelName, { k: number; names: string[]; mean: (p: Prepared) => MeanFn }> = {
   'first-order': {
@@ -204,30 +204,32 @@ interface RawFit {
   res: number[];
 }
 
+const TWO_FRACTION_MAX_ITER = 50;
+
 function fitModel(p: Prepared, name: InactivationModelName, errorModel: ErrorModel, start: number[]): RawFit {
   const mean = MEANS[name].mean(p);
   const k = MEANS[name].k;
-  const g = new Array(k).fill(0);
+  const g = new Array<number>(k).fill(0);
   const rel = errorModel === 'relative';
-  const residuals = (th: number[]) => {
-    const r = new Array(p.n);
-    for (let i = 0; i < p.n; i++) {
-      const m = mean(th, i, g);
-      r[i] = rel ? p.ly[i] - Math.log(m) : p.ys[i] - m;
-    }
-    return r;
+  const problem: LeastSquaresProblem = {
+    n: p.n,
+    k,
+    evaluate(th, r, jac) {
+      for (let i = 0; i < p.n; i++) {
+        const m = mean(th, i, g);
+        r[i] = rel ? p.ly[i] - Math.log(m) : p.ys[i] - m;
+        if (!jac) continue;
+        const f = rel ? -1 / m : -1;
+        for (let a = 0; a < k; a++) jac[i * k + a] = g[a] * f;
+      }
+    },
   };
-  const jacobian = (th: number[]) => {
-    const rows: number[][] = new Array(p.n);
-    for (let i = 0; i < p.n; i++) {
-      const m = mean(th, i, g);
-      const f = rel ? -1 / m : -1;
-      rows[i] = g.map((v) => v * f);
-    }
-    return rows;
-  };
-  const lm = levenbergMarquardt(residuals, jacobian, start);
-  return { th: lm.params, ssr: lm.ssr, jtjInverse: lm.jtjInverse, res: residuals(lm.params) };
+  // Two fractions on data that do not separate them creep along a ridge (k2 -> k1 or share -> 0) for hundreds of
+  // iterations without changing the AICc; an identified two-fraction fit converges in about ten.
+  const lm = leastSquares(problem, start, name === 'two-fraction' ? TWO_FRACTION_MAX_ITER : undefined);
+  const res = new Float64Array(p.n);
+  problem.evaluate(Float64Array.from(lm.params), res, null);
+  return { th: lm.params, ssr: lm.ssr, jtjInverse: lm.jtjInverse, res: Array.from(res) };
 }
 
 /** AICc of a Gaussian least-squares fit with k parameters besides the noise variance (science.md, Definitions). */

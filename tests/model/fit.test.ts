@@ -50,24 +50,45 @@ describe('fitInactivation', () => {
     expect(Math.abs(ref.parameterValues[0] - Math.log(f.kdRefPerH))).toBeLessThan(1e-4);
     expect(Math.abs(ref.parameterValues[1] - f.edKJPerMol)).toBeLessThan(0.05);
   });
-  it('95 % intervals cover the truth in most of 200 synthetic data sets (expected 95 %)', () => {
-    let coverKd = 0;
-    let coverEd = 0;
-    let coverHalf70 = 0;
-    const q = studentTQuantile(0.975, 18);
+  // Coverage by simulation: for a correctly specified model the 95 % Wald/Student intervals of a nonlinear least-squares
+  // fit cover the truth close to 95 % of the time (Seber & Wild, Nonlinear Regression, Wiley 1989, ch. 5). 400 seeded
+  // data sets per error model (the issue asks for at least 200; with 400 the binomial sd of the rate is 1.1 points,
+  // so 92-98 % is +-2.7 sd). Measured on other seeds: the first-order fit alone 94.6-95.2 % (3000 sets); with the
+  // AICc choice, the chosen model's 93.0-94.7 % (2000 sets), lower because AICc picks first-order-a0 in about 4 % of the sets and those intervals,
+  // conditional on that choice, miss more often (post-selection inference).
+  it.each([
+    { errorModel: 'relative', sd: 0.05 },
+    { errorModel: 'absolute', sd: 0.02 },
+  ] as const)('$errorModel noise: 95 % intervals of kd, Ed and t1/2 at 70 degC cover the truth 92-98 % of 400 data sets', ({ errorModel, sd }) => {
     const truth = { kd: 0.15, ed: 280 };
     const trueHalf70 = Math.LN2 / (truth.kd * arrheniusFactor(truth.ed, 70, 60));
-    for (let s = 0; s < 200; s++) {
-      const f = fitInactivation(60, synthetic(1000 + s, truth, 0.05));
-      const seLn = Math.sqrt(f.covariance[0][0]);
-      if (Math.abs(Math.log(f.kdRefPerH / truth.kd)) <= q * seLn) coverKd++;
-      if (Math.abs(f.edKJPerMol - truth.ed) <= q * f.se.edKJPerMol) coverEd++;
+    const sets = 400;
+    const cover = { kd: 0, ed: 0, half70: 0, firstOrderKd: 0, firstOrderEd: 0 };
+    for (let s = 0; s < sets; s++) {
+      const rng = createRng(1 + s);
+      const pts: InactivationPoint[] = [];
+      for (const c of [55, 60, 65, 70])
+        for (const h of [0.25, 0.5, 1, 2, 4]) {
+          const m = Math.exp(-truth.kd * arrheniusFactor(truth.ed, c, 60) * h);
+          // Relative: multiplicative log-normal noise; absolute: additive on the fraction (readings can go below 0).
+          pts.push({ c, h, residual: errorModel === 'relative' ? m * Math.exp(sd * rng.normal()) : m + sd * rng.normal() });
+        }
+      const f = fitInactivation(60, pts, { errorModel });
+      // The interval the product shows: the chosen model's, on ln kd (exp of it for kd) and on Ed.
+      const q = studentTQuantile(0.975, f.dof);
+      if (Math.abs(Math.log(f.kdRefPerH / truth.kd)) <= q * Math.sqrt(f.covariance[0][0])) cover.kd++;
+      if (Math.abs(f.edKJPerMol - truth.ed) <= q * Math.sqrt(f.covariance[1][1])) cover.ed++;
       const h = halfLifeAt(f, 70);
-      if (h.lowerH <= trueHalf70 && trueHalf70 <= h.upperH) coverHalf70++;
+      if (h.lowerH <= trueHalf70 && trueHalf70 <= h.upperH) cover.half70++;
+      // The true model's own intervals, whatever AICc chose.
+      const fo = f.models.find((m) => m.name === 'first-order')!;
+      const qf = studentTQuantile(0.975, fo.dof);
+      if (Math.abs(Math.log(fo.kdRefPerH / truth.kd)) <= qf * Math.sqrt(fo.covariance[0][0])) cover.firstOrderKd++;
+      if (Math.abs(fo.edKJPerMol - truth.ed) <= qf * Math.sqrt(fo.covariance[1][1])) cover.firstOrderEd++;
     }
-    for (const c of [coverKd, coverEd, coverHalf70]) {
-      expect(c).toBeGreaterThanOrEqual(180);
-      expect(c).toBeLessThanOrEqual(200);
+    for (const [what, c] of Object.entries(cover)) {
+      expect(c / sets, what).toBeGreaterThanOrEqual(0.92);
+      expect(c / sets, what).toBeLessThanOrEqual(0.98);
     }
   });
   it('half-life interval is narrowest near the middle of the data and brackets the estimate', () => {
