@@ -72,6 +72,43 @@ describe('fitInactivation', () => {
       expect(c / sets, what).toBeLessThanOrEqual(0.98);
     }
   });
+  it.each(['relative', 'absolute'] as const)(
+    '%s: replicates fitted as weighted rows give the fit to every point (parameters, covariance, AICc, lack of fit)',
+    (errorModel) => {
+      // 4 temperatures x 6 times x 1-5 replicates, biphasic truth so that all three models are fitted and differ.
+      const rng = createRng(404);
+      const pts: InactivationPoint[] = [];
+      for (const c of [55, 60, 65, 70])
+        for (const h of [0.25, 0.5, 1, 2, 4, 8]) {
+          const m = 0.75 * Math.exp(-0.4 * arrheniusFactor(260, c, 60) * h) + 0.25 * Math.exp(-0.03 * arrheniusFactor(300, c, 60) * h);
+          for (let r = 0, reps = 1 + Math.floor(5 * rng.uniform()); r < reps; r++)
+            pts.push({ c, h, residual: errorModel === 'relative' ? m * Math.exp(0.03 * rng.normal()) : m + 0.01 * rng.normal() });
+        }
+      // Shuffled, so that replicates are not adjacent in the input.
+      for (let i = pts.length - 1; i > 0; i--) {
+        const j = Math.floor(rng.uniform() * (i + 1));
+        [pts[i], pts[j]] = [pts[j], pts[i]];
+      }
+      const rows = fitInactivation(60, pts, { errorModel });
+      const every = fitInactivation(60, pts, { errorModel, collapseReplicates: false });
+      expect(rows.chosen).toBe(every.chosen);
+      expect(rows.lackOfFit).toBe(every.lackOfFit);
+      expect(rows.n).toBe(pts.length);
+      expect(rows.models.map((m) => m.name)).toEqual(every.models.map((m) => m.name));
+      rows.models.forEach((m, k) => {
+        const e = every.models[k];
+        expect(m.dof).toBe(e.dof);
+        expect(m.aicc!).toBeCloseTo(e.aicc!, 6);
+        expect(m.residualSd / e.residualSd - 1).toBeLessThan(1e-9);
+        if (e.singular) return;
+        const sd = e.covariance.map((row, i) => Math.sqrt(row[i]));
+        expect(Math.abs(Math.log(m.kdRefPerH / e.kdRefPerH)) / sd[0]).toBeLessThan(1e-5);
+        expect(Math.abs(m.edKJPerMol - e.edKJPerMol) / sd[1]).toBeLessThan(1e-5);
+        for (let a = 0; a < sd.length; a++)
+          for (let b = 0; b < sd.length; b++) expect(Math.abs(m.covariance[a][b] - e.covariance[a][b]) / (sd[a] * sd[b])).toBeLessThan(1e-5);
+      });
+    },
+  );
   it('half-life interval is narrowest near the middle of the data and brackets the estimate', () => {
     const f = fitInactivation(60, synthetic(3, { kd: 0.2, ed: 250 }, 0.04));
     const mid = halfLifeAt(f, 62.5);
