@@ -19,6 +19,9 @@ const lnKFast = lnKAt;
 const lnK2Fast = lnK2At;
 const omega = wrightOmega;
 const softplusFast = softplus;
+const slopeBound = slopeBoundK;
+const K0 = KELVIN_OFFSET;
+const GAS = R;
 
 /**
  * Mutable integration state: work x (g/L); activity a of the labile fraction and b of the stable fraction,
@@ -72,13 +75,13 @@ export function advanceConstant(r: Rates, invT: number, dur: number, st: WorkSta
 export function advanceRamp(r: Rates, c0: number, c1: number, dur: number, st: WorkState): void {
   if (!(dur > 0)) return;
   if (c0 === c1) {
-    advanceConstant(r, 1 / (c0 + KELVIN_OFFSET), dur, st);
+    advanceConstant(r, 1 / (c0 + K0), dur, st);
     return;
   }
-  const t0 = c0 + KELVIN_OFFSET;
+  const t0 = c0 + K0;
   const dT = c1 - c0;
-  const tMin = Math.min(c0, c1) + KELVIN_OFFSET;
-  const slopeLn = (slopeBoundK(r) * Math.abs(dT)) / (tMin * tMin * dur);
+  const tMin = Math.min(c0, c1) + K0;
+  const slopeLn = (slopeBound(r) * Math.abs(dT)) / (tMin * tMin * dur);
   let two = st.b > 0;
   let tau = 0;
   while (tau < dur) {
@@ -186,7 +189,7 @@ export function temperatureAt(temp: TemperatureInput, h: number): number {
 export function integrateProgram(r: Rates, temp: TemperatureInput, from: number, to: number, st: WorkState): void {
   if (!(to > from)) return;
   if ('setpointC' in temp) {
-    advanceConstant(r, 1 / (temp.setpointC + KELVIN_OFFSET), to - from, st);
+    advanceConstant(r, 1 / (temp.setpointC + K0), to - from, st);
     return;
   }
   if ('stages' in temp) {
@@ -196,7 +199,7 @@ export function integrateProgram(r: Rates, temp: TemperatureInput, from: number,
       const end = i === stages.length - 1 ? Math.max(to, t + stages[i].hours) : t + stages[i].hours;
       const a = Math.max(t, from);
       const b = Math.min(end, to);
-      if (b > a) advanceConstant(r, 1 / (stages[i].c + KELVIN_OFFSET), b - a, st);
+      if (b > a) advanceConstant(r, 1 / (stages[i].c + K0), b - a, st);
       t = end;
       if (t >= to) break;
     }
@@ -208,7 +211,7 @@ export function integrateProgram(r: Rates, temp: TemperatureInput, from: number,
   let i = readingIndexAfter(log, t);
   if (i === 0) {
     const b = Math.min(log[0].h, to);
-    if (b > t) advanceConstant(r, 1 / (log[0].c + KELVIN_OFFSET), b - t, st);
+    if (b > t) advanceConstant(r, 1 / (log[0].c + K0), b - t, st);
     t = b;
   }
   if (i === 0) i = 1;
@@ -225,7 +228,7 @@ export function integrateProgram(r: Rates, temp: TemperatureInput, from: number,
     if (b > t) t = b;
     i++;
   }
-  if (t < to) advanceConstant(r, 1 / (log[n - 1].c + KELVIN_OFFSET), to - t, st);
+  if (t < to) advanceConstant(r, 1 / (log[n - 1].c + K0), to - t, st);
 }
 
 /** Product (g/L) made by accumulated work x (g/L): S = Km W0((S0/Km) e^((S0-x)/Km)) in log form, polished with log1p. */
@@ -335,12 +338,12 @@ export function simulate(
 ): SimulationResult {
   if ('setpointC' in temperature && !enzyme.stableFraction) {
     // One constant segment: skip compiling the rates (two logarithms and an object) on this hot path.
-    const dInv = 1 / (temperature.setpointC + KELVIN_OFFSET) - 1 / (enzyme.tRefC + KELVIN_OFFSET);
-    let lnK = Math.log(enzyme.kdRefPerH) + ((-enzyme.edKJPerMol * 1000) / R) * dInv;
-    let lnV = Math.log(enzyme.vmaxRef) + ((-enzyme.eaKJPerMol * 1000) / R) * dInv;
+    const dInv = 1 / (temperature.setpointC + K0) - 1 / (enzyme.tRefC + K0);
+    let lnK = Math.log(enzyme.kdRefPerH) + ((-enzyme.edKJPerMol * 1000) / GAS) * dInv;
+    let lnV = Math.log(enzyme.vmaxRef) + ((-enzyme.eaKJPerMol * 1000) / GAS) * dInv;
     const eq = enzyme.equilibrium;
     if (eq) {
-      const lnKeq = ((eq.dHeqKJPerMol * 1000) / R) * (1 / (eq.teqC + KELVIN_OFFSET) - 1 / (temperature.setpointC + KELVIN_OFFSET));
+      const lnKeq = ((eq.dHeqKJPerMol * 1000) / GAS) * (1 / (eq.teqC + K0) - 1 / (temperature.setpointC + K0));
       lnV -= softplusFast(lnKeq);
       lnK -= softplusFast(-lnKeq);
     }

@@ -92,9 +92,23 @@ function boundSide(x: number, lo: number, hi: number): BoundSide {
 export function optimalSetpointC(enzyme: EnzymeParams, batchH: number, boundsC: [number, number]): number {
   const [lo, hi] = boundsC;
   if (hi <= lo) return lo;
-  if (enzyme.equilibrium || enzyme.stableFraction) {
-    // No closed form: ln X can have two local maxima with two fractions, so scan the bounds (0.25 degC) first
+  if (enzyme.stableFraction && !enzyme.equilibrium) {
+    // Two fractions, pure Arrhenius: X = (1 - s) X1 + s X2 with each fraction's work unimodal in T (ln X_j is
+    // concave in -1/T) and its own optimum in closed form, so X rises below both optima and falls above both:
+    // every maximum lies between them. ln X can have two local maxima there, so scan that interval (0.25 degC)
     // and bracket the best.
+    const { stableFraction: sf, ...labile } = enzyme;
+    const c1 = optimalSetpointC(labile, batchH, boundsC);
+    const c2 = optimalSetpointC({ ...labile, kdRefPerH: sf.kdRefPerH, edKJPerMol: sf.edKJPerMol }, batchH, boundsC);
+    const a = Math.min(c1, c2);
+    const b = Math.max(c1, c2);
+    if (!(b > a)) return a;
+    const r = compileRates(enzyme);
+    const n = Math.min(801, Math.max(9, Math.ceil((b - a) / 0.25) + 1));
+    return scanMax((c) => lnWorkIsothermal(r, c, batchH), a, b, n, 1e-7).x;
+  }
+  if (enzyme.equilibrium || enzyme.stableFraction) {
+    // No closed form: scan the bounds (0.25 degC) first and bracket the best.
     const r = compileRates(enzyme);
     const n = Math.min(801, Math.max(41, Math.ceil((hi - lo) / 0.25) + 1));
     const best = scanMax((c) => lnWorkIsothermal(r, c, batchH), lo, hi, n, 1e-7);

@@ -110,6 +110,34 @@ function selectInPlace(a: Float64Array, k: number, lo: number, hi: number): void
   }
 }
 
+/** The k-th smallest (0-based) of values; reorders `scratch`. */
+export function kthSmallest(values: ArrayLike<number>, k: number, scratch: Float64Array): number {
+  const n = values.length;
+  for (let i = 0; i < n; i++) scratch[i] = values[i];
+  selectInPlace(scratch, k, 0, n - 1);
+  return scratch[k];
+}
+
+/**
+ * Type-7 p-quantile of map(values) over n values of which only the first m of `band` need be known: nBelow others
+ * are known to lie below, and the rest above, the two order statistics it takes. Same arithmetic as
+ * quantilesBySelection on all n, so the same number; reorders band[0..m-1].
+ */
+export function quantileFromBand(band: Float64Array, m: number, nBelow: number, n: number, p: number, map: (x: number) => number): number {
+  const h = (n - 1) * p;
+  const i = Math.floor(h);
+  const k = i - nBelow;
+  selectInPlace(band, k, 0, m - 1);
+  const a = map(band[k]);
+  let b = a;
+  if (i < n - 1 && h > i) {
+    let next = Infinity;
+    for (let j = k + 1; j < m; j++) if (band[j] < next) next = band[j];
+    b = map(next);
+  }
+  return a + (h - i) * (b - a);
+}
+
 /** Type-7 quantiles of map(values) for ascending ps (0..1), by selection; map must be increasing; reorders `scratch`. */
 export function quantilesBySelection(
   values: ArrayLike<number>,

@@ -1,10 +1,10 @@
 import { brentMax, scanMax } from './brent';
 import { KELVIN_OFFSET, R } from './constants';
 import { ModelCancelledError, ModelInputError } from './errors';
-import { compileRates, type Rates } from './kinetics';
+import { compileRates, LN_RATE_CAP, type Rates } from './kinetics';
 import { productFromWork } from './batch';
 import { isothermalOptimumU, lnWorkIsothermal, optimalSetpointC, workIsothermal } from './optimise';
-import { cholesky, createRng, quantileSorted, quantilesBySelection, type Rng } from './random';
+import { cholesky, createRng, kthSmallest, quantileFromBand, quantilesBySelection, type Rng } from './random';
 import type { EnzymeParams, Substrate } from './types';
 
 // Local bindings of hot imports: CommonJS transforms (tsx, esbuild) route every call to an imported
@@ -13,6 +13,8 @@ const workFast = workIsothermal;
 const lnWorkFast = lnWorkIsothermal;
 const productFast = productFromWork;
 const optimumU = isothermalOptimumU;
+const K0 = KELVIN_OFFSET;
+const CAP = LN_RATE_CAP;
 
 export interface UncertaintyInput {
   /** Mean parameters (the fit's point estimates). */
@@ -112,6 +114,8 @@ interface Sampler {
   lo: number;
   hi: number;
   clamped: number;
+  /** Equilibrium Model or two fractions: work through workIsothermal on each draw's rates. */
+  general: boolean;
 }
 
 // Hot loops live outside the generator: engines optimise plain functions better than generator bodies.
@@ -159,22 +163,84 @@ function drawRange(sp: Sampler, start: number, end: number): void {
   }
 }
 
-function workRange(sp: Sampler, cands: number[], out: Float64Array[], start: number, end: number): void {
-  const { d, base, work, batchH } = sp;
-  const m = cands.length;
-  for (let i = start; i < end; i++) {
-    setRates(base, d, i, work);
-    const b = d.bias[i];
-    for (let j = 0; j < m; j++) out[j][i] = workFast(work, cands[j] + b, batchH);
+// Work of draw i at setpoint c (degC, before its sensor bias): the same arithmetic as workIsothermal on the draw's
+// rates, written out for pure Arrhenius kinetics so the loops over draws neither copy rates nor call through.
+function drawWork(sp: Sampler, i: number, c: number): number {
+  const { d, base, batchH } = sp;
+  if (sp.general) {
+    setRates(base, d, i, sp.work);
+    return workFast(sp.work, c + d.bias[i], batchH);
   }
+  const dInv = 1 / (c + d.bias[i] + K0) - base.invTRef;
+  let lnK = d.lnKd[i] - d.edR[i] * dInv;
+  if (lnK > CAP) lnK = CAP;
+  let lnV = base.lnVRef + d.lnDose[i] - d.eaR[i] * dInv;
+  if (lnV > CAP) lnV = CAP;
+  const k = Math.exp(lnK);
+  const kt = k * batchH;
+  return Math.exp(lnV) * (kt > 1e-300 ? -Math.expm1(-kt) / k : batchH);
+}
+
+function workRange(sp: Sampler, cands: number[], out: Float64Array[], start: number, end: number): void {
+  const m = cands.length;
+  for (let i = start; i < end; i++) for (let j = 0; j < m; j++) out[j][i] = drawWork(sp, i, cands[j]);
 }
 
 function workColumn(sp: Sampler, c: number, col: Float64Array): void {
-  const { d, base, work, batchH } = sp;
-  for (let i = 0; i < d.n; i++) {
-    setRates(base, d, i, work);
-    col[i] = workFast(work, c + d.bias[i], batchH);
+  for (let i = 0; i < sp.d.n; i++) col[i] = drawWork(sp, i, c);
+}
+
+/**
+ * The p-quantile of map(w_i(c)) over n draws at any c in [a, b], evaluating only the draws that can decide it. Each
+ * w_i must be unimodal on [a, b] with its maximum at optimum[i] (or outside the bracket): then w_i(c) lies between
+ * min(w_i(a), w_i(b)) and max(w_i(a), w_i(b)), or w_i(optimum[i]) when that lies inside. A draw whose upper bound
+ * is below the lower bound of the quantile's order statistic lies below it at every c; one whose lower bound is
+ * above the upper bound of the next order statistic lies above it. Only the others (the band) are evaluated; the
+ * quantile among them, counting those below, is the same number as over all draws (quantilesBySelection).
+ */
+export function bracketQuantile(
+  n: number,
+  p: number,
+  a: number,
+  b: number,
+  wa: ArrayLike<number>,
+  wb: ArrayLike<number>,
+  optimum: ArrayLike<number>,
+  work: (i: number, c: number) => number,
+  map: (x: number) => number,
+): { at: (c: number) => number; bandSize: number } {
+  const lower = new Float64Array(n);
+  const upper = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    let l = wa[i];
+    let u = wb[i];
+    if (l > u) [l, u] = [u, l];
+    const o = optimum[i];
+    if (o > a && o < b) u = Math.max(u, work(i, o));
+    // Margins of 1e-12 cover rounding between the bounds and the same work evaluated at c.
+    lower[i] = l - 1e-12 * Math.abs(l);
+    upper[i] = u + 1e-12 * Math.abs(u);
   }
+  const i0 = Math.floor((n - 1) * p);
+  const i1 = Math.min(n - 1, i0 + 1);
+  const scratch = new Float64Array(n);
+  const lowQ = kthSmallest(lower, i0, scratch);
+  const highQ = kthSmallest(upper, i1, scratch);
+  const band: number[] = [];
+  let nBelow = 0;
+  for (let i = 0; i < n; i++) {
+    if (upper[i] < lowQ) nBelow++;
+    else if (!(lower[i] > highQ)) band.push(i);
+  }
+  const idx = Int32Array.from(band);
+  const vals = new Float64Array(idx.length);
+  return {
+    at: (c: number) => {
+      for (let j = 0; j < idx.length; j++) vals[j] = work(idx[j], c);
+      return quantileFromBand(vals, idx.length, nBelow, n, p, map);
+    },
+    bandSize: idx.length,
+  };
 }
 
 /** Monte Carlo over correlated parameters as a generator: yields progress 0..1 per chunk, returns the result; same seed, same result. */
@@ -213,6 +279,7 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
     lo,
     hi,
     clamped: 0,
+    general: base.hasEq || base.share > 0,
   };
   const d = sp.d;
   const chunk = Math.max(1, Math.floor(chunkSize));
@@ -222,15 +289,10 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
     drawRange(sp, start, end);
     yield (phase1 * end) / n;
   }
-  const optSorted = Float64Array.from(d.optimum).sort();
+  const scratch = new Float64Array(n);
   let sum = 0;
   for (let i = 0; i < n; i++) sum += d.optimum[i];
-  const optimum = {
-    p10: quantileSorted(optSorted, 0.1),
-    p50: quantileSorted(optSorted, 0.5),
-    p90: quantileSorted(optSorted, 0.9),
-    mean: sum / n,
-  };
+  const optimum = { ...percentiles(d.optimum, scratch, (x) => x), mean: sum / n };
   const nominalC = optimalSetpointC(enzyme, batchH, boundsC);
   const nominal = {
     setpointC: nominalC,
@@ -258,29 +320,40 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
     workRange(sp, cands, works, start, end);
     yield phase1 + (0.5 * end) / n;
   }
-  const scratch = new Float64Array(n);
   const candidates = cands.map((c, j) => ({ c, ...percentiles(works[j], scratch, toProduct) }));
 
   // The P10 curve over the whole bounds: the candidates and both bounds are its scan, then Brent (common
   // random numbers, so the curve is smooth between scan points) on the bracket around the best of them.
   const col = new Float64Array(n);
-  const p10At = (c: number) => {
-    workColumn(sp, c, col);
-    return quantilesBySelection(col, [0.1], scratch, toProduct)[0];
-  };
-  const scan = cands.map((c, j) => ({ c, p10: candidates[j].p10 }));
-  if (cands[0] > lo) scan.unshift({ c: lo, p10: p10At(lo) });
-  if (cands[m - 1] < hi) scan.push({ c: hi, p10: p10At(hi) });
+  const p10Of = (w: Float64Array) => quantilesBySelection(w, [0.1], scratch, toProduct)[0];
+  const scan = cands.map((c, j) => ({ c, p10: candidates[j].p10, w: works[j] }));
+  if (cands[0] > lo) {
+    const w = new Float64Array(n);
+    workColumn(sp, lo, w);
+    scan.unshift({ c: lo, p10: p10Of(w), w });
+  }
+  if (cands[m - 1] < hi) {
+    const w = new Float64Array(n);
+    workColumn(sp, hi, w);
+    scan.push({ c: hi, p10: p10Of(w), w });
+  }
   let bestJ = 0;
   for (let j = 1; j < scan.length; j++) if (scan[j].p10 > scan[bestJ].p10) bestJ = j;
   yield phase1 + 0.55;
   let bestC = scan[bestJ].c;
   let bestP = scan[bestJ].p10;
-  const a = scan[Math.max(0, bestJ - 1)].c;
-  const b = scan[Math.min(scan.length - 1, bestJ + 1)].c;
-  if (b > a) {
+  const sa = scan[Math.max(0, bestJ - 1)];
+  const sb = scan[Math.min(scan.length - 1, bestJ + 1)];
+  if (sb.c > sa.c) {
+    // Pure Arrhenius: ln work is concave in -1/T (d ln X/d(-1/T) = Ea/R + g(kd t) Ed/R, g = kd t e^(-kd t)/
+    // (1 - e^(-kd t)) - 1 falls as kd t rises), so each draw's work is unimodal in c with its maximum at the
+    // draw's own optimum, and only the draws that can hold the P10 are evaluated (exact: bracketQuantile).
+    // Equilibrium Model and two fractions: every draw at every searched setpoint.
+    const p10At = sp.general
+      ? (c: number) => (workColumn(sp, c, col), p10Of(col))
+      : bracketQuantile(n, 0.1, sa.c, sb.c, sa.w, sb.w, d.optimum, (i, c) => drawWork(sp, i, c), toProduct).at;
     let evals = 0;
-    const res = brentMax((c) => (evals++ < SEARCH_EVALUATIONS ? p10At(c) : -Infinity), a, b, 0.005);
+    const res = brentMax((c) => (evals++ < SEARCH_EVALUATIONS ? p10At(c) : -Infinity), sa.c, sb.c, 0.005);
     if (res.fx > bestP) {
       bestP = res.fx;
       bestC = res.x;

@@ -1,4 +1,3 @@
-import { levenbergMarquardt as mlLm } from 'ml-levenberg-marquardt';
 import { describe, expect, it } from 'vitest';
 import {
   ModelInputError,
@@ -31,45 +30,85 @@ describe('fitInactivation', () => {
     expect(f.halfLifeRefH).toBeCloseTo(Math.LN2 / 0.2, 9);
     expect(f.twoStep.edKJPerMol).toBeCloseTo(250, 7);
   });
-  it('agrees with ml-levenberg-marquardt on the point estimate', () => {
-    const pts = synthetic(2, { kd: 0.3, ed: 320 }, 0.03);
-    const f = fitInactivation(60, pts);
-    const K = 273.15;
-    const R = 8.314462618;
-    const data = { x: pts.map((_, i) => i), y: pts.map((p) => Math.log(p.residual)) };
-    const model = ([lnKd, ed]: number[]) => (i: number) =>
-      -Math.exp(lnKd - ((ed * 1000) / R) * (1 / (pts[i].c + K) - 1 / (60 + K))) * pts[i].h;
-    const ref = mlLm(data, model, {
-      initialValues: [Math.log(0.25), 300],
-      maxIterations: 2000,
-      errorTolerance: 1e-14,
-      gradientDifference: 1e-6,
-      centralDifference: true,
-      damping: 1e-2,
-    });
-    expect(Math.abs(ref.parameterValues[0] - Math.log(f.kdRefPerH))).toBeLessThan(1e-4);
-    expect(Math.abs(ref.parameterValues[1] - f.edKJPerMol)).toBeLessThan(0.05);
-  });
-  it('95 % intervals cover the truth in most of 200 synthetic data sets (expected 95 %)', () => {
-    let coverKd = 0;
-    let coverEd = 0;
-    let coverHalf70 = 0;
-    const q = studentTQuantile(0.975, 18);
+  // Agreement with ml-levenberg-marquardt for all three models and both error models: fit-crosscheck.test.ts.
+  // Coverage by simulation: for a correctly specified model the 95 % Wald/Student intervals of a nonlinear least-squares
+  // fit cover the truth close to 95 % of the time (Seber & Wild, Nonlinear Regression, Wiley 1989, ch. 5). 400 seeded
+  // data sets per error model (the issue asks for at least 200; with 400 the binomial sd of the rate is 1.1 points,
+  // so 92-98 % is +-2.7 sd). Measured on other seeds: the first-order fit alone 94.6-95.2 % (3000 sets); with the
+  // AICc choice, the chosen model's 93.0-94.7 % (2000 sets), lower because AICc picks first-order-a0 in about 4 % of the sets and those intervals,
+  // conditional on that choice, miss more often (post-selection inference).
+  it.each([
+    { errorModel: 'relative', sd: 0.05 },
+    { errorModel: 'absolute', sd: 0.02 },
+  ] as const)('$errorModel noise: 95 % intervals of kd, Ed and t1/2 at 70 degC cover the truth 92-98 % of 400 data sets', ({ errorModel, sd }) => {
     const truth = { kd: 0.15, ed: 280 };
     const trueHalf70 = Math.LN2 / (truth.kd * arrheniusFactor(truth.ed, 70, 60));
-    for (let s = 0; s < 200; s++) {
-      const f = fitInactivation(60, synthetic(1000 + s, truth, 0.05));
-      const seLn = Math.sqrt(f.covariance[0][0]);
-      if (Math.abs(Math.log(f.kdRefPerH / truth.kd)) <= q * seLn) coverKd++;
-      if (Math.abs(f.edKJPerMol - truth.ed) <= q * f.se.edKJPerMol) coverEd++;
+    const sets = 400;
+    const cover = { kd: 0, ed: 0, half70: 0, firstOrderKd: 0, firstOrderEd: 0 };
+    for (let s = 0; s < sets; s++) {
+      const rng = createRng(1 + s);
+      const pts: InactivationPoint[] = [];
+      for (const c of [55, 60, 65, 70])
+        for (const h of [0.25, 0.5, 1, 2, 4]) {
+          const m = Math.exp(-truth.kd * arrheniusFactor(truth.ed, c, 60) * h);
+          // Relative: multiplicative log-normal noise; absolute: additive on the fraction (readings can go below 0).
+          pts.push({ c, h, residual: errorModel === 'relative' ? m * Math.exp(sd * rng.normal()) : m + sd * rng.normal() });
+        }
+      const f = fitInactivation(60, pts, { errorModel });
+      // The interval the product shows: the chosen model's, on ln kd (exp of it for kd) and on Ed.
+      const q = studentTQuantile(0.975, f.dof);
+      if (Math.abs(Math.log(f.kdRefPerH / truth.kd)) <= q * Math.sqrt(f.covariance[0][0])) cover.kd++;
+      if (Math.abs(f.edKJPerMol - truth.ed) <= q * Math.sqrt(f.covariance[1][1])) cover.ed++;
       const h = halfLifeAt(f, 70);
-      if (h.lowerH <= trueHalf70 && trueHalf70 <= h.upperH) coverHalf70++;
+      if (h.lowerH <= trueHalf70 && trueHalf70 <= h.upperH) cover.half70++;
+      // The true model's own intervals, whatever AICc chose.
+      const fo = f.models.find((m) => m.name === 'first-order')!;
+      const qf = studentTQuantile(0.975, fo.dof);
+      if (Math.abs(Math.log(fo.kdRefPerH / truth.kd)) <= qf * Math.sqrt(fo.covariance[0][0])) cover.firstOrderKd++;
+      if (Math.abs(fo.edKJPerMol - truth.ed) <= qf * Math.sqrt(fo.covariance[1][1])) cover.firstOrderEd++;
     }
-    for (const c of [coverKd, coverEd, coverHalf70]) {
-      expect(c).toBeGreaterThanOrEqual(180);
-      expect(c).toBeLessThanOrEqual(200);
+    for (const [what, c] of Object.entries(cover)) {
+      expect(c / sets, what).toBeGreaterThanOrEqual(0.92);
+      expect(c / sets, what).toBeLessThanOrEqual(0.98);
     }
   });
+  it.each(['relative', 'absolute'] as const)(
+    '%s: replicates fitted as weighted rows give the fit to every point (parameters, covariance, AICc, lack of fit)',
+    (errorModel) => {
+      // 4 temperatures x 6 times x 1-5 replicates, biphasic truth so that all three models are fitted and differ.
+      const rng = createRng(404);
+      const pts: InactivationPoint[] = [];
+      for (const c of [55, 60, 65, 70])
+        for (const h of [0.25, 0.5, 1, 2, 4, 8]) {
+          const m = 0.75 * Math.exp(-0.4 * arrheniusFactor(260, c, 60) * h) + 0.25 * Math.exp(-0.03 * arrheniusFactor(300, c, 60) * h);
+          for (let r = 0, reps = 1 + Math.floor(5 * rng.uniform()); r < reps; r++)
+            pts.push({ c, h, residual: errorModel === 'relative' ? m * Math.exp(0.03 * rng.normal()) : m + 0.01 * rng.normal() });
+        }
+      // Shuffled, so that replicates are not adjacent in the input.
+      for (let i = pts.length - 1; i > 0; i--) {
+        const j = Math.floor(rng.uniform() * (i + 1));
+        [pts[i], pts[j]] = [pts[j], pts[i]];
+      }
+      const rows = fitInactivation(60, pts, { errorModel });
+      const every = fitInactivation(60, pts, { errorModel, collapseReplicates: false });
+      expect(rows.chosen).toBe(every.chosen);
+      expect(rows.lackOfFit).toBe(every.lackOfFit);
+      expect(rows.n).toBe(pts.length);
+      expect(rows.models.map((m) => m.name)).toEqual(every.models.map((m) => m.name));
+      rows.models.forEach((m, k) => {
+        const e = every.models[k];
+        expect(m.dof).toBe(e.dof);
+        expect(m.aicc!).toBeCloseTo(e.aicc!, 6);
+        expect(m.residualSd / e.residualSd - 1).toBeLessThan(1e-9);
+        if (e.singular) return;
+        const sd = e.covariance.map((row, i) => Math.sqrt(row[i]));
+        expect(Math.abs(Math.log(m.kdRefPerH / e.kdRefPerH)) / sd[0]).toBeLessThan(1e-5);
+        expect(Math.abs(m.edKJPerMol - e.edKJPerMol) / sd[1]).toBeLessThan(1e-5);
+        for (let a = 0; a < sd.length; a++)
+          for (let b = 0; b < sd.length; b++) expect(Math.abs(m.covariance[a][b] - e.covariance[a][b]) / (sd[a] * sd[b])).toBeLessThan(1e-5);
+      });
+    },
+  );
   it('half-life interval is narrowest near the middle of the data and brackets the estimate', () => {
     const f = fitInactivation(60, synthetic(3, { kd: 0.2, ed: 250 }, 0.04));
     const mid = halfLifeAt(f, 62.5);

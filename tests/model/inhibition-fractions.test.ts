@@ -152,4 +152,21 @@ describe('two-fraction optimum', () => {
     const o = optimizeSetpoint(e2, sub, 24, [30, 80]);
     for (let c = 30; c <= 80; c += 0.25) expect(f(o.setpointC)).toBeGreaterThanOrEqual(f(c) * (1 - 1e-12));
   });
+  it('seeded two-fraction lots: no setpoint on a 0.02 degC scan of the whole bounds beats the optimum (it searches only between the fractions\' own optima)', () => {
+    const rng = createRng(77);
+    for (let trial = 0; trial < 40; trial++) {
+      const lot: EnzymeParams = {
+        tRefC: 60,
+        vmaxRef: 1,
+        eaKJPerMol: 20 + 60 * rng.uniform(),
+        kdRefPerH: Math.exp(-4 + 4 * rng.uniform()),
+        edKJPerMol: 150 + 250 * rng.uniform(),
+        stableFraction: { share: 0.05 + 0.9 * rng.uniform(), kdRefPerH: Math.exp(-8 + 6 * rng.uniform()), edKJPerMol: 60 + 340 * rng.uniform() },
+      };
+      const batchH = 4 + 60 * rng.uniform();
+      const f = (c: number) => simulate(lot, sub, batchH, { setpointC: c }).workGPerL;
+      const o = optimizeSetpoint(lot, sub, batchH, [20, 90]);
+      for (let c = 20; c <= 90; c += 0.02) expect(f(o.setpointC), `trial ${trial} at ${c.toFixed(2)}`).toBeGreaterThanOrEqual(f(c) * (1 - 1e-12));
+    }
+  });
 });

@@ -12,6 +12,7 @@ import {
   simulate,
   type UncertaintyInput,
 } from '../../src/model';
+import { bracketQuantile } from '../../src/model/uncertainty';
 
 const enzyme = { tRefC: 60, vmaxRef: 2, eaKJPerMol: 50, kdRefPerH: Math.LN2, edKJPerMol: 300 };
 const substrate = { s0GPerL: 100, kmGPerL: 5 };
@@ -59,6 +60,28 @@ describe('seeded random numbers', () => {
       const sorted = Float64Array.from(v).sort();
       const got = quantilesBySelection(v, [0.1, 0.5, 0.9], new Float64Array(n));
       expect(got).toEqual([0.1, 0.5, 0.9].map((p) => quantileSorted(sorted, p)));
+    }
+  });
+  it('a quantile from the band of draws that can decide it equals the quantile over all draws, at every c in the bracket', () => {
+    // Unimodal curves w_i(c) = A_i exp(-((c - m_i)/s_i)^2), peaks inside and outside the bracket, ties included.
+    const r = createRng(31);
+    for (const n of [1, 3, 10, 2000]) {
+      const A = Array.from({ length: n }, () => (r.uniform() < 0.1 ? 5 : 1 + r.uniform()));
+      const m = Array.from({ length: n }, () => 44 + 12 * r.uniform());
+      const sd = Array.from({ length: n }, () => 1 + 5 * r.uniform());
+      const w = (i: number, c: number) => A[i] * Math.exp(-(((c - m[i]) / sd[i]) ** 2));
+      const map = (x: number) => Math.sqrt(x);
+      for (const [a, b] of [[46, 50], [40, 60], [49.9, 50]]) {
+        const col = (c: number) => Float64Array.from({ length: n }, (_, i) => w(i, c));
+        let evaluated = 0;
+        const q = bracketQuantile(n, 0.1, a, b, col(a), col(b), m, (i, c) => (evaluated++, w(i, c)), map);
+        expect(q.bandSize).toBeLessThanOrEqual(n);
+        for (let j = 0; j <= 20; j++) {
+          const c = a + ((b - a) * j) / 20;
+          expect(q.at(c)).toBe(quantilesBySelection(col(c), [0.1], new Float64Array(n), map)[0]);
+        }
+        expect(evaluated).toBeLessThanOrEqual(n + 21 * q.bandSize);
+      }
     }
   });
   it('type-7 quantiles', () => {
