@@ -1,5 +1,6 @@
 import autocannon from 'autocannon';
 import fs from 'node:fs';
+import os from 'node:os';
 import { DEMO_USERS } from '../../db/seed';
 import { MAX_IMPORT_ROWS } from '../../src/contracts/batches';
 import { sessionCookie, startServer } from '../support/server';
@@ -70,7 +71,7 @@ async function main() {
         ],
       },
     ];
-    console.log(`Load on ${server.baseURL}, ${DURATION_S} s per run\n`);
+    console.log(`Load on ${server.baseURL}, ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores (figures from a busy machine are not the product's)\n`);
     console.log('mix        conns   req/s    p50 ms  p99 ms  max ms  errors  timeouts  non-2xx');
     for (const mix of mixes.filter((m) => !ONLY_MIX || m.name === ONLY_MIX)) {
       for (const connections of [50, 200]) {
