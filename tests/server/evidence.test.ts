@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { auditEvents, calibrations } from '../../db/schema';
 import { halfLifeAt } from '../../src/model';
+import { DEMO_PLANT_TRUTH } from '../../db/seed';
 import { planBody } from '../fixtures/plan-body';
 import { startTestApp, type Client, type TestApp } from './harness';
 
@@ -172,5 +173,30 @@ describe('closing the loop', () => {
     // The accepted calibration stays as it was: leaving a batch out changes only the proposal.
     expect(ex.body.accepted.batchIds).toEqual(used);
     expect(t.db.select().from(calibrations).all().filter((c) => c.state === 'accepted')).toHaveLength(1);
+  });
+});
+
+describe('the demo site shows calibration working', () => {
+  it('proposes a calibration of the lactose recipe on its certificate-only lot; accepting it moves the setpoint and narrows the band', async () => {
+    const r = recipes['Lactose-free milk base']!;
+    const lot = lots[DEMO_PLANT_TRUTH.lotCode]!;
+    expect(r.lotId).toBe(lot.id);
+    const v = (await eng.get(`/api/calibrations?recipeId=${r.id}&lotId=${lot.id}`)).body;
+    expect(v.accepted).toBeNull();
+    expect(v.proposed.result.prior.text).toMatch(/^certificate only, default spread/);
+    expect(v.proposed.batchIds.length).toBeGreaterThanOrEqual(8);
+    expect(v.proposed.result.batches.some((b: { isOutlier: boolean }) => b.isOutlier)).toBe(false);
+    // The invented truth is 38 h at 40 °C against the certificate's 60 h: the posterior moves toward it and narrows.
+    const [prior, post] = [v.proposed.result.drift[0], v.proposed.result.drift.at(-1)];
+    expect(post.halfLifeRefH).toBeLessThan(prior.halfLifeRefH);
+    expect(post.halfLifeHighH - post.halfLifeLowH).toBeLessThan(prior.halfLifeHighH - prior.halfLifeLowH);
+    expect(v.proposed.result.after.rmseGPerL).toBeLessThan(v.proposed.result.before.rmseGPerL);
+    const body = planBody(r.id, lot.id, { batchH: 20, turnaroundH: 3, s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, currentSetpointC: 37, productPricePerKg: 2.5, enzymePricePerKg: 20, heatingCostPerDegCHour: 0.05, uncertainty: { draws: 4000, seed: 1, sensorBiasSdC: 0.5, doseRelSd: 0.05 } });
+    const before = (await eng.post('/api/plans', body)).body.outputs;
+    expect((await eng.post(`/api/calibrations/${v.proposed.id}/accept`, {})).status).toBe(200);
+    const after = (await eng.post('/api/plans', body)).body.outputs;
+    expect(after.kinetics.stabilitySource).toBe('calibration');
+    expect(Math.abs(after.setpointC - before.setpointC)).toBeGreaterThan(0.5);
+    expect(after.uncertainty.p90 - after.uncertainty.p10).toBeLessThan(0.9 * (before.uncertainty.p90 - before.uncertainty.p10));
   });
 });
