@@ -48,10 +48,23 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
       <Text variant="figure" testID="recommended-setpoint" accessibilityLabel={`Recommended setpoint ${fmt(o.setpointC)} degrees Celsius`}>
         {staged ? o.stages!.map((s) => fmt(s.c)).join(' → ') : fmt(o.setpointC)} °C
       </Text>
-      <Text testID="recommended-product">
-        {fmt(o.predictedProductGPerL, 0)} g/L predicted with the heat-up ramp, {gain >= 0 ? `${fmt(gain * 100)} % more` : `${fmt(-gain * 100)} % less`} than{' '}
-        {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {fmt(o.profitPerH, 0)} per reactor hour
-      </Text>
+      {o.earlyFinish ? (
+        <>
+          <Text testID="recommended-product">
+            {fmt(o.predictedProductGPerL, 0)} g/L: all the substrate, converted by hour {fmt(o.earlyFinish.completeAtH)} of {fmt(inputs.batchH, 0)}
+            {Math.abs(o.setpointC - o.current.setpointC) < 0.05 ? ' at the current setpoint, so no change is recommended' : ''} · {fmt(o.activityLeft * 100, 0)} % activity left
+          </Text>
+          <Text tone="primary" weight="semibold" testID="early-finish">
+            A batch ended at hour {fmt(o.earlyFinish.completeAtH)} would earn {fmt(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour, against {fmt(o.earlyFinish.fullProfitPerH, 0)} for the full{' '}
+            {fmt(inputs.batchH, 0)} h.
+          </Text>
+        </>
+      ) : (
+        <Text testID="recommended-product">
+          {fmt(o.predictedProductGPerL, 0)} g/L predicted with the heat-up ramp, {gain >= 0 ? `${fmt(gain * 100)} % more` : `${fmt(-gain * 100)} % less`} than{' '}
+          {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {fmt(o.profitPerH, 0)} per reactor hour
+        </Text>
+      )}
       <EvidenceNote evidence={o.kinetics.evidence} showDisagreement testID="planner-evidence" />
       {o.atBound ? (
         <Text tone="warning" testID="caution-bound">
