@@ -182,31 +182,36 @@ function plantTruthProduct(program: BatchProgram, logged: { h: number; c: number
 }
 
 /**
- * The proposal an engineer finds waiting: the same computation as a batch's close (the lot's assay fit as prior,
- * every closed batch of the recipe and lot), stored as proposed; nothing plans with it until it is accepted.
+ * The proposal an engineer finds waiting: the same computation as a batch's close (the lot's certificate as prior,
+ * the recipe and lot's closed batches), stored as proposed; nothing plans with it until it is accepted. Two earlier
+ * proposals (after 4 and 7 batches) stand superseded, as each close proposes anew.
  */
 function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: number, recipe: typeof recipes.$inferSelect): void {
   const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;
   const enzyme = tx.select().from(enzymes).where(sql`${enzymes.id} = ${recipe.enzymeId}`).get()!;
   const assay = tx.select().from(assays).where(sql`${assays.lotId} = ${lot.id}`).get();
-  const closed = tx.select().from(batches).where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`).all();
-  const proposal = proposeCalibration({
-    recipe,
-    enzyme,
-    lot: { certKdPerH: lot.certKdPerH, certTempC: lot.certTempC, fit: assay?.fit ? { assayId: assay.id, createdAt: assay.createdAt, fit: assay.fit } : null },
-    batches: closed.map((b) => ({
+  const closed = tx
+    .select()
+    .from(batches)
+    .where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`)
+    .orderBy(batches.closedAt)
+    .all()
+    .map((b) => ({
       batchId: b.id,
       startedAt: b.startedAt,
       closedAt: b.closedAt!,
       program: b.program,
       measuredProductGPerL: b.measuredProductGPerL,
       readings: tx.select({ takenAt: batchReadings.takenAt, c: batchReadings.c }).from(batchReadings).where(sql`${batchReadings.batchId} = ${b.id}`).orderBy(batchReadings.takenAt).all(),
-    })),
-    excluded: [],
-  });
-  if (!proposal) return;
-  const createdAt = closed.map((b) => b.closedAt!).sort().at(-1)!;
-  tx.insert(calibrations).values({ siteId, recipeId: recipe.id, lotId: lot.id, state: 'proposed', batchIds: proposal.batchIds, result: proposal.result, createdAt }).run();
+    }));
+  const evidence = { certKdPerH: lot.certKdPerH, certTempC: lot.certTempC, fit: assay?.fit ? { assayId: assay.id, createdAt: assay.createdAt, fit: assay.fit } : null };
+  for (const n of [4, 7, closed.length]) {
+    const used = closed.slice(0, n);
+    const proposal = proposeCalibration({ recipe, enzyme, lot: evidence, batches: used, excluded: [] });
+    if (!proposal) continue;
+    const state = n === closed.length ? 'proposed' : 'superseded';
+    tx.insert(calibrations).values({ siteId, recipeId: recipe.id, lotId: lot.id, state, batchIds: proposal.batchIds, result: proposal.result, createdAt: used.at(-1)!.closedAt }).run();
+  }
 }
 
 export const DEMO_SITE_NAME = 'Halden Bay Biorefinery';

@@ -13,6 +13,7 @@ export const keys = {
   recipes: '/recipes',
   batches: '/batches',
   batchSettings: '/batches/settings',
+  calibrationSettings: '/calibrations/settings',
 } as const;
 
 export const batchKey = (id: number) => `/batches/${id}`;
