@@ -1,4 +1,5 @@
 import { router } from 'expo-router';
+import { View } from 'react-native';
 import type { CalibrationBatchResult, CalibrationResult, DriftPoint } from '../../contracts/calibrations';
 import { fmt } from '../../format';
 import { ForecastAccuracyChart } from '../charts/forecast-accuracy-chart';
@@ -7,7 +8,7 @@ import { Columns, DataTable, Text, type Column } from '../ui';
 
 const BATCH_COLUMNS: Column<CalibrationBatchResult>[] = [
   { key: 'b', label: 'Batch', value: (b) => `#${b.batchId}` },
-  { key: 'closed', label: 'Closed', value: (b) => b.closedAt.slice(0, 10) },
+  { key: 'closed', label: 'Closed', value: (b) => b.closedAt.slice(0, 10), flex: 1.3 },
   { key: 'm', label: 'Measured g/L', value: (b) => fmt(b.measuredProductGPerL), isNumeric: true },
   { key: 'prior', label: 'Forecast before g/L', value: (b) => `${fmt(b.priorForecastGPerL)} ± ${fmt(b.priorSdGPerL)}`, isNumeric: true, flex: 1.3 },
   { key: 'loo', label: 'Leave-one-out after g/L', value: (b) => `${fmt(b.leaveOneOutForecastGPerL)} ± ${fmt(b.leaveOneOutSdGPerL)}`, isNumeric: true, flex: 1.3 },
@@ -47,7 +48,7 @@ export function ModelQuality({ result: r, testID = 'model-quality' }: { result: 
     <>
       <Text testID={`${testID}-errors`}>{sentence}</Text>
       <Columns>
-        <>
+        <View>
           <ForecastAccuracyChart
             points={points}
             label={sentence}
@@ -55,30 +56,28 @@ export function ModelQuality({ result: r, testID = 'model-quality' }: { result: 
             xTitle="Forecast, g/L"
             testID={`${testID}-accuracy`}
           />
-        </>
-        <>
-          <LineChart
-            title="Half-life at the reference temperature, batch by batch"
-            summary={lifeSummary}
-            series={[{ id: 'h', tone: 'primary', label: 'Half-life', points: d.map((p) => ({ x: p.batchCount, y: p.halfLifeRefH })) }]}
-            bands={[{ id: 'hb', tone: 'primary', label: '95 % band', points: d.map((p) => ({ x: p.batchCount, lo: p.halfLifeLowH, hi: p.halfLifeHighH })) }]}
-            xLabel="closed batches used"
-            yLabel="t½, h"
-            formatX={(v) => (Number.isInteger(v) ? String(v) : '')}
-            testID={`${testID}-drift-life`}
-          />
-          <LineChart
-            title="Catalytic scale (plant Vmax over the recipe’s), batch by batch"
-            summary={vmaxSummary}
-            series={[{ id: 'v', tone: 'accent', label: 'Vmax ×', points: d.map((p) => ({ x: p.batchCount, y: p.vmaxScale })) }]}
-            bands={[{ id: 'vb', tone: 'accent', label: '95 % band', points: d.map((p) => ({ x: p.batchCount, lo: p.vmaxScaleLow, hi: p.vmaxScaleHigh })) }]}
-            xLabel="closed batches used"
-            yLabel="Vmax ×"
-            formatX={(v) => (Number.isInteger(v) ? String(v) : '')}
-            formatY={(v) => v.toFixed(2)}
-            testID={`${testID}-drift-vmax`}
-          />
-        </>
+        </View>
+        <LineChart
+          title="Half-life at the reference temperature, batch by batch"
+          summary={lifeSummary}
+          series={[{ id: 'h', tone: 'primary', label: 'Half-life', points: d.map((p) => ({ x: p.batchCount, y: p.halfLifeRefH })) }]}
+          bands={[{ id: 'hb', tone: 'primary', label: '95 % band', points: d.map((p) => ({ x: p.batchCount, lo: p.halfLifeLowH, hi: p.halfLifeHighH })) }]}
+          xLabel="closed batches used"
+          yLabel="t½, h"
+          formatX={(v) => (Number.isInteger(v) ? String(v) : '')}
+          testID={`${testID}-drift-life`}
+        />
+        <LineChart
+          title="Catalytic scale (plant Vmax over the recipe’s), batch by batch"
+          summary={vmaxSummary}
+          series={[{ id: 'v', tone: 'accent', label: 'Vmax ×', points: d.map((p) => ({ x: p.batchCount, y: p.vmaxScale })) }]}
+          bands={[{ id: 'vb', tone: 'accent', label: '95 % band', points: d.map((p) => ({ x: p.batchCount, lo: p.vmaxScaleLow, hi: p.vmaxScaleHigh })) }]}
+          xLabel="closed batches used"
+          yLabel="Vmax ×"
+          formatX={(v) => (Number.isInteger(v) ? String(v) : '')}
+          formatY={(v) => v.toFixed(2)}
+          testID={`${testID}-drift-vmax`}
+        />
       </Columns>
       <DataTable
         columns={BATCH_COLUMNS}

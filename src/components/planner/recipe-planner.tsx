@@ -167,7 +167,6 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
     role && (CALIBRATION_READERS as readonly string[]).includes(role) ? <CalibrationReview recipeId={detail.recipe.id} lotId={inputs.lotId} canDecide={role === 'engineer'} /> : null;
   const rest = (
     <>
-      {calibration}
       <TimeCharts ev={ev} series={series} inputs={inputs} />
       <ProfileChart ev={ev} series={series} inputs={inputs} />
       <ProfitChart ev={ev} series={series} inputs={inputs} />
@@ -179,20 +178,24 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
     <Text tone="warning">The recipe’s lot {detail.recipe.lotCode} is no longer accepted; the planner uses an accepted lot of {detail.enzyme.name} instead.</Text>
   ) : null;
 
+  // The calibration review spans the full width under the planner: its charts and tables need the room.
   if (isWide)
     return (
-      <View style={styles.columns}>
-        <View style={styles.side}>
-          {inputsPanel}
-          {uncertaintyPanel}
+      <View style={styles.stack}>
+        <View style={styles.columns}>
+          <View style={styles.side}>
+            {inputsPanel}
+            {uncertaintyPanel}
+          </View>
+          <View style={styles.main}>
+            {notice}
+            {recommendation}
+            {setpointChart}
+            {reasonsCard}
+            {rest}
+          </View>
         </View>
-        <View style={styles.main}>
-          {notice}
-          {recommendation}
-          {setpointChart}
-          {reasonsCard}
-          {rest}
-        </View>
+        {calibration}
       </View>
     );
   // Phone: the answer and its chart first, then the inputs that move them.
@@ -204,6 +207,7 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
       {inputsPanel}
       {reasonsCard}
       {uncertaintyPanel}
+      {calibration}
       {rest}
     </View>
   );
