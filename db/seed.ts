@@ -1,12 +1,13 @@
 import bcrypt from 'bcryptjs';
 import { sql } from 'drizzle-orm';
-import { batchHours, batchProgram, batchStatus, plannedAt } from '../src/batches';
+import { batchHours, batchProgram, batchStatus, plannedAt, proposeCalibration } from '../src/batches';
+import type { BatchProgram } from '../src/contracts/batches';
 import type { CertStability } from '../src/contracts/lots';
-import { createRng, KELVIN_OFFSET, R } from '../src/model';
+import { createRng, KELVIN_OFFSET, R, simulate } from '../src/model';
 import { certKdPerH, fitAssay } from '../src/stability';
 import type { Role } from '../src/contracts/roles';
 import type { Db } from './client';
-import { assayPoints, assays, batchReadings, batches, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
+import { assayPoints, assays, batchReadings, batches, calibrations, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
 
 // An invented plant for demos and tests. Names, suppliers, lots and figures are made up.
 
@@ -94,7 +95,7 @@ const LOTS: SeedLot[] = [
   { enzyme: 'Thermo AA-90', lotCode: 'TAA-4471', receivedOn: '2026-07-02', expiresOn: '2027-07-01', quantityKg: 250, certActivity: 1310, certStability: { form: 'dValue', tempC: 85, dMinutes: 660, zC: 9.5 }, status: 'accepted', reason: 'D-value 11 h at 85 °C gives a 3.3 h half-life, above 3 h', qc: { halfLifeH: 3.6, edKJPerMol: 260, seed: 21 } },
   { enzyme: 'Thermo AA-90', lotCode: 'TAA-4519', receivedOn: '2026-10-09', expiresOn: '2027-10-08', quantityKg: 250, certActivity: 1275, certStability: { form: 'dValue', tempC: 85, dMinutes: 540, zC: 9.5 }, qc: { halfLifeH: 2.3, edKJPerMol: 255, seed: 22, asPercent: true } },
   { enzyme: 'Thermo AA-90', lotCode: 'TAA-4522', receivedOn: '2026-11-24', expiresOn: '2027-11-23', quantityKg: 250, certActivity: 1290, certStability: { form: 'halfLife', tempC: 85, halfLifeH: 3.4 }, qc: { halfLifeH: 3.9, edKJPerMol: 265, seed: 23 } },
-  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-0926', receivedOn: '2026-09-26', expiresOn: '2027-03-25', quantityKg: 120, certActivity: 5400, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 60 }, status: 'accepted', reason: 'Half-life 60 h at 40 °C meets the 48 h specification', qc: { halfLifeH: 64, edKJPerMol: 240, seed: 31 } },
+  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-0926', receivedOn: '2026-09-26', expiresOn: '2027-03-25', quantityKg: 120, certActivity: 5400, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 60 }, status: 'accepted', reason: 'Half-life 60 h at 40 °C meets the 48 h specification' },
   { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1107', receivedOn: '2026-11-07', expiresOn: '2027-05-06', quantityKg: 120, certActivity: 5150, certStability: { form: 'residual', tempC: 40, minutes: 1440, residualFraction: 0.69 }, status: 'rejected', reason: 'QC half-life 38 h at 40 °C, below the 48 h specification', qc: { halfLifeH: 38, edKJPerMol: 235, seed: 32 } },
   { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1128', receivedOn: '2026-11-28', expiresOn: '2027-05-27', quantityKg: 120, certActivity: 5320, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 55 } },
   { enzyme: 'Lipo LP-3', lotCode: 'CLP-2609-01', receivedOn: '2026-09-03', expiresOn: '2027-09-02', quantityKg: 60, certActivity: 268, certStability: { form: 'halfLife', tempC: 45, halfLifeH: 40 }, status: 'accepted', reason: 'Half-life 40 h at 45 °C meets the 30 h specification', qc: { halfLifeH: 43, edKJPerMol: 210, seed: 41 } },
@@ -110,13 +111,29 @@ const RECIPES = [
 ];
 const RECIPES_UPDATED_AT = '2026-11-30T09:00:00.000Z';
 
-// Invented batches: one running, three closed with a lab result beside the forecast (the ratios are made up).
-const BATCHES: { recipe: string; startedAt: string; readUntilH: number; closedAt?: string; measuredRatio: number }[] = [
-  { recipe: 'Lactose-free milk base', startedAt: '2026-11-25T06:00:00.000Z', readUntilH: 20, closedAt: '2026-11-26T02:30:00.000Z', measuredRatio: 0.985 },
+// Invented batches: one running, the rest closed with a lab result beside the forecast. The glucose ratio to the
+// forecast is made up; the lactose batches' lab results come from the invented plant truth below.
+type SeedBatch = { recipe: string; startedAt: string; readUntilH: number; closedAt?: string; measuredRatio?: number; setpointC?: number };
+const BATCHES: SeedBatch[] = [
+  { recipe: 'Lactose-free milk base', startedAt: '2026-11-25T06:00:00.000Z', readUntilH: 20, closedAt: '2026-11-26T02:30:00.000Z' },
   { recipe: 'Glucose syrup DE 95', startedAt: '2026-11-27T05:00:00.000Z', readUntilH: 48, closedAt: '2026-11-29T05:30:00.000Z', measuredRatio: 1.012 },
-  { recipe: 'Lactose-free milk base', startedAt: '2026-11-28T06:00:00.000Z', readUntilH: 20, closedAt: '2026-11-29T02:30:00.000Z', measuredRatio: 0.962 },
-  { recipe: 'Glucose syrup DE 95', startedAt: '2026-12-01T05:00:00.000Z', readUntilH: 4, measuredRatio: 1 },
+  { recipe: 'Lactose-free milk base', startedAt: '2026-11-28T06:00:00.000Z', readUntilH: 20, closedAt: '2026-11-29T02:30:00.000Z' },
+  { recipe: 'Glucose syrup DE 95', startedAt: '2026-12-01T05:00:00.000Z', readUntilH: 4 },
 ];
+
+/**
+ * The demo's evidence for calibration: lot OF-LX5-0926 (certificate only, no QC assay) is in truth less stable than
+ * its certificate's 60 h at 40 °C, and the lactose tank gets a little less of the recipe's Vmax than the bench did.
+ * Invented figures. Its lactose batches are closed with lab results simulated from this truth on their logged
+ * temperatures, with 2 % seeded noise, so accepting the calibration moves the recommendation and narrows the band.
+ */
+export const DEMO_PLANT_TRUTH = { lotCode: 'OF-LX5-0926', halfLifeRefH: 38, edKJPerMol: 230, vmaxScale: 0.9, noiseRelSd: 0.02, seed: 926 } as const;
+// Setpoints the plant tried on earlier lactose batches (each 20 h, closed 30 min after its end, every third day): invented.
+const CALIBRATION_SETPOINTS_C = [34, 36, 40, 42, 35, 41, 38, 39];
+for (const [i, setpointC] of CALIBRATION_SETPOINTS_C.entries()) {
+  const start = Date.parse('2026-10-27T06:00:00.000Z') + i * 3 * 86_400_000;
+  BATCHES.push({ recipe: 'Lactose-free milk base', startedAt: new Date(start).toISOString(), readUntilH: 20, closedAt: new Date(start + 20.5 * 3_600_000).toISOString(), setpointC });
+}
 
 /** Half-hourly readings near the plan with a deterministic wobble of a few tenths of a degree. */
 function demoReadings(program: Parameters<typeof plannedAt>[0], startedAt: string, untilH: number): { takenAt: string; c: number }[] {
@@ -155,6 +172,46 @@ export function demoAssayPoints(specTempC: number, qc: { halfLifeH: number; edKJ
 export function demoAssayCsv(points: { tempC: number; timeH: number; residual: number }[], asPercent = false): string {
   const head = asPercent ? 'temperature_c,time_h,residual_activity_percent' : 'temperature_c,time_h,residual_activity_fraction';
   return [head, ...points.map((p) => `${p.tempC},${p.timeH},${asPercent ? Math.round(p.residual * 1000) / 10 : p.residual}`)].join('\n') + '\n';
+}
+
+/** The lab result the invented plant truth gives for a batch's logged temperatures, g/L. */
+function plantTruthProduct(program: BatchProgram, logged: { h: number; c: number }[], tRefC: number): number {
+  const t = DEMO_PLANT_TRUTH;
+  const enzyme = { ...program.enzyme, tRefC, kdRefPerH: Math.LN2 / t.halfLifeRefH, edKJPerMol: t.edKJPerMol, vmaxRef: (program.enzyme.vmaxRef / (program.evidence?.vmaxScale ?? 1)) * t.vmaxScale };
+  return simulate(enzyme, program.substrate, program.batchH, { log: logged }).productGPerL;
+}
+
+/**
+ * The proposal an engineer finds waiting: the same computation as a batch's close (the lot's certificate as prior,
+ * the recipe and lot's closed batches), stored as proposed; nothing plans with it until it is accepted. Two earlier
+ * proposals (after 4 and 7 batches) stand superseded, as each close proposes anew.
+ */
+function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: number, recipe: typeof recipes.$inferSelect): void {
+  const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;
+  const enzyme = tx.select().from(enzymes).where(sql`${enzymes.id} = ${recipe.enzymeId}`).get()!;
+  const assay = tx.select().from(assays).where(sql`${assays.lotId} = ${lot.id}`).get();
+  const closed = tx
+    .select()
+    .from(batches)
+    .where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`)
+    .orderBy(batches.closedAt)
+    .all()
+    .map((b) => ({
+      batchId: b.id,
+      startedAt: b.startedAt,
+      closedAt: b.closedAt!,
+      program: b.program,
+      measuredProductGPerL: b.measuredProductGPerL,
+      readings: tx.select({ takenAt: batchReadings.takenAt, c: batchReadings.c }).from(batchReadings).where(sql`${batchReadings.batchId} = ${b.id}`).orderBy(batchReadings.takenAt).all(),
+    }));
+  const evidence = { certKdPerH: lot.certKdPerH, certTempC: lot.certTempC, fit: assay?.fit ? { assayId: assay.id, createdAt: assay.createdAt, fit: assay.fit } : null };
+  for (const n of [4, 7, closed.length]) {
+    const used = closed.slice(0, n);
+    const proposal = proposeCalibration({ recipe, enzyme, lot: evidence, batches: used, excluded: [] });
+    if (!proposal) continue;
+    const state = n === closed.length ? 'proposed' : 'superseded';
+    tx.insert(calibrations).values({ siteId, recipeId: recipe.id, lotId: lot.id, state, batchIds: proposal.batchIds, result: proposal.result, createdAt: used.at(-1)!.closedAt }).run();
+  }
 }
 
 export const DEMO_SITE_NAME = 'Halden Bay Biorefinery';
@@ -260,9 +317,12 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       const vesselId = vesselRows.find((v) => v.name === vessel)!.id;
       recipeRows.set(r.name, tx.insert(recipes).values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT }).returning().get());
     }
-    for (const demo of BATCHES) {
+    const truthRng = createRng(DEMO_PLANT_TRUTH.seed);
+    const sorted = [...BATCHES].sort((a, b) => a.startedAt.localeCompare(b.startedAt));
+    for (const demo of sorted) {
       const b = !demo.closedAt && opts.now ? { ...demo, startedAt: new Date(Math.floor(opts.now.getTime() / 1_800_000) * 1_800_000 - demo.readUntilH * 3_600_000).toISOString() } : demo;
-      const recipe = recipeRows.get(b.recipe)!;
+      const saved = recipeRows.get(b.recipe)!;
+      const recipe = b.setpointC === undefined ? saved : { ...saved, currentSetpointC: b.setpointC };
       const vessel = vesselRows.find((v) => v.id === recipe.vesselId)!;
       const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;
       const enzyme = tx.select().from(enzymes).where(sql`${enzymes.id} = ${recipe.enzymeId}`).get()!;
@@ -276,13 +336,16 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         .values(readings.map((r, i) => ({ siteId: site.id, batchId: row.id, clientKey: `demo-${row.id}-${i}`, takenAt: r.takenAt, c: r.c, note: null, source: 'manual' as const, enteredBy: userIds.get('operator')!, receivedAt: r.takenAt })))
         .run();
       if (b.closedAt) {
-        const forecast = batchStatus(program, readings.map((r) => ({ h: batchHours(b.startedAt, r.takenAt), c: r.c })), program.batchH).forecastGPerL;
+        const logged = readings.map((r) => ({ h: batchHours(b.startedAt, r.takenAt), c: r.c }));
+        const forecast = batchStatus(program, logged, program.batchH).forecastGPerL;
+        const measured = lot.lotCode === DEMO_PLANT_TRUTH.lotCode ? plantTruthProduct(program, logged, enzyme.tRefC) * Math.exp(DEMO_PLANT_TRUTH.noiseRelSd * truthRng.normal()) : forecast * (b.measuredRatio ?? 1);
         tx.update(batches)
-          .set({ state: 'closed', closedAt: b.closedAt, closedBy: userIds.get('supervisor')!, measuredProductGPerL: Math.round(forecast * b.measuredRatio * 10) / 10, forecastAtCloseGPerL: forecast, closeComment: 'Lab result from the end-of-batch sample' })
+          .set({ state: 'closed', closedAt: b.closedAt, closedBy: userIds.get('supervisor')!, measuredProductGPerL: Math.round(measured * 10) / 10, forecastAtCloseGPerL: forecast, closeComment: 'Lab result from the end-of-batch sample' })
           .where(sql`${batches.id} = ${row.id}`)
           .run();
       }
     }
+    proposeDemoCalibration(tx, site.id, recipeRows.get('Lactose-free milk base')!);
     const ids = demoStripeIds(site.id);
     tx.insert(subscriptions)
       .values({

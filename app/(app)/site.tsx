@@ -1,5 +1,6 @@
 import { router } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
+import { MeasurementSdCard } from '@/components/calibration/measurement-sd-card';
 import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
@@ -47,6 +48,7 @@ function Outbox() {
 
 function SiteBody() {
   const site = useSite();
+  const { session } = useSession();
   const { isWide } = useBreakpoint();
   if (site.error) return <ErrorState error={site.error} onRetry={site.retry} />;
   if (!site.data) return <Loader rows={2} label="Loading the site" />;
@@ -59,6 +61,7 @@ function SiteBody() {
         <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
+      <MeasurementSdCard canChange={session?.user.role === 'admin'} />
       <Columns gap={space.md}>
         <>
           <Text variant="title" accessibilityRole="header">

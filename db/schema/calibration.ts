@@ -1,4 +1,4 @@
-import { index, integer, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
+import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
 import { CALIBRATION_STATES, type CalibrationResult } from '../../src/contracts/calibrations';
 import { batches } from './batches';
 import { lots } from './catalog';
@@ -38,3 +38,10 @@ export const calibrationExclusions = sqliteTable(
   },
   (t) => [uniqueIndex('calibration_exclusions_batch_unique').on(t.batchId)],
 );
+
+// The site's measurement spread for calibration; a site without a row uses MEASUREMENT_REL_SD (2 % of the product).
+export const calibrationSettings = sqliteTable('calibration_settings', {
+  siteId: integer('site_id').primaryKey().references(() => sites.id),
+  measurementRelSd: real('measurement_rel_sd').notNull(),
+  updatedAt: text('updated_at').notNull(),
+});

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, isNotNull } from 'drizzle-orm';
 import type { Db } from '../../db/client';
-import { assays, batches, calibrationExclusions, calibrations, users } from '../../db/schema';
+import { assays, batches, calibrationExclusions, calibrationSettings, calibrations, users } from '../../db/schema';
 
 export type CalibrationRow = typeof calibrations.$inferSelect;
 
@@ -63,3 +63,8 @@ export const newestLotFit = (db: Db, siteId: number, lotId: number) =>
     .where(and(eq(assays.siteId, siteId), eq(assays.lotId, lotId), isNotNull(assays.fit)))
     .orderBy(desc(assays.createdAt), desc(assays.id))
     .get();
+
+export const findCalibrationSettings = (db: Db, siteId: number) => db.select().from(calibrationSettings).where(eq(calibrationSettings.siteId, siteId)).get();
+
+export const upsertCalibrationSettings = (db: Db, row: typeof calibrationSettings.$inferInsert) =>
+  db.insert(calibrationSettings).values(row).onConflictDoUpdate({ target: calibrationSettings.siteId, set: { measurementRelSd: row.measurementRelSd, updatedAt: row.updatedAt } }).run();

@@ -1,9 +1,9 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationView } from '../../src/contracts/calibrations';
-import { CALIBRATION_DECIDERS, CALIBRATION_READERS } from '../../src/contracts/rules';
+import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
+import { CALIBRATION_DECIDERS, CALIBRATION_READERS, CALIBRATION_SETTINGS_EDITORS } from '../../src/contracts/rules';
 import { allow, currentUser } from '../middleware/auth';
-import { acceptCalibration, getCalibrationView, setExclusion } from '../services/calibrations';
+import { acceptCalibration, calibrationSettingsOf, changeCalibrationSettings, getCalibrationView, setExclusion } from '../services/calibrations';
 import type { Services } from './services';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
@@ -12,6 +12,12 @@ export function calibrationsRouter(s: Services): Router {
   const router = Router();
   router.get('/', allow(...CALIBRATION_READERS), (req, res) => {
     res.json(CalibrationView.parse(getCalibrationView(s, currentUser(req), CalibrationQuery.parse(req.query))));
+  });
+  router.get('/settings', allow(...CALIBRATION_READERS), (req, res) => {
+    res.json(CalibrationSettings.parse(calibrationSettingsOf(s.db, currentUser(req).siteId)));
+  });
+  router.patch('/settings', allow(...CALIBRATION_SETTINGS_EDITORS), (req, res) => {
+    res.json(CalibrationSettings.parse(changeCalibrationSettings(s, currentUser(req), CalibrationSettingsPatch.parse(req.body))));
   });
   router.post('/:id/accept', allow(...CALIBRATION_DECIDERS), (req, res) => {
     const { id } = IdParam.parse(req.params);

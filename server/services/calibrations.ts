@@ -1,6 +1,6 @@
 import { writeTx, type Db } from '../../db/client';
-import { proposeCalibration, type ClosedBatch } from '../../src/batches';
-import type { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationView } from '../../src/contracts/calibrations';
+import { MEASUREMENT_REL_SD, proposeCalibration, type ClosedBatch } from '../../src/batches';
+import type { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
 import type { SessionUser } from '../../src/contracts/session';
 import { ModelInputError } from '../../src/model';
 import { lotKinetics } from '../../src/planning';
@@ -11,12 +11,14 @@ import {
   closedBatchesOf,
   deleteExclusion,
   findCalibration,
+  findCalibrationSettings,
   findExclusion,
   findSiteCalibration,
   insertCalibration,
   insertExclusion,
   listExclusions,
   setCalibrationState,
+  upsertCalibrationSettings,
   type CalibrationJoined,
 } from '../repositories/calibrations';
 import { findSiteBatch } from '../repositories/batches';
@@ -60,7 +62,7 @@ export function recalibrate(db: Db, u: SessionUser, recipeId: number, lotId: num
   let proposal: ReturnType<typeof proposeCalibration> = null;
   let problem: string | null = null;
   try {
-    proposal = proposeCalibration({ recipe, enzyme, lot, batches: closed, excluded });
+    proposal = proposeCalibration({ recipe, enzyme, lot, batches: closed, excluded, measurementRelSd: calibrationSettingsOf(db, u.siteId).measurementRelSd });
   } catch (e) {
     if (!(e instanceof ModelInputError)) throw e;
     problem = `${e.field}: ${e.rule}`;
@@ -150,4 +152,20 @@ export function setExclusion({ db, clock }: Services, u: SessionUser, input: Cal
   });
   recalibrate(db, u, j.batch.recipeId, j.batch.lotId, now);
   return getCalibrationView({ db, clock }, u, { recipeId: j.batch.recipeId, lotId: j.batch.lotId });
+}
+
+/** The site's measurement spread for calibration, or the stated default. */
+export function calibrationSettingsOf(db: Db, siteId: number): CalibrationSettings {
+  return { measurementRelSd: findCalibrationSettings(db, siteId)?.measurementRelSd ?? MEASUREMENT_REL_SD };
+}
+
+/** The admin sets the measurement spread, audited; proposals computed from then on use it (earlier ones keep theirs, stated with them). */
+export function changeCalibrationSettings({ db, clock }: Services, u: SessionUser, patch: CalibrationSettingsPatch): CalibrationSettings {
+  const before = calibrationSettingsOf(db, u.siteId);
+  const now = clock.now();
+  writeTx(db, (tx) => {
+    upsertCalibrationSettings(tx, { siteId: u.siteId, measurementRelSd: patch.measurementRelSd, updatedAt: now.toISOString() });
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'calibration_settings.update', entity: 'calibration_settings', entityId: u.siteId, oldValue: before, newValue: patch, at: now });
+  });
+  return { ...patch };
 }

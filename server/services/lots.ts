@@ -3,6 +3,7 @@ import type { Assay } from '../../src/contracts/assays';
 import { MAX_POINTS_SHOWN } from '../../src/contracts/assays';
 import type { CertificateFile, Lot, LotDecision, LotDetail, LotInput, LotQuery } from '../../src/contracts/lots';
 import type { SessionUser } from '../../src/contracts/session';
+import { certificateDisagreement } from '../../src/planning';
 import { certConversion, evaluateLot, fitHalfLifeAt } from '../../src/stability';
 import type { FileStore } from '../file-store';
 import { HttpError, notFound } from '../http-error';
@@ -81,6 +82,7 @@ export function getLot({ db }: Services, u: SessionUser, id: number): LotDetail 
     certificate: certificateView(db, u.siteId, id),
     assays,
     evaluation: evaluateLot(enzyme, lot, fitted?.fit ?? null),
+    disagreement: certificateDisagreement({ certKdPerH: lot.certKdPerH, certTempC: lot.certTempC, fit: fitted?.fit ? { assayId: fitted.id, createdAt: fitted.createdAt, fit: fitted.fit } : null }),
     decidedBy: decidedBy ?? null,
   };
 }

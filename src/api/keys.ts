@@ -13,6 +13,7 @@ export const keys = {
   recipes: '/recipes',
   batches: '/batches',
   batchSettings: '/batches/settings',
+  calibrationSettings: '/calibrations/settings',
 } as const;
 
 export const batchKey = (id: number) => `/batches/${id}`;
@@ -34,3 +35,6 @@ export const enzymesKey = (q: { q?: string; sort?: string; dir?: string; page?: 
   const params = Object.entries(q).filter(([, v]) => v !== undefined && v !== '').map(([k, v]) => `${k}=${encodeURIComponent(String(v))}`);
   return params.length ? `/enzymes?${params.join('&')}` : '/enzymes';
 };
+
+/** A recipe and lot's calibration and model quality. */
+export const calibrationKey = (recipeId: number, lotId: number) => `/calibrations?recipeId=${recipeId}&lotId=${lotId}`;

@@ -105,6 +105,14 @@ export const CalibrationView = z.object({
 });
 export type CalibrationView = z.infer<typeof CalibrationView>;
 
+/** The site's spread of a measured product for calibration, relative (0.02 = 2 % of the product, 1 sd). */
+export const CalibrationSettings = z.object({
+  measurementRelSd: z.number({ error: 'Enter a number' }).min(0.001, 'At least 0.1 %').max(0.2, 'At most 20 %'),
+});
+export type CalibrationSettings = z.infer<typeof CalibrationSettings>;
+export const CalibrationSettingsPatch = CalibrationSettings.strict();
+export type CalibrationSettingsPatch = z.infer<typeof CalibrationSettingsPatch>;
+
 export const CalibrationQuery = z.object({ recipeId: z.coerce.number().int().positive(), lotId: z.coerce.number().int().positive() });
 export type CalibrationQuery = z.infer<typeof CalibrationQuery>;
 

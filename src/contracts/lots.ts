@@ -112,6 +112,8 @@ export const LotDetail = z.object({
   certificate: CertificateFile.nullable(),
   assays: z.array(Assay),
   evaluation: LotEvaluation,
+  /** The certificate's half-life outside the newest assay fit's 95 % interval, in words; null when they agree or there is no fit. */
+  disagreement: z.string().nullable(),
   decidedBy: z.string().nullable(),
 });
 export type LotDetail = z.infer<typeof LotDetail>;

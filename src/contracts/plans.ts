@@ -88,6 +88,14 @@ export const PlanOutputs = z.object({
   /** Relative gain of the best staged profile over the best isothermal setpoint (both with ramps). */
   stagedGain: z.number(),
   boundsC: z.tuple([z.number(), z.number()]),
+  /**
+   * Substrate fully converted before the batch ends: the hour it completes (recommended and current programs) and
+   * the profit per reactor hour of a batch ended then against the full one; null otherwise, absent on older plans.
+   */
+  earlyFinish: z
+    .object({ completeAtH: z.number(), currentCompleteAtH: z.number().nullable(), shorterProfitPerH: z.number(), fullProfitPerH: z.number() })
+    .nullable()
+    .optional(),
   atBound: z.enum(['lower', 'upper']).nullable(),
   constraintsMet: z.boolean(),
   cautions: PlanCautions,

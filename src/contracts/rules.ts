@@ -37,6 +37,8 @@ export const PAGE_SESSION_ID = 'yieldpoint-session';
 /** Who sees a recipe and lot's calibration and model quality, and who decides on it (accepts, leaves batches out). */
 export const CALIBRATION_READERS = ['engineer', 'supervisor', 'admin'] as const satisfies readonly RoleName[];
 export const CALIBRATION_DECIDERS = ['engineer'] as const satisfies readonly RoleName[];
+/** The site's measurement spread for calibration is the admin's to set, on the Site screen. */
+export const CALIBRATION_SETTINGS_EDITORS = ['admin'] as const satisfies readonly RoleName[];
 
 // Upper limits that keep every computed figure (profit per hour, cost of a batch) a finite number. Common
 // practice, no source: the largest industrial fermenters hold about 1,000 m3, and no enzyme or product sells

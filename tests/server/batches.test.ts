@@ -2,6 +2,7 @@ import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { writeTx } from '../../db/client';
 import { auditEvents, batchReadings, deviations, recipes, users } from '../../db/schema';
+import { DEMO_PLANT_TRUTH } from '../../db/seed';
 import { insertReadings, readingPoints } from '../../server/repositories/batches';
 import { batchRecordOf } from '../../server/services/batch-record';
 import { password, startTestApp, type Client, type TestApp } from './harness';
@@ -49,16 +50,19 @@ async function closeRunning(vesselName: string) {
 const at = (batchStart: string, h: number) => new Date(Date.parse(batchStart) + h * 3_600_000).toISOString();
 
 describe('the demo batches', () => {
-  it('lists one running and three closed batches, each closed one with a measured product beside its forecast', async () => {
+  it('lists one running and eleven closed batches, each closed one with a measured product beside its forecast', async () => {
     const r = await op.get('/api/batches');
     expect(r.status).toBe(200);
     const list = r.body.batches as any[];
     expect(list.filter((b) => b.state === 'running')).toHaveLength(1);
     const closed = list.filter((b) => b.state === 'closed');
-    expect(closed).toHaveLength(3);
+    expect(closed).toHaveLength(11);
     for (const b of closed) {
       expect(b.measuredProductGPerL).toBeGreaterThan(0);
-      expect(Math.abs(b.measuredProductGPerL / b.forecastGPerL - 1)).toBeLessThan(0.05);
+      // The calibration demo's lot is less stable in the plant than its certificate (invented truth): its lab
+      // results fall short of the certificate's forecast; the others lie within 5 % of theirs.
+      if (b.lotCode === DEMO_PLANT_TRUTH.lotCode) expect(b.measuredProductGPerL / b.forecastGPerL).toBeLessThan(0.97);
+      else expect(Math.abs(b.measuredProductGPerL / b.forecastGPerL - 1)).toBeLessThan(0.05);
     }
     // The operator logged the demo readings: they are "my batches".
     expect(list.every((b) => b.isMine)).toBe(true);

@@ -107,9 +107,11 @@ describe('creating and editing enzymes', () => {
     expect(r.status).toBe(200);
     const h = r.body.history as { lotCode: string; basis: string; halfLifeH: number; lowerH: number | null; upperH: number | null }[];
     expect(h.map((p) => p.lotCode)).toEqual(['OF-LX5-0926', 'OF-LX5-1107', 'OF-LX5-1128']);
-    expect(h.map((p) => p.basis)).toEqual(['assay', 'assay', 'certificate']);
-    for (const p of h.slice(0, 2)) expect(p.lowerH! < p.halfLifeH && p.halfLifeH < p.upperH!).toBe(true);
-    // The seed's certificate for OF-LX5-1128 states 55 h at the specification temperature (invented demo figure).
+    // OF-LX5-0926 is the calibration demo's certificate-only lot; OF-LX5-1107 has a QC assay.
+    expect(h.map((p) => p.basis)).toEqual(['certificate', 'assay', 'certificate']);
+    expect(h[1]!.lowerH! < h[1]!.halfLifeH && h[1]!.halfLifeH < h[1]!.upperH!).toBe(true);
+    // The seed's certificates state 60 h (OF-LX5-0926) and 55 h (OF-LX5-1128) at the specification temperature (invented demo figures).
+    expect(h[0]).toMatchObject({ halfLifeH: 60, lowerH: null, upperH: null });
     expect(h[2]).toMatchObject({ halfLifeH: 55, lowerH: null, upperH: null });
   });
 });

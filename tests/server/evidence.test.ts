@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { auditEvents, calibrations } from '../../db/schema';
 import { halfLifeAt } from '../../src/model';
+import { demoAssayCsv, demoAssayPoints, DEMO_PLANT_TRUTH } from '../../db/seed';
 import { planBody } from '../fixtures/plan-body';
 import { startTestApp, type Client, type TestApp } from './harness';
 
@@ -12,7 +13,7 @@ let eng: Client;
 let sup: Client;
 let proc: Client;
 const lots: Record<string, { id: number }> = {};
-const recipes: Record<string, { id: number; vesselId: number; lotId: number }> = {};
+const recipes: Record<string, { id: number; vesselId: number; vesselName: string; lotId: number; batchH: number }> = {};
 const MC = { draws: 1000, seed: 3, sensorBiasSdC: 0.3, doseRelSd: 0.05 };
 
 beforeAll(async () => {
@@ -73,10 +74,10 @@ describe('a lot without a fit plans from its certificate', () => {
   });
 });
 
-/** Starts a glucose batch 48 h before the clock, logs its planned temperatures hourly and closes it with a product. */
-async function closedGlucoseBatch(measured: (forecast: number) => number | null): Promise<number> {
+/** Starts a batch of a recipe its length before the clock, logs its planned temperatures hourly and closes it with a product. */
+async function closedBatch(r: { id: number; vesselId: number; vesselName: string; lotId: number; batchH: number }, measured: (forecast: number) => number | null): Promise<number> {
   const list = (await sup.get('/api/batches')).body.batches as { id: number; vesselName: string; state: string }[];
-  for (const b of list.filter((x) => x.vesselName === 'R-101 Saccharifier' && x.state === 'running')) {
+  for (const b of list.filter((x) => x.vesselName === r.vesselName && x.state === 'running')) {
     const d = (await sup.get(`/api/batches/${b.id}`)).body;
     for (const dev of d.deviations.filter((x: { state: string }) => x.state !== 'closed')) {
       if (dev.state === 'open') await sup.post(`/api/deviations/${dev.id}/acknowledge`, { comment: 'seen' });
@@ -84,16 +85,15 @@ async function closedGlucoseBatch(measured: (forecast: number) => number | null)
     }
     expect((await sup.post(`/api/batches/${b.id}/close`, {})).status).toBe(200);
   }
-  const g = glucose();
-  const startedAt = new Date(t.clock.now().getTime() - 48 * 3_600_000).toISOString();
-  const b = (await sup.post('/api/batches', { recipeId: g.id, vesselId: g.vesselId, lotId: g.lotId, startedAt })).body;
+  const startedAt = new Date(t.clock.now().getTime() - r.batchH * 3_600_000).toISOString();
+  const b = (await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: r.lotId, startedAt })).body;
   const log = b.program.log as { h: number; c: number }[];
   const at = (h: number) => {
     const i = Math.max(1, log.findIndex((p) => p.h >= h));
     const [a, z] = [log[i - 1]!, log[Math.min(i, log.length - 1)]!];
     return z.h === a.h ? z.c : a.c + ((z.c - a.c) * (h - a.h)) / (z.h - a.h);
   };
-  const csv = ['time,temperature', ...Array.from({ length: 48 }, (_, h) => `${new Date(Date.parse(startedAt) + h * 3_600_000).toISOString()},${at(Math.min(h, 48)).toFixed(2)}`)].join('\n');
+  const csv = ['time,temperature', ...Array.from({ length: r.batchH }, (_, h) => `${new Date(Date.parse(startedAt) + h * 3_600_000).toISOString()},${at(h).toFixed(2)}`)].join('\n');
   const imp = await sup.req('POST', `/api/batches/${b.id}/readings/import`, csv, { 'content-type': 'text/csv' });
   expect(imp.status, JSON.stringify(imp.body)).toBe(200);
   const d = (await sup.get(`/api/batches/${b.id}`)).body;
@@ -106,6 +106,7 @@ async function closedGlucoseBatch(measured: (forecast: number) => number | null)
   expect(c.status, JSON.stringify(c.body)).toBe(200);
   return b.id;
 }
+const closedGlucoseBatch = (measured: (forecast: number) => number | null) => closedBatch({ ...glucose(), batchH: 48 }, measured);
 
 const view = async () => (await eng.get(`/api/calibrations?recipeId=${glucose().id}&lotId=${glucose().lotId}`)).body;
 
@@ -172,5 +173,89 @@ describe('closing the loop', () => {
     // The accepted calibration stays as it was: leaving a batch out changes only the proposal.
     expect(ex.body.accepted.batchIds).toEqual(used);
     expect(t.db.select().from(calibrations).all().filter((c) => c.state === 'accepted')).toHaveLength(1);
+  });
+});
+
+describe('the demo site shows calibration working', () => {
+  it('proposes a calibration of the lactose recipe on its certificate-only lot; accepting it moves the setpoint and narrows the band', async () => {
+    const r = recipes['Lactose-free milk base']!;
+    const lot = lots[DEMO_PLANT_TRUTH.lotCode]!;
+    expect(r.lotId).toBe(lot.id);
+    const v = (await eng.get(`/api/calibrations?recipeId=${r.id}&lotId=${lot.id}`)).body;
+    expect(v.accepted).toBeNull();
+    expect(v.proposed.result.prior.text).toMatch(/^certificate only, default spread/);
+    expect(v.proposed.batchIds.length).toBeGreaterThanOrEqual(8);
+    expect(v.proposed.result.batches.some((b: { isOutlier: boolean }) => b.isOutlier)).toBe(false);
+    // The invented truth is 38 h at 40 °C against the certificate's 60 h: the posterior moves toward it and narrows.
+    const [prior, post] = [v.proposed.result.drift[0], v.proposed.result.drift.at(-1)];
+    expect(post.halfLifeRefH).toBeLessThan(prior.halfLifeRefH);
+    expect(post.halfLifeHighH - post.halfLifeLowH).toBeLessThan(prior.halfLifeHighH - prior.halfLifeLowH);
+    expect(v.proposed.result.after.rmseGPerL).toBeLessThan(v.proposed.result.before.rmseGPerL);
+    const body = planBody(r.id, lot.id, { batchH: 20, turnaroundH: 3, s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, currentSetpointC: 37, productPricePerKg: 2.5, enzymePricePerKg: 20, heatingCostPerDegCHour: 0.05, uncertainty: { draws: 4000, seed: 1, sensorBiasSdC: 0.5, doseRelSd: 0.05 } });
+    const before = (await eng.post('/api/plans', body)).body.outputs;
+    expect((await eng.post(`/api/calibrations/${v.proposed.id}/accept`, {})).status).toBe(200);
+    const after = (await eng.post('/api/plans', body)).body.outputs;
+    expect(after.kinetics.stabilitySource).toBe('calibration');
+    expect(Math.abs(after.setpointC - before.setpointC)).toBeGreaterThan(0.5);
+    expect(after.uncertainty.p90 - after.uncertainty.p10).toBeLessThan(0.9 * (before.uncertainty.p90 - before.uncertainty.p10));
+  });
+});
+
+/** A multipart upload as the browser sends it. */
+async function upload(c: Client, path: string, name: string, text: string) {
+  const form = new FormData();
+  form.append('file', new Blob([text], { type: 'text/csv' }), name);
+  const res = await fetch(t.base + path, { method: 'POST', headers: { 'x-yieldpoint-client': 'test', cookie: c.cookie ?? '' }, body: form });
+  return { status: res.status, body: await res.json() };
+}
+
+describe('the whole chain on one lot', () => {
+  it('assay upload -> fit -> plan from the fit -> closed batch -> proposal (at the site measurement sd) -> accept -> the plan changes', async () => {
+    const admin = await t.signIn('admin');
+    const r = recipes['Lactose-free milk base']!;
+    const lot = lots[DEMO_PLANT_TRUTH.lotCode]!;
+    const body = planBody(r.id, lot.id, { batchH: 20, turnaroundH: 3, s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, currentSetpointC: 37, productPricePerKg: 2.5, enzymePricePerKg: 20, heatingCostPerDegCHour: 0.05, uncertainty: MC });
+    const onCalibration = (await eng.post('/api/plans', body)).body;
+    // The admin sets the site's measurement spread: 3 % instead of the default 2 %; only the admin may.
+    expect((await admin.get('/api/calibrations/settings')).body).toEqual({ measurementRelSd: 0.02 });
+    expect((await eng.patch('/api/calibrations/settings', { measurementRelSd: 0.03 })).status).toBe(403);
+    expect((await admin.patch('/api/calibrations/settings', { measurementRelSd: 0.5 })).status).toBe(400);
+    expect((await admin.patch('/api/calibrations/settings', { measurementRelSd: 0.03, extra: 1 })).status).toBe(400);
+    expect((await admin.patch('/api/calibrations/settings', { measurementRelSd: 0.03 })).body).toEqual({ measurementRelSd: 0.03 });
+    expect(t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration_settings.update')).all()).toHaveLength(1);
+
+    // Procurement uploads a QC assay drawn from the lot's invented plant truth (38 h at 40 °C; certificate 60 h).
+    const points = demoAssayPoints(40, { halfLifeH: DEMO_PLANT_TRUTH.halfLifeRefH, edKJPerMol: DEMO_PLANT_TRUTH.edKJPerMol, seed: 77 });
+    const up = await upload(proc, `/api/lots/${lot.id}/assays`, 'qc.csv', demoAssayCsv(points));
+    expect(up.status, JSON.stringify(up.body)).toBe(201);
+    const detail = (await proc.get(`/api/lots/${lot.id}`)).body;
+    const fit = detail.assays[0].fit;
+    expect(detail.disagreement).toMatch(/^The certificate's half-life of 60 h at 40 °C lies outside the assay fit's 95 % interval .*less stable than its certificate says/);
+
+    // The plan now comes from the fit (a calibration made on the certificate is a prior of the past); the earlier plan says it is older.
+    const onFit = (await eng.post('/api/plans', body)).body;
+    expect(onFit.outputs.kinetics).toMatchObject({ stabilitySource: 'fit', kdRefPerH: fit.kdRefPerH, edKJPerMol: fit.edKJPerMol });
+    expect(onFit.outputs.kinetics.evidence.text).toMatch(/^assay fit of \d{4}-\d\d-\d\d, 21 points, t½ /);
+    expect(onFit.outputs.kinetics.evidence.disagreement).toBe(detail.disagreement);
+    expect((await eng.get(`/api/plans/${onCalibration.id}`)).body.olderEvidence).toMatch(/a newer assay fit/);
+
+    // A closed batch with a lab result proposes a calibration from the fit, at 3 %; nothing changes until accepted.
+    const batchId = await closedBatch(r, (f) => f * 0.93);
+    const v = (await eng.get(`/api/calibrations?recipeId=${r.id}&lotId=${lot.id}`)).body;
+    expect(v.proposed.batchIds).toContain(batchId);
+    expect(v.proposed.result.prior.fitAssayId).toBe(detail.assays[0].id);
+    expect(v.proposed.result.measurementRelSd).toBe(0.03);
+    const row = v.proposed.result.batches.find((b: { batchId: number }) => b.batchId === batchId);
+    expect(row.measurementSdGPerL).toBeCloseTo(0.03 * row.measuredProductGPerL, 12);
+    expect((await eng.post('/api/plans', body)).body.contentHash).toBe(onFit.contentHash);
+
+    expect((await eng.post(`/api/calibrations/${v.proposed.id}/accept`, {})).status).toBe(200);
+    const onNew = (await eng.post('/api/plans', body)).body;
+    expect(onNew.outputs.kinetics.stabilitySource).toBe('calibration');
+    expect(onNew.outputs.kinetics.evidence.text).toMatch(/; prior: assay fit of/);
+    expect(onNew.outputs.predictedProductGPerL).not.toBeCloseTo(onFit.outputs.predictedProductGPerL, 3);
+    expect(onNew.outputs.uncertainty.parameterSpread).toBe('calibration');
+    expect([onNew.outputs.uncertainty.p10, onNew.outputs.uncertainty.p90]).not.toEqual([onFit.outputs.uncertainty.p10, onFit.outputs.uncertainty.p90]);
+    expect((await eng.get(`/api/plans/${onFit.id}`)).body.olderEvidence).toMatch(/a newer calibration was accepted/);
   });
 });

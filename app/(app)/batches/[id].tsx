@@ -3,6 +3,7 @@ import { useMemo } from 'react';
 import { Linking, StyleSheet, View } from 'react-native';
 import { CloseBatchCard } from '@/components/batches/close-batch-card';
 import { DeviationList } from '@/components/batches/deviation-list';
+import { EvidenceNote } from '@/components/evidence/evidence-note';
 import { HistorianUpload } from '@/components/batches/historian-upload';
 import { READING_COLUMNS, ReadingPages, readingRow, type ReadingRow } from '@/components/batches/reading-pages';
 import { ReadingEntry } from '@/components/batches/reading-entry';
@@ -104,6 +105,7 @@ function BatchBody({ id }: { id: number }) {
         <Text variant="small" testID="batch-plan">
           {planSentence(data)}
         </Text>
+        <EvidenceNote evidence={b.program.evidence} testID="batch-evidence" />
         {overdue ? (
           <Text variant="small" tone="warning" weight="semibold" testID="batch-overdue">
             No reading for {durationText(sinceLast!)}: the site asks for one every {data.settings.gapLimitMin} min.

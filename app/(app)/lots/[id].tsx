@@ -33,6 +33,17 @@ function LotBody({ id }: { id: number }) {
           {enzyme.enzymeClass} (EC {enzyme.ecNumber}) from {enzyme.supplier} · received {lot.receivedOn} · expires {lot.expiresOn} · {fmt(lot.quantityKg, 0)} kg
         </Text>
       </Card>
+      {data.disagreement ? (
+        <Card testID="lot-disagreement" accessibilityRole="alert">
+          <Text weight="semibold" tone="warning">
+            Assay fit and certificate disagree
+          </Text>
+          <Text>{data.disagreement}</Text>
+          <Text variant="small" tone="muted">
+            Plans use the assay fit; the supplier may want to hear about the certificate.
+          </Text>
+        </Card>
+      ) : null}
       <Columns>
         <DecisionCard detail={data} canDecide={(LOT_DECIDERS as readonly string[]).includes(role)} />
         <CertificateCard lot={lot} conversion={data.conversion} certificate={data.certificate} canEdit={canEdit} />

@@ -4,6 +4,8 @@ import type { ChangeRequestDetail } from '../../contracts/change-requests';
 import type { SessionUser } from '../../contracts/session';
 import { fmt } from '../../format';
 import { space } from '../../theme';
+import { CalibrationReview } from '../calibration/calibration-review';
+import { EvidenceNote } from '../evidence/evidence-note';
 import { Button, Card, Columns, DataTable, Text, type Column } from '../ui';
 import { Comparison } from './comparison';
 import { STATUS_LABELS, STATUS_TONES, utcTime } from './labels';
@@ -86,6 +88,7 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
               Plan #{d.planId} inputs
             </Text>
             <DataTable columns={COLUMNS} rows={inputRows(d)} rowKey={(r) => r.label} caption="Plan inputs" testID="record-inputs" />
+            <EvidenceNote evidence={d.plan.outputs.kinetics.evidence} olderEvidence={d.plan.olderEvidence} testID="record-evidence" />
           </Card>
         </>
         <>
@@ -107,6 +110,8 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
           ) : null}
         </>
       </Columns>
+      {/* The supervisor signs with the model's track record for this recipe and lot in view. */}
+      <CalibrationReview recipeId={d.recipeId} lotId={d.plan.inputs.lotId} canDecide={false} />
       <Text variant="small" tone="muted">
         Advisory. The released setpoint is set on the vessel by qualified staff under the site’s procedures; Yieldpoint never writes to a control system.
       </Text>

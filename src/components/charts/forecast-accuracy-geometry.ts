@@ -1,7 +1,8 @@
 import { scaleLinear } from 'd3-scale';
 import { plotBox, tickLabel, ticksOf, type Box, type Tick } from './axes';
 
-export type AccuracyPoint = { id: number; forecastGPerL: number; measuredGPerL: number };
+/** `group` picks the series (0 when there is one): the same batch may appear once per forecast kind. */
+export type AccuracyPoint = { id: number; forecastGPerL: number; measuredGPerL: number; group?: number };
 export type ForecastAccuracyGeometry = {
   box: Box;
   xTicks: Tick[];

@@ -3,7 +3,7 @@ import { StyleSheet, View } from 'react-native';
 import type { RecipeDetail } from '../../contracts/recipes';
 import { fmt } from '../../format';
 import { halfLifeFromKd } from '../../model/units';
-import { kdAtReference } from '../../planning';
+import { lotKinetics } from '../../planning';
 import { space } from '../../theme';
 import { Card, Choice, NumberField, Text } from '../ui';
 import type { Planner } from './use-planner';
@@ -38,13 +38,13 @@ export function PlanInputsPanel({ detail, planner }: { detail: RecipeDetail; pla
         value={inputs.lotId}
         options={detail.lots.map((l) => ({
           value: l.id,
-          label: `${l.lotCode} · t½ ${fmt(halfLifeFromKd(kdAtReference(l, enzyme.tRefC, recipe.edKJPerMol)))} h`,
+          label: `${l.lotCode} · t½ ${fmt(halfLifeFromKd(lotKinetics(recipe, enzyme.tRefC, l).kdRefPerH))} h`,
         }))}
         onChange={(lotId) => update({ lotId })}
         testID="input-lot"
       />
       <Text variant="caption" tone="muted">
-        Half-life at {fmt(enzyme.tRefC, 0)} °C from the certificate, moved to that temperature with Ed {fmt(recipe.edKJPerMol, 0)} kJ/mol.
+        Half-life at {fmt(enzyme.tRefC, 0)} °C from each lot’s calibration, else its assay fit, else its certificate (moved to that temperature with the recipe’s Ed of {fmt(recipe.edKJPerMol, 0)} kJ/mol).
       </Text>
       <View style={styles.grid}>
         <NumberField label="Batch length" unit="h" value={inputs.batchH} step={2} min={1} max={500} onChange={on.batchH} testID="input-batchH" />

@@ -3,6 +3,7 @@ import { Linking, Platform, StyleSheet, View } from 'react-native';
 import type { Plan } from '../../contracts/plans';
 import { fmt } from '../../format';
 import { space } from '../../theme';
+import { EvidenceNote } from '../evidence/evidence-note';
 import { Button, Card, DataTable, Text, type Column } from '../ui';
 
 type Row = { label: string; value: string };
@@ -11,6 +12,7 @@ const COLUMNS: Column<Row>[] = [
   { key: 'value', label: 'Value', value: (r) => r.value, flex: 1.6 },
 ];
 
+const SPREAD_LABELS = { fit: 'assay fit covariance', calibration: 'calibration covariance', default: 'default spread' } as const;
 
 /** A saved plan as the server computed and stored it: the printable record change control will sign. */
 export function PlanSheet({ plan }: { plan: Plan }) {
@@ -20,7 +22,7 @@ export function PlanSheet({ plan }: { plan: Plan }) {
   const result: Row[] = [
     { label: o.strategy === 'staged' ? 'Profile' : 'Setpoint', value: o.stages ? o.stages.map((s) => `${fmt(s.hours)} h at ${fmt(s.c)} °C`).join(', ') : `${fmt(o.setpointC)} °C` },
     { label: 'Predicted product (ramps included)', value: `${fmt(o.predictedProductGPerL)} g/L` },
-    { label: 'P10 / P50 / P90 (setpoint held)', value: u ? `${fmt(u.p10)} / ${fmt(u.p50)} / ${fmt(u.p90)} g/L, ${u.draws} draws, seed ${u.seed}, ${u.parameterSpread === 'fit' ? 'fit covariance' : 'default spread'}` : 'Not run' },
+    { label: 'P10 / P50 / P90 (setpoint held)', value: u ? `${fmt(u.p10)} / ${fmt(u.p50)} / ${fmt(u.p90)} g/L, ${u.draws} draws, seed ${u.seed}, ${SPREAD_LABELS[u.parameterSpread]}` : 'Not run' },
     { label: 'Robust setpoint', value: u ? `${fmt(u.robustSetpointC)} °C (P10 ${fmt(u.robustP10)} g/L)` : '–' },
     { label: 'Activity left at the end', value: `${fmt(o.activityLeft * 100, 0)} %` },
     { label: 'Profit per reactor hour', value: fmt(o.profitPerH, 1) },
@@ -47,6 +49,7 @@ export function PlanSheet({ plan }: { plan: Plan }) {
       <Text tone="muted" testID="plan-meta">
         Plan {plan.id} · {plan.recipeName} in {plan.vesselName} · saved {plan.createdAt.replace('T', ' ').slice(0, 16)} UTC by {plan.createdBy}
       </Text>
+      <EvidenceNote evidence={o.kinetics.evidence} olderEvidence={plan.olderEvidence} showDisagreement testID="plan-evidence" />
       <View style={styles.actions} testID="plan-actions">
         <Button label="Print" variant="secondary" onPress={() => (Platform.OS === 'web' ? window.print() : undefined)} testID="plan-print" />
         <Button label="Export CSV" variant="secondary" onPress={() => Linking.openURL(`/api/plans/${plan.id}/export.csv`)} testID="plan-csv" />

@@ -9,6 +9,9 @@ import { useSession } from '../../hooks/use-session';
 import { useUncertainty } from '../../hooks/use-uncertainty';
 import { uncertaintyInput, type PlanEvaluation } from '../../planning';
 import { space, useBreakpoint } from '../../theme';
+import { CALIBRATION_READERS } from '../../contracts/rules';
+import { CalibrationReview } from '../calibration/calibration-review';
+import { EvidenceNote } from '../evidence/evidence-note';
 import { Button, Card, EmptyState, Text } from '../ui';
 import { ComparePanel, MAX_SCENARIOS, type Scenario } from './compare-panel';
 import { PlanInputsPanel } from './plan-inputs-panel';
@@ -19,8 +22,9 @@ import { usePlanner } from './use-planner';
 
 const SIDE_COLUMN = 360;
 
-// The uncertainty result belongs to the inputs it ran on; any change makes it stale.
-const runKey = (inputs: PlanInputs, settings: unknown) => JSON.stringify({ ...inputs, uncertainty: settings });
+// The uncertainty result belongs to the inputs and evidence it ran on; any change (an accepted calibration) makes it stale.
+const runKey = (inputs: PlanInputs, settings: unknown, evidence: { fitAssayId: number | null; calibrationId: number | null }) =>
+  JSON.stringify({ ...inputs, uncertainty: settings, fit: evidence.fitAssayId, calibration: evidence.calibrationId });
 
 function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redrawMs, computeMs, hasUncertainty }: {
   ev: PlanEvaluation;
@@ -44,10 +48,24 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
       <Text variant="figure" testID="recommended-setpoint" accessibilityLabel={`Recommended setpoint ${fmt(o.setpointC)} degrees Celsius`}>
         {staged ? o.stages!.map((s) => fmt(s.c)).join(' → ') : fmt(o.setpointC)} °C
       </Text>
-      <Text testID="recommended-product">
-        {fmt(o.predictedProductGPerL, 0)} g/L predicted with the heat-up ramp, {gain >= 0 ? `${fmt(gain * 100)} % more` : `${fmt(-gain * 100)} % less`} than{' '}
-        {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {fmt(o.profitPerH, 0)} per reactor hour
-      </Text>
+      {o.earlyFinish ? (
+        <>
+          <Text testID="recommended-product">
+            {fmt(o.predictedProductGPerL, 0)} g/L: all the substrate, converted by hour {fmt(o.earlyFinish.completeAtH)} of {fmt(inputs.batchH, 0)}
+            {Math.abs(o.setpointC - o.current.setpointC) < 0.05 ? ' at the current setpoint, so no change is recommended' : ''} · {fmt(o.activityLeft * 100, 0)} % activity left
+          </Text>
+          <Text tone="primary" weight="semibold" testID="early-finish">
+            A batch ended at hour {fmt(o.earlyFinish.completeAtH)} would earn {fmt(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour, against {fmt(o.earlyFinish.fullProfitPerH, 0)} for the full{' '}
+            {fmt(inputs.batchH, 0)} h.
+          </Text>
+        </>
+      ) : (
+        <Text testID="recommended-product">
+          {fmt(o.predictedProductGPerL, 0)} g/L predicted with the heat-up ramp, {gain >= 0 ? `${fmt(gain * 100)} % more` : `${fmt(-gain * 100)} % less`} than{' '}
+          {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {fmt(o.profitPerH, 0)} per reactor hour
+        </Text>
+      )}
+      <EvidenceNote evidence={o.kinetics.evidence} showDisagreement testID="planner-evidence" />
       {o.atBound ? (
         <Text tone="warning" testID="caution-bound">
           Held at the vessel’s {o.atBound === 'upper' ? 'maximum' : 'minimum'} of {fmt(o.atBound === 'upper' ? o.boundsC[1] : o.boundsC[0])} °C: never planned beyond it.
@@ -94,7 +112,7 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
   if (!detail.lots.length || !ctx || !computed)
     return <EmptyState title="No accepted lot" message={`${detail.enzyme.name} has no accepted lot to plan with. Procurement accepts lots on the Lots screen.`} />;
   const { ev, series, reasons } = computed;
-  const key = runKey(inputs, settings);
+  const key = runKey(inputs, settings, ctx.evidence);
   const run = uncertainty.run;
   const current = run.status === 'done' && run.key === key ? run.result : null;
   const lotNotAccepted = !detail.lots.some((l) => l.id === detail.recipe.lotId);
@@ -144,6 +162,9 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
       ))}
     </Card>
   );
+  const role = session?.user.role;
+  const calibration =
+    role && (CALIBRATION_READERS as readonly string[]).includes(role) ? <CalibrationReview recipeId={detail.recipe.id} lotId={inputs.lotId} canDecide={role === 'engineer'} /> : null;
   const rest = (
     <>
       <TimeCharts ev={ev} series={series} inputs={inputs} />
@@ -157,20 +178,24 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
     <Text tone="warning">The recipe’s lot {detail.recipe.lotCode} is no longer accepted; the planner uses an accepted lot of {detail.enzyme.name} instead.</Text>
   ) : null;
 
+  // The calibration review spans the full width under the planner: its charts and tables need the room.
   if (isWide)
     return (
-      <View style={styles.columns}>
-        <View style={styles.side}>
-          {inputsPanel}
-          {uncertaintyPanel}
+      <View style={styles.stack}>
+        <View style={styles.columns}>
+          <View style={styles.side}>
+            {inputsPanel}
+            {uncertaintyPanel}
+          </View>
+          <View style={styles.main}>
+            {notice}
+            {recommendation}
+            {setpointChart}
+            {reasonsCard}
+            {rest}
+          </View>
         </View>
-        <View style={styles.main}>
-          {notice}
-          {recommendation}
-          {setpointChart}
-          {reasonsCard}
-          {rest}
-        </View>
+        {calibration}
       </View>
     );
   // Phone: the answer and its chart first, then the inputs that move them.
@@ -182,6 +207,7 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
       {inputsPanel}
       {reasonsCard}
       {uncertaintyPanel}
+      {calibration}
       {rest}
     </View>
   );

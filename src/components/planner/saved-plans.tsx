@@ -25,7 +25,7 @@ export function SavedPlans({ recipeId }: { recipeId: number }) {
             <Button
               key={p.id}
               variant="ghost"
-              label={`Plan ${p.id} · ${what} °C · ${fmt(p.inputs.batchH, 0)} h · ${fmt(o.predictedProductGPerL, 0)} g/L · ${p.createdAt.slice(0, 16).replace('T', ' ')} UTC`}
+              label={`Plan ${p.id} · ${what} °C · ${fmt(p.inputs.batchH, 0)} h · ${fmt(o.predictedProductGPerL, 0)} g/L · ${p.createdAt.slice(0, 16).replace('T', ' ')} UTC${p.olderEvidence ? ' · computed on older evidence' : ''}`}
               onPress={() => router.push(`/planner/plan/${p.id}`)}
               testID={`saved-plan-${p.id}`}
             />

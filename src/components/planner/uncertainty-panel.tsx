@@ -32,7 +32,9 @@ export function UncertaintyPanel({ planner, ev, run, current, onStart, onCancel 
       <Text variant="small" tone="muted">
         {spread === 'fit'
           ? 'Lot parameters drawn jointly from the assay fit’s covariance.'
-          : `This lot has no assay fit yet: kd at the reference temperature varies ±${Math.round(DEFAULT_LN_KD_SD * 100)} % and Ed ±${Math.round(DEFAULT_ED_REL_SD * 100)} % (one standard deviation, independent), a stated default.`}
+          : spread === 'calibration'
+            ? 'Lot parameters drawn jointly from the accepted calibration’s covariance (kd and Ed; Vmax as calibrated).'
+            : `This lot has no assay fit yet: kd at the reference temperature varies ±${Math.round(DEFAULT_LN_KD_SD * 100)} % and Ed ±${Math.round(DEFAULT_ED_REL_SD * 100)} % (one standard deviation, independent), a stated default.`}
       </Text>
       <View style={styles.grid}>
         <NumberField label="Sensor bias sd" unit="°C" value={settings.sensorBiasSdC} step={0.1} min={0} max={5} onChange={on.bias} testID="input-bias" />

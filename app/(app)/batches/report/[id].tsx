@@ -58,6 +58,7 @@ function ReportBody({ id }: { id: number }) {
       <Row label="Started" value={`${utc(b.startedAt)} by ${b.startedBy}`} />
       <Row label="Closed" value={b.closedAt ? `${utc(b.closedAt)} by ${b.closedBy}${b.closeComment ? ` (${b.closeComment})` : ''}` : 'running'} />
       <Row label="Plan" value={`${p.source === 'released_plan' ? `released plan #${p.planId}` : 'recipe current setpoint'}: ${p.stages.map((x) => `${fmt(x.hours)} h at ${fmt(x.c)} °C`).join(', ')}; fill ${fmt(p.fillC, 0)} °C`} />
+      <Row label="Kinetics from" value={p.evidence ? p.evidence.text : 'not recorded (started before Yieldpoint kept where kinetics came from)'} />
       <Row label="Planned product" value={`${fmt(p.plannedProductGPerL)} g/L${p.p10GPerL !== null ? ` (P10 ${fmt(p.p10GPerL)})` : ''}`} />
       <Row label="Limits" value={`band ±${data.settings.toleranceC} °C · gap ${data.settings.gapLimitMin} min · vessel max ${p.vessel.maxC} °C`} />
       <Row label="Activity left" value={`${fmt(s.activityLeft * 100, 1)} %`} />
