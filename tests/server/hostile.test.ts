@@ -2,7 +2,7 @@ import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listApiRoutes, type ApiRoute } from '../../server/route-table';
 import type { Role } from '../../src/contracts/roles';
-import { startTestApp, type Client, type TestApp } from './harness';
+import { email, password, startTestApp, type Client, type TestApp } from './harness';
 
 // Hostile input against every write route the app has (discovered, not listed): generated bodies and ids must
 // never cause a 5xx or leak a stack trace or SQL, and a refused request must leave the database untouched.
@@ -173,5 +173,43 @@ describe('text that is not well-formed Unicode', () => {
     const res = await c.post('/api/vessels', { name: 'Tank 🌾 7', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 });
     expect(res.status).toBe(201);
     expect(res.body.name).toBe('Tank 🌾 7');
+  });
+});
+
+describe('a stranger guessing passwords cannot lock the account out', () => {
+  it('wrong passwords from many addresses slow the stranger, never the account’s own browser', async () => {
+    const app = await startTestApp({ signInLimit: { perAddress: 1000, perAccount: 5, windowMs: 15 * 60_000, maxDelayMs: 60_000 } });
+    try {
+      const login = (headers: Record<string, string>, pw: string) =>
+        fetch(`${app.base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-yieldpoint-client': 'test', ...headers }, body: JSON.stringify({ email: email('supervisor'), password: pw }) });
+      // The supervisor's browser signed in yesterday and keeps its device cookie.
+      const first = await login({}, password('supervisor'));
+      expect(first.status).toBe(201);
+      const device = first.headers.getSetCookie().find((c) => c.startsWith('yp_device='))!.split(';')[0]!;
+      // A stranger sprays guesses at the account from 200 spoofed addresses, keeping pace with the slow-down.
+      let wrong = 0;
+      let slowed = 0;
+      for (let i = 0; i < 200; i++) {
+        const r = await login({ 'x-forwarded-for': `10.9.${i >> 8}.${i & 255}` }, `guess-${i}`);
+        if (r.status === 401) wrong++;
+        else if (r.status === 429) slowed++;
+        if (i % 20 === 19) app.clock.advanceMinutes(1);
+      }
+      // Ten minutes of spraying bought 5 free guesses plus about one a minute at the cap.
+      expect(wrong).toBeLessThan(25);
+      expect(slowed).toBeGreaterThan(170);
+      await login({ 'x-forwarded-for': '10.9.9.9' }, 'one-more-guess');
+      // A browser without the device cookie (or a forged one) waits at most the cap, told how long and what to do.
+      for (const cookie of [undefined, 'yp_device=abc.def']) {
+        const fresh = await login(cookie ? { cookie } : {}, password('supervisor'));
+        expect(fresh.status).toBe(429);
+        expect(Number(fresh.headers.get('retry-after'))).toBeLessThanOrEqual(60);
+        expect(((await fresh.json()) as { error: { message: string } }).error.message).toMatch(/reset link/);
+      }
+      // The account's own browser signs in at once.
+      expect((await login({ cookie: device }, password('supervisor'))).status).toBe(201);
+    } finally {
+      await app.close();
+    }
   });
 });
