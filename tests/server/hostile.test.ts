@@ -1,7 +1,14 @@
 import fc from 'fast-check';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { installationSecret } from '../../server/installation-secrets';
+import { listAudit } from '../../server/repositories/audit';
+import { findSubscription } from '../../server/repositories/billing';
 import { listApiRoutes, type ApiRoute } from '../../server/route-table';
 import type { Role } from '../../src/contracts/roles';
+import { startBillingTestApp } from './billing-harness';
 import { email, password, startTestApp, type Client, type TestApp } from './harness';
 
 // Hostile input against every write route the app has (discovered, not listed): generated bodies and ids must
@@ -210,6 +217,48 @@ describe('a stranger guessing passwords cannot lock the account out', () => {
       expect((await login({ cookie: device }, password('supervisor'))).status).toBe(201);
     } finally {
       await app.close();
+    }
+  });
+});
+
+describe('payment events cannot be forged in the default set-up', () => {
+  it('each installation has its own webhook secret (kept across restarts), never the source’s', async () => {
+    const [a, b] = [fs.mkdtempSync(path.join(os.tmpdir(), 'yp-inst-')), fs.mkdtempSync(path.join(os.tmpdir(), 'yp-inst-'))];
+    const secretA = installationSecret(path.join(a, 'yieldpoint.db'), '.webhook-secret');
+    expect(installationSecret(path.join(a, 'yieldpoint.db'), '.webhook-secret').equals(secretA)).toBe(true);
+    expect(installationSecret(path.join(b, 'yieldpoint.db'), '.webhook-secret').equals(secretA)).toBe(false);
+    expect(secretA.length).toBe(32);
+    expect(fs.statSync(path.join(a, '.webhook-secret')).mode & 0o077).toBe(0);
+  });
+
+  it('refuses events signed with the former constant, seeds unguessable customer ids, and keeps no foreign pay link', async () => {
+    const app = await startBillingTestApp();
+    try {
+      const row = findSubscription(app.db, 1)!;
+      const other = findSubscription(app.db, 2)!;
+      expect(row.stripeCustomerId).not.toMatch(/site1$/);
+      expect(row.stripeCustomerId).not.toBe(other.stripeCustomerId!.replace(/2$/, '1'));
+      const event = (type: string, object: object) => ({ id: `evt_forged_${type}`, object: 'event', api_version: '2026-02-25.clover', created: Math.floor(Date.now() / 1000), type, data: { object }, livemode: false, pending_webhooks: 1, request: { id: null, idempotency_key: null } });
+      const deliver = (e: object, secret: string) => {
+        const payload = JSON.stringify(e);
+        const header = app.billing.stripe.webhooks.generateTestHeaderString({ payload, secret });
+        return fetch(`${app.base}/api/billing/webhook`, { method: 'POST', headers: { 'content-type': 'application/json', 'stripe-signature': header }, body: payload });
+      };
+      const sub = structuredClone(app.fake.get(row.stripeSubscriptionId!)!);
+      sub.items.data[0].quantity = 500;
+      expect((await deliver(event('customer.subscription.updated', sub), 'whsec_yieldpoint_local_fake_secret')).status).toBe(400);
+      expect(findSubscription(app.db, 1)!.seats).toBe(row.seats);
+
+      // Even a correctly signed invoice keeps only a link to the provider's own payment page.
+      const now = Math.floor(Date.now() / 1000);
+      const invoice = { id: 'in_forged_1', object: 'invoice', customer: row.stripeCustomerId, number: 'X-1', status: 'open', currency: 'eur', amount_due: 100, amount_paid: 0, lines: { object: 'list', data: [], has_more: false }, period_start: now, period_end: now, created: now, hosted_invoice_url: 'https://pay.example.net/steal' };
+      expect((await deliver(event('invoice.finalized', invoice), app.billing.webhookSecret)).status).toBe(200);
+      const admin = await app.signIn('admin');
+      const stored = (await admin.get('/api/billing/invoices')).body.invoices.find((i: { number: string }) => i.number === 'X-1');
+      expect(stored.payUrl).toBeNull();
+      expect(listAudit(app.db, 1, { action: 'billing.pay-link.refused' })[0]!.newValue).toEqual({ host: 'pay.example.net' });
+    } finally {
+      await app.closeAll();
     }
   });
 });
