@@ -1,4 +1,4 @@
-import { and, desc, eq } from 'drizzle-orm';
+import { and, asc, desc, eq } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { changeRequests, plans, recipes, signatures, users, vessels } from '../../db/schema';
 import type { ChangeStatus, SetpointSide } from '../../src/contracts/change-requests';
@@ -44,4 +44,14 @@ export const listActiveSupervisors = (db: Db, siteId: number) =>
     .select()
     .from(users)
     .where(and(eq(users.siteId, siteId), eq(users.role, 'supervisor'), eq(users.isActive, true)))
+    .all();
+
+/** A recipe's approved changes in the order they were decided, with each plan's setpoint. */
+export const listApprovedChanges = (db: Db, siteId: number, recipeId: number) =>
+  db
+    .select({ planId: changeRequests.planId, effectiveFrom: changeRequests.effectiveFrom, replaced: changeRequests.replaced, setpointC: plans.setpointC })
+    .from(changeRequests)
+    .innerJoin(plans, eq(changeRequests.planId, plans.id))
+    .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.recipeId, recipeId), eq(changeRequests.status, 'approved')))
+    .orderBy(asc(changeRequests.decidedAt), asc(changeRequests.id))
     .all();

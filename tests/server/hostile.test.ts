@@ -7,6 +7,7 @@ import { installationSecret } from '../../server/installation-secrets';
 import { listAudit } from '../../server/repositories/audit';
 import { findSubscription } from '../../server/repositories/billing';
 import { listApiRoutes, type ApiRoute } from '../../server/route-table';
+import { isCalendarDay } from '../../src/contracts/calendar-day';
 import type { Role } from '../../src/contracts/roles';
 import { startBillingTestApp } from './billing-harness';
 import { email, password, startTestApp, type Client, type TestApp } from './harness';
@@ -260,5 +261,23 @@ describe('payment events cannot be forged in the default set-up', () => {
     } finally {
       await app.closeAll();
     }
+  });
+});
+
+describe('dates are calendar dates', () => {
+  // Days per month by the Gregorian rule (ISO 8601's calendar): leap years divisible by 4, not by 100 unless by 400.
+  const daysIn = (y: number, m: number) => [31, y % 4 === 0 && (y % 100 !== 0 || y % 400 === 0) ? 29 : 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31][m - 1]!;
+  it('accepts exactly the days the calendar has (generated years, months 0-19, days 0-39)', () => {
+    const pad = (n: number, w: number) => String(n).padStart(w, '0');
+    fc.assert(
+      fc.property(fc.integer({ min: 1000, max: 9999 }), fc.integer({ min: 0, max: 19 }), fc.integer({ min: 0, max: 39 }), (y, m, d) => {
+        const real = m >= 1 && m <= 12 && d >= 1 && d <= daysIn(y, m);
+        return isCalendarDay(`${y}-${pad(m, 2)}-${pad(d, 2)}`) === real;
+      }),
+      { seed: SEED, numRuns: 5000 },
+    );
+    expect(isCalendarDay('2024-02-29')).toBe(true);
+    expect(isCalendarDay('2100-02-29')).toBe(false);
+    expect(isCalendarDay('2000-02-29')).toBe(true);
   });
 });
