@@ -5,6 +5,7 @@ import { createApp } from './app';
 import { systemClock } from './clock';
 import { readEnv } from './env';
 import { startIntegrations } from './integrations';
+import { sealAudit } from './services/audit-verify';
 import { proposeDemoChange } from './services/demo-proposal';
 import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
@@ -22,6 +23,16 @@ async function main() {
   const db = openDb(env.databaseFile);
   migrateDb(db);
   const seeded = env.seedDemo && isEmpty(db) ? seedDemo(db, { now: systemClock.now() }) : null;
+  // Signed checkpoints of the audit chains outside the database: at start, every AUDIT_CHECKPOINT_MINUTES, at stop.
+  const seal = () => {
+    try {
+      sealAudit(db, systemClock.now());
+    } catch (err) {
+      console.error(`[${new Date().toISOString()}] audit checkpoint not written: ${(err as Error).message}`);
+    }
+  };
+  seal();
+  setInterval(seal, env.auditCheckpointMinutes * 60_000);
   const integrations = await startIntegrations(db, { ...env, fakeWebhookSecret: () => `whsec_${installationSecret(env.databaseFile, '.webhook-secret').toString('hex')}` });
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const localUrl = `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
@@ -56,6 +67,7 @@ async function main() {
   server.keepAliveTimeout = 65_000;
   const stop = () => {
     server.close(() => {
+      seal();
       void Promise.all([mail.stop(), integrations.close()]).finally(() => {
         db.$client.close();
         process.exit(0);

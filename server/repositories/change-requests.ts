@@ -55,3 +55,7 @@ export const listApprovedChanges = (db: Db, siteId: number, recipeId: number) =>
     .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.recipeId, recipeId), eq(changeRequests.status, 'approved')))
     .orderBy(asc(changeRequests.decidedAt), asc(changeRequests.id))
     .all();
+
+/** Every change request and signature of a site (the audit check compares each with its audited state). */
+export const listAllSiteChangeRequests = (db: Db, siteId: number) => db.select().from(changeRequests).where(eq(changeRequests.siteId, siteId)).orderBy(changeRequests.id).all();
+export const listSiteSignatures = (db: Db, siteId: number) => db.select().from(signatures).where(eq(signatures.siteId, siteId)).orderBy(signatures.id).all();

@@ -1,9 +1,14 @@
 import fc from 'fast-check';
+import crypto from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { migrateDb, openDb } from '../../db/client';
 import { installationSecret } from '../../server/installation-secrets';
+import { auditKeyOf, eventHash } from '../../server/services/audit';
+import { appendCheckpoint } from '../../server/services/audit-checkpoints';
+import { verifyAudit } from '../../server/services/audit-verify';
 import { listAudit } from '../../server/repositories/audit';
 import { findSubscription } from '../../server/repositories/billing';
 import { listApiRoutes, type ApiRoute } from '../../server/route-table';
@@ -279,5 +284,149 @@ describe('dates are calendar dates', () => {
     expect(isCalendarDay('2024-02-29')).toBe(true);
     expect(isCalendarDay('2100-02-29')).toBe(false);
     expect(isCalendarDay('2000-02-29')).toBe(true);
+  });
+});
+
+describe('the audit trail cannot be rewritten without a trace', () => {
+  let a: TestApp;
+  let admin: Client;
+  const verify = async () => (await admin.get('/api/audit-events/verify')).body;
+  const seal = async () => expect((await admin.post('/api/audit-events/checkpoints', {})).status).toBe(201);
+  const raw = () => a.db.$client;
+  beforeAll(async () => {
+    a = await startTestApp();
+    admin = await a.signIn('admin');
+  });
+  afterAll(() => a.close());
+
+  it('an edited event, its later links recomputed without the key, is found', async () => {
+    const eng = await a.signIn('engineer');
+    await eng.get('/api/session');
+    const rows = raw().prepare('select * from audit_events where site_id = 1 order by id').all() as any[];
+    expect(rows.length).toBeGreaterThanOrEqual(2);
+    // The attacker knows the published recipe (plain SHA-256 over the same fields) but not the key.
+    const link = (r: any, prev: string) => crypto.createHash('sha256').update(JSON.stringify([r.site_id, r.user_id, r.actor, r.action, r.entity, r.entity_id, r.old_value == null ? null : JSON.parse(r.old_value), r.new_value == null ? null : JSON.parse(r.new_value), r.at, prev])).digest('hex');
+    const snapshot = rows.map((r) => ({ ...r }));
+    let prev = rows[0].prev_hash;
+    rows[0].actor = 'someone-else@haldenbay.test';
+    for (const r of rows) {
+      const h = link(r, prev);
+      raw().prepare('update audit_events set actor = ?, prev_hash = ?, hash = ? where id = ?').run(r.actor, prev, h, r.id);
+      prev = h;
+    }
+    expect(await verify()).toMatchObject({ ok: false, firstBrokenId: rows[0].id });
+    for (const r of snapshot) raw().prepare('update audit_events set actor = ?, prev_hash = ?, hash = ? where id = ?').run(r.actor, r.prev_hash, r.hash, r.id);
+    expect((await verify()).ok).toBe(true);
+  });
+
+  it('deleting the newest events is found against the signed checkpoint; a rebuilt chain even with the key', async () => {
+    await seal();
+    const before = await verify();
+    expect(before).toMatchObject({ ok: true, checkpoints: 1 });
+    const kept = raw().prepare('select * from audit_events where site_id = 1 order by id desc limit 2').all() as any[];
+    raw().prepare('delete from audit_events where id in (?, ?)').run(kept[0].id, kept[1].id);
+    const after = await verify();
+    expect(after.firstBrokenId).toBeNull(); // the links that are left are whole
+    expect(after.ok).toBe(false);
+    expect(after.problems[0]).toMatchObject({ kind: 'checkpoint', eventId: kept[0].id });
+    const put = raw().prepare('insert into audit_events (id, site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (@id, @site_id, @user_id, @actor, @action, @entity, @entity_id, @old_value, @new_value, @at, @prev_hash, @hash)');
+    for (const r of kept.reverse()) put.run(r);
+    expect((await verify()).ok).toBe(true);
+
+    // Someone holding the key edits the newest sealed event and recomputes its link: the chain passes, the checkpoint does not.
+    const head = raw().prepare('select * from audit_events where site_id = 1 order by id desc limit 1').get() as any;
+    const edited = { siteId: 1, userId: head.user_id, actor: 'forger@haldenbay.test', action: head.action, entity: head.entity, entityId: head.entity_id, oldValue: head.old_value == null ? null : JSON.parse(head.old_value), newValue: head.new_value == null ? null : JSON.parse(head.new_value), at: head.at, prevHash: head.prev_hash };
+    raw().prepare('update audit_events set actor = ?, hash = ? where id = ?').run(edited.actor, eventHash(auditKeyOf(a.db), edited), head.id);
+    const rebuilt = await verify();
+    expect(rebuilt.firstBrokenId).toBeNull();
+    expect(rebuilt.problems.map((p: { kind: string }) => p.kind)).toEqual(['checkpoint']);
+    raw().prepare('update audit_events set actor = ?, hash = ? where id = ?').run(head.actor, head.hash, head.id);
+  });
+
+  it('a forged checkpoint line is reported, not trusted', async () => {
+    appendCheckpoint(raw(), crypto.randomBytes(32), { siteId: 1, events: 1, lastId: 1, head: 'f'.repeat(64), at: a.clock.now().toISOString() });
+    expect((await verify()).problems).toEqual([{ kind: 'checkpoint', eventId: null, message: '1 checkpoint line does not carry a valid signature' }]);
+  });
+
+  it('edited business rows are found against their last audited state: a lot decision, a printed name, a change request', async () => {
+    // Start from a clean slate of checkpoints for this site (the forged line above stays reported otherwise).
+    const fresh = await startTestApp();
+    try {
+      const [proc, eng, sup, adm] = await Promise.all([fresh.signIn('procurement'), fresh.signIn('engineer'), fresh.signIn('supervisor'), fresh.signIn('admin')]);
+      const check = async () => (await adm.get('/api/audit-events/verify')).body;
+      const lot = ((await proc.get('/api/lots')).body.lots as { id: number; status: string }[]).find((l) => l.status === 'quarantined')!;
+      expect((await proc.post(`/api/lots/${lot.id}/decision`, { decision: 'reject', reason: 'Half-life below specification' })).status).toBe(200);
+      const rec = (await eng.get(`/api/recipes/${((await eng.get('/api/recipes')).body.recipes as { id: number }[])[0]!.id}`)).body.recipe;
+      const plan = (await eng.post('/api/plans', { recipeId: rec.id, lotId: rec.lotId, batchH: rec.batchH, turnaroundH: rec.turnaroundH, doseGPerL: rec.doseGPerL, s0GPerL: rec.s0GPerL, kmGPerL: rec.kmGPerL, productPricePerKg: rec.productPricePerKg, enzymePricePerKg: rec.enzymePricePerKg, heatingCostPerDegCHour: rec.heatingCostPerDegCHour, currentSetpointC: rec.currentSetpointC, strategy: 'isothermal', stages: 3, maxStepC: 3, uncertainty: null })).body;
+      const cr = (await eng.post('/api/change-requests', { planId: plan.id, rationale: 'The assays support a warmer setpoint.', expectedEffect: 'More product', effectiveFrom: '2026-12-20' })).body;
+      expect((await sup.post(`/api/change-requests/${cr.id}/signatures`, { password: password('supervisor'), meaning: 'rejected', comment: 'Not yet' })).status).toBe(201);
+      expect(await check()).toMatchObject({ ok: true, problems: [] });
+      const db = fresh.db.$client;
+      db.prepare("update lots set status = 'accepted', decision_reason = 'Meets specification' where id = ?").run(lot.id);
+      db.prepare("update signatures set printed_name = 'Somebody Else' where change_request_id = ?").run(cr.id);
+      db.prepare("update change_requests set status = 'approved' where id = ?").run(cr.id);
+      const found = await check();
+      expect(found.ok).toBe(false);
+      expect(found.firstBrokenId).toBeNull();
+      const messages = found.problems.map((p: { message: string }) => p.message).join('\n');
+      expect(messages).toMatch(/reads accepted \("Meets specification"\); its audited decision was rejected/);
+      expect(messages).toMatch(/printedName reads "Somebody Else", signed as "Marit Oyelaran"/);
+      expect(messages).toMatch(new RegExp(`Change request ${cr.id} reads approved; its last audited state is rejected`));
+    } finally {
+      await fresh.close();
+    }
+  });
+});
+
+describe('databases written before the chain was keyed', () => {
+  it('re-links a whole legacy chain once with the key (audited), and leaves a broken one reported', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yp-legacy-'));
+    const file = path.join(dir, 'yieldpoint.db');
+    const first = openDb(file);
+    migrateDb(first);
+    const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
+    const ins = first.$client.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, null, ?, ?, ?)');
+    // Site-less chain: whole. Written as the earlier code did (plain SHA-256 links).
+    let prev = '0'.repeat(64);
+    for (let i = 0; i < 5; i++) {
+      const at = new Date(Date.UTC(2026, 10, 1, 8, i)).toISOString();
+      const h = sha([null, null, `u${i}@x.test`, 'sign-in.failed', 'session', null, null, null, at, prev]);
+      ins.run(null, `u${i}@x.test`, 'sign-in.failed', 'session', at, prev, h);
+      prev = h;
+    }
+    first.$client.close();
+    fs.rmSync(path.join(dir, '.audit-key'), { force: true });
+
+    const second = openDb(file);
+    const result = verifyAudit(second, null);
+    expect(result).toMatchObject({ ok: true, events: 6, firstBrokenId: null });
+    const last = second.$client.prepare('select action, new_value as v from audit_events order by id desc limit 1').get() as { action: string; v: string };
+    expect(last.action).toBe('audit.rekeyed');
+    expect(JSON.parse(last.v)).toEqual({ events: 5 });
+    expect(fs.existsSync(path.join(dir, '.audit-key'))).toBe(true);
+    second.$client.close();
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('does not re-link a legacy chain that is already broken (the break stays visible)', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yp-legacy-'));
+    const file = path.join(dir, 'yieldpoint.db');
+    const first = openDb(file);
+    migrateDb(first);
+    const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
+    const ins = first.$client.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (null, null, ?, ?, ?, null, null, null, ?, ?, ?)');
+    let prev = '0'.repeat(64);
+    for (let i = 0; i < 4; i++) {
+      const at = new Date(Date.UTC(2026, 10, 1, 8, i)).toISOString();
+      const h = sha([null, null, `u${i}@x.test`, 'sign-in.failed', 'session', null, null, null, at, prev]);
+      ins.run(`u${i}@x.test`, 'sign-in.failed', 'session', at, prev, h);
+      prev = h;
+    }
+    first.$client.prepare("update audit_events set actor = 'edited@x.test' where id = 2").run();
+    first.$client.close();
+    const second = openDb(file);
+    expect(verifyAudit(second, null)).toMatchObject({ ok: false, events: 4, firstBrokenId: 1 });
+    second.$client.close();
+    fs.rmSync(dir, { recursive: true, force: true });
   });
 });

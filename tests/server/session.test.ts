@@ -1,6 +1,6 @@
 import bcrypt from 'bcryptjs';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { verifyAudit } from '../../server/services/audit';
+import { verifyAudit } from '../../server/services/audit-verify';
 import { BCRYPT_COST, hashPassword } from '../../server/services/auth';
 import { listAudit } from '../../server/repositories/audit';
 import { email, password, startTestApp, type TestApp } from './harness';
@@ -210,9 +210,9 @@ describe('audit chain', () => {
     await t.signIn('admin');
     await t.signIn('engineer');
     await t.client().post('/api/session', { email: email('engineer'), password: 'wrong' });
-    expect(verifyAudit(t.db, 1)).toEqual({ ok: true, events: 3 });
+    expect(verifyAudit(t.db, 1)).toMatchObject({ ok: true, events: 3 });
     const second = listAudit(t.db, 1)[1]!;
     t.db.$client.prepare('update audit_events set actor = ? where id = ?').run('someone-else@haldenbay.test', second.id);
-    expect(verifyAudit(t.db, 1)).toEqual({ ok: false, events: 3, firstBrokenId: second.id });
+    expect(verifyAudit(t.db, 1)).toMatchObject({ ok: false, events: 3, firstBrokenId: second.id });
   });
 });
