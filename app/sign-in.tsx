@@ -69,6 +69,9 @@ export default function SignIn() {
               </Text>
             ) : null}
             <Button label="Sign in" testID="sign-in-submit" onPress={submit} isBusy={isSubmitting} />
+            <Text tone="muted" testID="sign-in-locked-out">
+              Forgotten your password, or told to wait? After a few wrong passwords each try waits a little longer (at most a minute); a browser you signed in with before is not held up. Your site admin can send you a reset link by e-mail.
+            </Text>
           </Card>
         </View>
       </ScrollView>

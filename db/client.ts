@@ -24,6 +24,9 @@ export function openDb(file: string): Db {
   return drizzle(sqlite, { schema }) as Db;
 }
 
+/** The SQLite connection behind a handle; a transaction handle (inside writeTx) reaches it through its session. */
+export const clientOf = (db: Db): Database.Database => db.$client ?? (db as unknown as { session: { client: Database.Database } }).session.client;
+
 /** Applies the committed drizzle-kit migrations. */
 export function migrateDb(db: Db): void {
   migrate(db, { migrationsFolder: MIGRATIONS });

@@ -1,3 +1,4 @@
+import crypto from 'node:crypto';
 import bcrypt from 'bcryptjs';
 import { sql } from 'drizzle-orm';
 import { batchHours, batchProgram, batchStatus, plannedAt, proposeCalibration } from '../src/batches';
@@ -219,7 +220,11 @@ export const DEMO_SITE_NAME = 'Halden Bay Biorefinery';
 /** The demo licence: 8 seats (the 5 demo users take 5), monthly, with two paid invoices. Invented. */
 export const DEMO_SEATS = 8;
 const DEMO_SEAT_CENTS = 4900;
-export const demoStripeIds = (siteId: number) => ({ customer: `cus_demo_site${siteId}`, subscription: `sub_demo_site${siteId}`, item: `si_demo_site${siteId}` });
+// Random per seed: a guessable customer id is what a forged payment event names to reach a site.
+const demoStripeIds = () => {
+  const tag = crypto.randomBytes(12).toString('base64url');
+  return { customer: `cus_demo_${tag}`, subscription: `sub_demo_${tag}`, item: `si_demo_${tag}` };
+};
 const DEMO_INVOICES = [
   { number: 'YP-DEMO-0001', periodStart: '2026-10-01T00:00:00.000Z', periodEnd: '2026-11-01T00:00:00.000Z' },
   { number: 'YP-DEMO-0002', periodStart: '2026-11-01T00:00:00.000Z', periodEnd: '2026-12-01T00:00:00.000Z' },
@@ -346,7 +351,7 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       }
     }
     proposeDemoCalibration(tx, site.id, recipeRows.get('Lactose-free milk base')!);
-    const ids = demoStripeIds(site.id);
+    const ids = demoStripeIds();
     tx.insert(subscriptions)
       .values({
         siteId: site.id,

@@ -35,6 +35,7 @@ import { usersRouter } from './routes/users';
 import { vesselsRouter } from './routes/vessels';
 import type { AuthConfig } from './services/auth';
 import type { Billing } from './services/billing-provider';
+import type { SignInLimit } from './services/sign-in-throttle';
 import { createFileStore, type FileStore } from './file-store';
 
 export type AppDeps = {
@@ -44,7 +45,7 @@ export type AppDeps = {
   cookieSecure?: boolean;
   /** Folder of the exported web app; omitted in API tests. */
   webDir?: string;
-  signInLimit?: { perAddress: number; perAccount: number; windowMs: number };
+  signInLimit?: SignInLimit;
   /** Base of links in e-mails and of payment return pages. */
   /** PUBLIC_URL when set: the address for mail links and the payment page's return. */
   publicUrl?: string;
@@ -58,7 +59,10 @@ export type AppDeps = {
   files?: FileStore;
 };
 
-const DEFAULT_SIGN_IN_LIMIT = { perAddress: 30, perAccount: 10, windowMs: 15 * 60_000 };
+// Failed sign-ins only. 300 per address per 15 min: a shift of up to 60 people behind one plant address, each
+// mistyping up to 5 times at shift change, stays under it; guessing one account is held back per account below it.
+// 5 free failures per account, then waits doubling from 1 s to 60 s (README, Sign-in limits).
+const DEFAULT_SIGN_IN_LIMIT: SignInLimit = { perAddress: 300, perAccount: 5, windowMs: 15 * 60_000, maxDelayMs: 60_000 };
 // Requests started per turn of the event loop: about 10 ms of work, so new connections are accepted every few ms
 // under full load (see fairTurns); measured with `npm run load` at 200 connections.
 const REQUESTS_PER_TURN = 16;

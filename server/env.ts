@@ -10,6 +10,7 @@ const Env = z.object({
   COOKIE_SECURE: z.enum(['0', '1']).default('0'),
   SESSION_IDLE_MINUTES: z.coerce.number().positive().default(12 * 60),
   SESSION_ABSOLUTE_HOURS: z.coerce.number().positive().default(7 * 24),
+  AUDIT_CHECKPOINT_MINUTES: z.coerce.number().positive().default(15),
   WEB_DIR: z.string().default('dist'),
   SKIP_WEB_BUILD: z.enum(['0', '1']).default('0'),
   SEED_DEMO: z.enum(['0', '1']).default('1'),
@@ -46,6 +47,7 @@ export type ServerEnv = {
   cookieSecure: boolean;
   sessionIdleMinutes: number;
   sessionAbsoluteHours: number;
+  auditCheckpointMinutes: number;
   webDir: string;
   skipWebBuild: boolean;
   seedDemo: boolean;
@@ -71,6 +73,7 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): ServerEnv {
     cookieSecure: e.COOKIE_SECURE === '1',
     sessionIdleMinutes: e.SESSION_IDLE_MINUTES,
     sessionAbsoluteHours: e.SESSION_ABSOLUTE_HOURS,
+    auditCheckpointMinutes: e.AUDIT_CHECKPOINT_MINUTES,
     webDir: e.WEB_DIR,
     skipWebBuild: e.SKIP_WEB_BUILD === '1',
     seedDemo: e.SEED_DEMO === '1',

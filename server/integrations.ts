@@ -1,14 +1,13 @@
+import crypto from 'node:crypto';
 import type { Db } from '../db/client';
 import type { BillingEnv, MailEnv } from './env';
 import { startSmtpSink, type SmtpSink } from './fakes/smtp-sink';
-import { FAKE_API_KEY, startStripeFake, type StripeFake } from './fakes/stripe-fake';
+import { startStripeFake, type StripeFake } from './fakes/stripe-fake';
 import { listLinkedSubscriptions } from './repositories/billing';
 import { findSite } from './repositories/sites';
 import { createBilling, stripeClient, type Billing } from './services/billing-provider';
 import { smtpTransport, type MailTransport } from './services/mail';
 
-/** The local fake's webhook secret; real Stripe's comes from STRIPE_WEBHOOK_SECRET. */
-export const FAKE_WEBHOOK_SECRET = 'whsec_yieldpoint_local_fake_secret';
 
 export type Integrations = {
   billing: Billing;
@@ -25,14 +24,13 @@ export type Integrations = {
  * Payment provider and mail relay from the configuration, or the local fakes (loopback only) when none is
  * configured. With the fake, subscriptions the database already holds (the demo seed) are handed to it.
  */
-export async function startIntegrations(db: Db, cfg: { billing: BillingEnv; mail: MailEnv }): Promise<Integrations> {
+export async function startIntegrations(db: Db, cfg: { billing: BillingEnv; mail: MailEnv; fakeWebhookSecret: () => string }): Promise<Integrations> {
   let stripeFake: StripeFake | null = null;
   let billing: Billing;
   if (cfg.billing.mode === 'stripe') {
-    billing = createBilling(stripeClient(cfg.billing.secretKey), cfg.billing.webhookSecret);
+    billing = createBilling(stripeClient(cfg.billing.secretKey), cfg.billing.webhookSecret, STRIPE_PAY_ORIGINS);
   } else {
-    stripeFake = await startStripeFake({ port: cfg.billing.fakePort, webhookSecret: FAKE_WEBHOOK_SECRET });
-    billing = createBilling(stripeClient(FAKE_API_KEY, { host: '127.0.0.1', port: stripeFake.port, protocol: 'http' }), FAKE_WEBHOOK_SECRET);
+    ({ fake: stripeFake, billing } = await startFakeBilling({ port: cfg.billing.fakePort, webhookSecret: cfg.fakeWebhookSecret() }));
     await handOverToFake(db, stripeFake, billing);
   }
   let smtpSink: SmtpSink | null = null;
@@ -55,6 +53,20 @@ export async function startIntegrations(db: Db, cfg: { billing: BillingEnv; mail
       await smtpSink?.close();
     },
   };
+}
+
+// Where Stripe's own payment pages live (hosted invoices, Checkout); from Stripe's documentation as remembered.
+const STRIPE_PAY_ORIGINS = ['https://checkout.stripe.com', 'https://invoice.stripe.com', 'https://pay.stripe.com'];
+
+/**
+ * The local fake and the SDK client pointed at it. The webhook secret is the installation's (never a constant
+ * in the source) and the API key is random per start, so no one can sign events or drive the fake by reading the code.
+ */
+export async function startFakeBilling(opts: { port?: number; webhookSecret: string }): Promise<{ fake: StripeFake; billing: Billing }> {
+  const apiKey = `sk_test_local_${crypto.randomBytes(18).toString('base64url')}`;
+  const fake = await startStripeFake({ port: opts.port ?? 0, webhookSecret: opts.webhookSecret, apiKey });
+  const billing = createBilling(stripeClient(apiKey, { host: '127.0.0.1', port: fake.port, protocol: 'http' }), opts.webhookSecret, [new URL(fake.url).origin]);
+  return { fake, billing };
 }
 
 /** Gives the fake the customers and subscriptions the database refers to, so they can be changed there. */

@@ -1,5 +1,3 @@
-import crypto from 'node:crypto';
-import fs from 'node:fs';
 import path from 'node:path';
 import { migrateDb, openDb } from '../db/client';
 import { DEMO_USERS, isEmpty, seedDemo } from '../db/seed';
@@ -7,23 +5,17 @@ import { createApp } from './app';
 import { systemClock } from './clock';
 import { readEnv } from './env';
 import { startIntegrations } from './integrations';
+import { sealAudit } from './services/audit-verify';
 import { proposeDemoChange } from './services/demo-proposal';
 import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
 import { createFileStore } from './file-store';
+import { installationSecret } from './installation-secrets';
 
 const root = path.resolve(__dirname, '..');
 
 /** A configured secret, else one kept beside the database so sign-ins survive a restart. */
-function sessionSecret(configured: Uint8Array | null, databaseFile: string): Uint8Array {
-  if (configured) return configured;
-  const file = path.join(path.dirname(path.resolve(databaseFile)), '.session-secret');
-  if (!fs.existsSync(file)) {
-    fs.mkdirSync(path.dirname(file), { recursive: true });
-    fs.writeFileSync(file, crypto.randomBytes(32).toString('base64'), { mode: 0o600 });
-  }
-  return Buffer.from(fs.readFileSync(file, 'utf8'), 'base64');
-}
+const sessionSecret = (configured: Uint8Array | null, databaseFile: string): Uint8Array => configured ?? installationSecret(databaseFile, '.session-secret');
 
 async function main() {
   const env = readEnv();
@@ -31,7 +23,17 @@ async function main() {
   const db = openDb(env.databaseFile);
   migrateDb(db);
   const seeded = env.seedDemo && isEmpty(db) ? seedDemo(db, { now: systemClock.now() }) : null;
-  const integrations = await startIntegrations(db, env);
+  // Signed checkpoints of the audit chains outside the database: at start, every AUDIT_CHECKPOINT_MINUTES, at stop.
+  const seal = () => {
+    try {
+      sealAudit(db, systemClock.now());
+    } catch (err) {
+      console.error(`[${new Date().toISOString()}] audit checkpoint not written: ${(err as Error).message}`);
+    }
+  };
+  seal();
+  setInterval(seal, env.auditCheckpointMinutes * 60_000);
+  const integrations = await startIntegrations(db, { ...env, fakeWebhookSecret: () => `whsec_${installationSecret(env.databaseFile, '.webhook-secret').toString('hex')}` });
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const localUrl = `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
   if (seeded) proposeDemoChange({ db, clock: systemClock, mail, publicUrl: env.publicUrl ?? localUrl }, seeded.siteId);
@@ -53,7 +55,7 @@ async function main() {
     integrations.appListening(`http://${env.host === '0.0.0.0' ? '127.0.0.1' : env.host}:${port}`);
     mail.kick();
     console.log(`\nYieldpoint is running at http://localhost:${port}`);
-    if (integrations.stripeFake) console.log(`Payments: local fake Stripe at ${integrations.stripeFake.url} (test card 4242 4242 4242 4242)`);
+    if (integrations.stripeFake) console.log(`Payments: local fake Stripe at ${integrations.stripeFake.url} (test card 4242 4242 4242 4242; API key for /_fake calls ${integrations.stripeFake.apiKey})`);
     if (integrations.smtpSink) console.log(`Mail: local sink on 127.0.0.1:${integrations.smtpSink.port}, messages kept in ${path.resolve(env.mail.mode === 'sink' ? env.mail.sinkDir : '')}`);
     console.log(`Database: ${path.resolve(env.databaseFile)}${seeded ? ' (demo site seeded)' : ''}`);
     if (env.seedDemo) {
@@ -65,6 +67,7 @@ async function main() {
   server.keepAliveTimeout = 65_000;
   const stop = () => {
     server.close(() => {
+      seal();
       void Promise.all([mail.stop(), integrations.close()]).finally(() => {
         db.$client.close();
         process.exit(0);

@@ -35,11 +35,11 @@ function VerifyCard() {
     <Card>
       <Text weight="semibold">Chain check</Text>
       <Text tone="muted" variant="small">
-        Each event carries a hash of the one before it, so an edited or deleted record breaks every later link.
+        Each event carries a keyed hash of the one before it, so an edited or deleted event breaks every later link; signed checkpoints kept outside the database catch removed newest events, and lot decisions, signatures and change requests are compared with their audited state.
       </Text>
       {result ? (
         <Text tone={result.ok ? 'success' : 'danger'} testID="audit-verify-result" accessibilityLiveRegion="polite">
-          {result.ok ? `Unbroken: all ${result.events} events check out.` : `Broken at event ${result.firstBrokenId} of ${result.events}.`}
+          {result.ok ? `Unbroken: all ${result.events} events check out, against ${result.checkpoints} signed checkpoints, and every decided record reads as audited.` : `${result.problems.length} problem${result.problems.length > 1 ? 's' : ''}: ${result.problems.slice(0, 3).map((p) => p.message).join('; ')}.`}
         </Text>
       ) : null}
       {error ? <Text tone="danger">{error.message}</Text> : null}

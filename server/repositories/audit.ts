@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, gte, isNull, lt, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, gte, inArray, isNull, lt, lte, sql, type SQL } from 'drizzle-orm';
 import { boundRow, columnPlaceholders, preparedPer, type Db } from '../../db/client';
 import { auditEvents } from '../../db/schema';
 
@@ -60,3 +60,21 @@ export const findAudit = (db: Db, siteId: number, f: AuditFilter, limit: number,
   rows: db.select().from(auditEvents).where(filterWhere(siteId, f)).orderBy(desc(auditEvents.id)).limit(limit).offset(offset).all(),
   total: db.select({ n: sql<number>`count(*)` }).from(auditEvents).where(filterWhere(siteId, f)).get()?.n ?? 0,
 });
+
+/** A site's events of the given actions, oldest first (the audited states of decided records). */
+export const listAuditOfActions = (db: Db, siteId: number, actions: string[]) =>
+  db.select().from(auditEvents).where(and(eq(auditEvents.siteId, siteId), inArray(auditEvents.action, actions))).orderBy(asc(auditEvents.id)).all();
+
+/** How many events a site's chain holds up to and including `lastId`, and that event's hash. */
+export const auditCountUpTo = (db: Db, siteId: number | null, lastId: number) => ({
+  events: db.select({ n: sql<number>`count(*)` }).from(auditEvents).where(and(sameSite(siteId), lte(auditEvents.id, lastId))).get()?.n ?? 0,
+  hash: db.select({ hash: auditEvents.hash }).from(auditEvents).where(and(sameSite(siteId), eq(auditEvents.id, lastId))).get()?.hash ?? null,
+});
+
+/** Each chain's newest event and length: what a checkpoint seals. */
+export const auditHeads = (db: Db) =>
+  db
+    .select({ siteId: auditEvents.siteId, lastId: sql<number>`max(${auditEvents.id})`, events: sql<number>`count(*)` })
+    .from(auditEvents)
+    .groupBy(auditEvents.siteId)
+    .all();

@@ -1,4 +1,4 @@
-import { and, desc, eq } from 'drizzle-orm';
+import { and, asc, desc, eq } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { changeRequests, plans, recipes, signatures, users, vessels } from '../../db/schema';
 import type { ChangeStatus, SetpointSide } from '../../src/contracts/change-requests';
@@ -45,3 +45,17 @@ export const listActiveSupervisors = (db: Db, siteId: number) =>
     .from(users)
     .where(and(eq(users.siteId, siteId), eq(users.role, 'supervisor'), eq(users.isActive, true)))
     .all();
+
+/** A recipe's approved changes in the order they were decided, with each plan's setpoint. */
+export const listApprovedChanges = (db: Db, siteId: number, recipeId: number) =>
+  db
+    .select({ planId: changeRequests.planId, effectiveFrom: changeRequests.effectiveFrom, replaced: changeRequests.replaced, setpointC: plans.setpointC })
+    .from(changeRequests)
+    .innerJoin(plans, eq(changeRequests.planId, plans.id))
+    .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.recipeId, recipeId), eq(changeRequests.status, 'approved')))
+    .orderBy(asc(changeRequests.decidedAt), asc(changeRequests.id))
+    .all();
+
+/** Every change request and signature of a site (the audit check compares each with its audited state). */
+export const listAllSiteChangeRequests = (db: Db, siteId: number) => db.select().from(changeRequests).where(eq(changeRequests.siteId, siteId)).orderBy(changeRequests.id).all();
+export const listSiteSignatures = (db: Db, siteId: number) => db.select().from(signatures).where(eq(signatures.siteId, siteId)).orderBy(signatures.id).all();

@@ -1,7 +1,7 @@
 import { Router } from 'express';
-import { AuditPage, AuditQuery, AuditVerification } from '../../src/contracts/audit-events';
+import { AuditCheckpointInput, AuditCheckpointsWritten, AuditPage, AuditQuery, AuditVerification } from '../../src/contracts/audit-events';
 import { allow, currentUser } from '../middleware/auth';
-import { auditCsv, searchAudit, verifySiteAudit } from '../services/audit-events';
+import { auditCsv, checkpointSiteAudit, searchAudit, verifySiteAudit } from '../services/audit-events';
 import type { Services } from './services';
 
 export function auditEventsRouter(s: Services): Router {
@@ -11,6 +11,10 @@ export function auditEventsRouter(s: Services): Router {
   });
   router.get('/verify', allow('supervisor', 'admin'), (req, res) => {
     res.json(AuditVerification.parse(verifySiteAudit(s, currentUser(req))));
+  });
+  router.post('/checkpoints', allow('supervisor', 'admin'), (req, res) => {
+    AuditCheckpointInput.parse(req.body);
+    res.status(201).json(AuditCheckpointsWritten.parse(checkpointSiteAudit(s, currentUser(req))));
   });
   router.get('/export.csv', allow('supervisor', 'admin'), (req, res) => {
     const csv = auditCsv(s, currentUser(req), AuditQuery.parse(req.query));

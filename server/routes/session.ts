@@ -3,28 +3,46 @@ import rateLimit from 'express-rate-limit';
 import { Session, SessionState, SignInRequest, UpdateMe } from '../../src/contracts/session';
 import { allow, ALL_ROLES, currentUser, open, SESSION_COOKIE } from '../middleware/auth';
 import { loadSessionUser, signIn, signOut, type AuthContext } from '../services/auth';
+import { createAccountThrottle, DEVICE_COOKIE, deviceToken, throttleKey, type SignInLimit } from '../services/sign-in-throttle';
 import { acknowledgeCautions } from '../services/users';
+import { HttpError } from '../http-error';
 
-export type SessionRouteOptions = AuthContext & { cookieSecure: boolean; signInLimit: { perAddress: number; perAccount: number; windowMs: number } };
+export type SessionRouteOptions = AuthContext & { cookieSecure: boolean; signInLimit: SignInLimit };
 
-const tooMany = { error: { code: 'rate_limited', message: 'Too many sign-in attempts; wait a few minutes and try again' } };
+/** What a person who cannot sign in can do; the sign-in page shows it beside the refusal. */
+export const LOCKED_OUT_HELP = 'Forgotten your password? Ask your site admin to send you a reset link by e-mail.';
+const tooManyFromAddress = { error: { code: 'rate_limited', message: `Too many failed sign-ins from this network; wait a few minutes and try again. ${LOCKED_OUT_HELP}` } };
+const DEVICE_DAYS = 365;
 
 export function sessionRouter(opts: SessionRouteOptions): Router {
   const router = Router();
   const cookie = (expires: Date): CookieOptions => ({ httpOnly: true, sameSite: 'strict', secure: opts.cookieSecure, path: '/', expires });
-  const limitCommon = { windowMs: opts.signInLimit.windowMs, standardHeaders: 'draft-8' as const, legacyHeaders: false, message: tooMany };
-  const perAddress = rateLimit({ ...limitCommon, limit: opts.signInLimit.perAddress });
-  const perAccount = rateLimit({
-    ...limitCommon,
-    limit: opts.signInLimit.perAccount,
-    keyGenerator: (req) => `account:${String(req.body?.email ?? '').trim().toLowerCase()}`,
+  // Only failed sign-ins count against an address (a shift signing in behind one plant address is not refused).
+  const perAddress = rateLimit({
+    windowMs: opts.signInLimit.windowMs,
+    limit: opts.signInLimit.perAddress,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    skipSuccessfulRequests: true,
+    requestWasSuccessful: (_req, res) => res.statusCode !== 401,
+    message: tooManyFromAddress,
   });
+  const accounts = createAccountThrottle(opts.clock, opts.signInLimit);
 
   // Signing in is the one write open to everyone.
-  router.post('/', open, perAddress, perAccount, async (req, res) => {
+  router.post('/', open, perAddress, async (req, res) => {
     const body = SignInRequest.parse(req.body);
+    const key = throttleKey(opts.auth.secret, body.email, req.cookies?.[DEVICE_COOKIE]);
+    const waitMs = accounts.begin(key);
+    if (waitMs > 0) {
+      const seconds = Math.ceil(waitMs / 1000);
+      res.set('retry-after', String(seconds));
+      throw new HttpError(429, 'rate_limited', `Too many wrong passwords for this account; try again in ${seconds} s. ${LOCKED_OUT_HELP}`);
+    }
     const { token, expiresAt, user } = await signIn(opts, body, req.ip ?? 'unknown');
+    accounts.succeeded(key);
     res.cookie(SESSION_COOKIE, token, cookie(expiresAt));
+    if (!key.startsWith('device:')) res.cookie(DEVICE_COOKIE, deviceToken(opts.auth.secret, body.email), cookie(new Date(opts.clock.now().getTime() + DEVICE_DAYS * 86_400_000)));
     res.status(201).json(Session.parse({ user }));
   });
 

@@ -3,7 +3,7 @@ import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
 import { findAudit, type AuditRow } from '../repositories/audit';
 import type { Services } from '../routes/services';
-import { verifyAudit } from './audit';
+import { sealAudit, verifyAudit } from './audit-verify';
 
 const toEvent = (r: AuditRow): AuditEvent => ({
   id: r.id,
@@ -24,6 +24,9 @@ export function searchAudit({ db }: Services, u: SessionUser, q: AuditQuery): Au
 }
 
 export const verifySiteAudit = ({ db }: Services, u: SessionUser): AuditVerification => verifyAudit(db, u.siteId);
+
+/** Seals the site's chain now (a checkpoint outside the database), when it moved since the last one. */
+export const checkpointSiteAudit = ({ db, clock }: Services, u: SessionUser) => ({ written: sealAudit(db, clock.now(), u.siteId) });
 
 /** The filtered trail as CSV, oldest first, with the hashes so the export can be checked on its own. */
 export function auditCsv({ db }: Services, u: SessionUser, q: AuditQuery): string {

@@ -1,6 +1,9 @@
 import crypto from 'node:crypto';
-import type { Db } from '../../db/client';
-import { insertAudit, lastAuditHash, listAudit, type AuditRow } from '../repositories/audit';
+import type Database from 'better-sqlite3';
+import { clientOf, type Db } from '../../db/client';
+import { installationSecret } from '../installation-secrets';
+import { hasCheckpoint } from './audit-checkpoints';
+import { insertAudit, lastAuditHash, type AuditRow } from '../repositories/audit';
 
 export type AuditInput = {
   siteId: number | null;
@@ -14,17 +17,46 @@ export type AuditInput = {
   at: Date;
 };
 
-const GENESIS = '0'.repeat(64);
+export const GENESIS = '0'.repeat(64);
 
-// Each event's hash covers its content and the previous event's hash, so editing or deleting a row breaks
-// every later link. Keys are fixed in order so the same content always hashes the same.
-function eventHash(e: Omit<AuditRow, 'id' | 'hash'>): string {
-  const canonical = JSON.stringify([e.siteId, e.userId, e.actor, e.action, e.entity, e.entityId, e.oldValue ?? null, e.newValue ?? null, e.at, e.prevHash]);
-  return crypto.createHash('sha256').update(canonical).digest('hex');
+type Hashed = Pick<AuditRow, 'siteId' | 'userId' | 'actor' | 'action' | 'entity' | 'entityId' | 'oldValue' | 'newValue' | 'at' | 'prevHash'>;
+// Keys are fixed in order so the same content always hashes the same.
+const canonical = (e: Hashed) => JSON.stringify([e.siteId, e.userId, e.actor, e.action, e.entity, e.entityId, e.oldValue ?? null, e.newValue ?? null, e.at, e.prevHash]);
+
+/**
+ * Each event's hash is an HMAC (SHA-256) of its content and the previous event's hash, keyed with the
+ * installation's audit key, which lives outside the database (`.audit-key` beside it). Editing or deleting a row
+ * breaks every later link, and without the key no one can recompute the links after an edit.
+ */
+export const eventHash = (key: Buffer, e: Hashed): string => crypto.createHmac('sha256', key).update(canonical(e)).digest('hex');
+// Before the chain was keyed (databases written until 2026-12-03): a plain SHA-256 of the same content.
+const legacyHash = (e: Hashed): string => crypto.createHash('sha256').update(canonical(e)).digest('hex');
+
+const keys = new WeakMap<Database.Database, Buffer>();
+
+/** Uses `key` for this connection's chain (tests; a key kept elsewhere). */
+export function useAuditKey(db: Db, key: Buffer): void {
+  keys.set(clientOf(db), key);
+}
+
+/**
+ * The audit key of a connection: for a database file, the installation's (`.audit-key` beside the file, made on
+ * first use); for an in-memory database, a random one. On first use the chains written before the key existed are
+ * re-linked with it (adoptLegacyChains).
+ */
+export function auditKeyOf(db: Db): Buffer {
+  const client = clientOf(db);
+  let key = keys.get(client);
+  if (key) return key;
+  key = client.name && client.name !== ':memory:' ? installationSecret(client.name, '.audit-key') : crypto.randomBytes(32);
+  keys.set(client, key);
+  adoptLegacyChains(client, key);
+  return key;
 }
 
 /** Appends one event to its site's chain. Call inside the write's transaction so both land or neither. */
 export function appendAudit(db: Db, input: AuditInput): AuditRow {
+  const key = auditKeyOf(db);
   const row = {
     siteId: input.siteId,
     userId: input.userId,
@@ -37,16 +69,64 @@ export function appendAudit(db: Db, input: AuditInput): AuditRow {
     at: input.at.toISOString(),
     prevHash: lastAuditHash(db, input.siteId) ?? GENESIS,
   };
-  return insertAudit(db, { ...row, hash: eventHash(row) });
+  return insertAudit(db, { ...row, hash: eventHash(key, row) });
 }
 
-/** Walks a site's chain: `{ ok: true }` or the first event whose link or content does not match. */
-export function verifyAudit(db: Db, siteId: number | null): { ok: true; events: number } | { ok: false; events: number; firstBrokenId: number } {
-  const rows = listAudit(db, siteId);
-  let prev = GENESIS;
-  for (const r of rows) {
-    if (r.prevHash !== prev || eventHash(r) !== r.hash) return { ok: false, events: rows.length, firstBrokenId: r.id };
-    prev = r.hash;
+type RawRow = { id: number; site_id: number | null; user_id: number | null; actor: string; action: string; entity: string; entity_id: string | null; old_value: string | null; new_value: string | null; at: string; prev_hash: string; hash: string };
+const hashedOf = (r: RawRow): Hashed => ({
+  siteId: r.site_id,
+  userId: r.user_id,
+  actor: r.actor,
+  action: r.action,
+  entity: r.entity,
+  entityId: r.entity_id,
+  oldValue: r.old_value == null ? null : JSON.parse(r.old_value),
+  newValue: r.new_value == null ? null : JSON.parse(r.new_value),
+  at: r.at,
+  prevHash: r.prev_hash,
+});
+
+/**
+ * Migration of a database written before the chain was keyed: a site's chain whose last event carries a plain
+ * SHA-256 link, and that has no checkpoint yet, is checked link by link as it was written and, when whole,
+ * re-linked with the key in one transaction (an `audit.rekeyed` event records it). A chain already broken is left
+ * as it is: verify then reports it broken. A chain with a checkpoint is never re-linked.
+ */
+function adoptLegacyChains(client: Database.Database, key: Buffer): void {
+  const hasTable = client.prepare("select 1 from sqlite_master where type = 'table' and name = 'audit_events'").get();
+  if (!hasTable) return;
+  const heads = client.prepare('select * from audit_events where id in (select max(id) from audit_events group by site_id)').all() as RawRow[];
+  const legacy = heads.filter((h) => legacyHash(hashedOf(h)) === h.hash && !hasCheckpoint(client, h.site_id));
+  if (!legacy.length) return;
+  const rowsOf = client.prepare('select * from audit_events where site_id is ? order by id');
+  const relink = client.prepare('update audit_events set prev_hash = ?, hash = ? where id = ?');
+  try {
+    client.transaction(() => {
+      for (const head of legacy) {
+        const rows = rowsOf.all(head.site_id) as RawRow[];
+        let prev = GENESIS;
+        const whole = rows.every((r) => {
+          const ok = r.prev_hash === prev && legacyHash(hashedOf(r)) === r.hash;
+          prev = r.hash;
+          return ok;
+        });
+        if (!whole) continue;
+        prev = GENESIS;
+        for (const r of rows) {
+          const hash = eventHash(key, { ...hashedOf(r), prevHash: prev });
+          relink.run(prev, hash, r.id);
+          prev = hash;
+        }
+        const at = new Date().toISOString();
+        const event = { siteId: head.site_id, userId: null, actor: 'system', action: 'audit.rekeyed', entity: 'audit', entityId: null, oldValue: null, newValue: { events: rows.length }, at, prevHash: prev };
+        client
+          .prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, ?, ?, ?, ?)')
+          .run(head.site_id, event.actor, event.action, event.entity, JSON.stringify(event.newValue), at, prev, eventHash(key, event));
+        console.error(`[${at}] audit chain of site ${head.site_id ?? '(none)'}: ${rows.length} events re-linked with the installation's audit key`);
+      }
+    }).immediate();
+  } catch (err) {
+    // Not writable now: the next connection tries again; until then verify reports the chain as not keyed.
+    console.error(`[${new Date().toISOString()}] audit chain not re-linked: ${(err as Error).message}`);
   }
-  return { ok: true, events: rows.length };
 }

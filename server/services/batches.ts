@@ -82,7 +82,7 @@ import { appendAudit } from './audit';
 import { getPlan } from './plans';
 import { recalibrate } from './calibrations';
 import { planningLot } from './evidence';
-import { acceptedLot } from './recipes';
+import { acceptedLot, releaseInEffect } from './recipes';
 
 // A batch may be registered after it started (the paperwork follows the vessel), but not a week late.
 const LATE_START_LIMIT_H = 7 * 24;
@@ -269,9 +269,11 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
   if (startMs > now.getTime() + CLOCK_SKEW_MIN * 60_000) throw new HttpError(400, 'invalid_input', 'The start is in the future', { startedAt: 'A batch cannot start in the future' });
   if (startMs < now.getTime() - LATE_START_LIMIT_H * 3_600_000) throw new HttpError(400, 'invalid_input', 'The start is more than a week ago', { startedAt: 'At most a week ago' });
   if (runningBatchOnVessel(db, u.siteId, vessel.id)) throw new HttpError(409, 'vessel_busy', `${vessel.name} already has a running batch`, { vesselId: 'This vessel already has a running batch' });
-  const plan = recipe.releasedPlanId ? getPlan({ db, clock }, u, recipe.releasedPlanId) : null;
+  // The release in effect on the batch's start day, not necessarily the newest approval (its date may be ahead).
+  const release = releaseInEffect(db, recipe, new Date(startMs), u.siteTimeZone);
+  const plan = release.planId ? getPlan({ db, clock }, u, release.planId) : null;
   const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
-  const program = batchProgram({ recipe, enzyme, lot: planningLot(db, u.siteId, lot, recipe.id), vessel, plan });
+  const program = batchProgram({ recipe: { ...recipe, currentSetpointC: release.setpointC }, enzyme, lot: planningLot(db, u.siteId, lot, recipe.id), vessel, plan });
   const temps = program.stages.map((s) => s.c);
   if (Math.min(...temps) < vessel.minC || Math.max(...temps) > vessel.maxC)
     throw new HttpError(400, 'plan_outside_vessel', `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`, { vesselId: 'The plan does not fit this vessel' });

@@ -6,8 +6,20 @@ export const PLAN_NAME = 'Per seat, billed monthly';
 
 export type SeatPrice = { priceId: string; productId: string; unitAmountCents: number; currency: string };
 
-/** The payment provider as the app uses it: the SDK client, the webhook secret and the seat price. */
-export type Billing = { stripe: Stripe; webhookSecret: string; seatPrice(): Promise<SeatPrice> };
+/** The payment provider as the app uses it: the SDK client, the webhook secret, the seat price and its pages. */
+export type Billing = { stripe: Stripe; webhookSecret: string; seatPrice(): Promise<SeatPrice>; payOrigins: readonly string[] };
+
+/** A pay link only when it points at one of the provider's own pages (https, or the local fake); else null. */
+export function providerPayUrl(billing: Pick<Billing, 'payOrigins'> | null, url: string | null | undefined): string | null {
+  if (!url || !billing) return null;
+  let origin: string;
+  try {
+    origin = new URL(url).origin;
+  } catch {
+    return null;
+  }
+  return billing.payOrigins.includes(origin) ? url : null;
+}
 
 /**
  * The official SDK; `api` points it at another server (the local fake). Without it the SDK talks to Stripe
@@ -17,7 +29,7 @@ export function stripeClient(secretKey: string, api?: { host: string; port: numb
   return new Stripe(secretKey, { ...(api ?? {}), maxNetworkRetries: 2, timeout: 20_000, telemetry: false });
 }
 
-export function createBilling(stripe: Stripe, webhookSecret: string): Billing {
+export function createBilling(stripe: Stripe, webhookSecret: string, payOrigins: readonly string[]): Billing {
   let price: Promise<SeatPrice> | null = null;
   const lookUp = async (): Promise<SeatPrice> => {
     const found = await stripe.prices.list({ lookup_keys: [SEAT_PRICE.lookupKey], limit: 1 });
@@ -33,6 +45,7 @@ export function createBilling(stripe: Stripe, webhookSecret: string): Billing {
   return {
     stripe,
     webhookSecret,
+    payOrigins,
     seatPrice() {
       // A failed look-up is not cached: the next call tries again.
       price ??= lookUp().catch((e) => {

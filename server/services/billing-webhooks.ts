@@ -5,10 +5,17 @@ import { HttpError } from '../http-error';
 import { claimEvent, findSubscriptionByCustomer, isEventClaimed, upsertInvoice, upsertSubscription, type SubscriptionRow } from '../repositories/billing';
 import { appendAudit } from './audit';
 import { GRACE_DAYS, type BillingContext } from './billing';
-import { PLAN_NAME } from './billing-provider';
+import { PLAN_NAME, providerPayUrl, type Billing } from './billing-provider';
 
 const ACTOR = 'payment-provider';
 const iso = (unixSeconds: number) => new Date(unixSeconds * 1000).toISOString();
+const hostOf = (url: string) => {
+  try {
+    return new URL(url).host.slice(0, 200);
+  } catch {
+    return 'not an address';
+  }
+};
 const idOf = (v: string | { id: string } | null | undefined) => (v == null ? null : typeof v === 'string' ? v : v.id);
 
 function mapStatus(s: Stripe.Subscription.Status): SubscriptionStatus {
@@ -22,10 +29,11 @@ function mapStatus(s: Stripe.Subscription.Status): SubscriptionStatus {
  * is applied once (a redelivery answers `duplicate`); the seat count and status change only here.
  */
 export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signature: string | undefined): Promise<{ duplicate: boolean }> {
-  if (!ctx.billing) throw new HttpError(503, 'billing_unavailable', 'Payments are not set up on this server');
+  const billing = ctx.billing;
+  if (!billing) throw new HttpError(503, 'billing_unavailable', 'Payments are not set up on this server');
   let event: Stripe.Event;
   try {
-    event = ctx.billing.stripe.webhooks.constructEvent(raw, signature ?? '', ctx.billing.webhookSecret);
+    event = billing.stripe.webhooks.constructEvent(raw, signature ?? '', billing.webhookSecret);
   } catch {
     throw new HttpError(400, 'bad_signature', 'The event signature does not verify');
   }
@@ -37,10 +45,10 @@ export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signat
     const s = event.data.object;
     if (s.mode === 'payment' && s.payment_status === 'paid' && s.metadata?.kind === 'add_seats' && s.metadata.subscription) {
       const add = Number(s.metadata.addSeats);
-      const sub = await ctx.billing.stripe.subscriptions.retrieve(s.metadata.subscription);
+      const sub = await billing.stripe.subscriptions.retrieve(s.metadata.subscription);
       const item = sub.items.data[0];
       if (item && Number.isInteger(add) && add > 0) {
-        await ctx.billing.stripe.subscriptions.update(sub.id, { items: [{ id: item.id, quantity: (item.quantity ?? 0) + add }], proration_behavior: 'none' }, { idempotencyKey: `yieldpoint-add-seats-${event.id}` });
+        await billing.stripe.subscriptions.update(sub.id, { items: [{ id: item.id, quantity: (item.quantity ?? 0) + add }], proration_behavior: 'none' }, { idempotencyKey: `yieldpoint-add-seats-${event.id}` });
       }
     }
   }
@@ -60,7 +68,7 @@ export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signat
       case 'invoice.payment_failed':
       case 'invoice.finalized':
       case 'invoice.voided':
-        applyInvoice(tx, site, event.data.object, event.type === 'invoice.payment_failed', now);
+        applyInvoice(tx, site, event.data.object, event.type === 'invoice.payment_failed', now, billing);
         break;
     }
     return false;
@@ -100,8 +108,13 @@ function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscriptio
   }
 }
 
-function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed: boolean, now: Date): void {
+function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed: boolean, now: Date, billing: Billing): void {
   if (!inv.id) return;
+  // Only the provider's own payment page is kept; any other address is refused and the refusal audited.
+  const hostedUrl = providerPayUrl(billing, inv.hosted_invoice_url);
+  if (inv.hosted_invoice_url && !hostedUrl) {
+    appendAudit(db, { siteId: row.siteId, userId: null, actor: ACTOR, action: 'billing.pay-link.refused', entity: 'invoice', entityId: inv.id, newValue: { host: hostOf(inv.hosted_invoice_url) }, at: now });
+  }
   upsertInvoice(db, {
     siteId: row.siteId,
     stripeInvoiceId: inv.id,
@@ -113,7 +126,7 @@ function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed:
     seats: inv.lines.data.reduce((a, l) => a + (l.quantity ?? 0), 0),
     periodStart: iso(inv.period_start),
     periodEnd: iso(inv.period_end),
-    hostedUrl: inv.hosted_invoice_url ?? null,
+    hostedUrl,
     issuedAt: iso(inv.created),
   });
   // A failed renewal starts the grace period at once, even if the subscription's own event comes later.

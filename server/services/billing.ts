@@ -7,7 +7,7 @@ import { HttpError, notFound } from '../http-error';
 import { countActiveUsers, countOpenInvites, findSubscription, listSiteInvoices, upsertSubscription, type InvoiceRow, type SubscriptionRow } from '../repositories/billing';
 import { findSite } from '../repositories/sites';
 import { appendAudit } from './audit';
-import { PLAN_NAME, SEAT_PRICE, type Billing } from './billing-provider';
+import { PLAN_NAME, providerPayUrl, SEAT_PRICE, type Billing } from './billing-provider';
 
 /** `publicUrl`: PUBLIC_URL when set; else the payment page returns to the address the request came to. */
 export type BillingContext = { db: Db; clock: Clock; billing: Billing | null; publicUrl: string | null };
@@ -76,7 +76,7 @@ export function billingSummary({ db, clock }: BillingContext, actor: SessionUser
   };
 }
 
-const toInvoice = (r: InvoiceRow): Invoice => ({
+const toInvoice = (billing: Billing | null) => (r: InvoiceRow): Invoice => ({
   id: r.id,
   number: r.number,
   status: r.status,
@@ -87,10 +87,11 @@ const toInvoice = (r: InvoiceRow): Invoice => ({
   periodStart: r.periodStart,
   periodEnd: r.periodEnd,
   issuedAt: r.issuedAt,
-  payUrl: r.status === 'open' ? r.hostedUrl : null,
+  // Checked again on the way out: a row stored before the check, or a provider since changed, shows no foreign link.
+  payUrl: r.status === 'open' ? providerPayUrl(billing, r.hostedUrl) : null,
 });
 
-export const siteInvoices = ({ db }: BillingContext, actor: SessionUser) => ({ invoices: listSiteInvoices(db, actor.siteId).map(toInvoice) });
+export const siteInvoices = ({ db, billing }: BillingContext, actor: SessionUser) => ({ invoices: listSiteInvoices(db, actor.siteId).map(toInvoice(billing)) });
 
 function requireBilling(b: Billing | null): Billing {
   if (!b) throw new HttpError(503, 'billing_unavailable', 'Payments are not set up on this server');
@@ -169,9 +170,9 @@ export async function startCheckout(ctx: BillingContext, actor: SessionUser, req
           cancel_url: back('canceled'),
         }),
   );
-  if (!session.url) throw new HttpError(502, 'payment_provider', 'The payment provider gave no payment page');
+  if (!providerPayUrl(billing, session.url)) throw new HttpError(502, 'payment_provider', 'The payment provider gave no payment page of its own');
   appendAudit(ctx.db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'billing.checkout.start', entity: 'subscription', entityId: actor.siteId, newValue: { addSeats: req.addSeats, checkoutSession: session.id }, at: ctx.clock.now() });
-  return { url: session.url };
+  return { url: session.url! };
 }
 
 /** Lowers the seat count on the provider; our count follows from its event. Raising goes through payment. */

@@ -3,7 +3,9 @@ import type { Recipe, RecipeDetail, RecipeInput, RecipePatch } from '../../src/c
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError, notFound } from '../http-error';
 import { findSiteEnzyme, findSiteLot, findSiteRecipe, findSiteRecipeByName, insertRecipe, listAcceptedLots, listSiteRecipes, updateRecipe } from '../repositories/recipes';
+import { listApprovedChanges } from '../repositories/change-requests';
 import { findSiteVessel, type VesselRow } from '../repositories/vessels';
+import { siteDay } from '../site-time';
 import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
 import { planningLot } from './evidence';
@@ -83,4 +85,19 @@ export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number
     appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.update', entity: 'recipe', entityId: id, oldValue: old, newValue: patch, at: now });
     return after;
   });
+}
+
+/**
+ * What a batch starting at `at` runs. The recipe's released plan once its effective date (`releasedAt`, the start
+ * of a site-local day) has come; before that, of the earlier approved changes already in effect the one decided
+ * last, else what the first approval replaced (the previous released plan, or the bare setpoint).
+ */
+export function releaseInEffect(db: Db, recipe: Joined['recipe'], at: Date, timeZone: string): { planId: number | null; setpointC: number } {
+  if (!recipe.releasedPlanId || !recipe.releasedAt || Date.parse(recipe.releasedAt) <= at.getTime()) return { planId: recipe.releasedPlanId, setpointC: recipe.currentSetpointC };
+  const approvals = listApprovedChanges(db, recipe.siteId, recipe.id);
+  const day = siteDay(at, timeZone);
+  const due = approvals.filter((a) => a.effectiveFrom <= day).at(-1);
+  if (due) return { planId: due.planId, setpointC: due.setpointC };
+  const before = approvals[0]?.replaced;
+  return before ? { planId: before.planId, setpointC: before.setpointC } : { planId: null, setpointC: recipe.currentSetpointC };
 }

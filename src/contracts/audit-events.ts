@@ -30,8 +30,20 @@ export type AuditQuery = z.infer<typeof AuditQuery>;
 export const AuditPage = z.object({ events: z.array(AuditEvent), total: z.number().int() });
 export type AuditPage = z.infer<typeof AuditPage>;
 
-export const AuditVerification = z.discriminatedUnion('ok', [
-  z.object({ ok: z.literal(true), events: z.number().int() }),
-  z.object({ ok: z.literal(false), events: z.number().int(), firstBrokenId: z.number().int() }),
-]);
+export const AuditProblem = z.object({ kind: z.enum(['chain', 'checkpoint', 'record']), eventId: z.number().int().nullable(), message: z.string() });
+export type AuditProblem = z.infer<typeof AuditProblem>;
+
+/** The result of checking a site's trail: the links, the signed checkpoints, and decided records against their audited state. */
+export const AuditVerification = z.object({
+  ok: z.boolean(),
+  events: z.number().int(),
+  firstBrokenId: z.number().int().nullable(),
+  checkpoints: z.number().int(),
+  lastCheckpointAt: z.string().nullable(),
+  problems: z.array(AuditProblem),
+});
 export type AuditVerification = z.infer<typeof AuditVerification>;
+
+export const AuditCheckpoint = z.object({ siteId: z.number().int().nullable(), events: z.number().int(), lastId: z.number().int(), head: z.string(), at: z.string() });
+export const AuditCheckpointInput = z.strictObject({});
+export const AuditCheckpointsWritten = z.object({ written: z.array(AuditCheckpoint) });

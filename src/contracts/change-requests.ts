@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { calendarDay } from './calendar-day';
 import { Plan, PlanStage, PLAN_STRATEGIES } from './plans';
 
 export const CHANGE_STATUSES = ['proposed', 'approved', 'rejected'] as const;
@@ -6,7 +7,7 @@ export type ChangeStatus = (typeof CHANGE_STATUSES)[number];
 export const SIGNATURE_MEANINGS = ['reviewed', 'approved', 'rejected'] as const;
 export type SignatureMeaning = (typeof SIGNATURE_MEANINGS)[number];
 
-const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-15');
+const isoDay = calendarDay('2026-12-15');
 
 export const ChangeRequestInput = z.strictObject({
   planId: z.number().int().positive(),

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { calendarDay } from './calendar-day';
 import { Assay, HalfLifeEstimate } from './assays';
 import { Enzyme } from './enzymes';
 import { LOT_DECIDERS, LOT_EDITORS } from './rules';
@@ -26,7 +27,7 @@ export const CertStability = z.discriminatedUnion('form', [
 export type CertStability = z.infer<typeof CertStability>;
 export type CertForm = CertStability['form'];
 
-const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'A date like 2026-11-28').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'Not a calendar date');
+const isoDay = calendarDay('2026-11-28');
 
 /** What procurement types when a lot arrives. */
 export const LotInput = z

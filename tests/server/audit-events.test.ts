@@ -33,11 +33,11 @@ describe('audit trail API', () => {
     const admin = await t.signIn('admin');
     await t.signIn('engineer');
     await t.signIn('operator');
-    expect((await admin.get('/api/audit-events/verify')).body).toEqual({ ok: true, events: 3 });
+    expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: true, events: 3 });
     const events = (await admin.get('/api/audit-events')).body.events as { id: number }[];
     const middle = events[1]!.id;
     t.db.$client.prepare(`update audit_events set new_value = '{"from":"elsewhere"}' where id = ?`).run(middle);
-    expect((await admin.get('/api/audit-events/verify')).body).toEqual({ ok: false, events: 3, firstBrokenId: middle });
+    expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: false, events: 3, firstBrokenId: middle });
   });
 
   it('detects a deleted event by the broken link of the next one', async () => {
@@ -46,7 +46,7 @@ describe('audit trail API', () => {
     await t.signIn('operator');
     const ids = ((await admin.get('/api/audit-events')).body.events as { id: number }[]).map((e) => e.id).reverse();
     t.db.$client.prepare('delete from audit_events where id = ?').run(ids[1]);
-    expect((await admin.get('/api/audit-events/verify')).body).toEqual({ ok: false, events: 2, firstBrokenId: ids[2] });
+    expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: false, events: 2, firstBrokenId: ids[2] });
   });
 
   it('exports CSV with hashes, oldest first, every cell safe for a spreadsheet', async () => {

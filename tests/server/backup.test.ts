@@ -6,7 +6,8 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { backupDatabase, checkDatabase, restoreDatabase } from '../../db/backup';
 import { migrateDb, openDb } from '../../db/client';
 import { seedDemo } from '../../db/seed';
-import { verifyAudit } from '../../server/services/audit';
+import { auditKeyOf } from '../../server/services/audit';
+import { verifyAudit } from '../../server/services/audit-verify';
 
 const dirs: string[] = [];
 const tmp = () => {
@@ -22,6 +23,7 @@ const { parentPort, workerData } = require('node:worker_threads');
 const Database = require('better-sqlite3');
 const crypto = require('node:crypto');
 const db = new Database(workerData.file);
+const key = Buffer.from(require('node:fs').readFileSync(require('node:path').join(require('node:path').dirname(workerData.file), '.audit-key'), 'utf8').trim(), 'base64');
 db.pragma('journal_mode = WAL'); db.pragma('busy_timeout = 5000');
 const last = db.prepare('select hash from audit_events where site_id = 1 order by id desc limit 1');
 const ins = db.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (1, null, ?, ?, ?, null, null, null, ?, ?, ?)');
@@ -32,7 +34,7 @@ function burst() {
     db.transaction(() => {
       const prev = (last.get() || { hash: '0'.repeat(64) }).hash;
       const at = new Date(Date.UTC(2026, 11, 1) + n * 1000).toISOString();
-      const h = crypto.createHash('sha256').update(JSON.stringify([1, null, 'load@test', 'load', 'test', null, null, null, at, prev])).digest('hex');
+      const h = crypto.createHmac('sha256', key).update(JSON.stringify([1, null, 'load@test', 'load', 'test', null, null, null, at, prev])).digest('hex');
       ins.run('load@test', 'load', 'test', at, prev, h);
     }).immediate();
     n++;
@@ -49,6 +51,7 @@ describe('backup and restore', () => {
     const db = openDb(live);
     migrateDb(db);
     seedDemo(db, { bcryptCost: 4 });
+    auditKeyOf(db); // the writer below links with the installation's key
     db.$client.close();
 
     const writer = new Worker(WRITER, { eval: true, workerData: { file: live } });
@@ -68,7 +71,7 @@ describe('backup and restore', () => {
     expect(after.integrity).toBe('ok');
     expect(after.tables).toEqual(check.tables);
     const rdb = openDb(restored);
-    expect(verifyAudit(rdb, 1)).toEqual({ ok: true, events: check.tables.audit_events });
+    expect(verifyAudit(rdb, 1)).toMatchObject({ ok: true, events: check.tables.audit_events });
     rdb.$client.close();
     // The live database kept growing after the snapshot.
     expect(checkDatabase(live).tables.audit_events).toBeGreaterThanOrEqual(check.tables.audit_events!);

@@ -122,6 +122,9 @@ describe('starting a batch', () => {
       expect(csv).toContain('signature,Marit Oyelaran (supervisor),approved,');
       await closeRunning('R-204 Lactose tank');
       // Sixteen hours in, a reading shows the tank fell to 8 degC after the first hour: the forecast drops below P10.
+      // (Ten hours on, so that the start sixteen hours earlier falls on the plan's effective day, site time.)
+      t.clock.advanceMinutes(10 * 60);
+      [sup, op, eng] = await Promise.all([t.signIn('supervisor'), t.signIn('operator'), t.signIn('engineer')]);
       const late = await startLactose(16);
       const send = (h: number, c: number) => op.post(`/api/batches/${late.id}/readings`, { key: key(), takenAt: at(late.startedAt, h), c });
       expect((await send(0.2, 8)).body.deviations).toEqual([]);

@@ -1,7 +1,8 @@
 import { startSmtpSink, type SmtpSink } from '../../server/fakes/smtp-sink';
-import { FAKE_API_KEY, startStripeFake, type StripeFake } from '../../server/fakes/stripe-fake';
-import { FAKE_WEBHOOK_SECRET, handOverToFake } from '../../server/integrations';
-import { createBilling, stripeClient, type Billing } from '../../server/services/billing-provider';
+import type { StripeFake } from '../../server/fakes/stripe-fake';
+import crypto from 'node:crypto';
+import { handOverToFake, startFakeBilling } from '../../server/integrations';
+import type { Billing } from '../../server/services/billing-provider';
 import { createMailSender, smtpTransport, type MailSender } from '../../server/services/mail';
 import { startTestApp, type TestApp } from './harness';
 
@@ -9,8 +10,9 @@ export type BillingTestApp = TestApp & { fake: StripeFake; billing: Billing; sin
 
 /** The test app wired to the local fake Stripe (webhooks back to the app) and a mail sink, as `npm start` does. */
 export async function startBillingTestApp(opts: { publicUrl?: string | null } = {}): Promise<BillingTestApp> {
-  const fake = await startStripeFake({ webhookSecret: FAKE_WEBHOOK_SECRET });
-  const billing = createBilling(stripeClient(FAKE_API_KEY, { host: '127.0.0.1', port: fake.port, protocol: 'http' }), FAKE_WEBHOOK_SECRET);
+  // A fresh secret per run, as each installation has its own.
+  const webhookSecret = `whsec_${crypto.randomBytes(24).toString('hex')}`;
+  const { fake, billing } = await startFakeBilling({ webhookSecret });
   const sink = await startSmtpSink();
   let mail: MailSender | null = null;
   const t = await startTestApp({ billing, publicUrl: opts.publicUrl === null ? undefined : (opts.publicUrl ?? 'http://yieldpoint.test'), mail: { kick: () => mail?.kick() } });

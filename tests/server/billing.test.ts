@@ -1,8 +1,7 @@
 import Stripe from 'stripe';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { DEMO_SEATS, demoStripeIds } from '../../db/seed';
+import { DEMO_SEATS } from '../../db/seed';
 import { TEST_CARDS } from '../../server/fakes/stripe-fake';
-import { FAKE_WEBHOOK_SECRET } from '../../server/integrations';
 import { listAudit } from '../../server/repositories/audit';
 import { findSubscription, listSiteInvoices } from '../../server/repositories/billing';
 import { startBillingTestApp, type BillingTestApp } from './billing-harness';
@@ -15,7 +14,12 @@ afterEach(() => t.closeAll());
 
 const SITE = 1;
 const seats = () => findSubscription(t.db, SITE)!.seats;
-const fakeQuantity = () => t.fake.get(demoStripeIds(SITE).subscription)!.items.data[0].quantity as number;
+/** The demo site's ids at the provider, as seeded (random per seed). */
+const demoIds = () => {
+  const row = findSubscription(t.db, SITE)!;
+  return { customer: row.stripeCustomerId!, subscription: row.stripeSubscriptionId! };
+};
+const fakeQuantity = () => t.fake.get(demoIds().subscription)!.items.data[0].quantity as number;
 
 /** Submits the fake's hosted card form as a browser would, without following the redirect. */
 const pay = (url: string, card: string) =>
@@ -29,7 +33,7 @@ async function checkout(addSeats: number): Promise<string> {
 }
 
 /** A webhook delivery signed with the SDK's helper, as the provider signs it. */
-function signed(event: object, secret = FAKE_WEBHOOK_SECRET) {
+function signed(event: object, secret = t.billing.webhookSecret) {
   const payload = JSON.stringify(event);
   return { payload, header: t.billing.stripe.webhooks.generateTestHeaderString({ payload, secret }) };
 }
@@ -37,7 +41,7 @@ const deliver = (payload: string, header?: string) =>
   fetch(`${t.base}/api/billing/webhook`, { method: 'POST', headers: { 'content-type': 'application/json', ...(header ? { 'stripe-signature': header } : {}) }, body: payload });
 
 function subscriptionEvent(id: string, quantity: number, created = Math.floor(Date.now() / 1000)) {
-  const sub = structuredClone(t.fake.get(demoStripeIds(SITE).subscription)!);
+  const sub = structuredClone(t.fake.get(demoIds().subscription)!);
   sub.items.data[0].quantity = quantity;
   return { id, object: 'event', api_version: '2026-02-25.clover', created, type: 'customer.subscription.updated', data: { object: sub }, livemode: false, pending_webhooks: 1, request: { id: null, idempotency_key: null } };
 }
@@ -199,7 +203,7 @@ describe('reducing seats', () => {
 
 describe('failed payment', () => {
   it('gives a grace period, then makes the site read-only until the invoice is paid', async () => {
-    const { subscription } = demoStripeIds(SITE);
+    const { subscription } = demoIds();
     const renew = await fetch(`${t.fake.url}/_fake/subscriptions/${subscription}/renew`, {
       method: 'POST',
       headers: { authorization: `Bearer ${t.fake.apiKey}` },
@@ -258,12 +262,12 @@ describe('the fake answers in the SDK types', () => {
     for await (const p of stripe.prices.list({ limit: 1 })) all.push(p);
     expect(all).toHaveLength(4);
 
-    const sub: Stripe.Subscription = await stripe.subscriptions.retrieve(demoStripeIds(SITE).subscription);
+    const sub: Stripe.Subscription = await stripe.subscriptions.retrieve(demoIds().subscription);
     expect(sub.status).toBe('active');
     expect(sub.items.data[0]!.quantity).toBe(DEMO_SEATS);
     expect(typeof sub.items.data[0]!.current_period_end).toBe('number');
 
-    const invoices: Stripe.ApiList<Stripe.Invoice> = await stripe.invoices.list({ customer: demoStripeIds(SITE).customer });
+    const invoices: Stripe.ApiList<Stripe.Invoice> = await stripe.invoices.list({ customer: demoIds().customer });
     expect(invoices.data).toEqual([]);
 
     const missing = await stripe.customers.retrieve('cus_nope').catch((e: unknown) => e);

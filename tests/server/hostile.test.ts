@@ -1,8 +1,21 @@
 import fc from 'fast-check';
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { migrateDb, openDb } from '../../db/client';
+import { installationSecret } from '../../server/installation-secrets';
+import { auditKeyOf, eventHash } from '../../server/services/audit';
+import { appendCheckpoint } from '../../server/services/audit-checkpoints';
+import { verifyAudit } from '../../server/services/audit-verify';
+import { listAudit } from '../../server/repositories/audit';
+import { findSubscription } from '../../server/repositories/billing';
 import { listApiRoutes, type ApiRoute } from '../../server/route-table';
+import { isCalendarDay } from '../../src/contracts/calendar-day';
 import type { Role } from '../../src/contracts/roles';
-import { startTestApp, type Client, type TestApp } from './harness';
+import { startBillingTestApp } from './billing-harness';
+import { email, password, startTestApp, type Client, type TestApp } from './harness';
 
 // Hostile input against every write route the app has (discovered, not listed): generated bodies and ids must
 // never cause a 5xx or leak a stack trace or SQL, and a refused request must leave the database untouched.
@@ -173,5 +186,247 @@ describe('text that is not well-formed Unicode', () => {
     const res = await c.post('/api/vessels', { name: 'Tank 🌾 7', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 });
     expect(res.status).toBe(201);
     expect(res.body.name).toBe('Tank 🌾 7');
+  });
+});
+
+describe('a stranger guessing passwords cannot lock the account out', () => {
+  it('wrong passwords from many addresses slow the stranger, never the account’s own browser', async () => {
+    const app = await startTestApp({ signInLimit: { perAddress: 1000, perAccount: 5, windowMs: 15 * 60_000, maxDelayMs: 60_000 } });
+    try {
+      const login = (headers: Record<string, string>, pw: string) =>
+        fetch(`${app.base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-yieldpoint-client': 'test', ...headers }, body: JSON.stringify({ email: email('supervisor'), password: pw }) });
+      // The supervisor's browser signed in yesterday and keeps its device cookie.
+      const first = await login({}, password('supervisor'));
+      expect(first.status).toBe(201);
+      const device = first.headers.getSetCookie().find((c) => c.startsWith('yp_device='))!.split(';')[0]!;
+      // A stranger sprays guesses at the account from 200 spoofed addresses, keeping pace with the slow-down.
+      let wrong = 0;
+      let slowed = 0;
+      for (let i = 0; i < 200; i++) {
+        const r = await login({ 'x-forwarded-for': `10.9.${i >> 8}.${i & 255}` }, `guess-${i}`);
+        if (r.status === 401) wrong++;
+        else if (r.status === 429) slowed++;
+        if (i % 20 === 19) app.clock.advanceMinutes(1);
+      }
+      // Ten minutes of spraying bought 5 free guesses plus about one a minute at the cap.
+      expect(wrong).toBeLessThan(25);
+      expect(slowed).toBeGreaterThan(170);
+      await login({ 'x-forwarded-for': '10.9.9.9' }, 'one-more-guess');
+      // A browser without the device cookie (or a forged one) waits at most the cap, told how long and what to do.
+      for (const cookie of [undefined, 'yp_device=abc.def']) {
+        const fresh = await login(cookie ? { cookie } : {}, password('supervisor'));
+        expect(fresh.status).toBe(429);
+        expect(Number(fresh.headers.get('retry-after'))).toBeLessThanOrEqual(60);
+        expect(((await fresh.json()) as { error: { message: string } }).error.message).toMatch(/reset link/);
+      }
+      // The account's own browser signs in at once.
+      expect((await login({ cookie: device }, password('supervisor'))).status).toBe(201);
+    } finally {
+      await app.close();
+    }
+  });
+});
+
+describe('payment events cannot be forged in the default set-up', () => {
+  it('each installation has its own webhook secret (kept across restarts), never the source’s', async () => {
+    const [a, b] = [fs.mkdtempSync(path.join(os.tmpdir(), 'yp-inst-')), fs.mkdtempSync(path.join(os.tmpdir(), 'yp-inst-'))];
+    const secretA = installationSecret(path.join(a, 'yieldpoint.db'), '.webhook-secret');
+    expect(installationSecret(path.join(a, 'yieldpoint.db'), '.webhook-secret').equals(secretA)).toBe(true);
+    expect(installationSecret(path.join(b, 'yieldpoint.db'), '.webhook-secret').equals(secretA)).toBe(false);
+    expect(secretA.length).toBe(32);
+    expect(fs.statSync(path.join(a, '.webhook-secret')).mode & 0o077).toBe(0);
+  });
+
+  it('refuses events signed with the former constant, seeds unguessable customer ids, and keeps no foreign pay link', async () => {
+    const app = await startBillingTestApp();
+    try {
+      const row = findSubscription(app.db, 1)!;
+      const other = findSubscription(app.db, 2)!;
+      expect(row.stripeCustomerId).not.toMatch(/site1$/);
+      expect(row.stripeCustomerId).not.toBe(other.stripeCustomerId!.replace(/2$/, '1'));
+      const event = (type: string, object: object) => ({ id: `evt_forged_${type}`, object: 'event', api_version: '2026-02-25.clover', created: Math.floor(Date.now() / 1000), type, data: { object }, livemode: false, pending_webhooks: 1, request: { id: null, idempotency_key: null } });
+      const deliver = (e: object, secret: string) => {
+        const payload = JSON.stringify(e);
+        const header = app.billing.stripe.webhooks.generateTestHeaderString({ payload, secret });
+        return fetch(`${app.base}/api/billing/webhook`, { method: 'POST', headers: { 'content-type': 'application/json', 'stripe-signature': header }, body: payload });
+      };
+      const sub = structuredClone(app.fake.get(row.stripeSubscriptionId!)!);
+      sub.items.data[0].quantity = 500;
+      expect((await deliver(event('customer.subscription.updated', sub), 'whsec_yieldpoint_local_fake_secret')).status).toBe(400);
+      expect(findSubscription(app.db, 1)!.seats).toBe(row.seats);
+
+      // Even a correctly signed invoice keeps only a link to the provider's own payment page.
+      const now = Math.floor(Date.now() / 1000);
+      const invoice = { id: 'in_forged_1', object: 'invoice', customer: row.stripeCustomerId, number: 'X-1', status: 'open', currency: 'eur', amount_due: 100, amount_paid: 0, lines: { object: 'list', data: [], has_more: false }, period_start: now, period_end: now, created: now, hosted_invoice_url: 'https://pay.example.net/steal' };
+      expect((await deliver(event('invoice.finalized', invoice), app.billing.webhookSecret)).status).toBe(200);
+      const admin = await app.signIn('admin');
+      const stored = (await admin.get('/api/billing/invoices')).body.invoices.find((i: { number: string }) => i.number === 'X-1');
+      expect(stored.payUrl).toBeNull();
+      expect(listAudit(app.db, 1, { action: 'billing.pay-link.refused' })[0]!.newValue).toEqual({ host: 'pay.example.net' });
+    } finally {
+      await app.closeAll();
+    }
+  });
+});
+
+describe('dates are calendar dates', () => {
+  // Days per month by the Gregorian rule (ISO 8601's calendar): leap years divisible by 4, not by 100 unless by 400.
+  const daysIn = (y: number, m: number) => [31, y % 4 === 0 && (y % 100 !== 0 || y % 400 === 0) ? 29 : 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31][m - 1]!;
+  it('accepts exactly the days the calendar has (generated years, months 0-19, days 0-39)', () => {
+    const pad = (n: number, w: number) => String(n).padStart(w, '0');
+    fc.assert(
+      fc.property(fc.integer({ min: 1000, max: 9999 }), fc.integer({ min: 0, max: 19 }), fc.integer({ min: 0, max: 39 }), (y, m, d) => {
+        const real = m >= 1 && m <= 12 && d >= 1 && d <= daysIn(y, m);
+        return isCalendarDay(`${y}-${pad(m, 2)}-${pad(d, 2)}`) === real;
+      }),
+      { seed: SEED, numRuns: 5000 },
+    );
+    expect(isCalendarDay('2024-02-29')).toBe(true);
+    expect(isCalendarDay('2100-02-29')).toBe(false);
+    expect(isCalendarDay('2000-02-29')).toBe(true);
+  });
+});
+
+describe('the audit trail cannot be rewritten without a trace', () => {
+  let a: TestApp;
+  let admin: Client;
+  const verify = async () => (await admin.get('/api/audit-events/verify')).body;
+  const seal = async () => expect((await admin.post('/api/audit-events/checkpoints', {})).status).toBe(201);
+  const raw = () => a.db.$client;
+  beforeAll(async () => {
+    a = await startTestApp();
+    admin = await a.signIn('admin');
+  });
+  afterAll(() => a.close());
+
+  it('an edited event, its later links recomputed without the key, is found', async () => {
+    const eng = await a.signIn('engineer');
+    await eng.get('/api/session');
+    const rows = raw().prepare('select * from audit_events where site_id = 1 order by id').all() as any[];
+    expect(rows.length).toBeGreaterThanOrEqual(2);
+    // The attacker knows the published recipe (plain SHA-256 over the same fields) but not the key.
+    const link = (r: any, prev: string) => crypto.createHash('sha256').update(JSON.stringify([r.site_id, r.user_id, r.actor, r.action, r.entity, r.entity_id, r.old_value == null ? null : JSON.parse(r.old_value), r.new_value == null ? null : JSON.parse(r.new_value), r.at, prev])).digest('hex');
+    const snapshot = rows.map((r) => ({ ...r }));
+    let prev = rows[0].prev_hash;
+    rows[0].actor = 'someone-else@haldenbay.test';
+    for (const r of rows) {
+      const h = link(r, prev);
+      raw().prepare('update audit_events set actor = ?, prev_hash = ?, hash = ? where id = ?').run(r.actor, prev, h, r.id);
+      prev = h;
+    }
+    expect(await verify()).toMatchObject({ ok: false, firstBrokenId: rows[0].id });
+    for (const r of snapshot) raw().prepare('update audit_events set actor = ?, prev_hash = ?, hash = ? where id = ?').run(r.actor, r.prev_hash, r.hash, r.id);
+    expect((await verify()).ok).toBe(true);
+  });
+
+  it('deleting the newest events is found against the signed checkpoint; a rebuilt chain even with the key', async () => {
+    await seal();
+    const before = await verify();
+    expect(before).toMatchObject({ ok: true, checkpoints: 1 });
+    const kept = raw().prepare('select * from audit_events where site_id = 1 order by id desc limit 2').all() as any[];
+    raw().prepare('delete from audit_events where id in (?, ?)').run(kept[0].id, kept[1].id);
+    const after = await verify();
+    expect(after.firstBrokenId).toBeNull(); // the links that are left are whole
+    expect(after.ok).toBe(false);
+    expect(after.problems[0]).toMatchObject({ kind: 'checkpoint', eventId: kept[0].id });
+    const put = raw().prepare('insert into audit_events (id, site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (@id, @site_id, @user_id, @actor, @action, @entity, @entity_id, @old_value, @new_value, @at, @prev_hash, @hash)');
+    for (const r of kept.reverse()) put.run(r);
+    expect((await verify()).ok).toBe(true);
+
+    // Someone holding the key edits the newest sealed event and recomputes its link: the chain passes, the checkpoint does not.
+    const head = raw().prepare('select * from audit_events where site_id = 1 order by id desc limit 1').get() as any;
+    const edited = { siteId: 1, userId: head.user_id, actor: 'forger@haldenbay.test', action: head.action, entity: head.entity, entityId: head.entity_id, oldValue: head.old_value == null ? null : JSON.parse(head.old_value), newValue: head.new_value == null ? null : JSON.parse(head.new_value), at: head.at, prevHash: head.prev_hash };
+    raw().prepare('update audit_events set actor = ?, hash = ? where id = ?').run(edited.actor, eventHash(auditKeyOf(a.db), edited), head.id);
+    const rebuilt = await verify();
+    expect(rebuilt.firstBrokenId).toBeNull();
+    expect(rebuilt.problems.map((p: { kind: string }) => p.kind)).toEqual(['checkpoint']);
+    raw().prepare('update audit_events set actor = ?, hash = ? where id = ?').run(head.actor, head.hash, head.id);
+  });
+
+  it('a forged checkpoint line is reported, not trusted', async () => {
+    appendCheckpoint(raw(), crypto.randomBytes(32), { siteId: 1, events: 1, lastId: 1, head: 'f'.repeat(64), at: a.clock.now().toISOString() });
+    expect((await verify()).problems).toEqual([{ kind: 'checkpoint', eventId: null, message: '1 checkpoint line does not carry a valid signature' }]);
+  });
+
+  it('edited business rows are found against their last audited state: a lot decision, a printed name, a change request', async () => {
+    // Start from a clean slate of checkpoints for this site (the forged line above stays reported otherwise).
+    const fresh = await startTestApp();
+    try {
+      const [proc, eng, sup, adm] = await Promise.all([fresh.signIn('procurement'), fresh.signIn('engineer'), fresh.signIn('supervisor'), fresh.signIn('admin')]);
+      const check = async () => (await adm.get('/api/audit-events/verify')).body;
+      const lot = ((await proc.get('/api/lots')).body.lots as { id: number; status: string }[]).find((l) => l.status === 'quarantined')!;
+      expect((await proc.post(`/api/lots/${lot.id}/decision`, { decision: 'reject', reason: 'Half-life below specification' })).status).toBe(200);
+      const rec = (await eng.get(`/api/recipes/${((await eng.get('/api/recipes')).body.recipes as { id: number }[])[0]!.id}`)).body.recipe;
+      const plan = (await eng.post('/api/plans', { recipeId: rec.id, lotId: rec.lotId, batchH: rec.batchH, turnaroundH: rec.turnaroundH, doseGPerL: rec.doseGPerL, s0GPerL: rec.s0GPerL, kmGPerL: rec.kmGPerL, productPricePerKg: rec.productPricePerKg, enzymePricePerKg: rec.enzymePricePerKg, heatingCostPerDegCHour: rec.heatingCostPerDegCHour, currentSetpointC: rec.currentSetpointC, strategy: 'isothermal', stages: 3, maxStepC: 3, uncertainty: null })).body;
+      const cr = (await eng.post('/api/change-requests', { planId: plan.id, rationale: 'The assays support a warmer setpoint.', expectedEffect: 'More product', effectiveFrom: '2026-12-20' })).body;
+      expect((await sup.post(`/api/change-requests/${cr.id}/signatures`, { password: password('supervisor'), meaning: 'rejected', comment: 'Not yet' })).status).toBe(201);
+      expect(await check()).toMatchObject({ ok: true, problems: [] });
+      const db = fresh.db.$client;
+      db.prepare("update lots set status = 'accepted', decision_reason = 'Meets specification' where id = ?").run(lot.id);
+      db.prepare("update signatures set printed_name = 'Somebody Else' where change_request_id = ?").run(cr.id);
+      db.prepare("update change_requests set status = 'approved' where id = ?").run(cr.id);
+      const found = await check();
+      expect(found.ok).toBe(false);
+      expect(found.firstBrokenId).toBeNull();
+      const messages = found.problems.map((p: { message: string }) => p.message).join('\n');
+      expect(messages).toMatch(/reads accepted \("Meets specification"\); its audited decision was rejected/);
+      expect(messages).toMatch(/printedName reads "Somebody Else", signed as "Marit Oyelaran"/);
+      expect(messages).toMatch(new RegExp(`Change request ${cr.id} reads approved; its last audited state is rejected`));
+    } finally {
+      await fresh.close();
+    }
+  });
+});
+
+describe('databases written before the chain was keyed', () => {
+  it('re-links a whole legacy chain once with the key (audited), and leaves a broken one reported', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yp-legacy-'));
+    const file = path.join(dir, 'yieldpoint.db');
+    const first = openDb(file);
+    migrateDb(first);
+    const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
+    const ins = first.$client.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, null, ?, ?, ?)');
+    // Site-less chain: whole. Written as the earlier code did (plain SHA-256 links).
+    let prev = '0'.repeat(64);
+    for (let i = 0; i < 5; i++) {
+      const at = new Date(Date.UTC(2026, 10, 1, 8, i)).toISOString();
+      const h = sha([null, null, `u${i}@x.test`, 'sign-in.failed', 'session', null, null, null, at, prev]);
+      ins.run(null, `u${i}@x.test`, 'sign-in.failed', 'session', at, prev, h);
+      prev = h;
+    }
+    first.$client.close();
+    fs.rmSync(path.join(dir, '.audit-key'), { force: true });
+
+    const second = openDb(file);
+    const result = verifyAudit(second, null);
+    expect(result).toMatchObject({ ok: true, events: 6, firstBrokenId: null });
+    const last = second.$client.prepare('select action, new_value as v from audit_events order by id desc limit 1').get() as { action: string; v: string };
+    expect(last.action).toBe('audit.rekeyed');
+    expect(JSON.parse(last.v)).toEqual({ events: 5 });
+    expect(fs.existsSync(path.join(dir, '.audit-key'))).toBe(true);
+    second.$client.close();
+    fs.rmSync(dir, { recursive: true, force: true });
+  });
+
+  it('does not re-link a legacy chain that is already broken (the break stays visible)', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yp-legacy-'));
+    const file = path.join(dir, 'yieldpoint.db');
+    const first = openDb(file);
+    migrateDb(first);
+    const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
+    const ins = first.$client.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (null, null, ?, ?, ?, null, null, null, ?, ?, ?)');
+    let prev = '0'.repeat(64);
+    for (let i = 0; i < 4; i++) {
+      const at = new Date(Date.UTC(2026, 10, 1, 8, i)).toISOString();
+      const h = sha([null, null, `u${i}@x.test`, 'sign-in.failed', 'session', null, null, null, at, prev]);
+      ins.run(`u${i}@x.test`, 'sign-in.failed', 'session', at, prev, h);
+      prev = h;
+    }
+    first.$client.prepare("update audit_events set actor = 'edited@x.test' where id = 2").run();
+    first.$client.close();
+    const second = openDb(file);
+    expect(verifyAudit(second, null)).toMatchObject({ ok: false, events: 4, firstBrokenId: 1 });
+    second.$client.close();
+    fs.rmSync(dir, { recursive: true, force: true });
   });
 });

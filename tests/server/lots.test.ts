@@ -2,7 +2,7 @@ import crypto from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoAssayCsv, demoAssayPoints } from '../../db/seed';
 import { listAudit } from '../../server/repositories/audit';
-import { verifyAudit } from '../../server/services/audit';
+import { verifyAudit } from '../../server/services/audit-verify';
 import { ROLES, type Role } from '../../src/contracts/roles';
 import { startTestApp, type Client, type Reply, type TestApp } from './harness';
 

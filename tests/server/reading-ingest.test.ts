@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditEvents, batchReadings, deviations, users } from '../../db/schema';
 import { HttpError } from '../../server/http-error';
 import { listAudit } from '../../server/repositories/audit';
-import { verifyAudit } from '../../server/services/audit';
+import { verifyAudit } from '../../server/services/audit-verify';
 import { loadSessionUser } from '../../server/services/auth';
 import { readingIngest } from '../../server/services/batches';
 import { email, startTestApp, type Client, type TestApp } from './harness';

@@ -1,6 +1,6 @@
 import bcrypt from 'bcryptjs';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { verifyAudit } from '../../server/services/audit';
+import { verifyAudit } from '../../server/services/audit-verify';
 import { BCRYPT_COST, hashPassword } from '../../server/services/auth';
 import { listAudit } from '../../server/repositories/audit';
 import { email, password, startTestApp, type TestApp } from './harness';
@@ -73,26 +73,67 @@ describe('sign-in', () => {
   });
 });
 
-describe('rate limit', () => {
-  it('stops guessing on one account after the per-account limit, with 429', async () => {
+describe('sign-in limits (failures only, slow-down per account)', () => {
+  const signInAs = (c: ReturnType<TestApp['client']>, role: Parameters<typeof email>[0], pw = password(role)) => c.post('/api/session', { email: email(role), password: pw });
+
+  it('never counts successful sign-ins: ten right passwords in a row all open a session', async () => {
     await t.close();
-    t = await startTestApp({ signInLimit: { perAddress: 100, perAccount: 3, windowMs: 60_000 } });
-    const c = t.client();
-    for (let i = 0; i < 3; i++) expect((await c.post('/api/session', { email: email('supervisor'), password: 'guess' })).status).toBe(401);
-    const blocked = await c.post('/api/session', { email: email('supervisor'), password: password('supervisor') });
-    expect(blocked.status).toBe(429);
-    expect(blocked.body.error.code).toBe('rate_limited');
-    // Another account from the same address is still allowed.
-    expect((await c.post('/api/session', { email: email('engineer'), password: password('engineer') })).status).toBe(201);
+    t = await startTestApp({ signInLimit: { perAddress: 3, perAccount: 3, windowMs: 60_000 } });
+    for (let i = 0; i < 10; i++) expect((await signInAs(t.client(), 'supervisor')).status).toBe(201);
   });
 
-  it('stops one address after the per-address limit', async () => {
+  it('slows one account down progressively after its free failures (1 s, 2 s, 4 s ... up to the cap), then lets the right password in', async () => {
+    await t.close();
+    t = await startTestApp({ signInLimit: { perAddress: 1000, perAccount: 3, windowMs: 15 * 60_000, maxDelayMs: 8000 } });
+    const c = t.client();
+    for (let i = 0; i < 3; i++) expect((await signInAs(c, 'supervisor', 'guess')).status).toBe(401);
+    const waits: number[] = [];
+    for (let i = 0; i < 5; i++) {
+      const slowed = await signInAs(c, 'supervisor', 'guess');
+      expect(slowed.status).toBe(429);
+      expect(slowed.body.error.message).toMatch(/reset link/);
+      const wait = Number(slowed.headers.get('retry-after'));
+      waits.push(wait);
+      t.clock.advanceMinutes(wait / 60);
+      expect((await signInAs(c, 'supervisor', 'guess')).status).toBe(401);
+    }
+    expect(waits).toEqual([1, 2, 4, 8, 8]);
+    t.clock.advanceMinutes(8 / 60);
+    expect((await signInAs(c, 'supervisor')).status).toBe(201);
+    // The success forgot the failures: the next wrong password is free again.
+    expect((await signInAs(c, 'supervisor', 'guess')).status).toBe(401);
+    // Another account from the same address was never slowed.
+    expect((await signInAs(c, 'engineer')).status).toBe(201);
+  });
+
+  it('forgets failures after a quiet window', async () => {
+    await t.close();
+    t = await startTestApp({ signInLimit: { perAddress: 1000, perAccount: 2, windowMs: 60_000 } });
+    const c = t.client();
+    for (let i = 0; i < 2; i++) await signInAs(c, 'operator', 'guess');
+    expect((await signInAs(c, 'operator')).status).toBe(429);
+    t.clock.advanceMinutes(1.5);
+    expect((await signInAs(c, 'operator')).status).toBe(201);
+  });
+
+  it('counts parallel guesses at once, so a burst gets no more than the free failures through', async () => {
+    await t.close();
+    t = await startTestApp({ signInLimit: { perAddress: 1000, perAccount: 3, windowMs: 60_000 } });
+    const answers = await Promise.all(Array.from({ length: 12 }, () => signInAs(t.client(), 'engineer', 'guess')));
+    expect(answers.filter((r) => r.status === 401)).toHaveLength(3);
+    expect(answers.filter((r) => r.status === 429)).toHaveLength(9);
+  });
+
+  it('stops one address after its failed sign-ins, whatever the accounts', async () => {
     await t.close();
     t = await startTestApp({ signInLimit: { perAddress: 2, perAccount: 100, windowMs: 60_000 } });
     const c = t.client();
-    await c.post('/api/session', { email: email('engineer'), password: 'x' });
-    await c.post('/api/session', { email: email('operator'), password: 'x' });
-    expect((await c.post('/api/session', { email: email('admin'), password: password('admin') })).status).toBe(429);
+    expect((await signInAs(c, 'admin')).status).toBe(201);
+    await signInAs(c, 'engineer', 'x');
+    await signInAs(c, 'operator', 'x');
+    const refused = await signInAs(c, 'admin');
+    expect(refused.status).toBe(429);
+    expect(refused.body.error.message).toMatch(/this network/);
   });
 });
 
@@ -169,9 +210,9 @@ describe('audit chain', () => {
     await t.signIn('admin');
     await t.signIn('engineer');
     await t.client().post('/api/session', { email: email('engineer'), password: 'wrong' });
-    expect(verifyAudit(t.db, 1)).toEqual({ ok: true, events: 3 });
+    expect(verifyAudit(t.db, 1)).toMatchObject({ ok: true, events: 3 });
     const second = listAudit(t.db, 1)[1]!;
     t.db.$client.prepare('update audit_events set actor = ? where id = ?').run('someone-else@haldenbay.test', second.id);
-    expect(verifyAudit(t.db, 1)).toEqual({ ok: false, events: 3, firstBrokenId: second.id });
+    expect(verifyAudit(t.db, 1)).toMatchObject({ ok: false, events: 3, firstBrokenId: second.id });
   });
 });
