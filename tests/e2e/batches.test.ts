@@ -1,6 +1,6 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { plannedAt } from '../../src/batches';
+import { plannedAt, siteInputValue } from '../../src/batches';
 import type { Batch } from '../../src/contracts/batches';
 import { accessibilityViolations, acknowledgeCautionsIfShown, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
@@ -12,13 +12,11 @@ beforeAll(async () => {
 });
 afterAll(() => browser?.close());
 
-/** `YYYY-MM-DD HH:mm` in the browser's own zone, as the time field expects. */
-const localInput = (page: Page, ms: number) =>
-  page.evaluate((t) => {
-    const d = new Date(t);
-    const p = (n: number) => String(n).padStart(2, '0');
-    return `${d.getFullYear()}-${p(d.getMonth() + 1)}-${p(d.getDate())} ${p(d.getHours())}:${p(d.getMinutes())}`;
-  }, ms);
+/** `YYYY-MM-DD HH:mm` on the site's clock (its zone from the session), as the time field expects. */
+const localInput = async (page: Page, ms: number) => {
+  const { user } = (await (await page.request.get(`${baseURL}/api/session`)).json()) as { user: { siteTimeZone: string } };
+  return siteInputValue(new Date(ms), user.siteTimeZone);
+};
 
 const figure = async (page: Page, id: string) => Number((await page.getByTestId(id).textContent())!.replace(/[^0-9.\-]/g, ''));
 

@@ -9,7 +9,7 @@ import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
-import { batchHours, batchStatus, durationText, shortTime } from '@/batches';
+import { batchHours, batchStatus, durationText } from '@/batches';
 import type { BatchDetail } from '@/contracts/batches';
 import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
@@ -17,13 +17,14 @@ import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';
 import { useLogReading } from '@/hooks/use-log-reading';
 import { useSession } from '@/hooks/use-session';
+import { useSiteFormat } from '@/hooks/use-site-format';
 import { space, useBreakpoint } from '@/theme';
 
 /** A row of the readings table: stored on the server, still on this device, or refused by the server. */
 type ReadingRow = { key: string; takenAt: string; h: number; c: number; by: string; note: string };
 
-const READING_COLUMNS: Column<ReadingRow>[] = [
-  { key: 'time', label: 'Time', value: (r) => shortTime(r.takenAt) },
+const readingColumns = (time: (iso: string) => string): Column<ReadingRow>[] => [
+  { key: 'time', label: 'Time', value: (r) => time(r.takenAt) },
   { key: 'h', label: 'Hour', value: (r) => fmt(r.h, 2), isNumeric: true },
   { key: 'c', label: '°C', value: (r) => fmt(r.c), isNumeric: true },
   { key: 'by', label: 'By', value: (r) => r.by, flex: 1.2 },
@@ -41,6 +42,7 @@ function planSentence(d: BatchDetail): string {
 function BatchBody({ id }: { id: number }) {
   const { session } = useSession();
   const { isWide } = useBreakpoint();
+  const site = useSiteFormat();
   const { data, error, isLoading, retry, cachedAt } = useBatch(id);
   const logger = useLogReading(id);
   const role: Role = session?.user.role ?? 'operator';
@@ -102,10 +104,10 @@ function BatchBody({ id }: { id: number }) {
           {b.recipeName} · {b.vesselName}
         </Text>
         <Text variant="small" tone={isRunning ? 'success' : 'muted'} weight="semibold" testID="batch-state">
-          {isRunning ? `Running · hour ${fmt(Math.max(0, nowH))} of ${fmt(b.program.batchH, 0)}` : `Closed ${b.closedAt ? shortTime(b.closedAt) : ''} by ${b.closedBy ?? '—'}`}
+          {isRunning ? `Running · hour ${fmt(Math.max(0, nowH))} of ${fmt(b.program.batchH, 0)}` : `Closed ${b.closedAt ? site.time(b.closedAt) : ''} by ${b.closedBy ?? '—'}`}
         </Text>
         <Text variant="small" tone="muted">
-          Lot {b.lotCode} · started {shortTime(b.startedAt)} by {b.startedBy}
+          Lot {b.lotCode} · started {site.time(b.startedAt)} by {b.startedBy}
         </Text>
         <Text variant="small" testID="batch-plan">
           {planSentence(data)}
@@ -145,7 +147,7 @@ function BatchBody({ id }: { id: number }) {
               </View>
             ) : null}
             {preview.rows.length ? (
-              <DataTable columns={READING_COLUMNS} rows={[...preview.rows].reverse().slice(0, 12)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
+              <DataTable columns={readingColumns(site.time)} rows={[...preview.rows].reverse().slice(0, 12)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
             ) : (
               <Text tone="muted">No readings yet.</Text>
             )}

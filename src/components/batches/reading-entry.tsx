@@ -1,8 +1,8 @@
 import { useEffect, useState } from 'react';
 import { StyleSheet, TextInput, View } from 'react-native';
-import { localInputValue, parseLocalInput } from '../../batches';
 import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C } from '../../contracts/rules';
 import type { useLogReading } from '../../hooks/use-log-reading';
+import { useSiteFormat } from '../../hooks/use-site-format';
 import { font, radius, space, touchTarget, type as typeScale, useColors } from '../../theme';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
@@ -14,8 +14,9 @@ type Props = { startedAt: string; lastC: number | null; logger: ReturnType<typeo
 /** The operator's entry: a big temperature field, the time (now unless changed), an optional note, and a one-tap repeat. */
 export function ReadingEntry({ startedAt, lastC, logger }: Props) {
   const c = useColors();
+  const site = useSiteFormat();
   const [temp, setTemp] = useState('');
-  const [time, setTime] = useState(() => localInputValue(new Date()));
+  const [time, setTime] = useState(() => site.inputValue(new Date()));
   const [isTimeEdited, setTimeEdited] = useState(false);
   const [note, setNote] = useState('');
   const [errors, setErrors] = useState<{ c?: string; time?: string }>({});
@@ -24,12 +25,12 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
   // Keep the prefilled time current while the operator has not changed it.
   useEffect(() => {
     if (isTimeEdited) return;
-    const t = setInterval(() => setTime(localInputValue(new Date())), 20_000);
+    const t = setInterval(() => setTime(site.inputValue(new Date())), 20_000);
     return () => clearInterval(t);
-  }, [isTimeEdited]);
+  }, [isTimeEdited, site]);
 
   function checkTime(s: string): { at?: Date; error?: string } {
-    const at = parseLocalInput(s);
+    const at = site.parseInput(s);
     if (!at) return { error: 'Write the time as YYYY-MM-DD HH:mm' };
     if (at.getTime() > Date.now() + CLOCK_SKEW_MIN * 60_000) return { error: 'That time is in the future' };
     if (at.getTime() < Date.parse(startedAt)) return { error: 'That is before the batch started' };
@@ -46,13 +47,13 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
     const t = timeText === null ? { at: new Date() } : checkTime(timeText);
     if (t.error) return setErrors({ time: t.error });
     setErrors({});
-    const shown = localInputValue(t.at!).slice(11);
+    const shown = `${site.inputValue(t.at!).slice(11)} ${site.zone()}`;
     const outcome = await logger.log({ takenAt: t.at!.toISOString(), c: valueC, note: note.trim() || undefined });
     setDone(outcome === 'sent' ? `Logged ${valueC.toFixed(1)} °C at ${shown}` : `Saved ${valueC.toFixed(1)} °C at ${shown} on this device`);
     setTemp('');
     setNote('');
     setTimeEdited(false);
-    setTime(localInputValue(new Date()));
+    setTime(site.inputValue(new Date()));
   }
 
   function onLog() {
@@ -94,7 +95,7 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
         ) : null}
       </View>
       <Field
-        label="Time (your clock)"
+        label={`Time, site clock (${site.zone()})`}
         testID="reading-time"
         value={time}
         onChangeText={(s) => {

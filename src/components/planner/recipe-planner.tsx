@@ -16,6 +16,7 @@ import { SavedPlans } from './saved-plans';
 import { ProfileChart, ProfitChart, SetpointChart, TimeCharts } from './planner-charts';
 import { UncertaintyPanel } from './uncertainty-panel';
 import { usePlanner } from './use-planner';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 const SIDE_COLUMN = 360;
 
@@ -34,6 +35,7 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
   hasUncertainty: boolean;
 }) {
   const o = ev.outputs;
+  const site = useSiteFormat();
   const staged = o.strategy === 'staged' && o.stages;
   const gain = o.gainOverCurrent;
   return (
@@ -46,7 +48,7 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
       </Text>
       <Text testID="recommended-product">
         {fmt(o.predictedProductGPerL, 0)} g/L predicted with the heat-up ramp, {gain >= 0 ? `${fmt(gain * 100)} % more` : `${fmt(-gain * 100)} % less`} than{' '}
-        {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {fmt(o.profitPerH, 0)} per reactor hour
+        {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {site.money(o.profitPerH, 0)} per reactor hour
       </Text>
       {o.atBound ? (
         <Text tone="warning" testID="caution-bound">

@@ -1,0 +1,1 @@
+ALTER TABLE `sites` ADD `currency` text DEFAULT 'EUR' NOT NULL;
