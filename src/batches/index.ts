@@ -6,3 +6,4 @@ export * from './status';
 export * from './deviations';
 export * from './historian-csv';
 export * from './local-time';
+export * from './reading-check';

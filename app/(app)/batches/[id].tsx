@@ -9,7 +9,7 @@ import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
-import { batchHours, batchStatus, durationText } from '@/batches';
+import { batchHours, batchStatus, durationText, readingsExplained } from '@/batches';
 import type { BatchDetail } from '@/contracts/batches';
 import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
@@ -81,7 +81,7 @@ function BatchBody({ id }: { id: number }) {
   const s = preview.status;
   const sentence = `${preview.count} readings. Planned now ${fmt(s.plannedNowC)} °C${last ? `, last logged ${fmt(last.c)} °C` : ''}. Activity left ${fmt(s.activityLeft * 100, 0)} %, product so far ${fmt(s.productSoFarGPerL)} g/L; if the plan is followed from now the batch ends with ${fmt(s.forecastGPerL)} g/L against ${fmt(s.plannedProductGPerL)} g/L planned.`;
 
-  const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} logger={logger} /> : null;
+  const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} vessel={{ name: b.vesselName, minC: b.program.vessel.minC, maxC: b.program.vessel.maxC }} logger={logger} /> : null;
   const deviations = <DeviationList deviations={data.deviations} role={role} current={status.corrective} />;
   const chart = (
     <Card>
@@ -95,6 +95,13 @@ function BatchBody({ id }: { id: number }) {
       <Text variant="small" testID="batch-sentence">
         {sentence}
       </Text>
+      <View style={styles.explained} testID="readings-explained">
+        {readingsExplained(preview.all, (rs) => batchStatus(b.program, rs, nowH).forecastGPerL).map((line) => (
+          <Text key={line} variant="small" tone="muted">
+            {line}
+          </Text>
+        ))}
+      </View>
     </Card>
   );
   return (
@@ -182,4 +189,5 @@ const styles = StyleSheet.create({
   column: { gap: space.lg },
   columnWide: { flex: 1 },
   links: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  explained: { gap: space.xxs },
 });

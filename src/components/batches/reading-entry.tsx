@@ -1,5 +1,6 @@
 import { useEffect, useState } from 'react';
 import { StyleSheet, TextInput, View } from 'react-native';
+import { readingCaution } from '../../batches/reading-check';
 import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C } from '../../contracts/rules';
 import type { useLogReading } from '../../hooks/use-log-reading';
 import { useSiteFormat } from '../../hooks/use-site-format';
@@ -9,10 +10,10 @@ import { Card } from '../ui/card';
 import { Field } from '../ui/field';
 import { Text } from '../ui/text';
 
-type Props = { startedAt: string; lastC: number | null; logger: ReturnType<typeof useLogReading> };
+type Props = { startedAt: string; lastC: number | null; vessel: { name: string; minC: number; maxC: number }; logger: ReturnType<typeof useLogReading> };
 
 /** The operator's entry: a big temperature field, the time (now unless changed), an optional note, and a one-tap repeat. */
-export function ReadingEntry({ startedAt, lastC, logger }: Props) {
+export function ReadingEntry({ startedAt, lastC, vessel, logger }: Props) {
   const c = useColors();
   const site = useSiteFormat();
   const [temp, setTemp] = useState('');
@@ -21,6 +22,8 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
   const [note, setNote] = useState('');
   const [errors, setErrors] = useState<{ c?: string; time?: string }>({});
   const [done, setDone] = useState<string | null>(null);
+  // A reading outside the vessel's range or far from the last is stored only after a second look.
+  const [confirm, setConfirm] = useState<{ c: number; timeText: string | null; message: string } | null>(null);
 
   // Keep the prefilled time current while the operator has not changed it.
   useEffect(() => {
@@ -43,7 +46,10 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
   }, [logger.sentCount]);
 
   /** `timeText` null: the reading is taken now, to the second (the field shows minutes only). */
-  async function submit(valueC: number, timeText: string | null) {
+  async function submit(valueC: number, timeText: string | null, isConfirmed = false) {
+    const caution = isConfirmed ? null : readingCaution(valueC, vessel, lastC);
+    if (caution) return setConfirm({ c: valueC, timeText, message: caution });
+    setConfirm(null);
     const t = timeText === null ? { at: new Date() } : checkTime(timeText);
     if (t.error) return setErrors({ time: t.error });
     setErrors({});
@@ -80,6 +86,7 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
           onChangeText={(s) => {
             setTemp(s);
             setDone(null);
+            setConfirm(null);
           }}
           inputMode="decimal"
           keyboardType="decimal-pad"
@@ -106,6 +113,17 @@ export function ReadingEntry({ startedAt, lastC, logger }: Props) {
         hint={isTimeEdited ? undefined : 'Now; change it for a reading taken earlier'}
       />
       <Field label="Note (optional)" testID="reading-note" value={note} onChangeText={setNote} maxLength={300} />
+      {confirm ? (
+        <View style={[styles.confirm, { borderColor: c.warning }]} testID="reading-confirm" accessibilityLiveRegion="polite">
+          <Text weight="semibold" tone="warning">
+            {confirm.message} Is that what the reactor reads?
+          </Text>
+          <View style={styles.buttons}>
+            <Button label={`Log ${confirm.c.toFixed(1)} °C as read`} onPress={() => void submit(confirm.c, confirm.timeText, true)} testID="reading-confirm-yes" />
+            <Button label="Change it" variant="secondary" onPress={() => setConfirm(null)} testID="reading-confirm-no" />
+          </View>
+        </View>
+      ) : null}
       <View style={styles.buttons}>
         <Button label="Log reading" onPress={onLog} testID="reading-submit" />
         {lastC !== null ? (
@@ -139,4 +157,5 @@ const styles = StyleSheet.create({
   wrap: { gap: space.xs },
   big: { minHeight: touchTarget * 1.6, borderWidth: 1, borderRadius: radius.md, paddingHorizontal: space.md, ...typeScale.figure },
   buttons: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  confirm: { borderWidth: 1, borderRadius: radius.md, padding: space.md, gap: space.sm },
 });
