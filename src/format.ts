@@ -6,3 +6,6 @@ export const isoDate = (s: string) => s.slice(0, 10);
 
 /** A typed number field's text as a number; blank or junk becomes NaN, which the API reports as "Enter a number". */
 export const toNumber = (s: string) => (s.trim() === '' ? NaN : Number(s.replace(',', '.')));
+
+/** An amount with its ISO 4217 code after it: `63 EUR`, `0.25 EUR`. The code, not a symbol: `$` names many currencies. */
+export const money = (x: number, currency: string, digits = 2) => `${fmt(x, digits)} ${currency.toUpperCase()}`;

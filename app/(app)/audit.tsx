@@ -1,8 +1,8 @@
 import { useState } from 'react';
 import { Linking, StyleSheet, View } from 'react-native';
 import { RoleGate } from '@/components/shell/role-gate';
-import { Button, Card, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
-import type { AuditEvent } from '@/contracts/audit-events';
+import { AuditEventItem } from '@/components/audit/audit-event-item';
+import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { useAuditEvents } from '@/hooks/use-audit-events';
 import { useVerifyAudit } from '@/hooks/use-verify-audit';
 import { space } from '@/theme';
@@ -19,15 +19,6 @@ const ACTIONS = [
   { value: 'change-request.reject', label: 'Rejections' },
   { value: 'recipe.release', label: 'Releases' },
 ] as const;
-
-const summary = (v: unknown) => (v == null ? '' : JSON.stringify(v).slice(0, 120));
-
-const COLUMNS: Column<AuditEvent>[] = [
-  { key: 'at', label: 'When (UTC)', value: (e) => e.at.replace('T', ' ').slice(0, 19), flex: 1.2 },
-  { key: 'actor', label: 'Who', value: (e) => e.actor, flex: 1.4 },
-  { key: 'action', label: 'What', value: (e) => `${e.action} · ${e.entity}${e.entityId ? ` ${e.entityId}` : ''}`, flex: 1.3 },
-  { key: 'change', label: 'Old → new', value: (e) => [summary(e.oldValue), summary(e.newValue)].filter(Boolean).join(' → '), flex: 2 },
-];
 
 function VerifyCard() {
   const { verify, result, error, isBusy } = useVerifyAudit();
@@ -82,7 +73,11 @@ function AuditBody() {
           <Text tone="muted" testID="audit-count">
             {offset + 1}–{offset + data.events.length} of {data.total} events, newest first
           </Text>
-          <DataTable columns={COLUMNS} rows={data.events} rowKey={(e) => String(e.id)} caption="Audit trail" testID="audit-table" />
+          <View style={styles.events} testID="audit-table" accessibilityLabel="Audit trail">
+            {data.events.map((e) => (
+              <AuditEventItem key={e.id} e={e} />
+            ))}
+          </View>
           <View style={styles.filters}>
             <Button label="Newer" compact variant="secondary" disabled={offset === 0} onPress={() => setOffset(Math.max(0, offset - 50))} />
             <Button label="Older" compact variant="secondary" disabled={offset + 50 >= data.total} onPress={() => setOffset(offset + 50)} />
@@ -96,11 +91,11 @@ function AuditBody() {
 export default function AuditScreen() {
   return (
     <RoleGate name="audit">
-      <Screen title="Audit trail" subtitle="Every sign-in, change, signature and decision at this site. Append-only." testID="screen-audit">
+      <Screen title="Audit trail" subtitle="Every sign-in, change, signature and decision at this site, on the site clock. Append-only; the CSV keeps each raw record." testID="screen-audit">
         <AuditBody />
       </Screen>
     </RoleGate>
   );
 }
 
-const styles = StyleSheet.create({ filters: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm } });
+const styles = StyleSheet.create({ filters: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm }, events: { gap: space.sm } });

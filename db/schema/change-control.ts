@@ -23,6 +23,8 @@ export const changeRequests = sqliteTable(
     decidedAt: text('decided_at'),
     // What the decision replaced, kept so a decided record still shows the comparison that was signed.
     replaced: text('replaced', { mode: 'json' }).$type<SetpointSide>(),
+    /** The request that closed this one unsigned (superseded or stale). */
+    supersededBy: integer('superseded_by'),
   },
   (t) => [index('change_requests_site_idx').on(t.siteId, t.status, t.id)],
 );

@@ -9,6 +9,8 @@ export const sites = sqliteTable('sites', {
   id: integer('id').primaryKey({ autoIncrement: true }),
   name: text('name').notNull(),
   timeZone: text('time_zone').notNull().default('UTC'),
+  /** ISO 4217 code every amount on the site is shown in (prices, costs, profit); the admin sets it. */
+  currency: text('currency').notNull().default('EUR'),
   createdAt: createdAt(),
 });
 

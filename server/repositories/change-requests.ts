@@ -1,4 +1,4 @@
-import { and, asc, desc, eq } from 'drizzle-orm';
+import { and, asc, desc, eq, ne } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { changeRequests, plans, recipes, signatures, users, vessels } from '../../db/schema';
 import type { ChangeStatus, SetpointSide } from '../../src/contracts/change-requests';
@@ -30,8 +30,16 @@ export const listSiteChangeRequests = (db: Db, siteId: number, status?: ChangeSt
 export const insertChangeRequest = (db: Db, row: Omit<typeof changeRequests.$inferInsert, 'id'>) =>
   db.insert(changeRequests).values(row).returning().get();
 
-export const decideChangeRequest = (db: Db, id: number, status: ChangeStatus, decidedAt: string, replaced: SetpointSide) =>
-  db.update(changeRequests).set({ status, decidedAt, replaced }).where(eq(changeRequests.id, id)).returning().get();
+export const decideChangeRequest = (db: Db, id: number, status: ChangeStatus, decidedAt: string, replaced: SetpointSide, supersededBy: number | null = null) =>
+  db.update(changeRequests).set({ status, decidedAt, replaced, supersededBy }).where(eq(changeRequests.id, id)).returning().get();
+
+/** The recipe's requests still waiting for sign-off, other than `exceptId`. */
+export const listWaitingForRecipe = (db: Db, siteId: number, recipeId: number, exceptId: number) =>
+  db
+    .select()
+    .from(changeRequests)
+    .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.recipeId, recipeId), eq(changeRequests.status, 'proposed'), ne(changeRequests.id, exceptId)))
+    .all();
 
 // Insert only: a signature is never edited or removed.
 export const insertSignature = (db: Db, row: Omit<typeof signatures.$inferInsert, 'id'>) => db.insert(signatures).values(row).returning().get();

@@ -9,7 +9,7 @@ export const insertSession = (db: Db, row: typeof sessions.$inferInsert) => db.i
 // The session check on every request: the session row with its user and site in one statement.
 const sessionWithUser = preparedPer((db) =>
   db
-    .select({ session: sessions, user: users, siteName: sites.name, siteTimeZone: sites.timeZone })
+    .select({ session: sessions, user: users, siteName: sites.name, siteTimeZone: sites.timeZone, siteCurrency: sites.currency })
     .from(sessions)
     .innerJoin(users, eq(sessions.userId, users.id))
     .innerJoin(sites, eq(users.siteId, sites.id))

@@ -10,7 +10,7 @@ export const findUserByEmail = (db: Db, email: string) =>
 
 const userWithSite = preparedPer((db) =>
   db
-    .select({ user: users, siteName: sites.name, siteTimeZone: sites.timeZone })
+    .select({ user: users, siteName: sites.name, siteTimeZone: sites.timeZone, siteCurrency: sites.currency })
     .from(users)
     .innerJoin(sites, eq(users.siteId, sites.id))
     .where(eq(users.id, sql.placeholder('id')))

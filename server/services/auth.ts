@@ -100,7 +100,7 @@ export function loadSessionUser(db: Db, userId: number): SessionUser | null {
   return found ? toSessionUser(found) : null;
 }
 
-function toSessionUser({ user, siteName, siteTimeZone }: { user: UserRow; siteName: string; siteTimeZone: string }): SessionUser | null {
+function toSessionUser({ user, siteName, siteTimeZone, siteCurrency }: { user: UserRow; siteName: string; siteTimeZone: string; siteCurrency: string }): SessionUser | null {
   if (!user.isActive) return null;
   return {
     id: user.id,
@@ -110,6 +110,7 @@ function toSessionUser({ user, siteName, siteTimeZone }: { user: UserRow; siteNa
     siteId: user.siteId,
     siteName,
     siteTimeZone,
+    siteCurrency,
     cautionsAcknowledgedAt: user.cautionsAcknowledgedAt,
   };
 }

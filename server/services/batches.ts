@@ -550,7 +550,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
       if (c < READING_MIN_C || c > READING_MAX_C) reject('invalid', `${c} °C is outside ${READING_MIN_C} to ${READING_MAX_C} °C`);
       else if (badTime) reject('invalid', `${at}: ${badTime}`);
       else if (seen.has(ms)) reject('duplicate', `Same time as line ${seen.get(ms)}`);
-      else if (keys.has(key)) reject('already_stored', `A reading at ${at} is already stored`);
+      else if (keys.has(key)) reject('already_stored', `A reading at ${at} (UTC, to the millisecond) is already stored`);
       else {
         if (ms < lastMs) {
           outOfOrder++;

@@ -21,6 +21,7 @@ import {
   listActiveSupervisors,
   listSignatures,
   listSiteChangeRequests,
+  listWaitingForRecipe,
   type ChangeRequestJoined,
   type ChangeRequestRow,
   type SignatureRow,
@@ -105,6 +106,7 @@ const toSummary = ({ request: r, recipeName, vesselName, proposedBy, proposedSet
   recordHash: r.recordHash,
   createdAt: r.createdAt,
   decidedAt: r.decidedAt,
+  supersededBy: r.supersededBy,
   proposedSetpointC,
 });
 
@@ -145,6 +147,28 @@ export function getChangeRequest(s: Services, u: SessionUser, id: number): Chang
   };
 }
 
+/**
+ * Closes the recipe's other waiting requests unsigned, each audited: `superseded` by a newer proposal, `stale` once
+ * another was released. Each keeps the comparison it showed, so its record still reads as it did.
+ */
+function closeOthers(tx: Db, u: SessionUser, recipe: RecipeRow, byId: number, status: 'superseded' | 'stale', now: Date): void {
+  for (const other of listWaitingForRecipe(tx, u.siteId, recipe.id, byId)) {
+    const plan = findSitePlan(tx, u.siteId, other.planId)!.plan;
+    decideChangeRequest(tx, other.id, status, now.toISOString(), currentSide(tx, u.siteId, recipe, plan), byId);
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: status === 'superseded' ? 'change-request.supersede' : 'change-request.stale',
+      entity: 'change-request',
+      entityId: other.id,
+      oldValue: { status: 'proposed' },
+      newValue: { status, supersededBy: byId },
+      at: now,
+    });
+  }
+}
+
 const link = (ctx: ChangeControlCtx, id: number) => `${ctx.publicUrl.replace(/\/$/, '')}/sign-offs/${id}`;
 
 export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: ChangeRequestInput): ChangeRequestDetail {
@@ -174,6 +198,8 @@ export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: Chan
       newValue: { ...fields, setpointC: plan.setpointC, strategy: plan.strategy, recordHash: hash },
       at: now,
     });
+    // One request per recipe waits at a time: the newest, with the rationale written against what runs now.
+    closeOthers(tx, u, recipe, row.id, 'superseded', now);
     for (const sup of listActiveSupervisors(tx, u.siteId)) {
       if (sup.id === u.id) continue;
       enqueueMail(tx, {
@@ -275,6 +301,7 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
         newValue: { releasedPlanId: plan.id, releasedAt, currentSetpointC: plan.setpointC, changeRequestId: id },
         at: now,
       });
+      closeOthers(tx, u, recipe, id, 'stale', now);
     }
     const proposer = findSiteUser(tx, u.siteId, r.proposedBy);
     if (proposer?.isActive) {

@@ -7,3 +7,4 @@ export * from './deviations';
 export * from './historian-csv';
 export * from './local-time';
 export * from './sample';
+export * from './reading-check';

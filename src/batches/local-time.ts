@@ -1,28 +1,56 @@
-// Times as the operator types and reads them: the device's own clock and zone, minutes only.
+// Times as people type and read them on the floor: the site's clock, labelled with its zone, minutes only. The
+// device's own zone plays no part, so phones in three zones show one batch the same way.
+import { zonedToUtcMs } from './historian-csv';
 
 const p2 = (n: number) => String(n).padStart(2, '0');
-// A table, not toLocaleString: building an Intl formatter per call cost a phone tens of ms on a long list.
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
-/** `2026-12-01 09:05` in the device's zone. */
-export const localInputValue = (d: Date) => `${d.getFullYear()}-${p2(d.getMonth() + 1)}-${p2(d.getDate())} ${p2(d.getHours())}:${p2(d.getMinutes())}`;
-
-/** Reads `YYYY-MM-DD HH:mm[:ss]` (or with a T) in the device's zone; null when it is not a real date and time. */
-export function parseLocalInput(s: string): Date | null {
-  const m = /^\s*(\d{4})-(\d{2})-(\d{2})[T ](\d{1,2}):(\d{2})(?::(\d{2}))?\s*$/.exec(s);
-  if (!m) return null;
-  const [y, mo, d, h, mi, sec] = [m[1], m[2], m[3], m[4], m[5], m[6] ?? '0'].map(Number);
-  const date = new Date(y, mo - 1, d, h, mi, sec);
-  if (date.getFullYear() !== y || date.getMonth() !== mo - 1 || date.getDate() !== d || date.getHours() !== h || date.getMinutes() !== mi) return null;
-  return date;
+// Building an Intl formatter costs a phone tens of ms on a long list; one per zone, kept.
+const formatters = new Map<string, Intl.DateTimeFormat>();
+function wall(t: number, timeZone: string) {
+  let f = formatters.get(timeZone);
+  if (!f) {
+    f = new Intl.DateTimeFormat('en-GB', { timeZone, hourCycle: 'h23', year: 'numeric', month: 'numeric', day: 'numeric', hour: 'numeric', minute: 'numeric', timeZoneName: 'short' });
+    formatters.set(timeZone, f);
+  }
+  const parts = f.formatToParts(new Date(t));
+  const get = (type: string) => parts.find((p) => p.type === type)?.value ?? '';
+  return { y: Number(get('year')), mo: Number(get('month')), d: Number(get('day')), h: Number(get('hour')), mi: Number(get('minute')), zone: get('timeZoneName') };
 }
 
-/** `09:05` (today) or `28 Nov 09:05` in the device's zone. */
-export function shortTime(iso: string, now = new Date()): string {
-  const d = new Date(iso);
-  const hm = `${p2(d.getHours())}:${p2(d.getMinutes())}`;
-  if (d.toDateString() === now.toDateString()) return hm;
-  return `${d.getDate()} ${MONTHS[d.getMonth()]} ${hm}`;
+/** The zone's short name at an instant as the site's clock shows it: `CET`, `CEST`, `UTC`, `GMT+5:30`. */
+export const zoneLabel = (timeZone: string, at = Date.now()) => wall(at, timeZone).zone;
+
+/** `2026-12-01 09:05` on the site's clock (what a time field shows and reads back). */
+export function siteInputValue(d: Date, timeZone: string): string {
+  const w = wall(d.getTime(), timeZone);
+  return `${w.y}-${p2(w.mo)}-${p2(w.d)} ${p2(w.h)}:${p2(w.mi)}`;
+}
+
+/** Reads `YYYY-MM-DD HH:mm[:ss]` (or with a T) on the site's clock; null when it is not a real date and time. */
+export function parseSiteInput(s: string, timeZone: string): Date | null {
+  const m = /^\s*(\d{4})-(\d{2})-(\d{2})[T ](\d{1,2}):(\d{2})(?::(\d{2}))?\s*$/.exec(s);
+  if (!m) return null;
+  const [y, mo, d, h, mi, sec] = [m[1], m[2], m[3], m[4], m[5], m[6] ?? '0'].map(Number) as [number, number, number, number, number, number];
+  const check = new Date(Date.UTC(y, mo - 1, d, h, mi, sec));
+  if (check.getUTCFullYear() !== y || check.getUTCMonth() !== mo - 1 || check.getUTCDate() !== d || check.getUTCHours() !== h || check.getUTCMinutes() !== mi) return null;
+  return new Date(zonedToUtcMs(y, mo, d, h, mi, sec, 0, timeZone));
+}
+
+/** `09:05 CET` (the site's today) or `28 Nov 09:05 CET`, on the site's clock. */
+export function siteTime(iso: string, timeZone: string, now = new Date()): string {
+  const w = wall(Date.parse(iso), timeZone);
+  const today = wall(now.getTime(), timeZone);
+  const hm = `${p2(w.h)}:${p2(w.mi)} ${w.zone}`;
+  if (w.y === today.y && w.mo === today.mo && w.d === today.d) return hm;
+  return `${w.d} ${MONTHS[w.mo - 1]}${w.y === today.y ? '' : ` ${w.y}`} ${hm}`;
+}
+
+/** `2026-12-03 09:45:18 CET`: a full stamp on the site's clock, for records (seconds are the same in every zone). */
+export function siteStamp(iso: string, timeZone: string): string {
+  const t = Date.parse(iso);
+  const w = wall(t, timeZone);
+  return `${w.y}-${p2(w.mo)}-${p2(w.d)} ${p2(w.h)}:${p2(w.mi)}:${p2(new Date(t).getUTCSeconds())} ${w.zone}`;
 }
 
 /** `25 min`, `3.5 h` or `2.1 d` for a duration in ms. */

@@ -2,7 +2,9 @@ import { z } from 'zod';
 import { calendarDay } from './calendar-day';
 import { Plan, PlanStage, PLAN_STRATEGIES } from './plans';
 
-export const CHANGE_STATUSES = ['proposed', 'approved', 'rejected'] as const;
+// `superseded`: a newer request for the same recipe replaced it while it waited. `stale`: another request for the
+// recipe was released, so what it compared against no longer runs. Both close it unsigned.
+export const CHANGE_STATUSES = ['proposed', 'approved', 'rejected', 'superseded', 'stale'] as const;
 export type ChangeStatus = (typeof CHANGE_STATUSES)[number];
 export const SIGNATURE_MEANINGS = ['reviewed', 'approved', 'rejected'] as const;
 export type SignatureMeaning = (typeof SIGNATURE_MEANINGS)[number];
@@ -55,6 +57,8 @@ export const ChangeRequestSummary = z.object({
   recordHash: z.string(),
   createdAt: z.string(),
   decidedAt: z.string().nullable(),
+  /** The request that superseded this one or made it stale. */
+  supersededBy: z.number().int().nullable(),
   proposedSetpointC: z.number(),
 });
 export type ChangeRequestSummary = z.infer<typeof ChangeRequestSummary>;

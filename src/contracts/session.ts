@@ -19,6 +19,7 @@ export const SessionUser = z.object({
   siteId: z.number().int(),
   siteName: z.string(),
   siteTimeZone: z.string(),
+  siteCurrency: z.string(),
   cautionsAcknowledgedAt: z.string().nullable(),
 });
 export type SessionUser = z.infer<typeof SessionUser>;

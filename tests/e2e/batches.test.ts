@@ -1,6 +1,6 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { plannedAt } from '../../src/batches';
+import { plannedAt, siteInputValue } from '../../src/batches';
 import type { Batch } from '../../src/contracts/batches';
 import { accessibilityViolations, acknowledgeCautionsIfShown, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';
 
@@ -12,13 +12,11 @@ beforeAll(async () => {
 });
 afterAll(() => browser?.close());
 
-/** `YYYY-MM-DD HH:mm` in the browser's own zone, as the time field expects. */
-const localInput = (page: Page, ms: number) =>
-  page.evaluate((t) => {
-    const d = new Date(t);
-    const p = (n: number) => String(n).padStart(2, '0');
-    return `${d.getFullYear()}-${p(d.getMonth() + 1)}-${p(d.getDate())} ${p(d.getHours())}:${p(d.getMinutes())}`;
-  }, ms);
+/** `YYYY-MM-DD HH:mm` on the site's clock (its zone from the session), as the time field expects. */
+const localInput = async (page: Page, ms: number) => {
+  const { user } = (await (await page.request.get(`${baseURL}/api/session`)).json()) as { user: { siteTimeZone: string } };
+  return siteInputValue(new Date(ms), user.siteTimeZone);
+};
 
 const figure = async (page: Page, id: string) => Number((await page.getByTestId(id).textContent())!.replace(/[^0-9.\-]/g, ''));
 
@@ -65,20 +63,30 @@ describe('batches on the floor', () => {
     const before = await figure(page, 'figure-forecast');
     expect(await page.getByTestId('deviations-summary').textContent()).toBe('None so far.');
 
-    const log = async (minutesAgo: number, c: string) => {
+    /** Logs a reading; one 10 °C or more from the last must be confirmed once, with the reason shown. */
+    const log = async (minutesAgo: number, c: string, asks?: RegExp) => {
       await page.getByTestId('reading-c').fill(c);
       if (minutesAgo > 0) await page.getByTestId('reading-time').fill(await localInput(page, now - minutesAgo * 60_000));
       await page.getByTestId('reading-submit').click();
+      if (asks) {
+        const ask = page.getByTestId('reading-confirm');
+        await ask.waitFor();
+        expect(await ask.textContent()).toMatch(asks);
+        expect(await page.getByTestId('reading-done').count()).toBe(0);
+        await screenshot(page, 'batch-reading-confirm-390x844');
+        await page.getByTestId('reading-confirm-yes').click();
+      }
       await page.getByTestId('reading-done').waitFor();
     };
     await log(20, '37.1');
     await page.getByTestId('readings-table').getByText('37.1').first().waitFor();
-    await log(10, '52.0');
+    await log(10, '52.0', /52\.0 °C is 14\.9 °C from the last reading of 37\.1 °C\. Is that what the reactor reads\?/);
     // The excursion: a band deviation with a corrective setpoint for the rest of the batch.
     const summary = page.getByTestId('deviations-summary');
     await expect.poll(() => summary.textContent(), { timeout: 10_000 }).toBe('1 of 1 not yet closed');
     expect(await page.getByTestId('deviation-corrective').textContent()).toMatch(/Suggested for the rest of the batch: hold \d+\.\d °C/);
-    await log(0, '37.2');
+    await log(0, '37.2', /14\.8 °C from the last reading of 52\.0 °C/);
+    expect(await page.getByTestId('readings-explained').textContent()).toContain('The last reading, 37.2 °C, counts for no time until the next one is logged.');
     await expect.poll(() => page.getByTestId('readings-table').textContent()).toContain('37.2');
     const after = await figure(page, 'figure-forecast');
     expect(after).toBeLessThan(before);
@@ -111,6 +119,9 @@ describe('batches on the floor', () => {
     await context.setOffline(true);
     await page.getByTestId('reading-c').fill('37.3');
     await page.getByTestId('reading-submit').click();
+    // The batch's last reading may be far from 37.3 °C: then it asks once.
+    await page.locator('[data-testid="reading-queue"], [data-testid="reading-confirm"]').first().waitFor();
+    if (await page.getByTestId('reading-confirm').isVisible()) await page.getByTestId('reading-confirm-yes').click();
     await page.getByTestId('reading-queue').waitFor();
     expect(await page.getByTestId('reading-done').textContent()).toMatch(/Saved 37\.3 °C .* on this device/);
     expect(await page.getByTestId('reading-queue').textContent()).toMatch(/1 reading saved on this device/);

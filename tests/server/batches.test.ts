@@ -345,7 +345,7 @@ describe('historian import', () => {
     const again = await upload(op, csv);
     expect(again.body).toMatchObject({ rows: 50_000, imported: 0, skipped: 50_000 });
     expect(again.body.problems).toHaveLength(200);
-    expect(again.body.problems[0]).toMatchObject({ line: 2, kind: 'already_stored' });
+    expect(again.body.problems[0]).toMatchObject({ line: 2, kind: 'already_stored', message: `A reading at ${new Date(start).toISOString()} (UTC, to the millisecond) is already stored` });
     expect(count(batchReadings)).toBe(n0 + 50_000);
   });
 

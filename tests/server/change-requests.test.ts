@@ -248,3 +248,40 @@ function formatBerlin(iso: string): string {
   const d = new Date(Date.parse(iso) + 3_600_000).toISOString();
   return `${d.slice(0, 10)} ${d.slice(11, 19)} CET (Europe/Berlin)`;
 }
+
+describe('one request per recipe at a time', () => {
+  it('a newer request supersedes the waiting one: closed unsigned, pointing at the newer, audited; signing it is refused', async () => {
+    const older = (await propose(engineer, (await savePlan(44)).id)).body;
+    const newer = (await propose(engineer, (await savePlan(45)).id, { rationale: 'A later plan with the lot assay of this week.' })).body;
+    const closed = (await supervisor.get(`/api/change-requests/${older.id}`)).body;
+    expect(closed).toMatchObject({ status: 'superseded', supersededBy: newer.id });
+    expect(closed.decidedAt).not.toBeNull();
+    // The comparison it showed is kept with it.
+    expect(closed.current).toMatchObject(older.current);
+    expect((await supervisor.get(`/api/change-requests/${newer.id}`)).body).toMatchObject({ status: 'proposed', supersededBy: null });
+    const [event] = auditOf('change-request.supersede', older.id);
+    expect(event).toMatchObject({ oldValue: { status: 'proposed' }, newValue: { status: 'superseded', supersededBy: newer.id } });
+    const refused = await sign(supervisor, older.id, 'approved');
+    expect(refused.status).toBe(409);
+    expect(refused.body.error.code).toBe('already_decided');
+    expect(signatureCount(older.id)).toBe(0);
+    const waiting = (await supervisor.get('/api/change-requests?status=proposed')).body.changeRequests as { recipeId: number }[];
+    expect(waiting.filter((c) => c.recipeId === recipeId)).toHaveLength(1);
+  });
+
+  it('a release makes any other waiting request of the recipe stale', async () => {
+    const plan = await savePlan(46);
+    const released = (await propose(engineer, plan.id)).body;
+    // A request left waiting from before one-at-a-time (or written by another path) is closed when another is released.
+    const otherPlan = await savePlan(47);
+    const left = (await propose(engineer, otherPlan.id)).body;
+    t.db.update(changeRequests).set({ status: 'proposed', supersededBy: null, decidedAt: null }).where(eq(changeRequests.id, released.id)).run();
+    expect((await sign(supervisor, released.id, 'approved')).status).toBe(201);
+    expect(recipeRow().releasedPlanId).toBe(plan.id);
+    const stale = (await supervisor.get(`/api/change-requests/${left.id}`)).body;
+    expect(stale).toMatchObject({ status: 'stale', supersededBy: released.id });
+    expect(auditOf('change-request.stale', left.id)).toHaveLength(1);
+    expect((await sign(supervisor, left.id, 'approved')).status).toBe(409);
+    expect(recipeRow().releasedPlanId).toBe(plan.id);
+  });
+});

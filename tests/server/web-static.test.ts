@@ -95,7 +95,7 @@ describe('serving the exported web app', () => {
   });
 
   it('escapes the session so no name can close the block and run as script', () => {
-    const user = { id: 1, email: 'a@b.test', name: '</script><script>alert(1)</script>', role: 'operator' as const, siteId: 1, siteName: 'S', siteTimeZone: 'UTC', cautionsAcknowledgedAt: null };
+    const user = { id: 1, email: 'a@b.test', name: '</script><script>alert(1)</script>', role: 'operator' as const, siteId: 1, siteName: 'S', siteTimeZone: 'UTC', siteCurrency: 'EUR', cautionsAcknowledgedAt: null };
     const html = pageWithSession('<html><head></head><body></body></html>', { user });
     expect(html).not.toContain('</script><script>');
     expect(html.match(/<script/g)).toHaveLength(1);

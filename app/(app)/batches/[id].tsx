@@ -5,13 +5,13 @@ import { CloseBatchCard } from '@/components/batches/close-batch-card';
 import { DeviationList } from '@/components/batches/deviation-list';
 import { EvidenceNote } from '@/components/evidence/evidence-note';
 import { HistorianUpload } from '@/components/batches/historian-upload';
-import { READING_COLUMNS, ReadingPages, readingRow, type ReadingRow } from '@/components/batches/reading-pages';
+import { ReadingPages, readingColumns, readingRow, type ReadingRow } from '@/components/batches/reading-pages';
 import { ReadingEntry } from '@/components/batches/reading-entry';
 import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text } from '@/components/ui';
-import { batchHours, batchStatus, durationText, shortTime } from '@/batches';
+import { batchHours, batchStatus, durationText, readingsExplained } from '@/batches';
 import type { BatchDetail } from '@/contracts/batches';
 import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
@@ -19,6 +19,7 @@ import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';
 import { useLogReading } from '@/hooks/use-log-reading';
 import { useSession } from '@/hooks/use-session';
+import { useSiteFormat } from '@/hooks/use-site-format';
 import { space, useBreakpoint } from '@/theme';
 
 
@@ -36,6 +37,7 @@ function planSentence(d: BatchDetail): string {
 function BatchBody({ id }: { id: number }) {
   const { session } = useSession();
   const { isWide } = useBreakpoint();
+  const site = useSiteFormat();
   const { data, error, isLoading, retry, cachedAt } = useBatch(id);
   const logger = useLogReading(id);
   const role: Role = session?.user.role ?? 'operator';
@@ -74,7 +76,7 @@ function BatchBody({ id }: { id: number }) {
   const s = preview.status;
   const sentence = `${preview.count} readings. Planned now ${fmt(s.plannedNowC)} °C${last ? `, last logged ${fmt(last.c)} °C` : ''}. Activity left ${fmt(s.activityLeft * 100, 0)} %, product so far ${fmt(s.productSoFarGPerL)} g/L; if the plan is followed from now the batch ends with ${fmt(s.forecastGPerL)} g/L against ${fmt(s.plannedProductGPerL)} g/L planned.`;
 
-  const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} logger={logger} /> : null;
+  const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} vessel={{ name: b.vesselName, minC: b.program.vessel.minC, maxC: b.program.vessel.maxC }} logger={logger} /> : null;
   const deviations = <DeviationList deviations={data.deviations} role={role} current={status.corrective} />;
   const chart = (
     <Card>
@@ -88,6 +90,13 @@ function BatchBody({ id }: { id: number }) {
       <Text variant="small" testID="batch-sentence">
         {sentence}
       </Text>
+      <View style={styles.explained} testID="readings-explained">
+        {readingsExplained(preview.all, (rs) => batchStatus(b.program, rs, nowH).forecastGPerL).map((line) => (
+          <Text key={line} variant="small" tone="muted">
+            {line}
+          </Text>
+        ))}
+      </View>
     </Card>
   );
   return (
@@ -97,10 +106,10 @@ function BatchBody({ id }: { id: number }) {
           {b.recipeName} · {b.vesselName}
         </Text>
         <Text variant="small" tone={isRunning ? 'success' : 'muted'} weight="semibold" testID="batch-state">
-          {isRunning ? `Running · hour ${fmt(Math.max(0, nowH))} of ${fmt(b.program.batchH, 0)}` : `Closed ${b.closedAt ? shortTime(b.closedAt) : ''} by ${b.closedBy ?? '—'}`}
+          {isRunning ? `Running · hour ${fmt(Math.max(0, nowH))} of ${fmt(b.program.batchH, 0)}` : `Closed ${b.closedAt ? site.time(b.closedAt) : ''} by ${b.closedBy ?? '—'}`}
         </Text>
         <Text variant="small" tone="muted">
-          Lot {b.lotCode} · started {shortTime(b.startedAt)} by {b.startedBy}
+          Lot {b.lotCode} · started {site.time(b.startedAt)} by {b.startedBy}
         </Text>
         <Text variant="small" testID="batch-plan">
           {planSentence(data)}
@@ -141,7 +150,7 @@ function BatchBody({ id }: { id: number }) {
               </View>
             ) : null}
             {preview.rows.length ? (
-              <DataTable columns={READING_COLUMNS} rows={[...preview.rows].reverse().slice(0, LATEST_SHOWN)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
+              <DataTable columns={readingColumns(site.time)} rows={[...preview.rows].reverse().slice(0, LATEST_SHOWN)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
             ) : (
               <Text tone="muted">No readings yet.</Text>
             )}
@@ -177,4 +186,5 @@ const styles = StyleSheet.create({
   column: { gap: space.lg },
   columnWide: { flex: 1 },
   links: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  explained: { gap: space.xxs },
 });

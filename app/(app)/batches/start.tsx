@@ -3,7 +3,6 @@ import { useEffect, useState } from 'react';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Choice, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { Field } from '@/components/ui/field';
-import { localInputValue, parseLocalInput } from '@/batches';
 import { BATCH_STARTERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
@@ -11,6 +10,7 @@ import { useSession } from '@/hooks/use-session';
 import { useRecipe, useRecipes } from '@/hooks/use-recipes';
 import { useStartBatch } from '@/hooks/use-start-batch';
 import { useVessels } from '@/hooks/use-vessels';
+import { useSiteFormat } from '@/hooks/use-site-format';
 
 // Nothing chosen yet: no option has this value.
 const NONE = -1;
@@ -25,10 +25,11 @@ function FieldError({ message, testID }: { message?: string; testID: string }) {
 
 function StartForm() {
   const { session } = useSession();
+  const site = useSiteFormat();
   const [recipeId, setRecipeId] = useState<number | null>(null);
   const [vesselId, setVesselId] = useState<number | null>(null);
   const [lotId, setLotId] = useState<number | null>(null);
-  const [time, setTime] = useState(() => localInputValue(new Date()));
+  const [time, setTime] = useState(() => site.inputValue(new Date()));
   const [timeError, setTimeError] = useState<string | undefined>();
   const recipes = useRecipes();
   const detail = useRecipe(recipeId);
@@ -55,7 +56,7 @@ function StartForm() {
       : `No plan has been released for this recipe: the batch runs its current setpoint of ${fmt(r.currentSetpointC)} °C for ${fmt(r.batchH, 0)} h.`
     : null;
   async function onStart() {
-    const at = parseLocalInput(time);
+    const at = site.parseInput(time);
     if (!at) return setTimeError('Write the time as YYYY-MM-DD HH:mm');
     setTimeError(undefined);
     if (!recipeId || !vesselId || !lotId) return;
@@ -81,7 +82,7 @@ function StartForm() {
           <FieldError message={f.lotId} testID="start-lot-error" />
         </>
       ) : null}
-      <Field label="Start time (your clock)" value={time} onChangeText={setTime} testID="start-time" error={timeError ?? f.startedAt} />
+      <Field label={`Start time, site clock (${site.zone()})`} value={time} onChangeText={setTime} testID="start-time" error={timeError ?? f.startedAt} />
       {start.error && !Object.keys(f).length ? (
         <Text variant="small" tone="danger">
           {start.error.message}

@@ -14,6 +14,7 @@ const FILTERS: { value: Filter; label: string }[] = [
   { value: 'proposed', label: 'Waiting' },
   { value: 'approved', label: 'Approved' },
   { value: 'rejected', label: 'Rejected' },
+  { value: 'superseded', label: 'Superseded' },
   { value: 'all', label: 'All' },
 ];
 
@@ -51,7 +52,8 @@ export default function SignOffsScreen() {
         testID="screen-sign-offs"
         actions={
           <View style={styles.actions}>
-            {role === 'engineer' || role === 'supervisor' ? <Button label="Propose from a plan" variant="secondary" testID="open-planner" onPress={() => router.navigate('/planner')} /> : null}
+            {/* Only engineers save plans, so only they can propose one. */}
+            {role === 'engineer' ? <Button label="Propose from a plan" variant="secondary" testID="open-planner" onPress={() => router.navigate('/planner')} /> : null}
             {canAudit ? <Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} /> : null}
           </View>
         }

@@ -1,8 +1,9 @@
 import { router } from 'expo-router';
 import { Pressable, StyleSheet, View } from 'react-native';
-import { durationText, shortTime } from '../../batches';
+import { durationText } from '../../batches';
 import type { BatchSummary } from '../../contracts/batches';
 import { fmt } from '../../format';
+import { useSiteFormat } from '../../hooks/use-site-format';
 import { radius, space, touchTarget, useColors } from '../../theme';
 import { Text } from '../ui/text';
 
@@ -12,6 +13,7 @@ import { Text } from '../ui/text';
  */
 export function BatchCard({ b, now }: { b: BatchSummary; now: Date }) {
   const c = useColors();
+  const site = useSiteFormat();
   const since = b.lastReadingAt ? `last reading ${durationText(now.getTime() - Date.parse(b.lastReadingAt))} ago` : 'no readings yet';
   const outcome =
     b.state === 'running'
@@ -35,7 +37,7 @@ export function BatchCard({ b, now }: { b: BatchSummary; now: Date }) {
         ) : null}
       </View>
       <Text variant="small" tone="muted">
-        {b.vesselName} · lot {b.lotCode} · started {shortTime(b.startedAt, now)}
+        {b.vesselName} · lot {b.lotCode} · started {site.time(b.startedAt, now)}
         {b.state === 'running' ? ` · ${since}` : ''}
       </Text>
       <Text variant="small">{outcome}</Text>

@@ -1,6 +1,5 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { shortTime } from '../../batches';
 import type { Corrective, Deviation } from '../../contracts/batches';
 import { DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS } from '../../contracts/rules';
 import type { Role } from '../../contracts/roles';
@@ -12,6 +11,7 @@ import { Button } from '../ui/button';
 import { Card } from '../ui/card';
 import { Field } from '../ui/field';
 import { Text } from '../ui/text';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 const KIND: Record<Deviation['kind'], string> = {
   band: 'Outside the tolerance band',
@@ -34,6 +34,7 @@ function Suggestion({ d }: { d: NonNullable<Deviation['corrective']> }) {
 
 function DeviationItem({ d, role, current }: { d: Deviation; role: Role; current: Corrective | null }) {
   const c = useColors();
+  const site = useSiteFormat();
   const [comment, setComment] = useState('');
   const ack = useAcknowledgeDeviation();
   const close = useCloseDeviation();
@@ -51,7 +52,7 @@ function DeviationItem({ d, role, current }: { d: Deviation; role: Role; current
         </Text>
       </View>
       <Text variant="small" tone="muted">
-        {shortTime(d.at)}
+        {site.time(d.at)}
       </Text>
       <Text variant="small">{d.message}</Text>
       {/* The suggestion from the latest reading replaces the one stored when the deviation was raised (kept in the report). */}

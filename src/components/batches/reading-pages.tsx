@@ -1,17 +1,18 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { api, ApiError } from '@/api/client';
-import { shortTime } from '@/batches';
 import type { Reading, ReadingsPage } from '@/contracts/batches';
 import { fmt } from '@/format';
+import { useSiteFormat } from '@/hooks/use-site-format';
 import { space } from '@/theme';
 import { Button, DataTable, Text, type Column } from '../ui';
 
 /** A row of a readings table: stored on the server, still on this device, or refused by the server. */
 export type ReadingRow = { key: string; takenAt: string; h: number; c: number; by: string; note: string };
 
-export const READING_COLUMNS: Column<ReadingRow>[] = [
-  { key: 'time', label: 'Time', value: (r) => shortTime(r.takenAt) },
+/** The readings table's columns, times shown by `time` (the site's clock, zone named). */
+export const readingColumns = (time: (iso: string) => string): Column<ReadingRow>[] => [
+  { key: 'time', label: 'Time', value: (r) => time(r.takenAt) },
   { key: 'h', label: 'Hour', value: (r) => fmt(r.h, 2), isNumeric: true },
   { key: 'c', label: '°C', value: (r) => fmt(r.c), isNumeric: true },
   { key: 'by', label: 'By', value: (r) => r.by, flex: 1.2 },
@@ -31,6 +32,7 @@ export function ReadingPages({ batchId, total }: { batchId: number; total: numbe
   const [next, setNext] = useState<number | null | undefined>(undefined);
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
+  const site = useSiteFormat();
   const load = async () => {
     setBusy(true);
     setError(null);
@@ -47,7 +49,7 @@ export function ReadingPages({ batchId, total }: { batchId: number; total: numbe
   const isOpen = next !== undefined;
   return (
     <View style={styles.block} testID="reading-pages">
-      {isOpen ? <DataTable columns={READING_COLUMNS} rows={rows} rowKey={(r) => r.key} caption="All stored readings, newest first" testID="reading-pages-table" /> : null}
+      {isOpen ? <DataTable columns={readingColumns(site.time)} rows={rows} rowKey={(r) => r.key} caption="All stored readings, newest first" testID="reading-pages-table" /> : null}
       {isOpen ? (
         <Text variant="small" tone="muted" testID="reading-pages-count">
           {rows.length.toLocaleString('en')} of {total.toLocaleString('en')} stored readings shown, newest first.

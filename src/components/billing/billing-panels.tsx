@@ -2,14 +2,14 @@ import { useState } from 'react';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
 import type { ApiError } from '../../api/client';
 import type { BillingSummary, Invoice } from '../../contracts/billing';
-import { isoDate } from '../../format';
+import { isoDate, money } from '../../format';
 import { useBuySeats } from '../../hooks/use-buy-seats';
 import { useChangeSeats } from '../../hooks/use-change-seats';
 import { space, useBreakpoint, useColors } from '../../theme';
 import { Button, Card, DataTable, Field, Figure, Text, type Column } from '../ui';
 
 /** 4900, 'eur' -> '49.00 EUR': amounts stay in the account's currency, with its code. */
-export const money = (cents: number, currency: string) => `${(cents / 100).toFixed(2)} ${currency.toUpperCase()}`;
+const cents = (n: number, currency: string) => money(n / 100, currency);
 
 const STATUS_LABEL: Record<BillingSummary['status'], string> = { none: 'No paid plan', active: 'Paid up', past_due: 'Payment failed', canceled: 'Ended' };
 
@@ -33,7 +33,7 @@ export function PlanCard({ b }: { b: BillingSummary }) {
         {STATUS_LABEL[b.status]}
       </Text>
       <Text tone="muted">
-        {money(b.unitAmountCents, b.currency)} per seat per month{b.currentPeriodEnd ? ` · this period ends ${isoDate(b.currentPeriodEnd)}` : ''}
+        {cents(b.unitAmountCents, b.currency)} per seat per month{b.currentPeriodEnd ? ` · this period ends ${isoDate(b.currentPeriodEnd)}` : ''}
       </Text>
     </Card>
   );
@@ -87,7 +87,7 @@ export function BuySeatsCard({ b }: { b: BillingSummary }) {
         inputMode="numeric"
         keyboardType="number-pad"
         error={errorFor(buy.error, 'addSeats')}
-        hint={valid ? `${money(n * b.unitAmountCents, b.currency)} now, then ${b.seats + n} seats each month` : undefined}
+        hint={valid ? `${cents(n * b.unitAmountCents, b.currency)} now, then ${b.seats + n} seats each month` : undefined}
       />
       <Button
         label={valid ? `Pay for ${n} ${n === 1 ? 'seat' : 'seats'}` : 'Pay for seats'}
@@ -138,7 +138,7 @@ const INVOICE_COLUMNS: Column<Invoice>[] = [
   // A one-off charge for added seats has no period of its own.
   { key: 'period', label: 'Period', value: (i) => (i.periodStart === i.periodEnd ? 'Seats added' : `${isoDate(i.periodStart)} – ${isoDate(i.periodEnd)}`), flex: 1.6 },
   { key: 'seats', label: 'Seats', value: (i) => String(i.seats), isNumeric: true, flex: 0.6 },
-  { key: 'amount', label: 'Amount', value: (i) => money(i.amountDueCents, i.currency), isNumeric: true },
+  { key: 'amount', label: 'Amount', value: (i) => cents(i.amountDueCents, i.currency), isNumeric: true },
   { key: 'status', label: 'Status', value: (i) => (i.status === 'paid' ? 'Paid' : i.status === 'open' ? 'Unpaid' : i.status) },
 ];
 

@@ -8,9 +8,11 @@ import { CalibrationReview } from '../calibration/calibration-review';
 import { EvidenceNote } from '../evidence/evidence-note';
 import { Button, Card, Columns, DataTable, Text, type Column } from '../ui';
 import { Comparison } from './comparison';
-import { STATUS_LABELS, STATUS_TONES, utcTime } from './labels';
+import { closedBecause, STATUS_LABELS, STATUS_TONES, utcTime } from './labels';
 import { SignForm } from './sign-form';
 import { SignatureList } from './signature-list';
+import { pricesText } from '../planner/plan-sheet';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 type Row = { label: string; value: string };
 const COLUMNS: Column<Row>[] = [
@@ -19,7 +21,7 @@ const COLUMNS: Column<Row>[] = [
 ];
 
 
-function inputRows(d: ChangeRequestDetail): Row[] {
+function inputRows(d: ChangeRequestDetail, currency: string): Row[] {
   const i = d.plan.inputs;
   const k = d.plan.outputs.kinetics;
   return [
@@ -29,7 +31,7 @@ function inputRows(d: ChangeRequestDetail): Row[] {
     { label: 'Dose', value: `${fmt(i.doseGPerL, 2)} g/L` },
     { label: 'Substrate S0 / Km', value: `${fmt(i.s0GPerL, 0)} / ${fmt(i.kmGPerL, 2)} g/L` },
     { label: 'Stability', value: `kd ${k.kdRefPerH.toPrecision(3)} /h at ${fmt(k.tRefC, 0)} °C, Ed ${fmt(k.edKJPerMol, 0)} kJ/mol (${k.stabilitySource})` },
-    { label: 'Prices', value: `product ${fmt(i.productPricePerKg, 2)}/kg, enzyme ${fmt(i.enzymePricePerKg, 2)}/kg, heating ${fmt(i.heatingCostPerDegCHour, 2)} per °C·h` },
+    { label: 'Prices', value: pricesText(i, currency) },
     { label: 'Uncertainty run', value: i.uncertainty ? `${i.uncertainty.draws} draws, seed ${i.uncertainty.seed}` : 'Not run' },
     { label: 'Model version', value: d.plan.modelVersion },
   ];
@@ -40,6 +42,7 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
   const canSign = user.role === 'supervisor' && d.status === 'proposed';
   const isOwn = d.proposedById === user.id;
   const cautions = d.plan.outputs.cautions;
+  const site = useSiteFormat();
   return (
     <>
       <View style={styles.headline}>
@@ -55,6 +58,14 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
         <Button label="Export CSV" variant="secondary" onPress={() => Linking.openURL(`/api/change-requests/${d.id}/export.csv`)} testID="record-csv" />
         {user.role !== 'admin' ? <Button label="Open the plan" variant="ghost" onPress={() => router.push(`/planner/plan/${d.planId}`)} /> : null}
       </View>
+      {d.supersededBy !== null ? (
+        <Card testID="record-closed">
+          <Text weight="semibold">{closedBecause(d.status, d.supersededBy)}</Text>
+          <View style={styles.actions}>
+            <Button label={`Open request #${d.supersededBy}`} variant="secondary" onPress={() => router.push(`/sign-offs/${d.supersededBy}`)} testID="record-open-superseding" />
+          </View>
+        </Card>
+      ) : null}
       {!d.isIntact ? (
         <Card accessibilityRole="alert" testID="record-changed">
           <Text tone="danger" weight="semibold">
@@ -87,7 +98,7 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
             <Text variant="title" accessibilityRole="header">
               Plan #{d.planId} inputs
             </Text>
-            <DataTable columns={COLUMNS} rows={inputRows(d)} rowKey={(r) => r.label} caption="Plan inputs" testID="record-inputs" />
+            <DataTable columns={COLUMNS} rows={inputRows(d, site.currency)} rowKey={(r) => r.label} caption="Plan inputs" testID="record-inputs" />
             <EvidenceNote evidence={d.plan.outputs.kinetics.evidence} olderEvidence={d.plan.olderEvidence} testID="record-evidence" />
           </Card>
         </>

@@ -1,6 +1,7 @@
 import type { SetpointSide } from '../../contracts/change-requests';
 import { fmt } from '../../format';
 import { DataTable, type Column } from '../ui';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 type Row = { label: string; current: string; proposed: string };
 
@@ -25,6 +26,7 @@ function setpoint(s: SetpointSide): string {
 
 /** Current and proposed setpoints with their predicted figures, one row per figure. */
 export function Comparison({ current, proposed }: { current: SetpointSide; proposed: SetpointSide }) {
+  const site = useSiteFormat();
   const row = (label: string, f: (s: SetpointSide) => string): Row => ({ label, current: f(current), proposed: f(proposed) });
   const rows: Row[] = [
     row('Basis', (s) => `${SOURCE[s.source]}${s.planId ? ` #${s.planId}` : ''}`),
@@ -32,7 +34,7 @@ export function Comparison({ current, proposed }: { current: SetpointSide; propo
     row('Predicted product', (s) => orDash(s.predictedProductGPerL, (x) => `${fmt(x)} g/L`)),
     row('P10 / P50 / P90', (s) => (s.p10GPerL === null || s.p50GPerL === null || s.p90GPerL === null ? 'Not run' : `${fmt(s.p10GPerL)} / ${fmt(s.p50GPerL)} / ${fmt(s.p90GPerL)} g/L`)),
     row('Activity left at the end', (s) => orDash(s.activityLeft, (x) => `${fmt(x * 100, 0)} %`)),
-    row('Profit per reactor hour', (s) => orDash(s.profitPerH, (x) => fmt(x, 1))),
+    row('Profit per reactor hour', (s) => orDash(s.profitPerH, (x) => site.money(x, 1))),
     row('Constraints met', (s) => (s.constraintsMet === null ? '–' : s.constraintsMet ? 'Yes' : 'No')),
   ];
   return <DataTable columns={COLUMNS} rows={rows} rowKey={(r) => r.label} caption="Current and proposed setpoint" testID="comparison" />;

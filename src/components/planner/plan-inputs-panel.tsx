@@ -7,9 +7,11 @@ import { lotKinetics } from '../../planning';
 import { space } from '../../theme';
 import { Card, Choice, NumberField, Text } from '../ui';
 import type { Planner } from './use-planner';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 /** Everything the engineer can change; each change recomputes the plan in the browser. */
 export function PlanInputsPanel({ detail, planner }: { detail: RecipeDetail; planner: Planner }) {
+  const site = useSiteFormat();
   const { inputs, update } = planner;
   const on = useMemo(
     () => ({
@@ -53,9 +55,9 @@ export function PlanInputsPanel({ detail, planner }: { detail: RecipeDetail; pla
         <NumberField label="Current setpoint" unit="°C" value={inputs.currentSetpointC} step={0.5} min={vessel.minC} max={vessel.maxC} onChange={on.currentSetpointC} testID="input-current" />
         <NumberField label="Substrate S0" unit="g/L" value={inputs.s0GPerL} step={10} min={1} max={2000} decimals={0} onChange={on.s0GPerL} testID="input-s0" />
         <NumberField label="Km" unit="g/L" value={inputs.kmGPerL} step={0.5} min={0.01} max={2000} decimals={2} onChange={on.kmGPerL} testID="input-km" />
-        <NumberField label="Product price" unit="per kg" value={inputs.productPricePerKg} step={0.05} min={0} max={1e6} decimals={2} onChange={on.productPricePerKg} testID="input-product-price" />
-        <NumberField label="Enzyme price" unit="per kg" value={inputs.enzymePricePerKg} step={1} min={0} max={1e6} decimals={2} onChange={on.enzymePricePerKg} testID="input-enzyme-price" />
-        <NumberField label="Heating cost" unit="per °C·h" value={inputs.heatingCostPerDegCHour} step={0.1} min={0} max={1e6} decimals={2} onChange={on.heatingCostPerDegCHour} testID="input-heating" />
+        <NumberField label="Product price" unit={`${site.currency}/kg`} value={inputs.productPricePerKg} step={0.05} min={0} max={1e6} decimals={2} onChange={on.productPricePerKg} testID="input-product-price" />
+        <NumberField label="Enzyme price" unit={`${site.currency}/kg`} value={inputs.enzymePricePerKg} step={1} min={0} max={1e6} decimals={2} onChange={on.enzymePricePerKg} testID="input-enzyme-price" />
+        <NumberField label="Heating cost" unit={`${site.currency} per °C·h`} value={inputs.heatingCostPerDegCHour} step={0.1} min={0} max={1e6} decimals={2} onChange={on.heatingCostPerDegCHour} testID="input-heating" />
       </View>
       <Choice
         label="Plan"

@@ -1,10 +1,11 @@
 import { router } from 'expo-router';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
 import type { Plan } from '../../contracts/plans';
-import { fmt } from '../../format';
+import { fmt, money } from '../../format';
 import { space } from '../../theme';
 import { EvidenceNote } from '../evidence/evidence-note';
 import { Button, Card, DataTable, Text, type Column } from '../ui';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 type Row = { label: string; value: string };
 const COLUMNS: Column<Row>[] = [
@@ -14,18 +15,23 @@ const COLUMNS: Column<Row>[] = [
 
 const SPREAD_LABELS = { fit: 'assay fit covariance', calibration: 'calibration covariance', default: 'default spread' } as const;
 
+/** The plan's prices in the site's currency, as the plan and its change request print them. */
+export const pricesText = (i: Pick<Plan['inputs'], 'productPricePerKg' | 'enzymePricePerKg' | 'heatingCostPerDegCHour'>, currency: string) =>
+  `product ${money(i.productPricePerKg, currency)}/kg, enzyme ${money(i.enzymePricePerKg, currency)}/kg, heating ${money(i.heatingCostPerDegCHour, currency)} per °C·h`;
+
 /** A saved plan as the server computed and stored it: the printable record change control will sign. */
 export function PlanSheet({ plan }: { plan: Plan }) {
   const o = plan.outputs;
   const i = plan.inputs;
   const u = o.uncertainty;
+  const site = useSiteFormat();
   const result: Row[] = [
     { label: o.strategy === 'staged' ? 'Profile' : 'Setpoint', value: o.stages ? o.stages.map((s) => `${fmt(s.hours)} h at ${fmt(s.c)} °C`).join(', ') : `${fmt(o.setpointC)} °C` },
     { label: 'Predicted product (ramps included)', value: `${fmt(o.predictedProductGPerL)} g/L` },
     { label: 'P10 / P50 / P90 (setpoint held)', value: u ? `${fmt(u.p10)} / ${fmt(u.p50)} / ${fmt(u.p90)} g/L, ${u.draws} draws, seed ${u.seed}, ${SPREAD_LABELS[u.parameterSpread]}` : 'Not run' },
     { label: 'Robust setpoint', value: u ? `${fmt(u.robustSetpointC)} °C (P10 ${fmt(u.robustP10)} g/L)` : '–' },
     { label: 'Activity left at the end', value: `${fmt(o.activityLeft * 100, 0)} %` },
-    { label: 'Profit per reactor hour', value: fmt(o.profitPerH, 1) },
+    { label: 'Profit per reactor hour', value: site.money(o.profitPerH, 1) },
     { label: 'Current setpoint', value: `${fmt(o.current.setpointC)} °C: ${fmt(o.current.productGPerL)} g/L, ${fmt(o.current.activityLeft * 100, 0)} % activity left` },
     { label: 'Gain over current', value: `${fmt(o.gainOverCurrent * 100)} %` },
     { label: 'Vessel range used', value: `${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at the ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}` },
@@ -39,7 +45,7 @@ export function PlanSheet({ plan }: { plan: Plan }) {
     { label: 'Dose', value: `${fmt(i.doseGPerL, 2)} g/L (Vmax ${fmt(o.kinetics.vmaxRefGPerLH, 2)} g/L/h at ${fmt(o.kinetics.tRefC, 0)} °C)` },
     { label: 'Substrate S0 / Km', value: `${fmt(i.s0GPerL, 0)} / ${fmt(i.kmGPerL, 2)} g/L` },
     { label: 'Stability', value: `kd ${o.kinetics.kdRefPerH.toPrecision(3)} /h at ${fmt(o.kinetics.tRefC, 0)} °C, Ed ${fmt(o.kinetics.edKJPerMol, 0)} kJ/mol, Ea ${fmt(o.kinetics.eaKJPerMol, 0)} kJ/mol (${o.kinetics.stabilitySource})` },
-    { label: 'Prices', value: `product ${fmt(i.productPricePerKg, 2)}/kg, enzyme ${fmt(i.enzymePricePerKg, 2)}/kg, heating ${fmt(i.heatingCostPerDegCHour, 2)} per °C·h` },
+    { label: 'Prices', value: pricesText(i, site.currency) },
     { label: 'Staged search', value: `${i.stages} stages, steps at most ${fmt(i.maxStepC)} °C` },
     { label: 'Model version', value: plan.modelVersion },
     { label: 'Content hash (sha256)', value: plan.contentHash },

@@ -4,6 +4,7 @@ import { fmt } from '../../format';
 import type { PlanEvaluation, PlanSeries } from '../../planning';
 import { LineChart } from '../charts/line-chart';
 import { Card } from '../ui';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 type Props = { ev: PlanEvaluation; series: PlanSeries; inputs: PlanInputs };
 
@@ -111,14 +112,15 @@ export function ProfileChart({ ev, inputs }: Props) {
 export function ProfitChart({ ev, series, inputs }: Props) {
   const b = series.bestBatch;
   const chosen = profitCurve(ev.enzyme, ev.substrate, ev.boundsC, [inputs.batchH], ev.econ)[0]!;
+  const site = useSiteFormat();
   return (
     <Card>
       <LineChart
-        title="Profit per reactor hour vs batch length"
-        summary={`With ${fmt(inputs.turnaroundH, 0)} h turnaround, profit per reactor hour peaks at ${fmt(b.profitPerH, 0)} for a ${fmt(b.batchH)} h batch at ${fmt(b.setpointC)} °C; a ${fmt(inputs.batchH, 0)} h batch makes about ${fmt(chosen.profitPerH, 0)} per hour.`}
+        title={`Profit per reactor hour (${site.currency}/h) vs batch length`}
+        summary={`With ${fmt(inputs.turnaroundH, 0)} h turnaround, profit per reactor hour peaks at ${site.money(b.profitPerH, 0)} for a ${fmt(b.batchH)} h batch at ${fmt(b.setpointC)} °C; a ${fmt(inputs.batchH, 0)} h batch makes about ${site.money(chosen.profitPerH, 0)} per hour.`}
         testID="chart-profit"
         xLabel="batch length, h"
-        yLabel="profit per hour"
+        yLabel={`profit, ${site.currency}/h`}
         series={[{ id: 'profit', label: 'Profit per hour, each at its best setpoint', tone: 'primary', points: series.profit.map((p) => ({ x: p.batchH, y: p.profitPerH })) }]}
         markers={[
           { id: 'best', x: b.batchH, y: b.profitPerH, label: `Best ${fmt(b.batchH, 0)} h`, tone: 'primary' },

@@ -8,6 +8,7 @@ import { useUpdateRecipe } from '../../hooks/use-update-recipe';
 import { useVessels } from '../../hooks/use-vessels';
 import { space } from '../../theme';
 import { Button, Card, Choice, ErrorState, Field, Loader, Text } from '../ui';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 type NumberKey = Exclude<keyof RecipeInput, 'name' | 'lotId' | 'vesselId'>;
 
@@ -21,9 +22,9 @@ const FIELDS: { key: NumberKey; label: string; hint?: string }[] = [
   { key: 'turnaroundH', label: 'Turnaround (h)' },
   { key: 'fillC', label: 'Fill temperature (°C)' },
   { key: 'currentSetpointC', label: 'Current setpoint (°C)', hint: 'After this, only change control moves it' },
-  { key: 'productPricePerKg', label: 'Product price (per kg)' },
-  { key: 'enzymePricePerKg', label: 'Enzyme price (per kg)' },
-  { key: 'heatingCostPerDegCHour', label: 'Heating cost (per °C·h)' },
+  { key: 'productPricePerKg', label: 'Product price (CUR/kg)' },
+  { key: 'enzymePricePerKg', label: 'Enzyme price (CUR/kg)' },
+  { key: 'heatingCostPerDegCHour', label: 'Heating cost (CUR per °C·h)' },
 ];
 
 /**
@@ -33,6 +34,7 @@ const FIELDS: { key: NumberKey; label: string; hint?: string }[] = [
 export function RecipeForm({ recipe, onDone }: { recipe?: Recipe; onDone: () => void }) {
   const lots = useLots();
   const vessels = useVessels();
+  const site = useSiteFormat();
   const create = useCreateRecipe();
   const update = useUpdateRecipe();
   const { error, isBusy } = recipe ? update : create;
@@ -65,7 +67,7 @@ export function RecipeForm({ recipe, onDone }: { recipe?: Recipe; onDone: () => 
         {fields.map((f) => (
           <View key={f.key} style={styles.cell}>
             <Field
-              label={f.label}
+              label={f.label.replace('CUR', site.currency)}
               hint={f.hint}
               value={text[f.key]}
               onChangeText={(v) => setText({ ...text, [f.key]: v })}

@@ -19,6 +19,7 @@ import { SavedPlans } from './saved-plans';
 import { ProfileChart, ProfitChart, SetpointChart, TimeCharts } from './planner-charts';
 import { UncertaintyPanel } from './uncertainty-panel';
 import { usePlanner } from './use-planner';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 const SIDE_COLUMN = 360;
 
@@ -38,6 +39,7 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
   hasUncertainty: boolean;
 }) {
   const o = ev.outputs;
+  const site = useSiteFormat();
   const staged = o.strategy === 'staged' && o.stages;
   const gain = o.gainOverCurrent;
   return (
@@ -55,14 +57,14 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
             {Math.abs(o.setpointC - o.current.setpointC) < 0.05 ? ' at the current setpoint, so no change is recommended' : ''} · {fmt(o.activityLeft * 100, 0)} % activity left
           </Text>
           <Text tone="primary" weight="semibold" testID="early-finish">
-            A batch ended at hour {fmt(o.earlyFinish.completeAtH)} would earn {fmt(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour, against {fmt(o.earlyFinish.fullProfitPerH, 0)} for the full{' '}
+            A batch ended at hour {fmt(o.earlyFinish.completeAtH)} would earn {site.money(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour, against {site.money(o.earlyFinish.fullProfitPerH, 0)} for the full{' '}
             {fmt(inputs.batchH, 0)} h.
           </Text>
         </>
       ) : (
         <Text testID="recommended-product">
           {fmt(o.predictedProductGPerL, 0)} g/L predicted with the heat-up ramp, {gain >= 0 ? `${fmt(gain * 100)} % more` : `${fmt(-gain * 100)} % less`} than{' '}
-          {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {fmt(o.profitPerH, 0)} per reactor hour
+          {fmt(o.current.setpointC)} °C now · {fmt(o.activityLeft * 100, 0)} % activity left · profit {site.money(o.profitPerH, 0)} per reactor hour
         </Text>
       )}
       <EvidenceNote evidence={o.kinetics.evidence} showDisagreement testID="planner-evidence" />

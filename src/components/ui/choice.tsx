@@ -39,4 +39,5 @@ export function Choice<T extends string | number>({ label, value, options, onCha
   );
 }
 
-const styles = StyleSheet.create({ wrap: { gap: space.xs }, row: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm } });
+// maxWidth: inside a row of controls a group still wraps its options at the screen's edge instead of running past it.
+const styles = StyleSheet.create({ wrap: { gap: space.xs, maxWidth: '100%', flexShrink: 1 }, row: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm } });

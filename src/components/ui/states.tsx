@@ -1,6 +1,6 @@
 import { StyleSheet, View } from 'react-native';
 import type { ApiError } from '../../api/client';
-import { shortTime } from '../../batches/local-time';
+import { useSiteFormat } from '../../hooks/use-site-format';
 import { radius, space, useColors } from '../../theme';
 import { Button } from './button';
 import { Card } from './card';
@@ -51,9 +51,10 @@ const styles = StyleSheet.create({
  */
 export function CachedNote({ cachedAt }: { cachedAt: string }) {
   const at = Date.parse(cachedAt);
+  const site = useSiteFormat();
   return (
     <Text variant="small" tone="warning" weight="semibold" testID="cached-note" accessibilityLiveRegion="polite">
-      {Number.isFinite(at) ? `As of ${shortTime(new Date(at).toISOString())}, offline` : 'Offline: the last answer saved on this device'}: readings you log are kept here and sent when the network returns.
+      {Number.isFinite(at) ? `As of ${site.time(new Date(at).toISOString())}, offline` : 'Offline: the last answer saved on this device'}: readings you log are kept here and sent when the network returns.
     </Text>
   );
 }

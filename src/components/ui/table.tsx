@@ -36,16 +36,26 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPres
       <View testID={testID} accessibilityLabel={caption} style={styles.list}>
         {rows.map((row) => (
           <Row key={rowKey(row)} onPress={onRowPress && (() => onRowPress(row))} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
-            {columns.map((col, i) => (
-              <View key={col.key} style={styles.pair}>
-                <Text variant="small" tone="muted">
-                  {col.label}
-                </Text>
-                <Text variant="small" weight={i === 0 ? 'semibold' : 'regular'} style={styles.pairValue}>
-                  {col.value(row)}
-                </Text>
-              </View>
-            ))}
+            {/* The first column names the card; a lone second column is its value, with no repeated header beside it. */}
+            <Text variant="small" weight="semibold" style={styles.wrapAnywhere}>
+              {columns[0]!.value(row)}
+            </Text>
+            {columns.length === 2 ? (
+              <Text variant="small" style={styles.wrapAnywhere}>
+                {columns[1]!.value(row)}
+              </Text>
+            ) : (
+              columns.slice(1).map((col) => (
+                <View key={col.key} style={styles.pair}>
+                  <Text variant="small" tone="muted">
+                    {col.label}
+                  </Text>
+                  <Text variant="small" style={[styles.pairValue, styles.wrapAnywhere]}>
+                    {col.value(row)}
+                  </Text>
+                </View>
+              ))
+            )}
           </Row>
         ))}
       </View>
@@ -82,6 +92,8 @@ const styles = StyleSheet.create({
   card: { borderWidth: 1, borderRadius: 10, padding: space.md, gap: space.xxs },
   pair: { flexDirection: 'row', justifyContent: 'space-between', gap: space.md },
   pairValue: { flexShrink: 1, textAlign: 'right' },
+  // A hash or a code with no space breaks inside rather than running off a phone's edge (react-native-web style).
+  wrapAnywhere: { wordBreak: 'break-word' } as object,
   table: { borderWidth: 1, borderRadius: 10, overflow: 'hidden' },
   row: { flexDirection: 'row', borderBottomWidth: StyleSheet.hairlineWidth, minHeight: 44, alignItems: 'center' },
   cell: { paddingHorizontal: space.md, paddingVertical: space.sm },

@@ -1,0 +1,21 @@
+import { describe, expect, it } from 'vitest';
+import { auditChanges, auditSentence } from '../../src/components/audit/audit-sentence';
+
+// Reading rules of this product's own audit trail (no outside source): a sentence per event, the changed fields only.
+describe('audit events as people read them', () => {
+  it('names who did what to which record', () => {
+    expect(auditSentence({ actor: 'a@site.test', action: 'recipe.release', entity: 'recipe', entityId: '2' })).toBe('a@site.test released a new setpoint for recipe 2');
+    expect(auditSentence({ actor: 'a@site.test', action: 'change-request.create', entity: 'change-request', entityId: '4' })).toBe('a@site.test proposed change request 4');
+    expect(auditSentence({ actor: 'a@site.test', action: 'sign-in', entity: 'user', entityId: '1' })).toBe('a@site.test signed in');
+    expect(auditSentence({ actor: 'a@site.test', action: 'batch_settings.update', entity: 'batch_settings', entityId: '1' })).toBe('a@site.test changed batch settings 1');
+  });
+
+  it('lists only the fields that changed, old -> new', () => {
+    expect(auditChanges({ oldValue: { setpointC: 35, releasedPlanId: null, recipeId: 2 }, newValue: { setpointC: 37, releasedPlanId: 5, recipeId: 2 } })).toEqual([
+      { field: 'setpoint (°C)', before: '35', after: '37' },
+      { field: 'released plan id', before: '–', after: '5' },
+    ]);
+    expect(auditChanges({ oldValue: null, newValue: { state: 'running' } })).toEqual([{ field: 'state', before: '–', after: 'running' }]);
+    expect(auditChanges({ oldValue: null, newValue: null })).toEqual([]);
+  });
+});
