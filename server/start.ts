@@ -11,6 +11,7 @@ import { proposeDemoChange } from './services/demo-proposal';
 import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
 import { createFileStore } from './file-store';
+import { launchPlant } from './opcua/launch-plant';
 
 const root = path.resolve(__dirname, '..');
 
@@ -27,6 +28,7 @@ function sessionSecret(configured: Uint8Array | null, databaseFile: string): Uin
 
 async function main() {
   const env = readEnv();
+  const dataDir = path.dirname(path.resolve(env.databaseFile));
   if (!env.skipWebBuild) await ensureWebBuild(root, env.webDir);
   const db = openDb(env.databaseFile);
   migrateDb(db);
@@ -47,6 +49,8 @@ async function main() {
     mail,
     files: createFileStore(path.join(path.dirname(path.resolve(env.databaseFile)), 'files')),
   });
+  // The simulated plant starts beside the app without holding it up (its first start makes its certificate).
+  const plant = launchPlant(db, env, dataDir);
   const server = app.listen(env.port, env.host, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : env.port;
@@ -65,7 +69,7 @@ async function main() {
   server.keepAliveTimeout = 65_000;
   const stop = () => {
     server.close(() => {
-      void Promise.all([mail.stop(), integrations.close()]).finally(() => {
+      void Promise.all([mail.stop(), integrations.close(), plant.close()]).finally(() => {
         db.$client.close();
         process.exit(0);
       });
