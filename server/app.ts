@@ -19,6 +19,7 @@ import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
 import { calibrationsRouter } from './routes/calibrations';
+import { controlLinkRouter } from './routes/control-link';
 import { batchesRouter } from './routes/batches';
 import { deviationsRouter } from './routes/deviations';
 import { billingRouter, billingWebhook } from './routes/billing';
@@ -35,6 +36,7 @@ import { usersRouter } from './routes/users';
 import { vesselsRouter } from './routes/vessels';
 import type { AuthConfig } from './services/auth';
 import type { Billing } from './services/billing-provider';
+import type { ControlLink } from './services/control-link';
 import { createFileStore, type FileStore } from './file-store';
 
 export type AppDeps = {
@@ -56,6 +58,8 @@ export type AppDeps = {
   mail?: { kick(): void };
   /** Where uploaded files (certificates of analysis) live; a fresh temporary folder when omitted (tests). */
   files?: FileStore;
+  /** The read-only control-system link (OPC UA); without it its routes answer 503. */
+  controlLink?: ControlLink;
 };
 
 const DEFAULT_SIGN_IN_LIMIT = { perAddress: 30, perAccount: 10, windowMs: 15 * 60_000 };
@@ -130,6 +134,7 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/batches', router: batchesRouter(services) },
     { prefix: '/calibrations', router: calibrationsRouter(services) },
     { prefix: '/deviations', router: deviationsRouter(services) },
+    { prefix: '/control-link', router: controlLinkRouter({ ...services, link: deps.controlLink ?? null }) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
     {
       prefix: '/change-requests',

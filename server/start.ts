@@ -12,6 +12,8 @@ import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
 import { createFileStore } from './file-store';
 import { launchPlant } from './opcua/launch-plant';
+import { openAppPki, pkiFolderBeside } from './opcua/pki';
+import { startControlLink } from './services/control-link';
 
 const root = path.resolve(__dirname, '..');
 
@@ -37,6 +39,9 @@ async function main() {
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const localUrl = `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
   if (seeded) proposeDemoChange({ db, clock: systemClock, mail, publicUrl: env.publicUrl ?? localUrl }, seeded.siteId);
+  // Yieldpoint's OPC UA certificate (made once) and trust list beside the database; the link reads, never writes.
+  const pki = await openAppPki(pkiFolderBeside(env.databaseFile));
+  const controlLink = startControlLink({ db, clock: systemClock, pki });
   const app = createApp({
     db,
     clock: systemClock,
@@ -48,6 +53,7 @@ async function main() {
     billing: integrations.billing,
     mail,
     files: createFileStore(path.join(path.dirname(path.resolve(env.databaseFile)), 'files')),
+    controlLink,
   });
   // The simulated plant starts beside the app without holding it up (its first start makes its certificate).
   const plant = launchPlant(db, env, dataDir);
@@ -69,7 +75,7 @@ async function main() {
   server.keepAliveTimeout = 65_000;
   const stop = () => {
     server.close(() => {
-      void Promise.all([mail.stop(), integrations.close(), plant.close()]).finally(() => {
+      void Promise.all([mail.stop(), integrations.close(), controlLink.close().then(() => pki.dispose()), plant.close()]).finally(() => {
         db.$client.close();
         process.exit(0);
       });

@@ -1,6 +1,7 @@
 import path from 'node:path';
 import type { Db } from '../../db/client';
 import type { ServerEnv } from '../env';
+import { listSiteSources } from '../repositories/control-link';
 import { firstSite } from '../repositories/sites';
 import { DEMO_PLANT_USER, startDemoPlant } from './demo-plant';
 import type { Plant } from './plant';
@@ -12,7 +13,10 @@ import type { Plant } from './plant';
  */
 export function launchPlant(db: Db, env: Pick<ServerEnv, 'plantSim'>, dataDir: string): { ready: Promise<Plant | null>; close(): Promise<void> } {
   const site = firstSite(db);
-  if (!env.plantSim.enabled || !site) return { ready: Promise.resolve(null), close: async () => {} };
+  // Beside the app unless the site reads a real plant: no source yet, or one reads this plant's address.
+  const sources = site ? listSiteSources(db, site.id) : [];
+  const readsPlant = sources.some((r) => /^opc\.tcp:\/\/(127\.0\.0\.1|localhost):/.test(r.source.endpointUrl));
+  if (!env.plantSim.enabled || !site || (sources.length && !readsPlant)) return { ready: Promise.resolve(null), close: async () => {} };
   const pkiFolder = path.join(dataDir, 'plant-sim-pki');
   const start = (port: number) => startDemoPlant(db, site.id, { port, pkiFolder });
   const ready = start(env.plantSim.port)

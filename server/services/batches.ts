@@ -34,6 +34,7 @@ import {
   type Reading,
   type ReadingInput,
   type ReadingResult,
+  type ReadingSource,
 } from '../../src/contracts/batches';
 import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
@@ -371,7 +372,7 @@ function runningBatch(db: Db, siteId: number, id: number): BatchJoined {
   return j;
 }
 
-type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput };
+type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput; source: ReadingSource };
 type Logged = { created: boolean; result: ReadingResult };
 // A new reading carries its answer from the transaction; a repeat is answered from the database.
 type Stored = { created: true; result: ReadingResult } | { created: false; readingId: number; startedAt: string } | { error: unknown };
@@ -390,7 +391,9 @@ type BatchGroup = {
  * under its own savepoint so a refused reading (bad time, reused key, closed batch) fails alone. Every request
  * is answered only after the transaction committed, so a 2xx still means the reading is on disk.
  */
-export function readingIngest(s: Services): { log(u: SessionUser, batchId: number, input: ReadingInput): Promise<Logged> } {
+export type ReadingIngest = { log(u: SessionUser, batchId: number, input: ReadingInput, source?: ReadingSource): Promise<Logged> };
+
+export function readingIngest(s: Services): ReadingIngest {
   let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
   const flush = () => {
     const items = queue;
@@ -414,9 +417,9 @@ export function readingIngest(s: Services): { log(u: SessionUser, batchId: numbe
     });
   };
   return {
-    log: (u, batchId, input) =>
+    log: (u, batchId, input, source = 'manual') =>
       new Promise<Logged>((resolve, reject) => {
-        if (queue.push({ req: { u, batchId, input }, resolve, reject }) === 1) setImmediate(flush);
+        if (queue.push({ req: { u, batchId, input, source }, resolve, reject }) === 1) setImmediate(flush);
       }),
   };
 }
@@ -452,7 +455,7 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[
 }
 
 /** Stores one reading once per key: the first answers 201, a repeat of the same reading 200 with the same body. */
-function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input }: ReadingRequest, now: Date): Stored {
+function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input, source }: ReadingRequest, now: Date): Stored {
   const groupKey = `${u.siteId}:${batchId}`;
   let g = groups.get(groupKey);
   if (!g) {
@@ -476,11 +479,25 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
   const before = readingAtOrBefore(t, b.id, takenAt);
   const prev = before ? { h: batchHours(b.startedAt, before.takenAt), c: before.c } : null;
   const drafts = readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c });
-  const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
-  appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
+  const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source, enteredBy: u.id, receivedAt: now.toISOString() });
+  appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note, ...(source === 'manual' ? {} : { source }) }, at: now });
   for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
   g.lastBy = u;
   return { created: true, result: { reading: toReading(row, u.name, b.startedAt), deviations: [] } };
+}
+
+/**
+ * A deviation the readings cannot raise themselves (the control-system link's lost signal), stored with its audit
+ * event like the others, unless one of its kind is still active on the batch. Returns whether it was raised.
+ */
+export function raiseBatchDeviation({ db, clock }: Services, u: SessionUser, batchId: number, draft: DeviationDraft): boolean {
+  const b = runningBatch(db, u.siteId, batchId).batch;
+  const now = clock.now();
+  return writeTx(db, (t) => {
+    if (hasActiveDeviation(t, b.id, draft.kind)) return false;
+    raiseDeviations(t, u, b, [{ readingId: null, draft }], now);
+    return true;
+  });
 }
 
 const MAX_PROBLEMS = 200;
