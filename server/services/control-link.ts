@@ -32,8 +32,8 @@ export type ControlLinkOptions = {
   backoff?: { minMs: number; maxMs: number };
   /** Every OPC UA request type the link sends (the read-only test). */
   onRequest?: (requestType: string) => void;
-  /** Each newly stored value: its source time and when it was on disk (the load benchmark). */
-  onStored?: (sourceMs: number, storedMs: number) => void;
+  /** Each newly stored value: its source time, when it arrived and when it was on disk (the load benchmark). */
+  onStored?: (sourceMs: number, receivedMs: number, storedMs: number) => void;
 };
 
 export type ControlLink = {
@@ -91,6 +91,11 @@ const connKey = (siteId: number, s: VesselSourceRow) => JSON.stringify([siteId, 
 /** What a tap depends on: any change makes a new one. */
 const tapSignature = (s: VesselSourceRow) => JSON.stringify([s.nodeId, s.unit, s.isEnabled, s.endpointUrl, s.securityPolicy, s.securityMode, s.userName, s.password, s.trustedThumbprint]);
 const readingKey = (sourceMs: number) => `opcua:${new Date(sourceMs).toISOString()}`;
+/**
+ * The server sends a change at once and then at most one per sampling interval; it holds notifications until the
+ * next publish. Publishing ten times per sampling interval (50-250 ms) keeps the delay to the database short.
+ */
+const publishingMs = (samplingMs: number) => Math.max(50, Math.min(250, samplingMs / 10));
 /** A gap shorter than this after a reconnect is just the reconnect itself, not worth marking. */
 const MIN_GAP_MS = 5000;
 
@@ -108,6 +113,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
   // Values ---------------------------------------------------------------------------------------------
 
   function onValue(tap: Tap, dv: DataValue, live: boolean): Promise<void> | void {
+    const receivedMs = Date.now();
     const bad = (why: string) => {
       tap.errors++;
       tap.lastError = why;
@@ -137,7 +143,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
       (r) => {
         if (!r.created) return;
         tap.stored++;
-        o.onStored?.(sourceMs, Date.now());
+        o.onStored?.(sourceMs, receivedMs, Date.now());
       },
       (err: unknown) => bad(err instanceof Error ? err.message : String(err)),
     );
@@ -202,7 +208,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     conn.state = 'connecting';
     let reader: Reader;
     try {
-      reader = await openReader({ ...conn.connection, pki: o.pki, onRequest: o.onRequest }, Math.max(100, Math.min(conn.samplingIntervalMs, 1000)));
+      reader = await openReader({ ...conn.connection, pki: o.pki, onRequest: o.onRequest }, publishingMs(conn.samplingIntervalMs));
     } catch (err) {
       const why = err instanceof LinkRefused ? err.message : explain(err, conn.connection);
       conn.state = /refused|not trusted|did not accept|no endpoint/i.test(why) ? 'refused' : 'disconnected';
@@ -259,6 +265,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
       tap.conn.taps.delete(tap.vesselId);
       await tap.monitor?.stop();
     }
+    const starting: Conn[] = [];
     for (const [vesselId, { siteId, row }] of wanted) {
       if (taps.has(vesselId)) continue;
       const s = settings(siteId);
@@ -302,8 +309,10 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
       taps.set(vesselId, tap);
       conn.taps.set(vesselId, tap);
       if (conn.reader) await attach(conn, tap);
-      else if (conn.taps.size === 1 && !conn.timer) void connect(conn);
+      else if (conn.taps.size === 1 && !conn.timer) starting.push(conn);
     }
+    // New connections attach every tap added above; the reconcile ends once they are up (or refused).
+    await Promise.all(starting.map(connect));
     for (const conn of [...conns.values()]) if (!conn.taps.size) await closeConn(conn);
   }
 
