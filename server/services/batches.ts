@@ -324,10 +324,11 @@ function raiseDeviations(
   b: BatchJoined['batch'],
   raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
   now: Date,
+  checkForecast = true,
 ): DeviationRow[] {
   const settings = batchSettingsOf(t, u.siteId);
   // The status integrates every reading of the batch; it is needed only for a corrective setpoint or a P10 check.
-  const checksForecast = b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
+  const checksForecast = checkForecast && b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
   const status =
     checksForecast || raised.some((r) => CORRECTABLE.has(r.draft.kind)) ? batchStatus(b.program, pointsOf(t, b), batchHours(b.startedAt, now.toISOString()), true) : null;
   const low = status && checksForecast ? forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH) : null;
@@ -393,14 +394,25 @@ type BatchGroup = {
  */
 export type ReadingIngest = { log(u: SessionUser, batchId: number, input: ReadingInput, source?: ReadingSource): Promise<Logged> };
 
-export function readingIngest(s: Services): ReadingIngest {
+/**
+ * `forecastEveryMs`: a feed of a reading a second (the control-system link) checks a batch's forecast against its
+ * P10 at most this often, not on every flush (each check integrates the whole batch); other rules run on every reading.
+ */
+export function readingIngest(s: Services, opts: { forecastEveryMs?: number } = {}): ReadingIngest {
+  const forecastAt = new Map<number, number>();
+  const checksForecast = (batchId: number, nowMs: number) => {
+    if (!opts.forecastEveryMs) return true;
+    if (nowMs - (forecastAt.get(batchId) ?? -Infinity) < opts.forecastEveryMs) return false;
+    forecastAt.set(batchId, nowMs);
+    return true;
+  };
   let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
   const flush = () => {
     const items = queue;
     queue = [];
     let stored: Stored[];
     try {
-      stored = storeReadings(s, items.map((i) => i.req));
+      stored = storeReadings(s, items.map((i) => i.req), checksForecast);
     } catch (err) {
       for (const i of items) i.reject(err);
       return;
@@ -430,7 +442,7 @@ function readingAnswer(db: Db, readingId: number, startedAt: string): ReadingRes
 }
 
 /** One transaction for a group of readings; per reading its stored id or the error that refused it. */
-function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[] {
+function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksForecast: (batchId: number, nowMs: number) => boolean): Stored[] {
   const now = clock.now();
   return writeTx(db, (t, savepoint) => {
     const groups = new Map<string, BatchGroup>();
@@ -447,7 +459,7 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[
     const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
     for (const g of groups.values()) {
       if (!g.lastBy) continue;
-      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now))
+      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now, checksForecast(g.b.id, now.getTime())))
         if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
     }
     return out;

@@ -102,7 +102,8 @@ const MIN_GAP_MS = 5000;
 export function startControlLink(o: ControlLinkOptions): ControlLink {
   const { db, clock } = o;
   const services = { db, clock };
-  const ingest: ReadingIngest = readingIngest(services);
+  // Same ingest as phone readings; the P10 forecast check (an integration of the whole batch) once a minute.
+  const ingest: ReadingIngest = readingIngest(services, { forecastEveryMs: 60_000 });
   const backoff = o.backoff ?? { minMs: 1000, maxMs: 60_000 };
   const conns = new Map<string, Conn>();
   const taps = new Map<number, Tap>();

@@ -104,7 +104,10 @@ beforeAll(async () => {
   const running = ((await operator.get('/api/batches')).body.batches as { id: number; state: string; vesselName: string }[]).find((b) => b.state === 'running' && b.vesselName === TAG)!;
   batchId = running.id;
   vesselId = ((await admin.get('/api/vessels')).body.vessels as { id: number; name: string }[]).find((v) => v.name === TAG)!.id;
+  // The server reports at most one change per sampling interval: 100 ms, and the tests space their values more.
+  expect((await admin.patch('/api/control-link/settings', { samplingIntervalMs: 100, deadbandC: 0 })).body).toEqual({ samplingIntervalMs: 100, deadbandC: 0 });
 }, 60_000);
+const pause = (ms = 250) => new Promise((r) => setTimeout(r, ms));
 
 afterAll(async () => {
   await link?.close();
@@ -165,7 +168,11 @@ describe('values from the plant', () => {
     plant.set(TAG, values[0]!, { at: times[0] });
     await link.reconcile();
     await until('connected', async () => (await statusOf())?.state === 'connected');
-    for (const [i, v] of values.entries()) if (i) plant.set(TAG, v, { at: times[i] });
+    for (const [i, v] of values.entries()) {
+      if (!i) continue;
+      plant.set(TAG, v, { at: times[i] });
+      await pause();
+    }
     const rows = await until('three readings', () => (controlReadings().length >= 3 ? controlReadings() : null));
     await new Promise((r) => setTimeout(r, 300));
     expect(controlReadings()).toHaveLength(3);
