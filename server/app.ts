@@ -19,6 +19,7 @@ import { requireWritableSite } from './middleware/site-writable';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { auditEventsRouter } from './routes/audit-events';
 import { calibrationsRouter } from './routes/calibrations';
+import { controlLinkRouter } from './routes/control-link';
 import { batchesRouter } from './routes/batches';
 import { deviationsRouter } from './routes/deviations';
 import { billingRouter, billingWebhook } from './routes/billing';
@@ -36,6 +37,7 @@ import { vesselsRouter } from './routes/vessels';
 import type { AuthConfig } from './services/auth';
 import type { Billing } from './services/billing-provider';
 import type { SignInLimit } from './services/sign-in-throttle';
+import type { ControlLink } from './services/control-link';
 import { createFileStore, type FileStore } from './file-store';
 
 export type AppDeps = {
@@ -57,6 +59,8 @@ export type AppDeps = {
   mail?: { kick(): void };
   /** Where uploaded files (certificates of analysis) live; a fresh temporary folder when omitted (tests). */
   files?: FileStore;
+  /** The read-only control-system link (OPC UA); without it its routes answer 503. */
+  controlLink?: ControlLink;
 };
 
 // Failed sign-ins only. 300 per address per 15 min: a shift of up to 60 people behind one plant address, each
@@ -134,6 +138,7 @@ export function createApp(deps: AppDeps): Express {
     { prefix: '/batches', router: batchesRouter(services) },
     { prefix: '/calibrations', router: calibrationsRouter(services) },
     { prefix: '/deviations', router: deviationsRouter(services) },
+    { prefix: '/control-link', router: controlLinkRouter({ ...services, link: deps.controlLink ?? null }) },
     { prefix: '/audit-events', router: auditEventsRouter(services) },
     {
       prefix: '/change-requests',

@@ -31,6 +31,10 @@ const Env = z.object({
   STRIPE_SECRET_KEY: z.string().optional(),
   STRIPE_WEBHOOK_SECRET: z.string().optional(),
   STRIPE_FAKE_PORT: z.coerce.number().int().min(0).max(65535).default(0),
+  // The simulated OPC UA plant (127.0.0.1): auto starts it beside the app unless a vessel reads a real source.
+  PLANT_SIM: z.enum(['auto', '0']).default('auto'),
+  // 4840 is OPC UA's registered port; taken, the plant takes a free one.
+  PLANT_SIM_PORT: z.coerce.number().int().min(0).max(65535).default(4840),
 });
 
 export type MailEnv =
@@ -55,6 +59,7 @@ export type ServerEnv = {
   publicUrl: string | null;
   mail: MailEnv;
   billing: BillingEnv;
+  plantSim: { enabled: boolean; port: number };
 };
 
 /** Reads and validates the environment once; a bad value stops the process with the variable's name. */
@@ -83,6 +88,7 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): ServerEnv {
       ? { mode: 'smtp', host: e.SMTP_HOST, port: e.SMTP_PORT, secure: e.SMTP_SECURE === '1', user: e.SMTP_USER, pass: e.SMTP_PASS, from: e.MAIL_FROM }
       : { mode: 'sink', sinkPort: e.SMTP_SINK_PORT, sinkDir: e.MAIL_SINK_DIR ?? path.join(path.dirname(e.DATABASE_FILE), 'mail-sink'), from: e.MAIL_FROM },
     billing: billingEnv(e.STRIPE_SECRET_KEY, e.STRIPE_WEBHOOK_SECRET, e.STRIPE_FAKE_PORT),
+    plantSim: { enabled: e.PLANT_SIM === 'auto', port: e.PLANT_SIM_PORT },
   };
 }
 

@@ -11,6 +11,9 @@ import { createMailSender } from './services/mail';
 import { ensureWebBuild } from './web-build';
 import { createFileStore } from './file-store';
 import { installationSecret } from './installation-secrets';
+import { launchPlant } from './opcua/launch-plant';
+import { openAppPki, pkiFolderBeside } from './opcua/pki';
+import { startControlLink } from './services/control-link';
 
 const root = path.resolve(__dirname, '..');
 
@@ -19,6 +22,7 @@ const sessionSecret = (configured: Uint8Array | null, databaseFile: string): Uin
 
 async function main() {
   const env = readEnv();
+  const dataDir = path.dirname(path.resolve(env.databaseFile));
   if (!env.skipWebBuild) await ensureWebBuild(root, env.webDir);
   const db = openDb(env.databaseFile);
   migrateDb(db);
@@ -37,6 +41,9 @@ async function main() {
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const localUrl = `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
   if (seeded) proposeDemoChange({ db, clock: systemClock, mail, publicUrl: env.publicUrl ?? localUrl }, seeded.siteId);
+  // Yieldpoint's OPC UA certificate (made once) and trust list beside the database; the link reads, never writes.
+  const pki = await openAppPki(pkiFolderBeside(env.databaseFile));
+  const controlLink = startControlLink({ db, clock: systemClock, pki });
   const app = createApp({
     db,
     clock: systemClock,
@@ -48,7 +55,10 @@ async function main() {
     billing: integrations.billing,
     mail,
     files: createFileStore(path.join(path.dirname(path.resolve(env.databaseFile)), 'files')),
+    controlLink,
   });
+  // The simulated plant starts beside the app without holding it up (its first start makes its certificate).
+  const plant = launchPlant(db, env, dataDir);
   const server = app.listen(env.port, env.host, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : env.port;
@@ -68,7 +78,7 @@ async function main() {
   const stop = () => {
     server.close(() => {
       seal();
-      void Promise.all([mail.stop(), integrations.close()]).finally(() => {
+      void Promise.all([mail.stop(), integrations.close(), controlLink.close().then(() => pki.dispose()), plant.close()]).finally(() => {
         db.$client.close();
         process.exit(0);
       });

@@ -1,5 +1,5 @@
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { BATCH_STATUSES, DEVIATION_KINDS, DEVIATION_STATES, PLAN_SOURCES, type BatchProgram, type Corrective } from '../../src/contracts/batches';
+import { BATCH_STATUSES, READING_SOURCES, DEVIATION_KINDS, DEVIATION_STATES, PLAN_SOURCES, type BatchProgram, type Corrective } from '../../src/contracts/batches';
 import { lots, vessels } from './catalog';
 import { createdAt, sites, users } from './core';
 import { plans, recipes } from './planning';
@@ -48,7 +48,7 @@ export const batchReadings = sqliteTable(
     takenAt: text('taken_at').notNull(),
     c: real('c').notNull(),
     note: text('note'),
-    source: text('source', { enum: ['manual', 'historian'] }).notNull(),
+    source: text('source', { enum: READING_SOURCES }).notNull(),
     enteredBy: integer('entered_by').notNull().references(() => users.id),
     receivedAt: text('received_at').notNull(),
   },

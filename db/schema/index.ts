@@ -8,3 +8,4 @@ export * from './quality';
 export * from './change-control';
 export * from './batches';
 export * from './calibration';
+export * from './control-link';

@@ -2,6 +2,9 @@ import { eq, sql } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { enzymes, lots, sites, vessels } from '../../db/schema';
 
+/** The first site (the one `npm start` seeds), if any. */
+export const firstSite = (db: Db) => db.select().from(sites).orderBy(sites.id).limit(1).get();
+
 export const findSite = (db: Db, id: number) => db.select().from(sites).where(eq(sites.id, id)).get();
 
 const count = (db: Db, table: typeof vessels | typeof enzymes | typeof lots, siteId: number) =>

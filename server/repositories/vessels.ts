@@ -1,6 +1,6 @@
 import { and, eq, sql } from 'drizzle-orm';
 import { preparedPer, type Db } from '../../db/client';
-import { vessels } from '../../db/schema';
+import { batches, vessels } from '../../db/schema';
 import type { VesselInput } from '../../src/contracts/vessels';
 
 export type VesselRow = typeof vessels.$inferSelect;
@@ -17,3 +17,12 @@ export const findSiteVesselByName = (db: Db, siteId: number, name: string) =>
 export const insertVessel = (db: Db, siteId: number, v: VesselInput) => db.insert(vessels).values({ ...v, siteId }).returning().get();
 
 export const updateVessel = (db: Db, id: number, v: VesselInput) => db.update(vessels).set(v).where(eq(vessels.id, id)).returning().get();
+
+/** Each vessel of the site with its running batch's start and program, if one runs. */
+export const vesselsWithRunningBatch = (db: Db, siteId: number) =>
+  db
+    .select({ vessel: vessels, startedAt: batches.startedAt, program: batches.program })
+    .from(vessels)
+    .leftJoin(batches, and(eq(batches.vesselId, vessels.id), eq(batches.state, 'running')))
+    .where(eq(vessels.siteId, siteId))
+    .all();

@@ -36,6 +36,7 @@ import {
   type ReadingInput,
   type ReadingResult,
   type ReadingsPage,
+  type ReadingSource,
 } from '../../src/contracts/batches';
 import type { SessionUser } from '../../src/contracts/session';
 import { csvLines } from '../csv';
@@ -332,14 +333,15 @@ function raiseDeviations(
   b: BatchJoined['batch'],
   raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
   now: Date,
-  withStatus = true,
+  opts: { checkForecast?: boolean; withCorrective?: boolean } = {},
 ): DeviationRow[] {
+  const { checkForecast = true, withCorrective = true } = opts;
   const settings = batchSettingsOf(t, u.siteId);
   // The status integrates every reading of the batch; it is needed only for a corrective setpoint or a P10 check.
-  // Without it (the earlier parts of an import) deviations are raised without a corrective setpoint.
-  const checksForecast = withStatus && b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
+  // Without a corrective (the earlier parts of an import) deviations are raised without a suggested setpoint.
+  const checksForecast = checkForecast && b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
   const status =
-    withStatus && (checksForecast || raised.some((r) => CORRECTABLE.has(r.draft.kind))) ? statusNow(t, b, now.toISOString(), true) : null;
+    checksForecast || (withCorrective && raised.some((r) => CORRECTABLE.has(r.draft.kind))) ? statusNow(t, b, now.toISOString(), true) : null;
   const low = status && checksForecast ? forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH) : null;
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
   return all.map(({ readingId, draft, by = u }) => {
@@ -353,7 +355,7 @@ function raiseDeviations(
       message: draft.message,
       valueC: draft.valueC,
       expectedC: draft.expectedC,
-      corrective: CORRECTABLE.has(draft.kind) && status ? status.corrective : null,
+      corrective: CORRECTABLE.has(draft.kind) && withCorrective && status ? status.corrective : null,
       raisedAt: now.toISOString(),
     });
     appendAudit(t, {
@@ -382,7 +384,7 @@ function runningBatch(db: Db, siteId: number, id: number): BatchJoined {
   return j;
 }
 
-type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput };
+type ReadingRequest = { u: SessionUser; batchId: number; input: ReadingInput; source: ReadingSource };
 type Logged = { created: boolean; result: ReadingResult };
 // A new reading carries its answer from the transaction; a repeat is answered from the database.
 type Stored = { created: true; result: ReadingResult } | { created: false; readingId: number; startedAt: string } | { error: unknown };
@@ -401,14 +403,27 @@ type BatchGroup = {
  * under its own savepoint so a refused reading (bad time, reused key, closed batch) fails alone. Every request
  * is answered only after the transaction committed, so a 2xx still means the reading is on disk.
  */
-export function readingIngest(s: Services): { log(u: SessionUser, batchId: number, input: ReadingInput): Promise<Logged> } {
+export type ReadingIngest = { log(u: SessionUser, batchId: number, input: ReadingInput, source?: ReadingSource): Promise<Logged> };
+
+/**
+ * `forecastEveryMs`: a feed of a reading a second (the control-system link) checks a batch's forecast against its
+ * P10 at most this often, not on every flush (each check integrates the whole batch); other rules run on every reading.
+ */
+export function readingIngest(s: Services, opts: { forecastEveryMs?: number } = {}): ReadingIngest {
+  const forecastAt = new Map<number, number>();
+  const checksForecast = (batchId: number, nowMs: number) => {
+    if (!opts.forecastEveryMs) return true;
+    if (nowMs - (forecastAt.get(batchId) ?? -Infinity) < opts.forecastEveryMs) return false;
+    forecastAt.set(batchId, nowMs);
+    return true;
+  };
   let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
   const flush = () => {
     const items = queue;
     queue = [];
     let stored: Stored[];
     try {
-      stored = storeReadings(s, items.map((i) => i.req));
+      stored = storeReadings(s, items.map((i) => i.req), checksForecast);
     } catch (err) {
       for (const i of items) i.reject(err);
       return;
@@ -425,9 +440,9 @@ export function readingIngest(s: Services): { log(u: SessionUser, batchId: numbe
     });
   };
   return {
-    log: (u, batchId, input) =>
+    log: (u, batchId, input, source = 'manual') =>
       new Promise<Logged>((resolve, reject) => {
-        if (queue.push({ req: { u, batchId, input }, resolve, reject }) === 1) setImmediate(flush);
+        if (queue.push({ req: { u, batchId, input, source }, resolve, reject }) === 1) setImmediate(flush);
       }),
   };
 }
@@ -438,7 +453,7 @@ function readingAnswer(db: Db, readingId: number, startedAt: string): ReadingRes
 }
 
 /** One transaction for a group of readings; per reading its stored id or the error that refused it. */
-function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[] {
+function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksForecast: (batchId: number, nowMs: number) => boolean): Stored[] {
   const now = clock.now();
   return writeTx(db, (t, savepoint) => {
     const groups = new Map<string, BatchGroup>();
@@ -455,7 +470,7 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[
     const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
     for (const g of groups.values()) {
       if (!g.lastBy) continue;
-      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now))
+      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now, { checkForecast: checksForecast(g.b.id, now.getTime()) }))
         if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
     }
     return out;
@@ -463,7 +478,7 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[]): Stored[
 }
 
 /** Stores one reading once per key: the first answers 201, a repeat of the same reading 200 with the same body. */
-function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input }: ReadingRequest, now: Date): Stored {
+function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input, source }: ReadingRequest, now: Date): Stored {
   const groupKey = `${u.siteId}:${batchId}`;
   let g = groups.get(groupKey);
   if (!g) {
@@ -487,11 +502,25 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
   const before = readingAtOrBefore(t, b.id, takenAt);
   const prev = before ? { h: batchHours(b.startedAt, before.takenAt), c: before.c } : null;
   const drafts = readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c });
-  const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source: 'manual', enteredBy: u.id, receivedAt: now.toISOString() });
-  appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note }, at: now });
+  const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source, enteredBy: u.id, receivedAt: now.toISOString() });
+  appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note, ...(source === 'manual' ? {} : { source }) }, at: now });
   for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
   g.lastBy = u;
   return { created: true, result: { reading: toReading(row, u.name, b.startedAt), deviations: [] } };
+}
+
+/**
+ * A deviation the readings cannot raise themselves (the control-system link's lost signal), stored with its audit
+ * event like the others, unless one of its kind is still active on the batch. Returns whether it was raised.
+ */
+export function raiseBatchDeviation({ db, clock }: Services, u: SessionUser, batchId: number, draft: DeviationDraft): boolean {
+  const b = runningBatch(db, u.siteId, batchId).batch;
+  const now = clock.now();
+  return writeTx(db, (t) => {
+    if (hasActiveDeviation(t, b.id, draft.kind)) return false;
+    raiseDeviations(t, u, b, [{ readingId: null, draft }], now);
+    return true;
+  });
 }
 
 const MAX_PROBLEMS = 200;
@@ -601,7 +630,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
         const mine = drafts.filter((d) => d.index >= from && d.index < to).map((d) => ({ readingId: ids[d.index - from]!, draft: d.draft }));
         // The forecast and the corrective setpoint come from the whole record: once, with the last part.
         const last = part === parts - 1;
-        return mine.length || (accepted.length && last) ? raiseDeviations(t, u, current, mine, now, last).length : 0;
+        return mine.length || (accepted.length && last) ? raiseDeviations(t, u, current, mine, now, { checkForecast: last, withCorrective: last }).length : 0;
       });
       // The kept record takes in the part just stored, so the next part reads only its own rows.
       batchRecordOf(db, b);

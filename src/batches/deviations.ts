@@ -77,3 +77,19 @@ export function forecastDeviation(p10GPerL: number | null, forecastGPerL: number
     message: `The forecast of ${forecastGPerL.toFixed(1)} g/L at the end is below the plan's P10 of ${p10GPerL.toFixed(1)} g/L.`,
   };
 }
+
+/**
+ * The control-system link gave no good value for longer than the site's gap limit: raised at the last good
+ * value's batch time (or the link's start, `sinceH`), with why (bad status, disconnected, stale).
+ */
+export function signalLostDeviation(gapLimitMin: number, sinceH: number, nowH: number, why: string): DeviationDraft | null {
+  const silentMin = (nowH - sinceH) * 60;
+  if (!(silentMin > gapLimitMin + 1e-9)) return null;
+  return {
+    kind: 'signal_lost',
+    h: sinceH,
+    valueC: null,
+    expectedC: null,
+    message: `No good value from the control system for ${gapText(nowH - sinceH)} (${why}); the site's limit is ${gapLimitMin} min. Log readings by hand until the link is back.`,
+  };
+}

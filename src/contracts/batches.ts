@@ -6,7 +6,10 @@ export { BATCH_READERS, BATCH_STARTERS, CLOCK_SKEW_MIN, DEVIATION_ACKNOWLEDGERS,
 
 export const PLAN_SOURCES = ['released_plan', 'current_setpoint'] as const;
 export const BATCH_STATUSES = ['running', 'closed'] as const;
-export const DEVIATION_KINDS = ['band', 'gap', 'vessel_max', 'forecast_low'] as const;
+export const DEVIATION_KINDS = ['band', 'gap', 'vessel_max', 'forecast_low', 'signal_lost'] as const;
+/** manual: typed on a phone; historian: a file import; control_system: read from the plant over OPC UA. */
+export const READING_SOURCES = ['manual', 'historian', 'control_system'] as const;
+export type ReadingSource = (typeof READING_SOURCES)[number];
 export const DEVIATION_STATES = ['open', 'acknowledged', 'closed'] as const;
 export type DeviationKind = (typeof DEVIATION_KINDS)[number];
 
@@ -84,7 +87,7 @@ export const Reading = z.object({
   h: z.number(),
   c: z.number(),
   note: z.string().nullable(),
-  source: z.enum(['manual', 'historian']),
+  source: z.enum(READING_SOURCES),
   enteredBy: z.string(),
 });
 export type Reading = z.infer<typeof Reading>;

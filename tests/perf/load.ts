@@ -4,12 +4,14 @@ import os from 'node:os';
 import { DEMO_USERS } from '../../db/seed';
 import { MAX_IMPORT_ROWS } from '../../src/contracts/batches';
 import { sessionCookie, startServer } from '../support/server';
+import { controlLinkLoad } from './control-link-load';
 
 // npm run load: loopback-only load against a freshly seeded server, bounded in time. Prints per mix and
 // connection count: requests/s, latency p50 / p99 / max, errors, timeouts and non-2xx answers.
 // Then the import mix: other users' reads (20 connections) while the largest allowed historian import
 // (300,000 rows) runs, and afterwards the time to read the big batch's list, page and report.
-// LOAD_MIX=reads|ingest|import runs one mix; LOAD_CPU_PROF=dir writes the server's CPU profile there when it stops.
+// LOAD_MIX=reads|ingest|import|opcua runs one mix; LOAD_CPU_PROF=dir writes the server's CPU profile there when it stops.
+// opcua: the control-system link, LOAD_TAGS tags (200) at 1 s sampling for LOAD_LINK_SECONDS (60), in this process.
 const DURATION_S = Number(process.env.LOAD_SECONDS ?? 10);
 const ONLY_MIX = process.env.LOAD_MIX;
 const CPU_PROF_DIR = process.env.LOAD_CPU_PROF;
@@ -34,6 +36,11 @@ function run(url: string, mix: Mix, connections: number): Promise<autocannon.Res
 const user = (role: string) => DEMO_USERS.find((u) => u.role === role)!;
 
 async function main() {
+  if (ONLY_MIX !== 'opcua') await httpLoad();
+  if (!ONLY_MIX || ONLY_MIX === 'opcua') await controlLinkLoad({ tags: Number(process.env.LOAD_TAGS ?? 200), seconds: Number(process.env.LOAD_LINK_SECONDS ?? 60) });
+}
+
+async function httpLoad() {
   // The API alone: no web build needed.
   const server = await startServer({ env: { WEB_DIR: 'no-web-build' }, nodeArgs: CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : [] });
   try {

@@ -69,16 +69,21 @@ export const email = (role: Role, site: 'main' | 'other' = 'main') =>
  * The app on an in-memory database (or the SQLite file `opts.file`) with the demo site and a second site,
  * listening on a free port.
  */
-export async function startTestApp(overrides: Partial<AppDeps> = {}, opts: { file?: string } = {}): Promise<TestApp> {
+export async function startTestApp(
+  overrides: Partial<AppDeps> = {},
+  opts: { file?: string; now?: Date; controlLink?: (db: Db, clock: TestClock) => AppDeps['controlLink'] } = {},
+): Promise<TestApp> {
   const db = openDb(opts.file ?? ':memory:');
   migrateDb(db);
-  // Cost 4 keeps seeding fast; the production cost is checked on its own.
-  seedDemo(db, { bcryptCost: 4 });
-  seedDemo(db, { bcryptCost: 4, siteName: 'Other Plant', emailDomain: 'otherplant.test' });
-  const clock = new TestClock();
+  // Cost 4 keeps seeding fast; the production cost is checked on its own. With `now`, the running batch is
+  // seeded to have started four hours before it and the clock starts there.
+  seedDemo(db, { bcryptCost: 4, now: opts.now });
+  seedDemo(db, { bcryptCost: 4, siteName: 'Other Plant', emailDomain: 'otherplant.test', now: opts.now });
+  const clock = opts.now ? new TestClock(opts.now.getTime()) : new TestClock();
   const app = createApp({
     db,
     clock,
+    controlLink: opts.controlLink?.(db, clock),
     auth: { secret: new TextEncoder().encode('test-secret-of-at-least-32-bytes!!'), idleMinutes: 60, absoluteHours: 24 },
     signInLimit: { perAddress: 1000, perAccount: 1000, windowMs: 60_000 },
     ...overrides,

@@ -26,7 +26,7 @@ export async function startServer(opts: { dir?: string; env?: Record<string, str
   const port = await freePort();
   const child = spawn(process.execPath, [...(opts.nodeArgs ?? []), '--import', 'tsx', 'server/start.ts'], {
     cwd: ROOT,
-    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', DATABASE_FILE: databaseFile, SKIP_WEB_BUILD: '1', ...opts.env },
+    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', DATABASE_FILE: databaseFile, SKIP_WEB_BUILD: '1', PLANT_SIM_PORT: '0', ...opts.env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let output = '';

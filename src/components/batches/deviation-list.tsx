@@ -18,6 +18,7 @@ const KIND: Record<Deviation['kind'], string> = {
   gap: 'Gap between readings',
   vessel_max: 'Above the vessel maximum',
   forecast_low: 'Forecast below the plan’s P10',
+  signal_lost: 'Control-system signal lost',
 };
 const STATE: Record<Deviation['state'], string> = { open: 'Open', acknowledged: 'Acknowledged', closed: 'Closed' };
 

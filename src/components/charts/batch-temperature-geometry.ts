@@ -10,8 +10,10 @@ export type BatchTemperatureInput = {
   plan: readonly TempPoint[];
   batchH: number;
   toleranceC: number;
-  /** Logged readings sorted by h; queued (not yet sent) ones are drawn hollow. */
-  readings: readonly (TempPoint & { isQueued?: boolean })[];
+  /** Logged readings sorted by h; queued (not yet sent) ones are drawn hollow, control-system ones apart. */
+  readings: readonly (TempPoint & { isQueued?: boolean; isControl?: boolean })[];
+  /** Spans the control-system link could not fill (no history on the server), h. */
+  gaps?: readonly { fromH: number; toH: number }[];
   /** Longest time between readings before the logged line breaks, h. */
   gapLimitH: number;
   vesselMaxC: number;
@@ -24,9 +26,13 @@ export type BatchTemperatureGeometry = {
   yTicks: Tick[];
   planPath: string;
   bandPath: string;
-  /** One path per run of readings; a gap longer than the limit breaks the line. */
+  /** One path per run of readings typed or imported; a gap longer than the limit breaks the line. */
   loggedPaths: string[];
-  dots: { x: number; y: number; isOutside: boolean; isQueued: boolean }[];
+  /** The same for readings from the control system, drawn apart. */
+  controlPaths: string[];
+  dots: { x: number; y: number; isOutside: boolean; isQueued: boolean; isControl: boolean }[];
+  /** x spans of the link's unfilled gaps. */
+  gapSpans: { x0: number; x1: number }[];
   /** y of the vessel maximum when it lies inside the plotted range, else null. */
   vesselMaxY: number | null;
   nowX: number | null;
@@ -89,12 +95,15 @@ export function batchTemperatureGeometry(input: BatchTemperatureInput, width: nu
     .x((p) => x(p.h))
     .y0((p) => y(p.c - toleranceC))
     .y1((p) => y(p.c + toleranceC));
-  const runs: TempPoint[][] = [];
-  for (const r of readings) {
-    const last = runs.at(-1);
-    if (last && r.h - last[last.length - 1].h <= input.gapLimitH + 1e-9) last.push(r);
-    else runs.push([r]);
-  }
+  const runsOf = (rs: readonly TempPoint[]) => {
+    const runs: TempPoint[][] = [];
+    for (const r of rs) {
+      const last = runs.at(-1);
+      if (last && r.h - last[last.length - 1].h <= input.gapLimitH + 1e-9) last.push(r);
+      else runs.push([r]);
+    }
+    return runs.filter((r) => r.length > 1).map((r) => path(thin(r, (p) => Math.floor(x(p.h)))) ?? '');
+  };
   const dots =
     readings.length <= MAX_DOTS
       ? readings.map((r) => ({
@@ -102,6 +111,7 @@ export function batchTemperatureGeometry(input: BatchTemperatureInput, width: nu
           y: y(r.c),
           isOutside: Math.abs(r.c - temperatureAt({ log: plan }, r.h)) > toleranceC + 1e-9,
           isQueued: !!r.isQueued,
+          isControl: !!r.isControl,
         }))
       : [];
   return {
@@ -110,8 +120,10 @@ export function batchTemperatureGeometry(input: BatchTemperatureInput, width: nu
     yTicks: ticksOf(y, 5, tickLabel),
     planPath: path(planPts) ?? '',
     bandPath: band(planPts) ?? '',
-    loggedPaths: runs.filter((r) => r.length > 1).map((r) => path(thin(r, (p) => Math.floor(x(p.h)))) ?? ''),
+    loggedPaths: runsOf(readings.filter((r) => !r.isControl)),
+    controlPaths: runsOf(readings.filter((r) => r.isControl)),
     dots,
+    gapSpans: (input.gaps ?? []).map((g) => ({ x0: x(Math.max(0, g.fromH)), x1: x(Math.min(maxH, g.toH)) })).filter((g) => g.x1 > g.x0),
     vesselMaxY: showMax ? y(input.vesselMaxC) : null,
     nowX: input.nowH !== null && input.nowH >= 0 && input.nowH <= maxH ? x(input.nowH) : null,
   };

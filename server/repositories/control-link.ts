@@ -1,0 +1,65 @@
+import { and, asc, desc, eq } from 'drizzle-orm';
+import type { Db } from '../../db/client';
+import { batches, batchReadings, linkGaps, linkSettings, sites, vessels, vesselSources } from '../../db/schema';
+
+export type VesselSourceRow = typeof vesselSources.$inferSelect;
+export type LinkGapRow = typeof linkGaps.$inferSelect;
+
+export const listSiteIds = (db: Db) => db.select({ id: sites.id }).from(sites).orderBy(sites.id).all().map((r) => r.id);
+
+export const listSiteSources = (db: Db, siteId: number) =>
+  db
+    .select({ source: vesselSources, vesselName: vessels.name })
+    .from(vesselSources)
+    .innerJoin(vessels, eq(vesselSources.vesselId, vessels.id))
+    .where(eq(vesselSources.siteId, siteId))
+    .orderBy(vessels.name)
+    .all();
+
+export const findVesselSource = (db: Db, siteId: number, vesselId: number) =>
+  db.select().from(vesselSources).where(and(eq(vesselSources.siteId, siteId), eq(vesselSources.vesselId, vesselId))).get();
+
+export const countSiteSources = (db: Db, siteId: number) => listSiteSources(db, siteId).length;
+
+export const upsertVesselSource = (db: Db, row: Omit<typeof vesselSources.$inferInsert, 'id' | 'createdAt'>) =>
+  db
+    .insert(vesselSources)
+    .values(row)
+    .onConflictDoUpdate({ target: vesselSources.vesselId, set: { ...row } })
+    .returning()
+    .get();
+
+export const updateVesselSource = (db: Db, id: number, patch: Partial<Pick<VesselSourceRow, 'trustedThumbprint' | 'trustedAt' | 'trustedBy' | 'updatedAt'>>) =>
+  db.update(vesselSources).set(patch).where(eq(vesselSources.id, id)).returning().get();
+
+export const deleteVesselSource = (db: Db, id: number) => db.delete(vesselSources).where(eq(vesselSources.id, id)).run();
+
+/** Enabled sources of the site whose vessel runs a batch, with that batch. */
+export const sourcesOfRunningBatches = (db: Db, siteId: number) =>
+  db
+    .select({ source: vesselSources, vesselName: vessels.name, batchId: batches.id, startedAt: batches.startedAt })
+    .from(vesselSources)
+    .innerJoin(vessels, eq(vesselSources.vesselId, vessels.id))
+    .innerJoin(batches, and(eq(batches.vesselId, vesselSources.vesselId), eq(batches.state, 'running')))
+    .where(and(eq(vesselSources.siteId, siteId), eq(vesselSources.isEnabled, true)))
+    .all();
+
+/** Source time of the batch's latest control-system reading. */
+export const lastControlReadingAt = (db: Db, batchId: number) =>
+  db
+    .select({ takenAt: batchReadings.takenAt })
+    .from(batchReadings)
+    .where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.source, 'control_system')))
+    .orderBy(desc(batchReadings.takenAt))
+    .limit(1)
+    .get()?.takenAt ?? null;
+
+export const findLinkSettings = (db: Db, siteId: number) => db.select().from(linkSettings).where(eq(linkSettings.siteId, siteId)).get();
+
+export const upsertLinkSettings = (db: Db, row: typeof linkSettings.$inferInsert) =>
+  db.insert(linkSettings).values(row).onConflictDoUpdate({ target: linkSettings.siteId, set: { samplingIntervalMs: row.samplingIntervalMs, deadbandC: row.deadbandC, updatedAt: row.updatedAt } }).run();
+
+export const insertLinkGap = (db: Db, row: Omit<typeof linkGaps.$inferInsert, 'id' | 'createdAt'>) => db.insert(linkGaps).values(row).returning().get();
+
+export const listBatchGaps = (db: Db, siteId: number, batchId: number) =>
+  db.select().from(linkGaps).where(and(eq(linkGaps.siteId, siteId), eq(linkGaps.batchId, batchId))).orderBy(asc(linkGaps.fromAt)).all();

@@ -1,0 +1,65 @@
+import { Router, type Request } from 'express';
+import { z } from 'zod';
+import {
+  BATCH_READERS,
+  BatchLink,
+  CertificateInfo,
+  LinkSettings,
+  LinkSettingsPatch,
+  LinkStatusList,
+  TrustRequest,
+  VesselSource,
+  VesselSourceInput,
+  VesselSourceList,
+} from '../../src/contracts/control-link';
+import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
+import {
+  batchLinkOf,
+  changeLinkSettings,
+  linkSettingsOf,
+  linkStatus,
+  listSources,
+  removeSource,
+  saveSource,
+  sourceCertificate,
+  trustSource,
+  type LinkServices,
+} from '../services/control-sources';
+
+const VesselParam = z.object({ vesselId: z.coerce.number().int().positive() });
+const IdParam = z.object({ id: z.coerce.number().int().positive() });
+
+/** Sources, trust, settings and link status of the read-only control-system link (OPC UA). */
+export function controlLinkRouter(base: LinkServices): Router {
+  const router = Router();
+  const vessel = (req: Request) => VesselParam.parse(req.params).vesselId;
+  router.get('/sources', allow('admin'), (req, res) => {
+    res.json(VesselSourceList.parse({ sources: listSources(base, currentUser(req)) }));
+  });
+  router.put('/sources/:vesselId', allow('admin'), (req, res) => {
+    res.json(VesselSource.parse(saveSource(base, currentUser(req), vessel(req), VesselSourceInput.parse(req.body))));
+  });
+  router.delete('/sources/:vesselId', allow('admin'), (req, res) => {
+    removeSource(base, currentUser(req), vessel(req));
+    res.status(204).end();
+  });
+  router.get('/sources/:vesselId/server-certificate', allow('admin'), async (req, res) => {
+    res.json(CertificateInfo.parse(await sourceCertificate(base, currentUser(req), vessel(req))));
+  });
+  router.post('/sources/:vesselId/trust', allow('admin'), async (req, res) => {
+    res.json(VesselSource.parse(await trustSource(base, currentUser(req), vessel(req), TrustRequest.parse(req.body))));
+  });
+  router.get('/settings', allow(...ALL_ROLES), (req, res) => {
+    res.json(LinkSettings.parse(linkSettingsOf(base.db, currentUser(req).siteId)));
+  });
+  router.patch('/settings', allow('admin'), (req, res) => {
+    res.json(LinkSettings.parse(changeLinkSettings(base, currentUser(req), LinkSettingsPatch.parse(req.body))));
+  });
+  router.get('/status', allow(...BATCH_READERS), (req, res) => {
+    res.json(LinkStatusList.parse(linkStatus(base, currentUser(req))));
+  });
+  router.get('/batches/:id', allow(...BATCH_READERS), (req, res) => {
+    res.json(BatchLink.parse(batchLinkOf(base, currentUser(req), IdParam.parse(req.params).id)));
+  });
+  return router;
+}
