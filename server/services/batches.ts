@@ -531,13 +531,13 @@ const ROWS_PER_PART = 5_000;
 const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
 
 /** Imports under way, by batch id: bytes read of the upload's total, for the progress answer. */
-const importsRunning = new Map<number, { bytesRead: number; bytesTotal: number; phase: 'reading' | 'storing' }>();
+const importsRunning = new Map<number, Omit<ImportProgress, 'isRunning' | 'phase'> & { phase: 'reading' | 'storing' }>();
 
 /** How far a running import into the batch is, or null when none runs. */
 export function importProgress(s: Services, u: SessionUser, id: number): ImportProgress {
   loadBatch(s.db, u.siteId, id);
   const p = importsRunning.get(id);
-  return p ? { isRunning: true, ...p } : { isRunning: false, bytesRead: 0, bytesTotal: 0, phase: null };
+  return p ? { isRunning: true, ...p } : { isRunning: false, bytesRead: 0, bytesTotal: 0, phase: null, rowsStored: 0, rowsToStore: 0 };
 }
 
 /**
@@ -550,7 +550,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
   const timeZone = q.timeZone ?? u.siteTimeZone;
   if (!isTimeZone(timeZone)) throw new HttpError(400, 'invalid_input', `Unknown time zone ${timeZone}`, { timeZone: 'Give an IANA zone such as Europe/Berlin' });
   if (importsRunning.has(id)) throw new HttpError(409, 'import_running', 'Another import into this batch is running; try again when it has finished');
-  const progress = { bytesRead: 0, bytesTotal: bytes.length, phase: 'reading' as 'reading' | 'storing' };
+  const progress = { bytesRead: 0, bytesTotal: bytes.length, phase: 'reading' as 'reading' | 'storing', rowsStored: 0, rowsToStore: 0 };
   importsRunning.set(id, progress);
   try {
     const parsed = await runImport({ kind: 'historian', bytes, timeZone, dateOrder: q.dateOrder }, (n) => (progress.bytesRead = n));
@@ -605,6 +605,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
     // goes with the first part and states what the import stores; a part's deviations go with its readings.
     // Should the server stop between parts, those stored stay and the same file uploaded again stores the rest.
     let raised = 0;
+    progress.rowsToStore = accepted.length;
     const parts = Math.max(1, Math.ceil(accepted.length / ROWS_PER_PART));
     for (let part = 0; part < parts; part++) {
       const from = part * ROWS_PER_PART;
@@ -632,6 +633,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
         const last = part === parts - 1;
         return mine.length || (accepted.length && last) ? raiseDeviations(t, u, current, mine, now, { checkForecast: last, withCorrective: last }).length : 0;
       });
+      progress.rowsStored = to;
       // The kept record takes in the part just stored, so the next part reads only its own rows.
       batchRecordOf(db, b);
     }

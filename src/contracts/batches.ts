@@ -270,5 +270,8 @@ export const ImportProgress = z.object({
   bytesRead: z.number().int(),
   bytesTotal: z.number().int(),
   phase: z.enum(['reading', 'storing']).nullable(),
+  /** While storing: readings stored so far of those the file adds. */
+  rowsStored: z.number().int(),
+  rowsToStore: z.number().int(),
 });
 export type ImportProgress = z.infer<typeof ImportProgress>;

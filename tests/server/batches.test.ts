@@ -390,6 +390,30 @@ describe('historian import', () => {
     expect(after.status.readings).toBe(50_002);
   });
 
+  it('stores a large file in parts and reports how far it has got while other requests are answered', async () => {
+    // 30,000 invented readings a second apart, each a quarter second after one of the 50,000 and on the same
+    // course (the ramp, then 37 °C), so they raise no deviation (six parts of 5,000).
+    const from = Date.parse(batch.startedAt) + 250;
+    let csv = 'time,degC\n';
+    for (let i = 0; i < 30_000; i++) csv += `${new Date(from + 1000 * i).toISOString()},${i < 11_200 ? (6 + (10 * i) / 3600).toFixed(2) : '37.00'}\n`;
+    let done = false;
+    const uploaded = upload(op, csv).finally(() => (done = true));
+    const seen: any[] = [];
+    while (!done) seen.push((await op.get(`/api/batches/${batch.id}/readings/import`)).body);
+    expect((await uploaded).body).toMatchObject({ imported: 30_000, deviationsRaised: 0 });
+    const storing = seen.filter((p) => p.isRunning && p.phase === 'storing');
+    expect(storing.length).toBeGreaterThan(0);
+    // Until the rows are checked the count to store is not known (0); then it is the file's 30,000.
+    expect(storing.every((p) => [0, 30_000].includes(p.rowsToStore) && p.rowsStored <= p.rowsToStore)).toBe(true);
+    expect(storing.some((p) => p.rowsToStore === 30_000)).toBe(true);
+    const stored = storing.map((p) => p.rowsStored);
+    expect([...stored].sort((x, y) => x - y)).toEqual(stored);
+    expect((await op.get(`/api/batches/${batch.id}/readings/import`)).body).toMatchObject({ isRunning: false });
+    // One audit event for the import, stating its parts.
+    const events = t.db.select().from(auditEvents).where(eq(auditEvents.action, 'batch.readings_import')).all();
+    expect(events.at(-1)!.newValue).toMatchObject({ imported: 30_000, parts: 6 });
+  });
+
   it('reads local times in the site zone and reports duplicates, out-of-order and bad rows by line', async () => {
     // Local Berlin times (UTC+1 in December) after the 50,000 rows; line 4 repeats line 3, line 5 goes back in time.
     const base = new Date(Date.parse(batch.startedAt) + 14 * 3_600_000);

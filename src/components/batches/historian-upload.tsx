@@ -2,10 +2,12 @@ import * as DocumentPicker from 'expo-document-picker';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import type { ImportResult } from '../../contracts/batches';
+import { useImportProgress } from '../../hooks/use-import-progress';
 import { useImportReadings } from '../../hooks/use-import-readings';
 import { space } from '../../theme';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
+import { ProgressBar } from '../ui/progress-bar';
 import { Text } from '../ui/text';
 
 const KIND = { invalid: 'not read', duplicate: 'duplicate', already_stored: 'already stored', out_of_order: 'out of order' } as const;
@@ -14,6 +16,7 @@ const KIND = { invalid: 'not read', duplicate: 'duplicate', already_stored: 'alr
 export function HistorianUpload({ batchId, siteTimeZone }: { batchId: number; siteTimeZone: string }) {
   const upload = useImportReadings(batchId);
   const [result, setResult] = useState<ImportResult | null>(null);
+  const progress = useImportProgress(batchId, upload.isBusy);
   async function pick() {
     const picked = await DocumentPicker.getDocumentAsync({ type: ['text/csv', 'text/comma-separated-values', 'text/plain', 'application/vnd.ms-excel'], base64: false });
     if (picked.canceled || !picked.assets[0]) return;
@@ -30,6 +33,19 @@ export function HistorianUpload({ batchId, siteTimeZone }: { batchId: number; si
         A CSV of time and °C. Times without a zone are read as {siteTimeZone}; day.month.year, ISO and Unix times are understood. Rows already stored are skipped.
       </Text>
       <Button label="Upload CSV" variant="secondary" isBusy={upload.isBusy} onPress={() => void pick()} testID="historian-upload-button" />
+      {progress?.isRunning ? (
+        <View style={styles.result} testID="historian-progress">
+          <ProgressBar
+            value={progress.phase === 'storing' ? progress.rowsStored / Math.max(1, progress.rowsToStore) : progress.bytesRead / Math.max(1, progress.bytesTotal)}
+            label="Historian import progress"
+          />
+          <Text variant="small" tone="muted" accessibilityLiveRegion="polite">
+            {progress.phase === 'storing'
+              ? `Storing: ${progress.rowsStored.toLocaleString('en')} of ${progress.rowsToStore.toLocaleString('en')} readings`
+              : `Reading the file: ${Math.round((100 * progress.bytesRead) / Math.max(1, progress.bytesTotal))} % of ${(progress.bytesTotal / 1e6).toFixed(1)} MB`}
+          </Text>
+        </View>
+      ) : null}
       {upload.error ? (
         <Text variant="small" tone="danger">
           {upload.error.message}
