@@ -77,7 +77,7 @@ const nv = (e: AuditRow) => (e.newValue ?? {}) as Record<string, unknown>;
 function recordProblems(db: Db, siteId: number): AuditProblem[] {
   const out: AuditProblem[] = [];
   const record = (eventId: number | null, message: string) => out.push({ kind: 'record', eventId, message });
-  const events = listAuditOfActions(db, siteId, ['lot.create', 'lot.accept', 'lot.reject', 'signature.create', 'change-request.create', 'change-request.approve', 'change-request.reject']);
+  const events = listAuditOfActions(db, siteId, ['lot.create', 'lot.accept', 'lot.reject', 'signature.create', 'change-request.create', 'change-request.approve', 'change-request.reject', 'change-request.supersede', 'change-request.stale']);
 
   // Lots: a decision must read as audited; a lot created in the app and never decided must still be quarantined.
   const lotEvents = lastBy(events.filter((e) => e.entity === 'lot' && e.action !== 'lot.create'), (e) => e.entityId);
