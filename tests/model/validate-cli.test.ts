@@ -2,21 +2,12 @@ import { spawnSync } from 'node:child_process';
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { ModelInputError, simulate, validateProfileInput, validateSimulateInput, validateTemperature } from '../../src/model';
+import { ruleOf } from '../support/model-errors';
+import { simulate, validateProfileInput, validateSimulateInput, validateTemperature } from '../../src/model';
 
 const root = path.resolve(__dirname, '../..');
 const enzyme = { tRefC: 60, vmaxRef: 2, eaKJPerMol: 50, kdRefPerH: 0.693, edKJPerMol: 300 };
 const substrate = { s0GPerL: 100, kmGPerL: 5 };
-
-function ruleOf(fn: () => unknown): string {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof ModelInputError) return `${e.field}: ${e.rule}`;
-    throw e;
-  }
-  return 'no error';
-}
 
 describe('input rules', () => {
   it.each([
