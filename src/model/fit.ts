@@ -145,7 +145,7 @@ export function twoStepInactivation(tRefC: number, points: InactivationPoint[]):
  * absolute). The sum of squares over all points is then sum w (mean - m)^2 plus the replicates' own scatter
  * about their means (`ssPe`), a constant, so the minimiser, its covariance s^2 (J^T W J)^-1 with
  * s^2 = SSR / (N - k), and AICc are those of the fit to every point (Seber & Wild, Nonlinear Regression, 1989,
- * ch. 2, weighted least squares with replicates).
+ * ch. 2, weighted least squares with replicates; cited from memory).
  */
 interface Prepared {
   xs: Float64Array;

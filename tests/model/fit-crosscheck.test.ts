@@ -1,7 +1,7 @@
 // The three-model inactivation fit against a general-purpose solver: ml-levenberg-marquardt (npm, 5.1.0) on the same
 // points, with each model's mean written out again here from its formula; the covariance against s^2 (J^T J)^-1
 // built in this file from central differences and inverted by mathjs (Seber & Wild, Nonlinear Regression, 1989,
-// ch. 2: the asymptotic covariance of a least-squares estimate).
+// ch. 2: the asymptotic covariance of a least-squares estimate; cited from memory).
 import { inv } from 'mathjs';
 import { levenbergMarquardt as mlLm } from 'ml-levenberg-marquardt';
 import { describe, expect, it } from 'vitest';
