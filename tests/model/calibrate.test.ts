@@ -5,7 +5,7 @@
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { ruleOf } from '../support/model-errors';
+import { ruleOf } from '../support/model';
 import {
   calibrate,
   cholesky,
