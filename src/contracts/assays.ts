@@ -50,7 +50,28 @@ export const HalfLifeEstimate = z.object({
 });
 export type HalfLifeEstimate = z.infer<typeof HalfLifeEstimate>;
 
-/** The engine's first-order fit as stored with the assay. Covariance is of [ln kdRef, Ed in kJ/mol]. */
+export const FitModelName = z.enum(['first-order', 'first-order-a0', 'two-fraction']);
+export type FitModelName = z.infer<typeof FitModelName>;
+
+/** One of the models the fit compared on the same points (the engine's `models`, without its covariance). */
+export const FitModelSummary = z.object({
+  name: FitModelName,
+  kdRefPerH: z.number(),
+  edKJPerMol: z.number(),
+  /** Time to half the activity at h = 0 at tRefC (two fractions: of the mixture), h. */
+  halfLifeRefH: z.number(),
+  aicc: z.number().nullable(),
+  a0: z.number().optional(),
+  stableFraction: z.object({ share: z.number(), kdRefPerH: z.number(), edKJPerMol: z.number() }).optional(),
+  /** Why the model cannot be chosen (singular, not identified), when so. */
+  singular: z.string().optional(),
+});
+export type FitModelSummary = z.infer<typeof FitModelSummary>;
+
+/**
+ * The engine's fit as stored with the assay: the chosen model's figures (covariance of [ln kdRef, Ed in kJ/mol]),
+ * the models compared and the lack-of-fit sentence. Fits stored before the comparison lack the last three.
+ */
 export const AssayFit = z.object({
   tRefC: z.number(),
   kdRefPerH: z.number(),
@@ -66,6 +87,10 @@ export const AssayFit = z.object({
     kdRefPerH: z.number().nullable(),
     edKJPerMol: z.number().nullable(),
   }),
+  chosen: FitModelName.optional(),
+  models: z.array(FitModelSummary).optional(),
+  /** Null, or one sentence on how the chosen model misses the data. */
+  lackOfFit: z.string().nullable().optional(),
 });
 export type AssayFit = z.infer<typeof AssayFit>;
 

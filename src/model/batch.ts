@@ -185,11 +185,21 @@ export function temperatureAt(temp: TemperatureInput, h: number): number {
   return a.c + ((b.c - a.c) * (h - a.h)) / (b.h - a.h);
 }
 
-/** Integrate a temperature program between two batch times (h) into the state. */
-export function integrateProgram(r: Rates, temp: TemperatureInput, from: number, to: number, st: WorkState): void {
+/**
+ * Walk a temperature program between two batch times (h) as the pieces the engine integrates: constant
+ * temperatures (setpoint, stages, before the first and after the last reading) and linear ramps between readings.
+ * `simulate` integrates them; `sensitivity.ts` lays them out for its derivatives.
+ */
+export function walkProgram(
+  temp: TemperatureInput,
+  from: number,
+  to: number,
+  constant: (c: number, dur: number) => void,
+  ramp: (c0: number, c1: number, dur: number) => void,
+): void {
   if (!(to > from)) return;
   if ('setpointC' in temp) {
-    advanceConstant(r, 1 / (temp.setpointC + K0), to - from, st);
+    constant(temp.setpointC, to - from);
     return;
   }
   if ('stages' in temp) {
@@ -199,7 +209,7 @@ export function integrateProgram(r: Rates, temp: TemperatureInput, from: number,
       const end = i === stages.length - 1 ? Math.max(to, t + stages[i].hours) : t + stages[i].hours;
       const a = Math.max(t, from);
       const b = Math.min(end, to);
-      if (b > a) advanceConstant(r, 1 / (stages[i].c + K0), b - a, st);
+      if (b > a) constant(stages[i].c, b - a);
       t = end;
       if (t >= to) break;
     }
@@ -211,7 +221,7 @@ export function integrateProgram(r: Rates, temp: TemperatureInput, from: number,
   let i = readingIndexAfter(log, t);
   if (i === 0) {
     const b = Math.min(log[0].h, to);
-    if (b > t) advanceConstant(r, 1 / (log[0].c + K0), b - t, st);
+    if (b > t) constant(log[0].c, b - t);
     t = b;
   }
   if (i === 0) i = 1;
@@ -223,12 +233,23 @@ export function integrateProgram(r: Rates, temp: TemperatureInput, from: number,
       const slope = (rb.c - ra.c) / (rb.h - ra.h);
       const ca = t === ra.h ? ra.c : ra.c + slope * (t - ra.h);
       const cb = b === rb.h ? rb.c : ra.c + slope * (b - ra.h);
-      advanceRamp(r, ca, cb, b - t, st);
+      ramp(ca, cb, b - t);
     }
     if (b > t) t = b;
     i++;
   }
-  if (t < to) advanceConstant(r, 1 / (log[n - 1].c + K0), to - t, st);
+  if (t < to) constant(log[n - 1].c, to - t);
+}
+
+/** Integrate a temperature program between two batch times (h) into the state. */
+export function integrateProgram(r: Rates, temp: TemperatureInput, from: number, to: number, st: WorkState): void {
+  walkProgram(
+    temp,
+    from,
+    to,
+    (c, dur) => advanceConstant(r, 1 / (c + K0), dur, st),
+    (c0, c1, dur) => advanceRamp(r, c0, c1, dur, st),
+  );
 }
 
 /** Product (g/L) made by accumulated work x (g/L): S = Km W0((S0/Km) e^((S0-x)/Km)) in log form, polished with log1p. */

@@ -37,8 +37,9 @@ export interface InactivationModelFit {
   stableFraction?: { share: number; kdRefPerH: number; edKJPerMol: number };
   /** Time to half the activity at h = 0 at tRefC, h (two fractions: of the mixture). */
   halfLifeRefH: number;
+  /** Standard errors; empty when the model is singular (they do not exist). */
   se: Record<string, number>;
-  /** Covariance of the fitted parameters, in the order of `parameters`. */
+  /** Covariance of the fitted parameters, in the order of `parameters`; empty when the model is singular. */
   parameters: string[];
   covariance: number[][];
   /** Null when there are too few points for AICc (it needs the parameters + 3). */
@@ -145,7 +146,7 @@ export function twoStepInactivation(tRefC: number, points: InactivationPoint[]):
  * absolute). The sum of squares over all points is then sum w (mean - m)^2 plus the replicates' own scatter
  * about their means (`ssPe`), a constant, so the minimiser, its covariance s^2 (J^T W J)^-1 with
  * s^2 = SSR / (N - k), and AICc are those of the fit to every point (Seber & Wild, Nonlinear Regression, 1989,
- * ch. 2, weighted least squares with replicates).
+ * ch. 2, weighted least squares with replicates; cited from memory).
  */
 interface Prepared {
   xs: Float64Array;
@@ -364,8 +365,12 @@ function summarise(p: Prepared, name: InactivationModelName, raw: RawFit): Inact
     out.se.stableEdKJPerMol = sd(3);
   }
   const ses = Object.values(out.se);
-  if (!raw.jtjInverse || !ses.every(Number.isFinite)) out.singular = 'the fit is singular: its parameters are not identified by these points';
-  else if (name === 'two-fraction') {
+  if (!raw.jtjInverse || !ses.every(Number.isFinite)) {
+    out.singular = 'the fit is singular: its parameters are not identified by these points';
+    // No standard errors exist for it: left out rather than given as NaN (every figure printed is a finite number).
+    out.se = {};
+    out.covariance = [];
+  } else if (name === 'two-fraction') {
     const sf = out.stableFraction!;
     if (out.se.share > sf.share || out.se.share > 1 - sf.share || out.se.stableKdRefPerH > 10 * sf.kdRefPerH + 1e-300)
       out.singular = 'ill-conditioned: the data do not separate two fractions (share or stable kd has a standard error above its value)';

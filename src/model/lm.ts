@@ -21,7 +21,7 @@ export interface LeastSquaresProblem {
 }
 
 /**
- * Levenberg-Marquardt with Marquardt diagonal scaling (Marquardt, J. SIAM 11, 1963): the damped normal equations
+ * Levenberg-Marquardt with Marquardt diagonal scaling (Marquardt, J. SIAM 11, 1963, cited from memory): the damped normal equations
  * (J^T J + lambda diag J^T J) step = -J^T r solved by Cholesky; lambda / 10 on an accepted step, x 10 on a rejected
  * one. Stops when the step is below 1e-12 of every parameter, the sum of squares falls by less than 1e-15 of
  * itself, no damping gives a descent, or after maxIter iterations.

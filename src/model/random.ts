@@ -125,17 +125,21 @@ export function kthSmallest(values: ArrayLike<number>, k: number, scratch: Float
  */
 export function quantileFromBand(band: Float64Array, m: number, nBelow: number, n: number, p: number, map: (x: number) => number): number {
   const h = (n - 1) * p;
+  return interpolatedAt(band, Math.floor(h) - nBelow, 0, m, h, n, map);
+}
+
+// Type-7 interpolation at h = (n - 1) p: the k-th smallest of a[lo..end-1] (selected in place) and the smallest above it.
+function interpolatedAt(a: Float64Array, k: number, lo: number, end: number, h: number, n: number, map: (x: number) => number): number {
   const i = Math.floor(h);
-  const k = i - nBelow;
-  selectInPlace(band, k, 0, m - 1);
-  const a = map(band[k]);
-  let b = a;
+  selectInPlace(a, k, lo, end - 1);
+  const first = map(a[k]);
+  let second = first;
   if (i < n - 1 && h > i) {
     let next = Infinity;
-    for (let j = k + 1; j < m; j++) if (band[j] < next) next = band[j];
-    b = map(next);
+    for (let j = k + 1; j < end; j++) if (a[j] < next) next = a[j];
+    second = map(next);
   }
-  return a + (h - i) * (b - a);
+  return first + (h - i) * (second - first);
 }
 
 /** Type-7 quantiles of map(values) for ascending ps (0..1), by selection; map must be increasing; reorders `scratch`. */
@@ -151,17 +155,8 @@ export function quantilesBySelection(
   let lo = 0;
   for (const p of ps) {
     const h = (n - 1) * p;
-    const i = Math.floor(h);
-    selectInPlace(scratch, i, lo, n - 1);
-    const a = map(scratch[i]);
-    let b = a;
-    if (i < n - 1 && h > i) {
-      let next = Infinity;
-      for (let j = i + 1; j < n; j++) if (scratch[j] < next) next = scratch[j];
-      b = map(next);
-    }
-    out.push(a + (h - i) * (b - a));
-    lo = i;
+    out.push(interpolatedAt(scratch, Math.floor(h), lo, n, h, n, map));
+    lo = Math.floor(h);
   }
   return out;
 }

@@ -1,6 +1,6 @@
 import { KELVIN_OFFSET, R } from './constants';
 import { compileRates, lnKAt, lnVAt, slopeBoundK, type Rates } from './kinetics';
-import { productFromWork } from './batch';
+import { productFromWork, walkProgram } from './batch';
 import { quadRule, type QuadRule } from './quadrature';
 import type { EnzymeParams, Substrate, TemperatureInput } from './types';
 
@@ -149,40 +149,7 @@ export function compileBatch(rates: Rates, temperature: TemperatureInput, batchH
     }
   };
   // The program from 0 to batchH, in the pieces batch.ts's integrateProgram takes.
-  if ('setpointC' in temperature) constant(temperature.setpointC, batchH);
-  else if ('stages' in temperature) {
-    const st = temperature.stages;
-    let t = 0;
-    for (let i = 0; i < st.length && t < batchH; i++) {
-      const end = i === st.length - 1 ? Math.max(batchH, t + st[i].hours) : t + st[i].hours;
-      constant(st[i].c, Math.min(end, batchH) - t);
-      t = end;
-    }
-  } else {
-    const log = temperature.log;
-    const n = log.length;
-    let i = 0;
-    while (i < n && log[i].h <= 0) i++;
-    let t = 0;
-    if (i === 0) {
-      t = Math.min(log[0].h, batchH);
-      constant(log[0].c, t);
-      i = 1;
-    }
-    for (; t < batchH && i < n; i++) {
-      const ra = log[i - 1];
-      const rb = log[i];
-      const b = Math.min(rb.h, batchH);
-      if (b > t && rb.h > ra.h) {
-        const slope = (rb.c - ra.c) / (rb.h - ra.h);
-        const ca = t === ra.h ? ra.c : ra.c + slope * (t - ra.h);
-        const cb = b === rb.h ? rb.c : ra.c + slope * (b - ra.h);
-        ramp(ca, cb, b - t);
-      }
-      if (b > t) t = b;
-    }
-    if (t < batchH) constant(log[n - 1].c, batchH - t);
-  }
+  walkProgram(temperature, 0, batchH, constant, ramp);
   let uMin = Infinity;
   let uMax = -Infinity;
   const u = out.u.subarray(0, out.nodes);

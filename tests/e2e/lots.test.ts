@@ -53,6 +53,8 @@ describe('procurement judges an incoming lot', () => {
     const [lo, hi] = interval!.replace(' h', '').split('–').map(Number);
     expect(lo! < h && h < hi!).toBe(true);
     expect(Math.abs(h / 60 - 1)).toBeLessThan(0.15);
+    // The fit's comparison of models on the same points, the chosen one named.
+    await expect(page.getByTestId('fit-models-table').textContent()).resolves.toMatch(/First order.*\(chosen\)/);
     await expect(page.getByTestId('lot-evaluation').textContent()).resolves.toMatch(/^Assay fit: half-life [\d.]+ h at 40 °C \(95 % interval/);
     await expect(page.getByTestId('lot-recommendation').textContent()).resolves.toBe('Meets the specification');
     await shot(page, 'decision-card', `lot-assay-fitted-${PHONE.width}x${PHONE.height}`);

@@ -1,7 +1,6 @@
 // The four defects an outside audit found, each with the input that showed it.
-import { spawnSync } from 'node:child_process';
-import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { cli } from '../support/model';
 import {
   createRng,
   monteCarlo,
@@ -12,16 +11,6 @@ import {
   type Stage,
   type Substrate,
 } from '../../src/model';
-
-const root = path.resolve(__dirname, '../..');
-function cli(command: string, input: unknown) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', 'src/cli/model-cli.ts', command], {
-    cwd: root,
-    input: JSON.stringify(input),
-    encoding: 'utf8',
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
 
 // Independent solve of the staged programme: steps parameterised as maxStep * tanh(u), so every u is feasible,
 // then gradient ascent (central differences, Adam steps) on ln(work) of simulate from many starts.

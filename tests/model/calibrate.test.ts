@@ -5,8 +5,8 @@
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { ruleOf } from '../support/model';
 import {
-  ModelInputError,
   calibrate,
   cholesky,
   createRng,
@@ -318,16 +318,6 @@ describe('leave-one-out residuals and outliers', () => {
     none.posterior.covariance.forEach((row, i) => row.forEach((v, k) => expect(v).toBeCloseTo(cov[i][k], 12)));
   });
 });
-
-function ruleOf(fn: () => unknown): string {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof ModelInputError) return `${e.field}: ${e.rule}`;
-    throw e;
-  }
-  return 'no error';
-}
 
 describe('calibrate input', () => {
   const cov = covarianceOf([0.2, 8, 0.2]);

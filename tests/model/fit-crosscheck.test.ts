@@ -1,7 +1,7 @@
 // The three-model inactivation fit against a general-purpose solver: ml-levenberg-marquardt (npm, 5.1.0) on the same
 // points, with each model's mean written out again here from its formula; the covariance against s^2 (J^T J)^-1
 // built in this file from central differences and inverted by mathjs (Seber & Wild, Nonlinear Regression, 1989,
-// ch. 2: the asymptotic covariance of a least-squares estimate).
+// ch. 2: the asymptotic covariance of a least-squares estimate; cited from memory).
 import { inv } from 'mathjs';
 import { levenbergMarquardt as mlLm } from 'ml-levenberg-marquardt';
 import { describe, expect, it } from 'vitest';
@@ -52,35 +52,28 @@ function data(
 
 const response = (errorModel: ErrorModel) => (v: number) => (errorModel === 'relative' ? Math.log(v) : v);
 
-const cases: {
-  label: string;
-  truth: { name: InactivationModelFit['name']; th: number[] };
-  errorModel: ErrorModel;
-  sd: number;
-  temps: number[];
-  hours: number[];
-}[] = [
-  { label: 'first order, relative', truth: { name: 'first-order', th: [Math.log(0.2), 250] }, errorModel: 'relative', sd: 0.04, temps: [55, 60, 65, 70], hours: [0.25, 0.5, 1, 2, 4] },
-  { label: 'first order, absolute', truth: { name: 'first-order', th: [Math.log(0.2), 250] }, errorModel: 'absolute', sd: 0.015, temps: [55, 60, 65, 70], hours: [0.25, 0.5, 1, 2, 4] },
-  { label: 'heat-up loss (a0 = 0.85), relative', truth: { name: 'first-order-a0', th: [Math.log(0.2), 250, Math.log(0.85)] }, errorModel: 'relative', sd: 0.03, temps: [55, 60, 65, 70], hours: [0, 0.5, 1, 2, 4] },
-  { label: 'heat-up loss (a0 = 0.85), absolute', truth: { name: 'first-order-a0', th: [Math.log(0.2), 250, Math.log(0.85)] }, errorModel: 'absolute', sd: 0.01, temps: [55, 60, 65, 70], hours: [0, 0.5, 1, 2, 4] },
-  {
-    label: 'two fractions (30 % stable), relative',
-    truth: { name: 'two-fraction', th: [Math.log(0.8), 250, Math.log(0.04), 300, Math.log(0.3 / 0.7)] },
-    errorModel: 'relative',
-    sd: 0.02,
-    temps: [55, 60, 65, 70],
-    hours: [0.25, 0.5, 1, 2, 4, 8, 16],
-  },
-  {
-    label: 'two fractions (30 % stable), absolute',
-    truth: { name: 'two-fraction', th: [Math.log(0.8), 250, Math.log(0.04), 300, Math.log(0.3 / 0.7)] },
-    errorModel: 'absolute',
-    sd: 0.005,
-    temps: [55, 60, 65, 70],
-    hours: [0.25, 0.5, 1, 2, 4, 8, 16],
-  },
-];
+type Truth = { name: InactivationModelFit['name']; th: number[] };
+const TEMPS = [55, 60, 65, 70];
+const FIRST_ORDER: Truth = { name: 'first-order', th: [Math.log(0.2), 250] };
+const HEAT_UP_LOSS: Truth = { name: 'first-order-a0', th: [Math.log(0.2), 250, Math.log(0.85)] };
+const TWO_FRACTIONS: Truth = { name: 'two-fraction', th: [Math.log(0.8), 250, Math.log(0.04), 300, Math.log(0.3 / 0.7)] };
+// Each truth in both error models, with the noise sd of each (ln scale when relative, fraction when absolute).
+const cases = (
+  [
+    ['first order', FIRST_ORDER, [0.25, 0.5, 1, 2, 4], 0.04, 0.015],
+    ['heat-up loss (a0 = 0.85)', HEAT_UP_LOSS, [0, 0.5, 1, 2, 4], 0.03, 0.01],
+    ['two fractions (30 % stable)', TWO_FRACTIONS, [0.25, 0.5, 1, 2, 4, 8, 16], 0.02, 0.005],
+  ] as const
+).flatMap(([label, truth, hours, relSd, absSd]) =>
+  (['relative', 'absolute'] as const).map((errorModel) => ({
+    label: `${label}, ${errorModel}`,
+    truth,
+    errorModel,
+    sd: errorModel === 'relative' ? relSd : absSd,
+    temps: TEMPS,
+    hours: [...hours],
+  })),
+);
 
 describe('fit against ml-levenberg-marquardt and an independent covariance', () => {
   it.each(cases)('$label: same optimum (every parameter within 1e-3 of its se), same covariance (1e-4 rel), chosen = truth', (cs) => {

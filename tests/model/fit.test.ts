@@ -32,7 +32,7 @@ describe('fitInactivation', () => {
   });
   // Agreement with ml-levenberg-marquardt for all three models and both error models: fit-crosscheck.test.ts.
   // Coverage by simulation: for a correctly specified model the 95 % Wald/Student intervals of a nonlinear least-squares
-  // fit cover the truth close to 95 % of the time (Seber & Wild, Nonlinear Regression, Wiley 1989, ch. 5). 400 seeded
+  // fit cover the truth close to 95 % of the time (Seber & Wild, Nonlinear Regression, Wiley 1989, ch. 5, cited from memory). 400 seeded
   // data sets per error model (the issue asks for at least 200; with 400 the binomial sd of the rate is 1.1 points,
   // so 92-98 % is +-2.7 sd). Measured on other seeds: the first-order fit alone 94.6-95.2 % (3000 sets); with the
   // AICc choice, the chosen model's 93.0-94.7 % (2000 sets), lower because AICc picks first-order-a0 in about 4 % of the sets and those intervals,

@@ -1,22 +1,12 @@
-import { spawnSync } from 'node:child_process';
 import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { ModelInputError, simulate, validateProfileInput, validateSimulateInput, validateTemperature } from '../../src/model';
+import { cli, ruleOf } from '../support/model';
+import { simulate, validateProfileInput, validateSimulateInput, validateTemperature } from '../../src/model';
 
 const root = path.resolve(__dirname, '../..');
 const enzyme = { tRefC: 60, vmaxRef: 2, eaKJPerMol: 50, kdRefPerH: 0.693, edKJPerMol: 300 };
 const substrate = { s0GPerL: 100, kmGPerL: 5 };
-
-function ruleOf(fn: () => unknown): string {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof ModelInputError) return `${e.field}: ${e.rule}`;
-    throw e;
-  }
-  return 'no error';
-}
 
 describe('input rules', () => {
   it.each([
@@ -46,17 +36,29 @@ describe('input rules', () => {
   });
 });
 
-function cli(command: string, input: unknown) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', 'src/cli/model-cli.ts', command], {
-    cwd: root,
-    input: typeof input === 'string' ? input : JSON.stringify(input),
-    encoding: 'utf8',
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
-
 describe('command line', () => {
   const enz = enzyme;
+  it('fit where two fractions are not identified: prints every model, the singular one without standard errors (it refused the whole input)', () => {
+    const points = [
+      { c: 55, h: 1, residual: 0.9 },
+      { c: 55, h: 1, residual: 0.88 },
+      { c: 55, h: 2, residual: 0.8 },
+      { c: 60, h: 1, residual: 0.8 },
+      { c: 60, h: 2, residual: 0.63 },
+      { c: 60, h: 2, residual: 0.66 },
+      { c: 65, h: 1, residual: 0.6 },
+      { c: 65, h: 2, residual: 0.37 },
+    ];
+    const r = cli('fit', { tRefC: 60, points });
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.stdout) as { chosen: string; models: { name: string; singular?: string; se: object; covariance: number[][] }[] };
+    expect(out.models.map((m) => m.name)).toEqual(['first-order', 'first-order-a0', 'two-fraction']);
+    const singular = out.models.filter((m) => m.singular);
+    expect(singular.length).toBeGreaterThan(0);
+    expect(singular.find((m) => m.singular!.startsWith('the fit is singular'))).toMatchObject({ se: {}, covariance: [] });
+    expect(singular.map((m) => m.name)).not.toContain(out.chosen);
+  });
   it.each([
     ['simulate', { enzyme: enz, substrate, batchH: 24, temperature: { setpointC: 50 } }, ['productGPerL', 'conversion', 'residualActivity']],
     ['optimize', { enzyme: enz, substrate, batchH: 24, boundsC: [40, 60] }, ['setpointC', 'productGPerL']],

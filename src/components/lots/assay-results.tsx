@@ -1,5 +1,5 @@
 import { Linking, StyleSheet, View } from 'react-native';
-import type { Assay, AssayPoint } from '../../contracts/assays';
+import type { Assay, AssayPoint, FitModelName, FitModelSummary } from '../../contracts/assays';
 import { fmt } from '../../format';
 import { space, useBreakpoint } from '../../theme';
 import { ArrheniusChart } from '../charts/arrhenius-chart';
@@ -27,6 +27,22 @@ const ARRHENIUS_COLUMNS: Column<PerT>[] = [
   { key: 'n', label: 'Points', value: (p) => String(p.n), isNumeric: true, flex: 0.6 },
 ];
 
+const MODEL_LABEL: Record<FitModelName, string> = {
+  'first-order': 'First order',
+  'first-order-a0': 'First order, activity lost before time 0',
+  'two-fraction': 'Two fractions (labile and stable)',
+};
+
+// The models the fit compared on the same points; the lowest AICc is chosen unless a simpler one is within 2.
+function modelColumns(chosen: FitModelName | undefined, tRefC: number): Column<FitModelSummary>[] {
+  return [
+    { key: 'model', label: 'Model', value: (m) => `${MODEL_LABEL[m.name]}${m.name === chosen ? ' (chosen)' : m.singular ? ' (not identified)' : ''}`, flex: 2 },
+    { key: 'half', label: `t½ at ${fmt(tRefC, 0)} °C, h`, value: (m) => m.halfLifeRefH.toPrecision(3), isNumeric: true },
+    { key: 'ed', label: 'Ed, kJ/mol', value: (m) => fmt(m.edKJPerMol, 0), isNumeric: true },
+    { key: 'aicc', label: 'AICc', value: (m) => (m.aicc === null ? '–' : fmt(m.aicc, 1)), isNumeric: true },
+  ];
+}
+
 /** One assay: the fitted figures, the decay and Arrhenius charts, and the same data as tables. */
 export function AssayResults({ assay, specTempC }: { assay: Assay; specTempC: number }) {
   const { isWide } = useBreakpoint();
@@ -42,12 +58,22 @@ export function AssayResults({ assay, specTempC }: { assay: Assay; specTempC: nu
         {assay.source === 'csv' ? `From ${assay.fileName ?? 'a CSV file'}` : 'Typed in'} by {assay.createdBy}. {assay.scaleNote}
       </Text>
       {fit && assay.atSpec ? (
-        <View style={styles.figures}>
-          <Figure label={`Half-life at ${fmt(specTempC, 0)} °C`} value={`${fmt(assay.atSpec.halfLifeH, 1)} h`} testID="assay-half-life" />
-          <Figure label="95 % interval" value={`${fmt(assay.atSpec.lowerH, 1)}–${fmt(assay.atSpec.upperH, 1)} h`} testID="assay-interval" />
-          <Figure label={`kd at ${fmt(fit.tRefC, 0)} °C (ref.)`} value={`${fit.kdRefPerH.toPrecision(3)} ± ${fit.se.kdRefPerH.toPrecision(2)} /h`} />
-          <Figure label="Ed, inactivation" value={`${fmt(fit.edKJPerMol, 0)} ± ${fmt(fit.se.edKJPerMol, 0)} kJ/mol`} />
-        </View>
+        <>
+          <View style={styles.figures}>
+            <Figure label={`Half-life at ${fmt(specTempC, 0)} °C`} value={`${fmt(assay.atSpec.halfLifeH, 1)} h`} testID="assay-half-life" />
+            <Figure label="95 % interval" value={`${fmt(assay.atSpec.lowerH, 1)}–${fmt(assay.atSpec.upperH, 1)} h`} testID="assay-interval" />
+            <Figure label={`kd at ${fmt(fit.tRefC, 0)} °C (ref.)`} value={`${fit.kdRefPerH.toPrecision(3)} ± ${fit.se.kdRefPerH.toPrecision(2)} /h`} />
+            <Figure label="Ed, inactivation" value={`${fmt(fit.edKJPerMol, 0)} ± ${fmt(fit.se.edKJPerMol, 0)} kJ/mol`} />
+          </View>
+          {fit.models && fit.models.length > 0 ? (
+            <DataTable columns={modelColumns(fit.chosen, fit.tRefC)} rows={fit.models} rowKey={(m) => m.name} caption="Models compared on the same points" testID="fit-models-table" />
+          ) : null}
+          {fit.lackOfFit ? (
+            <Text tone="warning" testID="fit-lack-of-fit">
+              {fit.lackOfFit}
+            </Text>
+          ) : null}
+        </>
       ) : (
         <Text tone="warning" testID="assay-fit-problem">
           No fit: {assay.fitProblem ?? 'not enough data'}.
