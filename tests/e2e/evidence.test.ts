@@ -16,8 +16,11 @@ afterAll(() => browser?.close());
 
 type RecipeRow = { id: number; name: string; vesselId: number; vesselName: string; lotId: number; batchH: number };
 
+/** Scrolls the element's top to the top of the window (a tall card shows its start), then saves the screenshot. */
 async function shot(page: Page, testID: string, name: string) {
-  await page.getByTestId(testID).first().scrollIntoViewIfNeeded();
+  await page.getByTestId(testID).first().waitFor();
+  // A string, not a function: tsx would compile a function with a helper the page does not have.
+  await page.evaluate(`document.querySelector('[data-testid="${testID}"]').scrollIntoView({ block: 'start' })`);
   await screenshot(page, name);
 }
 
