@@ -1,5 +1,7 @@
 // The evidence chain in the browser: procurement fits a lot, the engineer's planner says it plans from that fit,
 // a closed batch proposes a calibration, the engineer accepts it, and the recommendation and its band move.
+// Journeys share one server: this one adds a QC fit to OF-LX5-0926, closes any batch running in the lactose tank,
+// closes one more batch and accepts a calibration, so other journeys must not count on those staying as seeded.
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { demoAssayCsv, demoAssayPoints, DEMO_PLANT_TRUTH } from '../../db/seed';
