@@ -163,4 +163,28 @@ describe('evidence to decision', () => {
     expect(phone.errors).toEqual([]);
     await phone.context.close();
   });
+
+  it('the admin sets the measurement spread calibration uses, on the Site screen (phone)', async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await signIn(page, baseURL, 'admin');
+    await acknowledgeCautionsIfShown(page, 'screen-site');
+    await page.getByTestId('measurement-sd').waitFor();
+    expect(await text(page, 'measurement-sd-sentence')).toMatch(/standard deviation of 2\.0 % of the measured product/);
+    await page.getByTestId('measurement-sd-edit').click();
+    await page.getByTestId('measurement-sd-input').fill('40');
+    await page.getByTestId('measurement-sd-save').click();
+    await expect.poll(() => page.getByText('Between 0.1 and 20 %').count()).toBe(1);
+    await page.getByTestId('measurement-sd-input').fill('2.5');
+    await page.getByTestId('measurement-sd-save').click();
+    await expect.poll(() => text(page, 'measurement-sd-sentence')).toMatch(/of 2\.5 % of the measured product/);
+    await shot(page, 'measurement-sd', `evidence-site-measurement-sd-${PHONE.width}x${PHONE.height}`);
+    // Back to the default for the journeys that follow on this server.
+    await page.getByTestId('measurement-sd-edit').click();
+    await page.getByTestId('measurement-sd-input').fill('2');
+    await page.getByTestId('measurement-sd-save').click();
+    await expect.poll(() => text(page, 'measurement-sd-sentence')).toMatch(/of 2\.0 % of the measured product/);
+    // The refused 40 % answered 400: the one expected console error.
+    expect(errors.filter((e) => !e.includes('400'))).toEqual([]);
+    await context.close();
+  });
 });
