@@ -1,5 +1,7 @@
 // The evidence chain in the browser: procurement fits a lot, the engineer's planner says it plans from that fit,
 // a closed batch proposes a calibration, the engineer accepts it, and the recommendation and its band move.
+// Journeys share one server: this one adds a QC fit to OF-LX5-0926, closes any batch running in the lactose tank,
+// closes one more batch and accepts a calibration, so other journeys must not count on those staying as seeded.
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { demoAssayCsv, demoAssayPoints, DEMO_PLANT_TRUTH } from '../../db/seed';
@@ -16,8 +18,11 @@ afterAll(() => browser?.close());
 
 type RecipeRow = { id: number; name: string; vesselId: number; vesselName: string; lotId: number; batchH: number };
 
+/** Scrolls the element's top to the top of the window (a tall card shows its start), then saves the screenshot. */
 async function shot(page: Page, testID: string, name: string) {
-  await page.getByTestId(testID).first().scrollIntoViewIfNeeded();
+  await page.getByTestId(testID).first().waitFor();
+  // A string, not a function: tsx would compile a function with a helper the page does not have.
+  await page.evaluate(`document.querySelector('[data-testid="${testID}"]').scrollIntoView({ block: 'start' })`);
   await screenshot(page, name);
 }
 
@@ -133,6 +138,16 @@ describe('evidence to decision', () => {
     expect([setpointOnCalibration, bandOnCalibration]).not.toEqual([setpointOnFit, bandOnFit]);
     expect(bandOnCalibration).not.toBe(bandOnFit);
     await shot(eng.page, 'recommendation', `evidence-planner-calibrated-${WIDE.width}x${WIDE.height}`);
+
+    // The batch that finishes early (issue #17, section 4): the glucose recipe at 0.9 g/L converts all its substrate.
+    const glucose = recipes.find((r) => r.name === 'Glucose syrup DE 95')!;
+    await eng.page.goto(`${baseURL}/planner/${glucose.id}`);
+    await eng.page.getByTestId('input-dose').fill('0.9');
+    await expect.poll(() => text(eng.page, 'early-finish'), { timeout: 15_000 }).toMatch(/^A batch ended at hour [\d.]+ would earn \d+ per reactor hour, against \d+ for the full 48 h\.$/);
+    expect(await text(eng.page, 'recommended-setpoint')).toBe('59.0 °C');
+    expect(await text(eng.page, 'recommended-product')).toMatch(/all the substrate, converted by hour [\d.]+ of 48 at the current setpoint, so no change is recommended/);
+    expect(await text(eng.page, 'reasons')).toMatch(/The substrate is fully converted by hour/);
+    await shot(eng.page, 'recommendation', `evidence-planner-early-finish-${WIDE.width}x${WIDE.height}`);
     expect(eng.errors).toEqual([]);
     await eng.context.close();
 
@@ -147,5 +162,29 @@ describe('evidence to decision', () => {
     await shot(phone.page, 'model-quality-accuracy', `evidence-model-quality-${PHONE.width}x${PHONE.height}`);
     expect(phone.errors).toEqual([]);
     await phone.context.close();
+  });
+
+  it('the admin sets the measurement spread calibration uses, on the Site screen (phone)', async () => {
+    const { page, context, errors } = await watchedPage(browser, PHONE);
+    await signIn(page, baseURL, 'admin');
+    await acknowledgeCautionsIfShown(page, 'screen-site');
+    await page.getByTestId('measurement-sd').waitFor();
+    expect(await text(page, 'measurement-sd-sentence')).toMatch(/standard deviation of 2\.0 % of the measured product/);
+    await page.getByTestId('measurement-sd-edit').click();
+    await page.getByTestId('measurement-sd-input').fill('40');
+    await page.getByTestId('measurement-sd-save').click();
+    await expect.poll(() => page.getByText('Between 0.1 and 20 %').count()).toBe(1);
+    await page.getByTestId('measurement-sd-input').fill('2.5');
+    await page.getByTestId('measurement-sd-save').click();
+    await expect.poll(() => text(page, 'measurement-sd-sentence')).toMatch(/of 2\.5 % of the measured product/);
+    await shot(page, 'measurement-sd', `evidence-site-measurement-sd-${PHONE.width}x${PHONE.height}`);
+    // Back to the default for the journeys that follow on this server.
+    await page.getByTestId('measurement-sd-edit').click();
+    await page.getByTestId('measurement-sd-input').fill('2');
+    await page.getByTestId('measurement-sd-save').click();
+    await expect.poll(() => text(page, 'measurement-sd-sentence')).toMatch(/of 2\.0 % of the measured product/);
+    // The refused 40 % answered 400: the one expected console error.
+    expect(errors.filter((e) => !e.includes('400'))).toEqual([]);
+    await context.close();
   });
 });

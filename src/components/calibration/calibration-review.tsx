@@ -26,10 +26,10 @@ function paramRows(basis: Calibration, proposed: Calibration | null, accepted: C
   ];
 }
 
-const PARAM_COLUMNS = (hasAccepted: boolean): Column<ParamRow>[] => [
+const PARAM_COLUMNS = (hasProposed: boolean, hasAccepted: boolean): Column<ParamRow>[] => [
   { key: 'l', label: 'Parameter', value: (r) => r.label, flex: 1.3 },
   { key: 'p', label: 'Assay evidence only', value: (r) => r.prior, flex: 1.5 },
-  { key: 'n', label: 'Proposed calibration', value: (r) => r.proposed, flex: 1.5 },
+  ...(hasProposed ? [{ key: 'n', label: 'Proposed calibration', value: (r: ParamRow) => r.proposed, flex: 1.5 }] : []),
   ...(hasAccepted ? [{ key: 'a', label: 'In use now', value: (r: ParamRow) => r.accepted, flex: 1.5 }] : []),
 ];
 
@@ -88,7 +88,7 @@ export function CalibrationReview({ recipeId, lotId, canDecide }: { recipeId: nu
             No new proposal: the calibration in use covers every closed batch.
           </Text>
         )}
-        <DataTable columns={PARAM_COLUMNS(!!accepted)} rows={paramRows(basis, proposed, accepted)} rowKey={(r) => r.label} caption="Parameters: assay evidence against the calibration" testID="calibration-params" />
+        <DataTable columns={PARAM_COLUMNS(!!proposed, !!accepted)} rows={paramRows(basis, proposed, accepted)} rowKey={(r) => r.label} caption="Parameters: assay evidence against the calibration" testID="calibration-params" />
         {outliers.map((b) => (
           <OutlierAction
             key={b.batchId}

@@ -34,6 +34,14 @@ export function PlanSheet({ plan }: { plan: Plan }) {
     { label: 'Profit per reactor hour', value: site.money(o.profitPerH, 1) },
     { label: 'Current setpoint', value: `${fmt(o.current.setpointC)} °C: ${fmt(o.current.productGPerL)} g/L, ${fmt(o.current.activityLeft * 100, 0)} % activity left` },
     { label: 'Gain over current', value: `${fmt(o.gainOverCurrent * 100)} %` },
+    ...(o.earlyFinish
+      ? [
+          {
+            label: 'Substrate fully converted',
+            value: `by hour ${fmt(o.earlyFinish.completeAtH)}: a batch ended then earns ${fmt(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour against ${fmt(o.earlyFinish.fullProfitPerH, 0)} for the full ${fmt(i.batchH, 0)} h`,
+          },
+        ]
+      : []),
     { label: 'Vessel range used', value: `${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at the ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}` },
     { label: 'Constraints met', value: o.constraintsMet ? 'Yes' : 'No' },
     { label: 'Pressure caution', value: o.cautions.crossesBoiling ? `Yes: ${fmt(o.cautions.maxC)} °C, ${fmt(o.cautions.saturationKPa, 0)} kPa abs saturation` : 'No (stays at or below 100 °C)' },
