@@ -30,6 +30,7 @@ import { lotsRouter } from './routes/lots';
 import { plansRouter } from './routes/plans';
 import { recipesRouter } from './routes/recipes';
 import { mailOutboxRouter } from './routes/mail-outbox';
+import { passwordResetsRouter } from './routes/password-resets';
 import { sessionRouter } from './routes/session';
 import { siteRouter } from './routes/site';
 import { usersRouter } from './routes/users';
@@ -128,7 +129,8 @@ export function createApp(deps: AppDeps): Express {
       prefix: '/session',
       router: sessionRouter({ ...services, auth: deps.auth, cookieSecure: deps.cookieSecure ?? false, signInLimit: deps.signInLimit ?? DEFAULT_SIGN_IN_LIMIT }),
     },
-    { prefix: '/users', router: usersRouter(services) },
+    { prefix: '/users', router: usersRouter({ ...services, auth: deps.auth, publicUrl: linkUrl, mail }) },
+    { prefix: '/password-resets', router: passwordResetsRouter({ ...services, auth: deps.auth }) },
     { prefix: '/site', router: siteRouter(services) },
     { prefix: '/vessels', router: vesselsRouter(services) },
     { prefix: '/enzymes', router: enzymesRouter(services) },

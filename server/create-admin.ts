@@ -2,6 +2,7 @@ import { createInterface } from 'node:readline/promises';
 import { migrateDb, openDb, writeTx } from '../db/client';
 import { sites } from '../db/schema';
 import { SignInRequest } from '../src/contracts/session';
+import { cliArgs } from './cli-args';
 import { readEnv } from './env';
 import { insertUser } from './repositories/users';
 import { hashPassword } from './services/auth';
@@ -13,7 +14,7 @@ async function main() {
   const env = readEnv();
   const rl = createInterface({ input: process.stdin, output: process.stdout });
   const ask = async (q: string, fallback?: string) => (fallback !== undefined ? fallback : (await rl.question(q)).trim());
-  const args = Object.fromEntries(process.argv.slice(2).map((a) => a.replace(/^--/, '').split('=') as [string, string]));
+  const args = cliArgs(process.argv.slice(2));
   const siteName = await ask('Site name: ', args.site);
   const timeZone = await ask('Site time zone (IANA, e.g. Europe/Berlin): ', args['time-zone']);
   const name = await ask('Admin name: ', args.name);

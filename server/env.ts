@@ -7,7 +7,8 @@ const Env = z.object({
   HOST: z.string().default('0.0.0.0'),
   DATABASE_FILE: z.string().default(path.join('data', 'yieldpoint.db')),
   SESSION_SECRET: z.string().min(32).optional(),
-  COOKIE_SECURE: z.enum(['0', '1']).default('0'),
+  // Unset: Secure when PUBLIC_URL is https (a browser then never sends the session cookie over plain http).
+  COOKIE_SECURE: z.enum(['0', '1']).optional(),
   SESSION_IDLE_MINUTES: z.coerce.number().positive().default(12 * 60),
   SESSION_ABSOLUTE_HOURS: z.coerce.number().positive().default(7 * 24),
   AUDIT_CHECKPOINT_MINUTES: z.coerce.number().positive().default(15),
@@ -75,7 +76,7 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): ServerEnv {
     host: e.HOST,
     databaseFile: e.DATABASE_FILE,
     sessionSecret: e.SESSION_SECRET ? new TextEncoder().encode(e.SESSION_SECRET) : null,
-    cookieSecure: e.COOKIE_SECURE === '1',
+    cookieSecure: e.COOKIE_SECURE ? e.COOKIE_SECURE === '1' : (e.PUBLIC_URL?.startsWith('https:') ?? false),
     sessionIdleMinutes: e.SESSION_IDLE_MINUTES,
     sessionAbsoluteHours: e.SESSION_ABSOLUTE_HOURS,
     auditCheckpointMinutes: e.AUDIT_CHECKPOINT_MINUTES,

@@ -30,7 +30,12 @@ function VerifyCard() {
       </Text>
       {result ? (
         <Text tone={result.ok ? 'success' : 'danger'} testID="audit-verify-result" accessibilityLiveRegion="polite">
-          {result.ok ? `Unbroken: all ${result.events} events check out, against ${result.checkpoints} signed checkpoints, and every decided record reads as audited.` : `${result.problems.length} problem${result.problems.length > 1 ? 's' : ''}: ${result.problems.slice(0, 3).map((p) => p.message).join('; ')}.`}
+          {result.ok ? `Unbroken: all ${result.events} events check out.` : `${result.problems.length} problem${result.problems.length > 1 ? 's' : ''}: ${result.problems.slice(0, 3).map((p) => p.message).join('; ')}.`}
+        </Text>
+      ) : null}
+      {result?.ok ? (
+        <Text tone="muted" variant="small" testID="audit-verify-detail">
+          {result.checkpoints ? `Matches all ${result.checkpoints} signed checkpoints (the last at ${result.lastCheckpointAt}).` : 'No signed checkpoint yet; one is written every 15 minutes.'} Every decided lot, signature and change request reads as audited.
         </Text>
       ) : null}
       {error ? <Text tone="danger">{error.message}</Text> : null}

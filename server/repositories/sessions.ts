@@ -1,4 +1,4 @@
-import { and, eq, isNull, sql } from 'drizzle-orm';
+import { and, eq, isNull, ne, sql } from 'drizzle-orm';
 import { preparedPer, type Db } from '../../db/client';
 import { sessions, sites, users } from '../../db/schema';
 
@@ -26,3 +26,6 @@ export const revokeSession = (db: Db, id: string, at: string) =>
 
 export const revokeUserSessions = (db: Db, userId: number, at: string) =>
   db.update(sessions).set({ revokedAt: at }).where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt))).run();
+
+export const revokeOtherSessions = (db: Db, userId: number, keepId: string, at: string) =>
+  db.update(sessions).set({ revokedAt: at }).where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt), ne(sessions.id, keepId))).run();

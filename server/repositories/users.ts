@@ -24,7 +24,7 @@ export const listSiteUsers = (db: Db, siteId: number) =>
 export const findSiteUser = (db: Db, siteId: number, id: number) =>
   db.select().from(users).where(and(eq(users.siteId, siteId), eq(users.id, id))).get();
 
-export const updateUser = (db: Db, id: number, patch: Partial<Pick<UserRow, 'role' | 'isActive' | 'name' | 'cautionsAcknowledgedAt'>>) =>
+export const updateUser = (db: Db, id: number, patch: Partial<Pick<UserRow, 'role' | 'isActive' | 'name' | 'cautionsAcknowledgedAt' | 'passwordHash'>>) =>
   db.update(users).set(patch).where(eq(users.id, id)).returning().get();
 
 export const countUsersByRole = (db: Db, siteId: number) =>

@@ -1,8 +1,9 @@
 import { Router, type CookieOptions } from 'express';
 import rateLimit from 'express-rate-limit';
-import { Session, SessionState, SignInRequest, UpdateMe } from '../../src/contracts/session';
+import { ChangePassword, Session, SessionState, SignInRequest, UpdateMe } from '../../src/contracts/session';
 import { allow, ALL_ROLES, currentUser, open, SESSION_COOKIE } from '../middleware/auth';
 import { loadSessionUser, signIn, signOut, type AuthContext } from '../services/auth';
+import { changeOwnPassword } from '../services/passwords';
 import { createAccountThrottle, DEVICE_COOKIE, deviceToken, throttleKey, type SignInLimit } from '../services/sign-in-throttle';
 import { acknowledgeCautions } from '../services/users';
 import { HttpError } from '../http-error';
@@ -55,6 +56,21 @@ export function sessionRouter(opts: SessionRouteOptions): Router {
     const user = currentUser(req);
     acknowledgeCautions(opts, user);
     res.json(Session.parse({ user: loadSessionUser(opts.db, user.id) }));
+  });
+
+  // A stolen session cannot guess the current password faster than sign-in allows.
+  router.post('/password', allow(...ALL_ROLES), async (req, res) => {
+    const body = ChangePassword.parse(req.body);
+    const user = currentUser(req);
+    const key = `password:${user.id}`;
+    const waitMs = accounts.begin(key);
+    if (waitMs > 0) {
+      res.set('retry-after', String(Math.ceil(waitMs / 1000)));
+      throw new HttpError(429, 'rate_limited', `Too many wrong passwords; try again in ${Math.ceil(waitMs / 1000)} s`);
+    }
+    await changeOwnPassword(opts, user, req.sessionId!, body);
+    accounts.succeeded(key);
+    res.status(204).end();
   });
 
   router.delete('/', allow(...ALL_ROLES), (req, res) => {

@@ -1,13 +1,14 @@
 import { Router } from 'express';
 import { z } from 'zod';
+import { PasswordResetSent, SendPasswordReset } from '../../src/contracts/session';
 import { UpdateUser, User, UserList } from '../../src/contracts/users';
 import { allow, currentUser } from '../middleware/auth';
+import { sendPasswordReset, type ResetContext } from '../services/passwords';
 import { changeUser, listUsers } from '../services/users';
-import type { Services } from './services';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export function usersRouter(s: Services): Router {
+export function usersRouter(s: ResetContext): Router {
   const router = Router();
   router.get('/', allow('admin'), (req, res) => {
     res.json(UserList.parse({ users: listUsers(s, currentUser(req)) }));
@@ -15,6 +16,11 @@ export function usersRouter(s: Services): Router {
   router.patch('/:id', allow('admin'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(User.parse(changeUser(s, currentUser(req), id, UpdateUser.parse(req.body))));
+  });
+  router.post('/:id/password-reset', allow('admin'), async (req, res) => {
+    const { id } = IdParam.parse(req.params);
+    SendPasswordReset.parse(req.body);
+    res.status(201).json(PasswordResetSent.parse(await sendPasswordReset(s, currentUser(req), id)));
   });
   return router;
 }

@@ -7,7 +7,8 @@ import type { Clock } from '../clock';
 import { HttpError, notFound } from '../http-error';
 import { findInviteByTokenHash, findOpenInviteByEmail, findSiteInvite, insertInvite, listOpenInvites, updateInvite, type InviteRow } from '../repositories/billing';
 import { findSite } from '../repositories/sites';
-import { findUserByEmail, insertUser } from '../repositories/users';
+import { revokeUserSessions } from '../repositories/sessions';
+import { findUserByEmail, insertUser, updateUser } from '../repositories/users';
 import { appendAudit } from './audit';
 import { hashPassword } from './auth';
 import { assertFreeSeat, assertWritable } from './billing';
@@ -25,7 +26,11 @@ export const listInvites = ({ db, clock }: InviteContext, actor: SessionUser): I
 /** Reserves a seat for the invited address and mails them a one-time link (through the outbox). */
 export function createInvite(ctx: InviteContext, actor: SessionUser, req: CreateInvite): Invite {
   const now = ctx.clock.now();
-  if (findUserByEmail(ctx.db, req.email)) throw new HttpError(409, 'email_taken', 'Someone already signs in with this e-mail', { email: 'Already a Yieldpoint user' });
+  // Only this site's own people are named: an address in use at another site is invited like any other (its owner
+  // learns at the link that it is taken), so one site cannot find out who works at another.
+  const existing = findUserByEmail(ctx.db, req.email);
+  if (existing?.siteId === actor.siteId && existing.isActive)
+    throw new HttpError(409, 'email_taken', 'This person already signs in at this site; to let them back in, send a password reset from the Site screen', { email: 'Already a user at this site' });
   if (findOpenInviteByEmail(ctx.db, req.email, now.toISOString())) throw new HttpError(409, 'already_invited', 'This address already has an open invite', { email: 'Already invited' });
   const site = findSite(ctx.db, actor.siteId);
   if (!site) throw notFound('Site');
@@ -91,10 +96,17 @@ export async function acceptInvite({ db, clock }: InviteContext, req: AcceptInvi
     const row = openInvite(tx, req.token, now);
     if (row.id !== first.id) throw new HttpError(409, 'invite_changed', 'This invite changed; open the link again');
     assertWritable(tx, row.siteId, now);
-    if (findUserByEmail(tx, row.email)) throw new HttpError(409, 'email_taken', 'Someone already signs in with this e-mail');
-    const user = insertUser(tx, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
+    const existing = findUserByEmail(tx, row.email);
+    // Told only to the address's owner, who opened the link from their own mail.
+    if (existing && (existing.siteId !== row.siteId || existing.isActive))
+      throw new HttpError(409, 'email_taken', 'This e-mail address already has a Yieldpoint sign-in. Sign in with it, or ask for an invite to another address.');
+    // A person of this site who lost access (deactivated) comes back with the invite's role and a new password.
+    const user = existing
+      ? updateUser(tx, existing.id, { name: req.name, role: row.role, isActive: true, passwordHash })
+      : insertUser(tx, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
+    if (existing) revokeUserSessions(tx, existing.id, now.toISOString());
     updateInvite(tx, row.id, { acceptedAt: now.toISOString(), userId: user.id });
-    appendAudit(tx, { siteId: row.siteId, userId: user.id, actor: row.email, action: 'invite.accept', entity: 'user', entityId: user.id, newValue: { email: row.email, role: row.role, name: req.name, invite: row.id }, at: now });
+    appendAudit(tx, { siteId: row.siteId, userId: user.id, actor: row.email, action: 'invite.accept', entity: 'user', entityId: user.id, newValue: { email: row.email, role: row.role, name: req.name, invite: row.id, ...(existing ? { reactivated: true } : {}) }, at: now });
     return { email: user.email };
   });
 }

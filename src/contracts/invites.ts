@@ -3,7 +3,7 @@ import { MIN_PASSWORD_LENGTH } from './rules';
 
 export { MIN_PASSWORD_LENGTH };
 import { Role } from './roles';
-import { SignInRequest } from './session';
+import { NewPassword, SignInRequest } from './session';
 
 export const CreateInvite = z.strictObject({
   email: SignInRequest.shape.email,
@@ -33,7 +33,7 @@ export type InvitePreview = z.infer<typeof InvitePreview>;
 
 export const AcceptInvite = InviteToken.extend({
   name: z.string().trim().min(1, 'Enter your name').max(120),
-  password: SignInRequest.shape.password.refine((p) => p.length >= MIN_PASSWORD_LENGTH, `At least ${MIN_PASSWORD_LENGTH} characters`),
+  password: NewPassword,
 });
 export type AcceptInvite = z.infer<typeof AcceptInvite>;
 

@@ -19,9 +19,9 @@ describe('every API route declares its roles', () => {
     expect(routes.filter((r) => r.roles === null)).toEqual([]);
   });
 
-  it('only signing in, asking who is signed in, taking up an invite and the return from the payment page are open', () => {
+  it('only signing in, asking who is signed in, taking up an invite or a reset link and the return from the payment page are open', () => {
     const open = listApiRoutes(t.mounts).filter((r) => r.roles === 'public').map((r) => `${r.method} ${r.path}`);
-    expect(open.sort()).toEqual(['GET /api/billing/return', 'GET /api/session', 'POST /api/invites/accept', 'POST /api/invites/preview', 'POST /api/session']);
+    expect(open.sort()).toEqual(['GET /api/billing/return', 'GET /api/session', 'POST /api/invites/accept', 'POST /api/invites/preview', 'POST /api/password-resets', 'POST /api/password-resets/preview', 'POST /api/session']);
   });
 
   it('refuses signed-out callers with 401 on every guarded route', async () => {

@@ -70,6 +70,10 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
         }
       });
       await new Promise((r) => setTimeout(r, 100 + random() * 400));
+      // On a loaded machine the first answers can take longer than that window: wait (at most 10 s) until this
+      // round has acknowledged a few edits, so every round kills the server with writes in flight.
+      const enough = acknowledged.size + 6;
+      for (let waited = 0; acknowledged.size < enough && waited < 10_000; waited += 20) await new Promise((r) => setTimeout(r, 20));
       server.child.kill('SIGKILL');
       stop = true;
       await Promise.all([...writers, ...loggers]);

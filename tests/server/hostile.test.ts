@@ -430,3 +430,17 @@ describe('databases written before the chain was keyed', () => {
     fs.rmSync(dir, { recursive: true, force: true });
   });
 });
+
+describe('reset links', () => {
+  it('a session token, a token for another purpose or a tampered one never sets a password', async () => {
+    const c = await t.signIn('operator');
+    const sessionJwt = decodeURIComponent(c.cookie!.split('=')[1]!);
+    for (const token of [sessionJwt, `${sessionJwt.split('.').slice(0, 2).join('.')}.${'A'.repeat(43)}`, 'x'.repeat(40)]) {
+      const before = changes();
+      const res = await t.client().post('/api/password-resets', { token, password: 'taken-over-password' });
+      expect(res.status).toBe(404);
+      expect(changes()).toBe(before);
+    }
+    expect((await t.client().post('/api/session', { email: email('operator'), password: 'taken-over-password' })).status).toBe(401);
+  });
+});

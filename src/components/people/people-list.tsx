@@ -5,6 +5,7 @@ import { ROLE_LABELS } from '../../contracts/rules';
 import type { Invite } from '../../contracts/invites';
 import type { User } from '../../contracts/users';
 import { isoDate } from '../../format';
+import { useSendReset } from '../../hooks/use-password-reset';
 import { useRevokeInvite } from '../../hooks/use-revoke-invite';
 import { useUpdateUser } from '../../hooks/use-update-user';
 import { radius, space, useColors } from '../../theme';
@@ -16,6 +17,8 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
   const [editing, setEditing] = useState(false);
   const [role, setRole] = useState<Role>(user.role);
   const update = useUpdateUser();
+  const reset = useSendReset();
+  const [resetSentTo, setResetSentTo] = useState<string | null>(null);
   return (
     <View style={[styles.row, { borderColor: c.border, backgroundColor: c.surface }]} testID={`person-${user.id}`}>
       <View style={styles.head}>
@@ -39,9 +42,14 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
       {editing ? (
         <View style={styles.editor}>
           <RoleChoice value={role} onChange={setRole} testID={`person-${user.id}-role`} />
-          {update.error ? (
+          {update.error ?? reset.error ? (
             <Text tone="danger" variant="small" accessibilityRole="alert">
-              {update.error.message}
+              {(update.error ?? reset.error)!.message}
+            </Text>
+          ) : null}
+          {resetSentTo ? (
+            <Text tone="success" variant="small" testID={`person-${user.id}-reset-sent`}>
+              Reset link sent to {resetSentTo}; it works once, for 24 hours.
             </Text>
           ) : null}
           <View style={styles.actions}>
@@ -53,6 +61,19 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
               isBusy={update.isSubmitting}
               onPress={() => void update.submit({ id: user.id, patch: { isActive: !user.isActive } })}
             />
+            {user.isActive ? (
+              <Button
+                label="Send reset link"
+                variant="secondary"
+                compact
+                testID={`person-${user.id}-reset`}
+                isBusy={reset.isSubmitting}
+                onPress={async () => {
+                  const sent = await reset.submit(user.id);
+                  if (sent) setResetSentTo(sent.to);
+                }}
+              />
+            ) : null}
           </View>
         </View>
       ) : null}

@@ -1,0 +1,68 @@
+import { router, useLocalSearchParams } from 'expo-router';
+import { useState } from 'react';
+import { KeyboardAvoidingView, ScrollView, StyleSheet, View } from 'react-native';
+import { Button } from '@/components/ui/button';
+import { Card } from '@/components/ui/card';
+import { Field } from '@/components/ui/field';
+import { ErrorState, Loader } from '@/components/ui/states';
+import { Text } from '@/components/ui/text';
+import { MIN_PASSWORD_LENGTH } from '@/contracts/rules';
+import { useResetPassword, useResetPreview } from '@/hooks/use-password-reset';
+import { space, useColors } from '@/theme';
+
+function ResetForm({ token }: { token: string }) {
+  const preview = useResetPreview(token);
+  const reset = useResetPassword();
+  const [password, setPassword] = useState('');
+  const [repeat, setRepeat] = useState('');
+  const [mismatch, setMismatch] = useState(false);
+  if (preview.error) return <ErrorState error={preview.error} />;
+  if (!preview.data) return <Loader rows={2} label="Checking the link" />;
+  const submit = async () => {
+    setMismatch(password !== repeat);
+    if (password !== repeat) return;
+    const out = await reset.submit({ token, password });
+    if (out) router.replace({ pathname: '/sign-in', params: { email: out.email, welcome: '1' } });
+  };
+  const general = reset.error && !Object.keys(reset.error.fields).length ? reset.error.message : null;
+  return (
+    <Card>
+      <Text variant="title">Set a new password</Text>
+      <Text tone="muted" testID="reset-who">
+        {preview.data.email}
+      </Text>
+      <Field label="New password" testID="reset-password" value={password} onChangeText={setPassword} secureTextEntry autoComplete="new-password" hint={`At least ${MIN_PASSWORD_LENGTH} characters`} error={reset.error?.fields.password} />
+      <Field label="New password again" testID="reset-password-repeat" value={repeat} onChangeText={setRepeat} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} error={mismatch ? 'The two passwords differ' : undefined} />
+      {general ? (
+        <Text tone="danger" accessibilityRole="alert" testID="reset-error">
+          {general}
+        </Text>
+      ) : null}
+      <Button label="Set password" testID="reset-submit" onPress={submit} isBusy={reset.isSubmitting} />
+    </Card>
+  );
+}
+
+/** The page a reset mail links to: the person chooses a new password, then signs in (their other sessions ended). */
+export default function ResetPassword() {
+  const c = useColors();
+  const { token } = useLocalSearchParams<{ token?: string }>();
+  return (
+    <KeyboardAvoidingView style={[styles.fill, { backgroundColor: c.navBackground }]} behavior="padding">
+      <ScrollView contentContainerStyle={styles.center} keyboardShouldPersistTaps="handled">
+        <View style={styles.column} testID="screen-reset-password">
+          <Text variant="figure" style={{ color: c.navActive }} accessibilityRole="header">
+            Yieldpoint
+          </Text>
+          {token ? <ResetForm token={token} /> : <ErrorState error={new Error('This reset link is not complete. Open the link from the mail again.')} />}
+        </View>
+      </ScrollView>
+    </KeyboardAvoidingView>
+  );
+}
+
+const styles = StyleSheet.create({
+  fill: { flex: 1 },
+  center: { flexGrow: 1, justifyContent: 'center', padding: space.lg },
+  column: { width: '100%', maxWidth: 420, alignSelf: 'center', gap: space.xl },
+});
