@@ -1,5 +1,6 @@
 import { router } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
+import { LinkAdmin } from '@/components/control-link/link-admin';
 import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
@@ -59,6 +60,7 @@ function SiteBody() {
         <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
+      <LinkAdmin />
       <Columns gap={space.md}>
         <>
           <Text variant="title" accessibilityRole="header">
