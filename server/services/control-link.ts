@@ -84,7 +84,8 @@ type Conn = {
   closed: boolean;
 };
 
-const toC = (v: number, unit: VesselSourceRow['unit']) => (unit === 'K' ? v - 273.15 : unit === 'degF' ? ((v - 32) * 5) / 9 : v);
+/** A tag's value in °C: K − 273.15 (SI Brochure 9th ed., 2.3.1), (°F − 32) × 5/9. */
+export const toCelsius = (v: number, unit: VesselSourceRow['unit']) => (unit === 'K' ? v - 273.15 : unit === 'degF' ? ((v - 32) * 5) / 9 : v);
 // The deadband is set in °C; a tag in K has the same step, one in °F 1.8 times it.
 const deadbandIn = (c: number, unit: VesselSourceRow['unit']) => (unit === 'degF' ? c * 1.8 : c);
 const connKey = (siteId: number, s: VesselSourceRow) => JSON.stringify([siteId, s.endpointUrl, s.securityPolicy, s.securityMode, s.userName, s.password, s.trustedThumbprint]);
@@ -130,7 +131,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     if (live && sourceMs <= tap.lastSourceMs) return;
     // One older than the gap limit is stale: the server holds on to an old value. Not a reading.
     if (live && nowMs - sourceMs > gapMs) return bad(`Stale value from ${new Date(sourceMs).toISOString()}`);
-    const c = Math.round(toC(v, tap.source.unit) * 1000) / 1000;
+    const c = Math.round(toCelsius(v, tap.source.unit) * 1000) / 1000;
     if (c < READING_MIN_C || c > READING_MAX_C) return bad(`${c} °C from ${tap.source.nodeId} is not a plausible reactor temperature`);
     if (sourceMs < Date.parse(tap.startedAt)) return;
     if (sourceMs > tap.lastSourceMs) {

@@ -9,7 +9,7 @@ import { batchReadings, deviations } from '../../db/schema';
 import { startPlant, type Plant } from '../../server/opcua/plant';
 import { openAppPki, type AppPki } from '../../server/opcua/pki';
 import { READ_FAMILY } from '../../server/opcua/reader';
-import { startControlLink, type ControlLink } from '../../server/services/control-link';
+import { startControlLink, toCelsius, type ControlLink } from '../../server/services/control-link';
 import { startTestApp, type Client, type TestApp } from './harness';
 
 // The read-only control-system link (server/services/control-link.ts) against a local OPC UA server built with
@@ -115,6 +115,19 @@ afterAll(async () => {
   await net1?.close();
   await plant?.close();
   await pki?.dispose();
+});
+
+describe('units of a tag', () => {
+  it('converts K and degF to degC', () => {
+    // Definitions: t/°C = T/K − 273.15 (SI Brochure, 9th ed., 2.3.1); t/°C = (t/°F − 32) × 5/9 (NIST SP 811,
+    // appendix B.9). Checks: water freezes at 273.15 K = 32 °F = 0 °C and boils (1 atm) near 212 °F = 100 °C.
+    expect(toCelsius(273.15, 'K')).toBeCloseTo(0, 12);
+    expect(toCelsius(333.15, 'K')).toBeCloseTo(60, 12);
+    expect(toCelsius(32, 'degF')).toBeCloseTo(0, 12);
+    expect(toCelsius(212, 'degF')).toBeCloseTo(100, 12);
+    expect(toCelsius(-40, 'degF')).toBeCloseTo(-40, 12);
+    expect(toCelsius(59.5, 'degC')).toBe(59.5);
+  });
 });
 
 describe('the application certificate', () => {
