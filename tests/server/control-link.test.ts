@@ -237,6 +237,31 @@ describe('values from the plant', () => {
   });
 });
 
+describe('a server without history', () => {
+  it('records the span it cannot fill as a gap, and goes on with live values', async () => {
+    const bare = await startPlant({ pkiFolder: `${PLANT_PKI}-bare`, users: [PLANT_USER], tags: [TAG], history: false });
+    try {
+      const body = { endpointUrl: bare.endpointUrl, nodeId: bare.nodeIdOf(TAG), ...PLANT_USER };
+      expect((await admin.req('PUT', `/api/control-link/sources/${vesselId}`, body)).body.trustedThumbprint).toBeNull();
+      const cert = await admin.get(`/api/control-link/sources/${vesselId}/server-certificate`);
+      expect((await admin.post(`/api/control-link/sources/${vesselId}/trust`, { thumbprint: cert.body.thumbprint })).status).toBe(200);
+      const lastBefore = controlReadings().at(-1)!.takenAt;
+      await link.reconcile();
+      const gaps = ((await operator.get(`/api/control-link/batches/${batchId}`)).body as { gaps: { fromAt: string; toAt: string; reason: string }[] }).gaps;
+      expect(gaps).toHaveLength(1);
+      expect(gaps[0]).toMatchObject({ fromAt: new Date(Date.parse(lastBefore) + 1).toISOString(), toAt: t.clock.now().toISOString(), reason: expect.stringMatching(/No history/) });
+      const before = controlReadings().length;
+      await pause();
+      // The test clock is past the earlier values (the lost-signal test moved it): a value stamped now by it.
+      bare.set(TAG, 59.7, { at: t.clock.now() });
+      await until('a live value', () => controlReadings().length > before);
+    } finally {
+      await link.close();
+      await bare.close();
+    }
+  });
+});
+
 describe('read-only by construction', () => {
   it('sent only read, browse, subscription and history requests', () => {
     expect(requests).toContain('HistoryReadRequest');
