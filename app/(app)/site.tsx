@@ -1,6 +1,7 @@
 import { router } from 'expo-router';
 import { StyleSheet, View } from 'react-native';
 import { MeasurementSdCard } from '@/components/calibration/measurement-sd-card';
+import { LinkAdmin } from '@/components/control-link/link-admin';
 import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
@@ -62,6 +63,7 @@ function SiteBody() {
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
       <MeasurementSdCard canChange={session?.user.role === 'admin'} />
+      <LinkAdmin />
       <Columns gap={space.md}>
         <>
           <Text variant="title" accessibilityRole="header">

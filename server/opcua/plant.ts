@@ -30,6 +30,8 @@ export type PlantOptions = {
   /** Chance per tick that an excursion starts on a tag; default one every two hours at 1 s ticks. */
   excursionChance?: number;
   random?: () => number;
+  /** false: the tags keep no history (HistoryRead is refused), as some servers do. */
+  history?: boolean;
 };
 
 export type Plant = {
@@ -101,7 +103,7 @@ export async function startPlant(o: PlantOptions): Promise<Plant> {
       minimumSamplingInterval: 100,
       description: `Reactor temperature of ${tag}, degC`,
     });
-    addressSpace.installHistoricalDataNode(node, { maxOnlineValues: 200_000 });
+    if (o.history !== false) addressSpace.installHistoricalDataNode(node, { maxOnlineValues: 200_000 });
     nodes.set(tag, node);
   };
   for (const t of o.tags) addTag(t);

@@ -84,7 +84,8 @@ type Conn = {
   closed: boolean;
 };
 
-const toC = (v: number, unit: VesselSourceRow['unit']) => (unit === 'K' ? v - 273.15 : unit === 'degF' ? ((v - 32) * 5) / 9 : v);
+/** A tag's value in °C: K − 273.15 (SI Brochure 9th ed., 2.3.1), (°F − 32) × 5/9. */
+export const toCelsius = (v: number, unit: VesselSourceRow['unit']) => (unit === 'K' ? v - 273.15 : unit === 'degF' ? ((v - 32) * 5) / 9 : v);
 // The deadband is set in °C; a tag in K has the same step, one in °F 1.8 times it.
 const deadbandIn = (c: number, unit: VesselSourceRow['unit']) => (unit === 'degF' ? c * 1.8 : c);
 const connKey = (siteId: number, s: VesselSourceRow) => JSON.stringify([siteId, s.endpointUrl, s.securityPolicy, s.securityMode, s.userName, s.password, s.trustedThumbprint]);
@@ -130,7 +131,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     if (live && sourceMs <= tap.lastSourceMs) return;
     // One older than the gap limit is stale: the server holds on to an old value. Not a reading.
     if (live && nowMs - sourceMs > gapMs) return bad(`Stale value from ${new Date(sourceMs).toISOString()}`);
-    const c = Math.round(toC(v, tap.source.unit) * 1000) / 1000;
+    const c = Math.round(toCelsius(v, tap.source.unit) * 1000) / 1000;
     if (c < READING_MIN_C || c > READING_MAX_C) return bad(`${c} °C from ${tap.source.nodeId} is not a plausible reactor temperature`);
     if (sourceMs < Date.parse(tap.startedAt)) return;
     if (sourceMs > tap.lastSourceMs) {
@@ -151,35 +152,38 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
   }
 
   /** Fills the span since the batch's last control-system reading from the server's history; else marks a gap. */
-  async function backfill(tap: Tap, reader: Reader, lostAtMs: number | null): Promise<void> {
+  async function backfill(tap: Tap, reader: Reader, lostAtMs: number | null): Promise<boolean> {
     const last = lastControlReadingAt(db, tap.batchId);
     const fromMs = Math.max(Date.parse(tap.startedAt), last ? Date.parse(last) + 1 : 0);
     const to = clock.now();
-    if (to.getTime() - fromMs < 1000) return;
+    if (to.getTime() - fromMs < 1000) return true;
     const h = await reader.history(tap.source.nodeId, new Date(fromMs), to);
     if (h.supported) {
       await Promise.all(h.values.map((dv) => onValue(tap, dv, false)));
-      return;
+      return true;
     }
     tap.lastError = h.reason;
+    // A gap is what the link missed: since it was lost, else since its last reading of the batch (none: no gap).
+    if (lostAtMs === null && !last) return false;
     const gapFrom = lostAtMs ?? fromMs;
-    if (to.getTime() - gapFrom < MIN_GAP_MS) return;
+    if (to.getTime() - gapFrom < MIN_GAP_MS) return false;
     writeTx(db, (t) => {
       const row = insertLinkGap(t, { siteId: tap.siteId, batchId: tap.batchId, fromAt: new Date(gapFrom).toISOString(), toAt: to.toISOString(), reason: `No history on the server (${h.reason})` });
       appendAudit(t, { siteId: tap.siteId, userId: userOf(tap.siteId).id, actor: 'control system', action: 'link.gap', entity: 'batch', entityId: tap.batchId, newValue: { fromAt: row.fromAt, toAt: row.toAt, reason: row.reason }, at: to });
     });
+    return false;
   }
 
   async function attach(conn: Conn, tap: Tap): Promise<void> {
     const reader = conn.reader;
     if (!reader || tap.monitor) return;
     try {
-      await backfill(tap, reader, conn.lostAtMs);
+      const hasHistory = await backfill(tap, reader, conn.lostAtMs);
       tap.monitor = await reader.monitor(tap.source.nodeId, { samplingIntervalMs: conn.samplingIntervalMs, deadband: deadbandIn(conn.deadbandC, tap.source.unit) }, (dv) => {
         if (taps.get(tap.vesselId) === tap) void onValue(tap, dv, true);
       });
       // Values written between the history read and the subscription: read that short span again (keys dedupe).
-      await backfill(tap, reader, null);
+      if (hasHistory) await backfill(tap, reader, null);
     } catch (err) {
       tap.errors++;
       tap.lastError = err instanceof LinkRefused ? err.message : explain(err, conn.connection);

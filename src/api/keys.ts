@@ -18,6 +18,10 @@ export const keys = {
 
 export const batchKey = (id: number) => `/batches/${id}`;
 
+/** The control-system link (OPC UA): sources, their status, and a batch's link and gaps. */
+export const linkKeys = { sources: '/control-link/sources', status: '/control-link/status', settings: '/control-link/settings' } as const;
+export const batchLinkKey = (id: number) => `/control-link/batches/${id}`;
+
 export const changeRequestsKey = (status?: string) => (status ? `/change-requests?status=${status}` : '/change-requests');
 export const changeRequestKey = (id: number) => `/change-requests/${id}`;
 

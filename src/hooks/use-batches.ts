@@ -4,4 +4,4 @@ import { useResource } from './use-resource';
 
 export const useBatches = () => useResource<BatchList>(keys.batches);
 
-export const useBatch = (id: number | null) => useResource<BatchDetail>(id ? batchKey(id) : null);
+export const useBatch = (id: number | null, opts: { refreshMs?: number } = {}) => useResource<BatchDetail>(id ? batchKey(id) : null, opts);

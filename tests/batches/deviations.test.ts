@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { forecastDeviation, readingDeviations, runDeviations, type ReadingRules } from '../../src/batches';
+import { forecastDeviation, readingDeviations, runDeviations, signalLostDeviation, type ReadingRules } from '../../src/batches';
 
 // Plan: 50 degC flat; band +-1.5 degC and a 30 min gap limit (the site defaults); vessel maximum 60 degC.
 const rules: ReadingRules = { toleranceC: 1.5, gapLimitMin: 30, vesselMaxC: 60, plannedAt: () => 50 };
@@ -63,5 +63,15 @@ describe('forecastDeviation', () => {
     { p10: null, forecast: 1, active: false, raised: false },
   ])('P10 $p10, forecast $forecast, one already active $active -> raised $raised', ({ p10, forecast, active, raised }) => {
     expect(forecastDeviation(p10, forecast, active, 3) !== null).toBe(raised);
+  });
+});
+
+describe('signalLostDeviation', () => {
+  // The same limit as a gap between readings (common practice, no source): silence up to it is allowed.
+  it('is raised only when the link has been silent for longer than the gap limit, at the last good value', () => {
+    expect(signalLostDeviation(30, 2, 2.5, 'BadSensorFailure')).toBeNull();
+    const d = signalLostDeviation(30, 2, 2.51, 'BadSensorFailure')!;
+    expect(d).toMatchObject({ kind: 'signal_lost', h: 2, valueC: null, expectedC: null });
+    expect(d.message).toMatch(/31 min \(BadSensorFailure\).*30 min/);
   });
 });

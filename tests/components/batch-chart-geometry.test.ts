@@ -28,6 +28,23 @@ describe('batchTemperatureGeometry', () => {
     }
   });
 
+  it('draws control-system readings apart from phone readings, and the link gaps as spans', () => {
+    const readings = [
+      { h: 1, c: 50 },
+      { h: 1.1, c: 50.1, isControl: true },
+      { h: 1.2, c: 50.2, isControl: true },
+      { h: 1.25, c: 50 },
+    ];
+    const g = batchTemperatureGeometry({ ...base, readings, gaps: [{ fromH: 2, toH: 3 }] }, 400, 260);
+    expect(g.loggedPaths).toHaveLength(1);
+    expect(g.controlPaths).toHaveLength(1);
+    expect(g.dots.map((d) => d.isControl)).toEqual([false, true, true, false]);
+    // 2 h to 3 h of a 10 h axis: a tenth of the box, starting a fifth in.
+    const w = g.box.right - g.box.left;
+    expect(g.gapSpans[0]!.x0).toBeCloseTo(g.box.left + 0.2 * w, 9);
+    expect(g.gapSpans[0]!.x1 - g.gapSpans[0]!.x0).toBeCloseTo(0.1 * w, 9);
+  });
+
   it('breaks the logged line at a gap longer than the limit', () => {
     const readings = [
       { h: 1, c: 50 },

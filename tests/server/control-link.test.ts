@@ -9,7 +9,7 @@ import { batchReadings, deviations } from '../../db/schema';
 import { startPlant, type Plant } from '../../server/opcua/plant';
 import { openAppPki, type AppPki } from '../../server/opcua/pki';
 import { READ_FAMILY } from '../../server/opcua/reader';
-import { startControlLink, type ControlLink } from '../../server/services/control-link';
+import { startControlLink, toCelsius, type ControlLink } from '../../server/services/control-link';
 import { startTestApp, type Client, type TestApp } from './harness';
 
 // The read-only control-system link (server/services/control-link.ts) against a local OPC UA server built with
@@ -117,6 +117,19 @@ afterAll(async () => {
   await pki?.dispose();
 });
 
+describe('units of a tag', () => {
+  it('converts K and degF to degC', () => {
+    // Definitions: t/°C = T/K − 273.15 (SI Brochure, 9th ed., 2.3.1); t/°C = (t/°F − 32) × 5/9 (NIST SP 811,
+    // appendix B.9). Checks: water freezes at 273.15 K = 32 °F = 0 °C and boils (1 atm) near 212 °F = 100 °C.
+    expect(toCelsius(273.15, 'K')).toBeCloseTo(0, 12);
+    expect(toCelsius(333.15, 'K')).toBeCloseTo(60, 12);
+    expect(toCelsius(32, 'degF')).toBeCloseTo(0, 12);
+    expect(toCelsius(212, 'degF')).toBeCloseTo(100, 12);
+    expect(toCelsius(-40, 'degF')).toBeCloseTo(-40, 12);
+    expect(toCelsius(59.5, 'degC')).toBe(59.5);
+  });
+});
+
 describe('the application certificate', () => {
   it('is made once beside the data and kept', async () => {
     const first = pki.certificate();
@@ -221,6 +234,31 @@ describe('values from the plant', () => {
     expect(await until('refused', async () => ((await statusOf())?.state === 'refused' ? statusOf() : null))).toMatchObject({
       lastError: 'The server refused the user name or password',
     });
+  });
+});
+
+describe('a server without history', () => {
+  it('records the span it cannot fill as a gap, and goes on with live values', async () => {
+    const bare = await startPlant({ pkiFolder: `${PLANT_PKI}-bare`, users: [PLANT_USER], tags: [TAG], history: false });
+    try {
+      const body = { endpointUrl: bare.endpointUrl, nodeId: bare.nodeIdOf(TAG), ...PLANT_USER };
+      expect((await admin.req('PUT', `/api/control-link/sources/${vesselId}`, body)).body.trustedThumbprint).toBeNull();
+      const cert = await admin.get(`/api/control-link/sources/${vesselId}/server-certificate`);
+      expect((await admin.post(`/api/control-link/sources/${vesselId}/trust`, { thumbprint: cert.body.thumbprint })).status).toBe(200);
+      const lastBefore = controlReadings().at(-1)!.takenAt;
+      await link.reconcile();
+      const gaps = ((await operator.get(`/api/control-link/batches/${batchId}`)).body as { gaps: { fromAt: string; toAt: string; reason: string }[] }).gaps;
+      expect(gaps).toHaveLength(1);
+      expect(gaps[0]).toMatchObject({ fromAt: new Date(Date.parse(lastBefore) + 1).toISOString(), toAt: t.clock.now().toISOString(), reason: expect.stringMatching(/No history/) });
+      const before = controlReadings().length;
+      await pause();
+      // The test clock is past the earlier values (the lost-signal test moved it): a value stamped now by it.
+      bare.set(TAG, 59.7, { at: t.clock.now() });
+      await until('a live value', () => controlReadings().length > before);
+    } finally {
+      await link.close();
+      await bare.close();
+    }
   });
 });
 

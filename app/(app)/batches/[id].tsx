@@ -1,11 +1,12 @@
 import { router, useLocalSearchParams } from 'expo-router';
-import { useMemo } from 'react';
+import { useEffect, useMemo, useState } from 'react';
 import { Linking, StyleSheet, View } from 'react-native';
 import { CloseBatchCard } from '@/components/batches/close-batch-card';
 import { DeviationList } from '@/components/batches/deviation-list';
 import { EvidenceNote } from '@/components/evidence/evidence-note';
 import { HistorianUpload } from '@/components/batches/historian-upload';
 import { ReadingPages, readingColumns, readingRow, type ReadingRow } from '@/components/batches/reading-pages';
+import { LinkLine } from '@/components/batches/link-line';
 import { ReadingEntry } from '@/components/batches/reading-entry';
 import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
@@ -17,6 +18,7 @@ import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
 import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';
+import { useBatchLink } from '@/hooks/use-control-link';
 import { useLogReading } from '@/hooks/use-log-reading';
 import { useSession } from '@/hooks/use-session';
 import { useSiteFormat } from '@/hooks/use-site-format';
@@ -38,7 +40,12 @@ function BatchBody({ id }: { id: number }) {
   const { session } = useSession();
   const { isWide } = useBreakpoint();
   const site = useSiteFormat();
-  const { data, error, isLoading, retry, cachedAt } = useBatch(id);
+  // Readings arrive from the control system by themselves: while its link is up the batch is read again every few seconds.
+  const [linkUp, setLinkUp] = useState(false);
+  const { data, error, isLoading, retry, cachedAt } = useBatch(id, { refreshMs: linkUp ? 5000 : undefined });
+  const link = useBatchLink(id, data?.batch.state === 'running');
+  const isLinkUp = link.data?.link?.state === 'connected';
+  useEffect(() => setLinkUp(isLinkUp), [isLinkUp]);
   const logger = useLogReading(id);
   const role: Role = session?.user.role ?? 'operator';
 
@@ -50,7 +57,7 @@ function BatchBody({ id }: { id: number }) {
     const stored = new Set(data.readings.map((r) => r.key));
     const onDevice = logger.queued.filter((q) => !stored.has(q.key));
     const queued = onDevice.map((q) => ({ h: batchHours(start, q.takenAt), c: q.c, isQueued: true }));
-    const all = [...data.readings.map((r) => ({ h: r.h, c: r.c, isQueued: false })), ...queued].sort((a, b) => a.h - b.h);
+    const all = [...data.readings.map((r) => ({ h: r.h, c: r.c, isQueued: false, isControl: r.source === 'control_system' })), ...queued].sort((a, b) => a.h - b.h);
     // A sampled historian record cannot be re-integrated here: then the server's figures stand until the readings arrive.
     const canPreview = queued.length > 0 && data.readings.length === data.readingsTotal;
     const status = canPreview ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective } : data.status;
@@ -85,7 +92,7 @@ function BatchBody({ id }: { id: number }) {
       </Text>
       <BatchTemperatureChart
         label={sentence}
-        input={{ plan: b.program.log, batchH: b.program.batchH, toleranceC: data.settings.toleranceC, readings: preview.all, gapLimitH: data.settings.gapLimitMin / 60, vesselMaxC: b.program.vessel.maxC, nowH: isRunning ? nowH : null }}
+        input={{ plan: b.program.log, batchH: b.program.batchH, toleranceC: data.settings.toleranceC, readings: preview.all, gaps: (link.data?.gaps ?? []).map((g) => ({ fromH: batchHours(b.startedAt, g.fromAt), toH: batchHours(b.startedAt, g.toAt) })), gapLimitH: data.settings.gapLimitMin / 60, vesselMaxC: b.program.vessel.maxC, nowH: isRunning ? nowH : null }}
       />
       <Text variant="small" testID="batch-sentence">
         {sentence}
@@ -115,6 +122,7 @@ function BatchBody({ id }: { id: number }) {
           {planSentence(data)}
         </Text>
         <EvidenceNote evidence={b.program.evidence} testID="batch-evidence" />
+        {link.data?.link ? <LinkLine link={link.data.link} /> : null}
         {overdue ? (
           <Text variant="small" tone="warning" weight="semibold" testID="batch-overdue">
             No reading for {durationText(sinceLast!)}: the site asks for one every {data.settings.gapLimitMin} min.

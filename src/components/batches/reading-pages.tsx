@@ -19,7 +19,9 @@ export const readingColumns = (time: (iso: string) => string): Column<ReadingRow
   { key: 'note', label: 'Note', value: (r) => r.note, flex: 1.5 },
 ];
 
-export const readingRow = (r: Reading): ReadingRow => ({ key: r.key, takenAt: r.takenAt, h: r.h, c: r.c, by: r.source === 'historian' ? 'historian' : r.enteredBy, note: r.note ?? '' });
+const SOURCE_BY = { historian: 'historian', control_system: 'control system' } as const;
+
+export const readingRow = (r: Reading): ReadingRow => ({ key: r.key, takenAt: r.takenAt, h: r.h, c: r.c, by: r.source === 'manual' ? r.enteredBy : SOURCE_BY[r.source], note: r.note ?? '' });
 
 const PAGE = 50;
 

@@ -10,6 +10,10 @@ export const CAUTIONS: { title: string; body: string }[] = [
     body: 'Yieldpoint recommends; qualified people decide. It never writes to a control system. Setpoint changes go through your site’s change control.',
   },
   {
+    title: 'Plant data is read, never written',
+    body: 'Where a vessel has a control-system source, Yieldpoint only reads its temperature tag over OPC UA (read, subscribe, browse, history); it sends no write or method call. A lost link raises a “signal lost” deviation: log readings by hand until it is back.',
+  },
+  {
     title: 'Hot vessels and jackets burn',
     body: 'Reactors, jackets, steam and hot-water lines at process temperature cause burns. Follow your site’s rules for work near hot equipment.',
   },
