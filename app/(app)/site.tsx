@@ -4,6 +4,7 @@ import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
 import { RoleGate } from '@/components/shell/role-gate';
+import { CurrencyCard } from '@/components/site/currency-card';
 import { Button, Card, Columns, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
 import { useInvites } from '@/hooks/use-invites';
 import { useMailOutbox } from '@/hooks/use-mail-outbox';
@@ -47,6 +48,7 @@ function Outbox() {
 
 function SiteBody() {
   const site = useSite();
+  const { session } = useSession();
   const { isWide } = useBreakpoint();
   if (site.error) return <ErrorState error={site.error} onRetry={site.retry} />;
   if (!site.data) return <Loader rows={2} label="Loading the site" />;
@@ -59,6 +61,7 @@ function SiteBody() {
         <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
+      <CurrencyCard key={site.data.currency} currency={site.data.currency} canChange={session?.user.role === 'admin'} />
       <Columns gap={space.md}>
         <>
           <Text variant="title" accessibilityRole="header">

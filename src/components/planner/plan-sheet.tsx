@@ -51,7 +51,7 @@ export function PlanSheet({ plan }: { plan: Plan }) {
   return (
     <>
       <Text tone="muted" testID="plan-meta">
-        Plan {plan.id} · {plan.recipeName} in {plan.vesselName} · saved {plan.createdAt.replace('T', ' ').slice(0, 16)} UTC by {plan.createdBy}
+        Plan {plan.id} · {plan.recipeName} in {plan.vesselName} · saved {site.stamp(plan.createdAt)} by {plan.createdBy}
       </Text>
       <View style={styles.actions} testID="plan-actions">
         <Button label="Print" variant="secondary" onPress={() => (Platform.OS === 'web' ? window.print() : undefined)} testID="plan-print" />
