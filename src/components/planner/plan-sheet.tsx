@@ -23,6 +23,9 @@ export function PlanSheet({ plan }: { plan: Plan }) {
   const i = plan.inputs;
   const u = o.uncertainty;
   const site = useSiteFormat();
+  // The temperatures the plan holds (its stages, or its one setpoint), not the vessel's whole range.
+  const held = o.stages ? o.stages.map((s) => s.c) : [o.setpointC];
+  const planRange = Math.min(...held) === Math.max(...held) ? fmt(held[0]!) : `${fmt(Math.min(...held))}–${fmt(Math.max(...held))}`;
   const result: Row[] = [
     { label: o.strategy === 'staged' ? 'Profile' : 'Setpoint', value: o.stages ? o.stages.map((s) => `${fmt(s.hours)} h at ${fmt(s.c)} °C`).join(', ') : `${fmt(o.setpointC)} °C` },
     { label: 'Predicted product (ramps included)', value: `${fmt(o.predictedProductGPerL)} g/L` },
@@ -32,7 +35,7 @@ export function PlanSheet({ plan }: { plan: Plan }) {
     { label: 'Profit per reactor hour', value: site.money(o.profitPerH, 1) },
     { label: 'Current setpoint', value: `${fmt(o.current.setpointC)} °C: ${fmt(o.current.productGPerL)} g/L, ${fmt(o.current.activityLeft * 100, 0)} % activity left` },
     { label: 'Gain over current', value: `${fmt(o.gainOverCurrent * 100)} %` },
-    { label: 'Vessel range used', value: `${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at the ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}` },
+    { label: 'Range the plan uses', value: `${planRange} °C, within the vessel’s ${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at its ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}` },
     { label: 'Constraints met', value: o.constraintsMet ? 'Yes' : 'No' },
     { label: 'Pressure caution', value: o.cautions.crossesBoiling ? `Yes: ${fmt(o.cautions.maxC)} °C, ${fmt(o.cautions.saturationKPa, 0)} kPa abs saturation` : 'No (stays at or below 100 °C)' },
     { label: 'Below hygienic minimum', value: o.cautions.belowHygienicMin ? `Yes (${fmt(o.cautions.hygienicMinC)} °C)` : 'No' },
