@@ -217,7 +217,7 @@ function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: numbe
 
 export const DEMO_SITE_NAME = 'Halden Bay Biorefinery';
 
-/** The demo licence: 8 seats (the 5 demo users take 5), monthly, with two paid invoices. Invented. */
+/** The demo licence: 8 seats (the 5 demo users take 5), monthly, with three paid invoices (the last the current period's). Invented. */
 export const DEMO_SEATS = 8;
 const DEMO_SEAT_CENTS = 4900;
 // Random per seed: a guessable customer id is what a forged payment event names to reach a site.
@@ -228,6 +228,8 @@ const demoStripeIds = () => {
 const DEMO_INVOICES = [
   { number: 'YP-DEMO-0001', periodStart: '2026-10-01T00:00:00.000Z', periodEnd: '2026-11-01T00:00:00.000Z' },
   { number: 'YP-DEMO-0002', periodStart: '2026-11-01T00:00:00.000Z', periodEnd: '2026-12-01T00:00:00.000Z' },
+  // The current period's, billed at its start like the others.
+  { number: 'YP-DEMO-0003', periodStart: '2026-12-01T00:00:00.000Z', periodEnd: '2027-01-01T00:00:00.000Z' },
 ];
 
 /** True when the database has no site yet. */

@@ -6,6 +6,7 @@ import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
 import { RoleGate } from '@/components/shell/role-gate';
+import { CurrencyCard } from '@/components/site/currency-card';
 import { Button, Card, Columns, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
 import { useInvites } from '@/hooks/use-invites';
 import { useMailOutbox } from '@/hooks/use-mail-outbox';
@@ -62,6 +63,7 @@ function SiteBody() {
         <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
+      <CurrencyCard key={site.data.currency} currency={site.data.currency} canChange={session?.user.role === 'admin'} />
       <MeasurementSdCard canChange={session?.user.role === 'admin'} />
       <LinkAdmin />
       <Columns gap={space.md}>

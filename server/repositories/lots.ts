@@ -9,7 +9,7 @@ export type NewLotRow = Omit<typeof lots.$inferInsert, 'id' | 'createdAt'>;
 // One prepared query for each combination of the optional filters.
 const siteLots = preparedPer((db, filter: { byStatus: boolean; byEnzyme: boolean }) =>
   db
-    .select({ lot: lots, enzymeName: enzymes.name })
+    .select({ lot: lots, enzymeName: enzymes.name, activityUnit: enzymes.activityUnit })
     .from(lots)
     .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
     .where(
@@ -28,7 +28,7 @@ export const listSiteLots = (db: Db, siteId: number, q: LotQuery = {}) =>
 
 export const findSiteLot = (db: Db, siteId: number, id: number) =>
   db
-    .select({ lot: lots, enzymeName: enzymes.name, decidedBy: users.name })
+    .select({ lot: lots, enzymeName: enzymes.name, activityUnit: enzymes.activityUnit, decidedBy: users.name })
     .from(lots)
     .innerJoin(enzymes, eq(lots.enzymeId, enzymes.id))
     .leftJoin(users, eq(lots.decidedBy, users.id))

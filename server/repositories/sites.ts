@@ -7,6 +7,8 @@ export const firstSite = (db: Db) => db.select().from(sites).orderBy(sites.id).l
 
 export const findSite = (db: Db, id: number) => db.select().from(sites).where(eq(sites.id, id)).get();
 
+export const updateSite = (db: Db, id: number, patch: Partial<Pick<typeof sites.$inferInsert, 'currency'>>) => db.update(sites).set(patch).where(eq(sites.id, id)).run();
+
 const count = (db: Db, table: typeof vessels | typeof enzymes | typeof lots, siteId: number) =>
   db.select({ n: sql<number>`count(*)` }).from(table).where(eq(table.siteId, siteId)).get()?.n ?? 0;
 

@@ -1,11 +1,15 @@
 import { Router } from 'express';
-import { SiteSummary } from '../../src/contracts/site';
+import { SitePatch, SiteSummary } from '../../src/contracts/site';
 import { allow, currentUser } from '../middleware/auth';
-import { siteSummary } from '../services/site';
+import { changeSite, siteSummary } from '../services/site';
 import type { Services } from './services';
 
 export function siteRouter(s: Services): Router {
-  return Router().get('/', allow('admin', 'supervisor'), (req, res) => {
-    res.json(SiteSummary.parse(siteSummary(s, currentUser(req))));
-  });
+  return Router()
+    .get('/', allow('admin', 'supervisor'), (req, res) => {
+      res.json(SiteSummary.parse(siteSummary(s, currentUser(req))));
+    })
+    .patch('/', allow('admin'), (req, res) => {
+      res.json(SiteSummary.parse(changeSite(s, currentUser(req), SitePatch.parse(req.body))));
+    });
 }

@@ -347,7 +347,7 @@ export function changeRequestCsv(s: Services, u: SessionUser, id: number): { fil
     [`${prefix}.p50`, v.p50GPerL, 'g/L'],
     [`${prefix}.p90`, v.p90GPerL, 'g/L'],
     [`${prefix}.activity_left`, v.activityLeft, 'fraction'],
-    [`${prefix}.profit_per_h`, v.profitPerH, 'currency/h'],
+    [`${prefix}.profit_per_h`, v.profitPerH, `${u.siteCurrency}/h`],
     [`${prefix}.constraints_met`, v.constraintsMet, ''],
   ];
   const rows: unknown[][] = [

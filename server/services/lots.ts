@@ -16,10 +16,10 @@ import { appendAudit } from './audit';
 
 export type LotServices = Services & { files: FileStore };
 
-const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzymeName: string): Lot => ({ ...l, enzymeName });
+const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzymeName: string, activityUnit: string): Lot => ({ ...l, enzymeName, activityUnit });
 
 export const listLots = ({ db }: Services, u: SessionUser, q: LotQuery = {}): Lot[] =>
-  listSiteLots(db, u.siteId, q).map(({ lot, enzymeName }) => toLot(lot, enzymeName));
+  listSiteLots(db, u.siteId, q).map(({ lot, enzymeName, activityUnit }) => toLot(lot, enzymeName, activityUnit));
 
 /** A lot of the caller's site, or 404 (also for another site's id). */
 function siteLot(db: Db, u: SessionUser, id: number) {
@@ -37,12 +37,12 @@ export function requireUsableLot(db: Db, siteId: number, lotId: number): Lot {
   if (found.lot.status !== 'accepted') {
     throw new HttpError(409, 'lot_not_accepted', `Lot ${found.lot.lotCode} is ${found.lot.status}; only accepted lots can be used`, { lotId: 'Choose an accepted lot' });
   }
-  return toLot(found.lot, found.enzymeName);
+  return toLot(found.lot, found.enzymeName, found.activityUnit);
 }
 
 /** The lots of a site that plans and batches may use. */
 export const listUsableLots = (db: Db, siteId: number): Lot[] =>
-  listSiteLots(db, siteId, { status: 'accepted' }).map(({ lot, enzymeName }) => toLot(lot, enzymeName));
+  listSiteLots(db, siteId, { status: 'accepted' }).map(({ lot, enzymeName, activityUnit }) => toLot(lot, enzymeName, activityUnit));
 
 export function listLotAssayViews(db: Db, u: SessionUser, lotId: number, specTempC: number): Assay[] {
   return listLotAssays(db, u.siteId, lotId).map(({ assay, createdBy }) => ({
@@ -70,13 +70,13 @@ function certificateView(db: Db, siteId: number, lotId: number): CertificateFile
 }
 
 export function getLot({ db }: Services, u: SessionUser, id: number): LotDetail {
-  const { lot, enzymeName, decidedBy } = siteLot(db, u, id);
+  const { lot, enzymeName, activityUnit, decidedBy } = siteLot(db, u, id);
   const enzyme = findSiteEnzyme(db, u.siteId, lot.enzymeId)!;
   const assays = listLotAssayViews(db, u, id, enzyme.specTempC);
   const fitted = assays.find((a) => a.fit);
   const { siteId: _s, createdAt: _c, ...e } = enzyme;
   return {
-    lot: toLot(lot, enzymeName),
+    lot: toLot(lot, enzymeName, activityUnit),
     enzyme: e,
     conversion: certConversion(lot.certStability),
     certificate: certificateView(db, u.siteId, id),
@@ -111,7 +111,7 @@ export function createLot({ db, clock }: Services, u: SessionUser, input: LotInp
       status: 'quarantined',
     });
     appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'lot.create', entity: 'lot', entityId: row.id, newValue: { ...input, certKdPerH: conv.kdPerH }, at: now });
-    return toLot(row, enzyme.name);
+    return toLot(row, enzyme.name, enzyme.activityUnit);
   });
 }
 

@@ -106,6 +106,7 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
 export function planCsv(s: Services, u: SessionUser, id: number): { filename: string; csv: string } {
   const p = getPlan(s, u, id);
   const o = p.outputs;
+  const cur = u.siteCurrency;
   const rows: unknown[][] = [
     ['plan_id', p.id, ''],
     ['recipe', p.recipeName, ''],
@@ -117,14 +118,14 @@ export function planCsv(s: Services, u: SessionUser, id: number): { filename: st
     ['content_hash', p.contentHash, 'sha256'],
     ...Object.entries(p.inputs)
       .filter(([k]) => k !== 'uncertainty')
-      .map(([k, v]) => [`input.${k}`, v, '']),
+      .map(([k, v]) => [`input.${k}`, v, k === 'productPricePerKg' || k === 'enzymePricePerKg' ? `${cur}/kg` : k === 'heatingCostPerDegCHour' ? `${cur}/(degC h)` : '']),
     ...(p.inputs.uncertainty ? Object.entries(p.inputs.uncertainty).map(([k, v]) => [`input.uncertainty.${k}`, v, '']) : []),
     ['strategy', o.strategy, ''],
     ['setpoint_c', o.setpointC, 'degC'],
     ...(o.stages ?? []).map((s, i) => [`stage_${i + 1}`, `${s.hours} h at ${s.c}`, 'h, degC']),
     ['predicted_product', o.predictedProductGPerL, 'g/L'],
     ['activity_left', o.activityLeft, 'fraction'],
-    ['profit_per_h', o.profitPerH, 'currency/h'],
+    ['profit_per_h', o.profitPerH, `${cur}/h`],
     ['current_setpoint_c', o.current.setpointC, 'degC'],
     ['current_product', o.current.productGPerL, 'g/L'],
     ['gain_over_current', o.gainOverCurrent, 'fraction'],

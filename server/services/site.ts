@@ -1,8 +1,10 @@
 import type { SessionUser } from '../../src/contracts/session';
-import type { SiteSummary } from '../../src/contracts/site';
+import type { SitePatch, SiteSummary } from '../../src/contracts/site';
+import { writeTx } from '../../db/client';
+import { appendAudit } from './audit';
 import { ROLES } from '../../src/contracts/roles';
 import { notFound } from '../http-error';
-import { countSiteRecords, findSite } from '../repositories/sites';
+import { countSiteRecords, findSite, updateSite } from '../repositories/sites';
 import { countUsersByRole } from '../repositories/users';
 import type { Services } from '../routes/services';
 
@@ -15,6 +17,7 @@ export function siteSummary({ db }: Services, u: SessionUser): SiteSummary {
     id: site.id,
     name: site.name,
     timeZone: site.timeZone,
+    currency: site.currency,
     counts: {
       users: byRole.reduce((a, b) => a + b.n, 0),
       activeUsers: byRole.reduce((a, b) => a + (b.active ?? 0), 0),
@@ -22,4 +25,16 @@ export function siteSummary({ db }: Services, u: SessionUser): SiteSummary {
     },
     usersByRole,
   };
+}
+
+/** Sets the site's currency; amounts are shown in it from the next read on (nothing is converted). Audited. */
+export function changeSite(s: Services, u: SessionUser, patch: SitePatch): SiteSummary {
+  const site = findSite(s.db, u.siteId);
+  if (!site) throw notFound('Site');
+  const now = s.clock.now();
+  writeTx(s.db, (tx) => {
+    updateSite(tx, u.siteId, patch);
+    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'site.update', entity: 'site', entityId: u.siteId, oldValue: { currency: site.currency }, newValue: patch, at: now });
+  });
+  return siteSummary(s, u);
 }

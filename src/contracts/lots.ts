@@ -57,6 +57,8 @@ export const Lot = z.object({
   id: z.number().int(),
   enzymeId: z.number().int(),
   enzymeName: z.string(),
+  /** The enzyme's activity unit, e.g. GAU/g: the certificate's activity is in it. */
+  activityUnit: z.string(),
   lotCode: z.string(),
   receivedOn: z.string(),
   expiresOn: z.string(),

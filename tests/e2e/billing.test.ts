@@ -57,7 +57,7 @@ describe('billing and invites', () => {
     await page.waitForURL(/\/billing\?checkout=done/);
     await page.getByTestId('billing-return-done').waitFor();
     await expect.poll(() => text(page, 'billing-seats')).toBe('11');
-    await expect.poll(() => page.getByTestId('billing-invoices-row').count()).toBe(3);
+    await expect.poll(() => page.getByTestId('billing-invoices-row').count()).toBe(4);
     await screenshot(page, 'billing-after-purchase-1440x900');
 
     await page.getByTestId('nav-site').click();

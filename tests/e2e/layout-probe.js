@@ -5,6 +5,7 @@
 //   the hit for it because the element ignores pointer events);
 // - cut off: it sticks out of the window sideways, or out of an ancestor that clips (overflow hidden) rather
 //   than scrolls; or the page itself scrolls sideways.
+// Content under a pinned bar (sticky or fixed) is not counted as covered: it shows at another scroll position.
 // Resolves to a list of readable problem lines, one per element.
 async (screenTestId) => {
   const problems = new Map();
@@ -19,6 +20,13 @@ async (screenTestId) => {
   const clips = (el) => {
     const s = getComputedStyle(el);
     return s.overflowX !== 'visible' || s.overflowY !== 'visible';
+  };
+  const pinnedAncestor = (n) => {
+    for (let a = n; a && a !== document.body; a = a.parentElement) {
+      const p = getComputedStyle(a).position;
+      if (p === 'sticky' || p === 'fixed') return a;
+    }
+    return null;
   };
   const frame = () => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)));
 
@@ -68,6 +76,9 @@ async (screenTestId) => {
       if (cutBy && getComputedStyle(el).textOverflow !== 'ellipsis') problems.set(el, `${describe(el)} is cut off sideways by ${cutBy}`);
       const hit = document.elementFromPoint(cx, cy);
       if (!hit || hit === el || el.contains(hit) || hit.contains(el)) continue;
+      // Content scrolling under a pinned bar (position sticky or fixed) is hidden there by design and shows at the
+      // next scroll position; the bar itself is checked like any element.
+      if (pinnedAncestor(hit) && !pinnedAncestor(hit).contains(el)) continue;
       // SVG text inside the same chart may sit on its own gridlines by design.
       if (el instanceof SVGElement && hit instanceof SVGElement && el.ownerSVGElement === hit.ownerSVGElement) continue;
       problems.set(el, `${describe(el)} is covered by ${describe(hit)}`);

@@ -109,6 +109,29 @@ describe('setpoint planner', () => {
     }
     console.log(`planner redraw per stepper press (phone, ms): ${timings.join(', ')}`);
 
+    // What a tap does is written under each stepper.
+    expect(await page.getByTestId('plan-inputs').getByText('− / + by 2 h', { exact: true }).count()).toBeGreaterThan(0);
+    expect(await page.getByTestId('plan-inputs').getByText('− / + by 0.05 g/L', { exact: true }).count()).toBe(1);
+    // The compact answer stays pinned in view while the inputs scroll under it, and moves with them.
+    await page.getByTestId('input-heating').scrollIntoViewIfNeeded();
+    const pinned = page.getByTestId('recommendation-compact');
+    const box = (await pinned.boundingBox())!;
+    expect(box.y).toBeGreaterThanOrEqual(0);
+    expect(box.y + box.height).toBeLessThan(PHONE.height / 3);
+    await page.getByTestId('input-batchH-increase').scrollIntoViewIfNeeded();
+    const shown = (await pinned.textContent())!;
+    await page.getByTestId('input-batchH-increase').click();
+    await expect.poll(() => pinned.textContent()).not.toBe(shown);
+    await page.getByTestId('input-batchH-decrease').click();
+    // A 500 h batch is accepted, with a word about it.
+    expect(await page.getByTestId('caution-long-batch').count()).toBe(0);
+    await batch.fill('500');
+    await page.getByTestId('caution-long-batch').waitFor();
+    expect(await page.getByTestId('caution-long-batch').textContent()).toMatch(/^A 500 h batch is 20\.8 days: check the length/);
+    await screenshot(page, 'planner-inputs-pinned-390x844');
+    await batch.fill('62');
+    await page.getByTestId('caution-long-batch').waitFor({ state: 'detached' });
+
     // The most draws the planner allows, so the run lasts long enough to be seen and cancelled.
     await page.getByTestId('input-draws').fill('20000');
     await page.getByTestId('uncertainty-run').scrollIntoViewIfNeeded();

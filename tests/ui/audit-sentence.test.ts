@@ -17,5 +17,6 @@ describe('audit events as people read them', () => {
     ]);
     expect(auditChanges({ oldValue: null, newValue: { state: 'running' } })).toEqual([{ field: 'state', before: '–', after: 'running' }]);
     expect(auditChanges({ oldValue: null, newValue: null })).toEqual([]);
+    expect(auditChanges({ oldValue: { setpointC: 37 }, newValue: { setpointC: 41.665850533952835 } })).toEqual([{ field: 'setpoint (°C)', before: '37', after: '41.6659' }]);
   });
 });

@@ -55,7 +55,9 @@ export function auditSentence(e: Pick<AuditEvent, 'actor' | 'action' | 'entity' 
 
 export type AuditChange = { field: string; before: string; after: string };
 
-const show = (v: unknown): string => (v === undefined || v === null ? '–' : typeof v === 'object' ? JSON.stringify(v) : String(v));
+// A computed figure reads to four decimals (41.6659), an id or a count as it is; the CSV keeps the full value.
+const show = (v: unknown): string =>
+  v === undefined || v === null ? '–' : typeof v === 'number' && !Number.isInteger(v) ? String(Number(v.toFixed(4))) : typeof v === 'object' ? JSON.stringify(v) : String(v);
 const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 
 // `setpointC` -> `setpoint (°C)`, `releasedPlanId` -> `released plan id`: the unit suffixes the records use.

@@ -11,6 +11,8 @@ import { Button, Card, DataTable, Field, Figure, Text, type Column } from '../ui
 /** 4900, 'eur' -> '49.00 EUR': amounts stay in the account's currency, with its code. */
 const cents = (n: number, currency: string) => money(n / 100, currency);
 
+const count = (n: number, one: string, many: string) => `${n} ${n === 1 ? one : many}`;
+
 const STATUS_LABEL: Record<BillingSummary['status'], string> = { none: 'No paid plan', active: 'Paid up', past_due: 'Payment failed', canceled: 'Ended' };
 
 
@@ -19,7 +21,7 @@ export function PlanFigures({ b }: { b: BillingSummary }) {
   return (
     <View style={[styles.figures, isWide && styles.figuresWide]}>
       <Figure label="paid seats" value={String(b.seats)} testID="billing-seats" />
-      <Figure label={`in use (${b.activeUsers} people, ${b.pendingInvites} invites)`} value={String(b.seatsInUse)} testID="billing-seats-in-use" />
+      <Figure label={`in use (${count(b.activeUsers, 'person', 'people')}, ${count(b.pendingInvites, 'invite', 'invites')})`} value={String(b.seatsInUse)} testID="billing-seats-in-use" />
       <Figure label="free seats" value={String(Math.max(0, b.seats - b.seatsInUse))} testID="billing-seats-free" />
     </View>
   );
@@ -68,6 +70,16 @@ function openExternal(url: string) {
 
 const errorFor = (e: ApiError | null, field: string) => e?.fields[field] ?? (e && !Object.keys(e.fields).length ? e.message : undefined);
 
+/**
+ * What adding seats costs: the full seat price now, also when the current month is partly over (the provider
+ * does not prorate), then the new total each month.
+ */
+function buyHint(b: BillingSummary, n: number): string {
+  const now = `${cents(n * b.unitAmountCents, b.currency)} now for ${count(n, 'seat', 'seats')}`;
+  const partial = b.currentPeriodEnd ? `, the full month even though this period ends ${isoDate(b.currentPeriodEnd)}` : '';
+  return `${now}${partial}; then ${cents((b.seats + n) * b.unitAmountCents, b.currency)} each month for ${b.seats + n} seats.`;
+}
+
 export function BuySeatsCard({ b }: { b: BillingSummary }) {
   const [count, setCount] = useState('1');
   const buy = useBuySeats();
@@ -87,7 +99,7 @@ export function BuySeatsCard({ b }: { b: BillingSummary }) {
         inputMode="numeric"
         keyboardType="number-pad"
         error={errorFor(buy.error, 'addSeats')}
-        hint={valid ? `${cents(n * b.unitAmountCents, b.currency)} now, then ${b.seats + n} seats each month` : undefined}
+        hint={valid ? buyHint(b, n) : undefined}
       />
       <Button
         label={valid ? `Pay for ${n} ${n === 1 ? 'seat' : 'seats'}` : 'Pay for seats'}
@@ -136,7 +148,7 @@ const INVOICE_COLUMNS: Column<Invoice>[] = [
   { key: 'number', label: 'Invoice', value: (i) => i.number, flex: 1.2 },
   { key: 'issued', label: 'Issued', value: (i) => isoDate(i.issuedAt) },
   // A one-off charge for added seats has no period of its own.
-  { key: 'period', label: 'Period', value: (i) => (i.periodStart === i.periodEnd ? 'Seats added' : `${isoDate(i.periodStart)} – ${isoDate(i.periodEnd)}`), flex: 1.6 },
+  { key: 'period', label: 'Period', value: (i) => (i.periodStart === i.periodEnd ? `${isoDate(i.periodStart)}, seats added (one-off)` : `${isoDate(i.periodStart)} – ${isoDate(i.periodEnd)}`), flex: 1.6 },
   { key: 'seats', label: 'Seats', value: (i) => String(i.seats), isNumeric: true, flex: 0.6 },
   { key: 'amount', label: 'Amount', value: (i) => cents(i.amountDueCents, i.currency), isNumeric: true },
   { key: 'status', label: 'Status', value: (i) => (i.status === 'paid' ? 'Paid' : i.status === 'open' ? 'Unpaid' : i.status) },

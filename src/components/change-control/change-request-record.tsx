@@ -8,7 +8,7 @@ import { CalibrationReview } from '../calibration/calibration-review';
 import { EvidenceNote } from '../evidence/evidence-note';
 import { Button, Card, Columns, DataTable, Text, type Column } from '../ui';
 import { Comparison } from './comparison';
-import { closedBecause, STATUS_LABELS, STATUS_TONES, utcTime } from './labels';
+import { closedBecause, STATUS_LABELS, STATUS_TONES } from './labels';
 import { SignForm } from './sign-form';
 import { SignatureList } from './signature-list';
 import { pricesText } from '../planner/plan-sheet';
@@ -50,7 +50,7 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
           {STATUS_LABELS[d.status]}
         </Text>
         <Text tone="muted" testID="record-meta">
-          #{d.id} · {d.recipeName} in {d.vesselName} · proposed by {d.proposedBy}, {utcTime(d.createdAt)} · effective from {d.effectiveFrom} ({d.siteTimeZone})
+          #{d.id} · {d.recipeName} in {d.vesselName} · proposed by {d.proposedBy}, {site.stamp(d.createdAt)} · effective from {d.effectiveFrom} ({d.siteTimeZone})
         </Text>
       </View>
       <View style={styles.actions} testID="record-actions">

@@ -5,15 +5,18 @@ import { font, radius, space, useColors, type Palette } from '../../theme';
 import { Text } from '../ui/text';
 import { lineChartGeometry, type BandSeries, type LineSeries, type MarkerSpec } from './line-chart-geometry';
 
-export type ChartTone = 'primary' | 'accent' | 'third' | 'fourth';
+// `limit`: a bound that is never planned past (a vessel's maximum), in the danger colour.
+export type ChartTone = 'primary' | 'accent' | 'third' | 'fourth' | 'limit';
 
-const toneColor = (c: Palette, t: ChartTone) => ({ primary: c.chartLine, accent: c.chartLineAlt, third: c.success, fourth: c.warning })[t];
+const toneColor = (c: Palette, t: ChartTone) => ({ primary: c.chartLine, accent: c.chartLineAlt, third: c.success, fourth: c.warning, limit: c.danger })[t];
+// Dashes and dots tell lines apart without colour too; the legend draws the same pattern.
+const dashOf = (s: { dashed?: boolean; dotted?: boolean }) => (s.dotted ? '1.5 4' : s.dashed ? '6 4' : undefined);
 
 type Props = {
   title: string;
   /** The chart's text equivalent: a sentence with the key numbers, shown under it and read by screen readers. */
   summary: string;
-  series: (LineSeries & { tone: ChartTone; label: string; dashed?: boolean })[];
+  series: (LineSeries & { tone: ChartTone; label: string; dashed?: boolean; dotted?: boolean })[];
   bands?: (BandSeries & { tone: ChartTone; label: string })[];
   markers?: (MarkerSpec & { tone: ChartTone })[];
   xLabel: string;
@@ -62,7 +65,7 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
               <Path key={b.id} d={b.d} fill={toneColor(c, bands[i]!.tone)} fillOpacity={0.18} stroke="none" />
             ))}
             {g.lines.map((l, i) => (
-              <Path key={l.id} d={l.d} fill="none" stroke={toneColor(c, series[i]!.tone)} strokeWidth={2.5} strokeDasharray={series[i]!.dashed ? '6 4' : undefined} />
+              <Path key={l.id} d={l.d} fill="none" stroke={toneColor(c, series[i]!.tone)} strokeWidth={2.5} strokeLinecap={series[i]!.dotted ? 'round' : undefined} strokeDasharray={dashOf(series[i]!)} />
             ))}
             {g.markers.map((m, i) => {
               const color = toneColor(c, markers[i]!.tone);
@@ -77,7 +80,17 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
         ) : null}
       </View>
       <View style={styles.legend}>
-        {[...series, ...bands].map((s) => (
+        {series.map((s) => (
+          <View key={s.id} style={styles.legendItem}>
+            <Svg width={24} height={6} aria-hidden>
+              <Line x1={1} x2={23} y1={3} y2={3} stroke={toneColor(c, s.tone)} strokeWidth={2.5} strokeLinecap={s.dotted ? 'round' : undefined} strokeDasharray={dashOf(s)} />
+            </Svg>
+            <Text variant="caption" tone="muted">
+              {s.label}
+            </Text>
+          </View>
+        ))}
+        {bands.map((s) => (
           <View key={s.id} style={styles.legendItem}>
             <View style={[styles.swatch, { backgroundColor: toneColor(c, s.tone) }]} />
             <Text variant="caption" tone="muted">

@@ -15,7 +15,7 @@ export function CertificateCard({ lot, conversion, certificate, canEdit }: { lot
     <Card testID="certificate-card">
       <Text variant="title">Certificate of analysis</Text>
       <Text>
-        Activity {fmt(lot.certActivity, 0)} · stability figure converted to kd = {fmt(conversion.kdPerH, 4)} /h at {fmt(conversion.tempC, 0)} °C (half-life {fmt(conversion.halfLifeH, 2)} h)
+        Activity {fmt(lot.certActivity, 0)} {lot.activityUnit} · stability figure converted to kd = {fmt(conversion.kdPerH, 4)} /h at {fmt(conversion.tempC, 0)} °C (half-life {fmt(conversion.halfLifeH, 2)} h)
       </Text>
       <View testID="certificate-conversion">
         {conversion.steps.map((s) => (

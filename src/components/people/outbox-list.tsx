@@ -3,23 +3,23 @@ import type { OutboxMessage } from '../../contracts/mail';
 import { useRetryMail } from '../../hooks/use-retry-mail';
 import { radius, space, useColors } from '../../theme';
 import { Button, Text } from '../ui';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
-const when = (iso: string) => iso.slice(0, 16).replace('T', ' ');
-
-function statusLine(m: OutboxMessage): { text: string; tone: 'success' | 'warning' | 'danger' } {
-  if (m.status === 'sent') return { text: `Sent ${when(m.sentAt ?? m.createdAt)} UTC`, tone: 'success' };
+function statusLine(m: OutboxMessage, when: (iso: string) => string): { text: string; tone: 'success' | 'warning' | 'danger' } {
+  if (m.status === 'sent') return { text: `Sent ${when(m.sentAt ?? m.createdAt)}`, tone: 'success' };
   if (m.status === 'failed') return { text: `Not delivered after ${m.attempts} attempts: ${m.lastError ?? 'unknown error'}`, tone: 'danger' };
-  return { text: m.attempts ? `Pending: attempt ${m.attempts} failed (${m.lastError ?? 'unknown error'}); next try ${when(m.nextAttemptAt ?? m.createdAt)} UTC` : 'Pending: queued for delivery', tone: 'warning' };
+  return { text: m.attempts ? `Pending: attempt ${m.attempts} failed (${m.lastError ?? 'unknown error'}); next try ${when(m.nextAttemptAt ?? m.createdAt)}` : 'Pending: queued for delivery', tone: 'warning' };
 }
 
 /** The site's outgoing mail with each message's delivery state; a message that gave up can be queued again. */
 export function OutboxList({ messages }: { messages: OutboxMessage[] }) {
   const c = useColors();
   const retry = useRetryMail();
+  const site = useSiteFormat();
   return (
     <View style={styles.list} testID="mail-outbox">
       {messages.map((m) => {
-        const s = statusLine(m);
+        const s = statusLine(m, site.time);
         return (
           <View key={m.id} style={[styles.row, { borderColor: c.border, backgroundColor: c.surface }]} testID="mail-outbox-row">
             <View style={styles.text}>
@@ -27,7 +27,7 @@ export function OutboxList({ messages }: { messages: OutboxMessage[] }) {
                 {m.subject}
               </Text>
               <Text variant="small" tone="muted">
-                To {m.to} · queued {when(m.createdAt)} UTC
+                To {m.to} · queued {site.time(m.createdAt)}
               </Text>
               <Text variant="small" tone={s.tone} testID={`mail-status-${m.status}`}>
                 {s.text}

@@ -9,6 +9,9 @@ import { Card, Choice, NumberField, Text } from '../ui';
 import type { Planner } from './use-planner';
 import { useSiteFormat } from '../../hooks/use-site-format';
 
+/** Above this a batch length is more likely a slip than a plan. Common practice, no source: enzymatic batches run hours to a few days. */
+export const LONG_BATCH_H = 168;
+
 /** Everything the engineer can change; each change recomputes the plan in the browser. */
 export function PlanInputsPanel({ detail, planner }: { detail: RecipeDetail; planner: Planner }) {
   const site = useSiteFormat();
@@ -59,6 +62,11 @@ export function PlanInputsPanel({ detail, planner }: { detail: RecipeDetail; pla
         <NumberField label="Enzyme price" unit={`${site.currency}/kg`} value={inputs.enzymePricePerKg} step={1} min={0} max={1e6} decimals={2} onChange={on.enzymePricePerKg} testID="input-enzyme-price" />
         <NumberField label="Heating cost" unit={`${site.currency} per °C·h`} value={inputs.heatingCostPerDegCHour} step={0.1} min={0} max={1e6} decimals={2} onChange={on.heatingCostPerDegCHour} testID="input-heating" />
       </View>
+      {inputs.batchH > LONG_BATCH_H ? (
+        <Text tone="warning" weight="semibold" testID="caution-long-batch">
+          A {fmt(inputs.batchH, 0)} h batch is {fmt(inputs.batchH / 24)} days: check the length (the model assumes the enzyme and substrate alone decide it; contamination and evaporation over that long are not in it).
+        </Text>
+      ) : null}
       <Choice
         label="Plan"
         value={inputs.strategy}

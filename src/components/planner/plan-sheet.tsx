@@ -25,6 +25,9 @@ export function PlanSheet({ plan }: { plan: Plan }) {
   const i = plan.inputs;
   const u = o.uncertainty;
   const site = useSiteFormat();
+  // The temperatures the plan holds (its stages, or its one setpoint), not the vessel's whole range.
+  const held = o.stages ? o.stages.map((s) => s.c) : [o.setpointC];
+  const planRange = Math.min(...held) === Math.max(...held) ? fmt(held[0]!) : `${fmt(Math.min(...held))}–${fmt(Math.max(...held))}`;
   const result: Row[] = [
     { label: o.strategy === 'staged' ? 'Profile' : 'Setpoint', value: o.stages ? o.stages.map((s) => `${fmt(s.hours)} h at ${fmt(s.c)} °C`).join(', ') : `${fmt(o.setpointC)} °C` },
     { label: 'Predicted product (ramps included)', value: `${fmt(o.predictedProductGPerL)} g/L` },
@@ -38,11 +41,11 @@ export function PlanSheet({ plan }: { plan: Plan }) {
       ? [
           {
             label: 'Substrate fully converted',
-            value: `by hour ${fmt(o.earlyFinish.completeAtH)}: a batch ended then earns ${fmt(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour against ${fmt(o.earlyFinish.fullProfitPerH, 0)} for the full ${fmt(i.batchH, 0)} h`,
+            value: `by hour ${fmt(o.earlyFinish.completeAtH)}: a batch ended then earns ${site.money(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour against ${site.money(o.earlyFinish.fullProfitPerH, 0)} for the full ${fmt(i.batchH, 0)} h`,
           },
         ]
       : []),
-    { label: 'Vessel range used', value: `${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at the ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}` },
+    { label: 'Range the plan uses', value: `${planRange} °C, within the vessel’s ${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at its ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}` },
     { label: 'Constraints met', value: o.constraintsMet ? 'Yes' : 'No' },
     { label: 'Pressure caution', value: o.cautions.crossesBoiling ? `Yes: ${fmt(o.cautions.maxC)} °C, ${fmt(o.cautions.saturationKPa, 0)} kPa abs saturation` : 'No (stays at or below 100 °C)' },
     { label: 'Below hygienic minimum', value: o.cautions.belowHygienicMin ? `Yes (${fmt(o.cautions.hygienicMinC)} °C)` : 'No' },
@@ -61,7 +64,7 @@ export function PlanSheet({ plan }: { plan: Plan }) {
   return (
     <>
       <Text tone="muted" testID="plan-meta">
-        Plan {plan.id} · {plan.recipeName} in {plan.vesselName} · saved {plan.createdAt.replace('T', ' ').slice(0, 16)} UTC by {plan.createdBy}
+        Plan {plan.id} · {plan.recipeName} in {plan.vesselName} · saved {site.stamp(plan.createdAt)} by {plan.createdBy}
       </Text>
       <EvidenceNote evidence={o.kinetics.evidence} olderEvidence={plan.olderEvidence} showDisagreement testID="plan-evidence" />
       <View style={styles.actions} testID="plan-actions">

@@ -100,8 +100,8 @@ export function ProfileChart({ ev, inputs }: Props) {
         yLabel="temperature, °C"
         series={[
           { id: 'staged', label: 'Rising stages', tone: 'primary', points: staged },
-          { id: 'held', label: 'One setpoint', tone: 'accent', dashed: true, points: held },
-          { id: 'max', label: 'Vessel maximum', tone: 'fourth', dashed: true, points: max },
+          { id: 'held', label: `One setpoint held, ${fmt(o.setpointC)} °C (dashed)`, tone: 'accent', dashed: true, points: held },
+          { id: 'max', label: `Vessel maximum, ${fmt(ev.boundsC[1])} °C (dotted, never planned past)`, tone: 'limit', dotted: true, points: max },
         ]}
       />
     </Card>

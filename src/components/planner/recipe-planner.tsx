@@ -8,7 +8,7 @@ import { useCreatePlan } from '../../hooks/use-create-plan';
 import { useSession } from '../../hooks/use-session';
 import { useUncertainty } from '../../hooks/use-uncertainty';
 import { uncertaintyInput, type PlanEvaluation } from '../../planning';
-import { space, useBreakpoint } from '../../theme';
+import { radius, space, useBreakpoint, useColors } from '../../theme';
 import { CALIBRATION_READERS } from '../../contracts/rules';
 import { CalibrationReview } from '../calibration/calibration-review';
 import { EvidenceNote } from '../evidence/evidence-note';
@@ -98,6 +98,27 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
         Advisory: a setpoint change goes through change control.{redrawMs !== null ? ` Updated in ${fmt(redrawMs, 0)} ms (model ${fmt(computeMs, 0)} ms).` : ''}
       </Text>
     </Card>
+  );
+}
+
+/**
+ * The answer in one line, pinned to the top of the inputs on a phone so it can be seen moving while they are
+ * edited (position sticky, which react-native-web passes to the page).
+ */
+function CompactRecommendation({ ev }: { ev: PlanEvaluation }) {
+  const c = useColors();
+  const site = useSiteFormat();
+  const o = ev.outputs;
+  const what = o.strategy === 'staged' && o.stages ? o.stages.map((s) => fmt(s.c)).join(' → ') : fmt(o.setpointC);
+  return (
+    <View style={[styles.compact, { backgroundColor: c.surfaceRaised, borderColor: c.border }]} testID="recommendation-compact" accessibilityLiveRegion="polite">
+      <Text weight="semibold">
+        {what} °C · {fmt(o.predictedProductGPerL, 0)} g/L · {site.money(o.profitPerH, 0)}/h
+      </Text>
+      <Text variant="caption" tone="muted">
+        Recommended now{o.atBound ? `, held at the vessel ${o.atBound === 'upper' ? 'maximum' : 'minimum'}` : ''}
+      </Text>
+    </View>
   );
 }
 
@@ -206,7 +227,12 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
       {notice}
       {recommendation}
       {setpointChart}
-      {inputsPanel}
+      <View>
+        <View style={styles.pinned}>
+          <CompactRecommendation ev={ev} />
+        </View>
+        {inputsPanel}
+      </View>
       {reasonsCard}
       {uncertaintyPanel}
       {calibration}
@@ -220,4 +246,6 @@ const styles = StyleSheet.create({
   side: { width: SIDE_COLUMN, gap: space.lg },
   main: { flex: 1, minWidth: 0, gap: space.lg },
   stack: { gap: space.lg },
+  pinned: { position: 'sticky', top: 0, zIndex: 2, marginBottom: space.sm } as object,
+  compact: { borderWidth: 1, borderRadius: radius.md, paddingHorizontal: space.md, paddingVertical: space.sm, gap: space.xxs },
 });

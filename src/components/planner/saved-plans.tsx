@@ -2,9 +2,11 @@ import { router } from 'expo-router';
 import { fmt } from '../../format';
 import { usePlans } from '../../hooks/use-plans';
 import { Button, Card, ErrorState, Loader, Text } from '../ui';
+import { useSiteFormat } from '../../hooks/use-site-format';
 
 /** Plans saved for this recipe, newest first; each opens its printable sheet. */
 export function SavedPlans({ recipeId }: { recipeId: number }) {
+  const site = useSiteFormat();
   const { data, error, isLoading, retry } = usePlans(recipeId);
   return (
     <Card testID="saved-plans">
@@ -25,7 +27,7 @@ export function SavedPlans({ recipeId }: { recipeId: number }) {
             <Button
               key={p.id}
               variant="ghost"
-              label={`Plan ${p.id} · ${what} °C · ${fmt(p.inputs.batchH, 0)} h · ${fmt(o.predictedProductGPerL, 0)} g/L · ${p.createdAt.slice(0, 16).replace('T', ' ')} UTC${p.olderEvidence ? ' · computed on older evidence' : ''}`}
+              label={`Plan ${p.id} · ${what} °C · ${fmt(p.inputs.batchH, 0)} h · ${fmt(o.predictedProductGPerL, 0)} g/L · ${site.time(p.createdAt)}${p.olderEvidence ? ' · computed on older evidence' : ''}`}
               onPress={() => router.push(`/planner/plan/${p.id}`)}
               testID={`saved-plan-${p.id}`}
             />

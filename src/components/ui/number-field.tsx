@@ -24,6 +24,8 @@ const clamp = (v: number, lo: number, hi: number) => Math.min(hi, Math.max(lo, v
 export const NumberField = memo(function NumberField({ label, value, onChange, step, min, max, unit, decimals = 1, hint, testID }: Props) {
   const c = useColors();
   const shown = (v: number) => String(Number(v.toFixed(decimals)));
+  // What one tap of − or + does, shown under the field (the unit as the label gives it).
+  const stepNote = `− / + by ${shown(step)}${unit ? ` ${unit}` : ''}`;
   const [text, setText] = useState(shown(value));
   const [error, setError] = useState<string | null>(null);
   useEffect(() => {
@@ -48,7 +50,7 @@ export const NumberField = memo(function NumberField({ label, value, onChange, s
   const button = (dir: 1 | -1) => (
     <Pressable
       accessibilityRole="button"
-      accessibilityLabel={`${dir > 0 ? 'Increase' : 'Decrease'} ${label.toLowerCase()}`}
+      accessibilityLabel={`${dir > 0 ? 'Increase' : 'Decrease'} ${label.toLowerCase()} by ${shown(step)}${unit ? ` ${unit}` : ''}`}
       testID={`${testID}-${dir > 0 ? 'increase' : 'decrease'}`}
       onPress={() => bump(dir)}
       disabled={dir > 0 ? value >= max : value <= min}
@@ -79,7 +81,7 @@ export const NumberField = memo(function NumberField({ label, value, onChange, s
         />
         {button(1)}
       </View>
-      <FieldNote error={error} hint={hint} />
+      <FieldNote error={error} hint={hint ? `${hint} · ${stepNote}` : stepNote} />
     </View>
   );
 });

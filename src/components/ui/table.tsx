@@ -2,7 +2,19 @@ import { Pressable, StyleSheet, View } from 'react-native';
 import { space, useBreakpoint, useColors } from '../../theme';
 import { Text } from './text';
 
-export type Column<T> = { key: string; label: string; value: (row: T) => string; isNumeric?: boolean; flex?: number };
+export type Column<T> = {
+  key: string;
+  label: string;
+  value: (row: T) => string;
+  isNumeric?: boolean;
+  flex?: number;
+  /** A status colour for the value, on a phone and a wide screen alike. */
+  tone?: (row: T) => 'success' | 'warning' | 'danger' | 'muted' | undefined;
+  /** A code kept on one line (lot codes must not break at their hyphens). */
+  isCode?: boolean;
+};
+
+const cellStyle = <T,>(col: Column<T>) => (col.isCode ? styles.code : styles.wrapAnywhere);
 
 type Props<T> = {
   columns: Column<T>[];
@@ -37,11 +49,11 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPres
         {rows.map((row) => (
           <Row key={rowKey(row)} onPress={onRowPress && (() => onRowPress(row))} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
             {/* The first column names the card; a lone second column is its value, with no repeated header beside it. */}
-            <Text variant="small" weight="semibold" style={styles.wrapAnywhere}>
+            <Text variant="small" weight="semibold" tone={columns[0]!.tone?.(row)} style={cellStyle(columns[0]!)}>
               {columns[0]!.value(row)}
             </Text>
             {columns.length === 2 ? (
-              <Text variant="small" style={styles.wrapAnywhere}>
+              <Text variant="small" tone={columns[1]!.tone?.(row)} style={cellStyle(columns[1]!)}>
                 {columns[1]!.value(row)}
               </Text>
             ) : (
@@ -50,7 +62,7 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPres
                   <Text variant="small" tone="muted">
                     {col.label}
                   </Text>
-                  <Text variant="small" style={[styles.pairValue, styles.wrapAnywhere]}>
+                  <Text variant="small" tone={col.tone?.(row)} weight={col.tone ? 'semibold' : undefined} style={[styles.pairValue, cellStyle(col)]}>
                     {col.value(row)}
                   </Text>
                 </View>
@@ -76,7 +88,7 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPres
         <Row key={rowKey(row)} role="row" onPress={onRowPress && (() => onRowPress(row))} style={[styles.row, { borderColor: c.border }]} testID={testID ? `${testID}-row` : undefined}>
           {columns.map((col) => (
             <View key={col.key} role="cell" style={[styles.cell, { flex: col.flex ?? 1 }]}>
-              <Text variant="small" style={col.isNumeric && styles.right}>
+              <Text variant="small" tone={col.tone?.(row)} weight={col.tone ? 'semibold' : undefined} style={[col.isNumeric && styles.right, col.isCode && styles.code]}>
                 {col.value(row)}
               </Text>
             </View>
@@ -94,6 +106,7 @@ const styles = StyleSheet.create({
   pairValue: { flexShrink: 1, textAlign: 'right' },
   // A hash or a code with no space breaks inside rather than running off a phone's edge (react-native-web style).
   wrapAnywhere: { wordBreak: 'break-word' } as object,
+  code: { whiteSpace: 'nowrap' } as object,
   table: { borderWidth: 1, borderRadius: 10, overflow: 'hidden' },
   row: { flexDirection: 'row', borderBottomWidth: StyleSheet.hairlineWidth, minHeight: 44, alignItems: 'center' },
   cell: { paddingHorizontal: space.md, paddingVertical: space.sm },
