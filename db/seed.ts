@@ -1,11 +1,13 @@
 import crypto from 'node:crypto';
 import bcrypt from 'bcryptjs';
 import { sql } from 'drizzle-orm';
-import { batchHours, batchProgram, batchStatus, plannedAt, proposeCalibration } from '../src/batches';
+import { batchHours, batchProgram, batchStatus, plannedAt } from '../src/batches';
+import { proposeCalibration } from '../src/batches/calibration';
 import type { BatchProgram } from '../src/contracts/batches';
 import type { CertStability } from '../src/contracts/lots';
 import { createRng, KELVIN_OFFSET, R, simulate } from '../src/model';
-import { certKdPerH, fitAssay } from '../src/stability';
+import { fitAssay } from '../src/assay-fit';
+import { certKdPerH } from '../src/stability';
 import type { Role } from '../src/contracts/roles';
 import type { Db } from './client';
 import { assayPoints, assays, batchReadings, batches, calibrations, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';

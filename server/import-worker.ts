@@ -1,7 +1,7 @@
 // The import worker: reads uploaded CSV and fits assays on its own thread, so a large file never holds up the
 // server's other requests. Started by server/imports.ts; answers each task with its result or its HttpError.
 import { parentPort } from 'node:worker_threads';
-import { fitAssay } from '../src/stability';
+import { fitAssay } from '../src/assay-fit';
 import { HttpError } from './http-error';
 import { readAssayCsv, readAssayTable } from './services/assay-csv';
 import { readHistorianCsv } from './services/historian-csv';

@@ -5,7 +5,7 @@ import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type { DateOrder } from '../src/batches';
 import type { AssayTableInput, ResidualScale } from '../src/contracts/assays';
-import type { AssayFitResult } from '../src/stability';
+import type { AssayFitResult } from '../src/assay-fit';
 import type { CsvEncoding } from './csv-reader';
 import { HttpError } from './http-error';
 import type { CheckedAssay } from './services/assay-csv';

@@ -1,5 +1,5 @@
 import { writeTx, type Db } from '../../db/client';
-import { MEASUREMENT_REL_SD, proposeCalibration, type ClosedBatch } from '../../src/batches';
+import { MEASUREMENT_REL_SD, proposeCalibration, type ClosedBatch } from '../../src/batches/calibration';
 import type { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
 import type { SessionUser } from '../../src/contracts/session';
 import { ModelInputError } from '../../src/model';

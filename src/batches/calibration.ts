@@ -1,6 +1,8 @@
 // Closed batches as evidence: the posterior of the lot's stability and the recipe's catalytic scale from each
 // batch's measured product and logged temperatures, with the model-quality figures engineers and supervisors see.
-import { calibrate, halfLifeFromKd, type CalibrationBatch, type EnzymeParams } from '../model';
+import { calibrate, type CalibrationBatch } from '../model/calibrate';
+import { halfLifeFromKd } from '../model/units';
+import type { EnzymeParams } from '../model/types';
 import type { BatchProgram } from '../contracts/batches';
 import type { CalibrationBatchResult, CalibrationLeftOut, CalibrationPosterior, CalibrationResult, DriftPoint, ForecastError } from '../contracts/calibrations';
 import type { Enzyme } from '../contracts/enzymes';

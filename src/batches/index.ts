@@ -1,7 +1,7 @@
 // Batches on the floor: the batch-level use of src/model, shared by the batch screen (preview) and the server.
-// Imports only src/model, src/planning and src/contracts.
+// Imports only src/model, src/planning and src/contracts. Calibration (./calibration) is the server's and is
+// imported by its path, so the web app's bundle does not carry the calibration engine.
 export * from './program';
-export * from './calibration';
 export * from './status';
 export * from './deviations';
 export * from './historian-csv';

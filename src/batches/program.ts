@@ -1,4 +1,6 @@
-import { simulate, stagesWithRamps, type Stage } from '../model';
+import { simulate } from '../model/batch';
+import { stagesWithRamps } from '../model/optimise';
+import type { Stage } from '../model/types';
 import type { BatchProgram } from '../contracts/batches';
 import type { Enzyme } from '../contracts/enzymes';
 import type { Plan } from '../contracts/plans';

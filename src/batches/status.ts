@@ -1,4 +1,7 @@
-import { optimalSetpointC, simulate, temperatureAt, thermalDose, type Reading as Point } from '../model';
+import { optimalSetpointC } from '../model/optimise';
+import { simulate, temperatureAt } from '../model/batch';
+import { thermalDose } from '../model/dose';
+import type { Reading as Point } from '../model/types';
 import type { BatchProgram, BatchStatus, Corrective } from '../contracts/batches';
 
 /**

@@ -1,5 +1,5 @@
 import { useCallback, useEffect, useRef, useState } from 'react';
-import { monteCarloSteps, type UncertaintyInput, type UncertaintyResult } from '../model';
+import { monteCarloSteps, type UncertaintyInput, type UncertaintyResult } from '../model/uncertainty';
 
 export type UncertaintyRun =
   | { status: 'idle' }

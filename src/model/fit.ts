@@ -2,6 +2,7 @@ import { KELVIN_OFFSET, R } from './constants';
 import { ModelInputError } from './errors';
 import { softplus } from './kinetics';
 import { leastSquares, levenbergMarquardt, type LeastSquaresProblem } from './lm';
+import { xOf } from './half-life';
 import { incompleteBeta, studentTQuantile } from './stats';
 
 export interface InactivationPoint {
@@ -89,11 +90,6 @@ export function residualScale(values: number[]): 'fraction' | 'percent' {
   const mid = sorted.length >> 1;
   const median = sorted.length % 2 ? sorted[mid] : 0.5 * (sorted[mid - 1] + sorted[mid]);
   return median > 1.5 ? 'percent' : 'fraction';
-}
-
-function xOf(c: number, tRefC: number): number {
-  // (1/T - 1/Tref)/R times 1000, so that an energy in kJ/mol multiplies it.
-  return (1000 * (1 / (c + KELVIN_OFFSET) - 1 / (tRefC + KELVIN_OFFSET))) / R;
 }
 
 /** Per-temperature kd (1/h) by least squares through the origin of ln residual vs time, then the Arrhenius plot. */
@@ -563,29 +559,6 @@ export function fitInactivation(
     out.fractionHalfLivesRefH = { labile: Math.LN2 / chosenFit.kdRefPerH, stable: Math.LN2 / chosenFit.stableFraction.kdRefPerH };
   }
   return out;
-}
-
-/** Half-life (h) at a temperature (degC) with a 95 % interval: delta method on ln t1/2, Student t with n - 2 dof. */
-export function halfLifeAt(
-  fit: Pick<InactivationFit, 'tRefC' | 'kdRefPerH' | 'edKJPerMol' | 'covariance' | 'dof'>,
-  c: number,
-  level = 0.95,
-): { c: number; kdPerH: number; halfLifeH: number; lowerH: number; upperH: number } {
-  const x = xOf(c, fit.tRefC);
-  const lnKd = Math.log(fit.kdRefPerH) - fit.edKJPerMol * x;
-  const lnHalf = Math.log(Math.LN2) - lnKd;
-  const cv = fit.covariance;
-  // d ln t1/2 / d(ln kdRef, Ed) = (-1, x).
-  const varLn = cv[0][0] - 2 * x * cv[0][1] + x * x * cv[1][1];
-  const q = studentTQuantile(0.5 + level / 2, Math.max(1, fit.dof));
-  const sd = Math.sqrt(Math.max(0, varLn));
-  return {
-    c,
-    kdPerH: Math.exp(lnKd),
-    halfLifeH: Math.exp(lnHalf),
-    lowerH: Math.exp(lnHalf - q * sd),
-    upperH: Math.exp(lnHalf + q * sd),
-  };
 }
 
 export interface InitialRatePoint {

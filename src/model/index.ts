@@ -60,7 +60,6 @@ export {
 export { createRng, cholesky, quantileSorted, quantilesBySelection, type Rng } from './random';
 export {
   fitInactivation,
-  halfLifeAt,
   twoStepInactivation,
   fitInitialRates,
   residualScale,
@@ -73,6 +72,7 @@ export {
   type InitialRatePoint,
   type InitialRateFit,
 } from './fit';
+export { halfLifeAt } from './half-life';
 export { studentTQuantile, studentTCdf } from './stats';
 export { thermalDose, type DoseResult } from './dose';
 export { waterSaturationPressureKPa, pressureCaution } from './safety';

@@ -1,4 +1,4 @@
-import type { EnzymeParams } from '../model';
+import type { EnzymeParams } from '../model/types';
 import type { Enzyme } from '../contracts/enzymes';
 import type { KineticsEvidence } from '../contracts/plans';
 import type { Recipe } from '../contracts/recipes';

@@ -1,4 +1,6 @@
-import { economics, simulate, type EconomicsParams, type EnzymeParams, type Reading, type Substrate } from '../model';
+import { economics, type EconomicsParams } from '../model/economics';
+import { simulate } from '../model/batch';
+import type { EnzymeParams, Reading, Substrate } from '../model/types';
 
 /**
  * Conversion counted as complete: product within 0.1 % of the substrate load. A stated choice (common practice

@@ -1,17 +1,8 @@
-import {
-  economics,
-  optimizeProfile,
-  optimizeSetpoint,
-  pressureCaution,
-  simulate,
-  stagesWithRamps,
-  type EconomicsParams,
-  type EnzymeParams,
-  type Reading,
-  type SimulationResult,
-  type Stage,
-  type Substrate,
-} from '../model';
+import { economics, type EconomicsParams } from '../model/economics';
+import { optimizeProfile, optimizeSetpoint, stagesWithRamps } from '../model/optimise';
+import { pressureCaution } from '../model/safety';
+import { simulate } from '../model/batch';
+import type { EnzymeParams, Reading, SimulationResult, Stage, Substrate } from '../model/types';
 import type { PlanInputs, PlanOutputs } from '../contracts/plans';
 import { enzymeFor, type PlanContext } from './context';
 import { conversionCompleteAtH, earlyFinish } from './early-finish';

@@ -1,4 +1,6 @@
-import { arrheniusFactor, halfLifeAt, halfLifeFromKd } from '../model';
+import { arrheniusFactor } from '../model/kinetics';
+import { halfLifeAt } from '../model/half-life';
+import { halfLifeFromKd } from '../model/units';
 import type { AssayFit } from '../contracts/assays';
 import type { KineticsEvidence } from '../contracts/plans';
 import type { PlanningLot, Recipe } from '../contracts/recipes';

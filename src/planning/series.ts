@@ -1,4 +1,6 @@
-import { optimizeEconomics, profitCurve, simulate, trajectory, type TrajectoryPoint } from '../model';
+import { optimizeEconomics, profitCurve } from '../model/economics';
+import { simulate, trajectory } from '../model/batch';
+import type { TrajectoryPoint } from '../model/types';
 import type { PlanInputs } from '../contracts/plans';
 import type { PlanEvaluation } from './evaluate';
 

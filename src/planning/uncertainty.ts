@@ -1,4 +1,4 @@
-import { monteCarlo, monteCarloSteps, type UncertaintyInput, type UncertaintyResult } from '../model';
+import { monteCarlo, monteCarloSteps, type UncertaintyInput, type UncertaintyResult } from '../model/uncertainty';
 import type { PlanInputs, PlanOutputs, UncertaintySettings } from '../contracts/plans';
 import { parameterCovariance, type PlanContext } from './context';
 import type { PlanEvaluation } from './evaluate';

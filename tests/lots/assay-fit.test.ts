@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { AssayFit } from '../../src/contracts/assays';
 import { arrheniusFactor, createRng, fitInactivation, type InactivationPoint } from '../../src/model';
-import { EXTENDED_FIT_MAX_ROWS, distinctRows, fitAssay } from '../../src/stability';
+import { EXTENDED_FIT_MAX_ROWS, distinctRows, fitAssay } from '../../src/assay-fit';
 
 /** Invented assay: 4 temperatures x 6 hold times, `reps` readings each, 4 % multiplicative noise, 10 % lost in heat-up. */
 function replicated(reps: number, seed: number): InactivationPoint[] {

@@ -1,5 +1,6 @@
 import { scaleLinear } from 'd3-scale';
-import { arrheniusFactor, KELVIN_OFFSET } from '../../model';
+import { arrheniusFactor } from '../../model/kinetics';
+import { KELVIN_OFFSET } from '../../model/constants';
 import { plotBox, tickLabel, ticksOf, type Box, type Tick } from './axes';
 
 export type ArrheniusInput = {

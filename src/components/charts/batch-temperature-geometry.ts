@@ -1,6 +1,6 @@
 import { scaleLinear } from 'd3-scale';
 import { area, line } from 'd3-shape';
-import { temperatureAt } from '../../model';
+import { temperatureAt } from '../../model/batch';
 import { plotBox, tickLabel, ticksOf, type Box, type Tick } from './axes';
 
 export type TempPoint = { h: number; c: number };

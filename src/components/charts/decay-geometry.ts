@@ -1,6 +1,6 @@
 import { scaleLinear } from 'd3-scale';
 import { line } from 'd3-shape';
-import { arrheniusFactor } from '../../model';
+import { arrheniusFactor } from '../../model/kinetics';
 import { plotBox, tickLabel, ticksOf, type Box, type Tick } from './axes';
 
 export type DecayPoint = { tempC: number; timeH: number; residual: number };

@@ -1,4 +1,6 @@
-import { profitCurve, simulate, type UncertaintyResult } from '../../model';
+import { profitCurve } from '../../model/economics';
+import { simulate } from '../../model/batch';
+import type { UncertaintyResult } from '../../model/uncertainty';
 import type { PlanInputs } from '../../contracts/plans';
 import { fmt } from '../../format';
 import type { PlanEvaluation, PlanSeries } from '../../planning';

@@ -1,6 +1,6 @@
 import { useMemo } from 'react';
 import { StyleSheet, View } from 'react-native';
-import type { UncertaintyResult } from '../../model';
+import type { UncertaintyResult } from '../../model/uncertainty';
 import { fmt } from '../../format';
 import { DEFAULT_ED_REL_SD, DEFAULT_LN_KD_SD, parameterCovariance, type PlanEvaluation } from '../../planning';
 import { space } from '../../theme';
