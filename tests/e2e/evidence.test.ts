@@ -143,7 +143,7 @@ describe('evidence to decision', () => {
     const glucose = recipes.find((r) => r.name === 'Glucose syrup DE 95')!;
     await eng.page.goto(`${baseURL}/planner/${glucose.id}`);
     await eng.page.getByTestId('input-dose').fill('0.9');
-    await expect.poll(() => text(eng.page, 'early-finish'), { timeout: 15_000 }).toMatch(/^A batch ended at hour [\d.]+ would earn \d+ per reactor hour, against \d+ for the full 48 h\.$/);
+    await expect.poll(() => text(eng.page, 'early-finish'), { timeout: 15_000 }).toMatch(/^A batch ended at hour [\d.]+ would earn \d+ [A-Z]{3} per reactor hour, against \d+ [A-Z]{3} for the full 48 h\.$/);
     expect(await text(eng.page, 'recommended-setpoint')).toBe('59.0 °C');
     expect(await text(eng.page, 'recommended-product')).toMatch(/all the substrate, converted by hour [\d.]+ of 48 at the current setpoint, so no change is recommended/);
     expect(await text(eng.page, 'reasons')).toMatch(/The substrate is fully converted by hour/);

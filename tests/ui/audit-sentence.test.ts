@@ -11,12 +11,13 @@ describe('audit events as people read them', () => {
   });
 
   it('lists only the fields that changed, old -> new', () => {
-    expect(auditChanges({ oldValue: { setpointC: 35, releasedPlanId: null, recipeId: 2 }, newValue: { setpointC: 37, releasedPlanId: 5, recipeId: 2 } })).toEqual([
+    expect(auditChanges({ oldValue: { setpointC: 35, releasedPlanId: null, recipeId: 2 }, newValue: { setpointC: 37, releasedPlanId: 5, recipeId: 2 } }, 'EUR')).toEqual([
       { field: 'setpoint (°C)', before: '35', after: '37' },
       { field: 'released plan id', before: '–', after: '5' },
     ]);
-    expect(auditChanges({ oldValue: null, newValue: { state: 'running' } })).toEqual([{ field: 'state', before: '–', after: 'running' }]);
-    expect(auditChanges({ oldValue: null, newValue: null })).toEqual([]);
-    expect(auditChanges({ oldValue: { setpointC: 37 }, newValue: { setpointC: 41.665850533952835 } })).toEqual([{ field: 'setpoint (°C)', before: '37', after: '41.6659' }]);
+    expect(auditChanges({ oldValue: null, newValue: { state: 'running' } }, 'EUR')).toEqual([{ field: 'state', before: '–', after: 'running' }]);
+    expect(auditChanges({ oldValue: null, newValue: null }, 'EUR')).toEqual([]);
+    expect(auditChanges({ oldValue: { setpointC: 37 }, newValue: { setpointC: 41.665850533952835 } }, 'EUR')).toEqual([{ field: 'setpoint (°C)', before: '37', after: '41.6659' }]);
+    expect(auditChanges({ oldValue: null, newValue: { productPricePerKg: 0.4, heatingCostPerDegCHour: 0.6 } }, 'CHF').map((c) => c.field)).toEqual(['product price (CHF/kg)', 'heating cost (CHF per °C·h)']);
   });
 });

@@ -60,12 +60,13 @@ const show = (v: unknown): string =>
   v === undefined || v === null ? '–' : typeof v === 'number' && !Number.isInteger(v) ? String(Number(v.toFixed(4))) : typeof v === 'object' ? JSON.stringify(v) : String(v);
 const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 
-// `setpointC` -> `setpoint (°C)`, `releasedPlanId` -> `released plan id`: the unit suffixes the records use.
-const fieldName = (k: string) =>
-  words(k.replace(/GPerL$/, ' (g/L)').replace(/(?<=[a-z])C$/, ' (°C)').replace(/(?<=[a-z])H$/, ' (h)').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`));
+// `setpointC` -> `setpoint (°C)`, `releasedPlanId` -> `released plan id`: the unit suffixes the records use;
+// a price or cost names the site's currency (`productPricePerKg` -> `product price (EUR/kg)`).
+const fieldName = (k: string, currency: string) =>
+  words(k.replace(/PricePerKg$/, ` price (${currency}/kg)`).replace(/CostPerDegCHour$/, ` cost (${currency} per °C·h)`).replace(/GPerL$/, ' (g/L)').replace(/(?<=[a-z])C$/, ' (°C)').replace(/(?<=[a-z])H$/, ' (h)').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`));
 
 /** What an event changed, field by field: only the fields whose values differ, old -> new. */
-export function auditChanges(e: Pick<AuditEvent, 'oldValue' | 'newValue'>): AuditChange[] {
+export function auditChanges(e: Pick<AuditEvent, 'oldValue' | 'newValue'>, currency: string): AuditChange[] {
   const { oldValue: a, newValue: b } = e;
   if (a == null && b == null) return [];
   if (!isRecord(a) && !isRecord(b)) return show(a) === show(b) ? [] : [{ field: 'value', before: show(a), after: show(b) }];
@@ -74,5 +75,5 @@ export function auditChanges(e: Pick<AuditEvent, 'oldValue' | 'newValue'>): Audi
   const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])];
   return keys
     .filter((k) => show(before[k]) !== show(after[k]))
-    .map((k) => ({ field: fieldName(k), before: k in before ? show(before[k]) : '–', after: k in after ? show(after[k]) : '–' }));
+    .map((k) => ({ field: fieldName(k, currency), before: k in before ? show(before[k]) : '–', after: k in after ? show(after[k]) : '–' }));
 }
