@@ -5,6 +5,7 @@ import { batchHours, batchProgram, batchStatus, plannedAt } from '../src/batches
 import { proposeCalibration } from '../src/batches/calibration';
 import type { BatchProgram } from '../src/contracts/batches';
 import type { CertStability } from '../src/contracts/lots';
+import type { LotFit } from '../src/contracts/recipes';
 import { createRng, KELVIN_OFFSET, R, simulate } from '../src/model';
 import { fitAssay } from '../src/assay-fit';
 import { certKdPerH } from '../src/stability';
@@ -271,6 +272,8 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
     const enzymeIds = new Map<string, number>();
     for (const e of ENZYMES) enzymeIds.set(e.name, tx.insert(enzymes).values({ ...e, siteId: site.id }).returning().get().id);
     const lotRows = new Map<string, { id: number; enzymeId: number }>();
+    // Each lot's assay fit, so the demo's batch programs plan from it as the app's own do (else the certificate).
+    const lotFits = new Map<number, LotFit>();
     for (const l of LOTS) {
       const lot = tx
         .insert(lots)
@@ -316,6 +319,7 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         })
         .returning()
         .get();
+      if (result.fit) lotFits.set(lot.id, { assayId: assay.id, createdAt: assay.createdAt, fit: result.fit });
       tx.insert(assayPoints)
         .values(points.map((p, i) => ({ ...p, assayId: assay.id, line: i + 2, note: null })))
         .run();
@@ -335,7 +339,7 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       const vessel = vesselRows.find((v) => v.id === recipe.vesselId)!;
       const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;
       const enzyme = tx.select().from(enzymes).where(sql`${enzymes.id} = ${recipe.enzymeId}`).get()!;
-      const program = batchProgram({ recipe, enzyme, lot, vessel, plan: null });
+      const program = batchProgram({ recipe, enzyme, lot: { ...lot, fit: lotFits.get(lot.id) ?? null }, vessel, plan: null });
       const row = tx.insert(batches)
         .values({ siteId: site.id, recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, planId: null, source: program.source, program, state: 'running', startedAt: b.startedAt, startedBy: userIds.get('supervisor')! })
         .returning()

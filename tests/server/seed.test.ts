@@ -27,6 +27,13 @@ describe('demo seed', () => {
     expect(now.getTime() - Math.max(...times)).toBeLessThan(30 * 60_000);
   });
 
+  it("plans the demo's batches from their lot's assay fit where the lot has one, as the app's own batches do", () => {
+    const { running } = seeded(new Date('2027-03-14T16:47:12Z'));
+    // The running glucose batch's lot CGA-2605-11 has a demo QC assay; its program says so in words.
+    expect(running[0]!.program.evidence!.source).toBe('fit');
+    expect(running[0]!.program.evidence!.text).toMatch(/^assay fit of /);
+  });
+
   it('keeps the fixed dates the tests rely on when no time is given', () => {
     expect(seeded().running[0]!.startedAt).toBe('2026-12-01T05:00:00.000Z');
   });
