@@ -86,7 +86,7 @@ describe('batches on the floor', () => {
     await expect.poll(() => summary.textContent(), { timeout: 10_000 }).toBe('1 of 1 not yet closed');
     expect(await page.getByTestId('deviation-corrective').textContent()).toMatch(/Suggested for the rest of the batch: hold \d+\.\d °C/);
     await log(0, '37.2', /14\.8 °C from the last reading of 52\.0 °C/);
-    expect(await page.getByTestId('readings-explained').textContent()).toContain('The last reading, 37.2 °C, counts for no time until the next one is logged.');
+    await expect.poll(() => page.getByTestId('readings-explained').textContent(), { timeout: 10_000 }).toContain('The last reading, 37.2 °C, counts for no time until the next one is logged.');
     await expect.poll(() => page.getByTestId('readings-table').textContent()).toContain('37.2');
     const after = await figure(page, 'figure-forecast');
     expect(after).toBeLessThan(before);

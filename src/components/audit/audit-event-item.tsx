@@ -17,7 +17,7 @@ const RECORDED: Column<AuditChange>[] = [COLUMNS[0]!, { key: 'after', label: 'Re
 export function AuditEventItem({ e }: { e: AuditEvent }) {
   const c = useColors();
   const site = useSiteFormat();
-  const changes = auditChanges(e, site.currency);
+  const changes = auditChanges(e, site);
   return (
     <View style={[styles.item, { borderColor: c.border, backgroundColor: c.surface }]} testID="audit-event">
       <Text weight="semibold" style={styles.wrap}>

@@ -55,9 +55,14 @@ export function auditSentence(e: Pick<AuditEvent, 'actor' | 'action' | 'entity' 
 
 export type AuditChange = { field: string; before: string; after: string };
 
-// A computed figure reads to four decimals (41.6659), an id or a count as it is; the CSV keeps the full value.
-const show = (v: unknown): string =>
+// A computed figure reads to four decimals (41.6659), an id or a count as it is, an instant on the site's clock
+// with its zone (inside a nested record too); the CSV keeps the full value.
+const ISO_INSTANT = /\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}(?:\.\d+)?Z/g;
+const raw = (v: unknown): string =>
   v === undefined || v === null ? '–' : typeof v === 'number' && !Number.isInteger(v) ? String(Number(v.toFixed(4))) : typeof v === 'object' ? JSON.stringify(v) : String(v);
+
+/** How the site writes what a person reads: its currency and its clock. */
+export type AuditSite = { currency: string; stamp: (iso: string) => string };
 const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 
 // `setpointC` -> `setpoint (°C)`, `releasedPlanId` -> `released plan id`: the unit suffixes the records use;
@@ -66,7 +71,9 @@ const fieldName = (k: string, currency: string) =>
   words(k.replace(/PricePerKg$/, ` price (${currency}/kg)`).replace(/CostPerDegCHour$/, ` cost (${currency} per °C·h)`).replace(/GPerL$/, ' (g/L)').replace(/(?<=[a-z])C$/, ' (°C)').replace(/(?<=[a-z])H$/, ' (h)').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`));
 
 /** What an event changed, field by field: only the fields whose values differ, old -> new. */
-export function auditChanges(e: Pick<AuditEvent, 'oldValue' | 'newValue'>, currency: string): AuditChange[] {
+export function auditChanges(e: Pick<AuditEvent, 'oldValue' | 'newValue'>, site: AuditSite): AuditChange[] {
+  const { currency } = site;
+  const show = (v: unknown) => raw(v).replace(ISO_INSTANT, (iso) => site.stamp(iso));
   const { oldValue: a, newValue: b } = e;
   if (a == null && b == null) return [];
   if (!isRecord(a) && !isRecord(b)) return show(a) === show(b) ? [] : [{ field: 'value', before: show(a), after: show(b) }];
