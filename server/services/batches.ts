@@ -6,8 +6,8 @@ import {
   forecastDeviation,
   isTimeZone,
   plannedAt,
+  deviationRun,
   readingDeviations,
-  runDeviations,
   sampleIndices,
   type DeviationDraft,
   type ReadingRules,
@@ -591,16 +591,17 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
       }
     }
     await nextTurn();
-    problems.sort((a, b2) => a.line - b2.line);
-    accepted.sort((a, b2) => a.ms - b2.ms);
+    // Rows are checked in file order: sorted already unless the file went back in time.
+    if (problems.some((p, i) => i > 0 && p.line < problems[i - 1]!.line)) problems.sort((a, b2) => a.line - b2.line);
+    if (outOfOrder) accepted.sort((a, b2) => a.ms - b2.ms);
     await nextTurn();
     const settings = batchSettingsOf(db, u.siteId);
-    const stored = pointsOf(db, b);
-    const drafts = runDeviations(
-      rulesOf(b.program, settings),
-      stored,
-      accepted.map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })),
-    );
+    const run = deviationRun(rulesOf(b.program, settings), pointsOf(db, b));
+    const drafts: ReturnType<typeof run> = [];
+    for (let i = 0; i < accepted.length; i += ROWS_PER_TURN) {
+      if (i > 0) await nextTurn();
+      for (const d of run(accepted.slice(i, i + ROWS_PER_TURN).map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })))) drafts.push(d);
+    }
     // Stored in parts, one transaction each, so no other request waits behind the whole file. The audit event
     // goes with the first part and states what the import stores; a part's deviations go with its readings.
     // Should the server stop between parts, those stored stay and the same file uploaded again stores the rest.

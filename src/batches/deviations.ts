@@ -52,19 +52,28 @@ export function readingDeviations(rules: ReadingRules, prev: Point | null, p: Po
   return out;
 }
 
-/** Deviations of a run of new readings merged into the stored ones (both sorted by h). */
-export function runDeviations(rules: ReadingRules, stored: readonly Point[], added: readonly Point[]): { index: number; draft: DeviationDraft }[] {
-  const out: { index: number; draft: DeviationDraft }[] = [];
+/**
+ * The deviation rules over new readings merged into the stored ones (both sorted by h), fed a piece at a time:
+ * each call takes the next readings of the run and answers their deviations, indexed in the whole run.
+ */
+export function deviationRun(rules: ReadingRules, stored: readonly Point[]): (added: readonly Point[]) => { index: number; draft: DeviationDraft }[] {
   let i = 0;
+  let n = 0;
   let prev: Point | null = null;
-  for (let j = 0; j < added.length; j++) {
-    const p = added[j];
-    while (i < stored.length && stored[i].h <= p.h) prev = stored[i++];
-    for (const draft of readingDeviations(rules, prev, p)) out.push({ index: j, draft });
-    prev = p;
-  }
-  return out;
+  return (added) => {
+    const out: { index: number; draft: DeviationDraft }[] = [];
+    for (const p of added) {
+      while (i < stored.length && stored[i].h <= p.h) prev = stored[i++];
+      for (const draft of readingDeviations(rules, prev, p)) out.push({ index: n, draft });
+      prev = p;
+      n++;
+    }
+    return out;
+  };
 }
+
+/** Deviations of a run of new readings merged into the stored ones (both sorted by h). */
+export const runDeviations = (rules: ReadingRules, stored: readonly Point[], added: readonly Point[]) => deviationRun(rules, stored)(added);
 
 /** A forecast below the plan's P10 raises one deviation until it is closed; plans without a P10 never do. */
 export function forecastDeviation(p10GPerL: number | null, forecastGPerL: number, hasActive: boolean, h: number): DeviationDraft | null {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { forecastDeviation, readingDeviations, runDeviations, signalLostDeviation, type ReadingRules } from '../../src/batches';
+import { deviationRun, forecastDeviation, readingDeviations, runDeviations, signalLostDeviation, type ReadingRules } from '../../src/batches';
 
 // Plan: 50 degC flat; band +-1.5 degC and a 30 min gap limit (the site defaults); vessel maximum 60 degC.
 const rules: ReadingRules = { toleranceC: 1.5, gapLimitMin: 30, vesselMaxC: 60, plannedAt: () => 50 };
@@ -35,6 +35,19 @@ describe('readingDeviations', () => {
 
   it('uses the site tolerance', () => {
     expect(readingDeviations({ ...rules, toleranceC: 0.5 }, { h: 1, c: 50 }, { h: 1.1, c: 50.7 }).map((d) => d.kind)).toEqual(['band']);
+  });
+});
+
+describe('deviationRun', () => {
+  it('fed a piece at a time answers what one run over the whole gives, indexed in the whole run', () => {
+    // Invented readings around the 50 degC plan with excursions and a gap, merged into stored ones.
+    const stored = [0.1, 0.6, 1.1, 3.4].map((h) => ({ h, c: 50 }));
+    const added = Array.from({ length: 60 }, (_, k) => ({ h: 0.2 + k * 0.1 + (k > 40 ? 1 : 0), c: k % 7 === 3 ? 53 : k % 11 === 5 ? 61 : 50 }));
+    const whole = runDeviations(rules, stored, added);
+    expect(whole.length).toBeGreaterThan(5);
+    const run = deviationRun(rules, stored);
+    const pieces = [added.slice(0, 7), added.slice(7, 30), [], added.slice(30)].flatMap((piece) => run(piece));
+    expect(pieces).toEqual(whole);
   });
 });
 
