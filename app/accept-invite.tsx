@@ -1,6 +1,6 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { useState } from 'react';
-import { KeyboardAvoidingView, ScrollView, StyleSheet, View } from 'react-native';
+import { MailLinkPage } from '@/components/shell/mail-link-page';
 import { Button } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
@@ -9,7 +9,6 @@ import { Text } from '@/components/ui/text';
 import { MIN_PASSWORD_LENGTH } from '@/contracts/rules';
 import { ROLE_LABELS } from '@/contracts/rules';
 import { useAcceptInvite, useInvitePreview } from '@/hooks/use-accept-invite';
-import { space, useColors } from '@/theme';
 
 function AcceptForm({ token }: { token: string }) {
   const preview = useInvitePreview(token);
@@ -58,24 +57,9 @@ function AcceptForm({ token }: { token: string }) {
 
 /** The page an invite mail links to: the invited person chooses a name and password, then signs in. */
 export default function AcceptInvite() {
-  const c = useColors();
-  const { token } = useLocalSearchParams<{ token?: string }>();
   return (
-    <KeyboardAvoidingView style={[styles.fill, { backgroundColor: c.navBackground }]} behavior="padding">
-      <ScrollView contentContainerStyle={styles.center} keyboardShouldPersistTaps="handled">
-        <View style={styles.column} testID="screen-accept-invite">
-          <Text variant="figure" style={{ color: c.navActive }} accessibilityRole="header">
-            Yieldpoint
-          </Text>
-          {token ? <AcceptForm token={token} /> : <ErrorState error={new Error('This invite link is not complete. Open the link from the mail again.')} />}
-        </View>
-      </ScrollView>
-    </KeyboardAvoidingView>
+    <MailLinkPage testID="screen-accept-invite" linkName="invite">
+      {(token) => <AcceptForm token={token} />}
+    </MailLinkPage>
   );
 }
-
-const styles = StyleSheet.create({
-  fill: { flex: 1 },
-  center: { flexGrow: 1, justifyContent: 'center', padding: space.lg },
-  column: { width: '100%', maxWidth: 420, alignSelf: 'center', gap: space.xl },
-});

@@ -1,6 +1,6 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { useState } from 'react';
-import { KeyboardAvoidingView, ScrollView, StyleSheet, View } from 'react-native';
+import { MailLinkPage } from '@/components/shell/mail-link-page';
 import { Button } from '@/components/ui/button';
 import { Card } from '@/components/ui/card';
 import { Field } from '@/components/ui/field';
@@ -8,7 +8,6 @@ import { ErrorState, Loader } from '@/components/ui/states';
 import { Text } from '@/components/ui/text';
 import { MIN_PASSWORD_LENGTH } from '@/contracts/rules';
 import { useResetPassword, useResetPreview } from '@/hooks/use-password-reset';
-import { space, useColors } from '@/theme';
 
 function ResetForm({ token }: { token: string }) {
   const preview = useResetPreview(token);
@@ -45,24 +44,9 @@ function ResetForm({ token }: { token: string }) {
 
 /** The page a reset mail links to: the person chooses a new password, then signs in (their other sessions ended). */
 export default function ResetPassword() {
-  const c = useColors();
-  const { token } = useLocalSearchParams<{ token?: string }>();
   return (
-    <KeyboardAvoidingView style={[styles.fill, { backgroundColor: c.navBackground }]} behavior="padding">
-      <ScrollView contentContainerStyle={styles.center} keyboardShouldPersistTaps="handled">
-        <View style={styles.column} testID="screen-reset-password">
-          <Text variant="figure" style={{ color: c.navActive }} accessibilityRole="header">
-            Yieldpoint
-          </Text>
-          {token ? <ResetForm token={token} /> : <ErrorState error={new Error('This reset link is not complete. Open the link from the mail again.')} />}
-        </View>
-      </ScrollView>
-    </KeyboardAvoidingView>
+    <MailLinkPage testID="screen-reset-password" linkName="reset">
+      {(token) => <ResetForm token={token} />}
+    </MailLinkPage>
   );
 }
-
-const styles = StyleSheet.create({
-  fill: { flex: 1 },
-  center: { flexGrow: 1, justifyContent: 'center', padding: space.lg },
-  column: { width: '100%', maxWidth: 420, alignSelf: 'center', gap: space.xl },
-});

@@ -67,26 +67,20 @@ const pointsOfBatch = preparedPer((db) =>
 );
 export const readingPoints = (db: Db, batchId: number) => pointsOfBatch(db).all({ batchId });
 
-// The same in columns, rows as arrays (no per-row objects): the cache of long records reads these.
-const pointColumnsOfBatch = preparedPer((db) =>
+// The same in columns, rows as arrays (no per-row objects): the cache of long records reads these, all of a
+// batch's or those added after a given reading.
+const pointColumns = preparedPer((db, afterOnly: boolean) =>
   db
     .select({ id: batchReadings.id, takenAt: batchReadings.takenAt, c: batchReadings.c })
     .from(batchReadings)
-    .where(eq(batchReadings.batchId, sql.placeholder('batchId')))
+    .where(afterOnly ? and(eq(batchReadings.batchId, sql.placeholder('batchId')), gt(batchReadings.id, sql.placeholder('afterId'))) : eq(batchReadings.batchId, sql.placeholder('batchId')))
     .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
     .prepare(),
 );
-export const readingPointRows = (db: Db, batchId: number) => pointColumnsOfBatch(db).values({ batchId }) as [number, string, number][];
-const pointColumnsAfter = preparedPer((db) =>
-  db
-    .select({ id: batchReadings.id, takenAt: batchReadings.takenAt, c: batchReadings.c })
-    .from(batchReadings)
-    .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), gt(batchReadings.id, sql.placeholder('afterId'))))
-    .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
-    .prepare(),
-);
+export type PointRow = [id: number, takenAt: string, c: number];
+export const readingPointRows = (db: Db, batchId: number) => pointColumns(db, false).values({ batchId }) as PointRow[];
 /** The readings added after the one with id `afterId`, as readingPointRows. */
-export const readingPointRowsAfter = (db: Db, batchId: number, afterId: number) => pointColumnsAfter(db).values({ batchId, afterId }) as [number, string, number][];
+export const readingPointRowsAfter = (db: Db, batchId: number, afterId: number) => pointColumns(db, true).values({ batchId, afterId }) as PointRow[];
 
 // Readings are only ever added, and ids only grow: the newest id is the version of a batch's record.
 const newestReading = preparedPer((db) =>
@@ -110,8 +104,12 @@ export const readingsByIds = (db: Db, ids: readonly number[]) =>
         .all()
     : [];
 
-/** Readings in time order after `after` (the last of the previous page), `limit` at a time: the report. */
-export function readingsAfter(db: Db, batchId: number, limit: number, after: { takenAt: string; id: number } | null) {
+type Cursor = { takenAt: string; id: number };
+
+/** Whole readings past `cursor` in time order ('asc', the report) or newest first ('desc', the table), `limit` at a time. */
+function readingsPast(db: Db, batchId: number, limit: number, cursor: Cursor | null, order: 'asc' | 'desc') {
+  const past = order === 'asc' ? gt : lt;
+  const by = order === 'asc' ? asc : desc;
   return db
     .select({ reading: batchReadings, enteredBy: users.name })
     .from(batchReadings)
@@ -119,31 +117,22 @@ export function readingsAfter(db: Db, batchId: number, limit: number, after: { t
     .where(
       and(
         eq(batchReadings.batchId, batchId),
-        after ? or(gt(batchReadings.takenAt, after.takenAt), and(eq(batchReadings.takenAt, after.takenAt), gt(batchReadings.id, after.id))) : undefined,
+        cursor ? or(past(batchReadings.takenAt, cursor.takenAt), and(eq(batchReadings.takenAt, cursor.takenAt), past(batchReadings.id, cursor.id))) : undefined,
       ),
     )
-    .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
+    .orderBy(by(batchReadings.takenAt), by(batchReadings.id))
     .limit(limit)
     .all();
 }
 
-/** A page of a batch's readings, newest first, older than the reading `beforeId` when given. */
+/** Readings in time order after `after` (the last of the previous page), `limit` at a time: the report. */
+export const readingsAfter = (db: Db, batchId: number, limit: number, after: Cursor | null) => readingsPast(db, batchId, limit, after, 'asc');
+
+/** A page of a batch's readings, newest first, older than the reading `beforeId` when given; null for no such reading. */
 export function readingsPage(db: Db, batchId: number, limit: number, beforeId: number | null) {
-  const before = beforeId === null ? undefined : db.select({ takenAt: batchReadings.takenAt }).from(batchReadings).where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.id, beforeId))).get();
-  if (beforeId !== null && !before) return null;
-  return db
-    .select({ reading: batchReadings, enteredBy: users.name })
-    .from(batchReadings)
-    .innerJoin(users, eq(batchReadings.enteredBy, users.id))
-    .where(
-      and(
-        eq(batchReadings.batchId, batchId),
-        before ? or(lt(batchReadings.takenAt, before.takenAt), and(eq(batchReadings.takenAt, before.takenAt), lt(batchReadings.id, beforeId!))) : undefined,
-      ),
-    )
-    .orderBy(desc(batchReadings.takenAt), desc(batchReadings.id))
-    .limit(limit)
-    .all();
+  if (beforeId === null) return readingsPast(db, batchId, limit, null, 'desc');
+  const before = db.select({ takenAt: batchReadings.takenAt }).from(batchReadings).where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.id, beforeId))).get();
+  return before ? readingsPast(db, batchId, limit, { takenAt: before.takenAt, id: beforeId }, 'desc') : null;
 }
 
 // Times are stored as toISOString() text, so text order is time order; among equal times the later id is later.

@@ -9,7 +9,7 @@ import type { Db } from '../../db/client';
 import { batchHours, batchStatus, statusAtHour } from '../../src/batches';
 import type { BatchProgram, BatchStatus } from '../../src/contracts/batches';
 import type { Reading as Point } from '../../src/model';
-import { newestReadingId, readingPointRows, readingPointRowsAfter } from '../repositories/batches';
+import { newestReadingId, readingPointRows, readingPointRowsAfter, type PointRow } from '../repositories/batches';
 
 export type BatchRecord = {
   version: number;
@@ -27,7 +27,7 @@ const kept = new WeakMap<Database.Database, Map<number, BatchRecord>>();
 
 type BatchRef = { id: number; startedAt: string };
 
-type Row = [id: number, takenAt: string, c: number];
+type Row = PointRow;
 
 function fromRows(rows: readonly Row[], startedAt: string): { ids: Int32Array; points: Point[]; at: string[] } {
   const ids = new Int32Array(rows.length);
