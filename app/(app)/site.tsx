@@ -53,18 +53,25 @@ function SiteBody() {
   const { session } = useSession();
   const { isWide } = useBreakpoint();
   if (site.error) return <ErrorState error={site.error} onRetry={site.retry} />;
-  if (!site.data) return <Loader rows={2} label="Loading the site" />;
-  const { counts } = site.data;
+  // The frame is drawn before the site has loaded (and so in the page's HTML snapshot): the figures hold a dash
+  // until their counts arrive, so nothing moves and the largest text is on screen with the first paint.
+  // Only admins pass the gate; the snapshot, which knows no session, draws the admin's frame.
+  const canChange = !session || session.user.role === 'admin';
+  const counts = site.data?.counts;
+  const shown = (n: number | undefined) => n ?? '–';
   return (
     <>
+      <Text variant="small" tone="muted" numberOfLines={2} testID="site-zone">
+        {site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'Loading the site’s name and time zone…'}
+      </Text>
       <View style={[styles.figures, isWide && styles.figuresWide]}>
-        <Figure label="active users" value={counts.activeUsers} testID="site-active-users" />
-        <Figure label="vessels" value={counts.vessels} testID="site-vessels" />
-        <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
-        <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
+        <Figure label="active users" value={shown(counts?.activeUsers)} testID="site-active-users" />
+        <Figure label="vessels" value={shown(counts?.vessels)} testID="site-vessels" />
+        <Figure label="enzymes" value={shown(counts?.enzymes)} testID="site-enzymes" />
+        <Figure label="lots awaiting a decision" value={shown(counts?.quarantinedLots)} testID="site-quarantined" />
       </View>
-      <CurrencyCard key={site.data.currency} currency={site.data.currency} canChange={session?.user.role === 'admin'} />
-      <MeasurementSdCard canChange={session?.user.role === 'admin'} />
+      <CurrencyCard key={site.data?.currency ?? ''} currency={site.data?.currency} canChange={canChange} />
+      <MeasurementSdCard canChange={canChange} />
       <LinkAdmin />
       <Columns gap={space.md}>
         <>
@@ -85,11 +92,10 @@ function SiteBody() {
 }
 
 function SiteScreenContent() {
-  const site = useSite();
   return (
     <Screen
       title="Site"
-      subtitle={site.data ? `${site.data.name} · times in ${site.data.timeZone}` : 'People, roles and outgoing mail.'}
+      subtitle="People, roles, settings and mail."
       testID="screen-site"
       actions={<Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} />}
     >

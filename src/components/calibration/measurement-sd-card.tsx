@@ -3,7 +3,7 @@ import { StyleSheet, View } from 'react-native';
 import { fmt, toNumber } from '../../format';
 import { useCalibrationSettings, useUpdateCalibrationSettings } from '../../hooks/use-calibration-settings';
 import { space } from '../../theme';
-import { Button, Card, ErrorState, Field, Loader, Text } from '../ui';
+import { Button, Card, ErrorState, Field, Text } from '../ui';
 
 /** The site's measurement spread for calibration in words; the admin changes it here. */
 export function MeasurementSdCard({ canChange }: { canChange: boolean }) {
@@ -11,7 +11,7 @@ export function MeasurementSdCard({ canChange }: { canChange: boolean }) {
   const update = useUpdateCalibrationSettings();
   const [draft, setDraft] = useState<string | null>(null);
   if (error) return <ErrorState error={error} onRetry={retry} />;
-  if (!data) return <Loader rows={1} label="Loading the calibration setting" />;
+  // Drawn before the setting has loaded (and so in the page's HTML snapshot), with a dash for the value.
   const save = async () => {
     if (draft === null) return;
     if (await update.submit({ measurementRelSd: toNumber(draft) / 100 })) setDraft(null);
@@ -21,8 +21,8 @@ export function MeasurementSdCard({ canChange }: { canChange: boolean }) {
       <Text variant="title" accessibilityRole="header">
         Calibration
       </Text>
-      <Text testID="measurement-sd-sentence">
-        A lab result of a closed batch counts in calibration with a standard deviation of {fmt(data.measurementRelSd * 100)} % of the measured product.
+      <Text testID={data ? 'measurement-sd-sentence' : undefined}>
+        A lab result of a closed batch counts in calibration with a standard deviation of {data ? fmt(data.measurementRelSd * 100) : '–'} % of the measured product.
       </Text>
       <Text variant="small" tone="muted">
         Set it from the lab’s own replicate measurements; new proposals use it, earlier ones state the value they used.
@@ -46,7 +46,7 @@ export function MeasurementSdCard({ canChange }: { canChange: boolean }) {
         </>
       ) : canChange ? (
         <View style={styles.actions}>
-          <Button label="Change the measurement spread" variant="secondary" onPress={() => setDraft(String(Number((data.measurementRelSd * 100).toFixed(2))))} testID="measurement-sd-edit" />
+          <Button label="Change the measurement spread" variant="secondary" disabled={!data} onPress={() => data && setDraft(String(Number((data.measurementRelSd * 100).toFixed(2))))} testID="measurement-sd-edit" />
         </View>
       ) : null}
     </Card>

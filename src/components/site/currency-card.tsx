@@ -5,13 +5,13 @@ import { space } from '../../theme';
 import { Button, Card, Field, Text } from '../ui';
 
 /** The site's currency: every price, cost and profit on every screen is shown in it. Admins change it. */
-export function CurrencyCard({ currency, canChange }: { currency: string; canChange: boolean }) {
-  const [code, setCode] = useState(currency);
+export function CurrencyCard({ currency, canChange }: { currency: string | undefined; canChange: boolean }) {
+  const [code, setCode] = useState(currency ?? '');
   const { submit, error, isBusy } = useUpdateSite();
   const [saved, setSaved] = useState(false);
   return (
     <Card testID="site-currency">
-      <Text weight="semibold">Currency: {currency}</Text>
+      <Text weight="semibold">Currency: {currency ?? '–'}</Text>
       <Text variant="small" tone="muted">
         Prices, heating cost and profit are shown in it everywhere. Changing it converts nothing: enter recipe prices in the new currency.
       </Text>
@@ -35,7 +35,7 @@ export function CurrencyCard({ currency, canChange }: { currency: string; canCha
             label="Save currency"
             variant="secondary"
             isBusy={isBusy}
-            disabled={code.trim().toUpperCase() === currency}
+            disabled={!currency || code.trim().toUpperCase() === currency}
             onPress={async () => setSaved(!!(await submit({ currency: code })))}
             testID="site-currency-save"
           />
