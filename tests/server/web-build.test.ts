@@ -3,8 +3,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
-import { BUNDLE_LOADER, BUNDLE_LOADER_CSP, BUNDLE_PARTS_ID, cutBundle, renderOverSnapshots, splitBundle, warmOrder } from '../../server/web-build';
-import { WARM_ORDER_ID } from '../../src/web/warm-up';
+import { BUNDLE_LOADER, BUNDLE_LOADER_CSP, cutBundle, renderOverSnapshots, splitBundle, warmOrder } from '../../server/web-build/rewrite';
+import { BUNDLE_PARTS_ID, WARM_ORDER_ID } from '../../src/web/page';
 
 // An export in the shape Metro writes it: one `__d(factory, id, [dependency ids])` per module, then the entry.
 function fakeExport(modules: [number, number[]][], html: string): string {

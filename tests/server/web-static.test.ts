@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { precompress } from '../../server/web-build';
+import { precompress } from '../../server/web-build/build';
 import { pageWithSession } from '../../server/web-app';
 import { PAGE_SESSION_ID } from '../../src/contracts/rules';
 import { startTestApp, type TestApp } from './harness';
