@@ -8,7 +8,7 @@ import { BUNDLE_LOADER, BUNDLE_PARTS, renderOverSnapshots, splitBundle, warmOrde
 import { filesUnder, inlineScriptSources } from '../../server/web-pages';
 import { BUNDLE_PARTS_ID, WARM_ORDER_ID } from '../../src/web/page';
 import { ROOT, startServer } from '../support/server';
-import { appRendered, launch, PHONE, watchedPage } from './browser';
+import { acknowledgeCautionsIfShown, appRendered, launch, PHONE, signIn, watchedPage } from './browser';
 
 // The build steps on Expo's real export (the one global-setup made or found in the cache, never a second one): each
 // step must change every page and the bundle as it was written to, so an Expo or Metro upgrade that moves one of
@@ -99,7 +99,12 @@ describe('WEB_PIPELINE=plain', () => {
     // The policy allows Expo's own inline scripts by their hashes, and no other.
     expect(response!.headers()['content-security-policy']).toContain(`script-src 'self' ${inlineScriptSources(dir).join(' ')};`);
     await appRendered(page);
-    await page.getByTestId('sign-in-email').waitFor();
+    await signIn(page, server.baseURL, 'operator');
+    await acknowledgeCautionsIfShown(page, 'screen-batches');
+    // A signed-in page opened afresh: the snapshot has no session, the app's first render has one.
+    await page.reload();
+    await appRendered(page);
+    await page.getByTestId('screen-batches').waitFor();
     expect(await page.evaluate('window.cspViolations')).toEqual([]);
     expect(errors).toEqual([]);
     await context.close();
