@@ -78,6 +78,9 @@ export async function finishExport(root: string, from: string, to: string, pipel
   fs.rmSync(to, { recursive: true, force: true });
   fs.cpSync(from, to, { recursive: true });
   try {
+    // The server writes the session each page is served for before its `</head>` (server/web-app.ts).
+    const withoutHead = filesUnder(to).filter((f) => f.endsWith('.html') && fs.readFileSync(path.join(to, f), 'utf8').split('</head>').length !== 2);
+    if (withoutHead.length) throw new Error(`Web build: ${withoutHead.length} pages have no single </head> for the session (${withoutHead.slice(0, 3).join(', ')}).`);
     if (pipeline === 'finished') {
       renderOverSnapshots(to);
       splitBundle(to);
