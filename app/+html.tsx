@@ -1,7 +1,7 @@
 import { ScrollViewStyleReset } from 'expo-router/html';
 import type { PropsWithChildren } from 'react';
 import { light } from '@/theme/colors';
-import { SNAPSHOT_CSS } from '@/web/snapshot';
+import { SNAPSHOT_CSS } from '@/web/page';
 
 /** The HTML around every page Expo Router renders at build time (never part of the app's bundle). */
 export default function Root({ children }: PropsWithChildren) {
@@ -12,7 +12,7 @@ export default function Root({ children }: PropsWithChildren) {
         <meta httpEquiv="X-UA-Compatible" content="IE=edge" />
         <meta name="viewport" content="width=device-width, initial-scale=1, shrink-to-fit=no" />
         <meta name="theme-color" content={light.primary} />
-        {/* Installable: the manifest and icons are written by the build (server/web-offline.ts). */}
+        {/* Installable: the manifest and icons are written by the build (server/web-build/offline.ts). */}
         <link rel="manifest" href="/manifest.webmanifest" />
         <link rel="apple-touch-icon" href="/icons/icon-192.png" />
         <title>Yieldpoint</title>

@@ -8,8 +8,7 @@ import path from 'node:path';
 import type { Db } from '../db/client';
 import type { Clock } from './clock';
 import type { ApiMount } from './route-table';
-import { serveWeb } from './web-app';
-import { BUNDLE_LOADER_CSP } from './web-build';
+import { openWebExport, serveWeb } from './web-app';
 import { auditDenials } from './middleware/audit-denials';
 import { authenticate } from './middleware/auth';
 import { fairTurns } from './middleware/fair-turns';
@@ -81,13 +80,15 @@ export function createApp(deps: AppDeps): Express {
   app.set('etag', false);
   app.set('trust proxy', 'loopback');
   app.use(fairTurns(REQUESTS_PER_TURN));
+  const web = deps.webDir ? openWebExport(deps.webDir) : null;
   app.use(
     helmet({
       contentSecurityPolicy: {
         directives: {
           'default-src': ["'self'"],
-          // The bundle's files, and the pages' one inline script that loads them (server/web-build.ts).
-          'script-src': ["'self'", BUNDLE_LOADER_CSP],
+          // The bundle's files, and the export's own inline scripts by their hashes (the bundle loader of
+          // server/web-build/rewrite.ts; Expo's own in the plain export).
+          'script-src': ["'self'", ...(web ? [web.scriptSources] : [])],
           // react-native-web writes its styles into <style> elements at run time.
           'style-src': ["'self'", "'unsafe-inline'"],
           'img-src': ["'self'", 'data:', 'blob:'],
@@ -155,7 +156,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(apiNotFound);
   app.use('/api', api);
 
-  if (deps.webDir) serveWeb(app, deps.webDir, { db: deps.db, clock: deps.clock, auth: deps.auth });
+  if (web) serveWeb(app, web, { db: deps.db, clock: deps.clock, auth: deps.auth });
   app.use(errorHandler);
   return app;
 }

@@ -14,6 +14,8 @@ const Env = z.object({
   AUDIT_CHECKPOINT_MINUTES: z.coerce.number().positive().default(15),
   WEB_DIR: z.string().default('dist'),
   SKIP_WEB_BUILD: z.enum(['0', '1']).default('0'),
+  // plain: serve Expo's export without the build's rewrites (server/web-build/build.ts), the off switch after an upgrade.
+  WEB_PIPELINE: z.enum(['finished', 'plain']).default('finished'),
   SEED_DEMO: z.enum(['0', '1']).default('1'),
   LOG_REQUESTS: z.enum(['0', '1']).default('0'),
   API_PORT: z.coerce.number().int().default(8080),
@@ -55,6 +57,7 @@ export type ServerEnv = {
   auditCheckpointMinutes: number;
   webDir: string;
   skipWebBuild: boolean;
+  webPipeline: 'finished' | 'plain';
   seedDemo: boolean;
   apiPort: number;
   publicUrl: string | null;
@@ -82,6 +85,7 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): ServerEnv {
     auditCheckpointMinutes: e.AUDIT_CHECKPOINT_MINUTES,
     webDir: e.WEB_DIR,
     skipWebBuild: e.SKIP_WEB_BUILD === '1',
+    webPipeline: e.WEB_PIPELINE,
     seedDemo: e.SEED_DEMO === '1',
     apiPort: e.API_PORT,
     publicUrl: e.PUBLIC_URL ?? null,

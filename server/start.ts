@@ -1,3 +1,4 @@
+import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { migrateDb, openDb } from '../db/client';
 import { DEMO_USERS, isEmpty, seedDemo } from '../db/seed';
@@ -8,7 +9,6 @@ import { startIntegrations } from './integrations';
 import { sealAudit } from './services/audit-verify';
 import { proposeDemoChange } from './services/demo-proposal';
 import { createMailSender } from './services/mail';
-import { ensureWebBuild } from './web-build';
 import { createFileStore } from './file-store';
 import { installationSecret } from './installation-secrets';
 import { launchPlant } from './opcua/launch-plant';
@@ -23,7 +23,11 @@ const sessionSecret = (configured: Uint8Array | null, databaseFile: string): Uin
 async function main() {
   const env = readEnv();
   const dataDir = path.dirname(path.resolve(env.databaseFile));
-  if (!env.skipWebBuild) await ensureWebBuild(root, env.webDir);
+  // In a process of its own, so the server never loads the build's code (Workbox, the rewrites of Expo's output).
+  if (!env.skipWebBuild) {
+    const build = spawnSync(process.execPath, ['--import', 'tsx', path.join(root, 'server/web-build/build.ts')], { cwd: root, stdio: 'inherit' });
+    if (build.status !== 0) throw new Error('The web build failed (see above).');
+  }
   const db = openDb(env.databaseFile);
   migrateDb(db);
   const seeded = env.seedDemo && isEmpty(db) ? seedDemo(db, { now: systemClock.now() }) : null;

@@ -1,6 +1,9 @@
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { filesUnder } from './web-build';
+
+// Runtime: the API process reads the finished export with this module and `web-app.ts` only; the build steps that
+// make the export live in `server/web-build/` and are never loaded by the server.
 
 /**
  * The pages of a static export (`web.output: "static"`): Expo Router writes one HTML file per route, named like
@@ -33,6 +36,10 @@ export function routeOf(relFile: string): PageRoute {
   return { file: relFile, pattern: new RegExp(`^${body || '/'}${body ? '/?' : ''}$`), dynamic, catchAll };
 }
 
+/** Every file under `dir`, as paths relative to it. */
+export const filesUnder = (dir: string): string[] =>
+  fs.readdirSync(dir, { recursive: true, withFileTypes: true }).filter((e) => e.isFile()).map((e) => path.relative(dir, path.join(e.parentPath, e.name)));
+
 /** Every routable page of the export, the most specific first. Group copies, the sitemap and +-files stay out. */
 export function pageRoutes(root: string): PageRoute[] {
   return filesUnder(root)
@@ -49,4 +56,22 @@ export function pageFor(routes: PageRoute[], root: string, urlPath: string): { f
   const notFound = path.join(root, '+not-found.html');
   if (fs.existsSync(notFound)) return { file: notFound, notFound: true };
   return null;
+}
+
+// An inline script the browser runs: no src, and no type other than JavaScript (a JSON data block is never run).
+const INLINE_SCRIPT = /<script(?![^>]*\ssrc=)(?![^>]*\stype="(?!module"|text\/javascript")[^"]*")[^>]*>([\s\S]*?)<\/script>/g;
+
+/**
+ * The content security policy's sources for the inline scripts of the export's pages, by their SHA-256: whatever the
+ * build wrote (the bundle loader of `server/web-build/rewrite.ts`, or Expo's own scripts in the plain export) is
+ * allowed, and nothing else.
+ */
+export function inlineScriptSources(root: string): string[] {
+  const hashes = new Set<string>();
+  for (const rel of filesUnder(root).filter((f) => f.endsWith('.html'))) {
+    for (const m of fs.readFileSync(path.join(root, rel), 'utf8').matchAll(INLINE_SCRIPT)) {
+      if (m[1]) hashes.add(`'sha256-${createHash('sha256').update(m[1]).digest('base64')}'`);
+    }
+  }
+  return [...hashes].sort();
 }

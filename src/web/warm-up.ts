@@ -8,10 +8,10 @@
  * runs one module (in Metro's numbering, the first module that imports `react-native` runs some two hundred in
  * one task).
  */
+import { WARM_ORDER_ID } from './page';
+
 type MetroRequire = ((id: number) => unknown) & { unguarded?: (id: number) => unknown };
 
-/** The id of the page's JSON data block with that order (written by the build, `server/web-build.ts`). */
-export const WARM_ORDER_ID = 'yieldpoint-warm-order';
 const SLICE_MS = 4;
 // Without the order (the development server), go up Metro's numbers until a run of unknown ones ends the bundle.
 const END_AFTER_UNKNOWN = 32;

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { BUNDLE_PARTS_ID } from '../../server/web-build';
+import { BUNDLE_PARTS_ID } from '../../src/web/page';
 import { ROOT } from '../support/server';
 
 // First-load JavaScript budget, read from the export the e2e server serves (global setup builds it).
@@ -19,7 +19,7 @@ describe('web bundle budget', () => {
   it(`keeps the entry bundle under ${ENTRY_BUDGET_KB} KB gzip`, () => {
     const dir = path.join(ROOT, 'dist/_expo/static/js/web');
     const html = fs.readFileSync(path.join(ROOT, 'dist/index.html'), 'utf8');
-    // The page loads the bundle's parts from its list (server/web-build.ts splitBundle).
+    // The page loads the bundle's parts from its list (splitBundle, server/web-build/rewrite.ts).
     const list = new RegExp(`<script id="${BUNDLE_PARTS_ID}" type="application/json">(.*?)</script>`).exec(html);
     const scripts = (JSON.parse(list![1]!) as string[]).map((url) => path.basename(url));
     expect(scripts.length).toBeGreaterThan(0);

@@ -1,6 +1,7 @@
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { BUNDLE_LOADER_CSP, BUNDLE_PARTS_ID } from '../../server/web-build';
+import { BUNDLE_LOADER_CSP } from '../../server/web-build/rewrite';
+import { BUNDLE_PARTS_ID } from '../../src/web/page';
 import { HOME, navItemsFor } from '../../src/components/shell/navigation';
 import { ROLES } from '../../src/contracts/roles';
 import { accessibilityViolations, acknowledgeCautionsIfShown, appRendered, launch, PHONE, screenshot, signIn, watchedPage, WIDE } from './browser';

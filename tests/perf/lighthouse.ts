@@ -4,7 +4,8 @@ import { execFileSync } from 'node:child_process';
 import path from 'node:path';
 import { median } from 'mathjs';
 import { DEMO_USERS } from '../../db/seed';
-import { ensureWebBuild } from '../../server/web-build';
+import { ensureWebBuild } from '../../server/web-build/build';
+import { readEnv } from '../../server/env';
 import { HOME } from '../../src/components/shell/navigation';
 import type { Role } from '../../src/contracts/roles';
 import { ROOT, sessionCookie, startServer } from '../support/server';
@@ -25,7 +26,7 @@ const BUDGET = { performance: 0.9, lcpMs: 2500, tbtMs: 200, cls: 0.1, accessibil
 type Row = { page: string; form: 'mobile' | 'desktop'; performance: number; lcpMs: number; tbtMs: number; tbtRangeMs: [number, number]; cls: number; accessibility: number; failing: string[] };
 
 async function main() {
-  await ensureWebBuild(ROOT, 'dist');
+  await ensureWebBuild(ROOT, 'dist', readEnv().webPipeline);
   const server = await startServer();
   const chrome = await chromeLauncher.launch({
     chromePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',

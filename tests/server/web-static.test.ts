@@ -1,10 +1,11 @@
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import http from 'node:http';
 import os from 'node:os';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { precompress } from '../../server/web-build';
+import { precompress } from '../../server/web-build/build';
 import { pageWithSession } from '../../server/web-app';
 import { PAGE_SESSION_ID } from '../../src/contracts/rules';
 import { startTestApp, type TestApp } from './harness';
@@ -100,6 +101,24 @@ describe('serving the exported web app', () => {
     expect(html).not.toContain('</script><script>');
     expect(html.match(/<script/g)).toHaveLength(1);
     expect(sessionBlock(html).user.name).toBe(user.name);
+  });
+
+  it("allows the export's own inline scripts by their hashes, read again when the export is rebuilt, and no data block", async () => {
+    const scriptSrc = async (urlPath: string) => /script-src ([^;]*)/.exec((await raw(t.base, urlPath)).headers['content-security-policy'] as string)![1]!.trim();
+    expect(await scriptSrc('/batches')).toBe("'self'");
+    const index = path.join(webDir, 'index.html');
+    const before = fs.readFileSync(index, 'utf8');
+    const loader = 'window.started=1';
+    fs.writeFileSync(index, before.replace('</head>', `<script id="data" type="application/json">{"a":1}</script><script>${loader}</script></head>`));
+    try {
+      const hash = `'sha256-${createHash('sha256').update(loader).digest('base64')}'`;
+      expect(await scriptSrc('/batches')).toBe(`'self' ${hash}`);
+      // An API answer keeps the sources last read (it runs no script).
+      expect(await scriptSrc('/api/no-such-thing')).toBe(`'self' ${hash}`);
+    } finally {
+      fs.writeFileSync(index, before);
+    }
+    expect(await scriptSrc('/batches')).toBe("'self'");
   });
 
   it('answers an unknown API path with JSON 404, not the page', async () => {

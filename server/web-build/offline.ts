@@ -1,9 +1,9 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { generateSW, type RuntimeCaching } from 'workbox-build';
-import { light } from '../src/theme/colors';
-import { CACHED_AT_HEADER, SERVICE_WORKER_URL, USER_CACHES } from '../src/web/offline';
-import { pageRoutes } from './web-pages';
+import { light } from '../../src/theme/colors';
+import { CACHED_AT_HEADER, SERVICE_WORKER_URL, USER_CACHES } from '../../src/web/offline';
+import { filesUnder, pageRoutes } from '../web-pages';
 
 // Build-time only: the installable app's manifest and icons, and the service worker Workbox generates over the
 // finished export (after the bundle is cut into its parts, before everything is compressed).
@@ -60,6 +60,10 @@ const hrefPattern = (pathPattern: RegExp) => new RegExp(`^https?://[^/]+${pathPa
  *   written in), else the build's own file for that route, so a route never opened before still opens offline.
  */
 export function runtimeCaching(dir: string): RuntimeCaching[] {
+  const pages = pageRoutes(dir);
+  // Expo Router's page files are what the routes below are made from: none found is a changed export, not an app
+  // without pages.
+  if (!pages.length) throw new Error(`Web build, service worker: no page routes in ${dir}; Expo Router's static pages have changed (DEVELOPERS.md, "Upgrading Expo, Metro or React").`);
   return [
     {
       urlPattern: /^https?:\/\/[^/]+\/api\//,
@@ -67,7 +71,7 @@ export function runtimeCaching(dir: string): RuntimeCaching[] {
       method: 'GET',
       options: { cacheName: API_CACHE, networkTimeoutSeconds: NETWORK_TIMEOUT_S, cacheableResponse: { statuses: [200] }, plugins: [{ cachedResponseWillBeUsed: markCachedAnswer }] },
     },
-    ...pageRoutes(dir).map(
+    ...pages.map(
       (r): RuntimeCaching => ({
         urlPattern: hrefPattern(r.pattern),
         handler: 'NetworkFirst',
@@ -84,6 +88,7 @@ export async function writeOffline(root: string, dir: string): Promise<{ precach
   fs.writeFileSync(path.join(dir, MANIFEST_FILE), JSON.stringify(webManifest(), null, 2));
   fs.mkdirSync(path.join(dir, 'icons'), { recursive: true });
   for (const icon of ICONS) fs.copyFileSync(path.join(root, 'assets/icons', icon), path.join(dir, 'icons', icon));
+  const precached = new Set<string>();
   const { count, size, warnings } = await generateSW({
     globDirectory: dir,
     // The bundle's parts, fonts, icons and every route's page as the build wrote it; the compressed copies are
@@ -99,7 +104,12 @@ export async function writeOffline(root: string, dir: string): Promise<{ precach
     // Workbox's precache also answers `/sign-in` with `sign-in.html` (its clean-URL rule, always on), so the pages
     // are precached under a query no request carries, and reached only as the fallbacks of their routes.
     directoryIndex: null,
-    manifestTransforms: [async (entries) => ({ manifest: entries.map((e) => (e.url.endsWith('.html') ? { ...e, url: shellURL(e.url) } : e)), warnings: [] })],
+    manifestTransforms: [
+      async (entries) => {
+        for (const e of entries) precached.add(e.url);
+        return { manifest: entries.map((e) => (e.url.endsWith('.html') ? { ...e, url: shellURL(e.url) } : e)), warnings: [] };
+      },
+    ],
     runtimeCaching: runtimeCaching(dir),
     // A new build (new bundle hash, new precache list) takes over at once and drops the old precache.
     skipWaiting: true,
@@ -111,5 +121,9 @@ export async function writeOffline(root: string, dir: string): Promise<{ precach
     disableDevLogs: true,
   });
   if (warnings.length) throw new Error(`Workbox: ${warnings.join('; ')}`);
+  // Offline start needs every script the pages load; a bundle left out (too big, a new folder) would fail only offline.
+  const scripts = filesUnder(dir).filter((f) => f.endsWith('.js') && f.startsWith('_expo'));
+  const missing = scripts.filter((f) => !precached.has(f.split(path.sep).join('/')));
+  if (!scripts.length || missing.length) throw new Error(`Web build, service worker: ${scripts.length ? `not precached: ${missing.join(', ')}` : 'no bundle to precache'}.`);
   return { precached: count, bytes: size };
 }
