@@ -7,6 +7,7 @@ import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
 import { RoleGate } from '@/components/shell/role-gate';
 import { CurrencyCard } from '@/components/site/currency-card';
+import { can } from '@/contracts/permissions';
 import { Button, Card, Columns, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
 import { useInvites } from '@/hooks/use-invites';
 import { useMailOutbox } from '@/hooks/use-mail-outbox';
@@ -63,8 +64,8 @@ function SiteBody() {
         <Figure label="enzymes" value={counts.enzymes} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={counts.quarantinedLots} testID="site-quarantined" />
       </View>
-      <CurrencyCard key={site.data.currency} currency={site.data.currency} canChange={session?.user.role === 'admin'} />
-      <MeasurementSdCard canChange={session?.user.role === 'admin'} />
+      <CurrencyCard key={site.data.currency} currency={site.data.currency} canChange={!!session && can(session.user.role, 'site.edit')} />
+      <MeasurementSdCard canChange={!!session && can(session.user.role, 'calibrations.settings')} />
       <LinkAdmin />
       <Columns gap={space.md}>
         <>

@@ -3,8 +3,7 @@ import { useEffect, useState } from 'react';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Choice, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { Field } from '@/components/ui/field';
-import { BATCH_STARTERS } from '@/contracts/rules';
-import type { Role } from '@/contracts/roles';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useSession } from '@/hooks/use-session';
 import { useRecipe, useRecipes } from '@/hooks/use-recipes';
@@ -43,7 +42,7 @@ function StartForm() {
     setLotId(detail.data.recipe.lotId);
   }, [detail.data]);
 
-  if (session && !(BATCH_STARTERS as readonly Role[]).includes(session.user.role))
+  if (session && !can(session.user.role, 'batches.start'))
     return <EmptyState title="Not part of your role" message="Supervisors and engineers start batches." />;
   const failed = recipes.error ?? vessels.error;
   if (failed) return <ErrorState error={failed} onRetry={() => (recipes.retry(), vessels.retry())} />;

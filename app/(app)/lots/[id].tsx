@@ -5,7 +5,7 @@ import { CertificateCard } from '@/components/lots/certificate-card';
 import { DecisionCard } from '@/components/lots/decision-card';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Columns, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
-import { LOT_DECIDERS, LOT_EDITORS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useLot } from '@/hooks/use-lots';
 import { useSession } from '@/hooks/use-session';
@@ -19,7 +19,7 @@ function LotBody({ id }: { id: number }) {
   if (error) return <ErrorState error={error} onRetry={retry} />;
   if (isLoading || !data) return <Loader rows={6} label="Loading the lot" />;
   const { lot, enzyme } = data;
-  const canEdit = (LOT_EDITORS as readonly string[]).includes(role);
+  const canEdit = can(role, 'lots.edit');
   return (
     <>
       <Card>
@@ -45,7 +45,7 @@ function LotBody({ id }: { id: number }) {
         </Card>
       ) : null}
       <Columns>
-        <DecisionCard detail={data} canDecide={(LOT_DECIDERS as readonly string[]).includes(role)} />
+        <DecisionCard detail={data} canDecide={can(role, 'lots.decide')} />
         <CertificateCard lot={lot} conversion={data.conversion} certificate={data.certificate} canEdit={canEdit} />
       </Columns>
       {canEdit ? <AssayEntry lotId={lot.id} /> : null}

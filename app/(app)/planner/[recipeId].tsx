@@ -5,6 +5,7 @@ import { RecipeForm } from '@/components/planner/recipe-form';
 import { RecipePlanner } from '@/components/planner/recipe-planner';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, ErrorState, Loader, Screen } from '@/components/ui';
+import { can } from '@/contracts/permissions';
 import type { Recipe } from '@/contracts/recipes';
 import { useRecipe } from '@/hooks/use-recipes';
 import { useSession } from '@/hooks/use-session';
@@ -14,7 +15,7 @@ import { space } from '@/theme';
 function RecipeChange({ recipe }: { recipe: Recipe }) {
   const { session } = useSession();
   const [isOpen, setOpen] = useState(false);
-  if (session?.user.role !== 'engineer' && session?.user.role !== 'admin') return null;
+  if (!session || !can(session.user.role, 'recipes.edit')) return null;
   if (isOpen) return <RecipeForm recipe={recipe} onDone={() => setOpen(false)} />;
   return (
     <View style={styles.change}>

@@ -5,6 +5,7 @@ import { ChangeRequestList } from '@/components/change-control/change-request-li
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Choice, EmptyState, ErrorState, Loader, Screen } from '@/components/ui';
 import type { ChangeStatus } from '@/contracts/change-requests';
+import { can } from '@/contracts/permissions';
 import { useChangeRequests } from '@/hooks/use-change-requests';
 import { useSession } from '@/hooks/use-session';
 import { space } from '@/theme';
@@ -43,7 +44,7 @@ function Body() {
 export default function SignOffsScreen() {
   const { session } = useSession();
   const role = session?.user.role;
-  const canAudit = role === 'supervisor' || role === 'admin';
+  const canAudit = !!role && can(role, 'audit-events.review');
   return (
     <RoleGate name="sign-offs">
       <Screen

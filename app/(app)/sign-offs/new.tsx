@@ -2,6 +2,7 @@ import { useLocalSearchParams } from 'expo-router';
 import { ProposeForm } from '@/components/change-control/propose-form';
 import { RoleGate } from '@/components/shell/role-gate';
 import { EmptyState, ErrorState, Loader, Screen } from '@/components/ui';
+import { can } from '@/contracts/permissions';
 import { usePlan } from '@/hooks/use-plans';
 import { useSession } from '@/hooks/use-session';
 
@@ -11,7 +12,7 @@ function Body({ planId }: { planId: number | null }) {
   if (planId === null) return <EmptyState title="Choose a plan first" message="Open a saved plan in the planner and propose it from there." />;
   if (error) return <ErrorState error={error} onRetry={retry} />;
   if (isLoading || !data || !session) return <Loader rows={4} label="Loading the plan" />;
-  if (session.user.role !== 'engineer' && session.user.role !== 'supervisor')
+  if (!can(session.user.role, 'change-requests.propose'))
     return <EmptyState title="Not part of your role" message="Engineers and supervisors propose setpoint changes." />;
   return <ProposeForm plan={data} timeZone={session.user.siteTimeZone} />;
 }

@@ -6,7 +6,7 @@ import { EnzymeForm } from '@/components/lots/enzyme-form';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { LotHistoryPoint } from '@/contracts/enzymes';
-import { LOT_EDITORS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useEnzyme } from '@/hooks/use-enzymes';
 import { useSession } from '@/hooks/use-session';
@@ -30,7 +30,7 @@ function EnzymeBody({ id }: { id: number }) {
   if (error) return <ErrorState error={error} onRetry={retry} />;
   if (isLoading || !data) return <Loader rows={4} label="Loading the enzyme" />;
   const e = data.enzyme;
-  const canEdit = !!session && (LOT_EDITORS as readonly string[]).includes(session.user.role);
+  const canEdit = !!session && can(session.user.role, 'lots.edit');
   return (
     <>
       <Card>

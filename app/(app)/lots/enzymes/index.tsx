@@ -6,7 +6,7 @@ import { EnzymeForm } from '@/components/lots/enzyme-form';
 import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Field, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Enzyme, EnzymeSort } from '@/contracts/enzymes';
-import { LOT_EDITORS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useEnzymes } from '@/hooks/use-enzymes';
 import { useSession } from '@/hooks/use-session';
@@ -31,7 +31,7 @@ const SORTS = [
 
 function EnzymesBody() {
   const { session } = useSession();
-  const canEdit = !!session && (LOT_EDITORS as readonly string[]).includes(session.user.role);
+  const canEdit = !!session && can(session.user.role, 'lots.edit');
   const [q, setQ] = useState('');
   const [sort, setSort] = useState<(typeof SORTS)[number]['value']>('name');
   const [dir, setDir] = useState<'asc' | 'desc'>('asc');
