@@ -10,7 +10,6 @@ import { LinkLine } from '@/components/batches/link-line';
 import { ReadingEntry } from '@/components/batches/reading-entry';
 import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { batchHours, batchStatus, durationText, readingsExplained } from '@/batches';
 import type { BatchDetail } from '@/contracts/batches';
@@ -180,11 +179,9 @@ export default function BatchScreen() {
   const { id } = useLocalSearchParams<{ id: string }>();
   const batchId = Number(id);
   return (
-    <RoleGate name="batches">
-      <Screen title="Batch" subtitle="Log the reactor temperature; the forecast follows." testID="screen-batch" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}>
-        {Number.isInteger(batchId) && batchId > 0 ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
-      </Screen>
-    </RoleGate>
+    <Screen title="Batch" subtitle="Log the reactor temperature; the forecast follows." testID="screen-batch" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}>
+      {Number.isInteger(batchId) && batchId > 0 ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
+    </Screen>
   );
 }
 

@@ -1,6 +1,5 @@
 import { router } from 'expo-router';
 import { useEffect, useState } from 'react';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Choice, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { Field } from '@/components/ui/field';
 import { can } from '@/contracts/permissions';
@@ -94,10 +93,8 @@ function StartForm() {
 
 export default function StartBatchScreen() {
   return (
-    <RoleGate name="batches">
-      <Screen title="Start a batch" subtitle="Recipe, vessel, an accepted lot and the start time." testID="screen-batch-start" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} />}>
-        <StartForm />
-      </Screen>
-    </RoleGate>
+    <Screen title="Start a batch" subtitle="Recipe, vessel, an accepted lot and the start time." testID="screen-batch-start" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} />}>
+      <StartForm />
+    </Screen>
   );
 }

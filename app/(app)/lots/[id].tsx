@@ -3,7 +3,6 @@ import { AssayEntry } from '@/components/lots/assay-entry';
 import { AssayResults } from '@/components/lots/assay-results';
 import { CertificateCard } from '@/components/lots/certificate-card';
 import { DecisionCard } from '@/components/lots/decision-card';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Columns, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
@@ -62,15 +61,13 @@ export default function LotScreen() {
   const { id } = useLocalSearchParams<{ id: string }>();
   const lotId = Number(id);
   return (
-    <RoleGate name="lots">
-      <Screen
-        title="Lot"
-        subtitle="Certificate, QC assays and the decision on this lot."
-        testID="screen-lot"
-        actions={<Button label="All lots" variant="ghost" compact onPress={() => (router.canGoBack() ? router.back() : router.replace('/lots'))} />}
-      >
-        {Number.isInteger(lotId) && lotId > 0 ? <LotBody id={lotId} /> : <EmptyState title="No such lot" message="The address does not name a lot." />}
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Lot"
+      subtitle="Certificate, QC assays and the decision on this lot."
+      testID="screen-lot"
+      actions={<Button label="All lots" variant="ghost" compact onPress={() => (router.canGoBack() ? router.back() : router.replace('/lots'))} />}
+    >
+      {Number.isInteger(lotId) && lotId > 0 ? <LotBody id={lotId} /> : <EmptyState title="No such lot" message="The address does not name a lot." />}
+    </Screen>
   );
 }

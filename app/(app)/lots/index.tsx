@@ -3,7 +3,6 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { LotForm } from '@/components/lots/lot-form';
 import { Choice } from '@/components/ui/choice';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Lot, LotStatus } from '@/contracts/lots';
 import { can } from '@/contracts/permissions';
@@ -86,11 +85,9 @@ function LotsBody() {
 
 export default function LotsScreen() {
   return (
-    <RoleGate name="lots">
-      <Screen title="Lots" subtitle="Incoming enzyme lots and their stability against specification." testID="screen-lots">
-        <LotsBody />
-      </Screen>
-    </RoleGate>
+    <Screen title="Lots" subtitle="Incoming enzyme lots and their stability against specification." testID="screen-lots">
+      <LotsBody />
+    </Screen>
   );
 }
 

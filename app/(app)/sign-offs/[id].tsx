@@ -1,6 +1,5 @@
 import { useLocalSearchParams } from 'expo-router';
 import { ChangeRequestRecord } from '@/components/change-control/change-request-record';
-import { RoleGate } from '@/components/shell/role-gate';
 import { ErrorState, Loader, Screen } from '@/components/ui';
 import { useChangeRequest } from '@/hooks/use-change-requests';
 import { useSession } from '@/hooks/use-session';
@@ -18,10 +17,8 @@ export default function ChangeRequestScreen() {
   const { id } = useLocalSearchParams<{ id: string }>();
   const n = Number(id);
   return (
-    <RoleGate name="sign-offs">
-      <Screen title="Setpoint change" subtitle="Current against proposed, the reasons, and every signature." testID="screen-change-request">
-        <Body id={Number.isInteger(n) && n > 0 ? n : null} />
-      </Screen>
-    </RoleGate>
+    <Screen title="Setpoint change" subtitle="Current against proposed, the reasons, and every signature." testID="screen-change-request">
+      <Body id={Number.isInteger(n) && n > 0 ? n : null} />
+    </Screen>
   );
 }

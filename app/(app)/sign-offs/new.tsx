@@ -1,6 +1,5 @@
 import { useLocalSearchParams } from 'expo-router';
 import { ProposeForm } from '@/components/change-control/propose-form';
-import { RoleGate } from '@/components/shell/role-gate';
 import { EmptyState, ErrorState, Loader, Screen } from '@/components/ui';
 import { can } from '@/contracts/permissions';
 import { usePlan } from '@/hooks/use-plans';
@@ -21,10 +20,8 @@ export default function ProposeChangeScreen() {
   const { planId } = useLocalSearchParams<{ planId?: string }>();
   const n = Number(planId);
   return (
-    <RoleGate name="sign-offs">
-      <Screen title="Propose a setpoint change" subtitle="The saved plan goes to the site’s supervisors for review and electronic signature." testID="screen-propose-change">
-        <Body planId={Number.isInteger(n) && n > 0 ? n : null} />
-      </Screen>
-    </RoleGate>
+    <Screen title="Propose a setpoint change" subtitle="The saved plan goes to the site’s supervisors for review and electronic signature." testID="screen-propose-change">
+      <Body planId={Number.isInteger(n) && n > 0 ? n : null} />
+    </Screen>
   );
 }

@@ -1,6 +1,5 @@
 import { router, useLocalSearchParams } from 'expo-router';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Deviation, Reading } from '@/contracts/batches';
 import { fmt } from '@/format';
@@ -94,11 +93,9 @@ export default function BatchReportScreen() {
   const { id } = useLocalSearchParams<{ id: string }>();
   const batchId = Number(id);
   return (
-    <RoleGate name="batches">
-      <Screen title="Batch report" subtitle="Recipe, plan, readings and deviations, for the batch record." testID="screen-batch-report">
-        {Number.isInteger(batchId) && batchId > 0 ? <ReportBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
-      </Screen>
-    </RoleGate>
+    <Screen title="Batch report" subtitle="Recipe, plan, readings and deviations, for the batch record." testID="screen-batch-report">
+      {Number.isInteger(batchId) && batchId > 0 ? <ReportBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
+    </Screen>
   );
 }
 

@@ -3,7 +3,6 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { LotHistoryChart } from '@/components/charts/lot-history-chart';
 import { EnzymeForm } from '@/components/lots/enzyme-form';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { LotHistoryPoint } from '@/contracts/enzymes';
 import { can } from '@/contracts/permissions';
@@ -72,16 +71,14 @@ export default function EnzymeScreen() {
   const { id } = useLocalSearchParams<{ id: string }>();
   const enzymeId = Number(id);
   return (
-    <RoleGate name="lots">
-      <Screen
-        title="Enzyme"
-        subtitle="Its specification and how its lots have measured up."
-        testID="screen-enzyme"
-        actions={<Button label="Enzyme library" variant="ghost" compact onPress={() => router.replace('/lots/enzymes')} />}
-      >
-        {Number.isInteger(enzymeId) && enzymeId > 0 ? <EnzymeBody id={enzymeId} /> : <EmptyState title="No such enzyme" message="The address does not name an enzyme." />}
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Enzyme"
+      subtitle="Its specification and how its lots have measured up."
+      testID="screen-enzyme"
+      actions={<Button label="Enzyme library" variant="ghost" compact onPress={() => router.replace('/lots/enzymes')} />}
+    >
+      {Number.isInteger(enzymeId) && enzymeId > 0 ? <EnzymeBody id={enzymeId} /> : <EmptyState title="No such enzyme" message="The address does not name an enzyme." />}
+    </Screen>
   );
 }
 

@@ -3,7 +3,6 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { Choice } from '@/components/ui/choice';
 import { EnzymeForm } from '@/components/lots/enzyme-form';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Field, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Enzyme, EnzymeSort } from '@/contracts/enzymes';
 import { can } from '@/contracts/permissions';
@@ -94,16 +93,14 @@ function EnzymesBody() {
 
 export default function EnzymesScreen() {
   return (
-    <RoleGate name="lots">
-      <Screen
-        title="Enzyme library"
-        subtitle="Enzyme products, their activity units and the stability each lot must meet."
-        testID="screen-enzymes"
-        actions={<Button label="All lots" variant="ghost" compact onPress={() => router.replace('/lots')} />}
-      >
-        <EnzymesBody />
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Enzyme library"
+      subtitle="Enzyme products, their activity units and the stability each lot must meet."
+      testID="screen-enzymes"
+      actions={<Button label="All lots" variant="ghost" compact onPress={() => router.replace('/lots')} />}
+    >
+      <EnzymesBody />
+    </Screen>
   );
 }
 

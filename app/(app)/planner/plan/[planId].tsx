@@ -1,6 +1,5 @@
 import { router, useLocalSearchParams } from 'expo-router';
 import { PlanSheet } from '@/components/planner/plan-sheet';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, ErrorState, Loader, Screen } from '@/components/ui';
 import { usePlan } from '@/hooks/use-plans';
 
@@ -16,15 +15,13 @@ export default function PlanScreen() {
   const { planId } = useLocalSearchParams<{ planId: string }>();
   const id = Number(planId);
   return (
-    <RoleGate name="planner">
-      <Screen
-        title="Saved plan"
-        subtitle="Immutable once saved; change control signs exactly this content."
-        testID="screen-plan"
-        actions={id > 0 ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined}
-      >
-        <Body id={Number.isInteger(id) && id > 0 ? id : null} />
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Saved plan"
+      subtitle="Immutable once saved; change control signs exactly this content."
+      testID="screen-plan"
+      actions={id > 0 ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined}
+    >
+      <Body id={Number.isInteger(id) && id > 0 ? id : null} />
+    </Screen>
   );
 }

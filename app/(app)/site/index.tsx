@@ -5,7 +5,6 @@ import { LinkAdmin } from '@/components/control-link/link-admin';
 import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
-import { RoleGate } from '@/components/shell/role-gate';
 import { CurrencyCard } from '@/components/site/currency-card';
 import { can } from '@/contracts/permissions';
 import { Button, Card, Columns, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
@@ -85,7 +84,7 @@ function SiteBody() {
   );
 }
 
-function SiteScreenContent() {
+export default function SiteScreen() {
   const site = useSite();
   return (
     <Screen
@@ -96,14 +95,6 @@ function SiteScreenContent() {
     >
       <SiteBody />
     </Screen>
-  );
-}
-
-export default function SiteScreen() {
-  return (
-    <RoleGate name="site">
-      <SiteScreenContent />
-    </RoleGate>
   );
 }
 
