@@ -1,4 +1,4 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { useEffect, useMemo, useState } from 'react';
 import { Linking, StyleSheet, View } from 'react-native';
 import { CloseBatchCard } from '@/components/batches/close-batch-card';
@@ -18,6 +18,7 @@ import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';
 import { useBatchLink } from '@/hooks/use-control-link';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useLogReading } from '@/hooks/use-log-reading';
 import { useSession } from '@/hooks/use-session';
 import { useSiteFormat } from '@/hooks/use-site-format';
@@ -176,11 +177,10 @@ function BatchBody({ id }: { id: number }) {
 }
 
 export default function BatchScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const batchId = Number(id);
+  const batchId = useIdParam();
   return (
     <Screen title="Batch" subtitle="Log the reactor temperature; the forecast follows." testID="screen-batch" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}>
-      {Number.isInteger(batchId) && batchId > 0 ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
+      {batchId ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
     </Screen>
   );
 }

@@ -1,4 +1,4 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { AssayEntry } from '@/components/lots/assay-entry';
 import { AssayResults } from '@/components/lots/assay-results';
 import { CertificateCard } from '@/components/lots/certificate-card';
@@ -6,6 +6,7 @@ import { DecisionCard } from '@/components/lots/decision-card';
 import { Button, Card, Columns, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useLot } from '@/hooks/use-lots';
 import { useSession } from '@/hooks/use-session';
 
@@ -58,8 +59,7 @@ function LotBody({ id }: { id: number }) {
 }
 
 export default function LotScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const lotId = Number(id);
+  const lotId = useIdParam();
   return (
     <Screen
       title="Lot"
@@ -67,7 +67,7 @@ export default function LotScreen() {
       testID="screen-lot"
       actions={<Button label="All lots" variant="ghost" compact onPress={() => (router.canGoBack() ? router.back() : router.replace('/lots'))} />}
     >
-      {Number.isInteger(lotId) && lotId > 0 ? <LotBody id={lotId} /> : <EmptyState title="No such lot" message="The address does not name a lot." />}
+      {lotId ? <LotBody id={lotId} /> : <EmptyState title="No such lot" message="The address does not name a lot." />}
     </Screen>
   );
 }

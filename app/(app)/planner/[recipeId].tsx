@@ -1,4 +1,3 @@
-import { useLocalSearchParams } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { RecipeForm } from '@/components/planner/recipe-form';
@@ -6,6 +5,7 @@ import { RecipePlanner } from '@/components/planner/recipe-planner';
 import { Button, ErrorState, Loader, Screen } from '@/components/ui';
 import { can } from '@/contracts/permissions';
 import type { Recipe } from '@/contracts/recipes';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useRecipe } from '@/hooks/use-recipes';
 import { useSession } from '@/hooks/use-session';
 import { space } from '@/theme';
@@ -46,10 +46,9 @@ function Body({ id }: { id: number | null }) {
 }
 
 export default function RecipePlannerScreen() {
-  const { recipeId } = useLocalSearchParams<{ recipeId: string }>();
-  const id = Number(recipeId);
+  const id = useIdParam('recipeId');
   return (
-    <Body id={Number.isInteger(id) && id > 0 ? id : null} />
+    <Body id={id} />
   );
 }
 

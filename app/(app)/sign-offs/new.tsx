@@ -1,7 +1,7 @@
-import { useLocalSearchParams } from 'expo-router';
 import { ProposeForm } from '@/components/change-control/propose-form';
 import { EmptyState, ErrorState, Loader, Screen } from '@/components/ui';
 import { can } from '@/contracts/permissions';
+import { useIdParam } from '@/hooks/use-id-param';
 import { usePlan } from '@/hooks/use-plans';
 import { useSession } from '@/hooks/use-session';
 
@@ -17,11 +17,10 @@ function Body({ planId }: { planId: number | null }) {
 }
 
 export default function ProposeChangeScreen() {
-  const { planId } = useLocalSearchParams<{ planId?: string }>();
-  const n = Number(planId);
+  const planId = useIdParam('planId');
   return (
     <Screen title="Propose a setpoint change" subtitle="The saved plan goes to the site’s supervisors for review and electronic signature." testID="screen-propose-change">
-      <Body planId={Number.isInteger(n) && n > 0 ? n : null} />
+      <Body planId={planId} />
     </Screen>
   );
 }

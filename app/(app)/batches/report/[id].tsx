@@ -1,9 +1,10 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
 import { Button, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Deviation, Reading } from '@/contracts/batches';
 import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useSiteFormat } from '@/hooks/use-site-format';
 import { space } from '@/theme';
 
@@ -90,11 +91,10 @@ function ReportBody({ id }: { id: number }) {
 }
 
 export default function BatchReportScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const batchId = Number(id);
+  const batchId = useIdParam();
   return (
     <Screen title="Batch report" subtitle="Recipe, plan, readings and deviations, for the batch record." testID="screen-batch-report">
-      {Number.isInteger(batchId) && batchId > 0 ? <ReportBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
+      {batchId ? <ReportBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
     </Screen>
   );
 }

@@ -1,4 +1,4 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { LotHistoryChart } from '@/components/charts/lot-history-chart';
@@ -8,6 +8,7 @@ import type { LotHistoryPoint } from '@/contracts/enzymes';
 import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useEnzyme } from '@/hooks/use-enzymes';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useSession } from '@/hooks/use-session';
 
 const STATUS = { quarantined: 'Quarantined', accepted: 'Accepted', rejected: 'Rejected' } as const;
@@ -68,8 +69,7 @@ function EnzymeBody({ id }: { id: number }) {
 }
 
 export default function EnzymeScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const enzymeId = Number(id);
+  const enzymeId = useIdParam();
   return (
     <Screen
       title="Enzyme"
@@ -77,7 +77,7 @@ export default function EnzymeScreen() {
       testID="screen-enzyme"
       actions={<Button label="Enzyme library" variant="ghost" compact onPress={() => router.replace('/lots/enzymes')} />}
     >
-      {Number.isInteger(enzymeId) && enzymeId > 0 ? <EnzymeBody id={enzymeId} /> : <EmptyState title="No such enzyme" message="The address does not name an enzyme." />}
+      {enzymeId ? <EnzymeBody id={enzymeId} /> : <EmptyState title="No such enzyme" message="The address does not name an enzyme." />}
     </Screen>
   );
 }
