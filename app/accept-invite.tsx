@@ -1,8 +1,6 @@
 import { router } from 'expo-router';
 import { useState } from 'react';
-import { MailLinkPage } from '@/components/shell/mail-link-page';
-import { Button } from '@/components/ui/button';
-import { Card } from '@/components/ui/card';
+import { AuthCard, MailLinkPage } from '@/components/shell/auth-card';
 import { Field } from '@/components/ui/field';
 import { ErrorState, Loader } from '@/components/ui/states';
 import { Text } from '@/components/ui/text';
@@ -26,13 +24,18 @@ function AcceptForm({ token }: { token: string }) {
     const out = await accept.submit({ token, name, password });
     if (out) router.replace({ pathname: '/sign-in', params: { email: out.email, welcome: '1' } });
   };
-  const general = accept.error && !Object.keys(accept.error.fields).length ? accept.error.message : null;
   return (
-    <Card>
-      <Text variant="title">Join {p.siteName}</Text>
-      <Text tone="muted" testID="accept-invite-who">
-        {p.email} · {ROLE_LABELS[p.role]}
-      </Text>
+    <AuthCard
+      title={`Join ${p.siteName}`}
+      note={
+        <Text tone="muted" testID="accept-invite-who">
+          {p.email} · {ROLE_LABELS[p.role]}
+        </Text>
+      }
+      error={accept.error}
+      errorTestID="accept-error"
+      submit={{ label: 'Set password', testID: 'accept-submit', onPress: submit, isBusy: accept.isSubmitting }}
+    >
       <Field label="Your name" testID="accept-name" value={name} onChangeText={setName} autoComplete="name" error={accept.error?.fields.name} />
       <Field
         label="Password"
@@ -45,13 +48,7 @@ function AcceptForm({ token }: { token: string }) {
         error={accept.error?.fields.password}
       />
       <Field label="Password again" testID="accept-password-repeat" value={repeat} onChangeText={setRepeat} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} error={mismatch ? 'The two passwords differ' : undefined} />
-      {general ? (
-        <Text tone="danger" accessibilityRole="alert" testID="accept-error">
-          {general}
-        </Text>
-      ) : null}
-      <Button label="Set password" testID="accept-submit" onPress={submit} isBusy={accept.isSubmitting} />
-    </Card>
+    </AuthCard>
   );
 }
 

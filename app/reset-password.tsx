@@ -1,8 +1,6 @@
 import { router } from 'expo-router';
 import { useState } from 'react';
-import { MailLinkPage } from '@/components/shell/mail-link-page';
-import { Button } from '@/components/ui/button';
-import { Card } from '@/components/ui/card';
+import { AuthCard, MailLinkPage } from '@/components/shell/auth-card';
 import { Field } from '@/components/ui/field';
 import { ErrorState, Loader } from '@/components/ui/states';
 import { Text } from '@/components/ui/text';
@@ -23,22 +21,21 @@ function ResetForm({ token }: { token: string }) {
     const out = await reset.submit({ token, password });
     if (out) router.replace({ pathname: '/sign-in', params: { email: out.email, welcome: '1' } });
   };
-  const general = reset.error && !Object.keys(reset.error.fields).length ? reset.error.message : null;
   return (
-    <Card>
-      <Text variant="title">Set a new password</Text>
-      <Text tone="muted" testID="reset-who">
-        {preview.data.email}
-      </Text>
+    <AuthCard
+      title="Set a new password"
+      note={
+        <Text tone="muted" testID="reset-who">
+          {preview.data.email}
+        </Text>
+      }
+      error={reset.error}
+      errorTestID="reset-error"
+      submit={{ label: 'Set password', testID: 'reset-submit', onPress: submit, isBusy: reset.isSubmitting }}
+    >
       <Field label="New password" testID="reset-password" value={password} onChangeText={setPassword} secureTextEntry autoComplete="new-password" hint={`At least ${MIN_PASSWORD_LENGTH} characters`} error={reset.error?.fields.password} />
       <Field label="New password again" testID="reset-password-repeat" value={repeat} onChangeText={setRepeat} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} error={mismatch ? 'The two passwords differ' : undefined} />
-      {general ? (
-        <Text tone="danger" accessibilityRole="alert" testID="reset-error">
-          {general}
-        </Text>
-      ) : null}
-      <Button label="Set password" testID="reset-submit" onPress={submit} isBusy={reset.isSubmitting} />
-    </Card>
+    </AuthCard>
   );
 }
 

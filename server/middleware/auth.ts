@@ -1,4 +1,5 @@
 import type { RequestHandler } from 'express';
+import { can, rolesWith, type Capability } from '../../src/contracts/permissions';
 import type { Role } from '../../src/contracts/roles';
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError } from '../http-error';
@@ -28,23 +29,21 @@ export function authenticate(ctx: AuthContext): RequestHandler {
   };
 }
 
-/** A handler that declares the roles allowed to call its route; tests read `roles` to check every route. */
-export type RoleGuard = RequestHandler & { roles: readonly Role[] | 'public' };
+/** A handler that declares the capability its route needs and the roles holding it; tests read both to check every route. */
+export type RoleGuard = RequestHandler & { capability: Capability | 'public'; roles: readonly Role[] | 'public' };
 
 /** Marks a route anyone may call (signing in). */
-export const open: RoleGuard = Object.assign(((_req, _res, next) => next()) as RequestHandler, { roles: 'public' as const });
+export const open: RoleGuard = Object.assign(((_req, _res, next) => next()) as RequestHandler, { capability: 'public' as const, roles: 'public' as const });
 
-/** 401 when signed out, 403 when the role is not in the list. Every route starts with one. */
-export function allow(...roles: Role[]): RoleGuard {
+/** 401 when signed out, 403 when the role lacks the capability (src/contracts/permissions.ts). Every route starts with one. */
+export function allow(capability: Capability): RoleGuard {
   const guard: RequestHandler = (req, _res, next) => {
     if (!req.user) return next(new HttpError(401, 'signed_out', 'Sign in to continue'));
-    if (!roles.includes(req.user.role)) return next(new HttpError(403, 'forbidden', 'Your role cannot do this'));
+    if (!can(req.user.role, capability)) return next(new HttpError(403, 'forbidden', 'Your role cannot do this'));
     next();
   };
-  return Object.assign(guard, { roles });
+  return Object.assign(guard, { capability, roles: rolesWith(capability) });
 }
-
-export const ALL_ROLES: Role[] = ['admin', 'engineer', 'supervisor', 'procurement', 'operator'];
 
 /** The signed-in user of a request that passed `allow`. */
 export function currentUser(req: { user?: SessionUser }): SessionUser {

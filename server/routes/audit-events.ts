@@ -6,17 +6,17 @@ import type { Services } from './services';
 
 export function auditEventsRouter(s: Services): Router {
   const router = Router();
-  router.get('/', allow('supervisor', 'admin'), (req, res) => {
+  router.get('/', allow('audit-events.review'), (req, res) => {
     res.json(AuditPage.parse(searchAudit(s, currentUser(req), AuditQuery.parse(req.query))));
   });
-  router.get('/verify', allow('supervisor', 'admin'), (req, res) => {
+  router.get('/verify', allow('audit-events.review'), (req, res) => {
     res.json(AuditVerification.parse(verifySiteAudit(s, currentUser(req))));
   });
-  router.post('/checkpoints', allow('supervisor', 'admin'), (req, res) => {
+  router.post('/checkpoints', allow('audit-events.review'), (req, res) => {
     AuditCheckpointInput.parse(req.body);
     res.status(201).json(AuditCheckpointsWritten.parse(checkpointSiteAudit(s, currentUser(req))));
   });
-  router.get('/export.csv', allow('supervisor', 'admin'), (req, res) => {
+  router.get('/export.csv', allow('audit-events.review'), (req, res) => {
     const csv = auditCsv(s, currentUser(req), AuditQuery.parse(req.query));
     res.type('text/csv').attachment(`audit-trail-${s.clock.now().toISOString().slice(0, 10)}.csv`).send(csv);
   });

@@ -6,13 +6,13 @@ import { handleStripeEvent } from '../services/billing-webhooks';
 
 export function billingRouter(ctx: BillingContext): Router {
   const router = Router();
-  router.get('/', allow('admin'), (req, res) => {
+  router.get('/', allow('billing.manage'), (req, res) => {
     res.json(BillingSummary.parse(billingSummary(ctx, currentUser(req))));
   });
-  router.get('/invoices', allow('admin'), (req, res) => {
+  router.get('/invoices', allow('billing.manage'), (req, res) => {
     res.json(InvoiceList.parse(siteInvoices(ctx, currentUser(req))));
   });
-  router.post('/checkout', allow('admin'), async (req, res) => {
+  router.post('/checkout', allow('billing.manage'), async (req, res) => {
     const body = BuySeats.parse(req.body);
     const origin = `${req.protocol}://${req.get('host')}`;
     res.status(201).json(CheckoutStarted.parse(await startCheckout(ctx, currentUser(req), body, origin)));
@@ -21,7 +21,7 @@ export function billingRouter(ctx: BillingContext): Router {
   router.get('/return', open, (req, res) => {
     res.type('html').send(billingReturnPage(req.query));
   });
-  router.patch('/seats', allow('admin'), async (req, res) => {
+  router.patch('/seats', allow('billing.manage'), async (req, res) => {
     const body = ChangeSeats.parse(req.body);
     res.json(BillingSummary.parse(await changeSeats(ctx, currentUser(req), body)));
   });

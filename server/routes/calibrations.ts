@@ -1,7 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
-import { CALIBRATION_DECIDERS, CALIBRATION_READERS, CALIBRATION_SETTINGS_EDITORS } from '../../src/contracts/rules';
 import { allow, currentUser } from '../middleware/auth';
 import { acceptCalibration, calibrationSettingsOf, changeCalibrationSettings, getCalibrationView, setExclusion } from '../services/calibrations';
 import type { Services } from './services';
@@ -10,20 +9,20 @@ const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function calibrationsRouter(s: Services): Router {
   const router = Router();
-  router.get('/', allow(...CALIBRATION_READERS), (req, res) => {
+  router.get('/', allow('calibrations.read'), (req, res) => {
     res.json(CalibrationView.parse(getCalibrationView(s, currentUser(req), CalibrationQuery.parse(req.query))));
   });
-  router.get('/settings', allow(...CALIBRATION_READERS), (req, res) => {
+  router.get('/settings', allow('calibrations.read'), (req, res) => {
     res.json(CalibrationSettings.parse(calibrationSettingsOf(s.db, currentUser(req).siteId)));
   });
-  router.patch('/settings', allow(...CALIBRATION_SETTINGS_EDITORS), (req, res) => {
+  router.patch('/settings', allow('calibrations.settings'), (req, res) => {
     res.json(CalibrationSettings.parse(changeCalibrationSettings(s, currentUser(req), CalibrationSettingsPatch.parse(req.body))));
   });
-  router.post('/:id/accept', allow(...CALIBRATION_DECIDERS), (req, res) => {
+  router.post('/:id/accept', allow('calibrations.decide'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(Calibration.parse(acceptCalibration(s, currentUser(req), id, CalibrationAccept.parse(req.body ?? {}))));
   });
-  router.post('/exclusions', allow(...CALIBRATION_DECIDERS), (req, res) => {
+  router.post('/exclusions', allow('calibrations.decide'), (req, res) => {
     res.json(CalibrationView.parse(setExclusion(s, currentUser(req), CalibrationExclusion.parse(req.body))));
   });
   return router;

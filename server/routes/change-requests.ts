@@ -7,7 +7,6 @@ import { allow, currentUser } from '../middleware/auth';
 import { changeRequestCsv, getChangeRequest, listChangeRequests, proposeChange, signChange, type ChangeControlCtx } from '../services/change-requests';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
-const READERS = ['engineer', 'supervisor', 'admin'] as const;
 
 export type ChangeRequestsOptions = ChangeControlCtx & { signLimit: { perAccount: number; windowMs: number } };
 
@@ -26,22 +25,22 @@ export function changeRequestsRouter(opts: ChangeRequestsOptions): Router {
     message: { error: { code: 'rate_limited', message: 'Too many wrong passwords; wait a few minutes and try again' } },
   });
 
-  router.get('/', allow(...READERS), (req, res) => {
+  router.get('/', allow('change-requests.read'), (req, res) => {
     res.json(ChangeRequestList.parse({ changeRequests: listChangeRequests(opts, currentUser(req), ChangeRequestQuery.parse(req.query)) }));
   });
-  router.post('/', allow('engineer', 'supervisor'), (req, res) => {
+  router.post('/', allow('change-requests.propose'), (req, res) => {
     res.status(201).json(ChangeRequestDetail.parse(proposeChange(opts, currentUser(req), ChangeRequestInput.parse(req.body))));
   });
-  router.get('/:id', allow(...READERS), (req, res) => {
+  router.get('/:id', allow('change-requests.read'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(ChangeRequestDetail.parse(getChangeRequest(opts, currentUser(req), id)));
   });
-  router.get('/:id/export.csv', allow(...READERS), (req, res) => {
+  router.get('/:id/export.csv', allow('change-requests.read'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     const { filename, csv } = changeRequestCsv(opts, currentUser(req), id);
     res.type('text/csv').attachment(filename).send(csv);
   });
-  router.post('/:id/signatures', allow('supervisor'), signLimit, async (req, res) => {
+  router.post('/:id/signatures', allow('change-requests.sign'), signLimit, async (req, res) => {
     const { id } = IdParam.parse(req.params);
     const body = SignatureInput.parse(req.body);
     try {

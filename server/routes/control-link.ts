@@ -1,7 +1,6 @@
 import { Router, type Request } from 'express';
 import { z } from 'zod';
 import {
-  BATCH_READERS,
   BatchLink,
   CertificateInfo,
   LinkSettings,
@@ -12,7 +11,7 @@ import {
   VesselSourceInput,
   VesselSourceList,
 } from '../../src/contracts/control-link';
-import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
+import { allow, currentUser } from '../middleware/auth';
 import {
   batchLinkOf,
   changeLinkSettings,
@@ -33,32 +32,32 @@ const IdParam = z.object({ id: z.coerce.number().int().positive() });
 export function controlLinkRouter(base: LinkServices): Router {
   const router = Router();
   const vessel = (req: Request) => VesselParam.parse(req.params).vesselId;
-  router.get('/sources', allow('admin'), (req, res) => {
+  router.get('/sources', allow('control-link.configure'), (req, res) => {
     res.json(VesselSourceList.parse({ sources: listSources(base, currentUser(req)) }));
   });
-  router.put('/sources/:vesselId', allow('admin'), (req, res) => {
+  router.put('/sources/:vesselId', allow('control-link.configure'), (req, res) => {
     res.json(VesselSource.parse(saveSource(base, currentUser(req), vessel(req), VesselSourceInput.parse(req.body))));
   });
-  router.delete('/sources/:vesselId', allow('admin'), (req, res) => {
+  router.delete('/sources/:vesselId', allow('control-link.configure'), (req, res) => {
     removeSource(base, currentUser(req), vessel(req));
     res.status(204).end();
   });
-  router.get('/sources/:vesselId/server-certificate', allow('admin'), async (req, res) => {
+  router.get('/sources/:vesselId/server-certificate', allow('control-link.configure'), async (req, res) => {
     res.json(CertificateInfo.parse(await sourceCertificate(base, currentUser(req), vessel(req))));
   });
-  router.post('/sources/:vesselId/trust', allow('admin'), async (req, res) => {
+  router.post('/sources/:vesselId/trust', allow('control-link.configure'), async (req, res) => {
     res.json(VesselSource.parse(await trustSource(base, currentUser(req), vessel(req), TrustRequest.parse(req.body))));
   });
-  router.get('/settings', allow(...ALL_ROLES), (req, res) => {
+  router.get('/settings', allow('control-link.read'), (req, res) => {
     res.json(LinkSettings.parse(linkSettingsOf(base.db, currentUser(req).siteId)));
   });
-  router.patch('/settings', allow('admin'), (req, res) => {
+  router.patch('/settings', allow('control-link.configure'), (req, res) => {
     res.json(LinkSettings.parse(changeLinkSettings(base, currentUser(req), LinkSettingsPatch.parse(req.body))));
   });
-  router.get('/status', allow(...BATCH_READERS), (req, res) => {
+  router.get('/status', allow('batches.read'), (req, res) => {
     res.json(LinkStatusList.parse(linkStatus(base, currentUser(req))));
   });
-  router.get('/batches/:id', allow(...BATCH_READERS), (req, res) => {
+  router.get('/batches/:id', allow('batches.read'), (req, res) => {
     res.json(BatchLink.parse(batchLinkOf(base, currentUser(req), IdParam.parse(req.params).id)));
   });
   return router;

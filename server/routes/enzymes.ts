@@ -1,8 +1,7 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { Enzyme, EnzymeDetail, EnzymeInput, EnzymeList, EnzymeQuery, EnzymeUpdate } from '../../src/contracts/enzymes';
-import { LOT_EDITORS } from '../../src/contracts/lots';
-import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
+import { allow, currentUser } from '../middleware/auth';
 import { changeEnzyme, createEnzyme, getEnzyme, listEnzymes } from '../services/enzymes';
 import type { Services } from './services';
 
@@ -10,16 +9,16 @@ const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function enzymesRouter(s: Services): Router {
   const router = Router();
-  router.get('/', allow(...ALL_ROLES), (req, res) => {
+  router.get('/', allow('enzymes.read'), (req, res) => {
     res.json(EnzymeList.parse(listEnzymes(s, currentUser(req), EnzymeQuery.parse(req.query))));
   });
-  router.post('/', allow(...LOT_EDITORS), (req, res) => {
+  router.post('/', allow('lots.edit'), (req, res) => {
     res.status(201).json(Enzyme.parse(createEnzyme(s, currentUser(req), EnzymeInput.parse(req.body))));
   });
-  router.get('/:id', allow(...ALL_ROLES), (req, res) => {
+  router.get('/:id', allow('enzymes.read'), (req, res) => {
     res.json(EnzymeDetail.parse(getEnzyme(s, currentUser(req), IdParam.parse(req.params).id)));
   });
-  router.patch('/:id', allow(...LOT_EDITORS), (req, res) => {
+  router.patch('/:id', allow('lots.edit'), (req, res) => {
     res.json(Enzyme.parse(changeEnzyme(s, currentUser(req), IdParam.parse(req.params).id, EnzymeUpdate.parse(req.body))));
   });
   return router;

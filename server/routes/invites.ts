@@ -8,13 +8,13 @@ const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function invitesRouter(ctx: InviteContext): Router {
   const router = Router();
-  router.get('/', allow('admin'), (req, res) => {
+  router.get('/', allow('people.manage'), (req, res) => {
     res.json(InviteList.parse(listInvites(ctx, currentUser(req))));
   });
-  router.post('/', allow('admin'), (req, res) => {
+  router.post('/', allow('people.manage'), (req, res) => {
     res.status(201).json(Invite.parse(createInvite(ctx, currentUser(req), CreateInvite.parse(req.body))));
   });
-  router.delete('/:id', allow('admin'), (req, res) => {
+  router.delete('/:id', allow('people.manage'), (req, res) => {
     revokeInvite(ctx, currentUser(req), IdParam.parse(req.params).id);
     res.status(204).end();
   });

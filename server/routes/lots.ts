@@ -1,8 +1,8 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { Assay, AssayTableInput, AssayUpload, MAX_ASSAY_BYTES } from '../../src/contracts/assays';
-import { CertificateFile, Lot, LOT_DECIDERS, LOT_EDITORS, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
-import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
+import { CertificateFile, Lot, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
+import { allow, currentUser } from '../middleware/auth';
 import { singleFile } from '../middleware/upload';
 import { ASSAY_TEMPLATE_CSV } from '../services/assay-csv';
 import { addAssay, exportAssayCsv } from '../services/assays';
@@ -15,32 +15,32 @@ const attachment = (name: string) => `attachment; filename="${name.replace(/["\\
 
 export function lotsRouter(s: LotServices): Router {
   const router = Router();
-  router.get('/', allow(...ALL_ROLES), (req, res) => {
+  router.get('/', allow('lots.read'), (req, res) => {
     res.json(LotList.parse({ lots: listLots(s, currentUser(req), LotQuery.parse(req.query)) }));
   });
-  router.post('/', allow(...LOT_EDITORS), (req, res) => {
+  router.post('/', allow('lots.edit'), (req, res) => {
     res.status(201).json(Lot.parse(createLot(s, currentUser(req), LotInput.parse(req.body))));
   });
-  router.get('/assay-template', allow(...ALL_ROLES), (_req, res) => {
+  router.get('/assay-template', allow('lots.read'), (_req, res) => {
     res.type('text/csv').set('content-disposition', attachment('assay-template.csv')).send(ASSAY_TEMPLATE_CSV);
   });
-  router.get('/:id', allow(...ALL_ROLES), (req, res) => {
+  router.get('/:id', allow('lots.read'), (req, res) => {
     res.json(LotDetail.parse(getLot(s, currentUser(req), IdParam.parse(req.params).id)));
   });
-  router.post('/:id/decision', allow(...LOT_DECIDERS), (req, res) => {
+  router.post('/:id/decision', allow('lots.decide'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(LotDetail.parse(decideLot(s, currentUser(req), id, LotDecision.parse(req.body))));
   });
-  router.post('/:id/certificate', allow(...LOT_EDITORS), singleFile('file', MAX_CERTIFICATE_BYTES), (req, res) => {
+  router.post('/:id/certificate', allow('lots.edit'), singleFile('file', MAX_CERTIFICATE_BYTES), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.status(201).json(CertificateFile.parse(attachCertificate(s, currentUser(req), id, req.file)));
   });
-  router.get('/:id/certificate', allow(...ALL_ROLES), (req, res) => {
+  router.get('/:id/certificate', allow('lots.read'), (req, res) => {
     const { file, bytes } = readCertificate(s, currentUser(req), IdParam.parse(req.params).id);
     res.type(file.mimeType).set({ 'content-disposition': attachment(file.fileName), 'x-sha256': file.sha256 }).send(bytes);
   });
   // A CSV file (multipart, field "file", optional field "scale") or the editable table's rows (JSON); both are checked the same way.
-  router.post('/:id/assays', allow(...LOT_EDITORS), singleFile('file', MAX_ASSAY_BYTES), async (req, res) => {
+  router.post('/:id/assays', allow('lots.edit'), singleFile('file', MAX_ASSAY_BYTES), async (req, res) => {
     const { id } = IdParam.parse(req.params);
     const file = req.file;
     const assay = file
@@ -48,7 +48,7 @@ export function lotsRouter(s: LotServices): Router {
       : await addAssay(s, currentUser(req), id, () => ({ kind: 'assay-table', input: AssayTableInput.parse(req.body) }), null);
     res.status(201).json(Assay.parse(assay));
   });
-  router.get('/:id/assays/:assayId/csv', allow(...ALL_ROLES), (req, res) => {
+  router.get('/:id/assays/:assayId/csv', allow('lots.read'), (req, res) => {
     const { id, assayId } = AssayParam.parse(req.params);
     const { fileName, csv } = exportAssayCsv(s, currentUser(req), id, assayId);
     res.type('text/csv').set('content-disposition', attachment(fileName)).send(csv);

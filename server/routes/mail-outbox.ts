@@ -9,10 +9,10 @@ const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function mailOutboxRouter(s: Services & { mail: { kick(): void } | null }): Router {
   const router = Router();
-  router.get('/', allow('admin'), (req, res) => {
+  router.get('/', allow('mail-outbox.manage'), (req, res) => {
     res.json(Outbox.parse(siteOutbox(s.db, currentUser(req))));
   });
-  router.post('/:id/retry', allow('admin'), (req, res) => {
+  router.post('/:id/retry', allow('mail-outbox.manage'), (req, res) => {
     const message = retryMail(s.db, s.clock, currentUser(req), IdParam.parse(req.params).id);
     s.mail?.kick();
     res.json(OutboxMessage.parse(message));

@@ -6,22 +6,21 @@ import { createPlan, getPlan, listPlans, planCsv } from '../services/plans';
 import type { Services } from './services';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
-const READERS = ['engineer', 'supervisor', 'admin'] as const;
 
 // No PATCH or DELETE: a saved plan is immutable.
 export function plansRouter(s: Services): Router {
   const router = Router();
-  router.get('/', allow(...READERS), (req, res) => {
+  router.get('/', allow('plans.read'), (req, res) => {
     res.json(PlanList.parse({ plans: listPlans(s, currentUser(req), PlanQuery.parse(req.query)) }));
   });
-  router.post('/', allow('engineer'), (req, res) => {
+  router.post('/', allow('plans.create'), (req, res) => {
     res.status(201).json(Plan.parse(createPlan(s, currentUser(req), PlanInputs.parse(req.body))));
   });
-  router.get('/:id', allow(...READERS), (req, res) => {
+  router.get('/:id', allow('plans.read'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(Plan.parse(getPlan(s, currentUser(req), id)));
   });
-  router.get('/:id/export.csv', allow(...READERS), (req, res) => {
+  router.get('/:id/export.csv', allow('plans.read'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     const { filename, csv } = planCsv(s, currentUser(req), id);
     res.type('text/csv').attachment(filename).send(csv);

@@ -1,7 +1,7 @@
 import { Router, type CookieOptions } from 'express';
 import rateLimit from 'express-rate-limit';
 import { ChangePassword, Session, SessionState, SignInRequest, UpdateMe } from '../../src/contracts/session';
-import { allow, ALL_ROLES, currentUser, open, SESSION_COOKIE } from '../middleware/auth';
+import { allow, currentUser, open, SESSION_COOKIE } from '../middleware/auth';
 import { loadSessionUser, signIn, signOut, type AuthContext } from '../services/auth';
 import { changeOwnPassword } from '../services/passwords';
 import { createAccountThrottle, DEVICE_COOKIE, deviceToken, throttleKey, type SignInLimit } from '../services/sign-in-throttle';
@@ -51,7 +51,7 @@ export function sessionRouter(opts: SessionRouteOptions): Router {
     res.json(SessionState.parse({ user: req.user ?? null }));
   });
 
-  router.patch('/', allow(...ALL_ROLES), (req, res) => {
+  router.patch('/', allow('session.own'), (req, res) => {
     UpdateMe.parse(req.body);
     const user = currentUser(req);
     acknowledgeCautions(opts, user);
@@ -59,7 +59,7 @@ export function sessionRouter(opts: SessionRouteOptions): Router {
   });
 
   // A stolen session cannot guess the current password faster than sign-in allows.
-  router.post('/password', allow(...ALL_ROLES), async (req, res) => {
+  router.post('/password', allow('session.own'), async (req, res) => {
     const body = ChangePassword.parse(req.body);
     const user = currentUser(req);
     const key = `password:${user.id}`;
@@ -73,7 +73,7 @@ export function sessionRouter(opts: SessionRouteOptions): Router {
     res.status(204).end();
   });
 
-  router.delete('/', allow(...ALL_ROLES), (req, res) => {
+  router.delete('/', allow('session.own'), (req, res) => {
     signOut(opts, req.sessionId!, currentUser(req));
     res.clearCookie(SESSION_COOKIE, { path: '/' });
     res.status(204).end();

@@ -6,10 +6,10 @@ import type { Services } from './services';
 
 export function siteRouter(s: Services): Router {
   return Router()
-    .get('/', allow('admin', 'supervisor'), (req, res) => {
+    .get('/', allow('site.read'), (req, res) => {
       res.json(SiteSummary.parse(siteSummary(s, currentUser(req))));
     })
-    .patch('/', allow('admin'), (req, res) => {
+    .patch('/', allow('site.edit'), (req, res) => {
       res.json(SiteSummary.parse(changeSite(s, currentUser(req), SitePatch.parse(req.body))));
     });
 }

@@ -10,14 +10,14 @@ const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function usersRouter(s: ResetContext): Router {
   const router = Router();
-  router.get('/', allow('admin'), (req, res) => {
+  router.get('/', allow('people.manage'), (req, res) => {
     res.json(UserList.parse({ users: listUsers(s, currentUser(req)) }));
   });
-  router.patch('/:id', allow('admin'), (req, res) => {
+  router.patch('/:id', allow('people.manage'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(User.parse(changeUser(s, currentUser(req), id, UpdateUser.parse(req.body))));
   });
-  router.post('/:id/password-reset', allow('admin'), async (req, res) => {
+  router.post('/:id/password-reset', allow('people.manage'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
     SendPasswordReset.parse(req.body);
     res.status(201).json(PasswordResetSent.parse(await sendPasswordReset(s, currentUser(req), id)));

@@ -1,7 +1,7 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { Vessel, VesselInput, VesselList, VesselPatch } from '../../src/contracts/vessels';
-import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
+import { allow, currentUser } from '../middleware/auth';
 import { changeVessel, createVessel, listVessels } from '../services/vessels';
 import type { Services } from './services';
 
@@ -9,13 +9,13 @@ const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function vesselsRouter(s: Services): Router {
   const router = Router();
-  router.get('/', allow(...ALL_ROLES), (req, res) => {
+  router.get('/', allow('vessels.read'), (req, res) => {
     res.json(VesselList.parse({ vessels: listVessels(s, currentUser(req)) }));
   });
-  router.post('/', allow('engineer', 'admin'), (req, res) => {
+  router.post('/', allow('vessels.edit'), (req, res) => {
     res.status(201).json(Vessel.parse(createVessel(s, currentUser(req), VesselInput.parse(req.body))));
   });
-  router.patch('/:id', allow('engineer', 'admin'), (req, res) => {
+  router.patch('/:id', allow('vessels.edit'), (req, res) => {
     const { id } = IdParam.parse(req.params);
     res.json(Vessel.parse(changeVessel(s, currentUser(req), id, VesselPatch.parse(req.body))));
   });

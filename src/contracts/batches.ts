@@ -1,8 +1,8 @@
 import { z } from 'zod';
 import { KineticsEvidence } from './plans';
-import { BATCH_READERS, BATCH_STARTERS, CLOCK_SKEW_MIN, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, READING_LOGGERS, READING_MAX_C, READING_MIN_C } from './rules';
+import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C } from './rules';
 
-export { BATCH_READERS, BATCH_STARTERS, CLOCK_SKEW_MIN, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, READING_LOGGERS, READING_MAX_C, READING_MIN_C };
+export { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C };
 
 export const PLAN_SOURCES = ['released_plan', 'current_setpoint'] as const;
 export const BATCH_STATUSES = ['running', 'closed'] as const;

@@ -1,7 +1,4 @@
 import { z } from 'zod';
-import { BATCH_READERS } from './rules';
-
-export { BATCH_READERS };
 
 /**
  * Reactor temperatures read from the plant's control system over OPC UA (IEC 62541). Read-only: Yieldpoint

@@ -2,9 +2,6 @@ import { z } from 'zod';
 import { calendarDay } from './calendar-day';
 import { Assay, HalfLifeEstimate } from './assays';
 import { Enzyme } from './enzymes';
-import { LOT_DECIDERS, LOT_EDITORS } from './rules';
-
-export { LOT_DECIDERS, LOT_EDITORS };
 
 export const LOT_STATUSES = ['quarantined', 'accepted', 'rejected'] as const;
 export const LotStatus = z.enum(LOT_STATUSES);

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
-import { NAV_ITEMS } from '../../src/components/shell/navigation';
+import { canSee, NAV_ITEMS } from '../../src/components/shell/navigation';
 import { ROLES, type Role } from '../../src/contracts/roles';
 import { acknowledgeCautionsIfShown, appRendered, launch, PHONE, screenshot, signIn, watchedPage, WIDE, type Watched } from './browser';
 import { HOME } from '../../src/components/shell/navigation';
@@ -28,9 +28,9 @@ async function json<T>(page: Page, url: string): Promise<T> {
 
 /** Every place a role can open: its navigation, and the first record of each detail screen it reaches. */
 async function placesOf(page: Page, role: Role): Promise<Place[]> {
-  const sees = (name: string) => NAV_ITEMS.some((i) => i.name === name && i.roles.includes(role));
+  const sees = (name: string) => canSee(role, name);
   const screenOf: Record<string, string> = { site: 'site', planner: 'planner', 'sign-offs': 'sign-offs', lots: 'lots', batches: 'batches', billing: 'billing', audit: 'audit', you: 'you' };
-  const places: Place[] = NAV_ITEMS.filter((i) => i.roles.includes(role)).map((i) => ({ path: i.href, screen: `screen-${screenOf[i.name]}` }));
+  const places: Place[] = NAV_ITEMS.filter((i) => sees(i.name)).map((i) => ({ path: i.href, screen: `screen-${screenOf[i.name]}` }));
   places.push({ path: '/cautions', screen: 'screen-cautions' });
   if (sees('sign-offs')) {
     const { changeRequests } = await json<{ changeRequests: { id: number; status: string }[] }>(page, '/api/change-requests');
@@ -73,6 +73,11 @@ describe('every screen of every role lays out cleanly', () => {
   it.each(ROLES)('%s: nothing covered, nothing cut off, no console error, every figure labelled (phone and desktop)', async (role) => {
     const watched: Watched = await watchedPage(browser, PHONE);
     const { page, context, errors } = watched;
+    // The navigation's places make no call the API refuses this role (src/contracts/permissions.ts).
+    const refused: string[] = [];
+    page.on('response', (r) => {
+      if (r.status() === 403 && new URL(r.url()).pathname.startsWith('/api/')) refused.push(`${r.request().method()} ${new URL(r.url()).pathname} refused`);
+    });
     // One sign-in per role; both sizes reuse it.
     await signIn(page, baseURL, role);
     await acknowledgeCautionsIfShown(page, `screen-${HOME[role].slice(1)}`);
@@ -88,6 +93,7 @@ describe('every screen of every role lays out cleanly', () => {
         const text = await page.getByTestId(place.screen).innerText();
         found.push(...unlabelledFigures(text).map((p) => `${where}: ${p}`));
         found.push(...errors.splice(0).map((e) => `${where}: console: ${e}`));
+        found.push(...refused.splice(0).map((e) => `${where}: ${e}`));
         await screenshot(page, `guard-${role}${place.path.replace(/\//g, '-')}-${viewport.width}x${viewport.height}`);
       }
     }

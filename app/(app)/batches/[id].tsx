@@ -1,4 +1,4 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { useEffect, useMemo, useState } from 'react';
 import { Linking, StyleSheet, View } from 'react-native';
 import { CloseBatchCard } from '@/components/batches/close-batch-card';
@@ -10,15 +10,15 @@ import { LinkLine } from '@/components/batches/link-line';
 import { ReadingEntry } from '@/components/batches/reading-entry';
 import { StatusFigures } from '@/components/batches/status-figures';
 import { BatchTemperatureChart } from '@/components/charts/batch-temperature-chart';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, CachedNote, Card, DataTable, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { batchHours, batchStatus, durationText, readingsExplained } from '@/batches';
 import type { BatchDetail } from '@/contracts/batches';
-import { BATCH_STARTERS, READING_LOGGERS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import type { Role } from '@/contracts/roles';
 import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';
 import { useBatchLink } from '@/hooks/use-control-link';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useLogReading } from '@/hooks/use-log-reading';
 import { useSession } from '@/hooks/use-session';
 import { useSiteFormat } from '@/hooks/use-site-format';
@@ -73,8 +73,8 @@ function BatchBody({ id }: { id: number }) {
   if (isLoading || !data || !preview) return <Loader rows={6} label="Loading the batch" />;
   const { batch: b, status } = data;
   const isRunning = b.state === 'running';
-  const canLog = isRunning && (READING_LOGGERS as readonly Role[]).includes(role);
-  const canClose = isRunning && (BATCH_STARTERS as readonly Role[]).includes(role);
+  const canLog = isRunning && can(role, 'readings.log');
+  const canClose = isRunning && can(role, 'batches.close');
   const last = preview.all.at(-1) ?? null;
   const openDeviations = data.deviations.filter((d) => d.state !== 'closed').length;
   const nowH = batchHours(b.startedAt, data.now);
@@ -177,14 +177,11 @@ function BatchBody({ id }: { id: number }) {
 }
 
 export default function BatchScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const batchId = Number(id);
+  const batchId = useIdParam();
   return (
-    <RoleGate name="batches">
-      <Screen title="Batch" subtitle="Log the reactor temperature; the forecast follows." testID="screen-batch" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}>
-        {Number.isInteger(batchId) && batchId > 0 ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
-      </Screen>
-    </RoleGate>
+    <Screen title="Batch" subtitle="Log the reactor temperature; the forecast follows." testID="screen-batch" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}>
+      {batchId ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
+    </Screen>
   );
 }
 

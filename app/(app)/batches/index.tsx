@@ -4,10 +4,9 @@ import { BatchCard } from '@/components/batches/batch-card';
 import { DeviationRulesCard } from '@/components/batches/deviation-rules-card';
 import { ForecastAccuracyChart } from '@/components/charts/forecast-accuracy-chart';
 import { forecastAccuracyGeometry } from '@/components/charts/forecast-accuracy-geometry';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import type { BatchSummary } from '@/contracts/batches';
-import { BATCH_STARTERS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useBatches } from '@/hooks/use-batches';
 import { useSession } from '@/hooks/use-session';
@@ -48,7 +47,7 @@ function BatchesBody() {
   const { session } = useSession();
   const { isWide } = useBreakpoint();
   const { data, error, isLoading, retry } = useBatches();
-  const canStart = !!session && (BATCH_STARTERS as readonly string[]).includes(session.user.role);
+  const canStart = !!session && can(session.user.role, 'batches.start');
   const start = canStart ? (
     <View style={styles.start}>
       <Button label="Start a batch" onPress={() => router.push('/batches/start')} testID="start-batch" />
@@ -74,7 +73,7 @@ function BatchesBody() {
           {/* After the batches it summarises; on a phone the running batches and their history come first. */}
           <Accuracy closed={closed} />
           {/* Last: it loads on its own, and below everything it moves nothing when it arrives. */}
-          <DeviationRulesCard canChange={session?.user.role === 'supervisor' || session?.user.role === 'admin'} />
+          <DeviationRulesCard canChange={!!session && can(session.user.role, 'batches.settings')} />
         </View>
       </View>
     </>
@@ -83,11 +82,9 @@ function BatchesBody() {
 
 export default function BatchesScreen() {
   return (
-    <RoleGate name="batches">
-      <Screen title="Batches" subtitle="Running batches: log the reactor temperature and follow the forecast." testID="screen-batches">
-        <BatchesBody />
-      </Screen>
-    </RoleGate>
+    <Screen title="Batches" subtitle="Running batches: log the reactor temperature and follow the forecast." testID="screen-batches">
+      <BatchesBody />
+    </Screen>
   );
 }
 

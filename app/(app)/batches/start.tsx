@@ -1,10 +1,8 @@
 import { router } from 'expo-router';
 import { useEffect, useState } from 'react';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Choice, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { Field } from '@/components/ui/field';
-import { BATCH_STARTERS } from '@/contracts/rules';
-import type { Role } from '@/contracts/roles';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useSession } from '@/hooks/use-session';
 import { useRecipe, useRecipes } from '@/hooks/use-recipes';
@@ -43,7 +41,7 @@ function StartForm() {
     setLotId(detail.data.recipe.lotId);
   }, [detail.data]);
 
-  if (session && !(BATCH_STARTERS as readonly Role[]).includes(session.user.role))
+  if (session && !can(session.user.role, 'batches.start'))
     return <EmptyState title="Not part of your role" message="Supervisors and engineers start batches." />;
   const failed = recipes.error ?? vessels.error;
   if (failed) return <ErrorState error={failed} onRetry={() => (recipes.retry(), vessels.retry())} />;
@@ -95,10 +93,8 @@ function StartForm() {
 
 export default function StartBatchScreen() {
   return (
-    <RoleGate name="batches">
-      <Screen title="Start a batch" subtitle="Recipe, vessel, an accepted lot and the start time." testID="screen-batch-start" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} />}>
-        <StartForm />
-      </Screen>
-    </RoleGate>
+    <Screen title="Start a batch" subtitle="Recipe, vessel, an accepted lot and the start time." testID="screen-batch-start" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} />}>
+      <StartForm />
+    </Screen>
   );
 }

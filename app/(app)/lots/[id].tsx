@@ -1,12 +1,12 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { AssayEntry } from '@/components/lots/assay-entry';
 import { AssayResults } from '@/components/lots/assay-results';
 import { CertificateCard } from '@/components/lots/certificate-card';
 import { DecisionCard } from '@/components/lots/decision-card';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, Columns, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
-import { LOT_DECIDERS, LOT_EDITORS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useLot } from '@/hooks/use-lots';
 import { useSession } from '@/hooks/use-session';
 
@@ -19,7 +19,7 @@ function LotBody({ id }: { id: number }) {
   if (error) return <ErrorState error={error} onRetry={retry} />;
   if (isLoading || !data) return <Loader rows={6} label="Loading the lot" />;
   const { lot, enzyme } = data;
-  const canEdit = (LOT_EDITORS as readonly string[]).includes(role);
+  const canEdit = can(role, 'lots.edit');
   return (
     <>
       <Card>
@@ -45,7 +45,7 @@ function LotBody({ id }: { id: number }) {
         </Card>
       ) : null}
       <Columns>
-        <DecisionCard detail={data} canDecide={(LOT_DECIDERS as readonly string[]).includes(role)} />
+        <DecisionCard detail={data} canDecide={can(role, 'lots.decide')} />
         <CertificateCard lot={lot} conversion={data.conversion} certificate={data.certificate} canEdit={canEdit} />
       </Columns>
       {canEdit ? <AssayEntry lotId={lot.id} /> : null}
@@ -59,18 +59,15 @@ function LotBody({ id }: { id: number }) {
 }
 
 export default function LotScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const lotId = Number(id);
+  const lotId = useIdParam();
   return (
-    <RoleGate name="lots">
-      <Screen
-        title="Lot"
-        subtitle="Certificate, QC assays and the decision on this lot."
-        testID="screen-lot"
-        actions={<Button label="All lots" variant="ghost" compact onPress={() => (router.canGoBack() ? router.back() : router.replace('/lots'))} />}
-      >
-        {Number.isInteger(lotId) && lotId > 0 ? <LotBody id={lotId} /> : <EmptyState title="No such lot" message="The address does not name a lot." />}
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Lot"
+      subtitle="Certificate, QC assays and the decision on this lot."
+      testID="screen-lot"
+      actions={<Button label="All lots" variant="ghost" compact onPress={() => (router.canGoBack() ? router.back() : router.replace('/lots'))} />}
+    >
+      {lotId ? <LotBody id={lotId} /> : <EmptyState title="No such lot" message="The address does not name a lot." />}
+    </Screen>
   );
 }

@@ -3,10 +3,9 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { LotForm } from '@/components/lots/lot-form';
 import { Choice } from '@/components/ui/choice';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Lot, LotStatus } from '@/contracts/lots';
-import { LOT_EDITORS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { halfLifeFromKd } from '@/model/units';
 import { useEnzymes } from '@/hooks/use-enzymes';
@@ -34,7 +33,7 @@ const FILTERS = [
 
 function LotsBody() {
   const { session } = useSession();
-  const canEdit = !!session && (LOT_EDITORS as readonly string[]).includes(session.user.role);
+  const canEdit = !!session && can(session.user.role, 'lots.edit');
   const { data, error, isLoading, retry } = useLots();
   const enzymes = useEnzymes({ pageSize: 200 });
   const [filter, setFilter] = useState<(typeof FILTERS)[number]['value']>('all');
@@ -86,11 +85,9 @@ function LotsBody() {
 
 export default function LotsScreen() {
   return (
-    <RoleGate name="lots">
-      <Screen title="Lots" subtitle="Incoming enzyme lots and their stability against specification." testID="screen-lots">
-        <LotsBody />
-      </Screen>
-    </RoleGate>
+    <Screen title="Lots" subtitle="Incoming enzyme lots and their stability against specification." testID="screen-lots">
+      <LotsBody />
+    </Screen>
   );
 }
 

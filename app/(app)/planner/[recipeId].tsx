@@ -1,11 +1,11 @@
-import { useLocalSearchParams } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { RecipeForm } from '@/components/planner/recipe-form';
 import { RecipePlanner } from '@/components/planner/recipe-planner';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, ErrorState, Loader, Screen } from '@/components/ui';
+import { can } from '@/contracts/permissions';
 import type { Recipe } from '@/contracts/recipes';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useRecipe } from '@/hooks/use-recipes';
 import { useSession } from '@/hooks/use-session';
 import { space } from '@/theme';
@@ -14,7 +14,7 @@ import { space } from '@/theme';
 function RecipeChange({ recipe }: { recipe: Recipe }) {
   const { session } = useSession();
   const [isOpen, setOpen] = useState(false);
-  if (session?.user.role !== 'engineer' && session?.user.role !== 'admin') return null;
+  if (!session || !can(session.user.role, 'recipes.edit')) return null;
   if (isOpen) return <RecipeForm recipe={recipe} onDone={() => setOpen(false)} />;
   return (
     <View style={styles.change}>
@@ -46,12 +46,9 @@ function Body({ id }: { id: number | null }) {
 }
 
 export default function RecipePlannerScreen() {
-  const { recipeId } = useLocalSearchParams<{ recipeId: string }>();
-  const id = Number(recipeId);
+  const id = useIdParam('recipeId');
   return (
-    <RoleGate name="planner">
-      <Body id={Number.isInteger(id) && id > 0 ? id : null} />
-    </RoleGate>
+    <Body id={id} />
   );
 }
 

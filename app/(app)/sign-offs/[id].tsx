@@ -1,8 +1,7 @@
-import { useLocalSearchParams } from 'expo-router';
 import { ChangeRequestRecord } from '@/components/change-control/change-request-record';
-import { RoleGate } from '@/components/shell/role-gate';
 import { ErrorState, Loader, Screen } from '@/components/ui';
 import { useChangeRequest } from '@/hooks/use-change-requests';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useSession } from '@/hooks/use-session';
 
 function Body({ id }: { id: number | null }) {
@@ -15,13 +14,10 @@ function Body({ id }: { id: number | null }) {
 }
 
 export default function ChangeRequestScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const n = Number(id);
+  const id = useIdParam();
   return (
-    <RoleGate name="sign-offs">
-      <Screen title="Setpoint change" subtitle="Current against proposed, the reasons, and every signature." testID="screen-change-request">
-        <Body id={Number.isInteger(n) && n > 0 ? n : null} />
-      </Screen>
-    </RoleGate>
+    <Screen title="Setpoint change" subtitle="Current against proposed, the reasons, and every signature." testID="screen-change-request">
+      <Body id={id} />
+    </Screen>
   );
 }

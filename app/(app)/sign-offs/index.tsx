@@ -2,9 +2,9 @@ import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { ChangeRequestList } from '@/components/change-control/change-request-list';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Choice, EmptyState, ErrorState, Loader, Screen } from '@/components/ui';
 import type { ChangeStatus } from '@/contracts/change-requests';
+import { can } from '@/contracts/permissions';
 import { useChangeRequests } from '@/hooks/use-change-requests';
 import { useSession } from '@/hooks/use-session';
 import { space } from '@/theme';
@@ -43,24 +43,22 @@ function Body() {
 export default function SignOffsScreen() {
   const { session } = useSession();
   const role = session?.user.role;
-  const canAudit = role === 'supervisor' || role === 'admin';
+  const canAudit = !!role && can(role, 'audit-events.review');
   return (
-    <RoleGate name="sign-offs">
-      <Screen
-        title="Sign-offs"
-        subtitle="Proposed setpoint changes, their review and electronic signatures."
-        testID="screen-sign-offs"
-        actions={
-          <View style={styles.actions}>
-            {/* Only engineers save plans, so only they can propose one. */}
-            {role === 'engineer' ? <Button label="Propose from a plan" variant="secondary" testID="open-planner" onPress={() => router.navigate('/planner')} /> : null}
-            {canAudit ? <Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} /> : null}
-          </View>
-        }
-      >
-        <Body />
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Sign-offs"
+      subtitle="Proposed setpoint changes, their review and electronic signatures."
+      testID="screen-sign-offs"
+      actions={
+        <View style={styles.actions}>
+          {/* Only engineers save plans, so only they can propose one. */}
+          {role === 'engineer' ? <Button label="Propose from a plan" variant="secondary" testID="open-planner" onPress={() => router.navigate('/planner')} /> : null}
+          {canAudit ? <Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} /> : null}
+        </View>
+      }
+    >
+      <Body />
+    </Screen>
   );
 }
 

@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import type { Corrective, Deviation } from '../../contracts/batches';
-import { DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS } from '../../contracts/rules';
+import { can } from '../../contracts/permissions';
 import type { Role } from '../../contracts/roles';
 import { fmt } from '../../format';
 import { useAcknowledgeDeviation } from '../../hooks/use-acknowledge-deviation';
@@ -39,8 +39,8 @@ function DeviationItem({ d, role, current }: { d: Deviation; role: Role; current
   const [comment, setComment] = useState('');
   const ack = useAcknowledgeDeviation();
   const close = useCloseDeviation();
-  const canAck = d.state === 'open' && (DEVIATION_ACKNOWLEDGERS as readonly Role[]).includes(role);
-  const canClose = d.state === 'acknowledged' && (DEVIATION_CLOSERS as readonly Role[]).includes(role);
+  const canAck = d.state === 'open' && can(role, 'deviations.acknowledge');
+  const canClose = d.state === 'acknowledged' && can(role, 'deviations.close');
   const tone = d.state === 'open' ? 'danger' : d.state === 'acknowledged' ? 'warning' : 'muted';
   return (
     <View style={[styles.item, { borderColor: d.state === 'open' ? c.danger : c.border }]} testID={`deviation-${d.id}`}>

@@ -1,6 +1,7 @@
 import { router } from 'expo-router';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
 import type { ChangeRequestDetail } from '../../contracts/change-requests';
+import { can } from '../../contracts/permissions';
 import type { SessionUser } from '../../contracts/session';
 import { fmt } from '../../format';
 import { space } from '../../theme';
@@ -11,6 +12,7 @@ import { Comparison } from './comparison';
 import { closedBecause, STATUS_LABELS, STATUS_TONES } from './labels';
 import { SignForm } from './sign-form';
 import { SignatureList } from './signature-list';
+import { canSee } from '../shell/navigation';
 import { pricesText } from '../planner/plan-sheet';
 import { useSiteFormat } from '../../hooks/use-site-format';
 
@@ -39,7 +41,7 @@ function inputRows(d: ChangeRequestDetail, currency: string): Row[] {
 
 /** A change request as a record: what is proposed against what runs now, why, the plan's inputs and every signature. */
 export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequestDetail; user: SessionUser }) {
-  const canSign = user.role === 'supervisor' && d.status === 'proposed';
+  const canSign = can(user.role, 'change-requests.sign') && d.status === 'proposed';
   const isOwn = d.proposedById === user.id;
   const cautions = d.plan.outputs.cautions;
   const site = useSiteFormat();
@@ -56,7 +58,7 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
       <View style={styles.actions} testID="record-actions">
         <Button label="Print" variant="secondary" onPress={() => (Platform.OS === 'web' ? window.print() : undefined)} testID="record-print" />
         <Button label="Export CSV" variant="secondary" onPress={() => Linking.openURL(`/api/change-requests/${d.id}/export.csv`)} testID="record-csv" />
-        {user.role !== 'admin' ? <Button label="Open the plan" variant="ghost" onPress={() => router.push(`/planner/plan/${d.planId}`)} /> : null}
+        {canSee(user.role, 'planner') ? <Button label="Open the plan" variant="ghost" onPress={() => router.push(`/planner/plan/${d.planId}`)} /> : null}
       </View>
       {d.supersededBy !== null ? (
         <Card testID="record-closed">

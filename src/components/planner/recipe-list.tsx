@@ -1,6 +1,7 @@
 import { router } from 'expo-router';
 import { useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
+import { can } from '../../contracts/permissions';
 import type { Recipe } from '../../contracts/recipes';
 import type { Vessel } from '../../contracts/vessels';
 import { fmt } from '../../format';
@@ -47,7 +48,7 @@ export function RecipeList() {
   const vessels = useVessels();
   const { isWide } = useBreakpoint();
   const { session } = useSession();
-  const canEdit = session?.user.role === 'engineer' || session?.user.role === 'admin';
+  const canEdit = !!session && can(session.user.role, 'recipes.edit');
   // null: no form; 'new': adding; a vessel: changing it.
   const [editing, setEditing] = useState<Vessel | 'new' | null>(null);
   const [isAddingRecipe, setAddingRecipe] = useState(false);

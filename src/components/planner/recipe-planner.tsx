@@ -9,7 +9,7 @@ import { useSession } from '../../hooks/use-session';
 import { useUncertainty } from '../../hooks/use-uncertainty';
 import { uncertaintyInput, type PlanEvaluation } from '../../planning';
 import { radius, space, useBreakpoint, useColors } from '../../theme';
-import { CALIBRATION_READERS } from '../../contracts/rules';
+import { can } from '../../contracts/permissions';
 import { CalibrationReview } from '../calibration/calibration-review';
 import { EvidenceNote } from '../evidence/evidence-note';
 import { Button, Card, EmptyState, Text } from '../ui';
@@ -154,7 +154,7 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
     <Recommendation
       ev={ev}
       inputs={inputs}
-      canSave={session?.user.role === 'engineer'}
+      canSave={!!session && can(session.user.role, 'plans.create')}
       isSaving={isBusy}
       saveError={saveError ? saveError.message : null}
       onSave={save}
@@ -187,7 +187,7 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
   );
   const role = session?.user.role;
   const calibration =
-    role && (CALIBRATION_READERS as readonly string[]).includes(role) ? <CalibrationReview recipeId={detail.recipe.id} lotId={inputs.lotId} canDecide={role === 'engineer'} /> : null;
+    role && can(role, 'calibrations.read') ? <CalibrationReview recipeId={detail.recipe.id} lotId={inputs.lotId} canDecide={can(role, 'calibrations.decide')} /> : null;
   const rest = (
     <>
       <TimeCharts ev={ev} series={series} inputs={inputs} />

@@ -6,8 +6,9 @@ import { Screen } from '../ui/screen';
 import { canSee, NAV_ITEMS } from './navigation';
 
 /**
- * Renders a tab's screen only for the roles it belongs to; the API enforces the same rule. The build-time snapshot
- * knows no role: it shows the screen's headings and placeholders, which are the same for everyone.
+ * Renders a tab's screens only for the roles whose `place.<name>` row of the permission table holds them; each tab's
+ * `_layout.tsx` wraps its `<Slot />` in one, and the API enforces the same table. The build-time snapshot knows no
+ * role: it shows the screen's headings and placeholders, which are the same for everyone.
  */
 export function RoleGate({ name, children }: { name: string; children: ReactNode }) {
   const { session } = useSession();

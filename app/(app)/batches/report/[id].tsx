@@ -1,10 +1,10 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { Linking, Platform, StyleSheet, View } from 'react-native';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Deviation, Reading } from '@/contracts/batches';
 import { fmt } from '@/format';
 import { useBatch } from '@/hooks/use-batches';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useSiteFormat } from '@/hooks/use-site-format';
 import { space } from '@/theme';
 
@@ -91,14 +91,11 @@ function ReportBody({ id }: { id: number }) {
 }
 
 export default function BatchReportScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const batchId = Number(id);
+  const batchId = useIdParam();
   return (
-    <RoleGate name="batches">
-      <Screen title="Batch report" subtitle="Recipe, plan, readings and deviations, for the batch record." testID="screen-batch-report">
-        {Number.isInteger(batchId) && batchId > 0 ? <ReportBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
-      </Screen>
-    </RoleGate>
+    <Screen title="Batch report" subtitle="Recipe, plan, readings and deviations, for the batch record." testID="screen-batch-report">
+      {batchId ? <ReportBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
+    </Screen>
   );
 }
 

@@ -1,14 +1,14 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { LotHistoryChart } from '@/components/charts/lot-history-chart';
 import { EnzymeForm } from '@/components/lots/enzyme-form';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, Card, DataTable, EmptyState, ErrorState, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { LotHistoryPoint } from '@/contracts/enzymes';
-import { LOT_EDITORS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useEnzyme } from '@/hooks/use-enzymes';
+import { useIdParam } from '@/hooks/use-id-param';
 import { useSession } from '@/hooks/use-session';
 
 const STATUS = { quarantined: 'Quarantined', accepted: 'Accepted', rejected: 'Rejected' } as const;
@@ -30,7 +30,7 @@ function EnzymeBody({ id }: { id: number }) {
   if (error) return <ErrorState error={error} onRetry={retry} />;
   if (isLoading || !data) return <Loader rows={4} label="Loading the enzyme" />;
   const e = data.enzyme;
-  const canEdit = !!session && (LOT_EDITORS as readonly string[]).includes(session.user.role);
+  const canEdit = !!session && can(session.user.role, 'lots.edit');
   return (
     <>
       <Card>
@@ -69,19 +69,16 @@ function EnzymeBody({ id }: { id: number }) {
 }
 
 export default function EnzymeScreen() {
-  const { id } = useLocalSearchParams<{ id: string }>();
-  const enzymeId = Number(id);
+  const enzymeId = useIdParam();
   return (
-    <RoleGate name="lots">
-      <Screen
-        title="Enzyme"
-        subtitle="Its specification and how its lots have measured up."
-        testID="screen-enzyme"
-        actions={<Button label="Enzyme library" variant="ghost" compact onPress={() => router.replace('/lots/enzymes')} />}
-      >
-        {Number.isInteger(enzymeId) && enzymeId > 0 ? <EnzymeBody id={enzymeId} /> : <EmptyState title="No such enzyme" message="The address does not name an enzyme." />}
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Enzyme"
+      subtitle="Its specification and how its lots have measured up."
+      testID="screen-enzyme"
+      actions={<Button label="Enzyme library" variant="ghost" compact onPress={() => router.replace('/lots/enzymes')} />}
+    >
+      {enzymeId ? <EnzymeBody id={enzymeId} /> : <EmptyState title="No such enzyme" message="The address does not name an enzyme." />}
+    </Screen>
   );
 }
 

@@ -3,10 +3,9 @@ import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { Choice } from '@/components/ui/choice';
 import { EnzymeForm } from '@/components/lots/enzyme-form';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, DataTable, EmptyState, ErrorState, Field, Loader, Screen, Text, type Column } from '@/components/ui';
 import type { Enzyme, EnzymeSort } from '@/contracts/enzymes';
-import { LOT_EDITORS } from '@/contracts/rules';
+import { can } from '@/contracts/permissions';
 import { fmt } from '@/format';
 import { useEnzymes } from '@/hooks/use-enzymes';
 import { useSession } from '@/hooks/use-session';
@@ -31,7 +30,7 @@ const SORTS = [
 
 function EnzymesBody() {
   const { session } = useSession();
-  const canEdit = !!session && (LOT_EDITORS as readonly string[]).includes(session.user.role);
+  const canEdit = !!session && can(session.user.role, 'lots.edit');
   const [q, setQ] = useState('');
   const [sort, setSort] = useState<(typeof SORTS)[number]['value']>('name');
   const [dir, setDir] = useState<'asc' | 'desc'>('asc');
@@ -94,16 +93,14 @@ function EnzymesBody() {
 
 export default function EnzymesScreen() {
   return (
-    <RoleGate name="lots">
-      <Screen
-        title="Enzyme library"
-        subtitle="Enzyme products, their activity units and the stability each lot must meet."
-        testID="screen-enzymes"
-        actions={<Button label="All lots" variant="ghost" compact onPress={() => router.replace('/lots')} />}
-      >
-        <EnzymesBody />
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Enzyme library"
+      subtitle="Enzyme products, their activity units and the stability each lot must meet."
+      testID="screen-enzymes"
+      actions={<Button label="All lots" variant="ghost" compact onPress={() => router.replace('/lots')} />}
+    >
+      <EnzymesBody />
+    </Screen>
   );
 }
 

@@ -1,7 +1,7 @@
-import { router, useLocalSearchParams } from 'expo-router';
+import { router } from 'expo-router';
 import { PlanSheet } from '@/components/planner/plan-sheet';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Button, ErrorState, Loader, Screen } from '@/components/ui';
+import { useIdParam } from '@/hooks/use-id-param';
 import { usePlan } from '@/hooks/use-plans';
 
 function Body({ id }: { id: number | null }) {
@@ -13,18 +13,15 @@ function Body({ id }: { id: number | null }) {
 }
 
 export default function PlanScreen() {
-  const { planId } = useLocalSearchParams<{ planId: string }>();
-  const id = Number(planId);
+  const id = useIdParam('planId');
   return (
-    <RoleGate name="planner">
-      <Screen
-        title="Saved plan"
-        subtitle="Immutable once saved; change control signs exactly this content."
-        testID="screen-plan"
-        actions={id > 0 ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined}
-      >
-        <Body id={Number.isInteger(id) && id > 0 ? id : null} />
-      </Screen>
-    </RoleGate>
+    <Screen
+      title="Saved plan"
+      subtitle="Immutable once saved; change control signs exactly this content."
+      testID="screen-plan"
+      actions={id !== null ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined}
+    >
+      <Body id={id} />
+    </Screen>
   );
 }

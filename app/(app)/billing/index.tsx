@@ -1,6 +1,5 @@
 import { useLocalSearchParams } from 'expo-router';
 import { BuySeatsCard, InvoicesTable, PaymentNotice, PlanCard, PlanFigures, ReduceSeatsCard } from '@/components/billing/billing-panels';
-import { RoleGate } from '@/components/shell/role-gate';
 import { Card, Columns, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { useBilling, useInvoices } from '@/hooks/use-billing';
 
@@ -54,10 +53,8 @@ function BillingBody() {
 
 export default function BillingScreen() {
   return (
-    <RoleGate name="billing">
-      <Screen title="Billing" subtitle="Licence seats, payments and invoices." testID="screen-billing">
-        <BillingBody />
-      </Screen>
-    </RoleGate>
+    <Screen title="Billing" subtitle="Licence seats, payments and invoices." testID="screen-billing">
+      <BillingBody />
+    </Screen>
   );
 }

@@ -1,6 +1,5 @@
 import { useState } from 'react';
 import { Linking, StyleSheet, View } from 'react-native';
-import { RoleGate } from '@/components/shell/role-gate';
 import { AuditEventItem } from '@/components/audit/audit-event-item';
 import { Button, Card, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { useAuditEvents } from '@/hooks/use-audit-events';
@@ -95,11 +94,9 @@ function AuditBody() {
 
 export default function AuditScreen() {
   return (
-    <RoleGate name="audit">
-      <Screen title="Audit trail" subtitle="Every sign-in, change, signature and decision at this site, on the site clock. Append-only; the CSV keeps each raw record." testID="screen-audit">
-        <AuditBody />
-      </Screen>
-    </RoleGate>
+    <Screen title="Audit trail" subtitle="Every sign-in, change, signature and decision at this site, on the site clock. Append-only; the CSV keeps each raw record." testID="screen-audit">
+      <AuditBody />
+    </Screen>
   );
 }
 

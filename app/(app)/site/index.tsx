@@ -5,8 +5,8 @@ import { LinkAdmin } from '@/components/control-link/link-admin';
 import { InviteCard } from '@/components/people/invite-card';
 import { OutboxList } from '@/components/people/outbox-list';
 import { PendingInvites, PeopleList } from '@/components/people/people-list';
-import { RoleGate } from '@/components/shell/role-gate';
 import { CurrencyCard } from '@/components/site/currency-card';
+import { can } from '@/contracts/permissions';
 import { Button, Card, Columns, EmptyState, ErrorState, Figure, Loader, Screen, Text } from '@/components/ui';
 import { useInvites } from '@/hooks/use-invites';
 import { useMailOutbox } from '@/hooks/use-mail-outbox';
@@ -55,8 +55,7 @@ function SiteBody() {
   if (site.error) return <ErrorState error={site.error} onRetry={site.retry} />;
   // The frame is drawn before the site has loaded (and so in the page's HTML snapshot): the figures hold a dash
   // until their counts arrive, so nothing moves and the largest text is on screen with the first paint.
-  // Only admins pass the gate; the snapshot, which knows no session, draws the admin's frame.
-  const canChange = !session || session.user.role === 'admin';
+  // The snapshot, which knows no session, draws the frame of those who may change the settings.
   const counts = site.data?.counts;
   const shown = (n: number | undefined) => n ?? '–';
   return (
@@ -70,8 +69,8 @@ function SiteBody() {
         <Figure label="enzymes" value={shown(counts?.enzymes)} testID="site-enzymes" />
         <Figure label="lots awaiting a decision" value={shown(counts?.quarantinedLots)} testID="site-quarantined" />
       </View>
-      <CurrencyCard key={site.data?.currency ?? ''} currency={site.data?.currency} canChange={canChange} />
-      <MeasurementSdCard canChange={canChange} />
+      <CurrencyCard key={site.data?.currency ?? ''} currency={site.data?.currency} canChange={!session || can(session.user.role, 'site.edit')} />
+      <MeasurementSdCard canChange={!session || can(session.user.role, 'calibrations.settings')} />
       <LinkAdmin />
       <Columns gap={space.md}>
         <>
@@ -91,7 +90,7 @@ function SiteBody() {
   );
 }
 
-function SiteScreenContent() {
+export default function SiteScreen() {
   return (
     <Screen
       title="Site"
@@ -101,14 +100,6 @@ function SiteScreenContent() {
     >
       <SiteBody />
     </Screen>
-  );
-}
-
-export default function SiteScreen() {
-  return (
-    <RoleGate name="site">
-      <SiteScreenContent />
-    </RoleGate>
   );
 }
 
