@@ -21,7 +21,9 @@ const q = (s: string) => `'${s.replace(/\\/g, '\\\\').replace(/'/g, "\\'")}'`;
 
 type TableEntry = { exportName: string; table: SQLiteTable };
 const tablesOf = (mod: Record<string, unknown>): TableEntry[] =>
-  Object.entries(mod).flatMap(([exportName, table]) => (is(table, SQLiteTable) ? [{ exportName, table }] : []));
+  Object.entries(mod)
+    .flatMap(([exportName, table]) => (is(table, SQLiteTable) ? [{ exportName, table }] : []))
+    .sort((a, b) => a.exportName.localeCompare(b.exportName));
 
 function defaultOf(c: SQLiteColumn, where: string): string {
   // An INTEGER PRIMARY KEY counts as having a default (SQLite's rowid): with AUTOINCREMENT identity gives it in
@@ -59,7 +61,7 @@ function columnCode(c: SQLiteColumn, key: string, exportName: string, fks: Map<s
       code = c.enumValues?.length ? `text(${q(c.name)}, { enum: [${c.enumValues.map(q).join(', ')}] })` : `text(${q(c.name)})`;
       break;
     case 'SQLiteTextJson':
-      code = `json(${q(c.name)}).$type<NonNullable<(typeof sqlite.${exportName}.$inferSelect)[${q(key)}]>>()`;
+      code = `json(${q(c.name)}).$type<(typeof sqlite.${exportName}.$inferSelect)[${q(key)}]>()`;
       break;
     default:
       throw new Error(`${where}: column type ${c.columnType} has no PostgreSQL mapping yet`);

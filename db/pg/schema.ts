@@ -3,6 +3,43 @@ import { sql } from 'drizzle-orm';
 import { bigint, boolean, doublePrecision, index, json, pgTable, text, uniqueIndex } from 'drizzle-orm/pg-core';
 import type * as sqlite from '../schema';
 
+export const assayPoints = pgTable(
+  'assay_points',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    assayId: bigint('assay_id', { mode: 'number' }).notNull().references(() => assays.id),
+    line: bigint('line', { mode: 'number' }).notNull(),
+    tempC: doublePrecision('temp_c').notNull(),
+    timeH: doublePrecision('time_h').notNull(),
+    residual: doublePrecision('residual').notNull(),
+    note: text('note'),
+  },
+  (t) => [
+    index('assay_points_assay_idx').on(t.assayId),
+  ],
+);
+
+export const assays = pgTable(
+  'assays',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
+    source: text('source', { enum: ['csv', 'table'] }).notNull(),
+    fileName: text('file_name'),
+    scale: text('scale', { enum: ['fraction', 'percent'] }).notNull(),
+    scaleNote: text('scale_note').notNull(),
+    fit: json('fit').$type<(typeof sqlite.assays.$inferSelect)['fit']>(),
+    fitProblem: text('fit_problem'),
+    pointCount: bigint('point_count', { mode: 'number' }).notNull(),
+    createdBy: bigint('created_by', { mode: 'number' }).references(() => users.id),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+  },
+  (t) => [
+    index('assays_lot_idx').on(t.lotId),
+  ],
+);
+
 export const auditEvents = pgTable(
   'audit_events',
   {
@@ -13,8 +50,8 @@ export const auditEvents = pgTable(
     action: text('action').notNull(),
     entity: text('entity').notNull(),
     entityId: text('entity_id'),
-    oldValue: json('old_value').$type<NonNullable<(typeof sqlite.auditEvents.$inferSelect)['oldValue']>>(),
-    newValue: json('new_value').$type<NonNullable<(typeof sqlite.auditEvents.$inferSelect)['newValue']>>(),
+    oldValue: json('old_value').$type<(typeof sqlite.auditEvents.$inferSelect)['oldValue']>(),
+    newValue: json('new_value').$type<(typeof sqlite.auditEvents.$inferSelect)['newValue']>(),
     at: text('at').notNull(),
     prevHash: text('prev_hash').notNull(),
     hash: text('hash').notNull(),
@@ -24,49 +61,184 @@ export const auditEvents = pgTable(
   ],
 );
 
-export const sessions = pgTable(
-  'sessions',
-  {
-    id: text('id').primaryKey(),
-    userId: bigint('user_id', { mode: 'number' }).notNull().references(() => users.id),
-    role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
-    createdAt: text('created_at').notNull(),
-    lastSeenAt: text('last_seen_at').notNull(),
-    expiresAt: text('expires_at').notNull(),
-    revokedAt: text('revoked_at'),
-  },
-  (t) => [
-    index('sessions_user_idx').on(t.userId),
-  ],
-);
-
-export const sites = pgTable(
-  'sites',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    name: text('name').notNull(),
-    timeZone: text('time_zone').notNull().default('UTC'),
-    currency: text('currency').notNull().default('EUR'),
-    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
-  },
-);
-
-export const users = pgTable(
-  'users',
+export const batches = pgTable(
+  'batches',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
     siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    email: text('email').notNull(),
-    name: text('name').notNull(),
-    role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
-    passwordHash: text('password_hash').notNull(),
-    isActive: boolean('is_active').notNull().default(true),
-    cautionsAcknowledgedAt: text('cautions_acknowledged_at'),
+    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
+    vesselId: bigint('vessel_id', { mode: 'number' }).notNull().references(() => vessels.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
+    planId: bigint('plan_id', { mode: 'number' }).references(() => plans.id),
+    source: text('source', { enum: ['released_plan', 'current_setpoint'] }).notNull(),
+    program: json('program').$type<(typeof sqlite.batches.$inferSelect)['program']>().notNull(),
+    state: text('state', { enum: ['running', 'closed'] }).notNull().default('running'),
+    startedAt: text('started_at').notNull(),
+    startedBy: bigint('started_by', { mode: 'number' }).notNull().references(() => users.id),
+    closedAt: text('closed_at'),
+    closedBy: bigint('closed_by', { mode: 'number' }).references(() => users.id),
+    closeComment: text('close_comment'),
+    measuredProductGPerL: doublePrecision('measured_product_g_per_l'),
+    forecastAtCloseGPerL: doublePrecision('forecast_at_close_g_per_l'),
     createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
   (t) => [
-    uniqueIndex('users_email_unique').on(t.email),
-    index('users_site_idx').on(t.siteId),
+    index('batches_site_idx').on(t.siteId, t.state, t.id),
+  ],
+);
+
+export const batchReadings = pgTable(
+  'batch_readings',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
+    clientKey: text('client_key').notNull(),
+    takenAt: text('taken_at').notNull(),
+    c: doublePrecision('c').notNull(),
+    note: text('note'),
+    source: text('source', { enum: ['manual', 'historian', 'control_system'] }).notNull(),
+    enteredBy: bigint('entered_by', { mode: 'number' }).notNull().references(() => users.id),
+    receivedAt: text('received_at').notNull(),
+  },
+  (t) => [
+    uniqueIndex('batch_readings_key_unique').on(t.batchId, t.clientKey),
+    index('batch_readings_time_idx').on(t.batchId, t.takenAt),
+    index('batch_readings_batch_idx').on(t.batchId),
+    index('batch_readings_entered_idx').on(t.enteredBy, t.batchId),
+  ],
+);
+
+export const batchSettings = pgTable(
+  'batch_settings',
+  {
+    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
+    toleranceC: doublePrecision('tolerance_c').notNull(),
+    gapLimitMin: bigint('gap_limit_min', { mode: 'number' }).notNull(),
+    updatedAt: text('updated_at').notNull(),
+  },
+);
+
+export const billingEvents = pgTable(
+  'billing_events',
+  {
+    eventId: text('event_id').primaryKey(),
+    type: text('type').notNull(),
+    siteId: bigint('site_id', { mode: 'number' }),
+    receivedAt: text('received_at').notNull(),
+  },
+);
+
+export const calibrationExclusions = pgTable(
+  'calibration_exclusions',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
+    reason: text('reason').notNull(),
+    excludedBy: bigint('excluded_by', { mode: 'number' }).notNull().references(() => users.id),
+    excludedAt: text('excluded_at').notNull(),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+  },
+  (t) => [
+    uniqueIndex('calibration_exclusions_batch_unique').on(t.batchId),
+  ],
+);
+
+export const calibrations = pgTable(
+  'calibrations',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
+    state: text('state', { enum: ['proposed', 'accepted', 'superseded'] }).notNull(),
+    batchIds: json('batch_ids').$type<(typeof sqlite.calibrations.$inferSelect)['batchIds']>().notNull(),
+    result: json('result').$type<(typeof sqlite.calibrations.$inferSelect)['result']>().notNull(),
+    createdAt: text('created_at').notNull(),
+    decidedBy: bigint('decided_by', { mode: 'number' }).references(() => users.id),
+    decidedAt: text('decided_at'),
+  },
+  (t) => [
+    index('calibrations_recipe_lot_idx').on(t.siteId, t.recipeId, t.lotId, t.state),
+  ],
+);
+
+export const calibrationSettings = pgTable(
+  'calibration_settings',
+  {
+    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
+    measurementRelSd: doublePrecision('measurement_rel_sd').notNull(),
+    updatedAt: text('updated_at').notNull(),
+  },
+);
+
+export const certificateFiles = pgTable(
+  'certificate_files',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
+    fileName: text('file_name').notNull(),
+    mimeType: text('mime_type', { enum: ['application/pdf', 'image/png', 'image/jpeg'] }).notNull(),
+    sizeBytes: bigint('size_bytes', { mode: 'number' }).notNull(),
+    sha256: text('sha256').notNull(),
+    uploadedBy: bigint('uploaded_by', { mode: 'number' }).references(() => users.id),
+    uploadedAt: text('uploaded_at').notNull(),
+  },
+  (t) => [
+    index('certificate_files_lot_idx').on(t.lotId),
+  ],
+);
+
+export const changeRequests = pgTable(
+  'change_requests',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
+    planId: bigint('plan_id', { mode: 'number' }).notNull().references(() => plans.id),
+    proposedBy: bigint('proposed_by', { mode: 'number' }).notNull().references(() => users.id),
+    rationale: text('rationale').notNull(),
+    expectedEffect: text('expected_effect').notNull(),
+    effectiveFrom: text('effective_from').notNull(),
+    status: text('status', { enum: ['proposed', 'approved', 'rejected', 'superseded', 'stale'] }).notNull().default('proposed'),
+    recordHash: text('record_hash').notNull(),
+    createdAt: text('created_at').notNull(),
+    decidedAt: text('decided_at'),
+    replaced: json('replaced').$type<(typeof sqlite.changeRequests.$inferSelect)['replaced']>(),
+    supersededBy: bigint('superseded_by', { mode: 'number' }),
+  },
+  (t) => [
+    index('change_requests_site_idx').on(t.siteId, t.status, t.id),
+  ],
+);
+
+export const deviations = pgTable(
+  'deviations',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
+    kind: text('kind', { enum: ['band', 'gap', 'vessel_max', 'forecast_low', 'signal_lost'] }).notNull(),
+    state: text('state', { enum: ['open', 'acknowledged', 'closed'] }).notNull().default('open'),
+    readingId: bigint('reading_id', { mode: 'number' }).references(() => batchReadings.id),
+    at: text('at').notNull(),
+    message: text('message').notNull(),
+    valueC: doublePrecision('value_c'),
+    expectedC: doublePrecision('expected_c'),
+    corrective: json('corrective').$type<(typeof sqlite.deviations.$inferSelect)['corrective']>(),
+    raisedAt: text('raised_at').notNull(),
+    acknowledgedBy: bigint('acknowledged_by', { mode: 'number' }).references(() => users.id),
+    acknowledgedAt: text('acknowledged_at'),
+    acknowledgeComment: text('acknowledge_comment'),
+    closedBy: bigint('closed_by', { mode: 'number' }).references(() => users.id),
+    closedAt: text('closed_at'),
+    closeComment: text('close_comment'),
+  },
+  (t) => [
+    index('deviations_batch_idx').on(t.batchId, t.id),
+    index('deviations_reading_idx').on(t.readingId),
   ],
 );
 
@@ -93,6 +265,76 @@ export const enzymes = pgTable(
   ],
 );
 
+export const invites = pgTable(
+  'invites',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    email: text('email').notNull(),
+    role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
+    tokenHash: text('token_hash').notNull(),
+    invitedBy: bigint('invited_by', { mode: 'number' }).notNull().references(() => users.id),
+    expiresAt: text('expires_at').notNull(),
+    acceptedAt: text('accepted_at'),
+    revokedAt: text('revoked_at'),
+    userId: bigint('user_id', { mode: 'number' }).references(() => users.id),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+  },
+  (t) => [
+    uniqueIndex('invites_token_unique').on(t.tokenHash),
+    index('invites_site_idx').on(t.siteId),
+  ],
+);
+
+export const invoices = pgTable(
+  'invoices',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    stripeInvoiceId: text('stripe_invoice_id').notNull(),
+    number: text('number').notNull(),
+    status: text('status').notNull(),
+    currency: text('currency').notNull(),
+    amountDueCents: bigint('amount_due_cents', { mode: 'number' }).notNull(),
+    amountPaidCents: bigint('amount_paid_cents', { mode: 'number' }).notNull(),
+    seats: bigint('seats', { mode: 'number' }).notNull(),
+    periodStart: text('period_start').notNull(),
+    periodEnd: text('period_end').notNull(),
+    hostedUrl: text('hosted_url'),
+    issuedAt: text('issued_at').notNull(),
+  },
+  (t) => [
+    uniqueIndex('invoices_stripe_unique').on(t.stripeInvoiceId),
+    index('invoices_site_idx').on(t.siteId, t.issuedAt),
+  ],
+);
+
+export const linkGaps = pgTable(
+  'link_gaps',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
+    fromAt: text('from_at').notNull(),
+    toAt: text('to_at').notNull(),
+    reason: text('reason').notNull(),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+  },
+  (t) => [
+    index('link_gaps_batch_idx').on(t.batchId, t.fromAt),
+  ],
+);
+
+export const linkSettings = pgTable(
+  'link_settings',
+  {
+    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
+    samplingIntervalMs: bigint('sampling_interval_ms', { mode: 'number' }).notNull(),
+    deadbandC: doublePrecision('deadband_c').notNull(),
+    updatedAt: text('updated_at').notNull(),
+  },
+);
+
 export const lots = pgTable(
   'lots',
   {
@@ -104,7 +346,7 @@ export const lots = pgTable(
     expiresOn: text('expires_on').notNull(),
     quantityKg: doublePrecision('quantity_kg').notNull(),
     certActivity: doublePrecision('cert_activity').notNull(),
-    certStability: json('cert_stability').$type<NonNullable<(typeof sqlite.lots.$inferSelect)['certStability']>>().notNull(),
+    certStability: json('cert_stability').$type<(typeof sqlite.lots.$inferSelect)['certStability']>().notNull(),
     certKdPerH: doublePrecision('cert_kd_per_h').notNull(),
     certTempC: doublePrecision('cert_temp_c').notNull(),
     status: text('status', { enum: ['quarantined', 'accepted', 'rejected'] }).notNull().default('quarantined'),
@@ -119,22 +361,26 @@ export const lots = pgTable(
   ],
 );
 
-export const vessels = pgTable(
-  'vessels',
+export const mailOutbox = pgTable(
+  'mail_outbox',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    name: text('name').notNull(),
-    workingVolumeL: doublePrecision('working_volume_l').notNull(),
-    minC: doublePrecision('min_c').notNull(),
-    maxC: doublePrecision('max_c').notNull(),
-    maxHeatCPerH: doublePrecision('max_heat_c_per_h').notNull(),
-    maxCoolCPerH: doublePrecision('max_cool_c_per_h').notNull(),
-    hygienicMinC: doublePrecision('hygienic_min_c').notNull(),
+    siteId: bigint('site_id', { mode: 'number' }).references(() => sites.id),
+    to: text('to').notNull(),
+    subject: text('subject').notNull(),
+    text: text('text').notNull(),
+    html: text('html'),
+    kind: text('kind').notNull(),
+    status: text('status', { enum: ['pending', 'sent', 'failed'] }).notNull().default('pending'),
+    attempts: bigint('attempts', { mode: 'number' }).notNull().default(0),
+    lastError: text('last_error'),
+    nextAttemptAt: text('next_attempt_at').notNull(),
     createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    sentAt: text('sent_at'),
   },
   (t) => [
-    uniqueIndex('vessels_site_name_unique').on(t.siteId, t.name),
+    index('mail_outbox_due_idx').on(t.status, t.nextAttemptAt),
+    index('mail_outbox_site_idx').on(t.siteId, t.id),
   ],
 );
 
@@ -148,8 +394,8 @@ export const plans = pgTable(
     createdBy: bigint('created_by', { mode: 'number' }).notNull().references(() => users.id),
     createdAt: text('created_at').notNull(),
     modelVersion: text('model_version').notNull(),
-    inputs: json('inputs').$type<NonNullable<(typeof sqlite.plans.$inferSelect)['inputs']>>().notNull(),
-    outputs: json('outputs').$type<NonNullable<(typeof sqlite.plans.$inferSelect)['outputs']>>().notNull(),
+    inputs: json('inputs').$type<(typeof sqlite.plans.$inferSelect)['inputs']>().notNull(),
+    outputs: json('outputs').$type<(typeof sqlite.plans.$inferSelect)['outputs']>().notNull(),
     strategy: text('strategy', { enum: ['isothermal', 'staged'] }).notNull(),
     setpointC: doublePrecision('setpoint_c').notNull(),
     predictedProductGPerL: doublePrecision('predicted_product_g_per_l').notNull(),
@@ -197,175 +443,19 @@ export const recipes = pgTable(
   ],
 );
 
-export const mailOutbox = pgTable(
-  'mail_outbox',
+export const sessions = pgTable(
+  'sessions',
   {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).references(() => sites.id),
-    to: text('to').notNull(),
-    subject: text('subject').notNull(),
-    text: text('text').notNull(),
-    html: text('html'),
-    kind: text('kind').notNull(),
-    status: text('status', { enum: ['pending', 'sent', 'failed'] }).notNull().default('pending'),
-    attempts: bigint('attempts', { mode: 'number' }).notNull().default(0),
-    lastError: text('last_error'),
-    nextAttemptAt: text('next_attempt_at').notNull(),
-    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
-    sentAt: text('sent_at'),
-  },
-  (t) => [
-    index('mail_outbox_due_idx').on(t.status, t.nextAttemptAt),
-    index('mail_outbox_site_idx').on(t.siteId, t.id),
-  ],
-);
-
-export const billingEvents = pgTable(
-  'billing_events',
-  {
-    eventId: text('event_id').primaryKey(),
-    type: text('type').notNull(),
-    siteId: bigint('site_id', { mode: 'number' }),
-    receivedAt: text('received_at').notNull(),
-  },
-);
-
-export const invites = pgTable(
-  'invites',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    email: text('email').notNull(),
+    id: text('id').primaryKey(),
+    userId: bigint('user_id', { mode: 'number' }).notNull().references(() => users.id),
     role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
-    tokenHash: text('token_hash').notNull(),
-    invitedBy: bigint('invited_by', { mode: 'number' }).notNull().references(() => users.id),
-    expiresAt: text('expires_at').notNull(),
-    acceptedAt: text('accepted_at'),
-    revokedAt: text('revoked_at'),
-    userId: bigint('user_id', { mode: 'number' }).references(() => users.id),
-    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
-  },
-  (t) => [
-    uniqueIndex('invites_token_unique').on(t.tokenHash),
-    index('invites_site_idx').on(t.siteId),
-  ],
-);
-
-export const invoices = pgTable(
-  'invoices',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    stripeInvoiceId: text('stripe_invoice_id').notNull(),
-    number: text('number').notNull(),
-    status: text('status').notNull(),
-    currency: text('currency').notNull(),
-    amountDueCents: bigint('amount_due_cents', { mode: 'number' }).notNull(),
-    amountPaidCents: bigint('amount_paid_cents', { mode: 'number' }).notNull(),
-    seats: bigint('seats', { mode: 'number' }).notNull(),
-    periodStart: text('period_start').notNull(),
-    periodEnd: text('period_end').notNull(),
-    hostedUrl: text('hosted_url'),
-    issuedAt: text('issued_at').notNull(),
-  },
-  (t) => [
-    uniqueIndex('invoices_stripe_unique').on(t.stripeInvoiceId),
-    index('invoices_site_idx').on(t.siteId, t.issuedAt),
-  ],
-);
-
-export const subscriptions = pgTable(
-  'subscriptions',
-  {
-    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
-    plan: text('plan').notNull(),
-    seats: bigint('seats', { mode: 'number' }).notNull(),
-    status: text('status', { enum: ['none', 'active', 'past_due', 'canceled'] }).notNull(),
-    graceEndsAt: text('grace_ends_at'),
-    currentPeriodEnd: text('current_period_end'),
-    stripeCustomerId: text('stripe_customer_id'),
-    stripeSubscriptionId: text('stripe_subscription_id'),
-    stripeItemId: text('stripe_item_id'),
-    lastEventCreated: bigint('last_event_created', { mode: 'number' }).notNull().default(0),
-    updatedAt: text('updated_at').notNull(),
-  },
-);
-
-export const assayPoints = pgTable(
-  'assay_points',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    assayId: bigint('assay_id', { mode: 'number' }).notNull().references(() => assays.id),
-    line: bigint('line', { mode: 'number' }).notNull(),
-    tempC: doublePrecision('temp_c').notNull(),
-    timeH: doublePrecision('time_h').notNull(),
-    residual: doublePrecision('residual').notNull(),
-    note: text('note'),
-  },
-  (t) => [
-    index('assay_points_assay_idx').on(t.assayId),
-  ],
-);
-
-export const assays = pgTable(
-  'assays',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
-    source: text('source', { enum: ['csv', 'table'] }).notNull(),
-    fileName: text('file_name'),
-    scale: text('scale', { enum: ['fraction', 'percent'] }).notNull(),
-    scaleNote: text('scale_note').notNull(),
-    fit: json('fit').$type<NonNullable<(typeof sqlite.assays.$inferSelect)['fit']>>(),
-    fitProblem: text('fit_problem'),
-    pointCount: bigint('point_count', { mode: 'number' }).notNull(),
-    createdBy: bigint('created_by', { mode: 'number' }).references(() => users.id),
-    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
-  },
-  (t) => [
-    index('assays_lot_idx').on(t.lotId),
-  ],
-);
-
-export const certificateFiles = pgTable(
-  'certificate_files',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
-    fileName: text('file_name').notNull(),
-    mimeType: text('mime_type', { enum: ['application/pdf', 'image/png', 'image/jpeg'] }).notNull(),
-    sizeBytes: bigint('size_bytes', { mode: 'number' }).notNull(),
-    sha256: text('sha256').notNull(),
-    uploadedBy: bigint('uploaded_by', { mode: 'number' }).references(() => users.id),
-    uploadedAt: text('uploaded_at').notNull(),
-  },
-  (t) => [
-    index('certificate_files_lot_idx').on(t.lotId),
-  ],
-);
-
-export const changeRequests = pgTable(
-  'change_requests',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
-    planId: bigint('plan_id', { mode: 'number' }).notNull().references(() => plans.id),
-    proposedBy: bigint('proposed_by', { mode: 'number' }).notNull().references(() => users.id),
-    rationale: text('rationale').notNull(),
-    expectedEffect: text('expected_effect').notNull(),
-    effectiveFrom: text('effective_from').notNull(),
-    status: text('status', { enum: ['proposed', 'approved', 'rejected', 'superseded', 'stale'] }).notNull().default('proposed'),
-    recordHash: text('record_hash').notNull(),
     createdAt: text('created_at').notNull(),
-    decidedAt: text('decided_at'),
-    replaced: json('replaced').$type<NonNullable<(typeof sqlite.changeRequests.$inferSelect)['replaced']>>(),
-    supersededBy: bigint('superseded_by', { mode: 'number' }),
+    lastSeenAt: text('last_seen_at').notNull(),
+    expiresAt: text('expires_at').notNull(),
+    revokedAt: text('revoked_at'),
   },
   (t) => [
-    index('change_requests_site_idx').on(t.siteId, t.status, t.id),
+    index('sessions_user_idx').on(t.userId),
   ],
 );
 
@@ -389,160 +479,70 @@ export const signatures = pgTable(
   ],
 );
 
-export const batchReadings = pgTable(
-  'batch_readings',
+export const sites = pgTable(
+  'sites',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
-    clientKey: text('client_key').notNull(),
-    takenAt: text('taken_at').notNull(),
-    c: doublePrecision('c').notNull(),
-    note: text('note'),
-    source: text('source', { enum: ['manual', 'historian', 'control_system'] }).notNull(),
-    enteredBy: bigint('entered_by', { mode: 'number' }).notNull().references(() => users.id),
-    receivedAt: text('received_at').notNull(),
+    name: text('name').notNull(),
+    timeZone: text('time_zone').notNull().default('UTC'),
+    currency: text('currency').notNull().default('EUR'),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [
-    uniqueIndex('batch_readings_key_unique').on(t.batchId, t.clientKey),
-    index('batch_readings_time_idx').on(t.batchId, t.takenAt),
-    index('batch_readings_batch_idx').on(t.batchId),
-    index('batch_readings_entered_idx').on(t.enteredBy, t.batchId),
-  ],
 );
 
-export const batchSettings = pgTable(
-  'batch_settings',
+export const subscriptions = pgTable(
+  'subscriptions',
   {
     siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
-    toleranceC: doublePrecision('tolerance_c').notNull(),
-    gapLimitMin: bigint('gap_limit_min', { mode: 'number' }).notNull(),
+    plan: text('plan').notNull(),
+    seats: bigint('seats', { mode: 'number' }).notNull(),
+    status: text('status', { enum: ['none', 'active', 'past_due', 'canceled'] }).notNull(),
+    graceEndsAt: text('grace_ends_at'),
+    currentPeriodEnd: text('current_period_end'),
+    stripeCustomerId: text('stripe_customer_id'),
+    stripeSubscriptionId: text('stripe_subscription_id'),
+    stripeItemId: text('stripe_item_id'),
+    lastEventCreated: bigint('last_event_created', { mode: 'number' }).notNull().default(0),
     updatedAt: text('updated_at').notNull(),
   },
 );
 
-export const batches = pgTable(
-  'batches',
+export const users = pgTable(
+  'users',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
     siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
-    vesselId: bigint('vessel_id', { mode: 'number' }).notNull().references(() => vessels.id),
-    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
-    planId: bigint('plan_id', { mode: 'number' }).references(() => plans.id),
-    source: text('source', { enum: ['released_plan', 'current_setpoint'] }).notNull(),
-    program: json('program').$type<NonNullable<(typeof sqlite.batches.$inferSelect)['program']>>().notNull(),
-    state: text('state', { enum: ['running', 'closed'] }).notNull().default('running'),
-    startedAt: text('started_at').notNull(),
-    startedBy: bigint('started_by', { mode: 'number' }).notNull().references(() => users.id),
-    closedAt: text('closed_at'),
-    closedBy: bigint('closed_by', { mode: 'number' }).references(() => users.id),
-    closeComment: text('close_comment'),
-    measuredProductGPerL: doublePrecision('measured_product_g_per_l'),
-    forecastAtCloseGPerL: doublePrecision('forecast_at_close_g_per_l'),
+    email: text('email').notNull(),
+    name: text('name').notNull(),
+    role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
+    passwordHash: text('password_hash').notNull(),
+    isActive: boolean('is_active').notNull().default(true),
+    cautionsAcknowledgedAt: text('cautions_acknowledged_at'),
     createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
   (t) => [
-    index('batches_site_idx').on(t.siteId, t.state, t.id),
+    uniqueIndex('users_email_unique').on(t.email),
+    index('users_site_idx').on(t.siteId),
   ],
 );
 
-export const deviations = pgTable(
-  'deviations',
+export const vessels = pgTable(
+  'vessels',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
     siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
-    kind: text('kind', { enum: ['band', 'gap', 'vessel_max', 'forecast_low', 'signal_lost'] }).notNull(),
-    state: text('state', { enum: ['open', 'acknowledged', 'closed'] }).notNull().default('open'),
-    readingId: bigint('reading_id', { mode: 'number' }).references(() => batchReadings.id),
-    at: text('at').notNull(),
-    message: text('message').notNull(),
-    valueC: doublePrecision('value_c'),
-    expectedC: doublePrecision('expected_c'),
-    corrective: json('corrective').$type<NonNullable<(typeof sqlite.deviations.$inferSelect)['corrective']>>(),
-    raisedAt: text('raised_at').notNull(),
-    acknowledgedBy: bigint('acknowledged_by', { mode: 'number' }).references(() => users.id),
-    acknowledgedAt: text('acknowledged_at'),
-    acknowledgeComment: text('acknowledge_comment'),
-    closedBy: bigint('closed_by', { mode: 'number' }).references(() => users.id),
-    closedAt: text('closed_at'),
-    closeComment: text('close_comment'),
-  },
-  (t) => [
-    index('deviations_batch_idx').on(t.batchId, t.id),
-    index('deviations_reading_idx').on(t.readingId),
-  ],
-);
-
-export const calibrationExclusions = pgTable(
-  'calibration_exclusions',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
-    reason: text('reason').notNull(),
-    excludedBy: bigint('excluded_by', { mode: 'number' }).notNull().references(() => users.id),
-    excludedAt: text('excluded_at').notNull(),
+    name: text('name').notNull(),
+    workingVolumeL: doublePrecision('working_volume_l').notNull(),
+    minC: doublePrecision('min_c').notNull(),
+    maxC: doublePrecision('max_c').notNull(),
+    maxHeatCPerH: doublePrecision('max_heat_c_per_h').notNull(),
+    maxCoolCPerH: doublePrecision('max_cool_c_per_h').notNull(),
+    hygienicMinC: doublePrecision('hygienic_min_c').notNull(),
     createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
   (t) => [
-    uniqueIndex('calibration_exclusions_batch_unique').on(t.batchId),
+    uniqueIndex('vessels_site_name_unique').on(t.siteId, t.name),
   ],
-);
-
-export const calibrationSettings = pgTable(
-  'calibration_settings',
-  {
-    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
-    measurementRelSd: doublePrecision('measurement_rel_sd').notNull(),
-    updatedAt: text('updated_at').notNull(),
-  },
-);
-
-export const calibrations = pgTable(
-  'calibrations',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
-    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
-    state: text('state', { enum: ['proposed', 'accepted', 'superseded'] }).notNull(),
-    batchIds: json('batch_ids').$type<NonNullable<(typeof sqlite.calibrations.$inferSelect)['batchIds']>>().notNull(),
-    result: json('result').$type<NonNullable<(typeof sqlite.calibrations.$inferSelect)['result']>>().notNull(),
-    createdAt: text('created_at').notNull(),
-    decidedBy: bigint('decided_by', { mode: 'number' }).references(() => users.id),
-    decidedAt: text('decided_at'),
-  },
-  (t) => [
-    index('calibrations_recipe_lot_idx').on(t.siteId, t.recipeId, t.lotId, t.state),
-  ],
-);
-
-export const linkGaps = pgTable(
-  'link_gaps',
-  {
-    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
-    fromAt: text('from_at').notNull(),
-    toAt: text('to_at').notNull(),
-    reason: text('reason').notNull(),
-    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
-  },
-  (t) => [
-    index('link_gaps_batch_idx').on(t.batchId, t.fromAt),
-  ],
-);
-
-export const linkSettings = pgTable(
-  'link_settings',
-  {
-    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
-    samplingIntervalMs: bigint('sampling_interval_ms', { mode: 'number' }).notNull(),
-    deadbandC: doublePrecision('deadband_c').notNull(),
-    updatedAt: text('updated_at').notNull(),
-  },
 );
 
 export const vesselSources = pgTable(
