@@ -1,5 +1,6 @@
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { BATCH_STATUSES, READING_SOURCES, DEVIATION_KINDS, DEVIATION_STATES, PLAN_SOURCES, type BatchProgram, type Corrective } from '../../src/contracts/batches';
+import type { BatchProgram, Corrective } from '../../src/contracts/batches';
+import { BATCH_STATUSES, DEVIATION_KINDS, DEVIATION_STATES, PLAN_SOURCES, READING_SOURCES } from '../../src/enums';
 import { lots, vessels } from './catalog';
 import { createdAt, sites, users } from './core';
 import { plans, recipes } from './planning';

@@ -1,5 +1,5 @@
 import { index, integer, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { ROLES } from '../../src/contracts/roles';
+import { ROLES } from '../../src/enums';
 import { createdAt, sites, users } from './core';
 
 // none: the site has a payment customer but no paid plan yet.

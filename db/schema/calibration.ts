@@ -1,5 +1,6 @@
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { CALIBRATION_STATES, type CalibrationResult } from '../../src/contracts/calibrations';
+import type { CalibrationResult } from '../../src/contracts/calibrations';
+import { CALIBRATION_STATES } from '../../src/enums';
 import { batches } from './batches';
 import { lots } from './catalog';
 import { createdAt, sites, users } from './core';

@@ -1,5 +1,6 @@
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { LOT_STATUSES, type CertStability } from '../../src/contracts/lots';
+import type { CertStability } from '../../src/contracts/lots';
+import { LOT_STATUSES } from '../../src/enums';
 import { createdAt, sites, users } from './core';
 
 export const vessels = sqliteTable(

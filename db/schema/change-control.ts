@@ -1,7 +1,8 @@
 import { index, integer, sqliteTable, text } from 'drizzle-orm/sqlite-core';
 import { sites, users } from './core';
 import { plans, recipes } from './planning';
-import { CHANGE_STATUSES, SIGNATURE_MEANINGS, type SetpointSide } from '../../src/contracts/change-requests';
+import type { SetpointSide } from '../../src/contracts/change-requests';
+import { CHANGE_STATUSES, SIGNATURE_MEANINGS } from '../../src/enums';
 
 // A proposal to release a saved plan as a recipe's setpoint. `recordHash` is fixed at submission; every
 // signature must be made over the same hash, recomputed from the stored plan and request at signing.

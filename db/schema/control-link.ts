@@ -1,5 +1,5 @@
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { SECURITY_MODES, SECURITY_POLICIES, SOURCE_UNITS } from '../../src/contracts/control-link';
+import { SECURITY_MODES, SECURITY_POLICIES, SOURCE_UNITS } from '../../src/enums';
 import { batches } from './batches';
 import { vessels } from './catalog';
 import { createdAt, sites, users } from './core';

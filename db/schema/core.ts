@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
-import { ROLES } from '../../src/contracts/roles';
+import { ROLES } from '../../src/enums';
 
 // Times are ISO-8601 UTC strings: sortable, readable in a dump, and free of SQLite's local-time functions.
 export const createdAt = () => text('created_at').notNull().default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`);

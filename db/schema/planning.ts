@@ -1,6 +1,7 @@
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
 import type { PlanInputs, PlanOutputs } from '../../src/contracts/plans';
 import { enzymes, lots, vessels } from './catalog';
+import { PLAN_STRATEGIES } from '../../src/enums';
 import { createdAt, sites, users } from './core';
 
 export const recipes = sqliteTable(
@@ -47,7 +48,7 @@ export const plans = sqliteTable(
     modelVersion: text('model_version').notNull(),
     inputs: text('inputs', { mode: 'json' }).$type<PlanInputs>().notNull(),
     outputs: text('outputs', { mode: 'json' }).$type<PlanOutputs>().notNull(),
-    strategy: text('strategy', { enum: ['isothermal', 'staged'] }).notNull(),
+    strategy: text('strategy', { enum: PLAN_STRATEGIES }).notNull(),
     setpointC: real('setpoint_c').notNull(),
     predictedProductGPerL: real('predicted_product_g_per_l').notNull(),
     p10GPerL: real('p10_g_per_l'),

@@ -1,5 +1,6 @@
 import { index, integer, real, sqliteTable, text } from 'drizzle-orm/sqlite-core';
 import type { AssayFit } from '../../src/contracts/assays';
+import { ASSAY_SOURCES, CERTIFICATE_MIME_TYPES, RESIDUAL_SCALES } from '../../src/enums';
 import { lots } from './catalog';
 import { createdAt, sites, users } from './core';
 
@@ -11,7 +12,7 @@ export const certificateFiles = sqliteTable(
     siteId: integer('site_id').notNull().references(() => sites.id),
     lotId: integer('lot_id').notNull().references(() => lots.id),
     fileName: text('file_name').notNull(),
-    mimeType: text('mime_type', { enum: ['application/pdf', 'image/png', 'image/jpeg'] }).notNull(),
+    mimeType: text('mime_type', { enum: CERTIFICATE_MIME_TYPES }).notNull(),
     sizeBytes: integer('size_bytes').notNull(),
     sha256: text('sha256').notNull(),
     uploadedBy: integer('uploaded_by').references(() => users.id),
@@ -27,9 +28,9 @@ export const assays = sqliteTable(
     id: integer('id').primaryKey({ autoIncrement: true }),
     siteId: integer('site_id').notNull().references(() => sites.id),
     lotId: integer('lot_id').notNull().references(() => lots.id),
-    source: text('source', { enum: ['csv', 'table'] }).notNull(),
+    source: text('source', { enum: ASSAY_SOURCES }).notNull(),
     fileName: text('file_name'),
-    scale: text('scale', { enum: ['fraction', 'percent'] }).notNull(),
+    scale: text('scale', { enum: RESIDUAL_SCALES }).notNull(),
     scaleNote: text('scale_note').notNull(),
     fit: text('fit', { mode: 'json' }).$type<AssayFit>(),
     fitProblem: text('fit_problem'),

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { ASSAY_SOURCES, RESIDUAL_SCALES } from '../enums';
 
 /** Largest assay a lot can carry, in data rows and in bytes of CSV. */
 export const MAX_ASSAY_ROWS = 100_000;
@@ -6,7 +7,7 @@ export const MAX_ASSAY_BYTES = 20 * 1024 * 1024;
 /** Points sent with a lot's detail for its charts and tables; larger assays are summarised by their fit. */
 export const MAX_POINTS_SHOWN = 2_000;
 
-export const ResidualScale = z.enum(['fraction', 'percent']);
+export const ResidualScale = z.enum(RESIDUAL_SCALES);
 export type ResidualScale = z.infer<typeof ResidualScale>;
 
 // A typed cell as the user typed it, or a number: the server checks both the way it checks a CSV cell.
@@ -97,7 +98,7 @@ export type AssayFit = z.infer<typeof AssayFit>;
 export const Assay = z.object({
   id: z.number().int(),
   lotId: z.number().int(),
-  source: z.enum(['csv', 'table']),
+  source: z.enum(ASSAY_SOURCES),
   fileName: z.string().nullable(),
   scale: ResidualScale,
   /** Why the residual column was read as it was, in words for the user. */

@@ -1,16 +1,12 @@
 import { z } from 'zod';
+import { BATCH_STATUSES, DEVIATION_KINDS, DEVIATION_STATES, PLAN_SOURCES, READING_SOURCES } from '../enums';
 import { KineticsEvidence } from './plans';
 import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C } from './rules';
 
 export { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C };
 
-export const PLAN_SOURCES = ['released_plan', 'current_setpoint'] as const;
-export const BATCH_STATUSES = ['running', 'closed'] as const;
-export const DEVIATION_KINDS = ['band', 'gap', 'vessel_max', 'forecast_low', 'signal_lost'] as const;
-/** manual: typed on a phone; historian: a file import; control_system: read from the plant over OPC UA. */
-export const READING_SOURCES = ['manual', 'historian', 'control_system'] as const;
+export { BATCH_STATUSES, DEVIATION_KINDS, DEVIATION_STATES, PLAN_SOURCES, READING_SOURCES };
 export type ReadingSource = (typeof READING_SOURCES)[number];
-export const DEVIATION_STATES = ['open', 'acknowledged', 'closed'] as const;
 export type DeviationKind = (typeof DEVIATION_KINDS)[number];
 
 const isoInstant = z.iso.datetime({ offset: true, message: 'Give a date and time with its zone, e.g. 2026-12-01T08:00:00Z' });

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { CALIBRATION_STATES } from '../enums';
 
 const Matrix = z.array(z.array(z.number()));
 
@@ -23,7 +24,7 @@ export const AcceptedCalibration = CalibrationPosterior.extend({
 });
 export type AcceptedCalibration = z.infer<typeof AcceptedCalibration>;
 
-export const CALIBRATION_STATES = ['proposed', 'accepted', 'superseded'] as const;
+export { CALIBRATION_STATES };
 
 /** One closed batch as calibration read it: measured against the forecasts before and after (g/L). */
 export const CalibrationBatchResult = z.object({

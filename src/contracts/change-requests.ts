@@ -1,12 +1,10 @@
 import { z } from 'zod';
+import { CHANGE_STATUSES, SIGNATURE_MEANINGS } from '../enums';
 import { calendarDay } from './calendar-day';
 import { Plan, PlanStage, PLAN_STRATEGIES } from './plans';
 
-// `superseded`: a newer request for the same recipe replaced it while it waited. `stale`: another request for the
-// recipe was released, so what it compared against no longer runs. Both close it unsigned.
-export const CHANGE_STATUSES = ['proposed', 'approved', 'rejected', 'superseded', 'stale'] as const;
+export { CHANGE_STATUSES, SIGNATURE_MEANINGS };
 export type ChangeStatus = (typeof CHANGE_STATUSES)[number];
-export const SIGNATURE_MEANINGS = ['reviewed', 'approved', 'rejected'] as const;
 export type SignatureMeaning = (typeof SIGNATURE_MEANINGS)[number];
 
 const isoDay = calendarDay('2026-12-15');

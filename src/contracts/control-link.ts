@@ -1,12 +1,12 @@
 import { z } from 'zod';
+import { SECURITY_MODES, SECURITY_POLICIES, SOURCE_UNITS } from '../enums';
+
+export { SECURITY_MODES, SECURITY_POLICIES, SOURCE_UNITS };
 
 /**
  * Reactor temperatures read from the plant's control system over OPC UA (IEC 62541). Read-only: Yieldpoint
  * reads, subscribes, browses and reads history; it never writes to the plant.
  */
-export const SOURCE_UNITS = ['degC', 'K', 'degF'] as const;
-export const SECURITY_POLICIES = ['Basic256Sha256', 'Aes128_Sha256_RsaOaep', 'Aes256_Sha256_RsaPss', 'None'] as const;
-export const SECURITY_MODES = ['SignAndEncrypt', 'Sign', 'None'] as const;
 export const LINK_STATES = ['connected', 'connecting', 'disconnected', 'refused', 'idle', 'disabled', 'off'] as const;
 
 const optionalText = (max: number) => z.string().trim().max(max).optional();

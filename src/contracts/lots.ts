@@ -2,8 +2,10 @@ import { z } from 'zod';
 import { calendarDay } from './calendar-day';
 import { Assay, HalfLifeEstimate } from './assays';
 import { Enzyme } from './enzymes';
+import { CERTIFICATE_MIME_TYPES, LOT_STATUSES } from '../enums';
 
-export const LOT_STATUSES = ['quarantined', 'accepted', 'rejected'] as const;
+export { LOT_STATUSES };
+
 export const LotStatus = z.enum(LOT_STATUSES);
 export type LotStatus = z.infer<typeof LotStatus>;
 
@@ -42,7 +44,7 @@ export type LotInput = z.infer<typeof LotInput>;
 
 export const CertificateFile = z.object({
   fileName: z.string(),
-  mimeType: z.enum(['application/pdf', 'image/png', 'image/jpeg']),
+  mimeType: z.enum(CERTIFICATE_MIME_TYPES),
   sizeBytes: z.number().int(),
   sha256: z.string(),
   uploadedAt: z.string(),

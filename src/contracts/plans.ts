@@ -1,10 +1,11 @@
 import { z } from 'zod';
+import { PLAN_STRATEGIES } from '../enums';
 import { heatingCost, pricePerKg } from './recipes';
 
 const positive = z.number().positive('Must be more than 0');
 const nonNegative = z.number().min(0, 'Must be 0 or more');
 
-export const PLAN_STRATEGIES = ['isothermal', 'staged'] as const;
+export { PLAN_STRATEGIES };
 
 /** Spread the user sets for the Monte Carlo; the parameter spread comes from the lot. */
 export const UncertaintySettings = z.strictObject({

@@ -1,7 +1,9 @@
 // Plain constants of the API's rules, without zod: the contracts build their schemas on them, the server
 // enforces them, and the web app imports them from here so zod stays out of its bundle.
 
-export const ROLES = ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] as const;
+import { ROLES } from '../enums';
+
+export { ROLES };
 export type RoleName = (typeof ROLES)[number];
 
 export const ROLE_LABELS: Record<RoleName, string> = {
