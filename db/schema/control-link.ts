@@ -19,6 +19,8 @@ export const vesselSources = sqliteTable(
     userName: text('user_name'),
     // The server asks for it in clear text inside the secure channel, so it is kept, never shown.
     password: text('password'),
+    // Log in with Yieldpoint's user certificate (an X509 user token) instead of a user name.
+    userCertificate: integer('user_certificate', { mode: 'boolean' }).notNull().default(false),
     isEnabled: integer('is_enabled', { mode: 'boolean' }).notNull().default(true),
     trustedThumbprint: text('trusted_thumbprint'),
     trustedAt: text('trusted_at'),

@@ -1,6 +1,7 @@
 import net from 'node:net';
 import {
   DataType,
+  DataValue,
   MessageSecurityMode,
   OPCUACertificateManager,
   OPCUAServer,
@@ -15,7 +16,8 @@ import {
  * variable (degC, Double, historized) per vessel. With `setpointOf` it ticks by itself: the value follows the
  * setpoint with measurement noise and, now and then, an excursion of a few degrees for some minutes; without it
  * the tests set every value themselves. It trusts any client certificate (a demo plant; a real server is
- * configured by its owner) and wants a user name and password.
+ * configured by its owner) unless `trustClients: 'listed'`, and wants a user name and password (or, with
+ * `userCertificates`, a user certificate it trusts).
  */
 export type PlantOptions = {
   /** 0 or omitted: a free port. */
@@ -32,6 +34,16 @@ export type PlantOptions = {
   random?: () => number;
   /** false: the tags keep no history (HistoryRead is refused), as some servers do. */
   history?: boolean;
+  /**
+   * A transmitter the server reads when it samples a tag (as a server polling its field devices does): the value
+   * measured at that instant, its source time the sample's time; null: no new measurement, the tag keeps its value.
+   * Without it a tag changes only by `set` or the ticking, and the server samples the value last set.
+   */
+  measure?: (tag: string, at: Date) => number | null;
+  /** 'listed': only client application certificates passed to `trustClient` are accepted (default: any). */
+  trustClients?: 'any' | 'listed';
+  /** Folder of the plant's trust list of user certificates (X509 user login), trusted with `trustUser`; omitted: none. */
+  userCertificates?: string;
 };
 
 export type Plant = {
@@ -41,6 +53,10 @@ export type Plant = {
   /** Sets a tag's value (degC) with its status and source time; kept in the tag's history. */
   set(tag: string, c: number, opts?: { status?: StatusCode; at?: Date }): void;
   addTag(tag: string): void;
+  /** Trusts a client application certificate (DER), as a plant's admin does. */
+  trustClient(der: Buffer): Promise<void>;
+  /** Trusts a user certificate (DER) for X509 user login. */
+  trustUser(der: Buffer): Promise<void>;
   close(): Promise<void>;
 };
 
@@ -67,13 +83,16 @@ export const plantNodeId = (tag: string) => `ns=1;s=Reactors.${tag}.Temperature`
 export async function startPlant(o: PlantOptions): Promise<Plant> {
   const port = o.port || (await freePort());
   const random = o.random ?? Math.random;
-  const serverCertificateManager = new OPCUACertificateManager({ rootFolder: o.pkiFolder, automaticallyAcceptUnknownCertificate: true });
+  const serverCertificateManager = new OPCUACertificateManager({ rootFolder: o.pkiFolder, automaticallyAcceptUnknownCertificate: o.trustClients !== 'listed' });
   await serverCertificateManager.initialize();
+  const userCertificateManager = o.userCertificates ? new OPCUACertificateManager({ rootFolder: o.userCertificates, automaticallyAcceptUnknownCertificate: false }) : null;
+  await userCertificateManager?.initialize();
   const server = new OPCUAServer({
     port,
     hostname: '127.0.0.1',
     alternateHostname: ['127.0.0.1'],
     serverCertificateManager,
+    ...(userCertificateManager ? { userCertificateManager } : {}),
     allowAnonymous: false,
     securityPolicies: [SecurityPolicy.None, SecurityPolicy.Basic256Sha256],
     securityModes: [MessageSecurityMode.None, MessageSecurityMode.Sign, MessageSecurityMode.SignAndEncrypt],
@@ -103,6 +122,19 @@ export async function startPlant(o: PlantOptions): Promise<Plant> {
       minimumSamplingInterval: 100,
       description: `Reactor temperature of ${tag}, degC`,
     });
+    if (o.measure) {
+      const measure = o.measure;
+      node.bindVariable(
+        {
+          refreshFunc: (done) => {
+            const at = new Date();
+            const c = measure(tag, at);
+            done(null, c === null ? node.readValue() : new DataValue({ value: { dataType: DataType.Double, value: c }, statusCode: StatusCodes.Good, sourceTimestamp: at, serverTimestamp: at }));
+          },
+        },
+        true,
+      );
+    }
     if (o.history !== false) addressSpace.installHistoricalDataNode(node, { maxOnlineValues: 200_000 });
     nodes.set(tag, node);
   };
@@ -140,10 +172,16 @@ export async function startPlant(o: PlantOptions): Promise<Plant> {
     nodeIdOf: plantNodeId,
     set,
     addTag,
+    trustClient: (der) => serverCertificateManager.trustCertificate(der),
+    trustUser: async (der) => {
+      if (!userCertificateManager) throw new Error('this plant takes no user certificates');
+      await userCertificateManager.trustCertificate(der);
+    },
     close: async () => {
       if (timer) clearInterval(timer);
       await server.shutdown(0);
       await serverCertificateManager.dispose();
+      await userCertificateManager?.dispose();
     },
   };
 }

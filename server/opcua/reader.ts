@@ -54,7 +54,7 @@ export const READ_FAMILY = new Set([
   'SetMonitoringModeRequest',
 ]);
 
-export type Connection = Pick<VesselSource, 'endpointUrl' | 'securityPolicy' | 'securityMode' | 'userName'> & { password: string | null };
+export type Connection = Pick<VesselSource, 'endpointUrl' | 'securityPolicy' | 'securityMode' | 'userName' | 'userCertificate'> & { password: string | null };
 
 export type ReaderOptions = Connection & {
   pki: AppPki;
@@ -79,7 +79,9 @@ export type Reader = {
 const policyUri = (p: Connection['securityPolicy']) => SecurityPolicy[p];
 const modeOf = (m: Connection['securityMode']) => MessageSecurityMode[m];
 
-function createClient(o: ReaderOptions, secure: boolean) {
+type ChannelOptions = Pick<ReaderOptions, 'endpointUrl' | 'securityPolicy' | 'securityMode' | 'pki' | 'onRequest'>;
+
+function createClient(o: ChannelOptions, secure: boolean) {
   const client = OPCUAClient.create({
     applicationName: o.pki.applicationName,
     applicationUri: o.pki.applicationUri,
@@ -98,20 +100,28 @@ function createClient(o: ReaderOptions, secure: boolean) {
   return client;
 }
 
-/** Turns node-opcua's errors into what an admin does about them. */
-export function explain(err: unknown, o: Pick<Connection, 'endpointUrl'>): string {
+/**
+ * Turns node-opcua's errors into what an admin does about them. With the PKI, a refusal of Yieldpoint's own
+ * certificate names its thumbprint, which the plant's admin looks for in the server's list of rejected certificates.
+ */
+export function explain(err: unknown, o: Pick<Connection, 'endpointUrl'> & Partial<Pick<Connection, 'userCertificate'>> & { pki?: AppPki }): string {
   const m = err instanceof Error ? err.message : String(err);
+  const thumb = (which: 'certificate' | 'userCertificate') => (o.pki ? ` (thumbprint ${o.pki[which]().thumbprint})` : '');
   if (/ECONNREFUSED|ENOTFOUND|EHOSTUNREACH|ETIMEDOUT|connect failed|Connection Break|socket has been disconnected/i.test(m)) return `No OPC UA server answers at ${o.endpointUrl}`;
   if (/server Certificate verification failed/i.test(m))
     return "The server's certificate is not trusted: an admin compares its thumbprint and trusts it on the vessel's source";
-  if (/BadUserAccessDenied|BadIdentityTokenRejected|BadIdentityTokenInvalid/.test(m)) return 'The server refused the user name or password';
-  if (/BadCertificate|BadSecurityChecksFailed/.test(m)) return "The server did not accept Yieldpoint's certificate: its admin trusts it (thumbprint on the site's control-link page)";
+  if (/BadUserAccessDenied|BadIdentityTokenRejected|BadIdentityTokenInvalid/.test(m))
+    return o.userCertificate
+      ? `The server refused Yieldpoint's user certificate${thumb('userCertificate')}: its admin trusts it as a user certificate`
+      : 'The server refused the user name or password';
+  if (/BadCertificate|BadSecurityChecksFailed/.test(m))
+    return `The server did not accept Yieldpoint's application certificate${thumb('certificate')}: its admin moves it from the server's rejected certificates to the trusted ones`;
   if (/BadSecurityPolicyRejected|BadSecurityModeRejected|cannot find endpoint|No endpoint/i.test(m)) return 'The server offers no endpoint with this security policy and mode';
   return m.split('\n')[0]!.slice(0, 300);
 }
 
 /** The server's certificate for this policy and mode, from GetEndpoints (an unsecured discovery request). */
-export async function serverCertificate(o: ReaderOptions): Promise<Buffer> {
+export async function serverCertificate(o: ChannelOptions): Promise<Buffer> {
   const client = createClient(o, false);
   try {
     await client.connect(o.endpointUrl);
@@ -138,7 +148,7 @@ export function isNodeId(text: string): boolean {
   }
 }
 
-/** Connects and opens a session (user name and password when given, else anonymous). Throws LinkRefused. */
+/** Connects and opens a session (the user certificate, or user name and password, else anonymous). Throws LinkRefused. */
 export async function openReader(o: ReaderOptions, publishingIntervalMs: number): Promise<Reader> {
   const client = createClient(o, o.securityPolicy !== 'None');
   let session: ClientSession | null = null;
@@ -153,7 +163,11 @@ export async function openReader(o: ReaderOptions, publishingIntervalMs: number)
   try {
     await client.connect(o.endpointUrl);
     session = await client.createSession(
-      o.userName ? { type: UserTokenType.UserName, userName: o.userName, password: o.password ?? '' } : { type: UserTokenType.Anonymous },
+      o.userCertificate
+        ? { type: UserTokenType.Certificate, ...o.pki.userIdentity() }
+        : o.userName
+          ? { type: UserTokenType.UserName, userName: o.userName, password: o.password ?? '' }
+          : { type: UserTokenType.Anonymous },
     );
     subscription = await session.createSubscription2({
       requestedPublishingInterval: publishingIntervalMs,

@@ -406,17 +406,12 @@ type BatchGroup = {
 export type ReadingIngest = { log(u: SessionUser, batchId: number, input: ReadingInput, source?: ReadingSource): Promise<Logged> };
 
 /**
- * `forecastEveryMs`: a feed of a reading a second (the control-system link) checks a batch's forecast against its
- * P10 at most this often, not on every flush (each check integrates the whole batch); other rules run on every reading.
+ * `checkForecast: false`: a feed of a reading a second per batch (the control-system link) does not check the
+ * forecast against the P10 in its group commit (each check integrates the whole batch, inside the transaction); it
+ * calls `checkForecastLow` itself, once a minute per batch, outside it. Other rules run on every reading.
  */
-export function readingIngest(s: Services, opts: { forecastEveryMs?: number } = {}): ReadingIngest {
-  const forecastAt = new Map<number, number>();
-  const checksForecast = (batchId: number, nowMs: number) => {
-    if (!opts.forecastEveryMs) return true;
-    if (nowMs - (forecastAt.get(batchId) ?? -Infinity) < opts.forecastEveryMs) return false;
-    forecastAt.set(batchId, nowMs);
-    return true;
-  };
+export function readingIngest(s: Services, opts: { checkForecast?: boolean } = {}): ReadingIngest {
+  const checksForecast = () => opts.checkForecast !== false;
   let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
   const flush = () => {
     const items = queue;
@@ -453,7 +448,7 @@ function readingAnswer(db: Db, readingId: number, startedAt: string): ReadingRes
 }
 
 /** One transaction for a group of readings; per reading its stored id or the error that refused it. */
-function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksForecast: (batchId: number, nowMs: number) => boolean): Stored[] {
+function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksForecast: () => boolean): Stored[] {
   const now = clock.now();
   return writeTx(db, (t, savepoint) => {
     const groups = new Map<string, BatchGroup>();
@@ -470,7 +465,7 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksFo
     const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
     for (const g of groups.values()) {
       if (!g.lastBy) continue;
-      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now, { checkForecast: checksForecast(g.b.id, now.getTime()) }))
+      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now, { checkForecast: checksForecast() }))
         if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
     }
     return out;
@@ -519,6 +514,25 @@ export function raiseBatchDeviation({ db, clock }: Services, u: SessionUser, bat
   return writeTx(db, (t) => {
     if (hasActiveDeviation(t, b.id, draft.kind)) return false;
     raiseDeviations(t, u, b, [{ readingId: null, draft }], now);
+    return true;
+  });
+}
+
+/**
+ * The P10 check of a running batch on its stored readings, outside any reading's transaction (the batch's kept
+ * record, so only readings added since the last check are read): raises `forecast_low` when the forecast is below
+ * the plan's P10 and none is active. Returns whether it raised one.
+ */
+export function checkForecastLow({ db, clock }: Services, u: SessionUser, batchId: number): boolean {
+  const b = loadBatch(db, u.siteId, batchId).batch;
+  if (b.state !== 'running' || b.program.p10GPerL === null || hasActiveDeviation(db, b.id, 'forecast_low')) return false;
+  const now = clock.now();
+  const status = statusNow(db, b, now.toISOString());
+  const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH);
+  if (!low) return false;
+  return writeTx(db, (t) => {
+    if (hasActiveDeviation(t, b.id, 'forecast_low')) return false;
+    raiseDeviations(t, u, b, [{ readingId: null, draft: low }], now, { checkForecast: false });
     return true;
   });
 }

@@ -50,6 +50,7 @@ const toSource = (r: VesselSourceRow, vesselName: string): VesselSource => ({
   securityMode: r.securityMode,
   userName: r.userName,
   hasPassword: !!r.password,
+  userCertificate: r.userCertificate,
   isEnabled: r.isEnabled,
   trustedThumbprint: r.trustedThumbprint,
   trustedAt: r.trustedAt,
@@ -88,7 +89,8 @@ export function saveSource({ db, clock, link }: LinkServices, u: SessionUser, ve
       securityPolicy: input.securityPolicy,
       securityMode: input.securityMode,
       userName: input.userName || null,
-      password: input.password === undefined ? (before?.password ?? null) : input.password || null,
+      password: input.userCertificate ? null : input.password === undefined ? (before?.password ?? null) : input.password || null,
+      userCertificate: input.userCertificate,
       isEnabled: input.isEnabled,
       trustedThumbprint: sameServer ? before.trustedThumbprint : null,
       trustedAt: sameServer ? before.trustedAt : null,
@@ -209,10 +211,11 @@ const gapsOf = (db: Db, siteId: number, batchId: number) => listBatchGaps(db, si
 /** Each source's link now; without a running link every source is 'off'. */
 export const linkStatus = ({ db, link }: LinkServices, u: SessionUser): LinkStatusList =>
   link
-    ? { links: link.status(u.siteId), certificate: link.pki.certificate() }
+    ? { links: link.status(u.siteId), certificate: link.pki.certificate(), userCertificate: link.pki.userCertificate() }
     : {
         links: listSiteSources(db, u.siteId).map((r) => ({ vesselId: r.source.vesselId, vesselName: r.vesselName, batchId: null, state: 'off', lastValueC: null, lastValueAt: null, ageS: null, lastError: null, errors: 0, stored: 0 })),
         certificate: null,
+        userCertificate: null,
       };
 
 export function batchLinkOf({ db, link }: LinkServices, u: SessionUser, batchId: number): BatchLink {

@@ -22,10 +22,15 @@ export const VesselSourceInput = z
     userName: optionalText(120),
     /** Kept to log in to the server; never sent back. Omitted on a change: the stored one stays. */
     password: z.string().max(200).optional(),
+    /** Log in with Yieldpoint's user certificate (X509 user token; the plant's admin trusts it) instead of a user name. */
+    userCertificate: z.boolean().default(false),
     isEnabled: z.boolean().default(true),
     allowInsecure: z.boolean().optional(),
   })
   .superRefine((v, ctx) => {
+    if (v.userCertificate && v.userName) ctx.addIssue({ code: 'custom', path: ['userCertificate'], message: 'Log in with a user name or with the user certificate, not both' });
+    if (v.userCertificate && v.securityPolicy === 'None')
+      ctx.addIssue({ code: 'custom', path: ['userCertificate'], message: 'A user certificate needs a secured connection (a security policy other than None)' });
     const none = [v.securityPolicy === 'None', v.securityMode === 'None'];
     if (none[0] !== none[1]) ctx.addIssue({ code: 'custom', path: ['securityMode'], message: 'Policy None goes with mode None, and only with it' });
     else if (none[0] && v.allowInsecure !== true)
@@ -44,6 +49,7 @@ export const VesselSource = z.object({
   securityMode: z.enum(SECURITY_MODES),
   userName: z.string().nullable(),
   hasPassword: z.boolean(),
+  userCertificate: z.boolean(),
   isEnabled: z.boolean(),
   /** SHA-1 thumbprint (OPC UA's) of the server certificate an admin trusted; null until one did. */
   trustedThumbprint: z.string().nullable(),
@@ -93,7 +99,8 @@ export const LinkStatus = z.object({
   stored: z.number().int(),
 });
 export type LinkStatus = z.infer<typeof LinkStatus>;
-export const LinkStatusList = z.object({ links: z.array(LinkStatus), certificate: CertificateInfo.nullable() });
+/** `certificate`: Yieldpoint's application certificate; `userCertificate`: its user certificate (X509 user login). */
+export const LinkStatusList = z.object({ links: z.array(LinkStatus), certificate: CertificateInfo.nullable(), userCertificate: CertificateInfo.nullable() });
 export type LinkStatusList = z.infer<typeof LinkStatusList>;
 
 export const LinkGap = z.object({ fromAt: z.string(), toAt: z.string(), reason: z.string() });

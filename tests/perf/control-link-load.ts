@@ -24,7 +24,10 @@ const pct = (xs: number[], p: number) => {
 export async function controlLinkLoad(opts: { tags: number; seconds: number }): Promise<void> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-link-load-'));
   // The plant runs in its own process, as a real one does, so its work does not count against the app's.
-  const child = fork(path.join(__dirname, 'plant-process.ts'), [String(opts.tags), path.join(os.tmpdir(), 'yieldpoint-test-plant-pki'), 'reader', 'load-password-1'], {
+  // LOAD_PLANT=sampled (default): the server measures a tag when it samples it; set: the plant sets the tags on its
+  // own 1 s clock and the server samples the last value set (up to a second old by then).
+  const mode = process.env.LOAD_PLANT === 'set' ? 'set' : 'sampled';
+  const child = fork(path.join(__dirname, 'plant-process.ts'), [String(opts.tags), path.join(os.tmpdir(), 'yieldpoint-test-plant-pki'), 'reader', 'load-password-1', mode], {
     execArgv: ['--import', 'tsx'],
     stdio: ['ignore', 'ignore', 'inherit', 'ipc'],
   });
@@ -52,7 +55,7 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
   try {
     const { db } = app;
     const running = db.select().from(batches).where(eq(batches.state, 'running')).all()[0]!;
-    const cert = await serverCertificate({ endpointUrl: plant.endpointUrl, securityPolicy: 'Basic256Sha256', securityMode: 'SignAndEncrypt', userName: null, password: null, pki });
+    const cert = await serverCertificate({ endpointUrl: plant.endpointUrl, securityPolicy: 'Basic256Sha256', securityMode: 'SignAndEncrypt', pki });
     await pki.trust(cert);
     const now = new Date().toISOString();
     const startedAt = new Date(Date.now() - 60_000).toISOString();
@@ -82,7 +85,15 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
     const t0 = Date.now();
     await link!.reconcile();
     const linked = link!.status(running.siteId).filter((s) => s.state === 'connected').length;
-    console.log(`\nControl-system link: ${linked} of ${tags.length} tags subscribed in ${Date.now() - t0} ms; ${opts.seconds} s at 1 s sampling`);
+    console.log(
+      `\nControl-system link: ${linked} of ${tags.length} tags subscribed in ${Date.now() - t0} ms; ${opts.seconds} s at 1 s sampling, plant mode ${mode}; ` +
+        `machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores`,
+    );
+    const cpu0 = process.cpuUsage();
+    // Under --cpu-prof: the window's bounds on the profile's clock (microseconds), to read the profile of the run alone.
+    const mark = (what: string) => process.execArgv.some((a) => a.startsWith('--cpu-prof')) && console.log(`profile mark ${what} ${process.hrtime.bigint() / 1000n}`);
+    mark('start');
+    const wall0 = performance.now();
 
     // Each tag changes once a second (at the plant's own clock), within the band of the 59 °C plan.
     child.send({ cmd: 'start' });
@@ -102,17 +113,28 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
       );
     });
     const { written } = await ask<{ written: number }>('stop');
-    // Let the last publish and commit land.
-    await new Promise((r) => setTimeout(r, 3000));
+    const cpu = process.cpuUsage(cpu0);
+    mark('stop');
+    const wallS = (performance.now() - wall0) / 1000;
     const ids = [...batchOf.values()];
-    const stored = db
-      .select({ n: sql<number>`count(*)`, distinct: sql<number>`count(distinct ${batchReadings.batchId} || ' ' || ${batchReadings.takenAt})` })
-      .from(batchReadings)
-      .where(and(eq(batchReadings.source, 'control_system'), sql`${batchReadings.batchId} in (${sql.join(ids, sql`, `)})`))
-      .get()!;
+    const count = () =>
+      db
+        .select({ n: sql<number>`count(*)`, distinct: sql<number>`count(distinct ${batchReadings.batchId} || ' ' || ${batchReadings.takenAt})` })
+        .from(batchReadings)
+        .where(and(eq(batchReadings.source, 'control_system'), sql`${batchReadings.batchId} in (${sql.join(ids, sql`, `)})`))
+        .get()!;
+    // Let the last publish and commits land: until every value is stored, or nothing more arrives for 3 s.
+    let stored = count();
+    for (let quiet = 0; stored.n < written && quiet < 6; ) {
+      await new Promise((r) => setTimeout(r, 500));
+      const now2 = count();
+      quiet = now2.n === stored.n ? quiet + 1 : 0;
+      stored = now2;
+    }
     console.log(
       `written ${written}, stored ${stored.n} (distinct ${stored.distinct}), lost ${written - stored.n}; source time to stored p50 ${pct(delays, 50)} ms, p99 ${pct(delays, 99)} ms, max ${pct(delays, 100)} ms; arrival to stored p50 ${pct(ownDelays, 50)} ms, p99 ${pct(ownDelays, 99)} ms`,
     );
+    console.log(`app process CPU meanwhile (link, ingest, requests and the load client): ${((cpu.user + cpu.system) / 1000 / wallS).toFixed(0)} ms per s; load average now ${os.loadavg()[0]!.toFixed(1)}`);
     console.log(`other requests meanwhile: ${reads.requests.total} at ${reads.requests.average.toFixed(0)}/s, p50 ${reads.latency.p50} ms, p99 ${reads.latency.p99} ms, max ${reads.latency.max} ms, non-2xx ${reads.non2xx}`);
   } finally {
     await link?.close();

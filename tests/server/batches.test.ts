@@ -4,7 +4,9 @@ import { writeTx } from '../../db/client';
 import { auditEvents, batchReadings, deviations, recipes, users } from '../../db/schema';
 import { DEMO_PLANT_TRUTH } from '../../db/seed';
 import { insertReadings, readingPoints } from '../../server/repositories/batches';
+import { loadSessionUser } from '../../server/services/auth';
 import { batchRecordOf } from '../../server/services/batch-record';
+import { checkForecastLow, readingIngest } from '../../server/services/batches';
 import { password, startTestApp, type Client, type TestApp } from './harness';
 
 let t: TestApp;
@@ -140,6 +142,19 @@ describe('starting a batch', () => {
       // Still below P10 on the next reading: the open one stands, no second is raised.
       await send(15.95, 8);
       expect((await op.get(`/api/batches/${late.id}`)).body.deviations.filter((d: any) => d.kind === 'forecast_low')).toHaveLength(1);
+      // The control-system link's feed: its readings skip the check in their transaction, and checkForecastLow
+      // raises the low forecast apart, once, only while none is active.
+      const lows = () => t.db.select().from(deviations).where(eq(deviations.batchId, late.id)).all().filter((d) => d.kind === 'forecast_low' && d.state !== 'closed');
+      t.db.update(deviations).set({ state: 'closed' }).where(eq(deviations.batchId, late.id)).run();
+      const services = { db: t.db, clock: t.clock };
+      const operator = loadSessionUser(t.db, t.db.select().from(users).where(eq(users.role, 'operator')).get()!.id)!;
+      const fed = await readingIngest(services, { checkForecast: false }).log(operator, late.id, { key: key(), takenAt: at(late.startedAt, 15.97), c: 8 }, 'control_system');
+      expect(fed.created).toBe(true);
+      expect(lows()).toHaveLength(0);
+      expect(checkForecastLow(services, operator, late.id)).toBe(true);
+      expect(lows()).toMatchObject([{ readingId: null, message: expect.stringMatching(/below the plan's P10/) }]);
+      expect(checkForecastLow(services, operator, late.id)).toBe(false);
+      expect(lows()).toHaveLength(1);
     } finally {
       // Put the recipe back as the later tests expect it (approval also wrote the plan's setpoint).
       t.db.update(recipes).set({ releasedPlanId: null, releasedAt: null, currentSetpointC: rec.currentSetpointC }).where(eq(recipes.id, rec.id)).run();

@@ -1,3 +1,4 @@
+import crypto from 'node:crypto';
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
@@ -234,6 +235,59 @@ describe('values from the plant', () => {
     expect(await until('refused', async () => ((await statusOf())?.state === 'refused' ? statusOf() : null))).toMatchObject({
       lastError: 'The server refused the user name or password',
     });
+  });
+});
+
+describe('a server that checks who connects', () => {
+  let strict: Plant;
+  const strictDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-strict-plant-'));
+  beforeAll(async () => {
+    // Trusts only the client certificates and user certificates its admin listed (none yet).
+    strict = await startPlant({ pkiFolder: `${PLANT_PKI}-strict`, users: [PLANT_USER], tags: [TAG], trustClients: 'listed', userCertificates: path.join(strictDir, 'users') });
+  }, 30_000);
+  afterAll(async () => {
+    await strict?.close();
+    fs.rmSync(strictDir, { recursive: true, force: true });
+  });
+  const own = async () => (await admin.get('/api/control-link/status')).body as { certificate: { thumbprint: string }; userCertificate: { thumbprint: string } };
+  const refusedWith = async () => until('refused', async () => ((await statusOf())?.state === 'refused' ? (await statusOf())!.lastError : null));
+  const trustServer = async () => {
+    const cert = await admin.get(`/api/control-link/sources/${vesselId}/server-certificate`);
+    expect((await admin.post(`/api/control-link/sources/${vesselId}/trust`, { thumbprint: cert.body.thumbprint })).status).toBe(200);
+  };
+
+  it("says so when the server rejects Yieldpoint's application certificate, and connects once it is trusted there", async () => {
+    expect((await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { endpointUrl: strict.endpointUrl, nodeId: strict.nodeIdOf(TAG), ...PLANT_USER })).status).toBe(200);
+    await trustServer();
+    await link.reconcile();
+    const { certificate } = await own();
+    expect(await refusedWith()).toBe(
+      `The server did not accept Yieldpoint's application certificate (thumbprint ${certificate.thumbprint}): its admin moves it from the server's rejected certificates to the trusted ones`,
+    );
+    // The plant's admin trusts it; the link's next attempt (backoff 100-300 ms here) gets in.
+    await strict.trustClient(Buffer.from(new crypto.X509Certificate(fs.readFileSync(pki.certificateFile)).raw));
+    await until('connected', async () => (await statusOf())?.state === 'connected');
+  });
+
+  it('logs in with the user certificate instead of a user name, refused until the server trusts it', async () => {
+    const base = { endpointUrl: strict.endpointUrl, nodeId: strict.nodeIdOf(TAG) };
+    const both = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { ...base, ...PLANT_USER, userCertificate: true });
+    expect(both.status).toBe(400);
+    expect(both.body.error.fields.userCertificate).toMatch(/not both/);
+    const unsecured = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { ...base, securityPolicy: 'None', securityMode: 'None', allowInsecure: true, userCertificate: true });
+    expect(unsecured.status).toBe(400);
+    expect(unsecured.body.error.fields.userCertificate).toMatch(/secured connection/);
+
+    const saved = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { ...base, userCertificate: true });
+    expect(saved.status).toBe(200);
+    // Same server and security: the trusted server certificate stays; the stored password goes.
+    expect(saved.body).toMatchObject({ userCertificate: true, userName: null, hasPassword: false, trustedThumbprint: expect.any(String) });
+    await link.reconcile();
+    const { userCertificate, certificate } = await own();
+    expect(userCertificate.thumbprint).not.toBe(certificate.thumbprint);
+    expect(await refusedWith()).toBe(`The server refused Yieldpoint's user certificate (thumbprint ${userCertificate.thumbprint}): its admin trusts it as a user certificate`);
+    await strict.trustUser(pki.userIdentity().certificateData);
+    await until('connected', async () => (await statusOf())?.state === 'connected');
   });
 });
 

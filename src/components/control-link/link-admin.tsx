@@ -19,6 +19,7 @@ const STATUS_COLUMNS: Column<LinkStatus>[] = [
 
 type Unit = (typeof SOURCE_UNITS)[number];
 type Security = 'secure' | 'none';
+type Login = 'password' | 'certificate';
 
 /** Sets one vessel's source: where its temperature tag is, in which unit, and how to log in. */
 function SourceForm({ sources }: { sources: VesselSource[] }) {
@@ -30,6 +31,7 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
   const [unit, setUnit] = useState<Unit>('degC');
   const [security, setSecurity] = useState<Security>('secure');
   const [confirmNone, setConfirmNone] = useState(false);
+  const [login, setLogin] = useState<Login>('password');
   if (!vessels.data) return <Loader rows={2} label="Loading vessels" />;
   const pick = (id: number) => {
     const s = sources.find((x) => x.vesselId === id);
@@ -37,6 +39,7 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
     setForm({ endpointUrl: s?.endpointUrl ?? '', nodeId: s?.nodeId ?? '', userName: s?.userName ?? '', password: '' });
     setUnit(s?.unit ?? 'degC');
     setSecurity(s?.securityPolicy === 'None' ? 'none' : 'secure');
+    setLogin(s?.userCertificate ? 'certificate' : 'password');
     save.clearError();
   };
   const fields = save.error?.fields ?? {};
@@ -44,7 +47,7 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
     vesselId &&
     save.submit(vesselId, {
       ...form,
-      password: form.password || undefined,
+      ...(login === 'certificate' ? { userName: '', password: undefined, userCertificate: true } : { password: form.password || undefined }),
       unit,
       ...(security === 'none' ? { securityPolicy: 'None', securityMode: 'None', allowInsecure: confirmNone } : { securityPolicy: 'Basic256Sha256', securityMode: 'SignAndEncrypt' }),
     });
@@ -56,16 +59,32 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
           <Field label="Server address" value={form.endpointUrl} onChangeText={(t) => setForm({ ...form, endpointUrl: t })} placeholder="opc.tcp://historian.plant:4840" error={fields.endpointUrl} testID="source-endpoint" autoCapitalize="none" />
           <Field label="Node id of the temperature" value={form.nodeId} onChangeText={(t) => setForm({ ...form, nodeId: t })} placeholder="ns=2;s=R101.TT01" error={fields.nodeId} testID="source-node" autoCapitalize="none" />
           <Choice label="Unit of the tag" value={unit} options={[{ value: 'degC', label: '°C' }, { value: 'K', label: 'K' }, { value: 'degF', label: '°F' }]} onChange={setUnit} compact testID="source-unit" />
-          <Field label="User name" value={form.userName} onChangeText={(t) => setForm({ ...form, userName: t })} error={fields.userName} testID="source-user" autoCapitalize="none" />
-          <Field
-            label="Password"
-            value={form.password}
-            onChangeText={(t) => setForm({ ...form, password: t })}
-            secureTextEntry
-            hint={current?.hasPassword ? 'Stored; leave empty to keep it' : undefined}
-            error={fields.password}
-            testID="source-password"
+          <Choice
+            label="Log in with"
+            value={login}
+            options={[{ value: 'password', label: 'User name and password' }, { value: 'certificate', label: 'Yieldpoint’s user certificate' }]}
+            onChange={setLogin}
+            compact
+            testID="source-login"
           />
+          {login === 'password' ? (
+            <>
+              <Field label="User name" value={form.userName} onChangeText={(t) => setForm({ ...form, userName: t })} error={fields.userName} testID="source-user" autoCapitalize="none" />
+              <Field
+                label="Password"
+                value={form.password}
+                onChangeText={(t) => setForm({ ...form, password: t })}
+                secureTextEntry
+                hint={current?.hasPassword ? 'Stored; leave empty to keep it' : undefined}
+                error={fields.password}
+                testID="source-password"
+              />
+            </>
+          ) : (
+            <Text variant="small" tone="muted">
+              The server’s admin trusts Yieldpoint’s user certificate (its thumbprint is above) as a user allowed to read.
+            </Text>
+          )}
           <Choice
             label="Security"
             value={security}
@@ -84,7 +103,7 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
               testID="source-none-confirm"
             />
           ) : null}
-          {save.error ? <Text tone="danger">{fields.allowInsecure ?? fields.securityMode ?? save.error.message}</Text> : null}
+          {save.error ? <Text tone="danger">{fields.allowInsecure ?? fields.securityMode ?? fields.userCertificate ?? save.error.message}</Text> : null}
           <Button label="Save the source" onPress={() => void submit()} isBusy={save.isBusy} testID="source-save" />
         </>
       ) : null}
@@ -135,6 +154,7 @@ export function LinkAdmin() {
       <Text variant="small" tone="muted">
         Yieldpoint reads each running batch’s vessel temperature and never writes to the control system.
         {status.data.certificate ? ` Its certificate for the server’s trust list: SHA-1 ${status.data.certificate.thumbprint}.` : ''}
+        {status.data.userCertificate ? ` Its user certificate, for servers that log readers in by certificate: SHA-1 ${status.data.userCertificate.thumbprint}.` : ''}
       </Text>
       {status.data.links.length ? (
         <DataTable columns={STATUS_COLUMNS} rows={status.data.links} rowKey={(l) => String(l.vesselId)} caption="Link state per vessel" testID="link-status" />

@@ -1,0 +1,1 @@
+ALTER TABLE `vessel_sources` ADD `user_certificate` integer DEFAULT false NOT NULL;
