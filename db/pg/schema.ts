@@ -558,6 +558,7 @@ export const vesselSources = pgTable(
     securityMode: text('security_mode', { enum: ['SignAndEncrypt', 'Sign', 'None'] }).notNull(),
     userName: text('user_name'),
     password: text('password'),
+    userCertificate: boolean('user_certificate').notNull().default(false),
     isEnabled: boolean('is_enabled').notNull().default(true),
     trustedThumbprint: text('trusted_thumbprint'),
     trustedAt: text('trusted_at'),

@@ -1,0 +1,1 @@
+ALTER TABLE "vessel_sources" ADD COLUMN "user_certificate" boolean DEFAULT false NOT NULL;
