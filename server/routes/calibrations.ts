@@ -4,11 +4,11 @@ import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery,
 import { CALIBRATION_DECIDERS, CALIBRATION_READERS, CALIBRATION_SETTINGS_EDITORS } from '../../src/contracts/rules';
 import { allow, currentUser } from '../middleware/auth';
 import { acceptCalibration, calibrationSettingsOf, changeCalibrationSettings, getCalibrationView, setExclusion } from '../services/calibrations';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export function calibrationsRouter(s: Services): Router {
+export function calibrationsRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow(...CALIBRATION_READERS), (req, res) => {
     res.json(CalibrationView.parse(getCalibrationView(s, currentUser(req), CalibrationQuery.parse(req.query))));

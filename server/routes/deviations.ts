@@ -3,11 +3,11 @@ import { z } from 'zod';
 import { Deviation, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, DeviationAcknowledge, DeviationClose } from '../../src/contracts/batches';
 import { allow, currentUser } from '../middleware/auth';
 import { acknowledgeDeviation, closeDeviation } from '../services/batches';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export function deviationsRouter(s: Services): Router {
+export function deviationsRouter(s: AppContext): Router {
   const router = Router();
   router.post('/:id/acknowledge', allow(...DEVIATION_ACKNOWLEDGERS), (req, res) => {
     const { id } = IdParam.parse(req.params);

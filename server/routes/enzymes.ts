@@ -4,11 +4,11 @@ import { Enzyme, EnzymeDetail, EnzymeInput, EnzymeList, EnzymeQuery, EnzymeUpdat
 import { LOT_EDITORS } from '../../src/contracts/lots';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { changeEnzyme, createEnzyme, getEnzyme, listEnzymes } from '../services/enzymes';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export function enzymesRouter(s: Services): Router {
+export function enzymesRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow(...ALL_ROLES), (req, res) => {
     res.json(EnzymeList.parse(listEnzymes(s, currentUser(req), EnzymeQuery.parse(req.query))));

@@ -6,14 +6,15 @@ import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { singleFile } from '../middleware/upload';
 import { ASSAY_TEMPLATE_CSV } from '../services/assay-csv';
 import { addAssay, exportAssayCsv } from '../services/assays';
-import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate, type LotServices } from '../services/lots';
+import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate } from '../services/lots';
+import type { AppContext } from '../context';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 const AssayParam = IdParam.extend({ assayId: z.coerce.number().int().positive() });
 
 const attachment = (name: string) => `attachment; filename="${name.replace(/["\\\r\n]/g, '_')}"`;
 
-export function lotsRouter(s: LotServices): Router {
+export function lotsRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow(...ALL_ROLES), (req, res) => {
     res.json(LotList.parse({ lots: listLots(s, currentUser(req), LotQuery.parse(req.query)) }));

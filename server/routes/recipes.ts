@@ -3,11 +3,11 @@ import { z } from 'zod';
 import { Recipe, RecipeDetail, RecipeInput, RecipeList, RecipePatch } from '../../src/contracts/recipes';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { changeRecipe, createRecipe, getRecipeDetail, listRecipes } from '../services/recipes';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export function recipesRouter(s: Services): Router {
+export function recipesRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow(...ALL_ROLES), (req, res) => {
     res.json(RecipeList.parse({ recipes: listRecipes(s, currentUser(req)) }));

@@ -3,12 +3,13 @@ import { z } from 'zod';
 import { PasswordResetSent, SendPasswordReset } from '../../src/contracts/session';
 import { UpdateUser, User, UserList } from '../../src/contracts/users';
 import { allow, currentUser } from '../middleware/auth';
-import { sendPasswordReset, type ResetContext } from '../services/passwords';
+import { sendPasswordReset } from '../services/passwords';
 import { changeUser, listUsers } from '../services/users';
+import type { AppContext } from '../context';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export function usersRouter(s: ResetContext): Router {
+export function usersRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('admin'), (req, res) => {
     res.json(UserList.parse({ users: listUsers(s, currentUser(req)) }));

@@ -3,11 +3,11 @@ import { z } from 'zod';
 import { Vessel, VesselInput, VesselList, VesselPatch } from '../../src/contracts/vessels';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { changeVessel, createVessel, listVessels } from '../services/vessels';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export function vesselsRouter(s: Services): Router {
+export function vesselsRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow(...ALL_ROLES), (req, res) => {
     res.json(VesselList.parse({ vessels: listVessels(s, currentUser(req)) }));

@@ -78,7 +78,7 @@ import {
 } from '../repositories/batches';
 import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
 import { findSiteVessel } from '../repositories/vessels';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { getPlan } from './plans';
 import { recalibrate } from './calibrations';

@@ -30,13 +30,13 @@ import { findSitePlan, type PlanRow } from '../repositories/plans';
 import { findSiteRecipe, updateRecipe, type RecipeRow } from '../repositories/recipes';
 import { findSite } from '../repositories/sites';
 import { findSiteUser } from '../repositories/users';
-import type { Services } from '../routes/services';
+import type { AppContext, Services } from '../context';
 import { formatSiteTime, siteDay, startOfSiteDay } from '../site-time';
 import { appendAudit } from './audit';
 import { enqueueMail } from './mail';
 import { canonicalJson, getPlan } from './plans';
 
-export type ChangeControlCtx = Services & { mail: { kick(): void } | null; publicUrl: string };
+export type ChangeControlCtx = Pick<AppContext, 'db' | 'clock' | 'mail' | 'linkUrl'>;
 
 /**
  * What every signature is bound to: the plan's full stored content and the request's own fields. Recomputed
@@ -169,7 +169,7 @@ function closeOthers(tx: Db, u: SessionUser, recipe: RecipeRow, byId: number, st
   }
 }
 
-const link = (ctx: ChangeControlCtx, id: number) => `${ctx.publicUrl.replace(/\/$/, '')}/sign-offs/${id}`;
+const link = (ctx: ChangeControlCtx, id: number) => `${ctx.linkUrl.replace(/\/$/, '')}/sign-offs/${id}`;
 
 export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: ChangeRequestInput): ChangeRequestDetail {
   const { db, clock } = ctx;

@@ -5,7 +5,7 @@ import { HttpError, notFound } from '../http-error';
 import { listSiteFits } from '../repositories/assays';
 import { findSiteEnzyme, findSiteEnzymeByName, insertEnzyme, listSiteEnzymes, querySiteEnzymes, updateEnzyme, type EnzymeRow } from '../repositories/enzymes';
 import { listSiteLots } from '../repositories/lots';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { writeTx, type Db } from '../../db/client';
 import { appendAudit } from './audit';
 

@@ -3,7 +3,7 @@ import { writeTx, type Db } from '../../db/client';
 import type { AcceptInvite, CreateInvite, Invite, InviteAccepted, InvitePreview, InviteList } from '../../src/contracts/invites';
 import { ROLE_LABELS } from '../../src/contracts/roles';
 import type { SessionUser } from '../../src/contracts/session';
-import type { Clock } from '../clock';
+import type { AppContext } from '../context';
 import { HttpError, notFound } from '../http-error';
 import { findInviteByTokenHash, findOpenInviteByEmail, findSiteInvite, insertInvite, listOpenInvites, updateInvite, type InviteRow } from '../repositories/billing';
 import { findSite } from '../repositories/sites';
@@ -14,7 +14,7 @@ import { hashPassword } from './auth';
 import { assertFreeSeat, assertWritable } from './billing';
 import { enqueueMail } from './mail';
 
-export type InviteContext = { db: Db; clock: Clock; publicUrl: string; mail: { kick(): void } | null };
+export type InviteContext = Pick<AppContext, 'db' | 'clock' | 'linkUrl' | 'mail'>;
 
 export const INVITE_DAYS = 7;
 
@@ -36,7 +36,7 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
   if (!site) throw notFound('Site');
   const token = crypto.randomBytes(32).toString('base64url');
   const expiresAt = new Date(now.getTime() + INVITE_DAYS * 86_400_000);
-  const link = `${ctx.publicUrl}/accept-invite?token=${token}`;
+  const link = `${ctx.linkUrl}/accept-invite?token=${token}`;
   const invite = writeTx(ctx.db, (tx) => {
     // Checked inside the transaction: two invites racing for the last seat cannot both take it.
     assertFreeSeat(tx, actor.siteId, now);

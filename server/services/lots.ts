@@ -5,16 +5,15 @@ import type { CertificateFile, Lot, LotDecision, LotDetail, LotInput, LotQuery }
 import type { SessionUser } from '../../src/contracts/session';
 import { certificateDisagreement } from '../../src/planning';
 import { certConversion, evaluateLot, fitHalfLifeAt } from '../../src/stability';
-import type { FileStore } from '../file-store';
 import { HttpError, notFound } from '../http-error';
 import { listAssayPoints, listLotAssays } from '../repositories/assays';
 import { insertCertificate, latestCertificate } from '../repositories/certificates';
 import { findSiteEnzyme } from '../repositories/enzymes';
 import { findLotByCode, findSiteLot, insertLot, listSiteLots, setLotDecision, type LotRow } from '../repositories/lots';
-import type { Services } from '../routes/services';
+import type { AppContext, Services } from '../context';
 import { appendAudit } from './audit';
 
-export type LotServices = Services & { files: FileStore };
+export type LotServices = Pick<AppContext, 'db' | 'clock' | 'files'>;
 
 const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzymeName: string, activityUnit: string): Lot => ({ ...l, enzymeName, activityUnit });
 

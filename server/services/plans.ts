@@ -10,7 +10,7 @@ import { HttpError, notFound } from '../http-error';
 import { findSitePlan, insertPlan, listSitePlans, type PlanJoined } from '../repositories/plans';
 import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
 import { findSiteVessel } from '../repositories/vessels';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { olderEvidence, planningLot } from './evidence';
 import { acceptedLot } from './recipes';

@@ -6,7 +6,7 @@ import { findSiteEnzyme, findSiteLot, findSiteRecipe, findSiteRecipeByName, inse
 import { listApprovedChanges } from '../repositories/change-requests';
 import { findSiteVessel, type VesselRow } from '../repositories/vessels';
 import { siteDay } from '../site-time';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { planningLot } from './evidence';
 
