@@ -1,7 +1,7 @@
 import express, { Router } from 'express';
 import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
-import { z } from 'zod';
+import { IdParam } from './params';
 import {
   Batch,
   BATCH_READERS,
@@ -27,7 +27,6 @@ import { allow, currentUser } from '../middleware/auth';
 import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, getReadingsPage, importProgress, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
 import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 // A historian export of a long batch at one reading a second runs to several megabytes. Kept as bytes: the
 // import worker finds the file's encoding (UTF-8, UTF-16, Latin-1) itself; the limit is checked as it streams in.
 const csvBody = express.raw({ type: ['text/csv', 'text/plain', 'application/csv'], limit: MAX_IMPORT_BYTES });

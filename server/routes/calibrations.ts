@@ -1,12 +1,10 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
 import { CALIBRATION_DECIDERS, CALIBRATION_READERS, CALIBRATION_SETTINGS_EDITORS } from '../../src/contracts/rules';
 import { allow, currentUser } from '../middleware/auth';
 import { acceptCalibration, calibrationSettingsOf, changeCalibrationSettings, getCalibrationView, setExclusion } from '../services/calibrations';
 import type { AppContext } from '../context';
-
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function calibrationsRouter(s: AppContext): Router {
   const router = Router();

@@ -1,13 +1,12 @@
 import { Router } from 'express';
 import rateLimit from 'express-rate-limit';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { ChangeRequestDetail, ChangeRequestInput, ChangeRequestList, ChangeRequestQuery, SignatureInput } from '../../src/contracts/change-requests';
 import { HttpError } from '../http-error';
 import { allow, currentUser } from '../middleware/auth';
 import { changeRequestCsv, getChangeRequest, listChangeRequests, proposeChange, signChange } from '../services/change-requests';
 import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 const READERS = ['engineer', 'supervisor', 'admin'] as const;
 
 export function changeRequestsRouter(opts: AppContext): Router {

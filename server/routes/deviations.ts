@@ -1,11 +1,9 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Deviation, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, DeviationAcknowledge, DeviationClose } from '../../src/contracts/batches';
 import { allow, currentUser } from '../middleware/auth';
 import { acknowledgeDeviation, closeDeviation } from '../services/batches';
 import type { AppContext } from '../context';
-
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function deviationsRouter(s: AppContext): Router {
   const router = Router();

@@ -1,12 +1,10 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Enzyme, EnzymeDetail, EnzymeInput, EnzymeList, EnzymeQuery, EnzymeUpdate } from '../../src/contracts/enzymes';
 import { LOT_EDITORS } from '../../src/contracts/lots';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { changeEnzyme, createEnzyme, getEnzyme, listEnzymes } from '../services/enzymes';
 import type { AppContext } from '../context';
-
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function enzymesRouter(s: AppContext): Router {
   const router = Router();

@@ -1,11 +1,9 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { AcceptInvite, CreateInvite, Invite, InviteAccepted, InviteList, InvitePreview, InviteToken } from '../../src/contracts/invites';
 import { allow, currentUser, open } from '../middleware/auth';
 import { acceptInvite, createInvite, listInvites, previewInvite, revokeInvite } from '../services/invites';
 import type { AppContext } from '../context';
-
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function invitesRouter(ctx: AppContext): Router {
   const router = Router();

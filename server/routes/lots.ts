@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam, RowId } from './params';
 import { Assay, AssayTableInput, AssayUpload, MAX_ASSAY_BYTES } from '../../src/contracts/assays';
 import { CertificateFile, Lot, LOT_DECIDERS, LOT_EDITORS, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
@@ -9,8 +9,7 @@ import { addAssay, exportAssayCsv } from '../services/assays';
 import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate } from '../services/lots';
 import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-const AssayParam = IdParam.extend({ assayId: z.coerce.number().int().positive() });
+const AssayParam = IdParam.extend({ assayId: RowId });
 
 const attachment = (name: string) => `attachment; filename="${name.replace(/["\\\r\n]/g, '_')}"`;
 

@@ -1,11 +1,9 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Outbox, OutboxMessage } from '../../src/contracts/mail';
 import { allow, currentUser } from '../middleware/auth';
 import { retryMail, siteOutbox } from '../services/mail';
 import type { AppContext } from '../context';
-
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function mailOutboxRouter(s: AppContext): Router {
   const router = Router();

@@ -1,11 +1,10 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Plan, PlanInputs, PlanList, PlanQuery } from '../../src/contracts/plans';
 import { allow, currentUser } from '../middleware/auth';
 import { createPlan, getPlan, listPlans, planCsv } from '../services/plans';
 import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 const READERS = ['engineer', 'supervisor', 'admin'] as const;
 
 // No PATCH or DELETE: a saved plan is immutable.

@@ -1,11 +1,9 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Recipe, RecipeDetail, RecipeInput, RecipeList, RecipePatch } from '../../src/contracts/recipes';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { changeRecipe, createRecipe, getRecipeDetail, listRecipes } from '../services/recipes';
 import type { AppContext } from '../context';
-
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function recipesRouter(s: AppContext): Router {
   const router = Router();

@@ -1,11 +1,9 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Vessel, VesselInput, VesselList, VesselPatch } from '../../src/contracts/vessels';
 import { allow, ALL_ROLES, currentUser } from '../middleware/auth';
 import { changeVessel, createVessel, listVessels } from '../services/vessels';
 import type { AppContext } from '../context';
-
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 export function vesselsRouter(s: AppContext): Router {
   const router = Router();
