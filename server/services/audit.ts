@@ -1,6 +1,7 @@
 import crypto from 'node:crypto';
 import type Database from 'better-sqlite3';
 import { clientOf, type Db } from '../../db/client';
+import { sha256 } from '../digest';
 import { installationSecret } from '../installation-secrets';
 import { hasCheckpoint } from './audit-checkpoints';
 import { insertAudit, lastAuditHash, type AuditRow } from '../repositories/audit';
@@ -30,7 +31,7 @@ const canonical = (e: Hashed) => JSON.stringify([e.siteId, e.userId, e.actor, e.
  */
 export const eventHash = (key: Buffer, e: Hashed): string => crypto.createHmac('sha256', key).update(canonical(e)).digest('hex');
 // Before the chain was keyed (databases written until 2026-12-03): a plain SHA-256 of the same content.
-const legacyHash = (e: Hashed): string => crypto.createHash('sha256').update(canonical(e)).digest('hex');
+const legacyHash = (e: Hashed): string => sha256(canonical(e));
 
 const keys = new WeakMap<Database.Database, Buffer>();
 

@@ -4,6 +4,7 @@ import type { AcceptInvite, CreateInvite, Invite, InviteAccepted, InvitePreview,
 import { ROLE_LABELS } from '../../src/contracts/roles';
 import type { SessionUser } from '../../src/contracts/session';
 import type { AppContext } from '../context';
+import { sha256 } from '../digest';
 import { HttpError, notFound } from '../http-error';
 import { findInviteByTokenHash, findOpenInviteByEmail, findSiteInvite, insertInvite, listOpenInvites, updateInvite, type InviteRow } from '../repositories/billing';
 import { findSite } from '../repositories/sites';
@@ -18,7 +19,7 @@ export type InviteContext = Pick<AppContext, 'db' | 'clock' | 'linkUrl' | 'mail'
 
 export const INVITE_DAYS = 7;
 
-const hashToken = (token: string) => crypto.createHash('sha256').update(token).digest('hex');
+const hashToken = (token: string) => sha256(token);
 const toInvite = (r: InviteRow): Invite => ({ id: r.id, email: r.email, role: r.role, createdAt: r.createdAt, expiresAt: r.expiresAt });
 
 export const listInvites = ({ db, clock }: InviteContext, actor: SessionUser): InviteList => ({ invites: listOpenInvites(db, actor.siteId, clock.now().toISOString()).map(toInvite) });

@@ -4,6 +4,7 @@ import { jwtVerify, SignJWT } from 'jose';
 import { writeTx } from '../../db/client';
 import type { AppContext } from '../context';
 import type { ChangePassword, PasswordReset, PasswordResetPreview, SessionUser } from '../../src/contracts/session';
+import { sha256 } from '../digest';
 import { HttpError, notFound } from '../http-error';
 import { revokeOtherSessions, revokeUserSessions } from '../repositories/sessions';
 import { findSite } from '../repositories/sites';
@@ -35,7 +36,7 @@ export async function changeOwnPassword(ctx: AuthContext, u: SessionUser, sessio
  * so each link works once, and a newer link or a password change voids the older ones. Nothing is stored.
  */
 const resetKey = (secret: Uint8Array) => crypto.createHmac('sha256', secret).update('yieldpoint password reset').digest();
-const fingerprint = (user: UserRow) => crypto.createHash('sha256').update(`${user.id}|${user.passwordHash}`).digest('base64url').slice(0, 22);
+const fingerprint = (user: UserRow) => sha256(`${user.id}|${user.passwordHash}`, 'base64url').slice(0, 22);
 
 export type ResetContext = AuthContext & Pick<AppContext, 'linkUrl' | 'mail'>;
 
