@@ -35,11 +35,6 @@ const legacyHash = (e: Hashed): string => sha256(canonical(e));
 
 const keys = new WeakMap<Database.Database, Buffer>();
 
-/** Uses `key` for this connection's chain (tests; a key kept elsewhere). */
-export function useAuditKey(db: Db, key: Buffer): void {
-  keys.set(clientOf(db), key);
-}
-
 /**
  * The audit key of a connection: for a database file, the installation's (`.audit-key` beside the file, made on
  * first use); for an in-memory database, a random one. On first use the chains written before the key existed are

@@ -83,7 +83,8 @@ import { appendAudit } from './audit';
 import { getPlan } from './plans';
 import { recalibrate } from './calibrations';
 import { planningLot } from './evidence';
-import { acceptedLot, releaseInEffect } from './recipes';
+import { acceptedLot } from './lots';
+import { releaseInEffect } from './recipes';
 
 // A batch may be registered after it started (the paperwork follows the vessel), but not a week late.
 const LATE_START_LIMIT_H = 7 * 24;

@@ -13,7 +13,7 @@ import { findSiteVessel } from '../repositories/vessels';
 import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { olderEvidence, planningLot } from './evidence';
-import { acceptedLot } from './recipes';
+import { acceptedLot } from './lots';
 
 export const planContentHash = (p: Pick<Plan, 'inputs' | 'outputs' | 'modelVersion'>) =>
   sha256(canonicalJson({ inputs: p.inputs, outputs: p.outputs, modelVersion: p.modelVersion }));
