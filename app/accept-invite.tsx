@@ -50,7 +50,7 @@ function AcceptForm({ token }: { token: string }) {
           {general}
         </Text>
       ) : null}
-      <Button label="Set password" testID="accept-submit" onPress={submit} isBusy={accept.isSubmitting} />
+      <Button label="Set password" testID="accept-submit" onPress={submit} isBusy={accept.isBusy} />
     </Card>
   );
 }

@@ -37,7 +37,7 @@ function ResetForm({ token }: { token: string }) {
           {general}
         </Text>
       ) : null}
-      <Button label="Set password" testID="reset-submit" onPress={submit} isBusy={reset.isSubmitting} />
+      <Button label="Set password" testID="reset-submit" onPress={submit} isBusy={reset.isBusy} />
     </Card>
   );
 }

@@ -13,7 +13,7 @@ import { space, useColors } from '@/theme';
 export default function SignIn() {
   const c = useColors();
   const { session } = useSession();
-  const { signIn, error, isSubmitting } = useSignIn();
+  const { submit: signIn, error, isBusy: isSubmitting } = useSignIn();
   // An accepted invite lands here with the address filled in.
   const params = useLocalSearchParams<{ email?: string; welcome?: string }>();
   const [email, setEmail] = useState(params.email ?? '');
