@@ -1,7 +1,7 @@
 import { useState, type ReactNode } from 'react';
 import { StyleSheet, View } from 'react-native';
 import Svg, { G, Line, Text as SvgText } from 'react-native-svg';
-import { font, space, useColors } from '../../theme';
+import { chartText, font, space, useColors } from '../../theme';
 import { Text } from '../ui/text';
 import type { Box, Tick } from './axes';
 
@@ -29,21 +29,21 @@ export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
             {drawn.yTicks.map((t) => (
               <G key={`y${t.value}`}>
                 <Line x1={drawn.box.left} x2={drawn.box.right} y1={t.pos} y2={t.pos} stroke={c.chartGrid} strokeWidth={1} />
-                <SvgText x={drawn.box.left - 6} y={t.pos + 4} fontSize={11} fontFamily={font.regular} fill={c.textMuted} textAnchor="end">
+                <SvgText x={drawn.box.left - 6} y={t.pos + 4} fontSize={chartText.tick} fontFamily={font.regular} fill={c.textMuted} textAnchor="end">
                   {t.label}
                 </SvgText>
               </G>
             ))}
             {drawn.xTicks.map((t) => (
-              <SvgText key={`x${t.value}`} x={t.pos} y={drawn.box.bottom + 16} fontSize={11} fontFamily={font.regular} fill={c.textMuted} textAnchor="middle">
+              <SvgText key={`x${t.value}`} x={t.pos} y={drawn.box.bottom + 16} fontSize={chartText.tick} fontFamily={font.regular} fill={c.textMuted} textAnchor="middle">
                 {t.label}
               </SvgText>
             ))}
             <Line x1={drawn.box.left} x2={drawn.box.right} y1={drawn.box.bottom} y2={drawn.box.bottom} stroke={c.border} strokeWidth={1} />
-            <SvgText x={(drawn.box.left + drawn.box.right) / 2} y={HEIGHT - 4} fontSize={12} fontFamily={font.semibold} fill={c.textMuted} textAnchor="middle">
+            <SvgText x={(drawn.box.left + drawn.box.right) / 2} y={HEIGHT - 4} fontSize={chartText.title} fontFamily={font.semibold} fill={c.textMuted} textAnchor="middle">
               {xTitle}
             </SvgText>
-            <SvgText x={4} y={14} fontSize={12} fontFamily={font.semibold} fill={c.textMuted}>
+            <SvgText x={4} y={14} fontSize={chartText.title} fontFamily={font.semibold} fill={c.textMuted}>
               {yTitle}
             </SvgText>
           </G>

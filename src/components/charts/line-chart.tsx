@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import Svg, { Circle, G, Line, Path, Text as SvgText } from 'react-native-svg';
-import { font, radius, space, useColors, type Palette } from '../../theme';
+import { chartText, font, radius, space, useColors, type Palette } from '../../theme';
 import { Text } from '../ui/text';
 import { lineChartGeometry, type BandSeries, type LineSeries, type MarkerSpec } from './line-chart-geometry';
 
@@ -28,8 +28,6 @@ type Props = {
   testID: string;
 };
 
-const AXIS_FONT = 11;
-
 /** A thin SVG renderer of lineChartGeometry, with a legend and its sentence equivalent. */
 export function LineChart({ title, summary, series, bands = [], markers = [], xLabel, yLabel, yFromZero, formatX, formatY, height = 220, testID }: Props) {
   const c = useColors();
@@ -45,20 +43,20 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
             {g.yTicks.map((t) => (
               <G key={`y${t.value}`}>
                 <Line x1={g.plot.left} x2={g.plot.left + g.plot.width} y1={t.pos} y2={t.pos} stroke={c.chartGrid} strokeWidth={1} />
-                <SvgText x={g.plot.left - 6} y={t.pos + 4} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
+                <SvgText x={g.plot.left - 6} y={t.pos + 4} fontSize={chartText.tick} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
                   {t.label}
                 </SvgText>
               </G>
             ))}
             {g.xTicks.map((t) => (
-              <SvgText key={`x${t.value}`} x={t.pos} y={bottom + 16} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="middle" fontFamily={font.regular}>
+              <SvgText key={`x${t.value}`} x={t.pos} y={bottom + 16} fontSize={chartText.tick} fill={c.textMuted} textAnchor="middle" fontFamily={font.regular}>
                 {t.label}
               </SvgText>
             ))}
-            <SvgText x={g.plot.left + g.plot.width} y={bottom + 28} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
+            <SvgText x={g.plot.left + g.plot.width} y={bottom + 28} fontSize={chartText.tick} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
               {xLabel}
             </SvgText>
-            <SvgText x={4} y={AXIS_FONT + 2} fontSize={AXIS_FONT} fill={c.textMuted} fontFamily={font.regular}>
+            <SvgText x={4} y={chartText.tick + 2} fontSize={chartText.tick} fill={c.textMuted} fontFamily={font.regular}>
               {yLabel}
             </SvgText>
             {g.bands.map((b, i) => (
