@@ -34,7 +34,7 @@ function AcceptForm({ token }: { token: string }) {
       }
       error={accept.error}
       errorTestID="accept-error"
-      submit={{ label: 'Set password', testID: 'accept-submit', onPress: submit, isBusy: accept.isSubmitting }}
+      submit={{ label: 'Set password', testID: 'accept-submit', onPress: submit, isBusy: accept.isBusy }}
     >
       <Field label="Your name" testID="accept-name" value={name} onChangeText={setName} autoComplete="name" error={accept.error?.fields.name} />
       <Field

@@ -9,7 +9,7 @@ import { useSignIn } from '@/hooks/use-sign-in';
 
 export default function SignIn() {
   const { session } = useSession();
-  const { signIn, error, isSubmitting } = useSignIn();
+  const { submit: signIn, error, isBusy: isSubmitting } = useSignIn();
   // An accepted invite lands here with the address filled in.
   const params = useLocalSearchParams<{ email?: string; welcome?: string }>();
   const [email, setEmail] = useState(params.email ?? '');

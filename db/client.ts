@@ -73,9 +73,6 @@ export function unwritableReason(err: unknown): UnwritableReason | null {
 // without waiting on busy_timeout, so a held lock costs every write a blocked event loop only the first time.
 const failing = new WeakMap<Database.Database, UnwritableReason>();
 
-/** Whether the last write on this connection found the file not writable (and no write has succeeded since). */
-export const writeFailing = (db: Db): UnwritableReason | null => failing.get(db.$client) ?? null;
-
 /**
  * Runs a write as one BEGIN IMMEDIATE transaction: it takes the write lock up front, so concurrent writers queue
  * on busy_timeout instead of failing half-way with SQLITE_BUSY. Synchronous: an async callback would commit early.

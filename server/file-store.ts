@@ -1,6 +1,7 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
+import { sha256 } from './digest';
 
 /** Uploaded files on disk, each named by the SHA-256 of its bytes: the same bytes are stored once. */
 export type FileStore = {
@@ -8,8 +9,6 @@ export type FileStore = {
   /** The bytes, or null when missing or when they no longer hash to their name. */
   get(sha256: string): Buffer | null;
 };
-
-export const sha256Of = (bytes: Buffer) => crypto.createHash('sha256').update(bytes).digest('hex');
 
 export function createFileStore(dir: string): FileStore {
   fs.mkdirSync(dir, { recursive: true });
@@ -19,21 +18,21 @@ export function createFileStore(dir: string): FileStore {
   };
   return {
     put(bytes) {
-      const sha256 = sha256Of(bytes);
-      const file = fileOf(sha256);
+      const sha = sha256(bytes);
+      const file = fileOf(sha);
       if (!fs.existsSync(file)) {
         // Written beside and renamed, so a crash never leaves a half file under a valid name.
         const tmp = `${file}.${process.pid}.${crypto.randomBytes(4).toString('hex')}.part`;
         fs.writeFileSync(tmp, bytes, { mode: 0o600 });
         fs.renameSync(tmp, file);
       }
-      return { sha256 };
+      return { sha256: sha };
     },
-    get(sha256) {
-      const file = fileOf(sha256);
+    get(sha) {
+      const file = fileOf(sha);
       if (!fs.existsSync(file)) return null;
       const bytes = fs.readFileSync(file);
-      return sha256Of(bytes) === sha256 ? bytes : null;
+      return sha256(bytes) === sha ? bytes : null;
     },
   };
 }

@@ -44,7 +44,7 @@ async function main() {
   const integrations = await startIntegrations(db, { ...env, fakeWebhookSecret: () => `whsec_${installationSecret(env.databaseFile, '.webhook-secret').toString('hex')}` });
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const localUrl = `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
-  if (seeded) proposeDemoChange({ db, clock: systemClock, mail, publicUrl: env.publicUrl ?? localUrl }, seeded.siteId);
+  if (seeded) proposeDemoChange({ db, clock: systemClock, mail, linkUrl: env.publicUrl ?? localUrl }, seeded.siteId);
   // Yieldpoint's OPC UA certificate (made once) and trust list beside the database; the link reads, never writes.
   const pki = await openAppPki(pkiFolderBeside(env.databaseFile));
   const controlLink = startControlLink({ db, clock: systemClock, pki });

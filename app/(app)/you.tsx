@@ -35,7 +35,7 @@ function ChangePasswordCard() {
         </Text>
       ) : null}
       {done ? <Text tone="success" testID="you-password-changed">Password changed; you are signed out everywhere else.</Text> : null}
-      <Button label="Change password" variant="secondary" testID="you-change-password" onPress={submit} isBusy={change.isSubmitting} />
+      <Button label="Change password" variant="secondary" testID="you-change-password" onPress={submit} isBusy={change.isBusy} />
     </Card>
   );
 }

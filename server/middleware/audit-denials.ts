@@ -1,6 +1,6 @@
 import type { Request, RequestHandler } from 'express';
-import { DatabaseUnwritable, writeTx, type Db } from '../../db/client';
-import type { Clock } from '../clock';
+import { DatabaseUnwritable, writeTx } from '../../db/client';
+import type { Services } from '../context';
 import { appendAudit, type AuditInput } from '../services/audit';
 
 // What one refused request may add to the audit trail, which can never shrink without breaking its chain.
@@ -30,7 +30,7 @@ type Repeats = {
  * anonymous traffic grows the trail by a bounded amount. Failed sign-ins are audited by the sign-in itself.
  * Recording is best effort: a write that fails is logged and never reaches the request or the process.
  */
-export function auditDenials(ctx: { db: Db; clock: Clock }): RequestHandler {
+export function auditDenials(ctx: Services): RequestHandler {
   let minute = -1;
   let repeats = new Map<string, Repeats>();
 

@@ -1,8 +1,8 @@
 import type { RequestHandler } from 'express';
+import { CLIENT_HEADER } from '../../src/contracts/client-header';
 import { HttpError } from '../http-error';
 
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
-export const CLIENT_HEADER = 'x-yieldpoint-client';
 
 /**
  * Refuses state-changing requests that a browser sent from another site: SameSite=Strict already keeps the

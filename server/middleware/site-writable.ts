@@ -1,6 +1,5 @@
 import type { RequestHandler } from 'express';
-import type { Db } from '../../db/client';
-import type { Clock } from '../clock';
+import type { Services } from '../context';
 import { assertWritable } from '../services/billing';
 
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
@@ -8,7 +7,7 @@ const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
 const ALWAYS_OPEN = ['/session', '/billing'];
 
 /** Refuses writes of signed-in users on a site that is read-only after a failed payment (402 site_read_only). */
-export function requireWritableSite(ctx: { db: Db; clock: Clock }): RequestHandler {
+export function requireWritableSite(ctx: Services): RequestHandler {
   return (req, _res, next) => {
     if (SAFE.has(req.method) || !req.user || ALWAYS_OPEN.some((p) => req.path === p || req.path.startsWith(`${p}/`))) return next();
     assertWritable(ctx.db, req.user.siteId, ctx.clock.now());

@@ -2,8 +2,6 @@ import { and, desc, eq } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { certificateFiles, users } from '../../db/schema';
 
-export type CertificateRow = typeof certificateFiles.$inferSelect;
-
 export const insertCertificate = (db: Db, row: Omit<typeof certificateFiles.$inferInsert, 'id'>) =>
   db.insert(certificateFiles).values(row).returning().get();
 

@@ -3,7 +3,6 @@ import type { Db } from '../../db/client';
 import { batches, batchReadings, linkGaps, linkSettings, sites, vessels, vesselSources } from '../../db/schema';
 
 export type VesselSourceRow = typeof vesselSources.$inferSelect;
-export type LinkGapRow = typeof linkGaps.$inferSelect;
 
 export const listSiteIds = (db: Db) => db.select({ id: sites.id }).from(sites).orderBy(sites.id).all().map((r) => r.id);
 
@@ -18,8 +17,6 @@ export const listSiteSources = (db: Db, siteId: number) =>
 
 export const findVesselSource = (db: Db, siteId: number, vesselId: number) =>
   db.select().from(vesselSources).where(and(eq(vesselSources.siteId, siteId), eq(vesselSources.vesselId, vesselId))).get();
-
-export const countSiteSources = (db: Db, siteId: number) => listSiteSources(db, siteId).length;
 
 export const upsertVesselSource = (db: Db, row: Omit<typeof vesselSources.$inferInsert, 'id' | 'createdAt'>) =>
   db

@@ -5,9 +5,6 @@ import type { EnzymeInput, EnzymeQuery, EnzymeUpdate } from '../../src/contracts
 
 export type EnzymeRow = typeof enzymes.$inferSelect;
 
-export const listSiteEnzymes = (db: Db, siteId: number) =>
-  db.select().from(enzymes).where(eq(enzymes.siteId, siteId)).orderBy(enzymes.name).all();
-
 // LIKE treats % and _ as wildcards: a search for "10%" must match the text, not everything.
 const likeText = (q: string) => `%${q.replace(/[\\%_]/g, (ch) => `\\${ch}`)}%`;
 

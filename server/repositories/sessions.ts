@@ -2,8 +2,6 @@ import { and, eq, isNull, ne, sql } from 'drizzle-orm';
 import { preparedPer, type Db } from '../../db/client';
 import { sessions, sites, users } from '../../db/schema';
 
-export type SessionRow = typeof sessions.$inferSelect;
-
 export const insertSession = (db: Db, row: typeof sessions.$inferInsert) => db.insert(sessions).values(row).run();
 
 // The session check on every request: the session row with its user and site in one statement.

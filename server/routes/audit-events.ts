@@ -2,9 +2,9 @@ import { Router } from 'express';
 import { AuditCheckpointInput, AuditCheckpointsWritten, AuditPage, AuditQuery, AuditVerification } from '../../src/contracts/audit-events';
 import { allow, currentUser } from '../middleware/auth';
 import { auditCsv, checkpointSiteAudit, searchAudit, verifySiteAudit } from '../services/audit-events';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-export function auditEventsRouter(s: Services): Router {
+export function auditEventsRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('audit-events.review'), (req, res) => {
     res.json(AuditPage.parse(searchAudit(s, currentUser(req), AuditQuery.parse(req.query))));

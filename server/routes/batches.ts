@@ -1,7 +1,7 @@
 import express, { Router } from 'express';
 import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
-import { z } from 'zod';
+import { IdParam } from './params';
 import {
   Batch,
   BatchClose,
@@ -22,14 +22,13 @@ import {
 import { HttpError } from '../http-error';
 import { allow, currentUser } from '../middleware/auth';
 import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, getReadingsPage, importProgress, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 // A historian export of a long batch at one reading a second runs to several megabytes. Kept as bytes: the
 // import worker finds the file's encoding (UTF-8, UTF-16, Latin-1) itself; the limit is checked as it streams in.
 const csvBody = express.raw({ type: ['text/csv', 'text/plain', 'application/csv'], limit: MAX_IMPORT_BYTES });
 
-export function batchesRouter(s: Services): Router {
+export function batchesRouter(s: AppContext): Router {
   const router = Router();
   const readings = readingIngest(s);
   router.get('/', allow('batches.read'), (req, res) => {

@@ -1,10 +1,11 @@
 import express, { Router, type RequestHandler } from 'express';
 import { BillingSummary, BuySeats, ChangeSeats, CheckoutStarted, InvoiceList } from '../../src/contracts/billing';
 import { allow, currentUser, open } from '../middleware/auth';
-import { billingReturnPage, billingSummary, changeSeats, siteInvoices, startCheckout, type BillingContext } from '../services/billing';
+import { billingReturnPage, billingSummary, changeSeats, siteInvoices, startCheckout } from '../services/billing';
+import type { AppContext } from '../context';
 import { handleStripeEvent } from '../services/billing-webhooks';
 
-export function billingRouter(ctx: BillingContext): Router {
+export function billingRouter(ctx: AppContext): Router {
   const router = Router();
   router.get('/', allow('billing.manage'), (req, res) => {
     res.json(BillingSummary.parse(billingSummary(ctx, currentUser(req))));
@@ -32,7 +33,7 @@ export function billingRouter(ctx: BillingContext): Router {
  * POST /api/billing/webhook, mounted before the API's JSON parser: the signature covers the raw bytes.
  * No session and no client header: the payment provider calls it, and the signature is the proof.
  */
-export function billingWebhook(ctx: BillingContext): RequestHandler[] {
+export function billingWebhook(ctx: AppContext): RequestHandler[] {
   return [
     express.raw({ type: '*/*', limit: '512kb' }),
     async (req, res) => {

@@ -1,13 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
 import { allow, currentUser } from '../middleware/auth';
 import { acceptCalibration, calibrationSettingsOf, changeCalibrationSettings, getCalibrationView, setExclusion } from '../services/calibrations';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function calibrationsRouter(s: Services): Router {
+export function calibrationsRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('calibrations.read'), (req, res) => {
     res.json(CalibrationView.parse(getCalibrationView(s, currentUser(req), CalibrationQuery.parse(req.query))));

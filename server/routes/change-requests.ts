@@ -1,22 +1,20 @@
 import { Router } from 'express';
 import rateLimit from 'express-rate-limit';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { ChangeRequestDetail, ChangeRequestInput, ChangeRequestList, ChangeRequestQuery, SignatureInput } from '../../src/contracts/change-requests';
 import { HttpError } from '../http-error';
 import { allow, currentUser } from '../middleware/auth';
-import { changeRequestCsv, getChangeRequest, listChangeRequests, proposeChange, signChange, type ChangeControlCtx } from '../services/change-requests';
+import { changeRequestCsv, getChangeRequest, listChangeRequests, proposeChange, signChange } from '../services/change-requests';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
-export type ChangeRequestsOptions = ChangeControlCtx & { signLimit: { perAccount: number; windowMs: number } };
-
-export function changeRequestsRouter(opts: ChangeRequestsOptions): Router {
+export function changeRequestsRouter(opts: AppContext): Router {
   const router = Router();
   // Password guessing through the signature dialog is held to the sign-in's per-account budget;
   // only wrong passwords count against it.
   const signLimit = rateLimit({
-    windowMs: opts.signLimit.windowMs,
-    limit: opts.signLimit.perAccount,
+    windowMs: opts.signInLimit.windowMs,
+    limit: opts.signInLimit.perAccount,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     keyGenerator: (req) => `signer:${req.user?.id ?? 'none'}`,

@@ -1,5 +1,6 @@
 import { Router, type Request } from 'express';
 import { z } from 'zod';
+import { IdParam, RowId } from './params';
 import {
   BatchLink,
   CertificateInfo,
@@ -22,14 +23,13 @@ import {
   saveSource,
   sourceCertificate,
   trustSource,
-  type LinkServices,
 } from '../services/control-sources';
+import type { AppContext } from '../context';
 
-const VesselParam = z.object({ vesselId: z.coerce.number().int().positive() });
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
+const VesselParam = z.object({ vesselId: RowId });
 
 /** Sources, trust, settings and link status of the read-only control-system link (OPC UA). */
-export function controlLinkRouter(base: LinkServices): Router {
+export function controlLinkRouter(base: AppContext): Router {
   const router = Router();
   const vessel = (req: Request) => VesselParam.parse(req.params).vesselId;
   router.get('/sources', allow('control-link.configure'), (req, res) => {

@@ -1,13 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Deviation, DeviationAcknowledge, DeviationClose } from '../../src/contracts/batches';
 import { allow, currentUser } from '../middleware/auth';
 import { acknowledgeDeviation, closeDeviation } from '../services/batches';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function deviationsRouter(s: Services): Router {
+export function deviationsRouter(s: AppContext): Router {
   const router = Router();
   router.post('/:id/acknowledge', allow('deviations.acknowledge'), (req, res) => {
     const { id } = IdParam.parse(req.params);

@@ -1,13 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Enzyme, EnzymeDetail, EnzymeInput, EnzymeList, EnzymeQuery, EnzymeUpdate } from '../../src/contracts/enzymes';
 import { allow, currentUser } from '../middleware/auth';
 import { changeEnzyme, createEnzyme, getEnzyme, listEnzymes } from '../services/enzymes';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function enzymesRouter(s: Services): Router {
+export function enzymesRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('enzymes.read'), (req, res) => {
     res.json(EnzymeList.parse(listEnzymes(s, currentUser(req), EnzymeQuery.parse(req.query))));

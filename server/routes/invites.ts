@@ -1,12 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { AcceptInvite, CreateInvite, Invite, InviteAccepted, InviteList, InvitePreview, InviteToken } from '../../src/contracts/invites';
 import { allow, currentUser, open } from '../middleware/auth';
-import { acceptInvite, createInvite, listInvites, previewInvite, revokeInvite, type InviteContext } from '../services/invites';
+import { acceptInvite, createInvite, listInvites, previewInvite, revokeInvite } from '../services/invites';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function invitesRouter(ctx: InviteContext): Router {
+export function invitesRouter(ctx: AppContext): Router {
   const router = Router();
   router.get('/', allow('people.manage'), (req, res) => {
     res.json(InviteList.parse(listInvites(ctx, currentUser(req))));

@@ -1,19 +1,19 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam, RowId } from './params';
 import { Assay, AssayTableInput, AssayUpload, MAX_ASSAY_BYTES } from '../../src/contracts/assays';
 import { CertificateFile, Lot, LotDecision, LotDetail, LotInput, LotList, LotQuery } from '../../src/contracts/lots';
 import { allow, currentUser } from '../middleware/auth';
 import { singleFile } from '../middleware/upload';
 import { ASSAY_TEMPLATE_CSV } from '../services/assay-csv';
 import { addAssay, exportAssayCsv } from '../services/assays';
-import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate, type LotServices } from '../services/lots';
+import { attachCertificate, createLot, decideLot, getLot, listLots, MAX_CERTIFICATE_BYTES, readCertificate } from '../services/lots';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-const AssayParam = IdParam.extend({ assayId: z.coerce.number().int().positive() });
+const AssayParam = IdParam.extend({ assayId: RowId });
 
 const attachment = (name: string) => `attachment; filename="${name.replace(/["\\\r\n]/g, '_')}"`;
 
-export function lotsRouter(s: LotServices): Router {
+export function lotsRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('lots.read'), (req, res) => {
     res.json(LotList.parse({ lots: listLots(s, currentUser(req), LotQuery.parse(req.query)) }));

@@ -1,13 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Outbox, OutboxMessage } from '../../src/contracts/mail';
 import { allow, currentUser } from '../middleware/auth';
 import { retryMail, siteOutbox } from '../services/mail';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function mailOutboxRouter(s: Services & { mail: { kick(): void } | null }): Router {
+export function mailOutboxRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('mail-outbox.manage'), (req, res) => {
     res.json(Outbox.parse(siteOutbox(s.db, currentUser(req))));

@@ -1,14 +1,13 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Plan, PlanInputs, PlanList, PlanQuery } from '../../src/contracts/plans';
 import { allow, currentUser } from '../middleware/auth';
 import { createPlan, getPlan, listPlans, planCsv } from '../services/plans';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
 
 // No PATCH or DELETE: a saved plan is immutable.
-export function plansRouter(s: Services): Router {
+export function plansRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('plans.read'), (req, res) => {
     res.json(PlanList.parse({ plans: listPlans(s, currentUser(req), PlanQuery.parse(req.query)) }));

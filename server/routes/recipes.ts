@@ -1,13 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Recipe, RecipeDetail, RecipeInput, RecipeList, RecipePatch } from '../../src/contracts/recipes';
 import { allow, currentUser } from '../middleware/auth';
 import { changeRecipe, createRecipe, getRecipeDetail, listRecipes } from '../services/recipes';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function recipesRouter(s: Services): Router {
+export function recipesRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('recipes.read'), (req, res) => {
     res.json(RecipeList.parse({ recipes: listRecipes(s, currentUser(req)) }));

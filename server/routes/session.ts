@@ -2,20 +2,19 @@ import { Router, type CookieOptions } from 'express';
 import rateLimit from 'express-rate-limit';
 import { ChangePassword, Session, SessionState, SignInRequest, UpdateMe } from '../../src/contracts/session';
 import { allow, currentUser, open, SESSION_COOKIE } from '../middleware/auth';
-import { loadSessionUser, signIn, signOut, type AuthContext } from '../services/auth';
+import { loadSessionUser, signIn, signOut } from '../services/auth';
 import { changeOwnPassword } from '../services/passwords';
-import { createAccountThrottle, DEVICE_COOKIE, deviceToken, throttleKey, type SignInLimit } from '../services/sign-in-throttle';
+import { createAccountThrottle, DEVICE_COOKIE, deviceToken, throttleKey } from '../services/sign-in-throttle';
 import { acknowledgeCautions } from '../services/users';
 import { HttpError } from '../http-error';
-
-export type SessionRouteOptions = AuthContext & { cookieSecure: boolean; signInLimit: SignInLimit };
+import type { AppContext } from '../context';
 
 /** What a person who cannot sign in can do; the sign-in page shows it beside the refusal. */
 export const LOCKED_OUT_HELP = 'Forgotten your password? Ask your site admin to send you a reset link by e-mail.';
 const tooManyFromAddress = { error: { code: 'rate_limited', message: `Too many failed sign-ins from this network; wait a few minutes and try again. ${LOCKED_OUT_HELP}` } };
 const DEVICE_DAYS = 365;
 
-export function sessionRouter(opts: SessionRouteOptions): Router {
+export function sessionRouter(opts: AppContext): Router {
   const router = Router();
   const cookie = (expires: Date): CookieOptions => ({ httpOnly: true, sameSite: 'strict', secure: opts.cookieSecure, path: '/', expires });
   // Only failed sign-ins count against an address (a shift signing in behind one plant address is not refused).

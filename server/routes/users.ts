@@ -1,14 +1,13 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { PasswordResetSent, SendPasswordReset } from '../../src/contracts/session';
 import { UpdateUser, User, UserList } from '../../src/contracts/users';
 import { allow, currentUser } from '../middleware/auth';
-import { sendPasswordReset, type ResetContext } from '../services/passwords';
+import { sendPasswordReset } from '../services/passwords';
 import { changeUser, listUsers } from '../services/users';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function usersRouter(s: ResetContext): Router {
+export function usersRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('people.manage'), (req, res) => {
     res.json(UserList.parse({ users: listUsers(s, currentUser(req)) }));

@@ -1,13 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
+import { IdParam } from './params';
 import { Vessel, VesselInput, VesselList, VesselPatch } from '../../src/contracts/vessels';
 import { allow, currentUser } from '../middleware/auth';
 import { changeVessel, createVessel, listVessels } from '../services/vessels';
-import type { Services } from './services';
+import type { AppContext } from '../context';
 
-const IdParam = z.object({ id: z.coerce.number().int().positive() });
-
-export function vesselsRouter(s: Services): Router {
+export function vesselsRouter(s: AppContext): Router {
   const router = Router();
   router.get('/', allow('vessels.read'), (req, res) => {
     res.json(VesselList.parse({ vessels: listVessels(s, currentUser(req)) }));

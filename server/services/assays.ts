@@ -5,7 +5,7 @@ import { notFound } from '../http-error';
 import { findLotAssay, insertAssay, listAssayPoints } from '../repositories/assays';
 import { findSiteEnzyme } from '../repositories/enzymes';
 import { findSiteLot } from '../repositories/lots';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { runImport, type ImportTask } from '../imports';
 import { assayPointsCsv } from './assay-csv';
 import { appendAudit } from './audit';

@@ -2,7 +2,7 @@ import type { AuditEvent, AuditPage, AuditQuery, AuditVerification } from '../..
 import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
 import { findAudit, type AuditRow } from '../repositories/audit';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { sealAudit, verifyAudit } from './audit-verify';
 
 const toEvent = (r: AuditRow): AuditEvent => ({

@@ -1,6 +1,7 @@
 import crypto from 'node:crypto';
 import type Database from 'better-sqlite3';
 import { clientOf, type Db } from '../../db/client';
+import { sha256 } from '../digest';
 import { installationSecret } from '../installation-secrets';
 import { hasCheckpoint } from './audit-checkpoints';
 import { insertAudit, lastAuditHash, type AuditRow } from '../repositories/audit';
@@ -30,14 +31,9 @@ const canonical = (e: Hashed) => JSON.stringify([e.siteId, e.userId, e.actor, e.
  */
 export const eventHash = (key: Buffer, e: Hashed): string => crypto.createHmac('sha256', key).update(canonical(e)).digest('hex');
 // Before the chain was keyed (databases written until 2026-12-03): a plain SHA-256 of the same content.
-const legacyHash = (e: Hashed): string => crypto.createHash('sha256').update(canonical(e)).digest('hex');
+const legacyHash = (e: Hashed): string => sha256(canonical(e));
 
 const keys = new WeakMap<Database.Database, Buffer>();
-
-/** Uses `key` for this connection's chain (tests; a key kept elsewhere). */
-export function useAuditKey(db: Db, key: Buffer): void {
-  keys.set(clientOf(db), key);
-}
 
 /**
  * The audit key of a connection: for a database file, the installation's (`.audit-key` beside the file, made on

@@ -3,7 +3,7 @@ import crypto, { createSecretKey, type KeyObject } from 'node:crypto';
 import { jwtVerify, SignJWT } from 'jose';
 import { DatabaseUnwritable, writeTx, type Db } from '../../db/client';
 import type { SessionUser, SignInRequest } from '../../src/contracts/session';
-import type { Clock } from '../clock';
+import type { AppContext } from '../context';
 import { HttpError } from '../http-error';
 import { findSessionWithUser, insertSession, revokeSession, touchSession } from '../repositories/sessions';
 import { findUserByEmail, findUserWithSite, type UserRow } from '../repositories/users';
@@ -11,13 +11,7 @@ import { appendAudit } from './audit';
 
 export const BCRYPT_COST = 12;
 
-export type AuthConfig = {
-  secret: Uint8Array;
-  idleMinutes: number;
-  absoluteHours: number;
-};
-
-export type AuthContext = { db: Db; clock: Clock; auth: AuthConfig };
+export type AuthContext = Pick<AppContext, 'db' | 'clock' | 'auth'>;
 
 // Compared against when the e-mail is unknown, so a wrong address costs the same time as a wrong password.
 const DUMMY_HASH = bcrypt.hashSync('yieldpoint-no-such-user', BCRYPT_COST);

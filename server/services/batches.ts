@@ -78,12 +78,13 @@ import {
 } from '../repositories/batches';
 import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
 import { findSiteVessel } from '../repositories/vessels';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { getPlan } from './plans';
 import { recalibrate } from './calibrations';
 import { planningLot } from './evidence';
-import { acceptedLot, releaseInEffect } from './recipes';
+import { acceptedLot } from './lots';
+import { releaseInEffect } from './recipes';
 
 // A batch may be registered after it started (the paperwork follows the vessel), but not a week late.
 const LATE_START_LIMIT_H = 7 * 24;

@@ -2,7 +2,7 @@ import Stripe from 'stripe';
 import { writeTx, type Db } from '../../db/client';
 import type { BillingSummary, BuySeats, ChangeSeats, CheckoutStarted, Invoice } from '../../src/contracts/billing';
 import type { SessionUser } from '../../src/contracts/session';
-import type { Clock } from '../clock';
+import type { AppContext } from '../context';
 import { HttpError, notFound } from '../http-error';
 import { countActiveUsers, countOpenInvites, findSubscription, listSiteInvoices, upsertSubscription, type InvoiceRow, type SubscriptionRow } from '../repositories/billing';
 import { findSite } from '../repositories/sites';
@@ -10,7 +10,7 @@ import { appendAudit } from './audit';
 import { PLAN_NAME, providerPayUrl, SEAT_PRICE, type Billing } from './billing-provider';
 
 /** `publicUrl`: PUBLIC_URL when set; else the payment page returns to the address the request came to. */
-export type BillingContext = { db: Db; clock: Clock; billing: Billing | null; publicUrl: string | null };
+export type BillingContext = Pick<AppContext, 'db' | 'clock' | 'billing' | 'publicUrl'>;
 
 /** Days a site keeps working after a failed payment before it turns read-only (Yieldpoint's own rule). */
 export const GRACE_DAYS = 7;

@@ -23,7 +23,7 @@ import {
 } from '../repositories/calibrations';
 import { findSiteBatch } from '../repositories/batches';
 import { findSiteEnzyme, findSiteLot, findSiteRecipe } from '../repositories/recipes';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { planningLot } from './evidence';
 

@@ -1,5 +1,4 @@
 import bcrypt from 'bcryptjs';
-import crypto from 'node:crypto';
 import { writeTx, type Db } from '../../db/client';
 import type {
   ChangeRequestDetail,
@@ -12,6 +11,7 @@ import type {
 } from '../../src/contracts/change-requests';
 import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
+import { canonicalJson, sha256 } from '../digest';
 import { HttpError, notFound } from '../http-error';
 import {
   decideChangeRequest,
@@ -30,13 +30,13 @@ import { findSitePlan, type PlanRow } from '../repositories/plans';
 import { findSiteRecipe, updateRecipe, type RecipeRow } from '../repositories/recipes';
 import { findSite } from '../repositories/sites';
 import { findSiteUser } from '../repositories/users';
-import type { Services } from '../routes/services';
+import type { AppContext, Services } from '../context';
 import { formatSiteTime, siteDay, startOfSiteDay } from '../site-time';
 import { appendAudit } from './audit';
 import { enqueueMail } from './mail';
-import { canonicalJson, getPlan } from './plans';
+import { getPlan } from './plans';
 
-export type ChangeControlCtx = Services & { mail: { kick(): void } | null; publicUrl: string };
+export type ChangeControlCtx = Pick<AppContext, 'db' | 'clock' | 'mail' | 'linkUrl'>;
 
 /**
  * What every signature is bound to: the plan's full stored content and the request's own fields. Recomputed
@@ -47,7 +47,7 @@ export function recordHash(plan: PlanRow, req: Pick<ChangeRequestRow, 'planId' |
     plan: { id: plan.id, recipeId: plan.recipeId, lotId: plan.lotId, modelVersion: plan.modelVersion, inputs: plan.inputs, outputs: plan.outputs },
     request: { planId: req.planId, recipeId: req.recipeId, proposedBy: req.proposedBy, rationale: req.rationale, expectedEffect: req.expectedEffect, effectiveFrom: req.effectiveFrom },
   };
-  return crypto.createHash('sha256').update(canonicalJson(content)).digest('hex');
+  return sha256(canonicalJson(content));
 }
 
 const siteTimeZone = (db: Db, siteId: number) => findSite(db, siteId)?.timeZone ?? 'UTC';
@@ -169,7 +169,7 @@ function closeOthers(tx: Db, u: SessionUser, recipe: RecipeRow, byId: number, st
   }
 }
 
-const link = (ctx: ChangeControlCtx, id: number) => `${ctx.publicUrl.replace(/\/$/, '')}/sign-offs/${id}`;
+const link = (ctx: ChangeControlCtx, id: number) => `${ctx.linkUrl.replace(/\/$/, '')}/sign-offs/${id}`;
 
 export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: ChangeRequestInput): ChangeRequestDetail {
   const { db, clock } = ctx;

@@ -28,12 +28,12 @@ import {
 import { findSiteBatch } from '../repositories/batches';
 import { findUserByEmail, findUserWithSite, insertUser, updateUser } from '../repositories/users';
 import { findSiteVessel } from '../repositories/vessels';
-import type { Services } from '../routes/services';
+import type { AppContext, Services } from '../context';
 import { appendAudit } from './audit';
 import type { ControlLink } from './control-link';
 
 /** What the control-link routes need: the services and the running link (its PKI, and a nudge after changes). */
-export type LinkServices = Services & { link: ControlLink | null };
+export type LinkServices = Pick<AppContext, 'db' | 'clock' | 'controlLink'>;
 
 function running(link: ControlLink | null): ControlLink {
   if (!link) throw new HttpError(503, 'link_off', 'The control-system link is not running on this server');
@@ -73,7 +73,7 @@ function loadSource(db: Db, siteId: number, vesselId: number) {
 }
 
 /** Sets a vessel's source. A new address or security forgets the trusted server certificate. */
-export function saveSource({ db, clock, link }: LinkServices, u: SessionUser, vesselId: number, input: VesselSourceParsed): VesselSource {
+export function saveSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number, input: VesselSourceParsed): VesselSource {
   const vessel = loadVessel(db, u.siteId, vesselId);
   if (!isNodeId(input.nodeId)) throw new HttpError(400, 'invalid_input', 'Not an OPC UA node id', { nodeId: 'A node id such as ns=2;s=R101.TT01 or ns=3;i=1042' });
   const before = findVesselSource(db, u.siteId, vesselId);
@@ -116,7 +116,7 @@ export function saveSource({ db, clock, link }: LinkServices, u: SessionUser, ve
   return toSource(row, vessel.name);
 }
 
-export function removeSource({ db, clock, link }: LinkServices, u: SessionUser, vesselId: number): void {
+export function removeSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number): void {
   const { vessel, source } = loadSource(db, u.siteId, vesselId);
   writeTx(db, (tx) => {
     deleteVesselSource(tx, source.id);
@@ -137,7 +137,7 @@ async function fetchCertificate(maybe: ControlLink | null, source: VesselSourceR
 }
 
 /** The certificate the server presents now, for an admin to compare with what the plant's owner reads out. */
-export async function sourceCertificate({ db, link }: LinkServices, u: SessionUser, vesselId: number): Promise<CertificateInfo> {
+export async function sourceCertificate({ db, controlLink: link }: LinkServices, u: SessionUser, vesselId: number): Promise<CertificateInfo> {
   const { source } = loadSource(db, u.siteId, vesselId);
   return certificateInfo(await fetchCertificate(link, source));
 }
@@ -146,7 +146,7 @@ export async function sourceCertificate({ db, link }: LinkServices, u: SessionUs
  * Trusts the server's certificate, only if it is still the one the admin was shown (same thumbprint), and
  * records who did and when.
  */
-export async function trustSource({ db, clock, link }: LinkServices, u: SessionUser, vesselId: number, input: TrustRequest): Promise<VesselSource> {
+export async function trustSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number, input: TrustRequest): Promise<VesselSource> {
   const { vessel, source } = loadSource(db, u.siteId, vesselId);
   const der = await fetchCertificate(link, source);
   const info = certificateInfo(der);
@@ -170,7 +170,7 @@ export function linkSettingsOf(db: Db, siteId: number): LinkSettings {
   return row ? { samplingIntervalMs: row.samplingIntervalMs, deadbandC: row.deadbandC } : { ...DEFAULT_LINK_SETTINGS };
 }
 
-export function changeLinkSettings({ db, clock, link }: LinkServices, u: SessionUser, patch: LinkSettingsPatch): LinkSettings {
+export function changeLinkSettings({ db, clock, controlLink: link }: LinkServices, u: SessionUser, patch: LinkSettingsPatch): LinkSettings {
   const before = linkSettingsOf(db, u.siteId);
   const after = { ...before, ...patch };
   const now = clock.now();
@@ -209,7 +209,7 @@ export function controlSystemUser(db: Db, siteId: number): SessionUser {
 const gapsOf = (db: Db, siteId: number, batchId: number) => listBatchGaps(db, siteId, batchId).map((g) => ({ fromAt: g.fromAt, toAt: g.toAt, reason: g.reason }));
 
 /** Each source's link now; without a running link every source is 'off'. */
-export const linkStatus = ({ db, link }: LinkServices, u: SessionUser): LinkStatusList =>
+export const linkStatus = ({ db, controlLink: link }: LinkServices, u: SessionUser): LinkStatusList =>
   link
     ? { links: link.status(u.siteId), certificate: link.pki.certificate(), userCertificate: link.pki.userCertificate() }
     : {
@@ -218,7 +218,7 @@ export const linkStatus = ({ db, link }: LinkServices, u: SessionUser): LinkStat
         userCertificate: null,
       };
 
-export function batchLinkOf({ db, link }: LinkServices, u: SessionUser, batchId: number): BatchLink {
+export function batchLinkOf({ db, controlLink: link }: LinkServices, u: SessionUser, batchId: number): BatchLink {
   if (!findSiteBatch(db, u.siteId, batchId)) throw notFound('Batch');
   return { link: link?.batchLink(u.siteId, batchId) ?? null, gaps: gapsOf(db, u.siteId, batchId) };
 }

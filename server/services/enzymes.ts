@@ -3,16 +3,13 @@ import type { SessionUser } from '../../src/contracts/session';
 import { certHalfLifeAt, fitHalfLifeAt } from '../../src/stability';
 import { HttpError, notFound } from '../http-error';
 import { listSiteFits } from '../repositories/assays';
-import { findSiteEnzyme, findSiteEnzymeByName, insertEnzyme, listSiteEnzymes, querySiteEnzymes, updateEnzyme, type EnzymeRow } from '../repositories/enzymes';
+import { findSiteEnzyme, findSiteEnzymeByName, insertEnzyme, querySiteEnzymes, updateEnzyme, type EnzymeRow } from '../repositories/enzymes';
 import { listSiteLots } from '../repositories/lots';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { writeTx, type Db } from '../../db/client';
 import { appendAudit } from './audit';
 
 const toEnzyme = ({ siteId: _s, createdAt: _c, ...e }: EnzymeRow): Enzyme => e;
-
-/** Every enzyme of the caller's site, by name (for pickers). */
-export const listAllEnzymes = ({ db }: Services, u: SessionUser): Enzyme[] => listSiteEnzymes(db, u.siteId).map(toEnzyme);
 
 export function listEnzymes({ db }: Services, u: SessionUser, q: EnzymeQuery): EnzymeList {
   const { rows, total } = querySiteEnzymes(db, u.siteId, q);

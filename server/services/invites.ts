@@ -3,7 +3,8 @@ import { writeTx, type Db } from '../../db/client';
 import type { AcceptInvite, CreateInvite, Invite, InviteAccepted, InvitePreview, InviteList } from '../../src/contracts/invites';
 import { ROLE_LABELS } from '../../src/contracts/roles';
 import type { SessionUser } from '../../src/contracts/session';
-import type { Clock } from '../clock';
+import type { AppContext } from '../context';
+import { sha256 } from '../digest';
 import { HttpError, notFound } from '../http-error';
 import { findInviteByTokenHash, findOpenInviteByEmail, findSiteInvite, insertInvite, listOpenInvites, updateInvite, type InviteRow } from '../repositories/billing';
 import { findSite } from '../repositories/sites';
@@ -14,11 +15,11 @@ import { hashPassword } from './auth';
 import { assertFreeSeat, assertWritable } from './billing';
 import { enqueueMail } from './mail';
 
-export type InviteContext = { db: Db; clock: Clock; publicUrl: string; mail: { kick(): void } | null };
+export type InviteContext = Pick<AppContext, 'db' | 'clock' | 'linkUrl' | 'mail'>;
 
 export const INVITE_DAYS = 7;
 
-const hashToken = (token: string) => crypto.createHash('sha256').update(token).digest('hex');
+const hashToken = (token: string) => sha256(token);
 const toInvite = (r: InviteRow): Invite => ({ id: r.id, email: r.email, role: r.role, createdAt: r.createdAt, expiresAt: r.expiresAt });
 
 export const listInvites = ({ db, clock }: InviteContext, actor: SessionUser): InviteList => ({ invites: listOpenInvites(db, actor.siteId, clock.now().toISOString()).map(toInvite) });
@@ -36,7 +37,7 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
   if (!site) throw notFound('Site');
   const token = crypto.randomBytes(32).toString('base64url');
   const expiresAt = new Date(now.getTime() + INVITE_DAYS * 86_400_000);
-  const link = `${ctx.publicUrl}/accept-invite?token=${token}`;
+  const link = `${ctx.linkUrl}/accept-invite?token=${token}`;
   const invite = writeTx(ctx.db, (tx) => {
     // Checked inside the transaction: two invites racing for the last seat cannot both take it.
     assertFreeSeat(tx, actor.siteId, now);

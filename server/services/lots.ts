@@ -5,16 +5,15 @@ import type { CertificateFile, Lot, LotDecision, LotDetail, LotInput, LotQuery }
 import type { SessionUser } from '../../src/contracts/session';
 import { certificateDisagreement } from '../../src/planning';
 import { certConversion, evaluateLot, fitHalfLifeAt } from '../../src/stability';
-import type { FileStore } from '../file-store';
 import { HttpError, notFound } from '../http-error';
 import { listAssayPoints, listLotAssays } from '../repositories/assays';
 import { insertCertificate, latestCertificate } from '../repositories/certificates';
 import { findSiteEnzyme } from '../repositories/enzymes';
 import { findLotByCode, findSiteLot, insertLot, listSiteLots, setLotDecision, type LotRow } from '../repositories/lots';
-import type { Services } from '../routes/services';
+import type { AppContext, Services } from '../context';
 import { appendAudit } from './audit';
 
-export type LotServices = Services & { files: FileStore };
+export type LotServices = Pick<AppContext, 'db' | 'clock' | 'files'>;
 
 const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzymeName: string, activityUnit: string): Lot => ({ ...l, enzymeName, activityUnit });
 
@@ -28,21 +27,14 @@ function siteLot(db: Db, u: SessionUser, id: number) {
   return found;
 }
 
-/**
- * For plans and batches: the lot if it is accepted, else 409. Only lots that procurement accepted may be used.
- */
-export function requireUsableLot(db: Db, siteId: number, lotId: number): Lot {
-  const found = findSiteLot(db, siteId, lotId);
-  if (!found) throw notFound('Lot');
-  if (found.lot.status !== 'accepted') {
-    throw new HttpError(409, 'lot_not_accepted', `Lot ${found.lot.lotCode} is ${found.lot.status}; only accepted lots can be used`, { lotId: 'Choose an accepted lot' });
-  }
-  return toLot(found.lot, found.enzymeName, found.activityUnit);
+/** A lot recipes, plans and batches may use: the site's own, and accepted by procurement; else 400. */
+export function acceptedLot(db: Db, siteId: number, lotId: number): LotRow {
+  const lot = findSiteLot(db, siteId, lotId)?.lot;
+  if (!lot) throw new HttpError(400, 'invalid_input', 'No such lot at this site', { lotId: 'No such lot at this site' });
+  if (lot.status !== 'accepted')
+    throw new HttpError(400, 'lot_not_accepted', `Lot ${lot.lotCode} is ${lot.status}; only accepted lots can be planned with`, { lotId: 'Only accepted lots can be planned with' });
+  return lot;
 }
-
-/** The lots of a site that plans and batches may use. */
-export const listUsableLots = (db: Db, siteId: number): Lot[] =>
-  listSiteLots(db, siteId, { status: 'accepted' }).map(({ lot, enzymeName, activityUnit }) => toLot(lot, enzymeName, activityUnit));
 
 export function listLotAssayViews(db: Db, u: SessionUser, lotId: number, specTempC: number): Assay[] {
   return listLotAssays(db, u.siteId, lotId).map(({ assay, createdBy }) => ({

@@ -2,7 +2,9 @@ import bcrypt from 'bcryptjs';
 import crypto from 'node:crypto';
 import { jwtVerify, SignJWT } from 'jose';
 import { writeTx } from '../../db/client';
+import type { AppContext } from '../context';
 import type { ChangePassword, PasswordReset, PasswordResetPreview, SessionUser } from '../../src/contracts/session';
+import { sha256 } from '../digest';
 import { HttpError, notFound } from '../http-error';
 import { revokeOtherSessions, revokeUserSessions } from '../repositories/sessions';
 import { findSite } from '../repositories/sites';
@@ -34,9 +36,9 @@ export async function changeOwnPassword(ctx: AuthContext, u: SessionUser, sessio
  * so each link works once, and a newer link or a password change voids the older ones. Nothing is stored.
  */
 const resetKey = (secret: Uint8Array) => crypto.createHmac('sha256', secret).update('yieldpoint password reset').digest();
-const fingerprint = (user: UserRow) => crypto.createHash('sha256').update(`${user.id}|${user.passwordHash}`).digest('base64url').slice(0, 22);
+const fingerprint = (user: UserRow) => sha256(`${user.id}|${user.passwordHash}`, 'base64url').slice(0, 22);
 
-export type ResetContext = AuthContext & { publicUrl: string; mail: { kick(): void } | null };
+export type ResetContext = AuthContext & Pick<AppContext, 'linkUrl' | 'mail'>;
 
 /** An admin mails a reset link to one of the site's active people (through the outbox). */
 export async function sendPasswordReset(ctx: ResetContext, admin: SessionUser, userId: number): Promise<{ to: string; expiresAt: string }> {
@@ -62,7 +64,7 @@ export async function sendPasswordReset(ctx: ResetContext, admin: SessionUser, u
         `${admin.name} sent you a link to set a new password for Yieldpoint at ${site?.name ?? 'your site'}.`,
         '',
         `It works once, until ${expires.toISOString().slice(0, 16).replace('T', ' ')} UTC:`,
-        `${ctx.publicUrl}/reset-password?token=${token}`,
+        `${ctx.linkUrl}/reset-password?token=${token}`,
         '',
         'If you did not ask for this, ignore this message; your password stays as it is.',
       ].join('\n'),

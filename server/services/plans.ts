@@ -1,34 +1,22 @@
-import crypto from 'node:crypto';
 import { writeTx, type Db } from '../../db/client';
 import { MODEL_VERSION } from '../../src/model';
 import { computePlanOutputs, planContext } from '../../src/planning';
 import type { Plan, PlanInputs, PlanQuery } from '../../src/contracts/plans';
 import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
+import { canonicalJson, sha256 } from '../digest';
 import { assertFiniteResult } from '../finite';
 import { HttpError, notFound } from '../http-error';
 import { findSitePlan, insertPlan, listSitePlans, type PlanJoined } from '../repositories/plans';
 import { findSiteEnzyme, findSiteRecipe } from '../repositories/recipes';
 import { findSiteVessel } from '../repositories/vessels';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { olderEvidence, planningLot } from './evidence';
-import { acceptedLot } from './recipes';
-
-/** JSON with object keys sorted at every level, so the same content always gives the same text and hash. */
-export function canonicalJson(v: unknown): string {
-  if (Array.isArray(v)) return `[${v.map(canonicalJson).join(',')}]`;
-  if (v && typeof v === 'object')
-    return `{${Object.keys(v)
-      .sort()
-      .filter((k) => (v as Record<string, unknown>)[k] !== undefined)
-      .map((k) => `${JSON.stringify(k)}:${canonicalJson((v as Record<string, unknown>)[k])}`)
-      .join(',')}}`;
-  return JSON.stringify(v);
-}
+import { acceptedLot } from './lots';
 
 export const planContentHash = (p: Pick<Plan, 'inputs' | 'outputs' | 'modelVersion'>) =>
-  crypto.createHash('sha256').update(canonicalJson({ inputs: p.inputs, outputs: p.outputs, modelVersion: p.modelVersion })).digest('hex');
+  sha256(canonicalJson({ inputs: p.inputs, outputs: p.outputs, modelVersion: p.modelVersion }));
 
 const toPlan = (db: Db, { plan: p, recipeName, lotCode, vesselName, createdBy }: PlanJoined): Plan => ({
   id: p.id,

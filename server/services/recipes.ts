@@ -2,29 +2,20 @@ import { writeTx, type Db } from '../../db/client';
 import type { Recipe, RecipeDetail, RecipeInput, RecipePatch } from '../../src/contracts/recipes';
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError, notFound } from '../http-error';
-import { findSiteEnzyme, findSiteLot, findSiteRecipe, findSiteRecipeByName, insertRecipe, listAcceptedLots, listSiteRecipes, updateRecipe } from '../repositories/recipes';
+import { findSiteEnzyme, findSiteRecipe, findSiteRecipeByName, insertRecipe, listAcceptedLots, listSiteRecipes, updateRecipe } from '../repositories/recipes';
 import { listApprovedChanges } from '../repositories/change-requests';
 import { findSiteVessel, type VesselRow } from '../repositories/vessels';
 import { siteDay } from '../site-time';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { planningLot } from './evidence';
+import { acceptedLot } from './lots';
 
 type Joined = NonNullable<ReturnType<typeof findSiteRecipe>>;
-type LotRow = NonNullable<ReturnType<typeof findSiteLot>>;
 
 const toRecipe = ({ recipe: { siteId: _s, createdAt: _c, ...r }, enzymeName, lotCode, vesselName }: Joined): Recipe => ({ ...r, enzymeName, lotCode, vesselName });
 
 export const listRecipes = ({ db }: Services, u: SessionUser): Recipe[] => listSiteRecipes(db, u.siteId).map(toRecipe);
-
-/** A lot the site may plan with: its own, and accepted by procurement. */
-export function acceptedLot(db: Db, siteId: number, lotId: number): LotRow {
-  const lot = findSiteLot(db, siteId, lotId);
-  if (!lot) throw new HttpError(400, 'invalid_input', 'No such lot at this site', { lotId: 'No such lot at this site' });
-  if (lot.status !== 'accepted')
-    throw new HttpError(400, 'lot_not_accepted', `Lot ${lot.lotCode} is ${lot.status}; only accepted lots can be planned with`, { lotId: 'Only accepted lots can be planned with' });
-  return lot;
-}
 
 function siteVessel(db: Db, siteId: number, vesselId: number): VesselRow {
   const v = findSiteVessel(db, siteId, vesselId);

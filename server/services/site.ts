@@ -6,7 +6,7 @@ import { ROLES } from '../../src/contracts/roles';
 import { notFound } from '../http-error';
 import { countSiteRecords, findSite, updateSite } from '../repositories/sites';
 import { countUsersByRole } from '../repositories/users';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 
 export function siteSummary({ db }: Services, u: SessionUser): SiteSummary {
   const site = findSite(db, u.siteId);

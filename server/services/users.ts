@@ -1,21 +1,19 @@
-import { writeTx, type Db } from '../../db/client';
+import { writeTx } from '../../db/client';
 import type { SessionUser } from '../../src/contracts/session';
 import type { UpdateUser, User } from '../../src/contracts/users';
-import type { Clock } from '../clock';
+import type { Services } from '../context';
 import { HttpError, notFound } from '../http-error';
 import { revokeUserSessions } from '../repositories/sessions';
 import { findSiteUser, listSiteUsers, updateUser, type UserRow } from '../repositories/users';
 import { appendAudit } from './audit';
 import { assertFreeSeat } from './billing';
 
-type Ctx = { db: Db; clock: Clock };
-
 const toUser = (u: UserRow): User => ({ id: u.id, email: u.email, name: u.name, role: u.role, isActive: u.isActive, createdAt: u.createdAt });
 
-export const listUsers = ({ db }: Ctx, actor: SessionUser): User[] => listSiteUsers(db, actor.siteId).map(toUser);
+export const listUsers = ({ db }: Services, actor: SessionUser): User[] => listSiteUsers(db, actor.siteId).map(toUser);
 
 /** Changes a user's role, name or activity; a role change or deactivation ends their sessions at once. */
-export function changeUser({ db, clock }: Ctx, actor: SessionUser, id: number, patch: UpdateUser): User {
+export function changeUser({ db, clock }: Services, actor: SessionUser, id: number, patch: UpdateUser): User {
   const before = findSiteUser(db, actor.siteId, id);
   if (!before) throw notFound('User');
   if (before.id === actor.id && (patch.role !== undefined || patch.isActive === false)) {
@@ -42,7 +40,7 @@ export function changeUser({ db, clock }: Ctx, actor: SessionUser, id: number, p
   });
 }
 
-export function acknowledgeCautions({ db, clock }: Ctx, actor: SessionUser): void {
+export function acknowledgeCautions({ db, clock }: Services, actor: SessionUser): void {
   if (actor.cautionsAcknowledgedAt) return;
   const now = clock.now();
   writeTx(db, (tx) => {

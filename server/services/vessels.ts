@@ -3,7 +3,7 @@ import { VesselInput, type Vessel, type VesselPatch } from '../../src/contracts/
 import { writeTx, type Db } from '../../db/client';
 import { HttpError, notFound } from '../http-error';
 import { findSiteVessel, findSiteVesselByName, insertVessel, listSiteVessels, updateVessel, type VesselRow } from '../repositories/vessels';
-import type { Services } from '../routes/services';
+import type { Services } from '../context';
 import { appendAudit } from './audit';
 
 const toVessel = ({ siteId: _s, createdAt: _c, ...v }: VesselRow): Vessel => v;

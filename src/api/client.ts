@@ -1,3 +1,4 @@
+import { CLIENT_HEADER } from '../contracts/client-header';
 import type { ApiErrorBody } from '../contracts/errors';
 import { noteAnswer } from './cached-answers';
 
@@ -14,7 +15,7 @@ export class ApiError extends Error {
 }
 
 // The server refuses writes without this header: a cross-site form cannot set it.
-const CLIENT_HEADERS = { 'x-yieldpoint-client': 'web' };
+const CLIENT_HEADERS = { [CLIENT_HEADER]: 'web' };
 
 // `contentType` sends a string body as it is (a CSV upload); without it the body goes as JSON.
 type Options = { method?: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'; body?: unknown; contentType?: string; signal?: AbortSignal };

@@ -1,6 +1,6 @@
 import { api } from '../api/client';
 import type { InviteAccepted, InvitePreview, AcceptInvite } from '../contracts/invites';
-import { useMutation } from './use-mutation';
+import { useSubmit } from './use-submit';
 import useSWR from 'swr';
 import type { ApiError } from '../api/client';
 
@@ -10,4 +10,4 @@ export function useInvitePreview(token: string | null) {
   return { data, error: error as ApiError | undefined, retry: () => mutate() };
 }
 
-export const useAcceptInvite = () => useMutation((body: AcceptInvite) => api<InviteAccepted>('/invites/accept', { method: 'POST', body }), []);
+export const useAcceptInvite = () => useSubmit((body: AcceptInvite) => api<InviteAccepted>('/invites/accept', { method: 'POST', body }), []);

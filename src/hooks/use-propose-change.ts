@@ -1,7 +1,7 @@
 import { api } from '../api/client';
 import { changeRequestsKey } from '../api/keys';
 import type { ChangeRequestDetail, ChangeRequestInput } from '../contracts/change-requests';
-import { useMutation } from './use-mutation';
+import { useSubmit } from './use-submit';
 
 export const useProposeChange = () =>
-  useMutation((input: ChangeRequestInput) => api<ChangeRequestDetail>('/change-requests', { method: 'POST', body: input }), [changeRequestsKey(), changeRequestsKey('proposed')]);
+  useSubmit((input: ChangeRequestInput) => api<ChangeRequestDetail>('/change-requests', { method: 'POST', body: input }), [changeRequestsKey(), changeRequestsKey('proposed')]);

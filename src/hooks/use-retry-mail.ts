@@ -1,6 +1,6 @@
 import { api } from '../api/client';
 import { keys } from '../api/keys';
 import type { OutboxMessage } from '../contracts/mail';
-import { useMutation } from './use-mutation';
+import { useSubmit } from './use-submit';
 
-export const useRetryMail = () => useMutation((id: number) => api<OutboxMessage>(`/mail-outbox/${id}/retry`, { method: 'POST', body: {} }), [keys.mailOutbox]);
+export const useRetryMail = () => useSubmit((id: number) => api<OutboxMessage>(`/mail-outbox/${id}/retry`, { method: 'POST', body: {} }), [keys.mailOutbox]);

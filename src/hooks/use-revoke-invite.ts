@@ -1,5 +1,5 @@
 import { api } from '../api/client';
 import { keys } from '../api/keys';
-import { useMutation } from './use-mutation';
+import { useSubmit } from './use-submit';
 
-export const useRevokeInvite = () => useMutation((id: number) => api<void>(`/invites/${id}`, { method: 'DELETE' }), [keys.invites, keys.billing]);
+export const useRevokeInvite = () => useSubmit((id: number) => api<void>(`/invites/${id}`, { method: 'DELETE' }), [keys.invites, keys.billing]);

@@ -1,11 +1,11 @@
 import { api } from '../api/client';
 import { changeRequestKey, changeRequestsKey, keys } from '../api/keys';
 import type { ChangeRequestDetail, SignatureInput } from '../contracts/change-requests';
-import { useMutation } from './use-mutation';
+import { useSubmit } from './use-submit';
 
 /** Signs a change request; an approval also changes the recipe, so its list is read again. */
 export const useSignChange = (id: number) =>
-  useMutation(
+  useSubmit(
     (input: SignatureInput) => api<ChangeRequestDetail>(`/change-requests/${id}/signatures`, { method: 'POST', body: input }),
     [changeRequestKey(id), changeRequestsKey(), changeRequestsKey('proposed'), keys.recipes],
   );

@@ -6,7 +6,7 @@ import { ApiError } from '../api/client';
  * One mutation's busy and error state; after success, every cached read whose key starts with one of
  * `revalidate` is fetched again, so lists and details show the change.
  */
-export function useSubmit<A extends unknown[], R>(run: (...args: A) => Promise<R>, revalidate: string[]) {
+export function useSubmit<A extends unknown[], R>(run: (...args: A) => Promise<R>, revalidate: readonly string[]) {
   const { mutate } = useSWRConfig();
   const [error, setError] = useState<ApiError | null>(null);
   const [isBusy, setBusy] = useState(false);

@@ -3,7 +3,7 @@ import { KELVIN_OFFSET } from './constants';
 import { ModelInputError } from './errors';
 import { compileRates, lnK2At, lnKAt, lnVAt, type Rates } from './kinetics';
 import { lambertWm1 } from './lambert-w';
-import { advanceConstant, productFromWork, simulate, startState } from './batch';
+import { advanceConstant, simulate, startState } from './batch';
 import type { EnzymeParams, Reading, Stage, Substrate } from './types';
 
 // Local bindings of hot imports: CommonJS transforms (tsx, esbuild) route every call to an imported
@@ -458,9 +458,4 @@ export function workOfStages(enzyme: EnzymeParams, stages: readonly Stage[]): nu
   const st = startState(r);
   for (const s of stages) advance(r, 1 / (s.c + KELVIN_OFFSET), s.hours, st);
   return st.x;
-}
-
-/** Product (g/L) from work (g/L) for a substrate: re-exported for callers that hold X. */
-export function productForWork(substrate: Substrate, workGPerL: number): number {
-  return productFromWork(workGPerL, substrate);
 }

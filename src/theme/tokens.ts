@@ -23,6 +23,9 @@ export const type = {
   figure: { fontSize: 34, lineHeight: 40 },
 } as const;
 
+/** Text drawn inside charts (SVG): tick labels, and axis titles. */
+export const chartText = { tick: 11, title: type.caption.fontSize } as const;
+
 /** Smallest touch target (WCAG 2.5.5 AAA size, also the common mobile guideline). */
 export const touchTarget = 44;
 

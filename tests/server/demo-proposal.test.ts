@@ -11,7 +11,7 @@ describe('demo proposal', () => {
   beforeAll(async () => {
     t = await startTestApp();
     const site = t.db.select().from(sites).where(eq(sites.name, DEMO_SITE_NAME)).get()!;
-    proposeDemoChange({ db: t.db, clock: t.clock, mail: null, publicUrl: 'http://localhost:8080' }, site.id);
+    proposeDemoChange({ db: t.db, clock: t.clock, mail: null, linkUrl: 'http://localhost:8080' }, site.id);
   });
   afterAll(() => t.close());
 

@@ -20,7 +20,7 @@ const ACTIONS = [
 ] as const;
 
 function VerifyCard() {
-  const { verify, result, error, isBusy } = useVerifyAudit();
+  const { submit: verify, result, error, isBusy } = useVerifyAudit();
   return (
     <Card>
       <Text weight="semibold">Chain check</Text>

@@ -104,7 +104,7 @@ export function BuySeatsCard({ b }: { b: BillingSummary }) {
       <Button
         label={valid ? `Pay for ${n} ${n === 1 ? 'seat' : 'seats'}` : 'Pay for seats'}
         testID="billing-buy-submit"
-        isBusy={buy.isSubmitting}
+        isBusy={buy.isBusy}
         onPress={async () => {
           const out = await buy.submit({ addSeats: n });
           if (out) openExternal(out.url);
@@ -137,7 +137,7 @@ export function ReduceSeatsCard({ b }: { b: BillingSummary }) {
         variant="secondary"
         testID="billing-reduce-submit"
         disabled={!b.canChangeSeats || !Number.isInteger(n) || n >= b.seats}
-        isBusy={change.isSubmitting}
+        isBusy={change.isBusy}
         onPress={() => void change.submit({ seats: n })}
       />
     </Card>

@@ -15,7 +15,7 @@ export function ProposeForm({ plan, timeZone }: { plan: Plan; timeZone: string }
     `${fmt(plan.outputs.predictedProductGPerL)} g/L product instead of ${fmt(plan.outputs.current.productGPerL)} g/L (${fmt(plan.outputs.gainOverCurrent * 100)} %)`,
   );
   const [effectiveFrom, setEffectiveFrom] = useState(siteToday(timeZone));
-  const { submit, error, isSubmitting } = useProposeChange();
+  const { submit, error, isBusy } = useProposeChange();
   async function onSubmit() {
     const created = await submit({ planId: plan.id, rationale, expectedEffect, effectiveFrom });
     if (created) router.replace(`/sign-offs/${created.id}`);
@@ -41,7 +41,7 @@ export function ProposeForm({ plan, timeZone }: { plan: Plan; timeZone: string }
           {error.message}
         </Text>
       ) : null}
-      <Button label="Send for sign-off" onPress={onSubmit} isBusy={isSubmitting} testID="propose-submit" />
+      <Button label="Send for sign-off" onPress={onSubmit} isBusy={isBusy} testID="propose-submit" />
     </Card>
   );
 }

@@ -11,7 +11,7 @@ export function SignForm({ id, signerName, recordHash }: { id: number; signerNam
   const [meaning, setMeaning] = useState<SignatureMeaning>('reviewed');
   const [comment, setComment] = useState('');
   const [password, setPassword] = useState('');
-  const { submit, error, isSubmitting } = useSignChange(id);
+  const { submit, error, isBusy } = useSignChange(id);
   async function onSign() {
     const done = await submit({ meaning, comment, password });
     setPassword('');
@@ -50,7 +50,7 @@ export function SignForm({ id, signerName, recordHash }: { id: number; signerNam
         label={`Sign as ${MEANING_LABELS[meaning].toLowerCase()}`}
         variant={meaning === 'rejected' ? 'danger' : 'primary'}
         onPress={onSign}
-        isBusy={isSubmitting}
+        isBusy={isBusy}
         disabled={!password}
         testID="sign-submit"
       />

@@ -16,9 +16,7 @@ export function BatchTemperatureChart({ input, label }: { input: BatchTemperatur
         render={(w, h) => {
           const g = batchTemperatureGeometry(input, w, h);
           return {
-            box: g.box,
-            xTicks: g.xTicks,
-            yTicks: g.yTicks,
+            ...g,
             marks: (
               <G>
                 {g.gapSpans.map((s, i) => (

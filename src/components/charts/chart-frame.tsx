@@ -1,7 +1,7 @@
 import { useState, type ReactNode } from 'react';
 import { StyleSheet, View } from 'react-native';
 import Svg, { G, Line, Text as SvgText } from 'react-native-svg';
-import { font, space, useColors } from '../../theme';
+import { chartText, font, radius, space, useColors } from '../../theme';
 import { Text } from '../ui/text';
 import type { Box, Tick } from './axes';
 
@@ -29,21 +29,21 @@ export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
             {drawn.yTicks.map((t) => (
               <G key={`y${t.value}`}>
                 <Line x1={drawn.box.left} x2={drawn.box.right} y1={t.pos} y2={t.pos} stroke={c.chartGrid} strokeWidth={1} />
-                <SvgText x={drawn.box.left - 6} y={t.pos + 4} fontSize={11} fontFamily={font.regular} fill={c.textMuted} textAnchor="end">
+                <SvgText x={drawn.box.left - 6} y={t.pos + 4} fontSize={chartText.tick} fontFamily={font.regular} fill={c.textMuted} textAnchor="end">
                   {t.label}
                 </SvgText>
               </G>
             ))}
             {drawn.xTicks.map((t) => (
-              <SvgText key={`x${t.value}`} x={t.pos} y={drawn.box.bottom + 16} fontSize={11} fontFamily={font.regular} fill={c.textMuted} textAnchor="middle">
+              <SvgText key={`x${t.value}`} x={t.pos} y={drawn.box.bottom + 16} fontSize={chartText.tick} fontFamily={font.regular} fill={c.textMuted} textAnchor="middle">
                 {t.label}
               </SvgText>
             ))}
             <Line x1={drawn.box.left} x2={drawn.box.right} y1={drawn.box.bottom} y2={drawn.box.bottom} stroke={c.border} strokeWidth={1} />
-            <SvgText x={(drawn.box.left + drawn.box.right) / 2} y={HEIGHT - 4} fontSize={12} fontFamily={font.semibold} fill={c.textMuted} textAnchor="middle">
+            <SvgText x={(drawn.box.left + drawn.box.right) / 2} y={HEIGHT - 4} fontSize={chartText.title} fontFamily={font.semibold} fill={c.textMuted} textAnchor="middle">
               {xTitle}
             </SvgText>
-            <SvgText x={4} y={14} fontSize={12} fontFamily={font.semibold} fill={c.textMuted}>
+            <SvgText x={4} y={14} fontSize={chartText.title} fontFamily={font.semibold} fill={c.textMuted}>
               {yTitle}
             </SvgText>
           </G>
@@ -60,14 +60,34 @@ export function useSeriesColors(): string[] {
   return [c.chartLine, c.chartLineAlt, c.success, c.warning, c.primary, c.danger];
 }
 
-/** A key of series colours under a chart, as text so it reads without the picture. */
-export function Legend({ items, testID }: { items: { label: string; color: string }[]; testID?: string }) {
+/**
+ * One legend item. `point` (default): a round swatch, for points or a series by colour; `line`: a short stroke with
+ * the line's dash pattern; `band`: a flat swatch for a shaded range; `marker`: a dot and the label in its colour.
+ */
+export type LegendItem = { label: string; color: string; mark?: 'point' | 'line' | 'band' | 'marker'; dashArray?: string; roundCap?: boolean };
+
+/** The key under every chart, as text so it reads without the picture. */
+export function Legend({ items, testID }: { items: LegendItem[]; testID?: string }) {
   return (
     <View style={styles.legend} testID={testID}>
-      {items.map((it) => (
-        <View key={it.label} style={styles.legendItem}>
-          <View style={[styles.swatch, { backgroundColor: it.color }]} />
-          <Text variant="small">{it.label}</Text>
+      {items.map((it, i) => (
+        <View key={`${i}-${it.label}`} style={styles.legendItem}>
+          {it.mark === 'line' ? (
+            <Svg width={24} height={6} aria-hidden>
+              <Line x1={1} x2={23} y1={3} y2={3} stroke={it.color} strokeWidth={2.5} strokeLinecap={it.roundCap ? 'round' : undefined} strokeDasharray={it.dashArray} />
+            </Svg>
+          ) : (
+            <View style={[it.mark === 'band' ? styles.band : styles.point, { backgroundColor: it.color }]} />
+          )}
+          {it.mark === 'marker' ? (
+            <Text variant="caption" weight="semibold" style={{ color: it.color }}>
+              {it.label}
+            </Text>
+          ) : (
+            <Text variant="caption" tone="muted">
+              {it.label}
+            </Text>
+          )}
         </View>
       ))}
     </View>
@@ -77,5 +97,6 @@ export function Legend({ items, testID }: { items: { label: string; color: strin
 const styles = StyleSheet.create({
   legend: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
   legendItem: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
-  swatch: { width: space.md, height: space.md, borderRadius: space.md / 2 },
+  point: { width: space.sm + space.xxs, height: space.sm + space.xxs, borderRadius: radius.pill },
+  band: { width: space.md, height: space.xs, borderRadius: space.xxs },
 });

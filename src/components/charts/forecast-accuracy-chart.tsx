@@ -26,9 +26,7 @@ export function ForecastAccuracyChart({ points, label, groups = ['Closed batch']
         render={(w, h) => {
           const g = forecastAccuracyGeometry(points, w, h);
           return {
-            box: g.box,
-            xTicks: g.xTicks,
-            yTicks: g.yTicks,
+            ...g,
             marks: (
               <G>
                 <Line {...g.diagonal} stroke={c.textMuted} strokeWidth={1} strokeDasharray="4 4" />

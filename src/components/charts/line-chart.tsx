@@ -1,8 +1,9 @@
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import Svg, { Circle, G, Line, Path, Text as SvgText } from 'react-native-svg';
-import { font, radius, space, useColors, type Palette } from '../../theme';
+import { chartText, font, space, useColors, type Palette } from '../../theme';
 import { Text } from '../ui/text';
+import { Legend, type LegendItem } from './chart-frame';
 import { lineChartGeometry, type BandSeries, type LineSeries, type MarkerSpec } from './line-chart-geometry';
 
 // `limit`: a bound that is never planned past (a vessel's maximum), in the danger colour.
@@ -28,8 +29,6 @@ type Props = {
   testID: string;
 };
 
-const AXIS_FONT = 11;
-
 /** A thin SVG renderer of lineChartGeometry, with a legend and its sentence equivalent. */
 export function LineChart({ title, summary, series, bands = [], markers = [], xLabel, yLabel, yFromZero, formatX, formatY, height = 220, testID }: Props) {
   const c = useColors();
@@ -45,20 +44,20 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
             {g.yTicks.map((t) => (
               <G key={`y${t.value}`}>
                 <Line x1={g.plot.left} x2={g.plot.left + g.plot.width} y1={t.pos} y2={t.pos} stroke={c.chartGrid} strokeWidth={1} />
-                <SvgText x={g.plot.left - 6} y={t.pos + 4} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
+                <SvgText x={g.plot.left - 6} y={t.pos + 4} fontSize={chartText.tick} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
                   {t.label}
                 </SvgText>
               </G>
             ))}
             {g.xTicks.map((t) => (
-              <SvgText key={`x${t.value}`} x={t.pos} y={bottom + 16} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="middle" fontFamily={font.regular}>
+              <SvgText key={`x${t.value}`} x={t.pos} y={bottom + 16} fontSize={chartText.tick} fill={c.textMuted} textAnchor="middle" fontFamily={font.regular}>
                 {t.label}
               </SvgText>
             ))}
-            <SvgText x={g.plot.left + g.plot.width} y={bottom + 28} fontSize={AXIS_FONT} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
+            <SvgText x={g.plot.left + g.plot.width} y={bottom + 28} fontSize={chartText.tick} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
               {xLabel}
             </SvgText>
-            <SvgText x={4} y={AXIS_FONT + 2} fontSize={AXIS_FONT} fill={c.textMuted} fontFamily={font.regular}>
+            <SvgText x={4} y={chartText.tick + 2} fontSize={chartText.tick} fill={c.textMuted} fontFamily={font.regular}>
               {yLabel}
             </SvgText>
             {g.bands.map((b, i) => (
@@ -79,34 +78,13 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
           </Svg>
         ) : null}
       </View>
-      <View style={styles.legend}>
-        {series.map((s) => (
-          <View key={s.id} style={styles.legendItem}>
-            <Svg width={24} height={6} aria-hidden>
-              <Line x1={1} x2={23} y1={3} y2={3} stroke={toneColor(c, s.tone)} strokeWidth={2.5} strokeLinecap={s.dotted ? 'round' : undefined} strokeDasharray={dashOf(s)} />
-            </Svg>
-            <Text variant="caption" tone="muted">
-              {s.label}
-            </Text>
-          </View>
-        ))}
-        {bands.map((s) => (
-          <View key={s.id} style={styles.legendItem}>
-            <View style={[styles.swatch, { backgroundColor: toneColor(c, s.tone) }]} />
-            <Text variant="caption" tone="muted">
-              {s.label}
-            </Text>
-          </View>
-        ))}
-        {markers.map((m) => (
-          <View key={m.id} style={styles.legendItem}>
-            <View style={[styles.dot, { backgroundColor: toneColor(c, m.tone) }]} />
-            <Text variant="caption" weight="semibold" style={{ color: toneColor(c, m.tone) }}>
-              {m.label}
-            </Text>
-          </View>
-        ))}
-      </View>
+      <Legend
+        items={[
+          ...series.map((s): LegendItem => ({ label: s.label, color: toneColor(c, s.tone), mark: 'line', dashArray: dashOf(s), roundCap: s.dotted })),
+          ...bands.map((s): LegendItem => ({ label: s.label, color: toneColor(c, s.tone), mark: 'band' })),
+          ...markers.map((m): LegendItem => ({ label: m.label, color: toneColor(c, m.tone), mark: 'marker' })),
+        ]}
+      />
       <Text variant="small" tone="muted" testID={`${testID}-summary`}>
         {summary}
       </Text>
@@ -116,8 +94,4 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
 
 const styles = StyleSheet.create({
   wrap: { gap: space.xs },
-  legend: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
-  legendItem: { flexDirection: 'row', alignItems: 'center', gap: space.xs },
-  swatch: { width: space.md, height: space.xs, borderRadius: space.xxs },
-  dot: { width: space.sm + space.xxs, height: space.sm + space.xxs, borderRadius: radius.pill },
 });

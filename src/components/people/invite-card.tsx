@@ -43,7 +43,7 @@ export function InviteCard() {
       <Button
         label="Send invite"
         testID="invite-submit"
-        isBusy={invite.isSubmitting}
+        isBusy={invite.isBusy}
         onPress={async () => {
           setSentTo(null);
           const out = await invite.submit({ email, role });

@@ -53,12 +53,12 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
             </Text>
           ) : null}
           <View style={styles.actions}>
-            <Button label="Save role" compact disabled={role === user.role} isBusy={update.isSubmitting} onPress={() => void update.submit({ id: user.id, patch: { role } })} />
+            <Button label="Save role" compact disabled={role === user.role} isBusy={update.isBusy} onPress={() => void update.submit({ id: user.id, patch: { role } })} />
             <Button
               label={user.isActive ? 'Deactivate' : 'Reactivate'}
               variant={user.isActive ? 'danger' : 'secondary'}
               compact
-              isBusy={update.isSubmitting}
+              isBusy={update.isBusy}
               onPress={() => void update.submit({ id: user.id, patch: { isActive: !user.isActive } })}
             />
             {user.isActive ? (
@@ -67,7 +67,7 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
                 variant="secondary"
                 compact
                 testID={`person-${user.id}-reset`}
-                isBusy={reset.isSubmitting}
+                isBusy={reset.isBusy}
                 onPress={async () => {
                   const sent = await reset.submit(user.id);
                   if (sent) setResetSentTo(sent.to);
@@ -104,7 +104,7 @@ export function PendingInvites({ invites }: { invites: Invite[] }) {
               {ROLE_LABELS[i.role]} · invited {isoDate(i.createdAt)} · link valid until {isoDate(i.expiresAt)}
             </Text>
           </View>
-          <Button label="Withdraw" variant="ghost" compact accessibilityLabel={`Withdraw the invite for ${i.email}`} isBusy={revoke.isSubmitting} onPress={() => void revoke.submit(i.id)} />
+          <Button label="Withdraw" variant="ghost" compact accessibilityLabel={`Withdraw the invite for ${i.email}`} isBusy={revoke.isBusy} onPress={() => void revoke.submit(i.id)} />
         </View>
       ))}
     </View>

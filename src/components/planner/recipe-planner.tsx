@@ -129,7 +129,7 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
   const { isWide } = useBreakpoint();
   const { session } = useSession();
   const uncertainty = useUncertainty();
-  const { create, error: saveError, isBusy } = useCreatePlan();
+  const { submit: create, error: saveError, isBusy } = useCreatePlan();
   const [scenarios, setScenarios] = useState<Scenario[]>([]);
 
   if (!detail.lots.length || !ctx || !computed)

@@ -22,7 +22,7 @@ export function VesselForm({ vessel, onDone }: { vessel: Vessel | null; onDone: 
   const [text, setText] = useState<Record<keyof VesselInput, string>>(() =>
     vessel ? (Object.fromEntries(FIELDS.map((f) => [f.key, String(vessel[f.key])])) as Record<keyof VesselInput, string>) : EMPTY,
   );
-  const { save, error, isBusy } = useSaveVessel();
+  const { submit: save, error, isBusy } = useSaveVessel();
   const submit = async () => {
     const body = Object.fromEntries(FIELDS.map((f) => [f.key, f.key === 'name' ? text.name : Number(text[f.key])])) as VesselInput;
     if (await save(vessel?.id ?? null, body)) onDone();
