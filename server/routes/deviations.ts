@@ -2,7 +2,7 @@ import { Router } from 'express';
 import { z } from 'zod';
 import { Deviation, DEVIATION_ACKNOWLEDGERS, DEVIATION_CLOSERS, DeviationAcknowledge, DeviationClose } from '../../src/contracts/batches';
 import { allow, currentUser } from '../middleware/auth';
-import { acknowledgeDeviation, closeDeviation } from '../services/batches';
+import { acknowledgeDeviation, closeDeviation } from '../services/deviations';
 import type { Services } from './services';
 
 const IdParam = z.object({ id: z.coerce.number().int().positive() });
