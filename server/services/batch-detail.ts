@@ -1,13 +1,13 @@
 // The batch record as the batch page shows it: batch, readings (a sample of a long record), deviations, status,
 // settings and the plan's signatures.
-import { sampleIndices } from '../../src/batches';
+import { CORRECTABLE, sampleIndices } from '../../src/batches';
 import { type BatchDetail } from '../../src/contracts/batches';
 import type { SessionUser } from '../../src/contracts/session';
 import { batchRecordOf, statusNow } from './batch-record';
 import { batchesLoggedBy, listDeviations, listReadings, planSignatures, readingsByIds } from '../repositories/batches';
 import type { Services } from '../routes/services';
 import { batchSettingsOf, loadBatch, toBatch } from './batches';
-import { CORRECTABLE, toDeviation } from './deviations';
+import { toDeviation } from './deviations';
 import { toReading } from './readings';
 
 // A phone needs neither megabytes of historian data nor 50,000 table rows: past this many it gets a sample.

@@ -1,8 +1,8 @@
 // Deviations of a batch: raised with their audit events (and a corrective setpoint where the temperature can
 // correct the cause), acknowledged by the operator, closed by the supervisor.
 import { writeTx, type Db } from '../../db/client';
-import { forecastDeviation, type DeviationDraft } from '../../src/batches';
-import { type Deviation, type DeviationAcknowledge, type DeviationClose } from '../../src/contracts/batches';
+import { CORRECTABLE, forecastDeviation, type DeviationDraft } from '../../src/batches';
+import { type BatchStatus, type Deviation, type DeviationAcknowledge, type DeviationClose } from '../../src/contracts/batches';
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError, notFound } from '../http-error';
 import { statusNow } from './batch-record';
@@ -19,8 +19,6 @@ import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
 import { batchSettingsOf, runningBatch } from './batches';
 
-// Kinds whose cause an operator can correct with the temperature: these get a corrective setpoint.
-export const CORRECTABLE = new Set(['band', 'vessel_max', 'forecast_low']);
 
 export const toDeviation = ({ deviation: d, acknowledgedBy, closedBy }: DeviationJoined): Deviation => ({
   id: d.id,
@@ -54,15 +52,16 @@ export function raiseDeviations(
   b: BatchJoined['batch'],
   raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
   now: Date,
-  opts: { checkForecast?: boolean; withCorrective?: boolean } = {},
+  opts: { checkForecast?: boolean; withCorrective?: boolean; status?: () => BatchStatus | null } = {},
 ): DeviationRow[] {
   const { checkForecast = true, withCorrective = true } = opts;
   const settings = batchSettingsOf(t, u.siteId);
   // The status integrates every reading of the batch; it is needed only for a corrective setpoint or a P10 check.
   // Without a corrective (the earlier parts of an import) deviations are raised without a suggested setpoint.
+  // `opts.status` may give it computed elsewhere (an import's, on the worker) or null for "compute it here".
   const checksForecast = checkForecast && b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
   const status =
-    checksForecast || (withCorrective && raised.some((r) => CORRECTABLE.has(r.draft.kind))) ? statusNow(t, b, now.toISOString(), true) : null;
+    checksForecast || (withCorrective && raised.some((r) => CORRECTABLE.has(r.draft.kind))) ? (opts.status?.() ?? statusNow(t, b, now.toISOString(), true)) : null;
   const low = status && checksForecast ? forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH) : null;
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
   return all.map(({ readingId, draft, by = u }) => {

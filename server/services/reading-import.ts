@@ -1,26 +1,29 @@
-// Historian imports: a file read and checked on the import worker, then stored in parts with progress.
-import { writeTx, type Db } from '../../db/client';
-import { batchHours, isTimeZone, deviationRun } from '../../src/batches';
-import { READING_MAX_C, READING_MIN_C, type ImportProblem, type ImportProgress, type ImportQuery, type ImportResult } from '../../src/contracts/batches';
+// Historian imports: the file read, checked and run through the deviation rules on the import worker
+// (server/services/historian-plan.ts); this thread only stores the result, in short parts with progress.
+import { writeTx } from '../../db/client';
+import { isTimeZone, statusAtHour } from '../../src/batches';
+import type { ImportProgress, ImportQuery, ImportResult } from '../../src/contracts/batches';
 import type { SessionUser } from '../../src/contracts/session';
+import type { Reading as Point } from '../../src/model';
 import { HttpError } from '../http-error';
 import { runImport } from '../imports';
-import { batchRecordOf } from './batch-record';
-import { existingKeys, insertReadings } from '../repositories/batches';
+import { nextTurn } from '../next-turn';
+import { insertReadings, newestReadingId, readingKeysAfter } from '../repositories/batches';
 import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
-import { nextTurn } from '../next-turn';
+import { batchRecordOf, keepAdded } from './batch-record';
 import { batchSettingsOf, loadBatch, runningBatch } from './batches';
 import { raiseDeviations } from './deviations';
-import { checkReadingTime, rulesOf } from './readings';
+import type { ImportBasis } from './historian-plan';
 
-const pointsOf = (db: Db, b: { id: number; startedAt: string }) => batchRecordOf(db, b).points;
-
-const MAX_PROBLEMS = 200;
-// Rows checked between turns of the event loop: a few milliseconds of work, so other requests get in between.
-const ROWS_PER_TURN = 10_000;
-// About 40 ms of inserts on this machine's kind (7.5 us a row measured under load): the longest any other request waits.
-const ROWS_PER_PART = 5_000;
+// A part is one transaction, its commit's fsync included, in one turn of the event loop: about 8 ms of inserts
+// at 7.5 us a row (measured under load), so no other request waits long behind it. A deviation (its row and its
+// audit event with the chain's HMAC) costs about as much as this many readings.
+const ROWS_PER_PART = 1_000;
+const ROWS_PER_DEVIATION = 10;
+// Stored keys read per turn for the worker's "already stored" check.
+const KEYS_PER_TURN = 5_000;
+const HISTORIAN_KEY = 'historian:';
 
 /** Imports under way, by batch id: bytes read of the upload's total, for the progress answer. */
 const importsRunning = new Map<number, Omit<ImportProgress, 'isRunning' | 'phase'> & { phase: 'reading' | 'storing' }>();
@@ -32,84 +35,95 @@ export function importProgress(s: Services, u: SessionUser, id: number): ImportP
   return p ? { isRunning: true, ...p } : { isRunning: false, bytesRead: 0, bytesTotal: 0, phase: null, rowsStored: 0, rowsToStore: 0 };
 }
 
+/** The batch's historian keys, a page per turn, as newline-joined pages. */
+async function historianKeys(s: Services, batchId: number): Promise<string[]> {
+  const pages: string[] = [];
+  for (let after = HISTORIAN_KEY; ; ) {
+    const page = readingKeysAfter(s.db, batchId, after, KEYS_PER_TURN).filter((k) => k.startsWith(HISTORIAN_KEY));
+    if (page.length) pages.push(page.join('\n'));
+    if (page.length < KEYS_PER_TURN) return pages;
+    after = page.at(-1)!;
+    await nextTurn();
+  }
+}
+
+/** Where each part ends (exclusive): at ROWS_PER_PART, deviations counted at ROWS_PER_DEVIATION rows each. */
+function partEnds(rows: number, draftIndices: readonly number[]): number[] {
+  const ends: number[] = [];
+  let d = 0;
+  for (let from = 0; from < rows || ends.length === 0; ) {
+    let cost = 0;
+    let to = from;
+    while (to < rows && cost < ROWS_PER_PART) {
+      cost++;
+      while (d < draftIndices.length && draftIndices[d] === to) {
+        cost += ROWS_PER_DEVIATION;
+        d++;
+      }
+      to++;
+    }
+    ends.push(to);
+    from = to;
+  }
+  return ends;
+}
+
 /**
- * A historian export: read and checked on the import worker, then stored in one transaction; rows that cannot
- * be stored are reported by line and the rest go in. One import per batch at a time.
+ * A historian export: read, checked and run through the deviation rules on the import worker against the batch
+ * as it stood when the import began, then stored in parts; rows that cannot be stored are reported by line and
+ * the rest go in. One import per batch at a time.
  */
 export async function importReadings(s: Services, u: SessionUser, id: number, bytes: Uint8Array, q: ImportQuery): Promise<ImportResult> {
   const { db, clock } = s;
-  runningBatch(db, u.siteId, id);
+  const b0 = runningBatch(db, u.siteId, id).batch;
   const timeZone = q.timeZone ?? u.siteTimeZone;
   if (!isTimeZone(timeZone)) throw new HttpError(400, 'invalid_input', `Unknown time zone ${timeZone}`, { timeZone: 'Give an IANA zone such as Europe/Berlin' });
   if (importsRunning.has(id)) throw new HttpError(409, 'import_running', 'Another import into this batch is running; try again when it has finished');
   const progress = { bytesRead: 0, bytesTotal: bytes.length, phase: 'reading' as 'reading' | 'storing', rowsStored: 0, rowsToStore: 0 };
   importsRunning.set(id, progress);
   try {
-    const parsed = await runImport({ kind: 'historian', bytes, timeZone, dateOrder: q.dateOrder }, (n) => (progress.bytesRead = n));
+    const record = batchRecordOf(db, b0);
+    const basis: ImportBasis = {
+      startedAt: b0.startedAt,
+      program: b0.program,
+      settings: batchSettingsOf(db, u.siteId),
+      nowMs: clock.now().getTime(),
+      storedKeys: await historianKeys(s, b0.id),
+      storedH: Float64Array.from(record.points, (p) => p.h),
+      storedC: Float64Array.from(record.points, (p) => p.c),
+    };
+    const plan = await runImport({ kind: 'historian', bytes, timeZone, dateOrder: q.dateOrder, basis }, (n) => (progress.bytesRead = n));
     progress.bytesRead = bytes.length;
     progress.phase = 'storing';
-    if (parsed.total === 0) throw new HttpError(400, 'invalid_input', 'The file has no readings', { file: 'Expected lines of time and °C' });
+    if (plan.total === 0) throw new HttpError(400, 'invalid_input', 'The file has no readings', { file: 'Expected lines of time and °C' });
     // Read again: the batch may have closed while the file was being read.
     const b = runningBatch(db, u.siteId, id).batch;
     const now = clock.now();
-    const problems: ImportProblem[] = parsed.problems.map((p) => ({ line: p.line, kind: 'invalid', message: p.message }));
-    const keys = existingKeys(db, b.id);
-    const seen = new Map<number, number>();
-    const accepted: { line: number; at: string; ms: number; c: number; key: string }[] = [];
-    let outOfOrder = 0;
-    let lastMs = -Infinity;
-    const { lines, atMs, c: temps } = parsed;
-    for (let i = 0; i < lines.length; i++) {
-      if (i % ROWS_PER_TURN === ROWS_PER_TURN - 1) await nextTurn();
-      const line = lines[i]!;
-      const ms = atMs[i]!;
-      const c = temps[i]!;
-      const at = new Date(ms).toISOString();
-      const key = `historian:${at}`;
-      const reject = (kind: ImportProblem['kind'], message: string) => problems.push({ line, kind, message });
-      const badTime = checkReadingTime(b.startedAt, ms, now);
-      if (c < READING_MIN_C || c > READING_MAX_C) reject('invalid', `${c} °C is outside ${READING_MIN_C} to ${READING_MAX_C} °C`);
-      else if (badTime) reject('invalid', `${at}: ${badTime}`);
-      else if (seen.has(ms)) reject('duplicate', `Same time as line ${seen.get(ms)}`);
-      else if (keys.has(key)) reject('already_stored', `A reading at ${at} (UTC, to the millisecond) is already stored`);
-      else {
-        if (ms < lastMs) {
-          outOfOrder++;
-          reject('out_of_order', `Earlier than the line before it; stored in time order`);
-        }
-        lastMs = Math.max(lastMs, ms);
-        seen.set(ms, line);
-        accepted.push({ line, at, ms, c, key });
-      }
-    }
-    await nextTurn();
-    // Rows are checked in file order: sorted already unless the file went back in time.
-    if (problems.some((p, i) => i > 0 && p.line < problems[i - 1]!.line)) problems.sort((a, b2) => a.line - b2.line);
-    if (outOfOrder) accepted.sort((a, b2) => a.ms - b2.ms);
-    await nextTurn();
-    const settings = batchSettingsOf(db, u.siteId);
-    const run = deviationRun(rulesOf(b.program, settings), pointsOf(db, b));
-    const drafts: ReturnType<typeof run> = [];
-    for (let i = 0; i < accepted.length; i += ROWS_PER_TURN) {
-      if (i > 0) await nextTurn();
-      for (const d of run(accepted.slice(i, i + ROWS_PER_TURN).map((a) => ({ h: batchHours(b.startedAt, a.at), c: a.c })))) drafts.push(d);
-    }
+    const n = plan.atMs.length;
+    const at = Array.from(plan.atMs, (ms) => new Date(ms).toISOString());
+    const startMs = Date.parse(b.startedAt);
     // Stored in parts, one transaction each, so no other request waits behind the whole file. The audit event
     // goes with the first part and states what the import stores; a part's deviations go with its readings.
     // Should the server stop between parts, those stored stay and the same file uploaded again stores the rest.
+    const ends = partEnds(n, plan.drafts.map((d) => d.index));
+    const ids = new Int32Array(n);
+    // Whether the batch gained nothing but this import's readings since the worker's basis: then the worker's
+    // status is the batch's, and the kept record takes the import in without reading it back.
+    let alone = true;
     let raised = 0;
-    progress.rowsToStore = accepted.length;
-    const parts = Math.max(1, Math.ceil(accepted.length / ROWS_PER_PART));
-    for (let part = 0; part < parts; part++) {
-      const from = part * ROWS_PER_PART;
-      const to = Math.min(accepted.length, from + ROWS_PER_PART);
+    let d = 0;
+    progress.rowsToStore = n;
+    for (let part = 0, from = 0; part < ends.length; part++) {
+      const to = ends[part]!;
       if (part > 0) await nextTurn();
       const current = part > 0 ? runningBatch(db, u.siteId, id).batch : b;
       raised += writeTx(db, (t) => {
-        const ids = insertReadings(
+        alone &&= newestReadingId(t, b.id) === (from === 0 ? record.version : ids[from - 1]!);
+        const stored = insertReadings(
           t,
-          accepted.slice(from, to).map((a) => ({ siteId: u.siteId, batchId: b.id, clientKey: a.key, takenAt: a.at, c: a.c, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
+          at.slice(from, to).map((iso, i) => ({ siteId: u.siteId, batchId: b.id, clientKey: `${HISTORIAN_KEY}${iso}`, takenAt: iso, c: plan.c[from + i]!, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
         );
+        stored.forEach((rid, i) => (ids[from + i] = rid));
         if (part === 0)
           appendAudit(t, {
             siteId: u.siteId,
@@ -118,20 +132,24 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
             action: 'batch.readings_import',
             entity: 'batch',
             entityId: b.id,
-            newValue: { rows: parsed.total, imported: accepted.length, parts, timeZone, dateOrder: q.dateOrder, encoding: parsed.encoding, first: accepted[0]?.at ?? null, last: accepted.at(-1)?.at ?? null },
+            newValue: { rows: plan.total, imported: n, parts: ends.length, timeZone, dateOrder: q.dateOrder, encoding: plan.encoding, first: at[0] ?? null, last: at.at(-1) ?? null },
             at: now,
           });
-        const mine = drafts.filter((d) => d.index >= from && d.index < to).map((d) => ({ readingId: ids[d.index - from]!, draft: d.draft }));
+        const mine: { readingId: number; draft: (typeof plan.drafts)[number]['draft'] }[] = [];
+        for (; d < plan.drafts.length && plan.drafts[d]!.index < to; d++) mine.push({ readingId: ids[plan.drafts[d]!.index]!, draft: plan.drafts[d]!.draft });
         // The forecast and the corrective setpoint come from the whole record: once, with the last part.
-        const last = part === parts - 1;
-        return mine.length || (accepted.length && last) ? raiseDeviations(t, u, current, mine, now, { checkForecast: last, withCorrective: last }).length : 0;
+        const last = part === ends.length - 1;
+        const status = () => (alone && plan.status ? statusAtHour(b.program, plan.status, (now.getTime() - startMs) / 3_600_000) : null);
+        return mine.length || (n && last) ? raiseDeviations(t, u, current, mine, now, { checkForecast: last, withCorrective: last, status }).length : 0;
       });
       progress.rowsStored = to;
-      // The kept record takes in the part just stored, so the next part reads only its own rows.
-      batchRecordOf(db, b);
+      from = to;
     }
-    const skipped = problems.filter((p) => p.kind !== 'out_of_order').length;
-    return { rows: parsed.total, imported: accepted.length, skipped, outOfOrder, deviationsRaised: raised, problems: problems.slice(0, MAX_PROBLEMS), timeZone, encoding: parsed.encoding };
+    if (alone && n) {
+      const points: Point[] = Array.from(plan.atMs, (ms, i) => ({ h: (ms - startMs) / 3_600_000, c: plan.c[i]! }));
+      await keepAdded(db, b, record, { ids, at, points }, ids[n - 1]!, plan.status);
+    }
+    return { rows: plan.total, imported: n, skipped: plan.skipped, outOfOrder: plan.outOfOrder, deviationsRaised: raised, problems: plan.problems, timeZone, encoding: plan.encoding };
   } finally {
     importsRunning.delete(id);
   }

@@ -1,10 +1,7 @@
 // Readings logged one at a time (phone, control-system link) through group commit, and the readings table's pages.
 import { unwritableReason, writeTx, type Db } from '../../db/client';
-import { batchHours, plannedAt, readingDeviations, type DeviationDraft, type ReadingRules } from '../../src/batches';
+import { batchHours, readingDeviations, type DeviationDraft, type ReadingRules } from '../../src/batches';
 import {
-  CLOCK_SKEW_MIN,
-  type BatchProgram,
-  type BatchSettings,
   type Reading,
   type ReadingInput,
   type ReadingResult,
@@ -27,6 +24,7 @@ import type { Services } from '../routes/services';
 import { appendAudit } from './audit';
 import { batchSettingsOf, loadBatch } from './batches';
 import { raiseDeviations, toDeviation } from './deviations';
+import { checkReadingTime, rulesOf } from './historian-plan';
 
 export const toReading = (r: ReadingRow, enteredBy: string, startedAt: string): Reading => ({
   id: r.id,
@@ -38,18 +36,6 @@ export const toReading = (r: ReadingRow, enteredBy: string, startedAt: string): 
   source: r.source,
   enteredBy,
 });
-
-export const rulesOf = (program: BatchProgram, settings: BatchSettings): ReadingRules => ({
-  ...settings,
-  vesselMaxC: program.vessel.maxC,
-  plannedAt: (h) => plannedAt(program, h),
-});
-
-export function checkReadingTime(startedAt: string, takenMs: number, now: Date): string | null {
-  if (takenMs > now.getTime() + CLOCK_SKEW_MIN * 60_000) return `More than ${CLOCK_SKEW_MIN} min ahead of the server's clock`;
-  if (takenMs < Date.parse(startedAt)) return 'Before the batch started';
-  return null;
-}
 
 /** A page of the readings table, newest first; `before` is the id of the last reading of the previous page. */
 export function getReadingsPage(s: Services, u: SessionUser, id: number, q: { before?: number; limit: number }): ReadingsPage {
