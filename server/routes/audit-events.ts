@@ -9,8 +9,8 @@ export function auditEventsRouter(s: Services): Router {
   router.get('/', allow('supervisor', 'admin'), (req, res) => {
     res.json(AuditPage.parse(searchAudit(s, currentUser(req), AuditQuery.parse(req.query))));
   });
-  router.get('/verify', allow('supervisor', 'admin'), (req, res) => {
-    res.json(AuditVerification.parse(verifySiteAudit(s, currentUser(req))));
+  router.get('/verify', allow('supervisor', 'admin'), async (req, res) => {
+    res.json(AuditVerification.parse(await verifySiteAudit(s, currentUser(req))));
   });
   router.post('/checkpoints', allow('supervisor', 'admin'), (req, res) => {
     AuditCheckpointInput.parse(req.body);

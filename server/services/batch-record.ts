@@ -92,7 +92,7 @@ function keep(db: Db, batchId: number, record: BatchRecord) {
 }
 
 // Rows merged per turn of the event loop: a few milliseconds.
-const MERGED_PER_TURN = 50_000;
+const MERGED_PER_TURN = 10_000;
 
 /**
  * Keeps `base` with readings just stored merged in, a step per turn, when they are all the batch gained since

@@ -47,6 +47,8 @@ async function historianKeys(s: Services, batchId: number): Promise<string[]> {
   }
 }
 
+const isoOf = (ms: number | undefined) => (ms === undefined ? null : new Date(ms).toISOString());
+
 /** Where each part ends (exclusive): at ROWS_PER_PART, deviations counted at ROWS_PER_DEVIATION rows each. */
 function partEnds(rows: number, draftIndices: readonly number[]): number[] {
   const ends: number[] = [];
@@ -100,7 +102,9 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
     const b = runningBatch(db, u.siteId, id).batch;
     const now = clock.now();
     const n = plan.atMs.length;
-    const at = Array.from(plan.atMs, (ms) => new Date(ms).toISOString());
+    // Each row's stored time and point, made part by part (300,000 at once would be one long turn).
+    const at: string[] = new Array(n);
+    const points: Point[] = new Array(n);
     const startMs = Date.parse(b.startedAt);
     // Stored in parts, one transaction each, so no other request waits behind the whole file. The audit event
     // goes with the first part and states what the import stores; a part's deviations go with its readings.
@@ -119,10 +123,13 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
       const current = part > 0 ? runningBatch(db, u.siteId, id).batch : b;
       raised += writeTx(db, (t) => {
         alone &&= newestReadingId(t, b.id) === (from === 0 ? record.version : ids[from - 1]!);
-        const stored = insertReadings(
-          t,
-          at.slice(from, to).map((iso, i) => ({ siteId: u.siteId, batchId: b.id, clientKey: `${HISTORIAN_KEY}${iso}`, takenAt: iso, c: plan.c[from + i]!, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() })),
-        );
+        const rows = [];
+        for (let i = from; i < to; i++) {
+          const iso = (at[i] = new Date(plan.atMs[i]!).toISOString());
+          points[i] = { h: (plan.atMs[i]! - startMs) / 3_600_000, c: plan.c[i]! };
+          rows.push({ siteId: u.siteId, batchId: b.id, clientKey: `${HISTORIAN_KEY}${iso}`, takenAt: iso, c: plan.c[i]!, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() });
+        }
+        const stored = insertReadings(t, rows);
         stored.forEach((rid, i) => (ids[from + i] = rid));
         if (part === 0)
           appendAudit(t, {
@@ -132,7 +139,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
             action: 'batch.readings_import',
             entity: 'batch',
             entityId: b.id,
-            newValue: { rows: plan.total, imported: n, parts: ends.length, timeZone, dateOrder: q.dateOrder, encoding: plan.encoding, first: at[0] ?? null, last: at.at(-1) ?? null },
+            newValue: { rows: plan.total, imported: n, parts: ends.length, timeZone, dateOrder: q.dateOrder, encoding: plan.encoding, first: isoOf(plan.atMs[0]), last: isoOf(plan.atMs[n - 1]) },
             at: now,
           });
         const mine: { readingId: number; draft: (typeof plan.drafts)[number]['draft'] }[] = [];
@@ -146,7 +153,6 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
       from = to;
     }
     if (alone && n) {
-      const points: Point[] = Array.from(plan.atMs, (ms, i) => ({ h: (ms - startMs) / 3_600_000, c: plan.c[i]! }));
       await keepAdded(db, b, record, { ids, at, points }, ids[n - 1]!, plan.status);
     }
     return { rows: plan.total, imported: n, skipped: plan.skipped, outOfOrder: plan.outOfOrder, deviationsRaised: raised, problems: plan.problems, timeZone, encoding: plan.encoding };
