@@ -456,6 +456,9 @@ describe('historian import', () => {
     const nowIso = t.clock.now().toISOString();
     expect(statusNow(t.db, b, nowIso, true)).toEqual(statusAtHour(b.program, status, batchHours(b.startedAt, nowIso)));
     expect(statusNow(t.db, b, nowIso)).toEqual(statusAtHour(b.program, batchStatus(b.program, points, 0), batchHours(b.startedAt, nowIso)));
+    // The checks above hold this thread (the server's too) for seconds: the server's idle keep-alive sockets time
+    // out as it resumes. A moment lets their close reach the client, so the next test's upload takes a new one.
+    await new Promise((resolve) => setTimeout(resolve, 300));
   });
 
   it('reads local times in the site zone and reports duplicates, out-of-order and bad rows by line', async () => {
