@@ -6,20 +6,17 @@ import { Worker } from 'node:worker_threads';
 import type { DateOrder } from '../src/batches';
 import type { AssayTableInput, ResidualScale } from '../src/contracts/assays';
 import type { AssayFitResult } from '../src/assay-fit';
-import type { CsvEncoding } from './csv-reader';
 import { HttpError } from './http-error';
 import type { CheckedAssay } from './services/assay-csv';
-import type { RowProblem } from './services/historian-csv';
+import type { ImportBasis, ImportPlan } from './services/historian-plan';
 
 export type ImportTask =
   | { kind: 'assay-csv'; bytes: Uint8Array; scale?: ResidualScale; tRefC: number }
   | { kind: 'assay-table'; input: AssayTableInput; tRefC: number }
-  | { kind: 'historian'; bytes: Uint8Array; timeZone: string; dateOrder: DateOrder };
+  | { kind: 'historian'; bytes: Uint8Array; timeZone: string; dateOrder: DateOrder; basis: ImportBasis };
 
 export type AssayRead = { checked: CheckedAssay; fit: AssayFitResult };
-/** Readable rows as columns (line in the file, instant in ms, °C); rows that could not be read are problems. */
-export type HistorianRead = { lines: Int32Array; atMs: Float64Array; c: Float64Array; problems: RowProblem[]; total: number; encoding: CsvEncoding };
-type ResultOf<T extends ImportTask> = T['kind'] extends 'historian' ? HistorianRead : AssayRead;
+type ResultOf<T extends ImportTask> = T['kind'] extends 'historian' ? ImportPlan : AssayRead;
 
 export type ImportMessage = { id: number; task: ImportTask };
 export type ImportReply =

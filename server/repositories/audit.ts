@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, gte, inArray, isNull, lt, lte, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, gte, inArray, isNull, lt, lte, sql, type SQL } from 'drizzle-orm';
 import { boundRow, columnPlaceholders, preparedPer, type Db } from '../../db/client';
 import { auditEvents } from '../../db/schema';
 
@@ -41,6 +41,10 @@ export const listAudit = (db: Db, siteId: number | null, opts: { action?: string
     .orderBy(asc(auditEvents.id))
     .limit(opts.limit ?? 1_000_000)
     .all();
+
+/** Up to `limit` of a chain's events after the one with id `afterId`, in id order. */
+export const listAuditAfter = (db: Db, siteId: number | null, afterId: number, limit: number) =>
+  db.select().from(auditEvents).where(and(sameSite(siteId), gt(auditEvents.id, afterId))).orderBy(asc(auditEvents.id)).limit(limit).all();
 
 export type AuditFilter = { action?: string; actor?: string; entity?: string; from?: string; to?: string };
 

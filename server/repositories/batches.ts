@@ -168,8 +168,18 @@ const readingJoined = preparedPer((db) =>
 );
 export const findReadingJoined = (db: Db, id: number) => readingJoined(db).get({ id });
 
-export const existingKeys = (db: Db, batchId: number) =>
-  new Set(db.select({ k: batchReadings.clientKey }).from(batchReadings).where(eq(batchReadings.batchId, batchId)).all().map((r) => r.k));
+// A batch's keys from `prefix` on, in key order, a page at a time (the unique key index answers it alone).
+const keysFrom = preparedPer((db) =>
+  db
+    .select({ k: batchReadings.clientKey })
+    .from(batchReadings)
+    .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), gt(batchReadings.clientKey, sql.placeholder('after'))))
+    .orderBy(asc(batchReadings.clientKey))
+    .limit(sql.placeholder('limit'))
+    .prepare(),
+);
+/** Up to `limit` of the batch's reading keys after the key `after`, in key order. */
+export const readingKeysAfter = (db: Db, batchId: number, after: string, limit: number): string[] => keysFrom(db).all({ batchId, after, limit }).map((r) => r.k);
 
 type NewReading = Omit<typeof batchReadings.$inferInsert, 'id'>;
 const READING_COLUMNS = ['siteId', 'batchId', 'clientKey', 'takenAt', 'c', 'note', 'source', 'enteredBy', 'receivedAt'] as const;

@@ -9,8 +9,8 @@ export function auditEventsRouter(s: AppContext): Router {
   router.get('/', allow('audit-events.review'), (req, res) => {
     res.json(AuditPage.parse(searchAudit(s, currentUser(req), AuditQuery.parse(req.query))));
   });
-  router.get('/verify', allow('audit-events.review'), (req, res) => {
-    res.json(AuditVerification.parse(verifySiteAudit(s, currentUser(req))));
+  router.get('/verify', allow('audit-events.review'), async (req, res) => {
+    res.json(AuditVerification.parse(await verifySiteAudit(s, currentUser(req))));
   });
   router.post('/checkpoints', allow('audit-events.review'), (req, res) => {
     AuditCheckpointInput.parse(req.body);

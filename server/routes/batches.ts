@@ -21,7 +21,11 @@ import {
 } from '../../src/contracts/batches';
 import { HttpError } from '../http-error';
 import { allow, currentUser } from '../middleware/auth';
-import { batchReportCsv, batchSettingsOf, changeBatchSettings, closeBatch, getBatchDetail, getReadingsPage, importProgress, importReadings, listBatches, readingIngest, startBatch } from '../services/batches';
+import { getBatchDetail } from '../services/batch-detail';
+import { batchReportCsv } from '../services/batch-report';
+import { batchSettingsOf, changeBatchSettings, closeBatch, listBatches, startBatch } from '../services/batches';
+import { importProgress, importReadings } from '../services/reading-import';
+import { getReadingsPage, readingIngest } from '../services/readings';
 import type { AppContext } from '../context';
 
 // A historian export of a long batch at one reading a second runs to several megabytes. Kept as bytes: the

@@ -2,7 +2,7 @@ import { Router } from 'express';
 import { IdParam } from './params';
 import { Deviation, DeviationAcknowledge, DeviationClose } from '../../src/contracts/batches';
 import { allow, currentUser } from '../middleware/auth';
-import { acknowledgeDeviation, closeDeviation } from '../services/batches';
+import { acknowledgeDeviation, closeDeviation } from '../services/deviations';
 import type { AppContext } from '../context';
 
 export function deviationsRouter(s: AppContext): Router {

@@ -3,7 +3,7 @@ import type { SessionUser } from '../../src/contracts/session';
 import { toCsv } from '../csv';
 import { findAudit, type AuditRow } from '../repositories/audit';
 import type { Services } from '../context';
-import { sealAudit, verifyAudit } from './audit-verify';
+import { sealAudit, verifyAuditInTurns } from './audit-verify';
 
 const toEvent = (r: AuditRow): AuditEvent => ({
   id: r.id,
@@ -23,7 +23,7 @@ export function searchAudit({ db }: Services, u: SessionUser, q: AuditQuery): Au
   return { events: rows.map(toEvent), total };
 }
 
-export const verifySiteAudit = ({ db }: Services, u: SessionUser): AuditVerification => verifyAudit(db, u.siteId);
+export const verifySiteAudit = ({ db }: Services, u: SessionUser): Promise<AuditVerification> => verifyAuditInTurns(db, u.siteId);
 
 /** Seals the site's chain now (a checkpoint outside the database), when it moved since the last one. */
 export const checkpointSiteAudit = ({ db, clock }: Services, u: SessionUser) => ({ written: sealAudit(db, clock.now(), u.siteId) });

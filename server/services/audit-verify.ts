@@ -1,7 +1,8 @@
 import type { Db } from '../../db/client';
 import { clientOf } from '../../db/client';
 import type { AuditProblem, AuditVerification } from '../../src/contracts/audit-events';
-import { auditCountUpTo, auditHeads, listAudit, listAuditOfActions, type AuditRow } from '../repositories/audit';
+import { auditCountUpTo, auditHeads, listAuditAfter, listAuditOfActions, type AuditRow } from '../repositories/audit';
+import { nextTurn } from '../next-turn';
 import { listAllSiteChangeRequests, listSiteSignatures } from '../repositories/change-requests';
 import { listSiteLots } from '../repositories/lots';
 import { findSitePlan } from '../repositories/plans';
@@ -28,28 +29,61 @@ export function sealAudit(db: Db, at: Date, siteId?: number | null): Checkpoint[
   return written;
 }
 
+// Events checked per step: about 15 ms of reading and HMACs under load (a 100,000-event chain took 3 s in one turn).
+const EVENTS_PER_STEP = 500;
+
 /**
  * Checks a site's audit trail three ways: every link (keyed), the chain against every signed checkpoint (a
  * deleted newest event or a rebuilt chain no longer matches), and the current state of signed and decided
  * records against their last audited state (lot decisions, signatures, change requests).
  */
 export function verifyAudit(db: Db, siteId: number | null): AuditVerification {
+  const steps = verifySteps(db, siteId);
+  for (;;) {
+    const r = steps.next();
+    if (r.done) return r.value;
+  }
+}
+
+/** verifyAudit a step per turn of the event loop, so other requests are answered while a long chain is checked. */
+export async function verifyAuditInTurns(db: Db, siteId: number | null): Promise<AuditVerification> {
+  const steps = verifySteps(db, siteId);
+  for (;;) {
+    const r = steps.next();
+    if (r.done) return r.value;
+    await nextTurn();
+  }
+}
+
+// Events only ever follow the newest: one read in pages by id sees the chain as it stood, plus any appended meanwhile.
+function* verifySteps(db: Db, siteId: number | null): Generator<void, AuditVerification> {
   const key = auditKeyOf(db);
-  const rows = listAudit(db, siteId);
   const problems: AuditProblem[] = [];
   let firstBrokenId: number | null = null;
   let prev = GENESIS;
-  for (const r of rows) {
-    if (r.prevHash !== prev || eventHash(key, r) !== r.hash) {
-      firstBrokenId = r.id;
-      problems.push({ kind: 'chain', eventId: r.id, message: `Event ${r.id} does not match its link: it, or one before it, was edited, inserted or removed` });
-      break;
+  let events = 0;
+  for (let after = 0, broken = false; !broken; ) {
+    const rows = listAuditAfter(db, siteId, after, EVENTS_PER_STEP);
+    events += rows.length;
+    for (const r of rows) {
+      if (!broken && (r.prevHash !== prev || eventHash(key, r) !== r.hash)) {
+        firstBrokenId = r.id;
+        problems.push({ kind: 'chain', eventId: r.id, message: `Event ${r.id} does not match its link: it, or one before it, was edited, inserted or removed` });
+        broken = true;
+      }
+      prev = r.hash;
     }
-    prev = r.hash;
+    if (rows.length < EVENTS_PER_STEP) break;
+    after = rows.at(-1)!.id;
+    yield;
   }
+  // A broken chain still counts every event (the count the answer gives).
+  if (firstBrokenId !== null) events = auditCountUpTo(db, siteId, Number.MAX_SAFE_INTEGER).events;
+  yield;
   const { valid, forged } = readCheckpoints(clientOf(db), key, siteId);
   if (forged) problems.push({ kind: 'checkpoint', eventId: null, message: `${forged} checkpoint line${forged > 1 ? 's do' : ' does'} not carry a valid signature` });
   for (const c of valid) {
+    yield;
     const now = auditCountUpTo(db, siteId, c.lastId);
     if (now.hash !== c.head || now.events !== c.events) {
       problems.push({
@@ -59,9 +93,10 @@ export function verifyAudit(db: Db, siteId: number | null): AuditVerification {
       });
     }
   }
+  yield;
   if (siteId !== null) problems.push(...recordProblems(db, siteId));
   const last = valid.at(-1);
-  return { ok: problems.length === 0, events: rows.length, firstBrokenId, checkpoints: valid.length, lastCheckpointAt: last?.at ?? null, problems };
+  return { ok: problems.length === 0, events, firstBrokenId, checkpoints: valid.length, lastCheckpointAt: last?.at ?? null, problems };
 }
 
 const lastBy = (events: AuditRow[], keyOf: (e: AuditRow) => string | null) => {

@@ -9,6 +9,7 @@ import type { Db } from '../../db/client';
 import { batchHours, batchStatus, statusAtHour } from '../../src/batches';
 import type { BatchProgram, BatchStatus } from '../../src/contracts/batches';
 import type { Reading as Point } from '../../src/model';
+import { nextTurn } from '../next-turn';
 import { newestReadingId, readingPointRows, readingPointRowsAfter, type PointRow } from '../repositories/batches';
 
 export type BatchRecord = {
@@ -43,41 +44,81 @@ function fromRows(rows: readonly Row[], startedAt: string): { ids: Int32Array; p
   return { ids, points, at };
 }
 
-/** The kept record with the readings added since merged in, in the stored order (time, then id). */
-function merged(old: BatchRecord, added: ReturnType<typeof fromRows>, version: number): BatchRecord {
+type Added = ReturnType<typeof fromRows>;
+
+/** The kept record with the readings added since merged in, in the stored order (time, then id), `rows` a step. */
+function merger(old: BatchRecord, added: Added) {
   const n = old.ids.length + added.ids.length;
   const ids = new Int32Array(n);
   const points: Point[] = new Array(n);
   const at: string[] = new Array(n);
   let i = 0;
   let j = 0;
-  for (let k = 0; k < n; k++) {
-    // Times are toISOString() text: text order is time order; equal times keep id order (old ids are lower).
-    const takeOld = j >= added.ids.length || (i < old.ids.length && old.at[i]! <= added.at[j]!);
-    if (takeOld) {
-      ids[k] = old.ids[i]!;
-      points[k] = old.points[i]!;
-      at[k] = old.at[i++]!;
-    } else {
-      ids[k] = added.ids[j]!;
-      points[k] = added.points[j]!;
-      at[k] = added.at[j++]!;
-    }
+  let k = 0;
+  return {
+    /** Merges the next `rows`; true once all are. */
+    step(rows: number): boolean {
+      for (const end = Math.min(n, k + rows); k < end; k++) {
+        // Times are toISOString() text: text order is time order; equal times keep id order (old ids are lower).
+        const takeOld = j >= added.ids.length || (i < old.ids.length && old.at[i]! <= added.at[j]!);
+        if (takeOld) {
+          ids[k] = old.ids[i]!;
+          points[k] = old.points[i]!;
+          at[k] = old.at[i++]!;
+        } else {
+          ids[k] = added.ids[j]!;
+          points[k] = added.points[j]!;
+          at[k] = added.at[j++]!;
+        }
+      }
+      return k === n;
+    },
+    record: (version: number): BatchRecord => ({ version, ids, points, at }),
+  };
+}
+
+function merged(old: BatchRecord, added: Added, version: number): BatchRecord {
+  const m = merger(old, added);
+  m.step(Infinity);
+  return m.record(version);
+}
+
+function keep(db: Db, batchId: number, record: BatchRecord) {
+  let byBatch = kept.get(db.$client);
+  if (!byBatch) kept.set(db.$client, (byBatch = new Map()));
+  byBatch.delete(batchId);
+  byBatch.set(batchId, record);
+  if (byBatch.size > KEPT_PER_CONNECTION) byBatch.delete(byBatch.keys().next().value!);
+}
+
+// Rows merged per turn of the event loop: a few milliseconds.
+const MERGED_PER_TURN = 10_000;
+
+/**
+ * Keeps `base` with readings just stored merged in, a step per turn, when they are all the batch gained since
+ * `base` (the caller knows: an import that stored ids base.version+1 to `version`). The base status (statusNow's,
+ * with corrective) may come along, computed elsewhere over the same readings. A large import's record would
+ * otherwise be read back and merged in one long turn by whichever request reads the batch next.
+ */
+export async function keepAdded(db: Db, b: BatchRef, base: BatchRecord, added: Added, version: number, withCorrective: BatchStatus | null): Promise<void> {
+  const m = merger(base, added);
+  while (!m.step(MERGED_PER_TURN)) await nextTurn();
+  if (newestReadingId(db, b.id) !== version) return; // more came meanwhile: the next reader merges from the database
+  const record = m.record(version);
+  if (withCorrective) {
+    record.withCorrective = withCorrective;
+    record.status = { ...withCorrective, corrective: null };
   }
-  return { version, ids, points, at };
+  keep(db, b.id, record);
 }
 
 export function batchRecordOf(db: Db, b: BatchRef): BatchRecord {
   const version = newestReadingId(db, b.id);
-  let byBatch = kept.get(db.$client);
-  const hit = byBatch?.get(b.id);
+  const hit = kept.get(db.$client)?.get(b.id);
   if (hit && hit.version === version) return hit;
   const record = hit && hit.version < version ? merged(hit, fromRows(readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version) : { version, ...fromRows(readingPointRows(db, b.id), b.startedAt) };
   if (db.$client.inTransaction) return record;
-  if (!byBatch) kept.set(db.$client, (byBatch = new Map()));
-  byBatch.delete(b.id);
-  byBatch.set(b.id, record);
-  if (byBatch.size > KEPT_PER_CONNECTION) byBatch.delete(byBatch.keys().next().value!);
+  keep(db, b.id, record);
   return record;
 }
 

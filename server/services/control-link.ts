@@ -9,7 +9,9 @@ import type { AppPki } from '../opcua/pki';
 import { explain, LinkRefused, openReader, type Connection, type Monitor, type Reader } from '../opcua/reader';
 import { insertLinkGap, lastControlReadingAt, listSiteIds, listSiteSources, sourcesOfRunningBatches, type VesselSourceRow } from '../repositories/control-link';
 import { appendAudit } from './audit';
-import { batchSettingsOf, checkForecastLow, raiseBatchDeviation, readingIngest, type ReadingIngest } from './batches';
+import { batchSettingsOf } from './batches';
+import { checkForecastLow, raiseBatchDeviation } from './deviations';
+import { readingIngest, type ReadingIngest } from './readings';
 import { controlSystemUser, linkSettingsOf } from './control-sources';
 
 /**

@@ -2,6 +2,9 @@ import type { BatchSettings, DeviationKind } from '../contracts/batches';
 
 export type Point = { h: number; c: number };
 
+/** Kinds whose cause an operator can correct with the temperature: these get a corrective setpoint. */
+export const CORRECTABLE: ReadonlySet<DeviationKind> = new Set<DeviationKind>(['band', 'vessel_max', 'forecast_low']);
+
 export type DeviationDraft = { kind: DeviationKind; h: number; valueC: number | null; expectedC: number | null; message: string };
 
 export type ReadingRules = BatchSettings & {

@@ -1,6 +1,7 @@
 import autocannon from 'autocannon';
 import fs from 'node:fs';
 import os from 'node:os';
+import path from 'node:path';
 import { DEMO_USERS } from '../../db/seed';
 import { MAX_IMPORT_ROWS } from '../../src/contracts/batches';
 import { sessionCookie, startServer } from '../support/server';
@@ -18,18 +19,20 @@ const CPU_PROF_DIR = process.env.LOAD_CPU_PROF;
 
 type Mix = { name: string; requests: autocannon.Request[]; cookie: string; count?: () => Promise<number> };
 
-function run(url: string, mix: Mix, connections: number): Promise<autocannon.Result> {
+/** Runs the mix for DURATION_S, or from now until `until` settles. */
+function run(url: string, mix: Mix, connections: number, until?: Promise<unknown>): Promise<autocannon.Result> {
   return new Promise((resolve, reject) => {
-    autocannon(
+    const instance = autocannon(
       {
         url,
         connections,
-        duration: DURATION_S,
+        duration: until ? 3600 : DURATION_S,
         headers: { cookie: mix.cookie, 'x-yieldpoint-client': 'load', 'content-type': 'application/json' },
         requests: mix.requests,
       },
       (err, result) => (err ? reject(err) : resolve(result)),
     );
+    void until?.finally(() => instance.stop());
   });
 }
 
@@ -42,7 +45,11 @@ async function main() {
 
 async function httpLoad() {
   // The API alone: no web build needed.
-  const server = await startServer({ env: { WEB_DIR: 'no-web-build' }, nodeArgs: CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : [] });
+  const turnsFile = path.join(os.tmpdir(), `yieldpoint-turns-${process.pid}.txt`);
+  const server = await startServer({
+    env: { WEB_DIR: 'no-web-build', LOAD_TURNS_FILE: turnsFile },
+    nodeArgs: [...(CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : []), '--import', path.join(__dirname, 'long-turns.mjs')],
+  });
   try {
     const engineer = await sessionCookie(server.baseURL, user('engineer').email, user('engineer').password);
     const operator = await sessionCookie(server.baseURL, user('operator').email, user('operator').password);
@@ -90,8 +97,9 @@ async function httpLoad() {
         );
       }
     }
-    if (!ONLY_MIX || ONLY_MIX === 'import') await importMix(server.baseURL, mixes[0]!, operator, running);
+    if (!ONLY_MIX || ONLY_MIX === 'import') await importMix(server.baseURL, mixes[0]!, operator, running, turnsFile);
   } finally {
+    fs.rmSync(turnsFile, { force: true });
     await server.stop();
     fs.rmSync(server.dir, { recursive: true, force: true });
   }
@@ -105,13 +113,35 @@ async function timed(url: string, cookie: string): Promise<number> {
   return performance.now() - t0;
 }
 
-async function importMix(baseURL: string, reads: Mix, operator: string, running: { id: number; startedAt: string }) {
+/** The server's turns longer than 20 ms between two instants (from tests/perf/long-turns.mjs). */
+function longTurns(file: string, fromMs: number, toMs: number): string {
+  const held = (fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '')
+    .split('\n')
+    .filter(Boolean)
+    .map((l) => l.split(' ').map(Number) as [number, number])
+    .filter(([at]) => at >= fromMs && at <= toMs)
+    .map(([, ms]) => ms)
+    .sort((a, b) => b - a);
+  return `${held.length} turns over 20 ms (${held.filter((ms) => ms > 50).length} over 50 ms), longest ${held.slice(0, 5).map((ms) => ms.toFixed(0)).join(', ') || '-'} ms`;
+}
+
+async function importMix(baseURL: string, reads: Mix, operator: string, running: { id: number; startedAt: string }, turnsFile: string) {
+  // The same reads alone first, on the same machine a moment before: the figure the import's is compared with
+  // (after a warm-up: the server's first seconds include its own start, the simulated plant's certificates).
+  await run(baseURL, reads, 20);
+  const aloneFrom = Date.now();
+  const alone = await run(baseURL, reads, 20);
+  console.log(
+    `\nreads alone (20 conns, ${DURATION_S} s): ${alone.requests.average.toFixed(0)} req/s, p50 ${alone.latency.p50} ms, p99 ${alone.latency.p99} ms, max ${alone.latency.max} ms; ` +
+      `server: ${longTurns(turnsFile, aloneFrom, Date.now())}; load average ${os.loadavg()[0]!.toFixed(1)}`,
+  );
   // Invented readings 40 ms apart from the batch start: 300,000 rows span 3.3 h, inside the running batch.
   const start = Date.parse(running.startedAt);
   const rows = MAX_IMPORT_ROWS;
   let csv = 'time,degC\n';
   for (let i = 0; i < rows; i++) csv += `${new Date(start + 40 * i).toISOString()},${(55 + (i % 40) / 10).toFixed(1)}\n`;
   const t0 = performance.now();
+  const importFrom = Date.now();
   let importMs = 0;
   const upload = fetch(`${baseURL}/api/batches/${running.id}/readings/import`, {
     method: 'POST',
@@ -123,11 +153,13 @@ async function importMix(baseURL: string, reads: Mix, operator: string, running:
     if (!r.ok) throw new Error(`import refused: ${r.status} ${body.message}`);
     return body.imported ?? 0;
   });
-  const r = await run(baseURL, reads, 20);
+  // The reads run as long as the import does, its storing included.
+  const r = await run(baseURL, reads, 20, upload.catch(() => 0));
   const imported = await upload;
   console.log(
     `\nimport mix: ${rows.toLocaleString('en')} rows (${(csv.length / 1e6).toFixed(1)} MB) imported ${imported.toLocaleString('en')} in ${(importMs / 1000).toFixed(1)} s; ` +
-      `other reads meanwhile (20 conns, ${DURATION_S} s): ${r.requests.average.toFixed(0)} req/s, p50 ${r.latency.p50} ms, p99 ${r.latency.p99} ms, max ${r.latency.max} ms, non-2xx ${r.non2xx}`,
+      `other reads meanwhile (20 conns, the whole import): ${r.requests.average.toFixed(0)} req/s, p50 ${r.latency.p50} ms, p99 ${r.latency.p99} ms, max ${r.latency.max} ms, non-2xx ${r.non2xx}; ` +
+      `server: ${longTurns(turnsFile, importFrom, Date.now())}; load average ${os.loadavg()[0]!.toFixed(1)}`,
   );
   for (const [name, path] of [
     ['batch list', '/api/batches'],

@@ -1,12 +1,16 @@
-import { eq, sql } from 'drizzle-orm';
+import { and, asc, eq, gt, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { writeTx } from '../../db/client';
 import { auditEvents, batchReadings, deviations, recipes, users } from '../../db/schema';
 import { DEMO_PLANT_TRUTH } from '../../db/seed';
-import { insertReadings, readingPoints } from '../../server/repositories/batches';
+import { findSiteBatch, insertReadings, readingPoints } from '../../server/repositories/batches';
 import { loadSessionUser } from '../../server/services/auth';
-import { batchRecordOf } from '../../server/services/batch-record';
-import { checkForecastLow, readingIngest } from '../../server/services/batches';
+import { batchRecordOf, statusNow } from '../../server/services/batch-record';
+import { batchSettingsOf } from '../../server/services/batches';
+import { checkForecastLow } from '../../server/services/deviations';
+import { rulesOf } from '../../server/services/historian-plan';
+import { readingIngest } from '../../server/services/readings';
+import { batchHours, batchStatus, forecastDeviation, runDeviations, statusAtHour } from '../../src/batches';
 import { password, startTestApp, type Client, type TestApp } from './harness';
 
 let t: TestApp;
@@ -407,7 +411,7 @@ describe('historian import', () => {
 
   it('stores a large file in parts and reports how far it has got while other requests are answered', async () => {
     // 30,000 invented readings a second apart, each a quarter second after one of the 50,000 and on the same
-    // course (the ramp, then 37 °C), so they raise no deviation (six parts of 5,000).
+    // course (the ramp, then 37 °C), so they raise no deviation (30 parts of 1,000).
     const from = Date.parse(batch.startedAt) + 250;
     let csv = 'time,degC\n';
     for (let i = 0; i < 30_000; i++) csv += `${new Date(from + 1000 * i).toISOString()},${i < 11_200 ? (6 + (10 * i) / 3600).toFixed(2) : '37.00'}\n`;
@@ -426,7 +430,51 @@ describe('historian import', () => {
     expect((await op.get(`/api/batches/${batch.id}/readings/import`)).body).toMatchObject({ isRunning: false });
     // One audit event for the import, stating its parts.
     const events = t.db.select().from(auditEvents).where(eq(auditEvents.action, 'batch.readings_import')).all();
-    expect(events.at(-1)!.newValue).toMatchObject({ imported: 30_000, parts: 6 });
+    expect(events.at(-1)!.newValue).toMatchObject({ imported: 30_000, parts: 30 });
+  });
+
+  it('raises the deviations, the corrective setpoints and the status the server thread computes from the same file', async () => {
+    // 4,000 invented readings between the stored ones (750 ms after each of the first 4,000 seconds), with
+    // excursions early (band), in the middle (above the vessel maximum) and at the end (band again), so some
+    // are stored in early parts (no corrective) and some in the last (with the corrective).
+    const j = findSiteBatch(t.db, 1, batch.id)!;
+    const b = j.batch;
+    const settings = batchSettingsOf(t.db, 1);
+    const stored = batchRecordOf(t.db, b).points.slice();
+    const hadLow = t.db.select().from(deviations).where(eq(deviations.batchId, b.id)).all().some((d) => d.kind === 'forecast_low' && d.state !== 'closed');
+    const lastDev = t.db.select({ n: sql<number>`coalesce(max(id), 0)` }).from(deviations).get()!.n;
+    const from = Date.parse(b.startedAt) + 750;
+    const rows = Array.from({ length: 4_000 }, (_, i) => {
+      const c = (6 + (10 * i) / 3600) * 1;
+      const bump = (i >= 100 && i < 140) || i >= 3_990 ? 4 : i >= 2_000 && i < 2_010 ? b.program.vessel.maxC + 2 - c : 0;
+      return { ms: from + 1000 * i, c: Number((c + bump).toFixed(2)) };
+    });
+    const r = await upload(op, 'time,degC\n' + rows.map((x) => `${new Date(x.ms).toISOString()},${x.c}`).join('\n'));
+    expect(r.body).toMatchObject({ imported: 4_000 });
+    // The in-thread computation over the same readings: today's deviation rules, then the whole record's status.
+    const added = rows.map((x) => ({ h: (x.ms - Date.parse(b.startedAt)) / 3_600_000, c: x.c }));
+    const drafts = runDeviations(rulesOf(b.program, settings), stored, added);
+    const points = readingPoints(t.db, b.id).map((p) => ({ h: (Date.parse(p.takenAt) - Date.parse(b.startedAt)) / 3_600_000, c: p.c }));
+    const status = batchStatus(b.program, points, 0, true);
+    const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hadLow, status.lastH);
+    const raisedNow = t.db.select().from(deviations).where(and(eq(deviations.batchId, b.id), gt(deviations.id, lastDev))).orderBy(asc(deviations.id)).all();
+    expect(drafts.length).toBeGreaterThan(2);
+    expect(raisedNow.map((d) => [d.kind, d.message, d.valueC, d.expectedC])).toEqual([...drafts.map((d) => d.draft), ...(low ? [low] : [])].map((d) => [d.kind, d.message, d.valueC, d.expectedC]));
+    expect(r.body.deviationsRaised).toBe(raisedNow.length);
+    // Correctives only on the last part's deviations of a correctable kind, each the whole record's.
+    const withCorrective = raisedNow.filter((d) => d.corrective);
+    expect(withCorrective.length).toBeGreaterThan(0);
+    expect(raisedNow.filter((d) => !d.corrective).length).toBeGreaterThan(0);
+    for (const d of withCorrective) expect(d.corrective).toEqual(status.corrective);
+    // The kept record took the import in: same readings in the stored order, and the same status as from the database.
+    const kept = batchRecordOf(t.db, b);
+    expect(kept.points).toEqual(points);
+    const nowIso = t.clock.now().toISOString();
+    expect(statusNow(t.db, b, nowIso, true)).toEqual(statusAtHour(b.program, status, batchHours(b.startedAt, nowIso)));
+    expect(statusNow(t.db, b, nowIso)).toEqual(statusAtHour(b.program, batchStatus(b.program, points, 0), batchHours(b.startedAt, nowIso)));
+    // The checks above hold this thread (the server's too) for seconds: the server's idle keep-alive sockets time
+    // out as it resumes. A moment lets their close reach the client, so the next test's upload takes a new one.
+    await new Promise((resolve) => setTimeout(resolve, 300));
   });
 
   it('reads local times in the site zone and reports duplicates, out-of-order and bad rows by line', async () => {

@@ -1,4 +1,8 @@
 import { afterAll, describe, expect, it } from 'vitest';
+import { migrateDb, openDb } from '../../db/client';
+import { batches } from '../../db/schema';
+import { seedDemo } from '../../db/seed';
+import { DEFAULT_BATCH_SETTINGS } from '../../src/contracts/batches';
 import { readCsv } from '../../server/csv-reader';
 import { HttpError } from '../../server/http-error';
 import { runImport, stopImports } from '../../server/imports';
@@ -79,12 +83,20 @@ describe('import worker', () => {
     let ticks = 0;
     const timer = setInterval(() => ticks++, 10);
     const progress: number[] = [];
-    const read = await runImport({ kind: 'historian', bytes, ...opts }, (n) => progress.push(n)).finally(() => clearInterval(timer));
+    // The worker also checks the rows and runs the deviation rules: against a demo batch's program, started at `start`.
+    const db = openDb(':memory:');
+    migrateDb(db);
+    seedDemo(db, { bcryptCost: 4 });
+    const program = db.select().from(batches).get()!.program;
+    const basis = { startedAt: new Date(start).toISOString(), program, settings: DEFAULT_BATCH_SETTINGS, nowMs: start + 1000 * 300_000, storedKeys: [], storedH: new Float64Array(0), storedC: new Float64Array(0) };
+    const read = await runImport({ kind: 'historian', bytes, ...opts, basis }, (n) => progress.push(n)).finally(() => clearInterval(timer));
     expect(read.total).toBe(300_000);
-    expect(read.lines.length).toBe(300_000);
-    expect([read.lines[0], read.lines[299_999]]).toEqual([2, 300_001]);
+    expect(read.atMs.length).toBe(300_000);
+    expect([read.atMs[0], read.c[0]]).toEqual([start, 37]);
     expect(read.atMs[299_999]).toBe(start + 1000 * 299_999);
+    expect(read.skipped).toBe(0);
     expect(ticks).toBeGreaterThan(10);
     expect(progress.length).toBeGreaterThan(0);
-  });
+    // The worker now also checks the rows and runs the deviation rules and the batch status over them.
+  }, 120_000);
 });

@@ -5,10 +5,10 @@ import { HttpError } from '../../server/http-error';
 import { listAudit } from '../../server/repositories/audit';
 import { verifyAudit } from '../../server/services/audit-verify';
 import { loadSessionUser } from '../../server/services/auth';
-import { readingIngest } from '../../server/services/batches';
+import { readingIngest } from '../../server/services/readings';
 import { email, startTestApp, type Client, type TestApp } from './harness';
 
-// Group commit of logged readings (server/services/batches.ts readingIngest): readings that arrive together are
+// Group commit of logged readings (server/services/readings.ts readingIngest): readings that arrive together are
 // stored in one transaction, yet each must behave exactly as if it had come alone.
 
 let seq: TestApp; // readings logged one request at a time
