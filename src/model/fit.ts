@@ -259,31 +259,31 @@ const MEANS: Record<InactivationModelName, { k: number; names: string[]; mean: (
       let k2 = 0;
       let sh = 0;
       return (th, i, g) => {
-      const x = p.xs[i];
-      const t = p.ts[i];
-      if (th[4] !== t4) {
-        t4 = th[4];
-        sh = 1 / (1 + Math.exp(-t4));
-      }
-      if (x !== lastX || th[0] !== t0 || th[1] !== t1 || th[2] !== t2 || th[3] !== t3) {
-        lastX = x;
-        t0 = th[0];
-        t1 = th[1];
-        t2 = th[2];
-        t3 = th[3];
-        k1 = Math.exp(t0 - t1 * x);
-        k2 = Math.exp(t2 - t3 * x);
-      }
-      const k1t = k1 * t;
-      const k2t = k2 * t;
-      const e1 = Math.exp(-k1t);
-      const e2 = Math.exp(-k2t);
-      g[0] = -(1 - sh) * e1 * k1t;
-      g[1] = (1 - sh) * e1 * k1t * x;
-      g[2] = -sh * e2 * k2t;
-      g[3] = sh * e2 * k2t * x;
-      g[4] = (e2 - e1) * sh * (1 - sh);
-      return (1 - sh) * e1 + sh * e2;
+        const x = p.xs[i];
+        const t = p.ts[i];
+        if (th[4] !== t4) {
+          t4 = th[4];
+          sh = 1 / (1 + Math.exp(-t4));
+        }
+        if (x !== lastX || th[0] !== t0 || th[1] !== t1 || th[2] !== t2 || th[3] !== t3) {
+          lastX = x;
+          t0 = th[0];
+          t1 = th[1];
+          t2 = th[2];
+          t3 = th[3];
+          k1 = Math.exp(t0 - t1 * x);
+          k2 = Math.exp(t2 - t3 * x);
+        }
+        const k1t = k1 * t;
+        const k2t = k2 * t;
+        const e1 = Math.exp(-k1t);
+        const e2 = Math.exp(-k2t);
+        g[0] = -(1 - sh) * e1 * k1t;
+        g[1] = (1 - sh) * e1 * k1t * x;
+        g[2] = -sh * e2 * k2t;
+        g[3] = sh * e2 * k2t * x;
+        g[4] = (e2 - e1) * sh * (1 - sh);
+        return (1 - sh) * e1 + sh * e2;
       };
     },
   },
