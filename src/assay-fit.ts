@@ -8,12 +8,10 @@ export type AssayFitResult = { fit: AssayFit; problem: null } | { fit: null; pro
 
 /**
  * The fit collapses replicates (same temperature and time) into weighted rows, so a file's size is its distinct
- * (temperature, time) rows, not its points: 100,000 points on 24 rows fit all three models in about 0.3 s. Files
- * with more distinct rows than this are fitted first order only: 100,000 distinct rows took 4.4 s of CPU for the
- * three models (measured on the 2-core build machine under load), first order alone a fraction of that.
+ * (temperature, time) rows, not its points. Every file gets all three models: an upload holds at most 100,000 data
+ * rows, which is the fit's own limit of distinct rows (MAX_FIT_ROWS; 100,000 distinct rows took about 1.7 s of CPU
+ * for the three models on the 2-core build machine under load).
  */
-export const EXTENDED_FIT_MAX_ROWS = 20_000;
-
 /** Distinct (temperature, time) rows of an assay: what the fit's cost grows with. */
 export function distinctRows(points: readonly InactivationPoint[]): number {
   return new Set(points.map((p) => `${p.c}|${p.h}`)).size;
@@ -22,7 +20,7 @@ export function distinctRows(points: readonly InactivationPoint[]): number {
 /** The engine's one-step fit of residual activity (fractions) at several temperatures, or why it cannot fit. */
 export function fitAssay(tRefC: number, points: readonly InactivationPoint[]): AssayFitResult {
   try {
-    const f = fitInactivation(tRefC, [...points], { extendedModels: distinctRows(points) <= EXTENDED_FIT_MAX_ROWS });
+    const f = fitInactivation(tRefC, [...points]);
     const fit: AssayFit = {
       tRefC: f.tRefC,
       kdRefPerH: f.kdRefPerH,

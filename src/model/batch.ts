@@ -22,6 +22,7 @@ const softplusFast = softplus;
 const slopeBound = slopeBoundK;
 const K0 = KELVIN_OFFSET;
 const GAS = R;
+const CAP = LN_RATE_CAP;
 
 /**
  * Mutable integration state: work x (g/L); activity a of the labile fraction and b of the stable fraction,
@@ -45,6 +46,17 @@ const RULE_6 = quadRule(6);
 const LV = new Float64Array(8);
 const KK = new Float64Array(8);
 const KK2 = new Float64Array(8);
+
+/**
+ * e^x; for |x| <= 1/32 by its Taylor polynomial to x^8 (the remainder is below 1e-19 of the value, so the result is
+ * e^x to rounding), cheaper than Math.exp.
+ */
+function expNear(x: number): number {
+  if (!(x >= -0.03125 && x <= 0.03125)) return Math.exp(x);
+  const x2 = x * x;
+  const x4 = x2 * x2;
+  return 1 + x + x2 * (0.5 + x * (1 / 6)) + x4 * (1 / 24 + x * (1 / 120) + x2 * (1 / 720 + x * (1 / 5040)) + x4 * (1 / 40320));
+}
 
 /** (1 - e^(-k t))/k in h for k in 1/h: the work per unit rate and activity over t hours at constant k. */
 function decayIntegral(k: number, t: number): number {
@@ -71,6 +83,78 @@ export function advanceConstant(r: Rates, invT: number, dur: number, st: WorkSta
   st.kint += kd;
 }
 
+/**
+ * The common ramp of a log (one fraction, pure Arrhenius, rates changing little between readings) as one piece
+ * of 3 or 4 nodes: the same rules and arithmetic as advanceRamp's loop, without its pass to bound kd at the
+ * piece's start. Any kd in the piece is within e^(slopeLn dur) <= e^DELTA of kd at the first node, which then
+ * bounds the decay as kd at the start does in the loop. False (state untouched) when the piece needs the loop.
+ */
+function rampInOnePiece(r: Rates, t0: number, dT: number, dur: number, slopeLn: number, st: WorkState): boolean {
+  const lnVRef = r.lnVRef;
+  const eaR = r.eaR;
+  const lnKdRef = r.lnKdRef;
+  const edR = r.edR;
+  const invTRef = r.invTRef;
+  const slopeVar = slopeLn * dur;
+  let rule = slopeVar <= 0.02 ? RULE_3 : RULE_4;
+  let n = rule.n;
+  let s = rule.s;
+  let k0 = 0;
+  for (let pass = 0; pass < 2; pass++) {
+    for (let j = 0; j < n; j++) {
+      const invT = 1 / (t0 + dT * s[j]);
+      const dInv = invT - invTRef;
+      let lnV = lnVRef - eaR * dInv;
+      if (lnV > CAP) lnV = CAP;
+      let lnK = lnKdRef - edR * dInv;
+      if (lnK > CAP) lnK = CAP;
+      LV[j] = lnV;
+      KK[j] = lnK;
+    }
+    k0 = Math.exp(KK[0]);
+    const variation = Math.max(slopeLn, k0 * E_DELTA) * dur;
+    if (variation > 0.1) return false;
+    const fit = variation <= 0.02 ? RULE_3 : RULE_4;
+    if (fit === rule) break;
+    if (pass === 1) return false;
+    rule = fit;
+    n = rule.n;
+    s = rule.s;
+  }
+  const w = rule.w;
+  const q = rule.q;
+  // Within a piece ln kd and the exponents of the work's integrand change by at most its variation (<= 0.1):
+  // node values from the first node's exponential times expNear of the difference (exact to rounding).
+  const lnK0 = KK[0];
+  KK[0] = k0;
+  let kend = w[0] * k0;
+  for (let j = 1; j < n; j++) {
+    const kj = k0 * expNear(KK[j] - lnK0);
+    KK[j] = kj;
+    kend += w[j] * kj;
+  }
+  kend *= dur;
+  let sum = 0;
+  let e0 = 0;
+  let v0 = 0;
+  for (let i = 0; i < n; i++) {
+    let ki = 0;
+    const row = i * n;
+    for (let j = 0; j < n; j++) ki += q[row + j] * KK[j];
+    const e = LV[i] - dur * ki;
+    if (i === 0) {
+      e0 = e;
+      v0 = Math.exp(e);
+      sum += w[0] * v0;
+    } else sum += w[i] * (v0 * expNear(e - e0));
+  }
+  st.x += dur * (st.a * sum);
+  st.a *= expNear(-kend);
+  if (st.a < 1e-300) st.a = 0;
+  st.kint += kend;
+  return true;
+}
+
 /** Advance through a linear ramp c0 -> c1 (degC) over dur hours by Gauss-Legendre with spectral inner integrals. */
 export function advanceRamp(r: Rates, c0: number, c1: number, dur: number, st: WorkState): void {
   if (!(dur > 0)) return;
@@ -82,6 +166,7 @@ export function advanceRamp(r: Rates, c0: number, c1: number, dur: number, st: W
   const dT = c1 - c0;
   const tMin = Math.min(c0, c1) + K0;
   const slopeLn = (slopeBound(r) * Math.abs(dT)) / (tMin * tMin * dur);
+  if (st.b === 0 && st.a > 0 && !r.hasEq && slopeLn * dur <= 0.1 && rampInOnePiece(r, t0, dT, dur, slopeLn, st)) return;
   let two = st.b > 0;
   let tau = 0;
   while (tau < dur) {

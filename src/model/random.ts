@@ -110,12 +110,62 @@ function selectInPlace(a: Float64Array, k: number, lo: number, hi: number): void
   }
 }
 
-/** The k-th smallest (0-based) of values; reorders `scratch`. */
-export function kthSmallest(values: ArrayLike<number>, k: number, scratch: Float64Array): number {
+const SAMPLE = 256;
+const sample = new Float64Array(SAMPLE);
+
+/**
+ * The k-th smallest (0-based) of values and, when `pair`, the (k+1)-th too (or the k-th again at the end), exact.
+ * Large arrays (Floyd & Rivest's idea, CACM 18, 1975, cited from memory): a strided sample of 256 values brackets
+ * the rank with a margin of about three sampling sd; one pass counts the values below the bracket and gathers
+ * those inside into `scratch`, and only they are selected. Whenever the rank falls outside the bracket (an
+ * unlucky sample, NaN) the whole array is selected instead, so the answer is the same order statistic either way.
+ */
+export function selectRank(values: ArrayLike<number>, k: number, pair: boolean, scratch: Float64Array): [number, number] {
   const n = values.length;
+  if (n >= 4 * SAMPLE) {
+    for (let j = 0; j < SAMPLE; j++) sample[j] = values[Math.floor((j * n) / SAMPLE)];
+    sample.sort();
+    const pos = ((k + 0.5) / n) * SAMPLE;
+    const g = 3 * Math.sqrt(SAMPLE * (pos / SAMPLE) * (1 - pos / SAMPLE)) + 3;
+    const jLo = Math.floor(pos - g);
+    const jHi = Math.ceil(pos + g);
+    const lo = jLo < 0 ? -Infinity : sample[jLo];
+    const hi = jHi >= SAMPLE ? Infinity : sample[jHi];
+    let below = 0;
+    let above = 0;
+    let m = 0;
+    for (let i = 0; i < n; i++) {
+      const v = values[i];
+      if (v < lo) below++;
+      else if (v > hi) above++;
+      else if (v <= hi) scratch[m++] = v;
+    }
+    const kk = k - below;
+    if (below + above + m === n && kk >= 0 && kk < m && (!pair || kk + 1 < m || k + 1 >= n)) {
+      selectInPlace(scratch, kk, 0, m - 1);
+      const first = scratch[kk];
+      let second = first;
+      if (pair && k + 1 < n) {
+        second = Infinity;
+        for (let j = kk + 1; j < m; j++) if (scratch[j] < second) second = scratch[j];
+      }
+      return [first, second];
+    }
+  }
   for (let i = 0; i < n; i++) scratch[i] = values[i];
   selectInPlace(scratch, k, 0, n - 1);
-  return scratch[k];
+  const first = scratch[k];
+  let second = first;
+  if (pair && k + 1 < n) {
+    second = Infinity;
+    for (let j = k + 1; j < n; j++) if (scratch[j] < second) second = scratch[j];
+  }
+  return [first, second];
+}
+
+/** The k-th smallest (0-based) of values; reorders `scratch`. */
+export function kthSmallest(values: ArrayLike<number>, k: number, scratch: Float64Array): number {
+  return selectRank(values, k, false, scratch)[0];
 }
 
 /**
@@ -142,7 +192,7 @@ function interpolatedAt(a: Float64Array, k: number, lo: number, end: number, h: 
   return first + (h - i) * (second - first);
 }
 
-/** Type-7 quantiles of map(values) for ascending ps (0..1), by selection; map must be increasing; reorders `scratch`. */
+/** Type-7 quantiles of map(values) for ascending ps (0..1), by selection (selectRank); map must be increasing; reorders `scratch`. */
 export function quantilesBySelection(
   values: ArrayLike<number>,
   ps: number[],
@@ -150,13 +200,12 @@ export function quantilesBySelection(
   map: (x: number) => number = (x) => x,
 ): number[] {
   const n = values.length;
-  for (let i = 0; i < n; i++) scratch[i] = values[i];
-  const out: number[] = [];
-  let lo = 0;
-  for (const p of ps) {
+  return ps.map((p) => {
     const h = (n - 1) * p;
-    out.push(interpolatedAt(scratch, Math.floor(h), lo, n, h, n, map));
-    lo = Math.floor(h);
-  }
-  return out;
+    const i = Math.floor(h);
+    const [a, b] = selectRank(values, i, i < n - 1 && h > i, scratch);
+    const first = map(a);
+    const second = i < n - 1 && h > i ? map(b) : first;
+    return first + (h - i) * (second - first);
+  });
 }

@@ -4,7 +4,7 @@ import { ModelCancelledError, ModelInputError } from './errors';
 import { compileRates, LN_RATE_CAP, type Rates } from './kinetics';
 import { productFromWork } from './batch';
 import { isothermalOptimumU, lnWorkIsothermal, optimalSetpointC, workIsothermal } from './optimise';
-import { cholesky, createRng, kthSmallest, quantileFromBand, quantilesBySelection, type Rng } from './random';
+import { cholesky, createRng, kthSmallest, quantileFromBand, quantilesBySelection, selectRank, type Rng } from './random';
 import type { EnzymeParams, Substrate } from './types';
 
 // Local bindings of hot imports: CommonJS transforms (tsx, esbuild) route every call to an imported
@@ -71,6 +71,8 @@ interface Draws {
   edR: Float64Array;
   eaR: Float64Array;
   lnDose: Float64Array;
+  /** ln Vmax at tRefC of each draw: the base's plus its ln dose. */
+  lnV0: Float64Array;
   bias: Float64Array;
   optimum: Float64Array;
 }
@@ -140,6 +142,7 @@ function drawRange(sp: Sampler, start: number, end: number): void {
     d.eaR[i] = (ea * 1000) / R;
     d.bias[i] = sp.biasSd > 0 ? sp.biasSd * rng.normal() : 0;
     d.lnDose[i] = sp.doseSd > 0 ? sp.doseSd * rng.normal() - 0.5 * sp.doseSd * sp.doseSd : 0;
+    d.lnV0[i] = base.lnVRef + d.lnDose[i];
     let opt: number;
     if (base.hasEq || base.share > 0) {
       setRates(base, d, i, work);
@@ -163,40 +166,94 @@ function drawRange(sp: Sampler, start: number, end: number): void {
   }
 }
 
-// Work of draw i at setpoint c (degC, before its sensor bias): the same arithmetic as workIsothermal on the draw's
-// rates, written out for pure Arrhenius kinetics so the loops over draws neither copy rates nor call through.
-function drawWork(sp: Sampler, i: number, c: number): number {
-  const { d, base, batchH } = sp;
-  if (sp.general) {
-    setRates(base, d, i, sp.work);
-    return workFast(sp.work, c + d.bias[i], batchH);
-  }
-  const dInv = 1 / (c + d.bias[i] + K0) - base.invTRef;
-  let lnK = d.lnKd[i] - d.edR[i] * dInv;
+/**
+ * Work (g/L) at setpoint c (degC) of a draw of pure Arrhenius kinetics: ln Vmax and ln kd at tRefC, Ea/R and Ed/R
+ * (K), sensor bias (degC). The same arithmetic as workIsothermal on the draw's rates, written out so the loops over
+ * draws neither copy rates nor call through.
+ */
+function arrheniusWork(lnV0: number, lnKd: number, edR: number, eaR: number, bias: number, c: number, invTRef: number, batchH: number): number {
+  const dInv = 1 / (c + bias + K0) - invTRef;
+  let lnK = lnKd - edR * dInv;
   if (lnK > CAP) lnK = CAP;
-  let lnV = base.lnVRef + d.lnDose[i] - d.eaR[i] * dInv;
+  let lnV = lnV0 - eaR * dInv;
   if (lnV > CAP) lnV = CAP;
   const k = Math.exp(lnK);
   const kt = k * batchH;
   return Math.exp(lnV) * (kt > 1e-300 ? -Math.expm1(-kt) / k : batchH);
 }
 
-function workRange(sp: Sampler, cands: number[], out: Float64Array[], start: number, end: number): void {
-  const m = cands.length;
-  for (let i = start; i < end; i++) for (let j = 0; j < m; j++) out[j][i] = drawWork(sp, i, cands[j]);
+// Work of draw i at setpoint c (degC, before its sensor bias).
+function drawWork(sp: Sampler, i: number, c: number): number {
+  const d = sp.d;
+  if (sp.general) {
+    setRates(sp.base, d, i, sp.work);
+    return workFast(sp.work, c + d.bias[i], sp.batchH);
+  }
+  return arrheniusWork(d.lnV0[i], d.lnKd[i], d.edR[i], d.eaR[i], d.bias[i], c, sp.base.invTRef, sp.batchH);
 }
 
-function workColumn(sp: Sampler, c: number, col: Float64Array): void {
-  for (let i = 0; i < sp.d.n; i++) col[i] = drawWork(sp, i, c);
+/** Work of draws start..end-1 at setpoint c into col: one loop over the typed arrays for pure Arrhenius kinetics. */
+function workColumn(sp: Sampler, c: number, col: Float64Array, start = 0, end = sp.d.n): void {
+  if (sp.general) {
+    for (let i = start; i < end; i++) col[i] = drawWork(sp, i, c);
+    return;
+  }
+  const { lnV0, lnKd, edR, eaR, bias } = sp.d;
+  const invTRef = sp.base.invTRef;
+  const batchH = sp.batchH;
+  for (let i = start; i < end; i++) col[i] = arrheniusWork(lnV0[i], lnKd[i], edR[i], eaR[i], bias[i], c, invTRef, batchH);
 }
 
 /**
- * The p-quantile of map(w_i(c)) over n draws at any c in [a, b], evaluating only the draws that can decide it. Each
- * w_i must be unimodal on [a, b] with its maximum at optimum[i] (or outside the bracket): then w_i(c) lies between
- * min(w_i(a), w_i(b)) and max(w_i(a), w_i(b)), or w_i(optimum[i]) when that lies inside. A draw whose upper bound
- * is below the lower bound of the quantile's order statistic lies below it at every c; one whose lower bound is
- * above the upper bound of the next order statistic lies above it. Only the others (the band) are evaluated; the
- * quantile among them, counting those below, is the same number as over all draws (quantilesBySelection).
+ * The p-quantile of map(w_i(c)) over n draws, evaluating only the draws that can decide it, from bounds on each
+ * draw's w_i(c) given in any increasing transform of w (the same for all): lower[i] <= w_i(c) <= upper[i] there,
+ * or upper[i] - width when `lower` is a number (a width the same for every draw). A draw whose upper bound is below
+ * the lower bound of the quantile's order statistic lies below it; one whose lower bound is above the upper bound of
+ * the next order statistic lies above it. Only the others (the band) are evaluated; the quantile among them,
+ * counting those below, is the same number as over all draws (quantilesBySelection).
+ */
+export function bandQuantile(
+  n: number,
+  p: number,
+  lower: Float64Array | number,
+  upper: Float64Array,
+  work: (i: number, c: number) => number,
+  map: (x: number) => number,
+  scratch = new Float64Array(n),
+): { at: (c: number) => number; bandSize: number } {
+  const i0 = Math.floor((n - 1) * p);
+  const i1 = Math.min(n - 1, i0 + 1);
+  let lowQ: number;
+  let highQ: number;
+  if (typeof lower === 'number') {
+    const [a, b] = selectRank(upper, i0, true, scratch);
+    lowQ = a - lower;
+    highQ = i1 > i0 ? b : a;
+  } else {
+    lowQ = kthSmallest(lower, i0, scratch);
+    highQ = kthSmallest(upper, i1, scratch);
+  }
+  const band: number[] = [];
+  let nBelow = 0;
+  for (let i = 0; i < n; i++) {
+    const l = typeof lower === 'number' ? upper[i] - lower : lower[i];
+    if (upper[i] < lowQ) nBelow++;
+    else if (!(l > highQ)) band.push(i);
+  }
+  const idx = Int32Array.from(band);
+  const vals = new Float64Array(idx.length);
+  return {
+    at: (c: number) => {
+      for (let j = 0; j < idx.length; j++) vals[j] = work(idx[j], c);
+      return quantileFromBand(vals, idx.length, nBelow, n, p, map);
+    },
+    bandSize: idx.length,
+  };
+}
+
+/**
+ * bandQuantile at any c in [a, b] for w_i unimodal on [a, b] with its maximum at optimum[i] (or outside the
+ * bracket): w_i(c) lies between min(w_i(a), w_i(b)) and max(w_i(a), w_i(b)), or w_i(optimum[i]) when that lies inside.
  */
 export function bracketQuantile(
   n: number,
@@ -221,30 +278,62 @@ export function bracketQuantile(
     lower[i] = l - 1e-12 * Math.abs(l);
     upper[i] = u + 1e-12 * Math.abs(u);
   }
-  const i0 = Math.floor((n - 1) * p);
-  const i1 = Math.min(n - 1, i0 + 1);
-  const scratch = new Float64Array(n);
-  const lowQ = kthSmallest(lower, i0, scratch);
-  const highQ = kthSmallest(upper, i1, scratch);
-  const band: number[] = [];
-  let nBelow = 0;
-  for (let i = 0; i < n; i++) {
-    if (upper[i] < lowQ) nBelow++;
-    else if (!(lower[i] > highQ)) band.push(i);
-  }
-  const idx = Int32Array.from(band);
-  const vals = new Float64Array(idx.length);
-  return {
-    at: (c: number) => {
-      for (let j = 0; j < idx.length; j++) vals[j] = work(idx[j], c);
-      return quantileFromBand(vals, idx.length, nBelow, n, p, map);
-    },
-    bandSize: idx.length,
-  };
+  return bandQuantile(n, p, lower, upper, work, map);
 }
 
-/** Monte Carlo over correlated parameters as a generator: yields progress 0..1 per chunk, returns the result; same seed, same result. */
-export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Generator<number, UncertaintyResult, void> {
+// Bounds on ln work without its exponentials: ln work = ln V + ln t + G(ln(kd t)), G(u) = ln((1 - e^(-e^u))/e^u)
+// falls with u and -1 < G'(u) < 0. G tabulated at u = -40 + m/256 (filled as cells are first used) gives an upper
+// bound G(u_m) for u in [u_m, u_m+1) and a lower bound within 1/256 below it; below u = -40, G lies in (-1e-17, 0],
+// above 40 it is -u to rounding. LN_MARGIN covers the rounding between the bound and the work computed.
+const G_STEPS = 256;
+const G_LO = -40;
+const G_HI = 40;
+const G_TABLE = new Float64Array((G_HI - G_LO) * G_STEPS + 1).fill(NaN);
+const LN_MARGIN = 1e-12;
+/** Width of a bound interval on ln work: [upper - LN_WIDTH, upper]. */
+const LN_WIDTH = 1 / G_STEPS + 2 * LN_MARGIN;
+
+function gAt(m: number): number {
+  let g = G_TABLE[m];
+  if (g !== g) {
+    const u = G_LO + m / G_STEPS;
+    g = G_TABLE[m] = Math.log(-Math.expm1(-Math.exp(u))) - u;
+  }
+  return g;
+}
+
+/** Upper bound on ln(arrheniusWork(...)) (the same inputs, ln t for t), within LN_WIDTH of it. */
+function lnWorkUpper(lnV0: number, lnKd: number, edR: number, eaR: number, bias: number, c: number, invTRef: number, lnT: number): number {
+  const dInv = 1 / (c + bias + K0) - invTRef;
+  let lnK = lnKd - edR * dInv;
+  if (lnK > CAP) lnK = CAP;
+  let lnV = lnV0 - eaR * dInv;
+  if (lnV > CAP) lnV = CAP;
+  const u = lnK + lnT;
+  const g = u < G_LO ? 0 : u >= G_HI ? -u : gAt(Math.floor((u - G_LO) * G_STEPS));
+  return lnV + lnT + g + LN_MARGIN;
+}
+
+/** Upper bounds on ln work of draws start..end-1 at setpoint c into up; false when one is not a number. */
+function lnUpperColumn(sp: Sampler, c: number, up: Float64Array, start = 0, end = sp.d.n): boolean {
+  const { lnV0, lnKd, edR, eaR, bias } = sp.d;
+  const invTRef = sp.base.invTRef;
+  const lnT = Math.log(sp.batchH);
+  let ok = true;
+  for (let i = start; i < end; i++) {
+    const v = lnWorkUpper(lnV0[i], lnKd[i], edR[i], eaR[i], bias[i], c, invTRef, lnT);
+    if (v !== v) ok = false;
+    up[i] = v;
+  }
+  return ok;
+}
+
+/**
+ * Monte Carlo over correlated parameters as a generator: yields progress 0..1 per chunk, returns the result; same
+ * seed, same result. `exhaustive` evaluates every draw at every setpoint (the plain reference the tests hold the
+ * bounded evaluation to: the same result).
+ */
+export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000, exhaustive = false): Generator<number, UncertaintyResult, void> {
   const { enzyme, substrate, batchH, boundsC } = input;
   const [lo, hi] = boundsC;
   const n = Math.max(1, Math.floor(input.draws ?? 10000));
@@ -265,6 +354,7 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
       edR: new Float64Array(n),
       eaR: new Float64Array(n),
       lnDose: new Float64Array(n),
+      lnV0: new Float64Array(n),
       bias: new Float64Array(n),
       optimum: new Float64Array(n),
     },
@@ -313,55 +403,85 @@ export function* monteCarloSteps(input: UncertaintyInput, chunkSize = 1000): Gen
   // Product rises strictly with work and every draw shares the substrate, so quantiles are taken on work
   // and only the order statistics are turned into product.
   const toProduct = (x: number) => productFast(x, substrate);
-  const works: Float64Array[] = cands.map(() => new Float64Array(n));
+  const work = (i: number, c: number) => drawWork(sp, i, c);
+  // Pure Arrhenius: a setpoint's column holds upper bounds on each draw's ln work (lnUpperColumn, no
+  // exponentials), and each percentile evaluates only the draws whose bounds reach its order statistics
+  // (bandQuantile): the same numbers as evaluating every draw. Equilibrium Model and two fractions (or a bound
+  // that is not a number): the column holds every draw's work.
+  let bounded = !sp.general && !exhaustive;
+  const fill = (c: number, col: Float64Array, start = 0, end = n) => {
+    if (bounded && lnUpperColumn(sp, c, col, start, end)) return;
+    bounded = false;
+    workColumn(sp, c, col, start, end);
+  };
+  const pctOf = (c: number, col: Float64Array): Percentiles =>
+    bounded
+      ? {
+          p10: bandQuantile(n, 0.1, LN_WIDTH, col, work, toProduct, scratch).at(c),
+          p50: bandQuantile(n, 0.5, LN_WIDTH, col, work, toProduct, scratch).at(c),
+          p90: bandQuantile(n, 0.9, LN_WIDTH, col, work, toProduct, scratch).at(c),
+        }
+      : percentiles(col, scratch, toProduct);
+  const cols: Float64Array[] = cands.map(() => new Float64Array(n));
   const candChunk = Math.max(1, Math.floor(chunk / 4));
   for (let start = 0; start < n; start += candChunk) {
     const end = Math.min(n, start + candChunk);
-    workRange(sp, cands, works, start, end);
+    for (let j = 0; j < m; j++) fill(cands[j], cols[j], start, end);
     yield phase1 + (0.5 * end) / n;
   }
-  const candidates = cands.map((c, j) => ({ c, ...percentiles(works[j], scratch, toProduct) }));
+  // A bound that was not a number switched to whole columns part way: fill them all again.
+  if (!bounded && !sp.general && !exhaustive) for (let j = 0; j < m; j++) workColumn(sp, cands[j], cols[j]);
+  const candidates = cands.map((c, j) => ({ c, ...pctOf(c, cols[j]) }));
 
   // The P10 curve over the whole bounds: the candidates and both bounds are its scan, then Brent (common
   // random numbers, so the curve is smooth between scan points) on the bracket around the best of them.
-  const col = new Float64Array(n);
-  const p10Of = (w: Float64Array) => quantilesBySelection(w, [0.1], scratch, toProduct)[0];
-  const scan = cands.map((c, j) => ({ c, p10: candidates[j].p10, w: works[j] }));
-  if (cands[0] > lo) {
-    const w = new Float64Array(n);
-    workColumn(sp, lo, w);
-    scan.unshift({ c: lo, p10: p10Of(w), w });
-  }
-  if (cands[m - 1] < hi) {
-    const w = new Float64Array(n);
-    workColumn(sp, hi, w);
-    scan.push({ c: hi, p10: p10Of(w), w });
-  }
+  const scan = cands.map((c, j) => ({ c, pct: candidates[j] as Percentiles, col: cols[j] }));
+  const column = (c: number) => {
+    const col = new Float64Array(n);
+    fill(c, col);
+    return { c, pct: pctOf(c, col), col };
+  };
+  if (cands[0] > lo) scan.unshift(column(lo));
+  if (cands[m - 1] < hi) scan.push(column(hi));
   let bestJ = 0;
-  for (let j = 1; j < scan.length; j++) if (scan[j].p10 > scan[bestJ].p10) bestJ = j;
+  for (let j = 1; j < scan.length; j++) if (scan[j].pct.p10 > scan[bestJ].pct.p10) bestJ = j;
   yield phase1 + 0.55;
-  let bestC = scan[bestJ].c;
-  let bestP = scan[bestJ].p10;
+  let best: { c: number; pct?: Percentiles; p10: number; col: Float64Array } = { ...scan[bestJ], p10: scan[bestJ].pct.p10 };
   const sa = scan[Math.max(0, bestJ - 1)];
   const sb = scan[Math.min(scan.length - 1, bestJ + 1)];
   if (sb.c > sa.c) {
     // Pure Arrhenius: ln work is concave in -1/T (d ln X/d(-1/T) = Ea/R + g(kd t) Ed/R, g = kd t e^(-kd t)/
     // (1 - e^(-kd t)) - 1 falls as kd t rises), so each draw's work is unimodal in c with its maximum at the
-    // draw's own optimum, and only the draws that can hold the P10 are evaluated (exact: bracketQuantile).
-    // Equilibrium Model and two fractions: every draw at every searched setpoint.
-    const p10At = sp.general
-      ? (c: number) => (workColumn(sp, c, col), p10Of(col))
-      : bracketQuantile(n, 0.1, sa.c, sb.c, sa.w, sb.w, d.optimum, (i, c) => drawWork(sp, i, c), toProduct).at;
+    // draw's own optimum: between the bracket's ends it lies above the lower of their lower bounds and below the
+    // higher of their upper bounds, or the upper bound at its optimum when that lies inside. Only the draws that
+    // can hold the P10 are evaluated. Equilibrium Model and two fractions: every draw at every searched setpoint.
+    let p10At: (c: number) => number;
+    if (bounded) {
+      const lower = new Float64Array(n);
+      const upper = new Float64Array(n);
+      const { lnV0, lnKd, edR, eaR, bias, optimum: opt } = d;
+      const lnT = Math.log(batchH);
+      for (let i = 0; i < n; i++) {
+        const ua = sa.col[i];
+        const ub = sb.col[i];
+        lower[i] = Math.min(ua, ub) - LN_WIDTH;
+        let u = Math.max(ua, ub);
+        const o = opt[i];
+        if (o > sa.c && o < sb.c) u = Math.max(u, lnWorkUpper(lnV0[i], lnKd[i], edR[i], eaR[i], bias[i], o, base.invTRef, lnT));
+        upper[i] = u;
+      }
+      p10At = bandQuantile(n, 0.1, lower, upper, work, toProduct, scratch).at;
+    } else {
+      const col = new Float64Array(n);
+      p10At = (c) => (workColumn(sp, c, col), quantilesBySelection(col, [0.1], scratch, toProduct)[0]);
+    }
     let evals = 0;
     const res = brentMax((c) => (evals++ < SEARCH_EVALUATIONS ? p10At(c) : -Infinity), sa.c, sb.c, 0.005);
-    if (res.fx > bestP) {
-      bestP = res.fx;
-      bestC = res.x;
-    }
+    if (res.fx > best.p10) best = { c: res.x, p10: res.fx, col: new Float64Array(0) };
   }
+  const pct = best.pct ?? column(best.c).pct;
   yield phase1 + 0.68;
-  workColumn(sp, bestC, col);
-  const robustRes = { setpointC: bestC, ...percentiles(col, scratch, toProduct) };
+  const robustRes = { setpointC: best.c, ...pct };
   return { draws: n, seed, clampedDraws: sp.clamped, nominal, optimum, candidates, robust: robustRes };
 }
 

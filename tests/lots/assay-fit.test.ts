@@ -3,7 +3,8 @@
 import { describe, expect, it } from 'vitest';
 import { AssayFit } from '../../src/contracts/assays';
 import { arrheniusFactor, createRng, fitInactivation, type InactivationPoint } from '../../src/model';
-import { EXTENDED_FIT_MAX_ROWS, distinctRows, fitAssay } from '../../src/assay-fit';
+import { distinctRows, fitAssay } from '../../src/assay-fit';
+import { MAX_FIT_ROWS } from '../../src/model/fit';
 
 /** Invented assay: 4 temperatures x 6 hold times, `reps` readings each, 4 % multiplicative noise, 10 % lost in heat-up. */
 function replicated(reps: number, seed: number): InactivationPoint[] {
@@ -34,17 +35,25 @@ describe('fitAssay', () => {
     expect(Math.abs(r.fit.edKJPerMol - every.edKJPerMol)).toBeLessThan(1e-6);
     for (let a = 0; a < 2; a++) for (let b = 0; b < 2; b++) expect(Math.abs(r.fit.covariance[a][b] / every.covariance[a][b] - 1)).toBeLessThan(1e-7);
   });
-  it('more distinct rows than EXTENDED_FIT_MAX_ROWS: first order only, stated in the models', () => {
+  it('20,010 distinct rows (above the old first-order-only cut-off) get all three models', () => {
     const rng = createRng(3);
-    const pts: InactivationPoint[] = Array.from({ length: EXTENDED_FIT_MAX_ROWS + 10 }, (_, i) => {
+    const pts: InactivationPoint[] = Array.from({ length: 20_010 }, (_, i) => {
       const c = [50, 55, 60, 65][i % 4];
-      const h = 0.5 + (16 * i) / (EXTENDED_FIT_MAX_ROWS + 10);
+      const h = 0.5 + (16 * i) / 20_010;
       return { c, h, residual: Math.exp(-0.05 * arrheniusFactor(260, c, 55) * h + 0.04 * rng.normal()) };
     });
+    expect(distinctRows(pts)).toBe(20_010);
     const r = fitAssay(55, pts);
     if (!r.fit) throw new Error(r.problem);
-    expect(r.fit.chosen).toBe('first-order');
-    expect(r.fit.models!.map((m) => m.name)).toEqual(['first-order']);
+    expect(r.fit.models!.map((m) => m.name)).toEqual(['first-order', 'first-order-a0', 'two-fraction']);
+    // First-order truth with 4 % noise: kd at 55 degC within a few per cent of 0.05 /h.
+    expect(Math.abs(r.fit.kdRefPerH / 0.05 - 1)).toBeLessThan(0.02);
+  });
+  it('more distinct rows than the fit takes: a named problem, not a silent first-order fit', () => {
+    const pts: InactivationPoint[] = Array.from({ length: MAX_FIT_ROWS + 1 }, (_, i) => ({ c: 50 + (i % 4) * 5, h: 0.5 + i * 1e-4, residual: Math.exp(-0.01 * (0.5 + i * 1e-4) * (1 + (i % 4))) }));
+    const r = fitAssay(55, pts);
+    expect(r.fit).toBeNull();
+    expect(r.problem).toBe(`The data has ${MAX_FIT_ROWS + 1} distinct (temperature, time) rows: at most ${MAX_FIT_ROWS} are fitted`);
   });
   it('a fit stored before the comparison (no chosen, models, lackOfFit) still reads', () => {
     const r = fitAssay(55, replicated(1, 2));
