@@ -2,7 +2,6 @@ import { unwritableReason, writeTx, type Db } from '../../db/client';
 import {
   batchHours,
   batchProgram,
-  batchStatus,
   forecastDeviation,
   isTimeZone,
   plannedAt,
