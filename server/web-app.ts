@@ -1,5 +1,5 @@
 import cookieParser from 'cookie-parser';
-import express, { type Express } from 'express';
+import type { Express } from 'express';
 import expressStaticGzip from 'express-static-gzip';
 import fs from 'node:fs';
 import type { IncomingMessage } from 'node:http';

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
+import { index, integer, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
 import { ROLES } from '../../src/enums';
 
 // Times are ISO-8601 UTC strings: sortable, readable in a dump, and free of SQLite's local-time functions.

@@ -1,4 +1,4 @@
-import { writeTx, type Db } from '../../db/client';
+import { writeTx } from '../../db/client';
 import type { Assay } from '../../src/contracts/assays';
 import type { SessionUser } from '../../src/contracts/session';
 import { notFound } from '../http-error';

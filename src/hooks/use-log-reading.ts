@@ -51,6 +51,8 @@ export function useLogReading(batchId: number) {
   }, [store, batchId, mutate, ofBatch, refusedOfBatch]);
 
   useEffect(() => {
+    // The device's queue is a store outside React: read again when the user or the batch changes.
+    // eslint-disable-next-line react-hooks/set-state-in-effect -- synchronising with that store is what effects are for
     setQueued(ofBatch());
     setRefused(refusedOfBatch());
     void flush();

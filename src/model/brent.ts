@@ -19,7 +19,7 @@ export function brentMax(f: (x: number) => number, a: number, b: number, absTol 
     if (Math.abs(x - m) <= tol2 - 0.5 * (hi - lo)) break;
     let useGolden = true;
     if (Math.abs(e) > tol1) {
-      let r = (x - w) * (fx - fv);
+      const r = (x - w) * (fx - fv);
       let q = (x - v) * (fx - fw);
       let p = (x - v) * q - (x - w) * r;
       q = 2 * (q - r);

@@ -130,7 +130,7 @@ export function profitSetpointC(
   boundsC: [number, number],
   econ: EconomicsParams,
 ): number {
-  const [lo, hi] = boundsC;
+  const [lo] = boundsC;
   const best = optimalSetpointC(enzyme, batchH, boundsC);
   if (!(econ.heatingCostPerDegCHour > 0)) return best;
   const r = compileRates(enzyme);

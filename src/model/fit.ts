@@ -3,7 +3,7 @@ import { ModelInputError } from './errors';
 import { softplus } from './kinetics';
 import { leastSquares, levenbergMarquardt, type LeastSquaresProblem } from './lm';
 import { xOf } from './half-life';
-import { incompleteBeta, studentTQuantile } from './stats';
+import { incompleteBeta } from './stats';
 
 export interface InactivationPoint {
   /** Hold temperature, degC. */

@@ -42,7 +42,7 @@ export function lambertW0(x: number): number {
   const q = 1 + Math.E * x;
   // Series about the branch point; p > 0 on the principal branch.
   const p = Math.sqrt(2 * Math.max(q, 0));
-  let w = x > -0.25 ? x * (1 - x + 1.5 * x * x) : -1 + p - (p * p) / 3 + (11 / 72) * p * p * p;
+  const w = x > -0.25 ? x * (1 - x + 1.5 * x * x) : -1 + p - (p * p) / 3 + (11 / 72) * p * p * p;
   return halley(w, x);
 }
 

@@ -18,7 +18,7 @@ const localInput = async (page: Page, ms: number) => {
   return siteInputValue(new Date(ms), user.siteTimeZone);
 };
 
-const figure = async (page: Page, id: string) => Number((await page.getByTestId(id).textContent())!.replace(/[^0-9.\-]/g, ''));
+const figure = async (page: Page, id: string) => Number((await page.getByTestId(id).textContent())!.replace(/[^0-9.-]/g, ''));
 
 /** Every touch target the operator can reach on the screen is at least 44 px tall. */
 async function smallTargets(page: Page): Promise<string[]> {

@@ -1,5 +1,5 @@
 import fc from 'fast-check';
-import { describe, expect, it } from 'vitest';
+import { describe, it } from 'vitest';
 import { optimizeProfile, optimizeSetpoint, simulate } from '../../src/model';
 
 const params = { seed: 424242, numRuns: 60 };

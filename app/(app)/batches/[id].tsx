@@ -1,5 +1,5 @@
 import { router } from 'expo-router';
-import { useEffect, useMemo, useState } from 'react';
+import { useMemo, useState } from 'react';
 import { Linking, StyleSheet, View } from 'react-native';
 import { CloseBatchCard } from '@/components/batches/close-batch-card';
 import { DeviationList } from '@/components/batches/deviation-list';
@@ -45,7 +45,8 @@ function BatchBody({ id }: { id: number }) {
   const { data, error, isLoading, retry, cachedAt } = useBatch(id, { refreshMs: linkUp ? 5000 : undefined });
   const link = useBatchLink(id, data?.batch.state === 'running');
   const isLinkUp = link.data?.link?.state === 'connected';
-  useEffect(() => setLinkUp(isLinkUp), [isLinkUp]);
+  // Set while rendering, not in an effect: React renders again at once, before anything is drawn with the old value.
+  if (linkUp !== isLinkUp) setLinkUp(isLinkUp);
   const logger = useLogReading(id);
   const role: Role = session?.user.role ?? 'operator';
 

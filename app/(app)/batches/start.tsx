@@ -1,5 +1,5 @@
 import { router } from 'expo-router';
-import { useEffect, useState } from 'react';
+import { useState } from 'react';
 import { Button, Card, Choice, EmptyState, ErrorState, Loader, Screen, Text } from '@/components/ui';
 import { Field } from '@/components/ui/field';
 import { can } from '@/contracts/permissions';
@@ -34,12 +34,15 @@ function StartForm() {
   const vessels = useVessels();
   const start = useStartBatch();
 
-  // A recipe brings its own vessel and lot as the first choice.
-  useEffect(() => {
-    if (!detail.data) return;
-    setVesselId(detail.data.recipe.vesselId);
-    setLotId(detail.data.recipe.lotId);
-  }, [detail.data]);
+  // A recipe brings its own vessel and lot as the first choice (set while rendering: no frame shows the old ones).
+  const [recipeShown, setRecipeShown] = useState<typeof detail.data>(undefined);
+  if (detail.data !== recipeShown) {
+    setRecipeShown(detail.data);
+    if (detail.data) {
+      setVesselId(detail.data.recipe.vesselId);
+      setLotId(detail.data.recipe.lotId);
+    }
+  }
 
   if (session && !can(session.user.role, 'batches.start'))
     return <EmptyState title="Not part of your role" message="Supervisors and engineers start batches." />;

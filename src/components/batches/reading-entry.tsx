@@ -41,9 +41,12 @@ export function ReadingEntry({ startedAt, lastC, vessel, logger }: Props) {
   }
 
   // The device's copy of a queued reading is announced by the queue's line below, and gone once it is sent.
-  useEffect(() => {
+  // Set while rendering, not in an effect: no frame shows the stale line.
+  const [sentShown, setSentShown] = useState(logger.sentCount);
+  if (logger.sentCount !== sentShown) {
+    setSentShown(logger.sentCount);
     if (logger.sentCount) setDone((d) => (d?.endsWith('on this device') ? null : d));
-  }, [logger.sentCount]);
+  }
 
   /** `timeText` null: the reading is taken now, to the second (the field shows minutes only). */
   async function submit(valueC: number, timeText: string | null, isConfirmed = false) {

@@ -42,14 +42,34 @@ export function lineChartGeometry(input: LineChartInput): LineChartGeometry {
   const plot = { left: m.left, top: m.top, width: Math.max(1, input.width - m.left - m.right), height: Math.max(1, input.height - m.top - m.bottom) };
   const xs: number[] = [];
   const ys: number[] = [];
-  for (const s of input.series) for (const p of s.points) if (finite(p.x) && finite(p.y)) (xs.push(p.x), ys.push(p.y));
-  for (const b of input.bands ?? []) for (const p of b.points) if (finite(p.lo) && finite(p.hi)) (xs.push(p.x), ys.push(p.lo, p.hi));
-  for (const mk of input.markers ?? []) if (finite(mk.x) && finite(mk.y)) (xs.push(mk.x), ys.push(mk.y));
+  for (const s of input.series)
+    for (const p of s.points)
+      if (finite(p.x) && finite(p.y)) {
+        xs.push(p.x);
+        ys.push(p.y);
+      }
+  for (const b of input.bands ?? [])
+    for (const p of b.points)
+      if (finite(p.lo) && finite(p.hi)) {
+        xs.push(p.x);
+        ys.push(p.lo, p.hi);
+      }
+  for (const mk of input.markers ?? [])
+    if (finite(mk.x) && finite(mk.y)) {
+      xs.push(mk.x);
+      ys.push(mk.y);
+    }
   let [x0, x1] = xs.length ? [Math.min(...xs), Math.max(...xs)] : [0, 1];
   let [y0, y1] = ys.length ? [Math.min(...ys), Math.max(...ys)] : [0, 1];
   if (input.yFromZero) y0 = Math.min(0, y0);
-  if (x0 === x1) (x0 -= 1, x1 += 1);
-  if (y0 === y1) (y0 -= Math.abs(y0) * 0.1 || 1, y1 += Math.abs(y1) * 0.1 || 1);
+  if (x0 === x1) {
+    x0 -= 1;
+    x1 += 1;
+  }
+  if (y0 === y1) {
+    y0 -= Math.abs(y0) * 0.1 || 1;
+    y1 += Math.abs(y1) * 0.1 || 1;
+  }
   const x = scaleLinear().domain([x0, x1]).range([plot.left, plot.left + plot.width]);
   // SVG y grows downwards: the range is inverted so larger values sit higher.
   const y = scaleLinear().domain([y0, y1]).range([plot.top + plot.height, plot.top]).nice(input.yTicks ?? 5);
