@@ -15,13 +15,10 @@ const apiPort = Number(process.env.API_PORT || 8080);
 config.server = config.server || {};
 config.server.enhanceMiddleware = (middleware) => (req, res, next) => {
   if (!req.url || !req.url.startsWith('/api/')) return middleware(req, res, next);
-  const upstream = http.request(
-    { host: '127.0.0.1', port: apiPort, path: req.url, method: req.method, headers: req.headers },
-    (up) => {
-      res.writeHead(up.statusCode || 502, up.headers);
-      up.pipe(res);
-    },
-  );
+  const upstream = http.request({ host: '127.0.0.1', port: apiPort, path: req.url, method: req.method, headers: req.headers }, (up) => {
+    res.writeHead(up.statusCode || 502, up.headers);
+    up.pipe(res);
+  });
   upstream.on('error', () => {
     res.statusCode = 502;
     res.setHeader('content-type', 'application/json');

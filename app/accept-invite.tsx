@@ -47,7 +47,16 @@ function AcceptForm({ token }: { token: string }) {
         hint={`At least ${MIN_PASSWORD_LENGTH} characters`}
         error={accept.error?.fields.password}
       />
-      <Field label="Password again" testID="accept-password-repeat" value={repeat} onChangeText={setRepeat} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} error={mismatch ? 'The two passwords differ' : undefined} />
+      <Field
+        label="Password again"
+        testID="accept-password-repeat"
+        value={repeat}
+        onChangeText={setRepeat}
+        secureTextEntry
+        autoComplete="new-password"
+        onSubmitEditing={submit}
+        error={mismatch ? 'The two passwords differ' : undefined}
+      />
     </AuthCard>
   );
 }

@@ -33,8 +33,26 @@ function ResetForm({ token }: { token: string }) {
       errorTestID="reset-error"
       submit={{ label: 'Set password', testID: 'reset-submit', onPress: submit, isBusy: reset.isBusy }}
     >
-      <Field label="New password" testID="reset-password" value={password} onChangeText={setPassword} secureTextEntry autoComplete="new-password" hint={`At least ${MIN_PASSWORD_LENGTH} characters`} error={reset.error?.fields.password} />
-      <Field label="New password again" testID="reset-password-repeat" value={repeat} onChangeText={setRepeat} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} error={mismatch ? 'The two passwords differ' : undefined} />
+      <Field
+        label="New password"
+        testID="reset-password"
+        value={password}
+        onChangeText={setPassword}
+        secureTextEntry
+        autoComplete="new-password"
+        hint={`At least ${MIN_PASSWORD_LENGTH} characters`}
+        error={reset.error?.fields.password}
+      />
+      <Field
+        label="New password again"
+        testID="reset-password-repeat"
+        value={repeat}
+        onChangeText={setRepeat}
+        secureTextEntry
+        autoComplete="new-password"
+        onSubmitEditing={submit}
+        error={mismatch ? 'The two passwords differ' : undefined}
+      />
     </AuthCard>
   );
 }

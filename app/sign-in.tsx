@@ -37,7 +37,8 @@ export default function SignIn() {
         submit={{ label: 'Sign in', testID: 'sign-in-submit', onPress: submit, isBusy: isSubmitting }}
         footer={
           <Text tone="muted" testID="sign-in-locked-out">
-            Forgotten your password, or told to wait? After a few wrong passwords each try waits a little longer (at most a minute); a browser you signed in with before is not held up. Your site admin can send you a reset link by e-mail.
+            Forgotten your password, or told to wait? After a few wrong passwords each try waits a little longer (at most a minute); a browser you signed in
+            with before is not held up. Your site admin can send you a reset link by e-mail.
           </Text>
         }
       >

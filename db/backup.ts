@@ -39,7 +39,8 @@ export async function backupDatabase(source: string, target: string): Promise<Ba
 /** Replaces the database at `target` with a checked backup. The server must be stopped. */
 export async function restoreDatabase(backup: string, target: string): Promise<BackupCheck> {
   const check = checkDatabase(backup);
-  if (check.integrity !== 'ok' || check.foreignKeyErrors) throw new Error(`refusing to restore: integrity ${check.integrity}, ${check.foreignKeyErrors} foreign-key errors`);
+  if (check.integrity !== 'ok' || check.foreignKeyErrors)
+    throw new Error(`refusing to restore: integrity ${check.integrity}, ${check.foreignKeyErrors} foreign-key errors`);
   for (const suffix of ['-wal', '-shm']) fs.rmSync(target + suffix, { force: true });
   const src = new Database(backup, { readonly: true });
   try {

@@ -126,4 +126,5 @@ export function preparedPer<T, V = void>(build: (db: Db, variant: V) => T): (db:
 export const columnPlaceholders = (columns: readonly string[]) => Object.fromEntries(columns.map((c) => [c, sql.placeholder(c)]));
 
 /** A row as the values bound to those placeholders (a missing value is NULL). */
-export const boundRow = <C extends string>(columns: readonly C[], row: Partial<Record<C, unknown>>) => Object.fromEntries(columns.map((c) => [c, row[c] ?? null]));
+export const boundRow = <C extends string>(columns: readonly C[], row: Partial<Record<C, unknown>>) =>
+  Object.fromEntries(columns.map((c) => [c, row[c] ?? null]));

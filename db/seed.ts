@@ -93,25 +93,182 @@ type SeedLot = {
 };
 
 const LOTS: SeedLot[] = [
-  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2605-11', receivedOn: '2026-05-14', expiresOn: '2027-05-13', quantityKg: 800, certActivity: 452, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 26 }, status: 'accepted', reason: 'Half-life 26 h at 60 °C meets the 20 h specification', qc: { halfLifeH: 27, edKJPerMol: 300, seed: 11 } },
-  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2608-03', receivedOn: '2026-08-21', expiresOn: '2027-08-20', quantityKg: 800, certActivity: 447, certStability: { form: 'halfLife', tempC: 60, halfLifeH: 24 }, status: 'accepted', reason: 'Half-life 24 h at 60 °C meets the 20 h specification', qc: { halfLifeH: 25, edKJPerMol: 290, seed: 12, asPercent: true } },
-  { enzyme: 'Amylo GA-17', lotCode: 'CGA-2611-07', receivedOn: '2026-11-18', expiresOn: '2027-11-17', quantityKg: 1000, certActivity: 431, certStability: { form: 'residual', tempC: 60, minutes: 480, residualFraction: 0.78 }, qc: { halfLifeH: 23, edKJPerMol: 305, seed: 13 } },
-  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4471', receivedOn: '2026-07-02', expiresOn: '2027-07-01', quantityKg: 250, certActivity: 1310, certStability: { form: 'dValue', tempC: 85, dMinutes: 660, zC: 9.5 }, status: 'accepted', reason: 'D-value 11 h at 85 °C gives a 3.3 h half-life, above 3 h', qc: { halfLifeH: 3.6, edKJPerMol: 260, seed: 21 } },
-  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4519', receivedOn: '2026-10-09', expiresOn: '2027-10-08', quantityKg: 250, certActivity: 1275, certStability: { form: 'dValue', tempC: 85, dMinutes: 540, zC: 9.5 }, qc: { halfLifeH: 2.3, edKJPerMol: 255, seed: 22, asPercent: true } },
-  { enzyme: 'Thermo AA-90', lotCode: 'TAA-4522', receivedOn: '2026-11-24', expiresOn: '2027-11-23', quantityKg: 250, certActivity: 1290, certStability: { form: 'halfLife', tempC: 85, halfLifeH: 3.4 }, qc: { halfLifeH: 3.9, edKJPerMol: 265, seed: 23 } },
-  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-0926', receivedOn: '2026-09-26', expiresOn: '2027-03-25', quantityKg: 120, certActivity: 5400, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 60 }, status: 'accepted', reason: 'Half-life 60 h at 40 °C meets the 48 h specification' },
-  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1107', receivedOn: '2026-11-07', expiresOn: '2027-05-06', quantityKg: 120, certActivity: 5150, certStability: { form: 'residual', tempC: 40, minutes: 1440, residualFraction: 0.69 }, status: 'rejected', reason: 'QC half-life 38 h at 40 °C, below the 48 h specification', qc: { halfLifeH: 38, edKJPerMol: 235, seed: 32 } },
-  { enzyme: 'Lacta LX-5', lotCode: 'OF-LX5-1128', receivedOn: '2026-11-28', expiresOn: '2027-05-27', quantityKg: 120, certActivity: 5320, certStability: { form: 'halfLife', tempC: 40, halfLifeH: 55 } },
-  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2609-01', receivedOn: '2026-09-03', expiresOn: '2027-09-02', quantityKg: 60, certActivity: 268, certStability: { form: 'halfLife', tempC: 45, halfLifeH: 40 }, status: 'accepted', reason: 'Half-life 40 h at 45 °C meets the 30 h specification', qc: { halfLifeH: 43, edKJPerMol: 210, seed: 41 } },
-  { enzyme: 'Lipo LP-3', lotCode: 'CLP-2611-02', receivedOn: '2026-11-12', expiresOn: '2027-11-11', quantityKg: 60, certActivity: 259, certStability: { form: 'residual', tempC: 45, minutes: 720, residualFraction: 0.82 }, qc: { halfLifeH: 34, edKJPerMol: 215, seed: 42, asPercent: true } },
+  {
+    enzyme: 'Amylo GA-17',
+    lotCode: 'CGA-2605-11',
+    receivedOn: '2026-05-14',
+    expiresOn: '2027-05-13',
+    quantityKg: 800,
+    certActivity: 452,
+    certStability: { form: 'halfLife', tempC: 60, halfLifeH: 26 },
+    status: 'accepted',
+    reason: 'Half-life 26 h at 60 °C meets the 20 h specification',
+    qc: { halfLifeH: 27, edKJPerMol: 300, seed: 11 },
+  },
+  {
+    enzyme: 'Amylo GA-17',
+    lotCode: 'CGA-2608-03',
+    receivedOn: '2026-08-21',
+    expiresOn: '2027-08-20',
+    quantityKg: 800,
+    certActivity: 447,
+    certStability: { form: 'halfLife', tempC: 60, halfLifeH: 24 },
+    status: 'accepted',
+    reason: 'Half-life 24 h at 60 °C meets the 20 h specification',
+    qc: { halfLifeH: 25, edKJPerMol: 290, seed: 12, asPercent: true },
+  },
+  {
+    enzyme: 'Amylo GA-17',
+    lotCode: 'CGA-2611-07',
+    receivedOn: '2026-11-18',
+    expiresOn: '2027-11-17',
+    quantityKg: 1000,
+    certActivity: 431,
+    certStability: { form: 'residual', tempC: 60, minutes: 480, residualFraction: 0.78 },
+    qc: { halfLifeH: 23, edKJPerMol: 305, seed: 13 },
+  },
+  {
+    enzyme: 'Thermo AA-90',
+    lotCode: 'TAA-4471',
+    receivedOn: '2026-07-02',
+    expiresOn: '2027-07-01',
+    quantityKg: 250,
+    certActivity: 1310,
+    certStability: { form: 'dValue', tempC: 85, dMinutes: 660, zC: 9.5 },
+    status: 'accepted',
+    reason: 'D-value 11 h at 85 °C gives a 3.3 h half-life, above 3 h',
+    qc: { halfLifeH: 3.6, edKJPerMol: 260, seed: 21 },
+  },
+  {
+    enzyme: 'Thermo AA-90',
+    lotCode: 'TAA-4519',
+    receivedOn: '2026-10-09',
+    expiresOn: '2027-10-08',
+    quantityKg: 250,
+    certActivity: 1275,
+    certStability: { form: 'dValue', tempC: 85, dMinutes: 540, zC: 9.5 },
+    qc: { halfLifeH: 2.3, edKJPerMol: 255, seed: 22, asPercent: true },
+  },
+  {
+    enzyme: 'Thermo AA-90',
+    lotCode: 'TAA-4522',
+    receivedOn: '2026-11-24',
+    expiresOn: '2027-11-23',
+    quantityKg: 250,
+    certActivity: 1290,
+    certStability: { form: 'halfLife', tempC: 85, halfLifeH: 3.4 },
+    qc: { halfLifeH: 3.9, edKJPerMol: 265, seed: 23 },
+  },
+  {
+    enzyme: 'Lacta LX-5',
+    lotCode: 'OF-LX5-0926',
+    receivedOn: '2026-09-26',
+    expiresOn: '2027-03-25',
+    quantityKg: 120,
+    certActivity: 5400,
+    certStability: { form: 'halfLife', tempC: 40, halfLifeH: 60 },
+    status: 'accepted',
+    reason: 'Half-life 60 h at 40 °C meets the 48 h specification',
+  },
+  {
+    enzyme: 'Lacta LX-5',
+    lotCode: 'OF-LX5-1107',
+    receivedOn: '2026-11-07',
+    expiresOn: '2027-05-06',
+    quantityKg: 120,
+    certActivity: 5150,
+    certStability: { form: 'residual', tempC: 40, minutes: 1440, residualFraction: 0.69 },
+    status: 'rejected',
+    reason: 'QC half-life 38 h at 40 °C, below the 48 h specification',
+    qc: { halfLifeH: 38, edKJPerMol: 235, seed: 32 },
+  },
+  {
+    enzyme: 'Lacta LX-5',
+    lotCode: 'OF-LX5-1128',
+    receivedOn: '2026-11-28',
+    expiresOn: '2027-05-27',
+    quantityKg: 120,
+    certActivity: 5320,
+    certStability: { form: 'halfLife', tempC: 40, halfLifeH: 55 },
+  },
+  {
+    enzyme: 'Lipo LP-3',
+    lotCode: 'CLP-2609-01',
+    receivedOn: '2026-09-03',
+    expiresOn: '2027-09-02',
+    quantityKg: 60,
+    certActivity: 268,
+    certStability: { form: 'halfLife', tempC: 45, halfLifeH: 40 },
+    status: 'accepted',
+    reason: 'Half-life 40 h at 45 °C meets the 30 h specification',
+    qc: { halfLifeH: 43, edKJPerMol: 210, seed: 41 },
+  },
+  {
+    enzyme: 'Lipo LP-3',
+    lotCode: 'CLP-2611-02',
+    receivedOn: '2026-11-12',
+    expiresOn: '2027-11-11',
+    quantityKg: 60,
+    certActivity: 259,
+    certStability: { form: 'residual', tempC: 45, minutes: 720, residualFraction: 0.82 },
+    qc: { halfLifeH: 34, edKJPerMol: 215, seed: 42, asPercent: true },
+  },
 ];
 
 // Invented recipes on the demo vessels, each with an accepted lot. Ed is an invented demo value inside the
 // 150-700 kJ/mol range typical of enzyme inactivation (common practice, no source).
 const RECIPES = [
-  { name: 'Glucose syrup DE 95', lotCode: 'CGA-2605-11', vessel: 'R-101 Saccharifier', s0GPerL: 300, kmGPerL: 2, doseGPerL: 0.6, vmaxRefGPerLH: 7.5, edKJPerMol: 300, batchH: 48, turnaroundH: 6, fillC: 45, productPricePerKg: 0.45, enzymePricePerKg: 18, heatingCostPerDegCHour: 0.8, currentSetpointC: 59 },
-  { name: 'Lactose-free milk base', lotCode: 'OF-LX5-0926', vessel: 'R-204 Lactose tank', s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, vmaxRefGPerLH: 2, edKJPerMol: 250, batchH: 20, turnaroundH: 3, fillC: 6, productPricePerKg: 2.5, enzymePricePerKg: 20, heatingCostPerDegCHour: 0.05, currentSetpointC: 37 },
-  { name: 'Maltodextrin DE 12 liquefaction', lotCode: 'TAA-4471', vessel: 'R-310 Liquefier', s0GPerL: 320, kmGPerL: 5, doseGPerL: 0.3, vmaxRefGPerLH: 120, edKJPerMol: 350, batchH: 3, turnaroundH: 2, fillC: 60, productPricePerKg: 0.3, enzymePricePerKg: 25, heatingCostPerDegCHour: 0.6, currentSetpointC: 90 },
+  {
+    name: 'Glucose syrup DE 95',
+    lotCode: 'CGA-2605-11',
+    vessel: 'R-101 Saccharifier',
+    s0GPerL: 300,
+    kmGPerL: 2,
+    doseGPerL: 0.6,
+    vmaxRefGPerLH: 7.5,
+    edKJPerMol: 300,
+    batchH: 48,
+    turnaroundH: 6,
+    fillC: 45,
+    productPricePerKg: 0.45,
+    enzymePricePerKg: 18,
+    heatingCostPerDegCHour: 0.8,
+    currentSetpointC: 59,
+  },
+  {
+    name: 'Lactose-free milk base',
+    lotCode: 'OF-LX5-0926',
+    vessel: 'R-204 Lactose tank',
+    s0GPerL: 48,
+    kmGPerL: 10,
+    doseGPerL: 0.4,
+    vmaxRefGPerLH: 2,
+    edKJPerMol: 250,
+    batchH: 20,
+    turnaroundH: 3,
+    fillC: 6,
+    productPricePerKg: 2.5,
+    enzymePricePerKg: 20,
+    heatingCostPerDegCHour: 0.05,
+    currentSetpointC: 37,
+  },
+  {
+    name: 'Maltodextrin DE 12 liquefaction',
+    lotCode: 'TAA-4471',
+    vessel: 'R-310 Liquefier',
+    s0GPerL: 320,
+    kmGPerL: 5,
+    doseGPerL: 0.3,
+    vmaxRefGPerLH: 120,
+    edKJPerMol: 350,
+    batchH: 3,
+    turnaroundH: 2,
+    fillC: 60,
+    productPricePerKg: 0.3,
+    enzymePricePerKg: 25,
+    heatingCostPerDegCHour: 0.6,
+    currentSetpointC: 90,
+  },
 ];
 const RECIPES_UPDATED_AT = '2026-11-30T09:00:00.000Z';
 
@@ -136,7 +293,13 @@ export const DEMO_PLANT_TRUTH = { lotCode: 'OF-LX5-0926', halfLifeRefH: 38, edKJ
 const CALIBRATION_SETPOINTS_C = [34, 36, 40, 42, 35, 41, 38, 39];
 for (const [i, setpointC] of CALIBRATION_SETPOINTS_C.entries()) {
   const start = Date.parse('2026-10-27T06:00:00.000Z') + i * 3 * 86_400_000;
-  BATCHES.push({ recipe: 'Lactose-free milk base', startedAt: new Date(start).toISOString(), readUntilH: 20, closedAt: new Date(start + 20.5 * 3_600_000).toISOString(), setpointC });
+  BATCHES.push({
+    recipe: 'Lactose-free milk base',
+    startedAt: new Date(start).toISOString(),
+    readUntilH: 20,
+    closedAt: new Date(start + 20.5 * 3_600_000).toISOString(),
+    setpointC,
+  });
 }
 
 /** Half-hourly readings near the plan with a deterministic wobble of a few tenths of a degree. */
@@ -181,7 +344,13 @@ export function demoAssayCsv(points: { tempC: number; timeH: number; residual: n
 /** The lab result the invented plant truth gives for a batch's logged temperatures, g/L. */
 function plantTruthProduct(program: BatchProgram, logged: { h: number; c: number }[], tRefC: number): number {
   const t = DEMO_PLANT_TRUTH;
-  const enzyme = { ...program.enzyme, tRefC, kdRefPerH: Math.LN2 / t.halfLifeRefH, edKJPerMol: t.edKJPerMol, vmaxRef: (program.enzyme.vmaxRef / (program.evidence?.vmaxScale ?? 1)) * t.vmaxScale };
+  const enzyme = {
+    ...program.enzyme,
+    tRefC,
+    kdRefPerH: Math.LN2 / t.halfLifeRefH,
+    edKJPerMol: t.edKJPerMol,
+    vmaxRef: (program.enzyme.vmaxRef / (program.evidence?.vmaxScale ?? 1)) * t.vmaxScale,
+  };
   return simulate(enzyme, program.substrate, program.batchH, { log: logged }).productGPerL;
 }
 
@@ -191,9 +360,21 @@ function plantTruthProduct(program: BatchProgram, logged: { h: number; c: number
  * proposals (after 4 and 7 batches) stand superseded, as each close proposes anew.
  */
 function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: number, recipe: typeof recipes.$inferSelect): void {
-  const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;
-  const enzyme = tx.select().from(enzymes).where(sql`${enzymes.id} = ${recipe.enzymeId}`).get()!;
-  const assay = tx.select().from(assays).where(sql`${assays.lotId} = ${lot.id}`).get();
+  const lot = tx
+    .select()
+    .from(lots)
+    .where(sql`${lots.id} = ${recipe.lotId}`)
+    .get()!;
+  const enzyme = tx
+    .select()
+    .from(enzymes)
+    .where(sql`${enzymes.id} = ${recipe.enzymeId}`)
+    .get()!;
+  const assay = tx
+    .select()
+    .from(assays)
+    .where(sql`${assays.lotId} = ${lot.id}`)
+    .get();
   const closed = tx
     .select()
     .from(batches)
@@ -206,15 +387,26 @@ function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: numbe
       closedAt: b.closedAt!,
       program: b.program,
       measuredProductGPerL: b.measuredProductGPerL,
-      readings: tx.select({ takenAt: batchReadings.takenAt, c: batchReadings.c }).from(batchReadings).where(sql`${batchReadings.batchId} = ${b.id}`).orderBy(batchReadings.takenAt).all(),
+      readings: tx
+        .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
+        .from(batchReadings)
+        .where(sql`${batchReadings.batchId} = ${b.id}`)
+        .orderBy(batchReadings.takenAt)
+        .all(),
     }));
-  const evidence = { certKdPerH: lot.certKdPerH, certTempC: lot.certTempC, fit: assay?.fit ? { assayId: assay.id, createdAt: assay.createdAt, fit: assay.fit } : null };
+  const evidence = {
+    certKdPerH: lot.certKdPerH,
+    certTempC: lot.certTempC,
+    fit: assay?.fit ? { assayId: assay.id, createdAt: assay.createdAt, fit: assay.fit } : null,
+  };
   for (const n of [4, 7, closed.length]) {
     const used = closed.slice(0, n);
     const proposal = proposeCalibration({ recipe, enzyme, lot: evidence, batches: used, excluded: [] });
     if (!proposal) continue;
     const state = n === closed.length ? 'proposed' : 'superseded';
-    tx.insert(calibrations).values({ siteId, recipeId: recipe.id, lotId: lot.id, state, batchIds: proposal.batchIds, result: proposal.result, createdAt: used.at(-1)!.closedAt }).run();
+    tx.insert(calibrations)
+      .values({ siteId, recipeId: recipe.id, lotId: lot.id, state, batchIds: proposal.batchIds, result: proposal.result, createdAt: used.at(-1)!.closedAt })
+      .run();
   }
 }
 
@@ -236,7 +428,11 @@ const DEMO_INVOICES = [
 ];
 
 /** True when the database has no site yet. */
-export const isEmpty = (db: Db) => (db.select({ n: sql<number>`count(*)` }).from(sites).get()?.n ?? 0) === 0;
+export const isEmpty = (db: Db) =>
+  (db
+    .select({ n: sql<number>`count(*)` })
+    .from(sites)
+    .get()?.n ?? 0) === 0;
 
 /**
  * Writes the demo site in one transaction. Deterministic: the same rows every time, except bcrypt salts.
@@ -250,7 +446,11 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
   const cost = opts.bcryptCost ?? 12;
   const hashes = DEMO_USERS.map((u) => bcrypt.hashSync(u.password, cost));
   return db.transaction((tx) => {
-    const site = tx.insert(sites).values({ name: opts.siteName ?? DEMO_SITE_NAME, timeZone: 'Europe/Berlin' }).returning().get();
+    const site = tx
+      .insert(sites)
+      .values({ name: opts.siteName ?? DEMO_SITE_NAME, timeZone: 'Europe/Berlin' })
+      .returning()
+      .get();
     const domain = opts.emailDomain ?? 'haldenbay.test';
     const userIds = new Map<Role, number>();
     DEMO_USERS.forEach((u, i) => {
@@ -261,7 +461,8 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         .get();
       userIds.set(u.role, row.id);
     });
-    const vesselRows = tx.insert(vessels)
+    const vesselRows = tx
+      .insert(vessels)
       .values([
         { siteId: site.id, name: 'R-101 Saccharifier', workingVolumeL: 40000, minC: 20, maxC: 75, maxHeatCPerH: 12, maxCoolCPerH: 8, hygienicMinC: 50 },
         { siteId: site.id, name: 'R-204 Lactose tank', workingVolumeL: 12000, minC: 4, maxC: 60, maxHeatCPerH: 10, maxCoolCPerH: 6, hygienicMinC: 8 },
@@ -270,7 +471,15 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       .returning()
       .all();
     const enzymeIds = new Map<string, number>();
-    for (const e of ENZYMES) enzymeIds.set(e.name, tx.insert(enzymes).values({ ...e, siteId: site.id }).returning().get().id);
+    for (const e of ENZYMES)
+      enzymeIds.set(
+        e.name,
+        tx
+          .insert(enzymes)
+          .values({ ...e, siteId: site.id })
+          .returning()
+          .get().id,
+      );
     const lotRows = new Map<string, { id: number; enzymeId: number }>();
     // Each lot's assay fit, so the demo's batch programs plan from it as the app's own do (else the certificate).
     const lotFits = new Map<number, LotFit>();
@@ -299,7 +508,10 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       if (!l.qc) continue;
       const enzyme = ENZYMES.find((e) => e.name === l.enzyme)!;
       const points = demoAssayPoints(enzyme.specTempC, l.qc);
-      const result = fitAssay(enzyme.tRefC, points.map((p) => ({ c: p.tempC, h: p.timeH, residual: p.residual })));
+      const result = fitAssay(
+        enzyme.tRefC,
+        points.map((p) => ({ c: p.tempC, h: p.timeH, residual: p.residual })),
+      );
       const assay = tx
         .insert(assays)
         .values({
@@ -328,32 +540,84 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
     for (const { lotCode, vessel, ...r } of RECIPES) {
       const lot = lotRows.get(lotCode)!;
       const vesselId = vesselRows.find((v) => v.name === vessel)!.id;
-      recipeRows.set(r.name, tx.insert(recipes).values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT }).returning().get());
+      recipeRows.set(
+        r.name,
+        tx
+          .insert(recipes)
+          .values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT })
+          .returning()
+          .get(),
+      );
     }
     const truthRng = createRng(DEMO_PLANT_TRUTH.seed);
     const sorted = [...BATCHES].sort((a, b) => a.startedAt.localeCompare(b.startedAt));
     for (const demo of sorted) {
-      const b = !demo.closedAt && opts.now ? { ...demo, startedAt: new Date(Math.floor(opts.now.getTime() / 1_800_000) * 1_800_000 - demo.readUntilH * 3_600_000).toISOString() } : demo;
+      const b =
+        !demo.closedAt && opts.now
+          ? { ...demo, startedAt: new Date(Math.floor(opts.now.getTime() / 1_800_000) * 1_800_000 - demo.readUntilH * 3_600_000).toISOString() }
+          : demo;
       const saved = recipeRows.get(b.recipe)!;
       const recipe = b.setpointC === undefined ? saved : { ...saved, currentSetpointC: b.setpointC };
       const vessel = vesselRows.find((v) => v.id === recipe.vesselId)!;
-      const lot = tx.select().from(lots).where(sql`${lots.id} = ${recipe.lotId}`).get()!;
-      const enzyme = tx.select().from(enzymes).where(sql`${enzymes.id} = ${recipe.enzymeId}`).get()!;
+      const lot = tx
+        .select()
+        .from(lots)
+        .where(sql`${lots.id} = ${recipe.lotId}`)
+        .get()!;
+      const enzyme = tx
+        .select()
+        .from(enzymes)
+        .where(sql`${enzymes.id} = ${recipe.enzymeId}`)
+        .get()!;
       const program = batchProgram({ recipe, enzyme, lot: { ...lot, fit: lotFits.get(lot.id) ?? null }, vessel, plan: null });
-      const row = tx.insert(batches)
-        .values({ siteId: site.id, recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, planId: null, source: program.source, program, state: 'running', startedAt: b.startedAt, startedBy: userIds.get('supervisor')! })
+      const row = tx
+        .insert(batches)
+        .values({
+          siteId: site.id,
+          recipeId: recipe.id,
+          vesselId: vessel.id,
+          lotId: lot.id,
+          planId: null,
+          source: program.source,
+          program,
+          state: 'running',
+          startedAt: b.startedAt,
+          startedBy: userIds.get('supervisor')!,
+        })
         .returning()
         .get();
       const readings = demoReadings(program, b.startedAt, b.readUntilH);
       tx.insert(batchReadings)
-        .values(readings.map((r, i) => ({ siteId: site.id, batchId: row.id, clientKey: `demo-${row.id}-${i}`, takenAt: r.takenAt, c: r.c, note: null, source: 'manual' as const, enteredBy: userIds.get('operator')!, receivedAt: r.takenAt })))
+        .values(
+          readings.map((r, i) => ({
+            siteId: site.id,
+            batchId: row.id,
+            clientKey: `demo-${row.id}-${i}`,
+            takenAt: r.takenAt,
+            c: r.c,
+            note: null,
+            source: 'manual' as const,
+            enteredBy: userIds.get('operator')!,
+            receivedAt: r.takenAt,
+          })),
+        )
         .run();
       if (b.closedAt) {
         const logged = readings.map((r) => ({ h: batchHours(b.startedAt, r.takenAt), c: r.c }));
         const forecast = batchStatus(program, logged, program.batchH).forecastGPerL;
-        const measured = lot.lotCode === DEMO_PLANT_TRUTH.lotCode ? plantTruthProduct(program, logged, enzyme.tRefC) * Math.exp(DEMO_PLANT_TRUTH.noiseRelSd * truthRng.normal()) : forecast * (b.measuredRatio ?? 1);
+        const measured =
+          lot.lotCode === DEMO_PLANT_TRUTH.lotCode
+            ? plantTruthProduct(program, logged, enzyme.tRefC) * Math.exp(DEMO_PLANT_TRUTH.noiseRelSd * truthRng.normal())
+            : forecast * (b.measuredRatio ?? 1);
         tx.update(batches)
-          .set({ state: 'closed', closedAt: b.closedAt, closedBy: userIds.get('supervisor')!, measuredProductGPerL: Math.round(measured * 10) / 10, forecastAtCloseGPerL: forecast, closeComment: 'Lab result from the end-of-batch sample' })
+          .set({
+            state: 'closed',
+            closedAt: b.closedAt,
+            closedBy: userIds.get('supervisor')!,
+            measuredProductGPerL: Math.round(measured * 10) / 10,
+            forecastAtCloseGPerL: forecast,
+            closeComment: 'Lab result from the end-of-batch sample',
+          })
           .where(sql`${batches.id} = ${row.id}`)
           .run();
       }

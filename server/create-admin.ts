@@ -33,9 +33,22 @@ async function main() {
   migrateDb(db);
   const hash = await hashPassword(creds.password);
   writeTx(db, (tx) => {
-    const site = tx.insert(sites).values({ name: siteName, timeZone: timeZone || 'UTC' }).returning().get();
+    const site = tx
+      .insert(sites)
+      .values({ name: siteName, timeZone: timeZone || 'UTC' })
+      .returning()
+      .get();
     const user = insertUser(tx, { siteId: site.id, email: creds.email, name, role: 'admin', passwordHash: hash });
-    appendAudit(tx, { siteId: site.id, userId: user.id, actor: 'create-admin', action: 'user.create', entity: 'user', entityId: user.id, newValue: { email: creds.email, role: 'admin' }, at: new Date() });
+    appendAudit(tx, {
+      siteId: site.id,
+      userId: user.id,
+      actor: 'create-admin',
+      action: 'user.create',
+      entity: 'user',
+      entityId: user.id,
+      newValue: { email: creds.email, role: 'admin' },
+      at: new Date(),
+    });
   });
   console.log(`Created site "${siteName}" with admin ${creds.email} in ${env.databaseFile}.`);
   db.$client.close();

@@ -66,11 +66,15 @@ const lineBreaks = (cells: string[]) => cells.reduce((n, c) => n + (c.includes('
 function csvProblem(err: CsvError, lastLine: number): HttpError {
   const after = lastLine > 0 ? `after line ${lastLine}` : 'at the start of the file';
   if (err.code === 'CSV_QUOTE_NOT_CLOSED' || err.code === 'CSV_MAX_RECORD_SIZE') {
-    return new HttpError(400, 'bad_csv', `A quoted cell that starts ${after} is never closed. Check the quote marks (") there.`, { [`line ${lastLine + 1}`]: 'a quote mark opens a cell that never closes' });
+    return new HttpError(400, 'bad_csv', `A quoted cell that starts ${after} is never closed. Check the quote marks (") there.`, {
+      [`line ${lastLine + 1}`]: 'a quote mark opens a cell that never closes',
+    });
   }
   const at = (err as unknown as { lines?: number }).lines;
   const where = at ? `line ${at}` : `line ${lastLine + 1}`;
-  return new HttpError(400, 'bad_csv', `The CSV cannot be read at ${where}: ${err.message.split(':')[0]}.`, { [where]: 'the quote marks (") around a cell do not match' });
+  return new HttpError(400, 'bad_csv', `The CSV cannot be read at ${where}: ${err.message.split(':')[0]}.`, {
+    [where]: 'the quote marks (") around a cell do not match',
+  });
 }
 
 /**

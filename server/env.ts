@@ -9,8 +9,14 @@ const Env = z.object({
   SESSION_SECRET: z.string().min(32).optional(),
   // Unset: Secure when PUBLIC_URL is https (a browser then never sends the session cookie over plain http).
   COOKIE_SECURE: z.enum(['0', '1']).optional(),
-  SESSION_IDLE_MINUTES: z.coerce.number().positive().default(12 * 60),
-  SESSION_ABSOLUTE_HOURS: z.coerce.number().positive().default(7 * 24),
+  SESSION_IDLE_MINUTES: z.coerce
+    .number()
+    .positive()
+    .default(12 * 60),
+  SESSION_ABSOLUTE_HOURS: z.coerce
+    .number()
+    .positive()
+    .default(7 * 24),
   AUDIT_CHECKPOINT_MINUTES: z.coerce.number().positive().default(15),
   WEB_DIR: z.string().default('dist'),
   SKIP_WEB_BUILD: z.enum(['0', '1']).default('0'),

@@ -15,7 +15,12 @@ export function nonFinitePaths(value: unknown, path: string[] = []): string[] {
 export function assertFiniteResult(value: unknown, what: string): void {
   const bad = nonFinitePaths(value);
   if (!bad.length) return;
-  throw new HttpError(400, 'not_computable', `These inputs give ${what} figures too large to compute (${bad.slice(0, 5).join(', ')}); nothing was saved. Check the prices, volumes and loads.`, {
-    _: `Not a finite number: ${bad.slice(0, 5).join(', ')}`,
-  });
+  throw new HttpError(
+    400,
+    'not_computable',
+    `These inputs give ${what} figures too large to compute (${bad.slice(0, 5).join(', ')}); nothing was saved. Check the prices, volumes and loads.`,
+    {
+      _: `Not a finite number: ${bad.slice(0, 5).join(', ')}`,
+    },
+  );
 }

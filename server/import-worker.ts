@@ -13,7 +13,10 @@ async function run(task: ImportTask, progress: (bytesRead: number) => void) {
     case 'assay-csv':
     case 'assay-table': {
       const checked = task.kind === 'assay-csv' ? await readAssayCsv(task.bytes, task.scale) : readAssayTable(task.input.rows, task.input.scale);
-      const fit = fitAssay(task.tRefC, checked.points.map((p) => ({ c: p.tempC, h: p.timeH, residual: p.residual })));
+      const fit = fitAssay(
+        task.tRefC,
+        checked.points.map((p) => ({ c: p.tempC, h: p.timeH, residual: p.residual })),
+      );
       return { value: { checked, fit }, transfer: [] };
     }
     case 'historian': {
@@ -41,7 +44,10 @@ port.on('message', ({ id, task }: ImportMessage) => {
     (err: unknown) =>
       port.postMessage({
         id,
-        error: err instanceof HttpError ? { status: err.status, code: err.code, message: err.message, fields: err.fields } : { status: 500, code: 'import_failed', message: String((err as Error)?.stack ?? err) },
+        error:
+          err instanceof HttpError
+            ? { status: err.status, code: err.code, message: err.message, fields: err.fields }
+            : { status: 500, code: 'import_failed', message: String((err as Error)?.stack ?? err) },
       } satisfies ImportReply),
   );
 });

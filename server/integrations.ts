@@ -8,7 +8,6 @@ import { findSite } from './repositories/sites';
 import { createBilling, stripeClient, type Billing } from './services/billing-provider';
 import { smtpTransport, type MailTransport } from './services/mail';
 
-
 export type Integrations = {
   billing: Billing;
   mailTransport: MailTransport;
@@ -88,4 +87,3 @@ export async function handOverToFake(db: Db, fake: StripeFake, billing: Billing)
     });
   }
 }
-

@@ -19,7 +19,12 @@ export function listApiRoutes(mounts: readonly ApiMount[]): ApiRoute[] {
       if (!layer.route) continue;
       const guard = layer.route.stack.find((s) => s.handle.capability !== undefined)?.handle;
       for (const method of Object.keys(layer.route.methods)) {
-        routes.push({ method: method.toUpperCase(), path: `/api${prefix}${layer.route.path === '/' ? '' : layer.route.path}`, capability: guard?.capability ?? null, roles: guard?.roles ?? null });
+        routes.push({
+          method: method.toUpperCase(),
+          path: `/api${prefix}${layer.route.path === '/' ? '' : layer.route.path}`,
+          capability: guard?.capability ?? null,
+          roles: guard?.roles ?? null,
+        });
       }
     }
   }

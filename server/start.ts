@@ -41,7 +41,10 @@ async function main() {
   };
   seal();
   setInterval(seal, env.auditCheckpointMinutes * 60_000);
-  const integrations = await startIntegrations(db, { ...env, fakeWebhookSecret: () => `whsec_${installationSecret(env.databaseFile, '.webhook-secret').toString('hex')}` });
+  const integrations = await startIntegrations(db, {
+    ...env,
+    fakeWebhookSecret: () => `whsec_${installationSecret(env.databaseFile, '.webhook-secret').toString('hex')}`,
+  });
   const mail = createMailSender({ db, clock: systemClock, transport: integrations.mailTransport, from: integrations.mailFrom, intervalMs: 15_000 });
   const localUrl = `http://${env.host === '0.0.0.0' ? 'localhost' : env.host}:${env.port}`;
   if (seeded) proposeDemoChange({ db, clock: systemClock, mail, linkUrl: env.publicUrl ?? localUrl }, seeded.siteId);
@@ -69,8 +72,14 @@ async function main() {
     integrations.appListening(`http://${env.host === '0.0.0.0' ? '127.0.0.1' : env.host}:${port}`);
     mail.kick();
     console.log(`\nYieldpoint is running at http://localhost:${port}`);
-    if (integrations.stripeFake) console.log(`Payments: local fake Stripe at ${integrations.stripeFake.url} (test card 4242 4242 4242 4242; API key for /_fake calls ${integrations.stripeFake.apiKey})`);
-    if (integrations.smtpSink) console.log(`Mail: local sink on 127.0.0.1:${integrations.smtpSink.port}, messages kept in ${path.resolve(env.mail.mode === 'sink' ? env.mail.sinkDir : '')}`);
+    if (integrations.stripeFake)
+      console.log(
+        `Payments: local fake Stripe at ${integrations.stripeFake.url} (test card 4242 4242 4242 4242; API key for /_fake calls ${integrations.stripeFake.apiKey})`,
+      );
+    if (integrations.smtpSink)
+      console.log(
+        `Mail: local sink on 127.0.0.1:${integrations.smtpSink.port}, messages kept in ${path.resolve(env.mail.mode === 'sink' ? env.mail.sinkDir : '')}`,
+      );
     console.log(`Database: ${path.resolve(env.databaseFile)}${seeded ? ' (demo site seeded)' : ''}`);
     if (env.seedDemo) {
       console.log('Demo sign-ins:');

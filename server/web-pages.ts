@@ -16,7 +16,10 @@ const escapeRe = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 /** The route a page file serves, e.g. `lots/enzymes/[id].html` → /^\/lots\/enzymes\/[^/]+\/?$/. */
 export function routeOf(relFile: string): PageRoute {
-  const segments = relFile.replace(/\.html$/, '').split('/').filter((s) => s !== 'index');
+  const segments = relFile
+    .replace(/\.html$/, '')
+    .split('/')
+    .filter((s) => s !== 'index');
   let dynamic = 0;
   let catchAll = false;
   const body = segments
@@ -38,7 +41,10 @@ export function routeOf(relFile: string): PageRoute {
 
 /** Every file under `dir`, as paths relative to it. */
 export const filesUnder = (dir: string): string[] =>
-  fs.readdirSync(dir, { recursive: true, withFileTypes: true }).filter((e) => e.isFile()).map((e) => path.relative(dir, path.join(e.parentPath, e.name)));
+  fs
+    .readdirSync(dir, { recursive: true, withFileTypes: true })
+    .filter((e) => e.isFile())
+    .map((e) => path.relative(dir, path.join(e.parentPath, e.name)));
 
 /** Every routable page of the export, the most specific first. Group copies, the sitemap and +-files stay out. */
 export function pageRoutes(root: string): PageRoute[] {

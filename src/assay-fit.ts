@@ -34,16 +34,18 @@ export function fitAssay(tRefC: number, points: readonly InactivationPoint[]): A
       twoStep: f.twoStep,
       chosen: f.chosen,
       // A degenerate model's figures can overflow (a stable kd of e^800): such a model is left out of the table.
-      models: f.models.filter((m) => [m.kdRefPerH, m.edKJPerMol, m.halfLifeRefH, m.a0 ?? 0, m.stableFraction?.kdRefPerH ?? 0].every(Number.isFinite)).map((m) => ({
-        name: m.name,
-        kdRefPerH: m.kdRefPerH,
-        edKJPerMol: m.edKJPerMol,
-        halfLifeRefH: m.halfLifeRefH,
-        aicc: m.aicc,
-        ...(m.a0 !== undefined ? { a0: m.a0 } : {}),
-        ...(m.stableFraction ? { stableFraction: m.stableFraction } : {}),
-        ...(m.singular ? { singular: m.singular } : {}),
-      })),
+      models: f.models
+        .filter((m) => [m.kdRefPerH, m.edKJPerMol, m.halfLifeRefH, m.a0 ?? 0, m.stableFraction?.kdRefPerH ?? 0].every(Number.isFinite))
+        .map((m) => ({
+          name: m.name,
+          kdRefPerH: m.kdRefPerH,
+          edKJPerMol: m.edKJPerMol,
+          halfLifeRefH: m.halfLifeRefH,
+          aicc: m.aicc,
+          ...(m.a0 !== undefined ? { a0: m.a0 } : {}),
+          ...(m.stableFraction ? { stableFraction: m.stableFraction } : {}),
+          ...(m.singular ? { singular: m.singular } : {}),
+        })),
       lackOfFit: f.lackOfFit,
     };
     return { fit, problem: null };

@@ -13,7 +13,13 @@ export function certConversion(s: CertStability): CertConversion {
   switch (s.form) {
     case 'halfLife': {
       const kd = kdFromHalfLife(s.halfLifeH);
-      return { tempC: s.tempC, kdPerH: kd, halfLifeH: s.halfLifeH, edKJPerMol: null, steps: [`kd = ln 2 / t½ = 0.693 / ${n(s.halfLifeH)} h = ${n(kd)} /h at ${n(s.tempC)} °C`] };
+      return {
+        tempC: s.tempC,
+        kdPerH: kd,
+        halfLifeH: s.halfLifeH,
+        edKJPerMol: null,
+        steps: [`kd = ln 2 / t½ = 0.693 / ${n(s.halfLifeH)} h = ${n(kd)} /h at ${n(s.tempC)} °C`],
+      };
     }
     case 'residual': {
       const kd = kdPerHFromResidual(s.residualFraction, s.minutes);

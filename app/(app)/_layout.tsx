@@ -35,9 +35,7 @@ export default function SignedInLayout() {
     <View style={[styles.fill, { backgroundColor: c.background }]}>
       {isWide ? null : <TopBar siteName={user?.siteName ?? ''} />}
       <Tabs
-        tabBar={(props) => (
-          <NavBar user={user} layout={isWide ? 'side' : 'bottom'} activeName={props.state.routes[props.state.index]?.name} />
-        )}
+        tabBar={(props) => <NavBar user={user} layout={isWide ? 'side' : 'bottom'} activeName={props.state.routes[props.state.index]?.name} />}
         screenOptions={{ headerShown: false, tabBarPosition: isWide ? 'left' : 'bottom' }}
       >
         <Tabs.Screen name="index" options={{ href: null }} />

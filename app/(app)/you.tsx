@@ -27,14 +27,36 @@ function ChangePasswordCard() {
   return (
     <Card>
       <Text weight="semibold">Change your password</Text>
-      <Field label="Current password" testID="you-current-password" value={current} onChangeText={setCurrent} secureTextEntry autoComplete="current-password" error={change.error?.fields.currentPassword} />
-      <Field label="New password" testID="you-new-password" value={next} onChangeText={setNext} secureTextEntry autoComplete="new-password" hint={`At least ${MIN_PASSWORD_LENGTH} characters; your other sessions end`} error={change.error?.fields.newPassword} onSubmitEditing={submit} />
+      <Field
+        label="Current password"
+        testID="you-current-password"
+        value={current}
+        onChangeText={setCurrent}
+        secureTextEntry
+        autoComplete="current-password"
+        error={change.error?.fields.currentPassword}
+      />
+      <Field
+        label="New password"
+        testID="you-new-password"
+        value={next}
+        onChangeText={setNext}
+        secureTextEntry
+        autoComplete="new-password"
+        hint={`At least ${MIN_PASSWORD_LENGTH} characters; your other sessions end`}
+        error={change.error?.fields.newPassword}
+        onSubmitEditing={submit}
+      />
       {general ? (
         <Text tone="danger" accessibilityRole="alert">
           {general}
         </Text>
       ) : null}
-      {done ? <Text tone="success" testID="you-password-changed">Password changed; you are signed out everywhere else.</Text> : null}
+      {done ? (
+        <Text tone="success" testID="you-password-changed">
+          Password changed; you are signed out everywhere else.
+        </Text>
+      ) : null}
       <Button label="Change password" variant="secondary" testID="you-change-password" onPress={submit} isBusy={change.isBusy} />
     </Card>
   );

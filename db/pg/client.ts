@@ -16,7 +16,10 @@ function parseInt8(text: string): number {
   if (!Number.isSafeInteger(n)) throw new RangeError(`int8 value ${text} is beyond JavaScript's exact integers`);
   return n;
 }
-const types = { getTypeParser: ((oid: number, format?: 'text' | 'binary') => (oid === INT8 && format !== 'binary' ? parseInt8 : pg.types.getTypeParser(oid, format))) as typeof pg.types.getTypeParser };
+const types = {
+  getTypeParser: ((oid: number, format?: 'text' | 'binary') =>
+    oid === INT8 && format !== 'binary' ? parseInt8 : pg.types.getTypeParser(oid, format)) as typeof pg.types.getTypeParser,
+};
 
 /** A pool on a PostgreSQL database (`postgres://...`) with Drizzle over the generated schema. */
 export function openPg(url: string, opts: { max?: number } = {}): PgDb {

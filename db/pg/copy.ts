@@ -43,7 +43,11 @@ export async function copySqliteToPg(from: string, to: string, log: (line: strin
   const db = openPg(to, { max: 1 });
   try {
     const tables = tablesInForeignKeyOrder();
-    const existing = new Set(((await db.$client.query(`select table_name from information_schema.tables where table_schema = 'public'`)).rows as { table_name: string }[]).map((r) => r.table_name));
+    const existing = new Set(
+      ((await db.$client.query(`select table_name from information_schema.tables where table_schema = 'public'`)).rows as { table_name: string }[]).map(
+        (r) => r.table_name,
+      ),
+    );
     const holding: string[] = [];
     for (const t of tables) {
       const name = getTableConfig(t).name;
@@ -51,7 +55,10 @@ export async function copySqliteToPg(from: string, to: string, log: (line: strin
       const { rows } = await db.$client.query(`select count(*) as n from "${name}"`);
       if (rows[0].n > 0) holding.push(`${name} (${rows[0].n})`);
     }
-    if (holding.length) throw new Error(`Refusing to copy: the target database already holds data in ${holding.join(', ')}. db:copy fills only an empty database; create a new one (createdb) or empty this one first.`);
+    if (holding.length)
+      throw new Error(
+        `Refusing to copy: the target database already holds data in ${holding.join(', ')}. db:copy fills only an empty database; create a new one (createdb) or empty this one first.`,
+      );
     await migratePg(db);
 
     src.exec('begin'); // one read snapshot of the source for the whole copy
@@ -66,7 +73,10 @@ export async function copySqliteToPg(from: string, to: string, log: (line: strin
         const missing = cols.filter((c) => !srcCols.has(c.name)).map((c) => c.name);
         if (!srcCols.size) throw new Error(`The source has no table ${name}: start the server on it once (it migrates) before copying`);
         if (missing.length) throw new Error(`The source's ${name} lacks ${missing.join(', ')}: start the server on it once (it migrates) before copying`);
-        const stmt = src.prepare(`select ${cols.map((c) => `"${c.name}"`).join(', ')} from "${name}" order by rowid`).raw(true).safeIntegers(true);
+        const stmt = src
+          .prepare(`select ${cols.map((c) => `"${c.name}"`).join(', ')} from "${name}" order by rowid`)
+          .raw(true)
+          .safeIntegers(true);
         const convert = cols.map((c) =>
           c.columnType === 'SQLiteBoolean'
             ? (v: unknown) => {
@@ -94,7 +104,9 @@ export async function copySqliteToPg(from: string, to: string, log: (line: strin
         }
         await flush();
         for (const c of cols.filter((c) => (c as { autoIncrement?: boolean }).autoIncrement)) {
-          await client.query(`select setval(pg_get_serial_sequence('"${name}"', '${c.name}'), coalesce((select max("${c.name}") from "${name}"), 0) + 1, false)`);
+          await client.query(
+            `select setval(pg_get_serial_sequence('"${name}"', '${c.name}'), coalesce((select max("${c.name}") from "${name}"), 0) + 1, false)`,
+          );
         }
         report.push({ name, rows });
         log(`${name}: ${rows} rows`);
@@ -125,7 +137,9 @@ if (require.main === module) {
     .then((r) => {
       const total = r.tables.reduce((a, t) => a + t.rows, 0);
       console.log(`Copied ${total} rows in ${r.tables.length} tables in ${(r.ms / 1000).toFixed(1)} s, in one transaction.`);
-      console.log('The installation files beside the SQLite file (.audit-key, audit-checkpoints.jsonl, .session-secret, .webhook-secret, files/, pki/) are not in the database: keep them with the server that uses the copy, or its audit chain verifies as broken.');
+      console.log(
+        'The installation files beside the SQLite file (.audit-key, audit-checkpoints.jsonl, .session-secret, .webhook-secret, files/, pki/) are not in the database: keep them with the server that uses the copy, or its audit chain verifies as broken.',
+      );
     })
     .catch((err) => {
       console.error(err instanceof Error ? err.message : err);

@@ -83,7 +83,8 @@ export function renderPgSchema(): string {
   let anySql = false;
   const bodies = entries.map(({ exportName, table }) => {
     const cfg = getTableConfig(table);
-    if (cfg.checks.length || cfg.primaryKeys.length || cfg.uniqueConstraints.length) throw new Error(`${cfg.name}: checks, composite keys and unique constraints are not generated yet`);
+    if (cfg.checks.length || cfg.primaryKeys.length || cfg.uniqueConstraints.length)
+      throw new Error(`${cfg.name}: checks, composite keys and unique constraints are not generated yet`);
     const fks = new Map<string, string>();
     for (const fk of cfg.foreignKeys) {
       const ref = fk.reference();

@@ -7,7 +7,9 @@ import { plans, recipes } from './planning';
 
 // The site's deviation limits; a site without a row uses DEFAULT_BATCH_SETTINGS.
 export const batchSettings = sqliteTable('batch_settings', {
-  siteId: integer('site_id').primaryKey().references(() => sites.id),
+  siteId: integer('site_id')
+    .primaryKey()
+    .references(() => sites.id),
   toleranceC: real('tolerance_c').notNull(),
   gapLimitMin: integer('gap_limit_min').notNull(),
   updatedAt: text('updated_at').notNull(),
@@ -17,17 +19,27 @@ export const batches = sqliteTable(
   'batches',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    recipeId: integer('recipe_id').notNull().references(() => recipes.id),
-    vesselId: integer('vessel_id').notNull().references(() => vessels.id),
-    lotId: integer('lot_id').notNull().references(() => lots.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    recipeId: integer('recipe_id')
+      .notNull()
+      .references(() => recipes.id),
+    vesselId: integer('vessel_id')
+      .notNull()
+      .references(() => vessels.id),
+    lotId: integer('lot_id')
+      .notNull()
+      .references(() => lots.id),
     planId: integer('plan_id').references(() => plans.id),
     source: text('source', { enum: PLAN_SOURCES }).notNull(),
     // Frozen at the start: the planned temperatures and the engine's inputs for this batch.
     program: text('program', { mode: 'json' }).$type<BatchProgram>().notNull(),
     state: text('state', { enum: BATCH_STATUSES }).notNull().default('running'),
     startedAt: text('started_at').notNull(),
-    startedBy: integer('started_by').notNull().references(() => users.id),
+    startedBy: integer('started_by')
+      .notNull()
+      .references(() => users.id),
     closedAt: text('closed_at'),
     closedBy: integer('closed_by').references(() => users.id),
     closeComment: text('close_comment'),
@@ -42,15 +54,21 @@ export const batchReadings = sqliteTable(
   'batch_readings',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    batchId: integer('batch_id').notNull().references(() => batches.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    batchId: integer('batch_id')
+      .notNull()
+      .references(() => batches.id),
     // Made by the device (or from the historian row's time) so a resent reading is stored once.
     clientKey: text('client_key').notNull(),
     takenAt: text('taken_at').notNull(),
     c: real('c').notNull(),
     note: text('note'),
     source: text('source', { enum: READING_SOURCES }).notNull(),
-    enteredBy: integer('entered_by').notNull().references(() => users.id),
+    enteredBy: integer('entered_by')
+      .notNull()
+      .references(() => users.id),
     receivedAt: text('received_at').notNull(),
   },
   // The batch index alone is (batch_id, rowid): a batch's newest reading, its record's version, in O(log n).
@@ -67,8 +85,12 @@ export const deviations = sqliteTable(
   'deviations',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    batchId: integer('batch_id').notNull().references(() => batches.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    batchId: integer('batch_id')
+      .notNull()
+      .references(() => batches.id),
     kind: text('kind', { enum: DEVIATION_KINDS }).notNull(),
     state: text('state', { enum: DEVIATION_STATES }).notNull().default('open'),
     readingId: integer('reading_id').references(() => batchReadings.id),

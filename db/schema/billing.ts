@@ -7,7 +7,9 @@ export const SUBSCRIPTION_STATUSES = ['none', 'active', 'past_due', 'canceled'] 
 
 /** A site's licence: the seat count is written only from verified payment-provider events. */
 export const subscriptions = sqliteTable('subscriptions', {
-  siteId: integer('site_id').primaryKey().references(() => sites.id),
+  siteId: integer('site_id')
+    .primaryKey()
+    .references(() => sites.id),
   plan: text('plan').notNull(),
   seats: integer('seats').notNull(),
   status: text('status', { enum: SUBSCRIPTION_STATUSES }).notNull(),
@@ -26,7 +28,9 @@ export const invoices = sqliteTable(
   'invoices',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
     stripeInvoiceId: text('stripe_invoice_id').notNull(),
     number: text('number').notNull(),
     status: text('status').notNull(),
@@ -54,12 +58,16 @@ export const invites = sqliteTable(
   'invites',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
     email: text('email').notNull(),
     role: text('role', { enum: ROLES }).notNull(),
     // Only the SHA-256 of the link's token is stored: a database reader cannot use a pending invite.
     tokenHash: text('token_hash').notNull(),
-    invitedBy: integer('invited_by').notNull().references(() => users.id),
+    invitedBy: integer('invited_by')
+      .notNull()
+      .references(() => users.id),
     expiresAt: text('expires_at').notNull(),
     acceptedAt: text('accepted_at'),
     revokedAt: text('revoked_at'),

@@ -12,9 +12,15 @@ export const calibrations = sqliteTable(
   'calibrations',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    recipeId: integer('recipe_id').notNull().references(() => recipes.id),
-    lotId: integer('lot_id').notNull().references(() => lots.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    recipeId: integer('recipe_id')
+      .notNull()
+      .references(() => recipes.id),
+    lotId: integer('lot_id')
+      .notNull()
+      .references(() => lots.id),
     state: text('state', { enum: CALIBRATION_STATES }).notNull(),
     batchIds: text('batch_ids', { mode: 'json' }).$type<number[]>().notNull(),
     result: text('result', { mode: 'json' }).$type<CalibrationResult>().notNull(),
@@ -30,10 +36,16 @@ export const calibrationExclusions = sqliteTable(
   'calibration_exclusions',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    batchId: integer('batch_id').notNull().references(() => batches.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    batchId: integer('batch_id')
+      .notNull()
+      .references(() => batches.id),
     reason: text('reason').notNull(),
-    excludedBy: integer('excluded_by').notNull().references(() => users.id),
+    excludedBy: integer('excluded_by')
+      .notNull()
+      .references(() => users.id),
     excludedAt: text('excluded_at').notNull(),
     createdAt: createdAt(),
   },
@@ -42,7 +54,9 @@ export const calibrationExclusions = sqliteTable(
 
 // The site's measurement spread for calibration; a site without a row uses MEASUREMENT_REL_SD (2 % of the product).
 export const calibrationSettings = sqliteTable('calibration_settings', {
-  siteId: integer('site_id').primaryKey().references(() => sites.id),
+  siteId: integer('site_id')
+    .primaryKey()
+    .references(() => sites.id),
   measurementRelSd: real('measurement_rel_sd').notNull(),
   updatedAt: text('updated_at').notNull(),
 });

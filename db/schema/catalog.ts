@@ -7,7 +7,9 @@ export const vessels = sqliteTable(
   'vessels',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
     name: text('name').notNull(),
     workingVolumeL: real('working_volume_l').notNull(),
     minC: real('min_c').notNull(),
@@ -24,7 +26,9 @@ export const enzymes = sqliteTable(
   'enzymes',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
     name: text('name').notNull(),
     enzymeClass: text('enzyme_class').notNull(),
     ecNumber: text('ec_number').notNull(),
@@ -41,13 +45,16 @@ export const enzymes = sqliteTable(
   (t) => [uniqueIndex('enzymes_site_name_unique').on(t.siteId, t.name)],
 );
 
-
 export const lots = sqliteTable(
   'lots',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    enzymeId: integer('enzyme_id').notNull().references(() => enzymes.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    enzymeId: integer('enzyme_id')
+      .notNull()
+      .references(() => enzymes.id),
     lotCode: text('lot_code').notNull(),
     receivedOn: text('received_on').notNull(),
     expiresOn: text('expires_on').notNull(),
@@ -65,4 +72,3 @@ export const lots = sqliteTable(
   },
   (t) => [uniqueIndex('lots_enzyme_code_unique').on(t.enzymeId, t.lotCode), index('lots_site_idx').on(t.siteId)],
 );
-

@@ -10,10 +10,18 @@ export const changeRequests = sqliteTable(
   'change_requests',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    recipeId: integer('recipe_id').notNull().references(() => recipes.id),
-    planId: integer('plan_id').notNull().references(() => plans.id),
-    proposedBy: integer('proposed_by').notNull().references(() => users.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    recipeId: integer('recipe_id')
+      .notNull()
+      .references(() => recipes.id),
+    planId: integer('plan_id')
+      .notNull()
+      .references(() => plans.id),
+    proposedBy: integer('proposed_by')
+      .notNull()
+      .references(() => users.id),
     rationale: text('rationale').notNull(),
     expectedEffect: text('expected_effect').notNull(),
     /** Site-local calendar date (YYYY-MM-DD) from which batches use the plan. */
@@ -36,9 +44,15 @@ export const signatures = sqliteTable(
   'signatures',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    changeRequestId: integer('change_request_id').notNull().references(() => changeRequests.id),
-    userId: integer('user_id').notNull().references(() => users.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    changeRequestId: integer('change_request_id')
+      .notNull()
+      .references(() => changeRequests.id),
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id),
     printedName: text('printed_name').notNull(),
     role: text('role').notNull(),
     meaning: text('meaning', { enum: SIGNATURE_MEANINGS }).notNull(),

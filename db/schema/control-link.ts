@@ -9,8 +9,12 @@ export const vesselSources = sqliteTable(
   'vessel_sources',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    vesselId: integer('vessel_id').notNull().references(() => vessels.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    vesselId: integer('vessel_id')
+      .notNull()
+      .references(() => vessels.id),
     endpointUrl: text('endpoint_url').notNull(),
     nodeId: text('node_id').notNull(),
     unit: text('unit', { enum: SOURCE_UNITS }).notNull(),
@@ -33,7 +37,9 @@ export const vesselSources = sqliteTable(
 
 // The site's sampling of its tags; a site without a row uses DEFAULT_LINK_SETTINGS.
 export const linkSettings = sqliteTable('link_settings', {
-  siteId: integer('site_id').primaryKey().references(() => sites.id),
+  siteId: integer('site_id')
+    .primaryKey()
+    .references(() => sites.id),
   samplingIntervalMs: integer('sampling_interval_ms').notNull(),
   deadbandC: real('deadband_c').notNull(),
   updatedAt: text('updated_at').notNull(),
@@ -44,8 +50,12 @@ export const linkGaps = sqliteTable(
   'link_gaps',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    batchId: integer('batch_id').notNull().references(() => batches.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    batchId: integer('batch_id')
+      .notNull()
+      .references(() => batches.id),
     fromAt: text('from_at').notNull(),
     toAt: text('to_at').notNull(),
     reason: text('reason').notNull(),

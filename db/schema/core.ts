@@ -3,7 +3,10 @@ import { index, integer, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqli
 import { ROLES } from '../../src/enums';
 
 // Times are ISO-8601 UTC strings: sortable, readable in a dump, and free of SQLite's local-time functions.
-export const createdAt = () => text('created_at').notNull().default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`);
+export const createdAt = () =>
+  text('created_at')
+    .notNull()
+    .default(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`);
 
 export const sites = sqliteTable('sites', {
   id: integer('id').primaryKey({ autoIncrement: true }),
@@ -14,12 +17,13 @@ export const sites = sqliteTable('sites', {
   createdAt: createdAt(),
 });
 
-
 export const users = sqliteTable(
   'users',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
     email: text('email').notNull(),
     name: text('name').notNull(),
     role: text('role', { enum: ROLES }).notNull(),
@@ -35,7 +39,9 @@ export const sessions = sqliteTable(
   'sessions',
   {
     id: text('id').primaryKey(),
-    userId: integer('user_id').notNull().references(() => users.id),
+    userId: integer('user_id')
+      .notNull()
+      .references(() => users.id),
     // The role at sign-in: a role change makes the session stale at once.
     role: text('role', { enum: ROLES }).notNull(),
     createdAt: text('created_at').notNull(),

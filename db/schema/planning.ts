@@ -8,11 +8,19 @@ export const recipes = sqliteTable(
   'recipes',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
     name: text('name').notNull(),
-    enzymeId: integer('enzyme_id').notNull().references(() => enzymes.id),
-    lotId: integer('lot_id').notNull().references(() => lots.id),
-    vesselId: integer('vessel_id').notNull().references(() => vessels.id),
+    enzymeId: integer('enzyme_id')
+      .notNull()
+      .references(() => enzymes.id),
+    lotId: integer('lot_id')
+      .notNull()
+      .references(() => lots.id),
+    vesselId: integer('vessel_id')
+      .notNull()
+      .references(() => vessels.id),
     s0GPerL: real('s0_g_per_l').notNull(),
     kmGPerL: real('km_g_per_l').notNull(),
     doseGPerL: real('dose_g_per_l').notNull(),
@@ -40,10 +48,18 @@ export const plans = sqliteTable(
   'plans',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    recipeId: integer('recipe_id').notNull().references(() => recipes.id),
-    lotId: integer('lot_id').notNull().references(() => lots.id),
-    createdBy: integer('created_by').notNull().references(() => users.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    recipeId: integer('recipe_id')
+      .notNull()
+      .references(() => recipes.id),
+    lotId: integer('lot_id')
+      .notNull()
+      .references(() => lots.id),
+    createdBy: integer('created_by')
+      .notNull()
+      .references(() => users.id),
     createdAt: text('created_at').notNull(),
     modelVersion: text('model_version').notNull(),
     inputs: text('inputs', { mode: 'json' }).$type<PlanInputs>().notNull(),

@@ -9,8 +9,12 @@ export const certificateFiles = sqliteTable(
   'certificate_files',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    lotId: integer('lot_id').notNull().references(() => lots.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    lotId: integer('lot_id')
+      .notNull()
+      .references(() => lots.id),
     fileName: text('file_name').notNull(),
     mimeType: text('mime_type', { enum: CERTIFICATE_MIME_TYPES }).notNull(),
     sizeBytes: integer('size_bytes').notNull(),
@@ -26,8 +30,12 @@ export const assays = sqliteTable(
   'assays',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    siteId: integer('site_id').notNull().references(() => sites.id),
-    lotId: integer('lot_id').notNull().references(() => lots.id),
+    siteId: integer('site_id')
+      .notNull()
+      .references(() => sites.id),
+    lotId: integer('lot_id')
+      .notNull()
+      .references(() => lots.id),
     source: text('source', { enum: ASSAY_SOURCES }).notNull(),
     fileName: text('file_name'),
     scale: text('scale', { enum: RESIDUAL_SCALES }).notNull(),
@@ -45,7 +53,9 @@ export const assayPoints = sqliteTable(
   'assay_points',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    assayId: integer('assay_id').notNull().references(() => assays.id),
+    assayId: integer('assay_id')
+      .notNull()
+      .references(() => assays.id),
     // The line of the uploaded file (or the row of the typed table), so a question about a point can be traced.
     line: integer('line').notNull(),
     tempC: real('temp_c').notNull(),

@@ -33,7 +33,10 @@ export async function startSmtpSink(opts: { port?: number; dir?: string } = {}):
     if (kept.length > MAX_KEPT) kept.shift();
     if (opts.dir) {
       fs.writeFileSync(path.join(opts.dir, `${m.id}.json`), JSON.stringify(m, null, 2));
-      const files = fs.readdirSync(opts.dir).filter((f) => f.endsWith('.json')).sort();
+      const files = fs
+        .readdirSync(opts.dir)
+        .filter((f) => f.endsWith('.json'))
+        .sort();
       for (const f of files.slice(0, Math.max(0, files.length - MAX_KEPT))) fs.rmSync(path.join(opts.dir, f), { force: true });
     }
     for (const w of waiters) {
@@ -74,7 +77,7 @@ export async function startSmtpSink(opts: { port?: number; dir?: string } = {}):
     server.listen(opts.port ?? 0, '127.0.0.1', () => resolve());
   });
   server.on('error', (e) => console.error('mail sink:', e.message));
-  const port = ((server as unknown as { server: { address(): AddressInfo } }).server.address()).port;
+  const port = (server as unknown as { server: { address(): AddressInfo } }).server.address().port;
 
   return {
     port,

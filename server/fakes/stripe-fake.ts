@@ -31,7 +31,16 @@ export type StripeFake = {
   apiKey: string;
   setWebhookUrl(url: string): void;
   /** Takes over a subscription a database already knows (the demo seed), with its customer. */
-  adopt(s: { customerId: string; customerName: string; subscriptionId: string; itemId: string; priceId: string; quantity: number; status: 'active' | 'past_due' | 'canceled'; metadata: Record<string, string> }): void;
+  adopt(s: {
+    customerId: string;
+    customerName: string;
+    subscriptionId: string;
+    itemId: string;
+    priceId: string;
+    quantity: number;
+    status: 'active' | 'past_due' | 'canceled';
+    metadata: Record<string, string>;
+  }): void;
   /** Every event sent so far, oldest first (the last 500). */
   events(): Obj[];
   get(id: string): Obj | undefined;
@@ -90,7 +99,8 @@ export async function startStripeFake(opts: StripeFakeOptions): Promise<StripeFa
   const now = () => Math.floor(Date.now() / 1000);
   const newId = (prefix: string) => `${prefix}_${crypto.randomBytes(12).toString('hex')}`;
   function put<T extends Obj>(o: T): T {
-    if (!store.has(o.id) && store.size >= maxObjects) throw new FakeError(429, 'invalid_request_error', 'rate_limit', 'The local fake holds as many objects as it may');
+    if (!store.has(o.id) && store.size >= maxObjects)
+      throw new FakeError(429, 'invalid_request_error', 'rate_limit', 'The local fake holds as many objects as it may');
     store.set(o.id, o);
     return o;
   }
@@ -102,7 +112,10 @@ export async function startStripeFake(opts: StripeFakeOptions): Promise<StripeFa
   const list = (url: string, all: Obj[], q: Request['query']) => {
     const limit = Math.min(100, Math.max(1, q.limit === undefined ? 10 : toInt(q.limit, 'limit')));
     // Stripe lists newest first; ties keep creation order reversed.
-    const sorted = all.map((o, i) => ({ o, i })).sort((a, b) => b.o.created - a.o.created || b.i - a.i).map((x) => x.o);
+    const sorted = all
+      .map((o, i) => ({ o, i }))
+      .sort((a, b) => b.o.created - a.o.created || b.i - a.i)
+      .map((x) => x.o);
     let start = 0;
     if (typeof q.starting_after === 'string') {
       const at = sorted.findIndex((o) => o.id === q.starting_after);
@@ -136,7 +149,12 @@ export async function startStripeFake(opts: StripeFakeOptions): Promise<StripeFa
       if (pause) await new Promise((r) => setTimeout(r, pause));
       try {
         const header = signer.webhooks.generateTestHeaderString({ payload, secret: opts.webhookSecret });
-        const res = await fetch(webhookUrl, { method: 'POST', headers: { 'content-type': 'application/json', 'stripe-signature': header }, body: payload, signal: AbortSignal.timeout(15_000) });
+        const res = await fetch(webhookUrl, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json', 'stripe-signature': header },
+          body: payload,
+          signal: AbortSignal.timeout(15_000),
+        });
         await res.arrayBuffer();
         if (res.ok) return;
       } catch {
@@ -186,7 +204,14 @@ export async function startStripeFake(opts: StripeFakeOptions): Promise<StripeFa
     });
   }
 
-  function makeInvoice(customer: string, lines: { description: string; quantity: number; unitAmount: number; price: Obj | null }[], currency: string, paid: boolean, sub: Obj | null, metadata: Record<string, string> = {}): Obj {
+  function makeInvoice(
+    customer: string,
+    lines: { description: string; quantity: number; unitAmount: number; price: Obj | null }[],
+    currency: string,
+    paid: boolean,
+    sub: Obj | null,
+    metadata: Record<string, string> = {},
+  ): Obj {
     const id = newId('in');
     const t = now();
     const total = lines.reduce((a, l) => a + l.quantity * l.unitAmount, 0);
@@ -219,7 +244,16 @@ export async function startStripeFake(opts: StripeFakeOptions): Promise<StripeFa
         object: 'list',
         has_more: false,
         url: `/v1/invoices/${id}/lines`,
-        data: lines.map((l) => ({ id: newId('il'), object: 'line_item', amount: l.quantity * l.unitAmount, currency, description: l.description, quantity: l.quantity, metadata: {}, period: { start: item?.current_period_start ?? t, end: item?.current_period_end ?? t } })),
+        data: lines.map((l) => ({
+          id: newId('il'),
+          object: 'line_item',
+          amount: l.quantity * l.unitAmount,
+          currency,
+          description: l.description,
+          quantity: l.quantity,
+          metadata: {},
+          period: { start: item?.current_period_start ?? t, end: item?.current_period_end ?? t },
+        })),
       },
     });
   }
@@ -230,7 +264,8 @@ export async function startStripeFake(opts: StripeFakeOptions): Promise<StripeFa
   // --- hosted page ----------------------------------------------------------------------------------
   // A refused card re-renders the form with the reason (status 200, as a hosted page does), not an HTTP error.
   function payPage(res: Response, title: string, summary: string, error: string | null) {
-    res.status(200).type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1">
+    res.status(200).type('html')
+      .send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1">
 <title>${esc(title)} · local test payment</title>
 <style>body{font-family:system-ui,sans-serif;margin:0;background:#eef1f4;color:#1b2330}main{max-width:420px;margin:0 auto;padding:24px}
 section{background:#fff;border:1px solid #cfd6de;border-radius:12px;padding:20px;display:grid;gap:12px}label{display:grid;gap:4px;font-weight:600}
@@ -246,9 +281,16 @@ ${error ? `<p class="err" role="alert" data-testid="pay-error">${esc(error)}</p>
 <button type="submit" data-testid="pay-submit">Pay</button></div></form></section></main></body></html>`);
   }
   function donePage(res: Response, message: string) {
-    res.type('html').send(`<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Paid · local test payment</title></head><body style="font-family:system-ui,sans-serif;padding:24px"><p data-testid="pay-done">${esc(message)}</p></body></html>`);
+    res
+      .type('html')
+      .send(
+        `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Paid · local test payment</title></head><body style="font-family:system-ui,sans-serif;padding:24px"><p data-testid="pay-done">${esc(message)}</p></body></html>`,
+      );
   }
-  const sessionSummary = (s: Obj) => `${lineItemsOf(s).map((l) => `${l.quantity} × ${l.price?.nickname ?? l.priceData?.productName ?? 'item'}`).join(', ')} — ${money(s.amount_total, s.currency)}`;
+  const sessionSummary = (s: Obj) =>
+    `${lineItemsOf(s)
+      .map((l) => `${l.quantity} × ${l.price?.nickname ?? l.priceData?.productName ?? 'item'}`)
+      .join(', ')} — ${money(s.amount_total, s.currency)}`;
 
   async function completeSession(s: Obj): Promise<void> {
     const lines = lineItemsOf(s);
@@ -306,186 +348,302 @@ ${error ? `<p class="err" role="alert" data-testid="pay-error">${esc(error)}</p>
   };
 
   /** An API route: checks the key, replays an idempotent POST, and maps FakeError to Stripe's error body. */
-  const route = (handler: (req: Request) => Promise<{ status?: number; body: unknown }> | { status?: number; body: unknown }) => async (req: Request, res: Response) => {
-    try {
-      const auth = req.get('authorization') ?? '';
-      if (auth !== `Bearer ${apiKey}`) throw new FakeError(401, 'invalid_request_error', 'api_key_invalid', 'Invalid API Key provided');
-      const key = req.method === 'POST' ? req.get('idempotency-key') : undefined;
-      const fingerprint = `${req.method} ${req.path} ${JSON.stringify(req.body ?? {})}`;
-      if (key) {
-        const seen = idempotency.get(key);
-        if (seen) {
-          if (seen.fingerprint !== fingerprint) {
-            throw new FakeError(400, 'idempotency_error', undefined, `Keys for idempotent requests can only be used with the same parameters they were first used with. Try using a key other than '${key}' if you meant to execute a different request.`);
+  const route =
+    (handler: (req: Request) => Promise<{ status?: number; body: unknown }> | { status?: number; body: unknown }) => async (req: Request, res: Response) => {
+      try {
+        const auth = req.get('authorization') ?? '';
+        if (auth !== `Bearer ${apiKey}`) throw new FakeError(401, 'invalid_request_error', 'api_key_invalid', 'Invalid API Key provided');
+        const key = req.method === 'POST' ? req.get('idempotency-key') : undefined;
+        const fingerprint = `${req.method} ${req.path} ${JSON.stringify(req.body ?? {})}`;
+        if (key) {
+          const seen = idempotency.get(key);
+          if (seen) {
+            if (seen.fingerprint !== fingerprint) {
+              throw new FakeError(
+                400,
+                'idempotency_error',
+                undefined,
+                `Keys for idempotent requests can only be used with the same parameters they were first used with. Try using a key other than '${key}' if you meant to execute a different request.`,
+              );
+            }
+            res.status(seen.status).set('idempotent-replayed', 'true').json(seen.body);
+            return;
           }
-          res.status(seen.status).set('idempotent-replayed', 'true').json(seen.body);
-          return;
+        }
+        const out = await handler(req);
+        const status = out.status ?? 200;
+        if (key) {
+          idempotency.set(key, { fingerprint, status, body: out.body });
+          if (idempotency.size > MAX_IDEMPOTENCY_KEYS) idempotency.delete(idempotency.keys().next().value!);
+        }
+        res.status(status).json(out.body);
+      } catch (e) {
+        fail(res, e);
+      }
+    };
+  const strip = (o: Obj) => Object.fromEntries(Object.entries(o).filter(([k]) => !k.startsWith('_')));
+  const meta = (v: unknown): Record<string, string> =>
+    v && typeof v === 'object' ? Object.fromEntries(Object.entries(v).map(([k, x]) => [k, String(x)])) : {};
+
+  app.post(
+    '/v1/customers',
+    route((req) => ({
+      body: put({
+        id: newId('cus'),
+        object: 'customer',
+        created: now(),
+        name: req.body.name ?? null,
+        email: req.body.email ?? null,
+        metadata: meta(req.body.metadata),
+        livemode: false,
+        balance: 0,
+        currency: null,
+        delinquent: false,
+        description: null,
+        invoice_prefix: 'YPF',
+      }),
+    })),
+  );
+  app.get(
+    '/v1/customers/:id',
+    route((req) => ({ body: find(req.params.id as string, 'customer', 'customer') })),
+  );
+
+  app.post(
+    '/v1/products',
+    route((req) => {
+      if (!req.body.name) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Missing required param: name.', 'name');
+      return {
+        body: put({
+          id: newId('prod'),
+          object: 'product',
+          created: now(),
+          name: req.body.name,
+          active: true,
+          metadata: meta(req.body.metadata),
+          livemode: false,
+          description: null,
+          updated: now(),
+        }),
+      };
+    }),
+  );
+  app.post(
+    '/v1/prices',
+    route((req) => {
+      const b = req.body;
+      find(b.product, 'product', 'product');
+      if (b.lookup_key && ofType('price').some((p) => p.lookup_key === b.lookup_key)) {
+        throw new FakeError(400, 'invalid_request_error', 'lookup_key_exists', `A price (\`${b.lookup_key}\`) already uses that lookup key.`, 'lookup_key');
+      }
+      const unit = toInt(b.unit_amount, 'unit_amount');
+      if (unit < 0) throw badParam('unit_amount', 'unit_amount must be at least 0');
+      return {
+        body: put({
+          id: newId('price'),
+          object: 'price',
+          created: now(),
+          active: true,
+          currency: String(b.currency ?? '').toLowerCase(),
+          lookup_key: b.lookup_key ?? null,
+          nickname: b.nickname ?? null,
+          product: b.product,
+          recurring: b.recurring
+            ? { interval: b.recurring.interval ?? 'month', interval_count: 1, usage_type: 'licensed', meter: null, trial_period_days: null }
+            : null,
+          type: b.recurring ? 'recurring' : 'one_time',
+          unit_amount: unit,
+          unit_amount_decimal: String(unit),
+          billing_scheme: 'per_unit',
+          livemode: false,
+          metadata: meta(b.metadata),
+          tax_behavior: 'unspecified',
+          tiers_mode: null,
+          transform_quantity: null,
+        }),
+      };
+    }),
+  );
+  app.get(
+    '/v1/prices',
+    route((req) => {
+      const keys = asArray(req.query.lookup_keys).map(String);
+      return {
+        body: list(
+          '/v1/prices',
+          ofType('price').filter((p) => !keys.length || keys.includes(p.lookup_key)),
+          req.query,
+        ),
+      };
+    }),
+  );
+  app.get(
+    '/v1/prices/:id',
+    route((req) => ({ body: find(req.params.id as string, 'price', 'price') })),
+  );
+
+  app.post(
+    '/v1/checkout/sessions',
+    route((req) => {
+      const b = req.body;
+      if (b.mode !== 'subscription' && b.mode !== 'payment') throw badParam('mode', 'mode must be subscription or payment in the local fake');
+      if (!b.success_url) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Missing required param: success_url.', 'success_url');
+      if (!b.customer) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'The local fake needs a customer.', 'customer');
+      find(b.customer, 'customer', 'customer');
+      const lines = asArray(b.line_items).map((l, i) => {
+        const quantity = toInt(l.quantity ?? 1, `line_items[${i}][quantity]`);
+        if (quantity < 1) throw badParam(`line_items[${i}][quantity]`, 'Quantity must be at least 1');
+        if (l.price) return { price: find(l.price, 'price', 'price'), priceData: null, quantity };
+        if (!l.price_data)
+          throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Each line item needs price or price_data.', `line_items[${i}]`);
+        const product = find(l.price_data.product, 'product', 'product');
+        return {
+          price: null,
+          priceData: {
+            currency: String(l.price_data.currency).toLowerCase(),
+            unitAmount: toInt(l.price_data.unit_amount, `line_items[${i}][price_data][unit_amount]`),
+            productName: product.name as string,
+          },
+          quantity,
+        };
+      });
+      if (!lines.length) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Missing required param: line_items.', 'line_items');
+      if (b.mode === 'subscription' && (lines.length !== 1 || !lines[0]!.price?.recurring))
+        throw badParam('line_items', 'The local fake takes one recurring price per subscription');
+      if (b.mode === 'payment' && lines.some((l) => l.price?.recurring))
+        throw badParam('line_items', 'You must provide at least one recurring price in `subscription` mode when using prices.');
+      const currency = lines[0]!.price?.currency ?? lines[0]!.priceData!.currency;
+      const t = now();
+      const id = newId('cs_test');
+      const session = put({
+        id,
+        object: 'checkout.session',
+        created: t,
+        expires_at: t + 86_400,
+        mode: b.mode,
+        status: 'open',
+        payment_status: 'unpaid',
+        customer: b.customer,
+        client_reference_id: b.client_reference_id ?? null,
+        currency,
+        amount_subtotal: lines.reduce((a, l) => a + l.quantity * (l.price?.unit_amount ?? l.priceData!.unitAmount), 0),
+        amount_total: lines.reduce((a, l) => a + l.quantity * (l.price?.unit_amount ?? l.priceData!.unitAmount), 0),
+        metadata: meta(b.metadata),
+        success_url: b.success_url,
+        cancel_url: b.cancel_url ?? null,
+        subscription: null,
+        invoice: null,
+        livemode: false,
+        url: `${baseUrl}/pay/${id}`,
+        _lines: lines,
+        _subscriptionMetadata: meta(b.subscription_data?.metadata),
+        _invoiceCreation: b.invoice_creation?.enabled === 'true',
+      });
+      return { body: strip(session) };
+    }),
+  );
+  app.get(
+    '/v1/checkout/sessions/:id',
+    route((req) => ({ body: strip(find(req.params.id as string, 'checkout.session', 'checkout.session')) })),
+  );
+
+  app.get(
+    '/v1/subscriptions/:id',
+    route((req) => ({ body: find(req.params.id as string, 'subscription', 'subscription') })),
+  );
+  app.get(
+    '/v1/subscriptions',
+    route((req) => ({
+      body: list(
+        '/v1/subscriptions',
+        ofType('subscription').filter((s) => !req.query.customer || s.customer === req.query.customer),
+        req.query,
+      ),
+    })),
+  );
+  app.post(
+    '/v1/subscriptions/:id',
+    route(async (req) => {
+      const sub = find(req.params.id as string, 'subscription', 'subscription');
+      if (sub.status === 'canceled')
+        throw new FakeError(400, 'invalid_request_error', 'resource_missing', 'A canceled subscription can only update its cancellation_details and metadata.');
+      const previous: Record<string, unknown> = {};
+      for (const [i, change] of asArray(req.body.items).entries()) {
+        const item = sub.items.data.find((it: Obj) => it.id === change.id);
+        if (!item) throw badParam(`items[${i}][id]`, `No such subscription item: '${change.id}'`);
+        if (change.quantity !== undefined) {
+          const q = toInt(change.quantity, `items[${i}][quantity]`);
+          if (q < 1) throw badParam(`items[${i}][quantity]`, 'Quantity must be at least 1');
+          previous.items = structuredClone(sub.items);
+          item.quantity = q;
         }
       }
-      const out = await handler(req);
-      const status = out.status ?? 200;
-      if (key) {
-        idempotency.set(key, { fingerprint, status, body: out.body });
-        if (idempotency.size > MAX_IDEMPOTENCY_KEYS) idempotency.delete(idempotency.keys().next().value!);
+      if (req.body.metadata) {
+        previous.metadata = sub.metadata;
+        sub.metadata = { ...sub.metadata, ...meta(req.body.metadata) };
       }
-      res.status(status).json(out.body);
-    } catch (e) {
-      fail(res, e);
-    }
-  };
-  const strip = (o: Obj) => Object.fromEntries(Object.entries(o).filter(([k]) => !k.startsWith('_')));
-  const meta = (v: unknown): Record<string, string> => (v && typeof v === 'object' ? Object.fromEntries(Object.entries(v).map(([k, x]) => [k, String(x)])) : {});
+      if (Object.keys(previous).length) await emit('customer.subscription.updated', sub, previous);
+      return { body: sub };
+    }),
+  );
+  app.delete(
+    '/v1/subscriptions/:id',
+    route(async (req) => {
+      const sub = find(req.params.id as string, 'subscription', 'subscription');
+      Object.assign(sub, { status: 'canceled', canceled_at: now(), ended_at: now() });
+      await emit('customer.subscription.deleted', sub);
+      return { body: sub };
+    }),
+  );
 
-  app.post('/v1/customers', route((req) => ({ body: put({ id: newId('cus'), object: 'customer', created: now(), name: req.body.name ?? null, email: req.body.email ?? null, metadata: meta(req.body.metadata), livemode: false, balance: 0, currency: null, delinquent: false, description: null, invoice_prefix: 'YPF' }) })));
-  app.get('/v1/customers/:id', route((req) => ({ body: find(req.params.id as string, 'customer', 'customer') })));
-
-  app.post('/v1/products', route((req) => {
-    if (!req.body.name) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Missing required param: name.', 'name');
-    return { body: put({ id: newId('prod'), object: 'product', created: now(), name: req.body.name, active: true, metadata: meta(req.body.metadata), livemode: false, description: null, updated: now() }) };
-  }));
-  app.post('/v1/prices', route((req) => {
-    const b = req.body;
-    find(b.product, 'product', 'product');
-    if (b.lookup_key && ofType('price').some((p) => p.lookup_key === b.lookup_key)) {
-      throw new FakeError(400, 'invalid_request_error', 'lookup_key_exists', `A price (\`${b.lookup_key}\`) already uses that lookup key.`, 'lookup_key');
-    }
-    const unit = toInt(b.unit_amount, 'unit_amount');
-    if (unit < 0) throw badParam('unit_amount', 'unit_amount must be at least 0');
-    return {
-      body: put({
-        id: newId('price'),
-        object: 'price',
-        created: now(),
-        active: true,
-        currency: String(b.currency ?? '').toLowerCase(),
-        lookup_key: b.lookup_key ?? null,
-        nickname: b.nickname ?? null,
-        product: b.product,
-        recurring: b.recurring ? { interval: b.recurring.interval ?? 'month', interval_count: 1, usage_type: 'licensed', meter: null, trial_period_days: null } : null,
-        type: b.recurring ? 'recurring' : 'one_time',
-        unit_amount: unit,
-        unit_amount_decimal: String(unit),
-        billing_scheme: 'per_unit',
-        livemode: false,
-        metadata: meta(b.metadata),
-        tax_behavior: 'unspecified',
-        tiers_mode: null,
-        transform_quantity: null,
-      }),
-    };
-  }));
-  app.get('/v1/prices', route((req) => {
-    const keys = asArray(req.query.lookup_keys).map(String);
-    return { body: list('/v1/prices', ofType('price').filter((p) => !keys.length || keys.includes(p.lookup_key)), req.query) };
-  }));
-  app.get('/v1/prices/:id', route((req) => ({ body: find(req.params.id as string, 'price', 'price') })));
-
-  app.post('/v1/checkout/sessions', route((req) => {
-    const b = req.body;
-    if (b.mode !== 'subscription' && b.mode !== 'payment') throw badParam('mode', 'mode must be subscription or payment in the local fake');
-    if (!b.success_url) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Missing required param: success_url.', 'success_url');
-    if (!b.customer) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'The local fake needs a customer.', 'customer');
-    find(b.customer, 'customer', 'customer');
-    const lines = asArray(b.line_items).map((l, i) => {
-      const quantity = toInt(l.quantity ?? 1, `line_items[${i}][quantity]`);
-      if (quantity < 1) throw badParam(`line_items[${i}][quantity]`, 'Quantity must be at least 1');
-      if (l.price) return { price: find(l.price, 'price', 'price'), priceData: null, quantity };
-      if (!l.price_data) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Each line item needs price or price_data.', `line_items[${i}]`);
-      const product = find(l.price_data.product, 'product', 'product');
-      return { price: null, priceData: { currency: String(l.price_data.currency).toLowerCase(), unitAmount: toInt(l.price_data.unit_amount, `line_items[${i}][price_data][unit_amount]`), productName: product.name as string }, quantity };
-    });
-    if (!lines.length) throw new FakeError(400, 'invalid_request_error', 'parameter_missing', 'Missing required param: line_items.', 'line_items');
-    if (b.mode === 'subscription' && (lines.length !== 1 || !lines[0]!.price?.recurring)) throw badParam('line_items', 'The local fake takes one recurring price per subscription');
-    if (b.mode === 'payment' && lines.some((l) => l.price?.recurring)) throw badParam('line_items', 'You must provide at least one recurring price in `subscription` mode when using prices.');
-    const currency = lines[0]!.price?.currency ?? lines[0]!.priceData!.currency;
-    const t = now();
-    const id = newId('cs_test');
-    const session = put({
-      id,
-      object: 'checkout.session',
-      created: t,
-      expires_at: t + 86_400,
-      mode: b.mode,
-      status: 'open',
-      payment_status: 'unpaid',
-      customer: b.customer,
-      client_reference_id: b.client_reference_id ?? null,
-      currency,
-      amount_subtotal: lines.reduce((a, l) => a + l.quantity * (l.price?.unit_amount ?? l.priceData!.unitAmount), 0),
-      amount_total: lines.reduce((a, l) => a + l.quantity * (l.price?.unit_amount ?? l.priceData!.unitAmount), 0),
-      metadata: meta(b.metadata),
-      success_url: b.success_url,
-      cancel_url: b.cancel_url ?? null,
-      subscription: null,
-      invoice: null,
-      livemode: false,
-      url: `${baseUrl}/pay/${id}`,
-      _lines: lines,
-      _subscriptionMetadata: meta(b.subscription_data?.metadata),
-      _invoiceCreation: b.invoice_creation?.enabled === 'true',
-    });
-    return { body: strip(session) };
-  }));
-  app.get('/v1/checkout/sessions/:id', route((req) => ({ body: strip(find(req.params.id as string, 'checkout.session', 'checkout.session')) })));
-
-  app.get('/v1/subscriptions/:id', route((req) => ({ body: find(req.params.id as string, 'subscription', 'subscription') })));
-  app.get('/v1/subscriptions', route((req) => ({ body: list('/v1/subscriptions', ofType('subscription').filter((s) => !req.query.customer || s.customer === req.query.customer), req.query) })));
-  app.post('/v1/subscriptions/:id', route(async (req) => {
-    const sub = find(req.params.id as string, 'subscription', 'subscription');
-    if (sub.status === 'canceled') throw new FakeError(400, 'invalid_request_error', 'resource_missing', 'A canceled subscription can only update its cancellation_details and metadata.');
-    const previous: Record<string, unknown> = {};
-    for (const [i, change] of asArray(req.body.items).entries()) {
-      const item = sub.items.data.find((it: Obj) => it.id === change.id);
-      if (!item) throw badParam(`items[${i}][id]`, `No such subscription item: '${change.id}'`);
-      if (change.quantity !== undefined) {
-        const q = toInt(change.quantity, `items[${i}][quantity]`);
-        if (q < 1) throw badParam(`items[${i}][quantity]`, 'Quantity must be at least 1');
-        previous.items = structuredClone(sub.items);
-        item.quantity = q;
-      }
-    }
-    if (req.body.metadata) {
-      previous.metadata = sub.metadata;
-      sub.metadata = { ...sub.metadata, ...meta(req.body.metadata) };
-    }
-    if (Object.keys(previous).length) await emit('customer.subscription.updated', sub, previous);
-    return { body: sub };
-  }));
-  app.delete('/v1/subscriptions/:id', route(async (req) => {
-    const sub = find(req.params.id as string, 'subscription', 'subscription');
-    Object.assign(sub, { status: 'canceled', canceled_at: now(), ended_at: now() });
-    await emit('customer.subscription.deleted', sub);
-    return { body: sub };
-  }));
-
-  app.get('/v1/invoices', route((req) => {
-    const q = req.query;
-    return {
-      body: list(
-        '/v1/invoices',
-        ofType('invoice').filter((i) => (!q.customer || i.customer === q.customer) && (!q.subscription || i.parent?.subscription_details?.subscription === q.subscription) && (!q.status || i.status === q.status)),
-        q,
-      ),
-    };
-  }));
-  app.get('/v1/invoices/:id', route((req) => ({ body: find(req.params.id as string, 'invoice', 'invoice') })));
+  app.get(
+    '/v1/invoices',
+    route((req) => {
+      const q = req.query;
+      return {
+        body: list(
+          '/v1/invoices',
+          ofType('invoice').filter(
+            (i) =>
+              (!q.customer || i.customer === q.customer) &&
+              (!q.subscription || i.parent?.subscription_details?.subscription === q.subscription) &&
+              (!q.status || i.status === q.status),
+          ),
+          q,
+        ),
+      };
+    }),
+  );
+  app.get(
+    '/v1/invoices/:id',
+    route((req) => ({ body: find(req.params.id as string, 'invoice', 'invoice') })),
+  );
 
   // Not part of Stripe's API: what a renewal would do at the end of a period, on request, for tests and demos.
-  app.post('/_fake/subscriptions/:id/renew', route(async (req) => {
-    const sub = find(req.params.id as string, 'subscription', 'subscription');
-    const card = cardOutcome(String(req.body.card ?? TEST_CARDS.accepted));
-    const item = sub.items.data[0];
-    const start = item.current_period_end;
-    Object.assign(item, { current_period_start: start, current_period_end: start + PERIOD_S });
-    const paid = card?.outcome === 'paid';
-    const inv = makeInvoice(sub.customer, [{ description: item.price.nickname ?? 'Seat', quantity: item.quantity, unitAmount: item.price.unit_amount, price: item.price }], sub.currency, paid, sub);
-    sub.latest_invoice = inv.id;
-    const before = sub.status;
-    sub.status = paid ? 'active' : 'past_due';
-    await emit(paid ? 'invoice.paid' : 'invoice.payment_failed', inv);
-    await emit('customer.subscription.updated', sub, { status: before });
-    return { body: inv };
-  }));
+  app.post(
+    '/_fake/subscriptions/:id/renew',
+    route(async (req) => {
+      const sub = find(req.params.id as string, 'subscription', 'subscription');
+      const card = cardOutcome(String(req.body.card ?? TEST_CARDS.accepted));
+      const item = sub.items.data[0];
+      const start = item.current_period_end;
+      Object.assign(item, { current_period_start: start, current_period_end: start + PERIOD_S });
+      const paid = card?.outcome === 'paid';
+      const inv = makeInvoice(
+        sub.customer,
+        [{ description: item.price.nickname ?? 'Seat', quantity: item.quantity, unitAmount: item.price.unit_amount, price: item.price }],
+        sub.currency,
+        paid,
+        sub,
+      );
+      sub.latest_invoice = inv.id;
+      const before = sub.status;
+      sub.status = paid ? 'active' : 'past_due';
+      await emit(paid ? 'invoice.paid' : 'invoice.payment_failed', inv);
+      await emit('customer.subscription.updated', sub, { status: before });
+      return { body: inv };
+    }),
+  );
 
   app.get('/favicon.ico', (_req, res) => void res.status(204).end());
   app.get('/pay/:id', (req, res) => {
@@ -499,7 +657,8 @@ ${error ? `<p class="err" role="alert" data-testid="pay-error">${esc(error)}</p>
     try {
       const o = store.get(req.params.id);
       const isSession = o?.object === 'checkout.session';
-      if (!o || !(isSession || o.object === 'invoice') || o.status !== 'open') return void res.status(404).type('text').send('This payment page has expired or does not exist.');
+      if (!o || !(isSession || o.object === 'invoice') || o.status !== 'open')
+        return void res.status(404).type('text').send('This payment page has expired or does not exist.');
       const title = isSession ? 'Yieldpoint seats' : `Invoice ${o.number}`;
       const summary = isSession ? sessionSummary(o) : money(o.amount_due, o.currency);
       const card = cardOutcome(String(req.body.card ?? ''));
@@ -515,7 +674,17 @@ ${error ? `<p class="err" role="alert" data-testid="pay-error">${esc(error)}</p>
       fail(res, e);
     }
   });
-  app.use((req, res) => fail(res, new FakeError(404, 'invalid_request_error', 'url_invalid', `Unrecognized request URL (${req.method}: ${req.path}). The local fake serves only what Yieldpoint uses.`)));
+  app.use((req, res) =>
+    fail(
+      res,
+      new FakeError(
+        404,
+        'invalid_request_error',
+        'url_invalid',
+        `Unrecognized request URL (${req.method}: ${req.path}). The local fake serves only what Yieldpoint uses.`,
+      ),
+    ),
+  );
 
   const server: Server = await new Promise((resolve, reject) => {
     const s = app.listen(opts.port ?? 0, '127.0.0.1', () => resolve(s));
@@ -534,7 +703,21 @@ ${error ? `<p class="err" role="alert" data-testid="pay-error">${esc(error)}</p>
     },
     adopt(s) {
       const price = find(s.priceId, 'price', 'price');
-      if (!store.has(s.customerId)) put({ id: s.customerId, object: 'customer', created: now(), name: s.customerName, email: null, metadata: {}, livemode: false, balance: 0, currency: null, delinquent: false, description: null, invoice_prefix: 'YPF' });
+      if (!store.has(s.customerId))
+        put({
+          id: s.customerId,
+          object: 'customer',
+          created: now(),
+          name: s.customerName,
+          email: null,
+          metadata: {},
+          livemode: false,
+          balance: 0,
+          currency: null,
+          delinquent: false,
+          description: null,
+          invoice_prefix: 'YPF',
+        });
       if (store.has(s.subscriptionId)) return;
       const sub = makeSubscription(s.customerId, price, s.quantity, s.metadata, { id: s.subscriptionId, itemId: s.itemId });
       sub.status = s.status;

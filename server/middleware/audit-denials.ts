@@ -83,7 +83,10 @@ export function auditDenials(ctx: Services): RequestHandler {
     const first: AuditInput = {
       siteId: key === 'many' ? null : (user?.siteId ?? null),
       userId: key === 'many' ? null : (user?.id ?? null),
-      actor: key === 'many' ? `more than ${DENIAL_LIMITS.callersPerMinute} callers this minute` : cut(user?.email ?? `anonymous@${req.ip ?? 'unknown'}`, DENIAL_LIMITS.actorChars),
+      actor:
+        key === 'many'
+          ? `more than ${DENIAL_LIMITS.callersPerMinute} callers this minute`
+          : cut(user?.email ?? `anonymous@${req.ip ?? 'unknown'}`, DENIAL_LIMITS.actorChars),
       action: 'access.denied',
       entity: 'route',
       entityId: route,

@@ -29,5 +29,9 @@ export function firstIllFormed(value: unknown, path: string[] = []): string | nu
 export const requireWellFormedText: RequestHandler = (req, _res, next) => {
   const field = firstIllFormed(req.body, typeof req.body === 'string' ? ['file'] : []) ?? firstIllFormed(req.query);
   if (!field) return next();
-  next(new HttpError(400, 'invalid_input', 'Some text is not well-formed Unicode', { [field]: 'Contains a broken character (an unpaired surrogate); retype this text' }));
+  next(
+    new HttpError(400, 'invalid_input', 'Some text is not well-formed Unicode', {
+      [field]: 'Contains a broken character (an unpaired surrogate); retype this text',
+    }),
+  );
 };

@@ -21,7 +21,13 @@ export async function startDemoPlant(db: Db, siteId: number, opts: { port: numbe
     const r = cache.rows.find((x) => x.vessel.name === tag);
     return r?.program && r.startedAt ? plannedAt(r.program, Math.max(0, batchHours(r.startedAt, at.toISOString()))) : IDLE_C;
   };
-  const plant = await startPlant({ port: opts.port, pkiFolder: opts.pkiFolder, users: [DEMO_PLANT_USER], tags: cache.rows.map((r) => r.vessel.name), setpointOf });
+  const plant = await startPlant({
+    port: opts.port,
+    pkiFolder: opts.pkiFolder,
+    users: [DEMO_PLANT_USER],
+    tags: cache.rows.map((r) => r.vessel.name),
+    setpointOf,
+  });
   // Vessels created later get their tag on the next tick.
   const adder = setInterval(() => cache.rows.forEach((r) => plant.addTag(r.vessel.name)), 5000);
   return { ...plant, close: () => (clearInterval(adder), plant.close()) };

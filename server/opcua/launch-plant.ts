@@ -26,7 +26,9 @@ export function launchPlant(db: Db, env: Pick<ServerEnv, 'plantSim'>, dataDir: s
     })
     .then(
       (plant) => {
-        console.log(`Simulated plant (OPC UA): ${plant.endpointUrl}, user ${DEMO_PLANT_USER.userName} / ${DEMO_PLANT_USER.password}, tags ${plant.nodeIdOf('<vessel name>')}`);
+        console.log(
+          `Simulated plant (OPC UA): ${plant.endpointUrl}, user ${DEMO_PLANT_USER.userName} / ${DEMO_PLANT_USER.password}, tags ${plant.nodeIdOf('<vessel name>')}`,
+        );
         return plant;
       },
       (err: unknown) => {

@@ -85,7 +85,9 @@ export async function startPlant(o: PlantOptions): Promise<Plant> {
   const random = o.random ?? Math.random;
   const serverCertificateManager = new OPCUACertificateManager({ rootFolder: o.pkiFolder, automaticallyAcceptUnknownCertificate: o.trustClients !== 'listed' });
   await serverCertificateManager.initialize();
-  const userCertificateManager = o.userCertificates ? new OPCUACertificateManager({ rootFolder: o.userCertificates, automaticallyAcceptUnknownCertificate: false }) : null;
+  const userCertificateManager = o.userCertificates
+    ? new OPCUACertificateManager({ rootFolder: o.userCertificates, automaticallyAcceptUnknownCertificate: false })
+    : null;
   await userCertificateManager?.initialize();
   const server = new OPCUAServer({
     port,
@@ -129,7 +131,12 @@ export async function startPlant(o: PlantOptions): Promise<Plant> {
           refreshFunc: (done) => {
             const at = new Date();
             const c = measure(tag, at);
-            done(null, c === null ? node.readValue() : new DataValue({ value: { dataType: DataType.Double, value: c }, statusCode: StatusCodes.Good, sourceTimestamp: at, serverTimestamp: at }));
+            done(
+              null,
+              c === null
+                ? node.readValue()
+                : new DataValue({ value: { dataType: DataType.Double, value: c }, statusCode: StatusCodes.Good, sourceTimestamp: at, serverTimestamp: at }),
+            );
           },
         },
         true,

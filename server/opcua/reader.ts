@@ -107,7 +107,8 @@ function createClient(o: ChannelOptions, secure: boolean) {
 export function explain(err: unknown, o: Pick<Connection, 'endpointUrl'> & Partial<Pick<Connection, 'userCertificate'>> & { pki?: AppPki }): string {
   const m = err instanceof Error ? err.message : String(err);
   const thumb = (which: 'certificate' | 'userCertificate') => (o.pki ? ` (thumbprint ${o.pki[which]().thumbprint})` : '');
-  if (/ECONNREFUSED|ENOTFOUND|EHOSTUNREACH|ETIMEDOUT|connect failed|Connection Break|socket has been disconnected/i.test(m)) return `No OPC UA server answers at ${o.endpointUrl}`;
+  if (/ECONNREFUSED|ENOTFOUND|EHOSTUNREACH|ETIMEDOUT|connect failed|Connection Break|socket has been disconnected/i.test(m))
+    return `No OPC UA server answers at ${o.endpointUrl}`;
   if (/server Certificate verification failed/i.test(m))
     return "The server's certificate is not trusted: an admin compares its thumbprint and trusts it on the vessel's source";
   if (/BadUserAccessDenied|BadIdentityTokenRejected|BadIdentityTokenInvalid/.test(m))
@@ -116,7 +117,8 @@ export function explain(err: unknown, o: Pick<Connection, 'endpointUrl'> & Parti
       : 'The server refused the user name or password';
   if (/BadCertificate|BadSecurityChecksFailed/.test(m))
     return `The server did not accept Yieldpoint's application certificate${thumb('certificate')}: its admin moves it from the server's rejected certificates to the trusted ones`;
-  if (/BadSecurityPolicyRejected|BadSecurityModeRejected|cannot find endpoint|No endpoint/i.test(m)) return 'The server offers no endpoint with this security policy and mode';
+  if (/BadSecurityPolicyRejected|BadSecurityModeRejected|cannot find endpoint|No endpoint/i.test(m))
+    return 'The server offers no endpoint with this security policy and mode';
   return m.split('\n')[0]!.slice(0, 300);
 }
 
@@ -197,7 +199,11 @@ export async function openReader(o: ReaderOptions, publishingIntervalMs: number)
           // Room for a few publishing intervals of values, so none is dropped between two publish answers.
           queueSize: 100,
           discardOldest: true,
-          filter: new DataChangeFilter({ trigger: DataChangeTrigger.StatusValue, deadbandType: opts.deadband > 0 ? DeadbandType.Absolute : DeadbandType.None, deadbandValue: opts.deadband }),
+          filter: new DataChangeFilter({
+            trigger: DataChangeTrigger.StatusValue,
+            deadbandType: opts.deadband > 0 ? DeadbandType.Absolute : DeadbandType.None,
+            deadbandValue: opts.deadband,
+          }),
         },
         TimestampsToReturn.Both,
       );
@@ -213,10 +219,15 @@ export async function openReader(o: ReaderOptions, publishingIntervalMs: number)
       let start = from;
       // A server may answer a long span in pages: ask again from the last value until a short page comes back.
       for (let page = 0; page < 100; page++) {
-        const r = await s.readHistoryValue({ nodeId: resolveNodeId(nodeId) }, start, to, { numValuesPerNode: 10_000, timestampsToReturn: TimestampsToReturn.Both });
+        const r = await s.readHistoryValue({ nodeId: resolveNodeId(nodeId) }, start, to, {
+          numValuesPerNode: 10_000,
+          timestampsToReturn: TimestampsToReturn.Both,
+        });
         if (r.statusCode.isNotGood() && r.statusCode.value !== StatusCodes.GoodNoData.value)
           return { supported: false, reason: `History read answered ${r.statusCode.name}` };
-        const got = ((r.historyData as HistoryData | null)?.dataValues ?? []).filter((dv) => !values.length || (dv.sourceTimestamp?.getTime() ?? 0) > start.getTime());
+        const got = ((r.historyData as HistoryData | null)?.dataValues ?? []).filter(
+          (dv) => !values.length || (dv.sourceTimestamp?.getTime() ?? 0) > start.getTime(),
+        );
         values.push(...got);
         if (!r.continuationPoint?.length && got.length < 10_000) break;
         const last = got.at(-1)?.sourceTimestamp;

@@ -8,9 +8,17 @@ const sameSite = (siteId: number | null) => (siteId === null ? isNull(auditEvent
 
 // On every write path, so prepared (per connection or transaction handle).
 const lastHashOfSite = preparedPer((db) =>
-  db.select({ hash: auditEvents.hash }).from(auditEvents).where(eq(auditEvents.siteId, sql.placeholder('siteId'))).orderBy(desc(auditEvents.id)).limit(1).prepare(),
+  db
+    .select({ hash: auditEvents.hash })
+    .from(auditEvents)
+    .where(eq(auditEvents.siteId, sql.placeholder('siteId')))
+    .orderBy(desc(auditEvents.id))
+    .limit(1)
+    .prepare(),
 );
-const lastHashOfNoSite = preparedPer((db) => db.select({ hash: auditEvents.hash }).from(auditEvents).where(isNull(auditEvents.siteId)).orderBy(desc(auditEvents.id)).limit(1).prepare());
+const lastHashOfNoSite = preparedPer((db) =>
+  db.select({ hash: auditEvents.hash }).from(auditEvents).where(isNull(auditEvents.siteId)).orderBy(desc(auditEvents.id)).limit(1).prepare(),
+);
 
 export const lastAuditHash = (db: Db, siteId: number | null) => (siteId === null ? lastHashOfNoSite(db).get() : lastHashOfSite(db).get({ siteId }))?.hash;
 
@@ -44,7 +52,13 @@ export const listAudit = (db: Db, siteId: number | null, opts: { action?: string
 
 /** Up to `limit` of a chain's events after the one with id `afterId`, in id order. */
 export const listAuditAfter = (db: Db, siteId: number | null, afterId: number, limit: number) =>
-  db.select().from(auditEvents).where(and(sameSite(siteId), gt(auditEvents.id, afterId))).orderBy(asc(auditEvents.id)).limit(limit).all();
+  db
+    .select()
+    .from(auditEvents)
+    .where(and(sameSite(siteId), gt(auditEvents.id, afterId)))
+    .orderBy(asc(auditEvents.id))
+    .limit(limit)
+    .all();
 
 export type AuditFilter = { action?: string; actor?: string; entity?: string; from?: string; to?: string };
 
@@ -62,17 +76,37 @@ const filterWhere = (siteId: number, f: AuditFilter): SQL | undefined =>
 /** Newest first, for the screen; the chain itself is verified oldest first. */
 export const findAudit = (db: Db, siteId: number, f: AuditFilter, limit: number, offset: number) => ({
   rows: db.select().from(auditEvents).where(filterWhere(siteId, f)).orderBy(desc(auditEvents.id)).limit(limit).offset(offset).all(),
-  total: db.select({ n: sql<number>`count(*)` }).from(auditEvents).where(filterWhere(siteId, f)).get()?.n ?? 0,
+  total:
+    db
+      .select({ n: sql<number>`count(*)` })
+      .from(auditEvents)
+      .where(filterWhere(siteId, f))
+      .get()?.n ?? 0,
 });
 
 /** A site's events of the given actions, oldest first (the audited states of decided records). */
 export const listAuditOfActions = (db: Db, siteId: number, actions: string[]) =>
-  db.select().from(auditEvents).where(and(eq(auditEvents.siteId, siteId), inArray(auditEvents.action, actions))).orderBy(asc(auditEvents.id)).all();
+  db
+    .select()
+    .from(auditEvents)
+    .where(and(eq(auditEvents.siteId, siteId), inArray(auditEvents.action, actions)))
+    .orderBy(asc(auditEvents.id))
+    .all();
 
 /** How many events a site's chain holds up to and including `lastId`, and that event's hash. */
 export const auditCountUpTo = (db: Db, siteId: number | null, lastId: number) => ({
-  events: db.select({ n: sql<number>`count(*)` }).from(auditEvents).where(and(sameSite(siteId), lte(auditEvents.id, lastId))).get()?.n ?? 0,
-  hash: db.select({ hash: auditEvents.hash }).from(auditEvents).where(and(sameSite(siteId), eq(auditEvents.id, lastId))).get()?.hash ?? null,
+  events:
+    db
+      .select({ n: sql<number>`count(*)` })
+      .from(auditEvents)
+      .where(and(sameSite(siteId), lte(auditEvents.id, lastId)))
+      .get()?.n ?? 0,
+  hash:
+    db
+      .select({ hash: auditEvents.hash })
+      .from(auditEvents)
+      .where(and(sameSite(siteId), eq(auditEvents.id, lastId)))
+      .get()?.hash ?? null,
 });
 
 /** Each chain's newest event and length: what a checkpoint seals. */

@@ -23,18 +23,29 @@ const joinedBatches = (db: Db) =>
 export type BatchJoined = NonNullable<ReturnType<typeof findSiteBatch>>;
 
 // Prepared (per connection or transaction handle) where a reading's path runs them: see preparedPer.
-const siteBatch = preparedPer((db) => joinedBatches(db).where(and(eq(batches.siteId, sql.placeholder('siteId')), eq(batches.id, sql.placeholder('id')))).prepare());
+const siteBatch = preparedPer((db) =>
+  joinedBatches(db)
+    .where(and(eq(batches.siteId, sql.placeholder('siteId')), eq(batches.id, sql.placeholder('id'))))
+    .prepare(),
+);
 export const findSiteBatch = (db: Db, siteId: number, id: number) => siteBatch(db).get({ siteId, id });
 
 export const listSiteBatches = (db: Db, siteId: number) => joinedBatches(db).where(eq(batches.siteId, siteId)).orderBy(desc(batches.id)).limit(500).all();
 
 export const runningBatchOnVessel = (db: Db, siteId: number, vesselId: number) =>
-  db.select({ id: batches.id }).from(batches).where(and(eq(batches.siteId, siteId), eq(batches.vesselId, vesselId), eq(batches.state, 'running'))).get();
+  db
+    .select({ id: batches.id })
+    .from(batches)
+    .where(and(eq(batches.siteId, siteId), eq(batches.vesselId, vesselId), eq(batches.state, 'running')))
+    .get();
 
 export const insertBatch = (db: Db, row: Omit<typeof batches.$inferInsert, 'id' | 'createdAt'>) => db.insert(batches).values(row).returning().get();
 
-export const updateBatch = (db: Db, id: number, patch: Partial<Pick<BatchRow, 'state' | 'closedAt' | 'closedBy' | 'closeComment' | 'measuredProductGPerL' | 'forecastAtCloseGPerL'>>) =>
-  db.update(batches).set(patch).where(eq(batches.id, id)).returning().get();
+export const updateBatch = (
+  db: Db,
+  id: number,
+  patch: Partial<Pick<BatchRow, 'state' | 'closedAt' | 'closedBy' | 'closeComment' | 'measuredProductGPerL' | 'forecastAtCloseGPerL'>>,
+) => db.update(batches).set(patch).where(eq(batches.id, id)).returning().get();
 
 /** Batch ids among `ids` where the user logged a reading. */
 export const batchesLoggedBy = (db: Db, userId: number, ids: number[]) =>
@@ -73,7 +84,11 @@ const pointColumns = preparedPer((db, afterOnly: boolean) =>
   db
     .select({ id: batchReadings.id, takenAt: batchReadings.takenAt, c: batchReadings.c })
     .from(batchReadings)
-    .where(afterOnly ? and(eq(batchReadings.batchId, sql.placeholder('batchId')), gt(batchReadings.id, sql.placeholder('afterId'))) : eq(batchReadings.batchId, sql.placeholder('batchId')))
+    .where(
+      afterOnly
+        ? and(eq(batchReadings.batchId, sql.placeholder('batchId')), gt(batchReadings.id, sql.placeholder('afterId')))
+        : eq(batchReadings.batchId, sql.placeholder('batchId')),
+    )
     .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
     .prepare(),
 );
@@ -131,7 +146,11 @@ export const readingsAfter = (db: Db, batchId: number, limit: number, after: Cur
 /** A page of a batch's readings, newest first, older than the reading `beforeId` when given; null for no such reading. */
 export function readingsPage(db: Db, batchId: number, limit: number, beforeId: number | null) {
   if (beforeId === null) return readingsPast(db, batchId, limit, null, 'desc');
-  const before = db.select({ takenAt: batchReadings.takenAt }).from(batchReadings).where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.id, beforeId))).get();
+  const before = db
+    .select({ takenAt: batchReadings.takenAt })
+    .from(batchReadings)
+    .where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.id, beforeId)))
+    .get();
   return before ? readingsPast(db, batchId, limit, { takenAt: before.takenAt, id: beforeId }, 'desc') : null;
 }
 
@@ -159,12 +178,21 @@ export const lastReadingTimes = (db: Db, batchIds: number[]) =>
     : [];
 
 const readingByKey = preparedPer((db) =>
-  db.select().from(batchReadings).where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), eq(batchReadings.clientKey, sql.placeholder('key')))).prepare(),
+  db
+    .select()
+    .from(batchReadings)
+    .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), eq(batchReadings.clientKey, sql.placeholder('key'))))
+    .prepare(),
 );
 export const findReadingByKey = (db: Db, batchId: number, key: string) => readingByKey(db).get({ batchId, key });
 
 const readingJoined = preparedPer((db) =>
-  db.select({ reading: batchReadings, enteredBy: users.name }).from(batchReadings).innerJoin(users, eq(batchReadings.enteredBy, users.id)).where(eq(batchReadings.id, sql.placeholder('id'))).prepare(),
+  db
+    .select({ reading: batchReadings, enteredBy: users.name })
+    .from(batchReadings)
+    .innerJoin(users, eq(batchReadings.enteredBy, users.id))
+    .where(eq(batchReadings.id, sql.placeholder('id')))
+    .prepare(),
 );
 export const findReadingJoined = (db: Db, id: number) => readingJoined(db).get({ id });
 
@@ -179,7 +207,10 @@ const keysFrom = preparedPer((db) =>
     .prepare(),
 );
 /** Up to `limit` of the batch's reading keys after the key `after`, in key order. */
-export const readingKeysAfter = (db: Db, batchId: number, after: string, limit: number): string[] => keysFrom(db).all({ batchId, after, limit }).map((r) => r.k);
+export const readingKeysAfter = (db: Db, batchId: number, after: string, limit: number): string[] =>
+  keysFrom(db)
+    .all({ batchId, after, limit })
+    .map((r) => r.k);
 
 type NewReading = Omit<typeof batchReadings.$inferInsert, 'id'>;
 const READING_COLUMNS = ['siteId', 'batchId', 'clientKey', 'takenAt', 'c', 'note', 'source', 'enteredBy', 'receivedAt'] as const;
@@ -216,11 +247,20 @@ const joinedDeviations = (db: Db) =>
     .leftJoin(devCloser, eq(deviations.closedBy, devCloser.id));
 export type DeviationJoined = NonNullable<ReturnType<typeof findSiteDeviation>>;
 
-export const listDeviations = (db: Db, batchId: number) => joinedDeviations(db).where(eq(deviations.batchId, batchId)).orderBy(asc(deviations.at), asc(deviations.id)).all();
+export const listDeviations = (db: Db, batchId: number) =>
+  joinedDeviations(db).where(eq(deviations.batchId, batchId)).orderBy(asc(deviations.at), asc(deviations.id)).all();
 
-export const findSiteDeviation = (db: Db, siteId: number, id: number) => joinedDeviations(db).where(and(eq(deviations.siteId, siteId), eq(deviations.id, id))).get();
+export const findSiteDeviation = (db: Db, siteId: number, id: number) =>
+  joinedDeviations(db)
+    .where(and(eq(deviations.siteId, siteId), eq(deviations.id, id)))
+    .get();
 
-const readingDeviations = preparedPer((db) => joinedDeviations(db).where(eq(deviations.readingId, sql.placeholder('readingId'))).orderBy(asc(deviations.id)).prepare());
+const readingDeviations = preparedPer((db) =>
+  joinedDeviations(db)
+    .where(eq(deviations.readingId, sql.placeholder('readingId')))
+    .orderBy(asc(deviations.id))
+    .prepare(),
+);
 export const deviationsOfReading = (db: Db, readingId: number) => readingDeviations(db).all({ readingId });
 
 const activeDeviation = preparedPer((db) =>
@@ -244,15 +284,28 @@ export const countActiveDeviations = (db: Db, batchIds: number[]) =>
 
 export const insertDeviation = (db: Db, row: Omit<typeof deviations.$inferInsert, 'id'>) => db.insert(deviations).values(row).returning().get();
 
-export const updateDeviation = (db: Db, id: number, patch: Partial<Pick<DeviationRow, 'state' | 'acknowledgedBy' | 'acknowledgedAt' | 'acknowledgeComment' | 'closedBy' | 'closedAt' | 'closeComment'>>) =>
-  db.update(deviations).set(patch).where(eq(deviations.id, id)).run();
+export const updateDeviation = (
+  db: Db,
+  id: number,
+  patch: Partial<Pick<DeviationRow, 'state' | 'acknowledgedBy' | 'acknowledgedAt' | 'acknowledgeComment' | 'closedBy' | 'closedAt' | 'closeComment'>>,
+) => db.update(deviations).set(patch).where(eq(deviations.id, id)).run();
 
 // Settings
-const settingsOfSite = preparedPer((db) => db.select().from(batchSettings).where(eq(batchSettings.siteId, sql.placeholder('siteId'))).prepare());
+const settingsOfSite = preparedPer((db) =>
+  db
+    .select()
+    .from(batchSettings)
+    .where(eq(batchSettings.siteId, sql.placeholder('siteId')))
+    .prepare(),
+);
 export const findBatchSettings = (db: Db, siteId: number) => settingsOfSite(db).get({ siteId });
 
 export const upsertBatchSettings = (db: Db, row: typeof batchSettings.$inferInsert) =>
-  db.insert(batchSettings).values(row).onConflictDoUpdate({ target: batchSettings.siteId, set: { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin, updatedAt: row.updatedAt } }).run();
+  db
+    .insert(batchSettings)
+    .values(row)
+    .onConflictDoUpdate({ target: batchSettings.siteId, set: { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin, updatedAt: row.updatedAt } })
+    .run();
 
 // Change control's signatures on the plan a batch runs: the batch record shows who released it.
 export const planSignatures = (db: Db, siteId: number, planId: number) =>

@@ -6,14 +6,24 @@ export type SubscriptionRow = typeof subscriptions.$inferSelect;
 export type InvoiceRow = typeof invoices.$inferSelect;
 export type InviteRow = typeof invites.$inferSelect;
 
-const subscriptionOfSite = preparedPer((db) => db.select().from(subscriptions).where(eq(subscriptions.siteId, sql.placeholder('siteId'))).prepare());
+const subscriptionOfSite = preparedPer((db) =>
+  db
+    .select()
+    .from(subscriptions)
+    .where(eq(subscriptions.siteId, sql.placeholder('siteId')))
+    .prepare(),
+);
 export const findSubscription = (db: Db, siteId: number) => subscriptionOfSite(db).get({ siteId });
 
 export const findSubscriptionByCustomer = (db: Db, customerId: string) =>
   db.select().from(subscriptions).where(eq(subscriptions.stripeCustomerId, customerId)).get();
 
 export const listLinkedSubscriptions = (db: Db) =>
-  db.select().from(subscriptions).where(and(isNotNull(subscriptions.stripeSubscriptionId), isNotNull(subscriptions.stripeCustomerId))).all();
+  db
+    .select()
+    .from(subscriptions)
+    .where(and(isNotNull(subscriptions.stripeSubscriptionId), isNotNull(subscriptions.stripeCustomerId)))
+    .all();
 
 export const upsertSubscription = (db: Db, row: typeof subscriptions.$inferInsert) =>
   db.insert(subscriptions).values(row).onConflictDoUpdate({ target: subscriptions.siteId, set: row }).returning().get();
@@ -31,13 +41,21 @@ export const claimEvent = (db: Db, row: typeof billingEvents.$inferInsert) =>
 export const isEventClaimed = (db: Db, eventId: string) => db.select().from(billingEvents).where(eq(billingEvents.eventId, eventId)).get() !== undefined;
 
 export const countActiveUsers = (db: Db, siteId: number) =>
-  db.select({ n: sql<number>`count(*)` }).from(users).where(and(eq(users.siteId, siteId), eq(users.isActive, true))).get()?.n ?? 0;
+  db
+    .select({ n: sql<number>`count(*)` })
+    .from(users)
+    .where(and(eq(users.siteId, siteId), eq(users.isActive, true)))
+    .get()?.n ?? 0;
 
 const openInvite = (siteId: number, nowIso: string) =>
   and(eq(invites.siteId, siteId), isNull(invites.acceptedAt), isNull(invites.revokedAt), gt(invites.expiresAt, nowIso));
 
 export const countOpenInvites = (db: Db, siteId: number, nowIso: string) =>
-  db.select({ n: sql<number>`count(*)` }).from(invites).where(openInvite(siteId, nowIso)).get()?.n ?? 0;
+  db
+    .select({ n: sql<number>`count(*)` })
+    .from(invites)
+    .where(openInvite(siteId, nowIso))
+    .get()?.n ?? 0;
 
 export const listOpenInvites = (db: Db, siteId: number, nowIso: string) =>
   db.select().from(invites).where(openInvite(siteId, nowIso)).orderBy(desc(invites.id)).all();
@@ -46,10 +64,19 @@ export const insertInvite = (db: Db, row: typeof invites.$inferInsert) => db.ins
 
 export const findInviteByTokenHash = (db: Db, tokenHash: string) => db.select().from(invites).where(eq(invites.tokenHash, tokenHash)).get();
 
-export const findSiteInvite = (db: Db, siteId: number, id: number) => db.select().from(invites).where(and(eq(invites.siteId, siteId), eq(invites.id, id))).get();
+export const findSiteInvite = (db: Db, siteId: number, id: number) =>
+  db
+    .select()
+    .from(invites)
+    .where(and(eq(invites.siteId, siteId), eq(invites.id, id)))
+    .get();
 
 export const updateInvite = (db: Db, id: number, patch: Partial<Pick<InviteRow, 'acceptedAt' | 'revokedAt' | 'userId'>>) =>
   db.update(invites).set(patch).where(eq(invites.id, id)).returning().get();
 
 export const findOpenInviteByEmail = (db: Db, email: string, nowIso: string) =>
-  db.select().from(invites).where(and(eq(invites.email, email), isNull(invites.acceptedAt), isNull(invites.revokedAt), gt(invites.expiresAt, nowIso))).get();
+  db
+    .select()
+    .from(invites)
+    .where(and(eq(invites.email, email), isNull(invites.acceptedAt), isNull(invites.revokedAt), gt(invites.expiresAt, nowIso)))
+    .get();

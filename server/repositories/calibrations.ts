@@ -9,7 +9,9 @@ const joined = (db: Db) =>
 export type CalibrationJoined = NonNullable<ReturnType<typeof findSiteCalibration>>;
 
 export const findSiteCalibration = (db: Db, siteId: number, id: number) =>
-  joined(db).where(and(eq(calibrations.siteId, siteId), eq(calibrations.id, id))).get();
+  joined(db)
+    .where(and(eq(calibrations.siteId, siteId), eq(calibrations.id, id)))
+    .get();
 
 /** The newest calibration of a recipe and lot in a state (at most one is proposed and one accepted at a time). */
 export const findCalibration = (db: Db, siteId: number, recipeId: number, lotId: number, state: CalibrationRow['state']) =>
@@ -51,7 +53,8 @@ export const listExclusions = (db: Db, siteId: number) =>
 
 export const findExclusion = (db: Db, batchId: number) => db.select().from(calibrationExclusions).where(eq(calibrationExclusions.batchId, batchId)).get();
 
-export const insertExclusion = (db: Db, row: Omit<typeof calibrationExclusions.$inferInsert, 'id' | 'createdAt'>) => db.insert(calibrationExclusions).values(row).run();
+export const insertExclusion = (db: Db, row: Omit<typeof calibrationExclusions.$inferInsert, 'id' | 'createdAt'>) =>
+  db.insert(calibrationExclusions).values(row).run();
 
 export const deleteExclusion = (db: Db, batchId: number) => db.delete(calibrationExclusions).where(eq(calibrationExclusions.batchId, batchId)).run();
 
@@ -67,4 +70,8 @@ export const newestLotFit = (db: Db, siteId: number, lotId: number) =>
 export const findCalibrationSettings = (db: Db, siteId: number) => db.select().from(calibrationSettings).where(eq(calibrationSettings.siteId, siteId)).get();
 
 export const upsertCalibrationSettings = (db: Db, row: typeof calibrationSettings.$inferInsert) =>
-  db.insert(calibrationSettings).values(row).onConflictDoUpdate({ target: calibrationSettings.siteId, set: { measurementRelSd: row.measurementRelSd, updatedAt: row.updatedAt } }).run();
+  db
+    .insert(calibrationSettings)
+    .values(row)
+    .onConflictDoUpdate({ target: calibrationSettings.siteId, set: { measurementRelSd: row.measurementRelSd, updatedAt: row.updatedAt } })
+    .run();

@@ -2,8 +2,7 @@ import { and, desc, eq } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { certificateFiles, users } from '../../db/schema';
 
-export const insertCertificate = (db: Db, row: Omit<typeof certificateFiles.$inferInsert, 'id'>) =>
-  db.insert(certificateFiles).values(row).returning().get();
+export const insertCertificate = (db: Db, row: Omit<typeof certificateFiles.$inferInsert, 'id'>) => db.insert(certificateFiles).values(row).returning().get();
 
 export const latestCertificate = (db: Db, siteId: number, lotId: number) =>
   db

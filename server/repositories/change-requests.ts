@@ -18,7 +18,9 @@ const joined = (db: Db) =>
 export type ChangeRequestJoined = NonNullable<ReturnType<typeof findSiteChangeRequest>>;
 
 export const findSiteChangeRequest = (db: Db, siteId: number, id: number) =>
-  joined(db).where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.id, id))).get();
+  joined(db)
+    .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.id, id)))
+    .get();
 
 export const listSiteChangeRequests = (db: Db, siteId: number, status?: ChangeStatus) =>
   joined(db)
@@ -27,8 +29,7 @@ export const listSiteChangeRequests = (db: Db, siteId: number, status?: ChangeSt
     .limit(200)
     .all();
 
-export const insertChangeRequest = (db: Db, row: Omit<typeof changeRequests.$inferInsert, 'id'>) =>
-  db.insert(changeRequests).values(row).returning().get();
+export const insertChangeRequest = (db: Db, row: Omit<typeof changeRequests.$inferInsert, 'id'>) => db.insert(changeRequests).values(row).returning().get();
 
 export const decideChangeRequest = (db: Db, id: number, status: ChangeStatus, decidedAt: string, replaced: SetpointSide, supersededBy: number | null = null) =>
   db.update(changeRequests).set({ status, decidedAt, replaced, supersededBy }).where(eq(changeRequests.id, id)).returning().get();
@@ -38,7 +39,9 @@ export const listWaitingForRecipe = (db: Db, siteId: number, recipeId: number, e
   db
     .select()
     .from(changeRequests)
-    .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.recipeId, recipeId), eq(changeRequests.status, 'proposed'), ne(changeRequests.id, exceptId)))
+    .where(
+      and(eq(changeRequests.siteId, siteId), eq(changeRequests.recipeId, recipeId), eq(changeRequests.status, 'proposed'), ne(changeRequests.id, exceptId)),
+    )
     .all();
 
 // Insert only: a signature is never edited or removed.
@@ -65,5 +68,6 @@ export const listApprovedChanges = (db: Db, siteId: number, recipeId: number) =>
     .all();
 
 /** Every change request and signature of a site (the audit check compares each with its audited state). */
-export const listAllSiteChangeRequests = (db: Db, siteId: number) => db.select().from(changeRequests).where(eq(changeRequests.siteId, siteId)).orderBy(changeRequests.id).all();
+export const listAllSiteChangeRequests = (db: Db, siteId: number) =>
+  db.select().from(changeRequests).where(eq(changeRequests.siteId, siteId)).orderBy(changeRequests.id).all();
 export const listSiteSignatures = (db: Db, siteId: number) => db.select().from(signatures).where(eq(signatures.siteId, siteId)).orderBy(signatures.id).all();

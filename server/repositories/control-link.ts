@@ -4,7 +4,13 @@ import { batches, batchReadings, linkGaps, linkSettings, sites, vessels, vesselS
 
 export type VesselSourceRow = typeof vesselSources.$inferSelect;
 
-export const listSiteIds = (db: Db) => db.select({ id: sites.id }).from(sites).orderBy(sites.id).all().map((r) => r.id);
+export const listSiteIds = (db: Db) =>
+  db
+    .select({ id: sites.id })
+    .from(sites)
+    .orderBy(sites.id)
+    .all()
+    .map((r) => r.id);
 
 export const listSiteSources = (db: Db, siteId: number) =>
   db
@@ -16,7 +22,11 @@ export const listSiteSources = (db: Db, siteId: number) =>
     .all();
 
 export const findVesselSource = (db: Db, siteId: number, vesselId: number) =>
-  db.select().from(vesselSources).where(and(eq(vesselSources.siteId, siteId), eq(vesselSources.vesselId, vesselId))).get();
+  db
+    .select()
+    .from(vesselSources)
+    .where(and(eq(vesselSources.siteId, siteId), eq(vesselSources.vesselId, vesselId)))
+    .get();
 
 export const upsertVesselSource = (db: Db, row: Omit<typeof vesselSources.$inferInsert, 'id' | 'createdAt'>) =>
   db
@@ -54,9 +64,21 @@ export const lastControlReadingAt = (db: Db, batchId: number) =>
 export const findLinkSettings = (db: Db, siteId: number) => db.select().from(linkSettings).where(eq(linkSettings.siteId, siteId)).get();
 
 export const upsertLinkSettings = (db: Db, row: typeof linkSettings.$inferInsert) =>
-  db.insert(linkSettings).values(row).onConflictDoUpdate({ target: linkSettings.siteId, set: { samplingIntervalMs: row.samplingIntervalMs, deadbandC: row.deadbandC, updatedAt: row.updatedAt } }).run();
+  db
+    .insert(linkSettings)
+    .values(row)
+    .onConflictDoUpdate({
+      target: linkSettings.siteId,
+      set: { samplingIntervalMs: row.samplingIntervalMs, deadbandC: row.deadbandC, updatedAt: row.updatedAt },
+    })
+    .run();
 
 export const insertLinkGap = (db: Db, row: Omit<typeof linkGaps.$inferInsert, 'id' | 'createdAt'>) => db.insert(linkGaps).values(row).returning().get();
 
 export const listBatchGaps = (db: Db, siteId: number, batchId: number) =>
-  db.select().from(linkGaps).where(and(eq(linkGaps.siteId, siteId), eq(linkGaps.batchId, batchId))).orderBy(asc(linkGaps.fromAt)).all();
+  db
+    .select()
+    .from(linkGaps)
+    .where(and(eq(linkGaps.siteId, siteId), eq(linkGaps.batchId, batchId)))
+    .orderBy(asc(linkGaps.fromAt))
+    .all();

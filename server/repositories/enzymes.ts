@@ -26,7 +26,11 @@ const enzymePage = preparedPer((db, v: { search: boolean; sort: EnzymeQuery['sor
     .limit(sql.placeholder('limit'))
     .offset(sql.placeholder('offset'))
     .prepare(),
-  total: db.select({ n: sql<number>`count(*)` }).from(enzymes).where(enzymeFilter(v.search)).prepare(),
+  total: db
+    .select({ n: sql<number>`count(*)` })
+    .from(enzymes)
+    .where(enzymeFilter(v.search))
+    .prepare(),
 }));
 
 /** One page of a site's enzymes matching a free-text search, and how many match in all. */
@@ -37,12 +41,24 @@ export function querySiteEnzymes(db: Db, siteId: number, q: EnzymeQuery): { rows
 }
 
 export const findSiteEnzyme = (db: Db, siteId: number, id: number) =>
-  db.select().from(enzymes).where(and(eq(enzymes.siteId, siteId), eq(enzymes.id, id))).get();
+  db
+    .select()
+    .from(enzymes)
+    .where(and(eq(enzymes.siteId, siteId), eq(enzymes.id, id)))
+    .get();
 
 export const findSiteEnzymeByName = (db: Db, siteId: number, name: string) =>
-  db.select().from(enzymes).where(and(eq(enzymes.siteId, siteId), sql`lower(${enzymes.name}) = lower(${name})`)).get();
+  db
+    .select()
+    .from(enzymes)
+    .where(and(eq(enzymes.siteId, siteId), sql`lower(${enzymes.name}) = lower(${name})`))
+    .get();
 
-export const insertEnzyme = (db: Db, siteId: number, e: EnzymeInput) => db.insert(enzymes).values({ ...e, siteId }).returning().get();
+export const insertEnzyme = (db: Db, siteId: number, e: EnzymeInput) =>
+  db
+    .insert(enzymes)
+    .values({ ...e, siteId })
+    .returning()
+    .get();
 
 export const updateEnzyme = (db: Db, id: number, patch: EnzymeUpdate) => db.update(enzymes).set(patch).where(eq(enzymes.id, id)).returning().get();
-

@@ -36,7 +36,11 @@ export const findSiteLot = (db: Db, siteId: number, id: number) =>
     .get();
 
 export const findLotByCode = (db: Db, enzymeId: number, lotCode: string) =>
-  db.select().from(lots).where(and(eq(lots.enzymeId, enzymeId), eq(lots.lotCode, lotCode))).get();
+  db
+    .select()
+    .from(lots)
+    .where(and(eq(lots.enzymeId, enzymeId), eq(lots.lotCode, lotCode)))
+    .get();
 
 export const insertLot = (db: Db, row: NewLotRow) => db.insert(lots).values(row).returning().get();
 

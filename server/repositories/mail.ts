@@ -23,4 +23,8 @@ export const listSiteMail = (db: Db, siteId: number, limit: number) =>
   db.select().from(mailOutbox).where(eq(mailOutbox.siteId, siteId)).orderBy(desc(mailOutbox.id)).limit(limit).all();
 
 export const findSiteMail = (db: Db, siteId: number, id: number) =>
-  db.select().from(mailOutbox).where(and(eq(mailOutbox.siteId, siteId), eq(mailOutbox.id, id))).get();
+  db
+    .select()
+    .from(mailOutbox)
+    .where(and(eq(mailOutbox.siteId, siteId), eq(mailOutbox.id, id)))
+    .get();

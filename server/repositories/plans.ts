@@ -15,7 +15,10 @@ const joined = (db: Db) =>
 
 export type PlanJoined = NonNullable<ReturnType<typeof findSitePlan>>;
 
-export const findSitePlan = (db: Db, siteId: number, id: number) => joined(db).where(and(eq(plans.siteId, siteId), eq(plans.id, id))).get();
+export const findSitePlan = (db: Db, siteId: number, id: number) =>
+  joined(db)
+    .where(and(eq(plans.siteId, siteId), eq(plans.id, id)))
+    .get();
 
 export const listSitePlans = (db: Db, siteId: number, recipeId?: number) =>
   joined(db)

@@ -16,21 +16,40 @@ const joined = (db: Db) =>
 export const listSiteRecipes = (db: Db, siteId: number) => joined(db).where(eq(recipes.siteId, siteId)).orderBy(recipes.name).all();
 
 export const findSiteRecipe = (db: Db, siteId: number, id: number) =>
-  joined(db).where(and(eq(recipes.siteId, siteId), eq(recipes.id, id))).get();
+  joined(db)
+    .where(and(eq(recipes.siteId, siteId), eq(recipes.id, id)))
+    .get();
 
 export const findSiteRecipeByName = (db: Db, siteId: number, name: string) =>
-  db.select().from(recipes).where(and(eq(recipes.siteId, siteId), eq(recipes.name, name))).get();
+  db
+    .select()
+    .from(recipes)
+    .where(and(eq(recipes.siteId, siteId), eq(recipes.name, name)))
+    .get();
 
-export const insertRecipe = (db: Db, siteId: number, v: RecipeValues) => db.insert(recipes).values({ ...v, siteId }).returning().get();
+export const insertRecipe = (db: Db, siteId: number, v: RecipeValues) =>
+  db
+    .insert(recipes)
+    .values({ ...v, siteId })
+    .returning()
+    .get();
 
 export const updateRecipe = (db: Db, id: number, v: Partial<RecipeValues>) => db.update(recipes).set(v).where(eq(recipes.id, id)).returning().get();
 
 // Planning reads of the catalogue, scoped by site like every query here.
 export const findSiteLot = (db: Db, siteId: number, id: number) =>
-  db.select().from(lots).where(and(eq(lots.siteId, siteId), eq(lots.id, id))).get();
+  db
+    .select()
+    .from(lots)
+    .where(and(eq(lots.siteId, siteId), eq(lots.id, id)))
+    .get();
 
 export const findSiteEnzyme = (db: Db, siteId: number, id: number) =>
-  db.select().from(enzymes).where(and(eq(enzymes.siteId, siteId), eq(enzymes.id, id))).get();
+  db
+    .select()
+    .from(enzymes)
+    .where(and(eq(enzymes.siteId, siteId), eq(enzymes.id, id)))
+    .get();
 
 export const listAcceptedLots = (db: Db, siteId: number, enzymeId: number) =>
   db

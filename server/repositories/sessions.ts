@@ -16,14 +16,25 @@ const sessionWithUser = preparedPer((db) =>
 );
 export const findSessionWithUser = (db: Db, id: string) => sessionWithUser(db).get({ id });
 
-export const touchSession = (db: Db, id: string, at: string) =>
-  db.update(sessions).set({ lastSeenAt: at }).where(eq(sessions.id, id)).run();
+export const touchSession = (db: Db, id: string, at: string) => db.update(sessions).set({ lastSeenAt: at }).where(eq(sessions.id, id)).run();
 
 export const revokeSession = (db: Db, id: string, at: string) =>
-  db.update(sessions).set({ revokedAt: at }).where(and(eq(sessions.id, id), isNull(sessions.revokedAt))).run();
+  db
+    .update(sessions)
+    .set({ revokedAt: at })
+    .where(and(eq(sessions.id, id), isNull(sessions.revokedAt)))
+    .run();
 
 export const revokeUserSessions = (db: Db, userId: number, at: string) =>
-  db.update(sessions).set({ revokedAt: at }).where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt))).run();
+  db
+    .update(sessions)
+    .set({ revokedAt: at })
+    .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)))
+    .run();
 
 export const revokeOtherSessions = (db: Db, userId: number, keepId: string, at: string) =>
-  db.update(sessions).set({ revokedAt: at }).where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt), ne(sessions.id, keepId))).run();
+  db
+    .update(sessions)
+    .set({ revokedAt: at })
+    .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt), ne(sessions.id, keepId)))
+    .run();

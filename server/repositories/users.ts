@@ -5,8 +5,7 @@ import type { Role } from '../../src/contracts/roles';
 
 export type UserRow = typeof users.$inferSelect;
 
-export const findUserByEmail = (db: Db, email: string) =>
-  db.select().from(users).where(eq(users.email, email)).get();
+export const findUserByEmail = (db: Db, email: string) => db.select().from(users).where(eq(users.email, email)).get();
 
 const userWithSite = preparedPer((db) =>
   db
@@ -18,11 +17,14 @@ const userWithSite = preparedPer((db) =>
 );
 export const findUserWithSite = (db: Db, id: number) => userWithSite(db).get({ id });
 
-export const listSiteUsers = (db: Db, siteId: number) =>
-  db.select().from(users).where(eq(users.siteId, siteId)).orderBy(users.name).all();
+export const listSiteUsers = (db: Db, siteId: number) => db.select().from(users).where(eq(users.siteId, siteId)).orderBy(users.name).all();
 
 export const findSiteUser = (db: Db, siteId: number, id: number) =>
-  db.select().from(users).where(and(eq(users.siteId, siteId), eq(users.id, id))).get();
+  db
+    .select()
+    .from(users)
+    .where(and(eq(users.siteId, siteId), eq(users.id, id)))
+    .get();
 
 export const updateUser = (db: Db, id: number, patch: Partial<Pick<UserRow, 'role' | 'isActive' | 'name' | 'cautionsAcknowledgedAt' | 'passwordHash'>>) =>
   db.update(users).set(patch).where(eq(users.id, id)).returning().get();

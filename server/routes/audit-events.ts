@@ -18,7 +18,10 @@ export function auditEventsRouter(s: AppContext): Router {
   });
   router.get('/export.csv', allow('audit-events.review'), (req, res) => {
     const csv = auditCsv(s, currentUser(req), AuditQuery.parse(req.query));
-    res.type('text/csv').attachment(`audit-trail-${s.clock.now().toISOString().slice(0, 10)}.csv`).send(csv);
+    res
+      .type('text/csv')
+      .attachment(`audit-trail-${s.clock.now().toISOString().slice(0, 10)}.csv`)
+      .send(csv);
   });
   return router;
 }

@@ -1,6 +1,14 @@
 import { Router } from 'express';
 import { IdParam } from './params';
-import { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
+import {
+  Calibration,
+  CalibrationAccept,
+  CalibrationExclusion,
+  CalibrationQuery,
+  CalibrationSettings,
+  CalibrationSettingsPatch,
+  CalibrationView,
+} from '../../src/contracts/calibrations';
 import { allow, currentUser } from '../middleware/auth';
 import { acceptCalibration, calibrationSettingsOf, changeCalibrationSettings, getCalibrationView, setExclusion } from '../services/calibrations';
 import type { AppContext } from '../context';

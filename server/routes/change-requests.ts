@@ -7,7 +7,6 @@ import { allow, currentUser } from '../middleware/auth';
 import { changeRequestCsv, getChangeRequest, listChangeRequests, proposeChange, signChange } from '../services/change-requests';
 import type { AppContext } from '../context';
 
-
 export function changeRequestsRouter(opts: AppContext): Router {
   const router = Router();
   // Password guessing through the signature dialog is held to the sign-in's per-account budget;

@@ -37,14 +37,23 @@ export function lotsRouter(s: AppContext): Router {
   });
   router.get('/:id/certificate', allow('lots.read'), (req, res) => {
     const { file, bytes } = readCertificate(s, currentUser(req), IdParam.parse(req.params).id);
-    res.type(file.mimeType).set({ 'content-disposition': attachment(file.fileName), 'x-sha256': file.sha256 }).send(bytes);
+    res
+      .type(file.mimeType)
+      .set({ 'content-disposition': attachment(file.fileName), 'x-sha256': file.sha256 })
+      .send(bytes);
   });
   // A CSV file (multipart, field "file", optional field "scale") or the editable table's rows (JSON); both are checked the same way.
   router.post('/:id/assays', allow('lots.edit'), singleFile('file', MAX_ASSAY_BYTES), async (req, res) => {
     const { id } = IdParam.parse(req.params);
     const file = req.file;
     const assay = file
-      ? await addAssay(s, currentUser(req), id, () => ({ kind: 'assay-csv', bytes: file.buffer, scale: AssayUpload.parse(req.body ?? {}).scale }), file.originalname.slice(0, 120))
+      ? await addAssay(
+          s,
+          currentUser(req),
+          id,
+          () => ({ kind: 'assay-csv', bytes: file.buffer, scale: AssayUpload.parse(req.body ?? {}).scale }),
+          file.originalname.slice(0, 120),
+        )
       : await addAssay(s, currentUser(req), id, () => ({ kind: 'assay-table', input: AssayTableInput.parse(req.body) }), null);
     res.status(201).json(Assay.parse(assay));
   });

@@ -5,7 +5,6 @@ import { allow, currentUser } from '../middleware/auth';
 import { createPlan, getPlan, listPlans, planCsv } from '../services/plans';
 import type { AppContext } from '../context';
 
-
 // No PATCH or DELETE: a saved plan is immutable.
 export function plansRouter(s: AppContext): Router {
   const router = Router();

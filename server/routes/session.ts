@@ -11,7 +11,9 @@ import type { AppContext } from '../context';
 
 /** What a person who cannot sign in can do; the sign-in page shows it beside the refusal. */
 export const LOCKED_OUT_HELP = 'Forgotten your password? Ask your site admin to send you a reset link by e-mail.';
-const tooManyFromAddress = { error: { code: 'rate_limited', message: `Too many failed sign-ins from this network; wait a few minutes and try again. ${LOCKED_OUT_HELP}` } };
+const tooManyFromAddress = {
+  error: { code: 'rate_limited', message: `Too many failed sign-ins from this network; wait a few minutes and try again. ${LOCKED_OUT_HELP}` },
+};
 const DEVICE_DAYS = 365;
 
 export function sessionRouter(opts: AppContext): Router {
@@ -42,7 +44,8 @@ export function sessionRouter(opts: AppContext): Router {
     const { token, expiresAt, user } = await signIn(opts, body, req.ip ?? 'unknown');
     accounts.succeeded(key);
     res.cookie(SESSION_COOKIE, token, cookie(expiresAt));
-    if (!key.startsWith('device:')) res.cookie(DEVICE_COOKIE, deviceToken(opts.auth.secret, body.email), cookie(new Date(opts.clock.now().getTime() + DEVICE_DAYS * 86_400_000)));
+    if (!key.startsWith('device:'))
+      res.cookie(DEVICE_COOKIE, deviceToken(opts.auth.secret, body.email), cookie(new Date(opts.clock.now().getTime() + DEVICE_DAYS * 86_400_000)));
     res.status(201).json(Session.parse({ user }));
   });
 

@@ -54,11 +54,18 @@ const num = (v: unknown, separator: CsvLayout['separator']): number | null => {
 const shown = (v: unknown) => JSON.stringify(String(v).slice(0, 24));
 
 const tooManyRows = (n: number, atLeast: boolean) =>
-  new HttpError(400, 'too_many_rows', `The ${atLeast ? 'file has at least' : 'assay has'} ${n.toLocaleString('en')} data rows; the limit is ${MAX_ASSAY_ROWS.toLocaleString('en')}. Split it or thin it out.`);
+  new HttpError(
+    400,
+    'too_many_rows',
+    `The ${atLeast ? 'file has at least' : 'assay has'} ${n.toLocaleString('en')} data rows; the limit is ${MAX_ASSAY_ROWS.toLocaleString('en')}. Split it or thin it out.`,
+  );
 
 const SCALE_NOTES = {
   chosen: { percent: 'Residual activity read as per cent, as chosen.', fraction: 'Residual activity read as fractions of the activity at time 0, as chosen.' },
-  header: { percent: 'Residual activity read as per cent: the column header says so.', fraction: 'Residual activity read as fractions of the activity at time 0: the column header says so.' },
+  header: {
+    percent: 'Residual activity read as per cent: the column header says so.',
+    fraction: 'Residual activity read as fractions of the activity at time 0: the column header says so.',
+  },
 } as const;
 
 /** Checks every row against the stated scale (or, for typed rows without one, the detected scale) and throws one 400 listing bad rows: nothing partial gets through. */
@@ -72,7 +79,8 @@ function checkRows(rows: RawRow[], stated: Scale | null, separator: CsvLayout['s
     const timeH = num(r.time, separator);
     const residual = num(r.residual, separator);
     if (tempC === null) reasons.push(`temperature ${shown(r.temp)} is not a number`);
-    else if (tempC < TEMP_RANGE_C[0] || tempC > TEMP_RANGE_C[1]) reasons.push(`temperature ${tempC} °C is outside ${TEMP_RANGE_C[0]} to ${TEMP_RANGE_C[1]} °C (kelvin?)`);
+    else if (tempC < TEMP_RANGE_C[0] || tempC > TEMP_RANGE_C[1])
+      reasons.push(`temperature ${tempC} °C is outside ${TEMP_RANGE_C[0]} to ${TEMP_RANGE_C[1]} °C (kelvin?)`);
     if (timeH === null) reasons.push(`time ${shown(r.time)} is not a number`);
     else if (timeH < 0 || timeH > MAX_TIME_H) reasons.push(`time ${timeH} h is outside 0 to ${MAX_TIME_H} h`);
     if (residual === null) reasons.push(`residual activity ${shown(r.residual)} is not a number`);
@@ -87,7 +95,10 @@ function checkRows(rows: RawRow[], stated: Scale | null, separator: CsvLayout['s
   if (stated) ({ scale, note: scaleNote } = stated);
   else {
     scale = residualScale(parsed.map((p) => p.residual).filter(Number.isFinite));
-    scaleNote = scale === 'percent' ? 'Residual activity read as per cent: values above 1.5 were found.' : 'Residual activity read as fractions of the activity at time 0: every value is 1.5 or below.';
+    scaleNote =
+      scale === 'percent'
+        ? 'Residual activity read as per cent: values above 1.5 were found.'
+        : 'Residual activity read as fractions of the activity at time 0: every value is 1.5 or below.';
   }
   const max = scale === 'percent' ? MAX_FRACTION * 100 : MAX_FRACTION;
   parsed.forEach((p, i) => {
@@ -113,13 +124,23 @@ function checkRows(rows: RawRow[], stated: Scale | null, separator: CsvLayout['s
 /** The residual unit of a CSV: chosen at upload or named by the column header; they must agree, and one must say. */
 function csvScale(chosen: ResidualScale | undefined, header: ResidualScale | null): Scale {
   if (chosen && header && chosen !== header) {
-    throw new HttpError(400, 'scale_conflict', `The residual column's header says ${header === 'percent' ? 'per cent' : 'fraction'} but ${chosen === 'percent' ? 'per cent' : 'fraction'} was chosen. Fix one of them.`, { scale: 'Does not match the column header' });
+    throw new HttpError(
+      400,
+      'scale_conflict',
+      `The residual column's header says ${header === 'percent' ? 'per cent' : 'fraction'} but ${chosen === 'percent' ? 'per cent' : 'fraction'} was chosen. Fix one of them.`,
+      { scale: 'Does not match the column header' },
+    );
   }
   if (chosen) return { scale: chosen, note: SCALE_NOTES.chosen[chosen] };
   if (header) return { scale: header, note: SCALE_NOTES.header[header] };
-  throw new HttpError(400, 'scale_missing', 'Say whether residual activity is a fraction of the activity at time 0 or per cent: name the column residual_activity_fraction or residual_activity_percent (as the template does), or choose the unit when uploading.', {
-    scale: 'Fraction or per cent?',
-  });
+  throw new HttpError(
+    400,
+    'scale_missing',
+    'Say whether residual activity is a fraction of the activity at time 0 or per cent: name the column residual_activity_fraction or residual_activity_percent (as the template does), or choose the unit when uploading.',
+    {
+      scale: 'Fraction or per cent?',
+    },
+  );
 }
 
 /**

@@ -15,7 +15,13 @@ type AssayJob = Extract<ImportTask, { kind: 'assay-csv' | 'assay-table' }>;
 type DistributiveOmit<T, K extends PropertyKey> = T extends unknown ? Omit<T, K> : never;
 
 /** Checks the rows and fits them about the enzyme's reference temperature on the import worker, then stores them, audited. */
-export async function addAssay({ db, clock }: Services, u: SessionUser, lotId: number, job: () => DistributiveOmit<AssayJob, 'tRefC'>, fileName: string | null): Promise<Assay> {
+export async function addAssay(
+  { db, clock }: Services,
+  u: SessionUser,
+  lotId: number,
+  job: () => DistributiveOmit<AssayJob, 'tRefC'>,
+  fileName: string | null,
+): Promise<Assay> {
   const found = findSiteLot(db, u.siteId, lotId);
   if (!found) throw notFound('Lot');
   const enzyme = findSiteEnzyme(db, u.siteId, found.lot.enzymeId)!;
@@ -49,7 +55,16 @@ export async function addAssay({ db, clock }: Services, u: SessionUser, lotId: n
       action: 'assay.create',
       entity: 'lot',
       entityId: lotId,
-      newValue: { assayId: row.id, source, fileName, points: checked.points.length, scale: checked.scale, kdRefPerH: result.fit?.kdRefPerH ?? null, edKJPerMol: result.fit?.edKJPerMol ?? null, fitProblem: result.problem },
+      newValue: {
+        assayId: row.id,
+        source,
+        fileName,
+        points: checked.points.length,
+        scale: checked.scale,
+        kdRefPerH: result.fit?.kdRefPerH ?? null,
+        edKJPerMol: result.fit?.edKJPerMol ?? null,
+        fitProblem: result.problem,
+      },
       at: now,
     });
     return row.id;
@@ -65,4 +80,3 @@ export function exportAssayCsv({ db }: Services, u: SessionUser, lotId: number, 
   if (!assay) throw notFound('Assay');
   return { fileName: `${found.lot.lotCode.replace(/[^\w.-]/g, '_')}-assay-${assay.id}.csv`, csv: assayPointsCsv(listAssayPoints(db, assay.id)) };
 }
-

@@ -13,11 +13,15 @@ export type Checkpoint = { siteId: number | null; events: number; lastId: number
 type Stored = Checkpoint & { mac: string };
 
 const memory = new WeakMap<Database.Database, string[]>();
-const fileOf = (client: Database.Database) => (client.name && client.name !== ':memory:' ? path.join(path.dirname(path.resolve(client.name)), 'audit-checkpoints.jsonl') : null);
+const fileOf = (client: Database.Database) =>
+  client.name && client.name !== ':memory:' ? path.join(path.dirname(path.resolve(client.name)), 'audit-checkpoints.jsonl') : null;
 
 const macOf = (key: Buffer, c: Checkpoint) => {
   const sealKey = crypto.createHmac('sha256', key).update('yieldpoint audit checkpoint').digest();
-  return crypto.createHmac('sha256', sealKey).update(JSON.stringify([c.siteId, c.events, c.lastId, c.head, c.at])).digest('hex');
+  return crypto
+    .createHmac('sha256', sealKey)
+    .update(JSON.stringify([c.siteId, c.events, c.lastId, c.head, c.at]))
+    .digest('hex');
 };
 
 function lines(client: Database.Database): string[] {

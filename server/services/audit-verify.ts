@@ -62,13 +62,17 @@ function* verifySteps(db: Db, siteId: number | null): Generator<void, AuditVerif
   let firstBrokenId: number | null = null;
   let prev = GENESIS;
   let events = 0;
-  for (let after = 0, broken = false; !broken; ) {
+  for (let after = 0, broken = false; !broken;) {
     const rows = listAuditAfter(db, siteId, after, EVENTS_PER_STEP);
     events += rows.length;
     for (const r of rows) {
       if (!broken && (r.prevHash !== prev || eventHash(key, r) !== r.hash)) {
         firstBrokenId = r.id;
-        problems.push({ kind: 'chain', eventId: r.id, message: `Event ${r.id} does not match its link: it, or one before it, was edited, inserted or removed` });
+        problems.push({
+          kind: 'chain',
+          eventId: r.id,
+          message: `Event ${r.id} does not match its link: it, or one before it, was edited, inserted or removed`,
+        });
         broken = true;
       }
       prev = r.hash;
@@ -81,7 +85,8 @@ function* verifySteps(db: Db, siteId: number | null): Generator<void, AuditVerif
   if (firstBrokenId !== null) events = auditCountUpTo(db, siteId, Number.MAX_SAFE_INTEGER).events;
   yield;
   const { valid, forged } = readCheckpoints(clientOf(db), key, siteId);
-  if (forged) problems.push({ kind: 'checkpoint', eventId: null, message: `${forged} checkpoint line${forged > 1 ? 's do' : ' does'} not carry a valid signature` });
+  if (forged)
+    problems.push({ kind: 'checkpoint', eventId: null, message: `${forged} checkpoint line${forged > 1 ? 's do' : ' does'} not carry a valid signature` });
   for (const c of valid) {
     yield;
     const now = auditCountUpTo(db, siteId, c.lastId);
@@ -89,7 +94,10 @@ function* verifySteps(db: Db, siteId: number | null): Generator<void, AuditVerif
       problems.push({
         kind: 'checkpoint',
         eventId: c.lastId,
-        message: now.hash === null ? `Event ${c.lastId}, sealed at ${c.at} as the newest of ${c.events}, is gone` : `The chain up to event ${c.lastId} no longer matches the checkpoint of ${c.at} (${c.events} events then, ${now.events} now)`,
+        message:
+          now.hash === null
+            ? `Event ${c.lastId}, sealed at ${c.at} as the newest of ${c.events}, is gone`
+            : `The chain up to event ${c.lastId} no longer matches the checkpoint of ${c.at} (${c.events} events then, ${now.events} now)`,
       });
     }
   }
@@ -112,20 +120,41 @@ const nv = (e: AuditRow) => (e.newValue ?? {}) as Record<string, unknown>;
 function recordProblems(db: Db, siteId: number): AuditProblem[] {
   const out: AuditProblem[] = [];
   const record = (eventId: number | null, message: string) => out.push({ kind: 'record', eventId, message });
-  const events = listAuditOfActions(db, siteId, ['lot.create', 'lot.accept', 'lot.reject', 'signature.create', 'change-request.create', 'change-request.approve', 'change-request.reject', 'change-request.supersede', 'change-request.stale']);
+  const events = listAuditOfActions(db, siteId, [
+    'lot.create',
+    'lot.accept',
+    'lot.reject',
+    'signature.create',
+    'change-request.create',
+    'change-request.approve',
+    'change-request.reject',
+    'change-request.supersede',
+    'change-request.stale',
+  ]);
 
   // Lots: a decision must read as audited; a lot created in the app and never decided must still be quarantined.
-  const lotEvents = lastBy(events.filter((e) => e.entity === 'lot' && e.action !== 'lot.create'), (e) => e.entityId);
+  const lotEvents = lastBy(
+    events.filter((e) => e.entity === 'lot' && e.action !== 'lot.create'),
+    (e) => e.entityId,
+  );
   const created = new Set(events.filter((e) => e.action === 'lot.create').map((e) => e.entityId));
   for (const { lot } of listSiteLots(db, siteId)) {
     const e = lotEvents.get(String(lot.id));
     if (e) {
-      if (lot.status !== nv(e).status || lot.decisionReason !== nv(e).reason) record(e.id, `Lot ${lot.lotCode} reads ${lot.status} ("${lot.decisionReason ?? ''}"); its audited decision was ${String(nv(e).status)} ("${String(nv(e).reason)}")`);
-    } else if (created.has(String(lot.id)) && lot.status !== 'quarantined') record(null, `Lot ${lot.lotCode} reads ${lot.status} but no decision on it was audited`);
+      if (lot.status !== nv(e).status || lot.decisionReason !== nv(e).reason)
+        record(
+          e.id,
+          `Lot ${lot.lotCode} reads ${lot.status} ("${lot.decisionReason ?? ''}"); its audited decision was ${String(nv(e).status)} ("${String(nv(e).reason)}")`,
+        );
+    } else if (created.has(String(lot.id)) && lot.status !== 'quarantined')
+      record(null, `Lot ${lot.lotCode} reads ${lot.status} but no decision on it was audited`);
   }
 
   // Signatures: each one exactly as signed.
-  const signed = lastBy(events.filter((e) => e.action === 'signature.create'), (e) => (nv(e).signatureId == null ? null : String(nv(e).signatureId)));
+  const signed = lastBy(
+    events.filter((e) => e.action === 'signature.create'),
+    (e) => (nv(e).signatureId == null ? null : String(nv(e).signatureId)),
+  );
   for (const s of listSiteSignatures(db, siteId)) {
     const e = signed.get(String(s.id));
     if (!e) {
@@ -141,7 +170,10 @@ function recordProblems(db: Db, siteId: number): AuditProblem[] {
   // Change requests: the status of the last audited decision, and the record (plan and request) its hash was made over.
   const crEvents = events.filter((e) => e.entity === 'change-request' && e.action !== 'signature.create');
   const lastCr = lastBy(crEvents, (e) => e.entityId);
-  const createdCr = lastBy(crEvents.filter((e) => e.action === 'change-request.create'), (e) => e.entityId);
+  const createdCr = lastBy(
+    crEvents.filter((e) => e.action === 'change-request.create'),
+    (e) => e.entityId,
+  );
   for (const cr of listAllSiteChangeRequests(db, siteId)) {
     const e = lastCr.get(String(cr.id));
     const c = createdCr.get(String(cr.id));
@@ -153,7 +185,8 @@ function recordProblems(db: Db, siteId: number): AuditProblem[] {
     if (cr.status !== audited) record(e.id, `Change request ${cr.id} reads ${cr.status}; its last audited state is ${audited}`);
     const plan = findSitePlan(db, siteId, cr.planId)?.plan;
     const now = plan ? recordHash(plan, cr) : null;
-    if (cr.recordHash !== nv(c).recordHash || now !== nv(c).recordHash) record(c.id, `Change request ${cr.id}: its plan or its text changed after it was submitted (the record no longer hashes as submitted)`);
+    if (cr.recordHash !== nv(c).recordHash || now !== nv(c).recordHash)
+      record(c.id, `Change request ${cr.id}: its plan or its text changed after it was submitted (the record no longer hashes as submitted)`);
   }
   return out;
 }

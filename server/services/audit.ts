@@ -22,7 +22,8 @@ export const GENESIS = '0'.repeat(64);
 
 type Hashed = Pick<AuditRow, 'siteId' | 'userId' | 'actor' | 'action' | 'entity' | 'entityId' | 'oldValue' | 'newValue' | 'at' | 'prevHash'>;
 // Keys are fixed in order so the same content always hashes the same.
-const canonical = (e: Hashed) => JSON.stringify([e.siteId, e.userId, e.actor, e.action, e.entity, e.entityId, e.oldValue ?? null, e.newValue ?? null, e.at, e.prevHash]);
+const canonical = (e: Hashed) =>
+  JSON.stringify([e.siteId, e.userId, e.actor, e.action, e.entity, e.entityId, e.oldValue ?? null, e.newValue ?? null, e.at, e.prevHash]);
 
 /**
  * Each event's hash is an HMAC (SHA-256) of its content and the previous event's hash, keyed with the
@@ -68,7 +69,20 @@ export function appendAudit(db: Db, input: AuditInput): AuditRow {
   return insertAudit(db, { ...row, hash: eventHash(key, row) });
 }
 
-type RawRow = { id: number; site_id: number | null; user_id: number | null; actor: string; action: string; entity: string; entity_id: string | null; old_value: string | null; new_value: string | null; at: string; prev_hash: string; hash: string };
+type RawRow = {
+  id: number;
+  site_id: number | null;
+  user_id: number | null;
+  actor: string;
+  action: string;
+  entity: string;
+  entity_id: string | null;
+  old_value: string | null;
+  new_value: string | null;
+  at: string;
+  prev_hash: string;
+  hash: string;
+};
 const hashedOf = (r: RawRow): Hashed => ({
   siteId: r.site_id,
   userId: r.user_id,
@@ -97,30 +111,45 @@ function adoptLegacyChains(client: Database.Database, key: Buffer): void {
   const rowsOf = client.prepare('select * from audit_events where site_id is ? order by id');
   const relink = client.prepare('update audit_events set prev_hash = ?, hash = ? where id = ?');
   try {
-    client.transaction(() => {
-      for (const head of legacy) {
-        const rows = rowsOf.all(head.site_id) as RawRow[];
-        let prev = GENESIS;
-        const whole = rows.every((r) => {
-          const ok = r.prev_hash === prev && legacyHash(hashedOf(r)) === r.hash;
-          prev = r.hash;
-          return ok;
-        });
-        if (!whole) continue;
-        prev = GENESIS;
-        for (const r of rows) {
-          const hash = eventHash(key, { ...hashedOf(r), prevHash: prev });
-          relink.run(prev, hash, r.id);
-          prev = hash;
+    client
+      .transaction(() => {
+        for (const head of legacy) {
+          const rows = rowsOf.all(head.site_id) as RawRow[];
+          let prev = GENESIS;
+          const whole = rows.every((r) => {
+            const ok = r.prev_hash === prev && legacyHash(hashedOf(r)) === r.hash;
+            prev = r.hash;
+            return ok;
+          });
+          if (!whole) continue;
+          prev = GENESIS;
+          for (const r of rows) {
+            const hash = eventHash(key, { ...hashedOf(r), prevHash: prev });
+            relink.run(prev, hash, r.id);
+            prev = hash;
+          }
+          const at = new Date().toISOString();
+          const event = {
+            siteId: head.site_id,
+            userId: null,
+            actor: 'system',
+            action: 'audit.rekeyed',
+            entity: 'audit',
+            entityId: null,
+            oldValue: null,
+            newValue: { events: rows.length },
+            at,
+            prevHash: prev,
+          };
+          client
+            .prepare(
+              'insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, ?, ?, ?, ?)',
+            )
+            .run(head.site_id, event.actor, event.action, event.entity, JSON.stringify(event.newValue), at, prev, eventHash(key, event));
+          console.error(`[${at}] audit chain of site ${head.site_id ?? '(none)'}: ${rows.length} events re-linked with the installation's audit key`);
         }
-        const at = new Date().toISOString();
-        const event = { siteId: head.site_id, userId: null, actor: 'system', action: 'audit.rekeyed', entity: 'audit', entityId: null, oldValue: null, newValue: { events: rows.length }, at, prevHash: prev };
-        client
-          .prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, ?, ?, ?, ?)')
-          .run(head.site_id, event.actor, event.action, event.entity, JSON.stringify(event.newValue), at, prev, eventHash(key, event));
-        console.error(`[${at}] audit chain of site ${head.site_id ?? '(none)'}: ${rows.length} events re-linked with the installation's audit key`);
-      }
-    }).immediate();
+      })
+      .immediate();
   } catch (err) {
     // Not writable now: the next connection tries again; until then verify reports the chain as not keyed.
     console.error(`[${new Date().toISOString()}] audit chain not re-linked: ${(err as Error).message}`);

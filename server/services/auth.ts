@@ -56,15 +56,17 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
   const ok = await bcrypt.compare(req.password, user?.passwordHash ?? DUMMY_HASH);
   const now = clock.now();
   if (!user || !ok || !user.isActive) {
-    writeTx(db, (tx) => appendAudit(tx, {
-      siteId: user?.siteId ?? null,
-      userId: user?.id ?? null,
-      actor: req.email,
-      action: 'sign-in.failed',
-      entity: 'session',
-      newValue: { from, reason: !user ? 'unknown e-mail' : !ok ? 'wrong password' : 'user deactivated' },
-      at: now,
-    }));
+    writeTx(db, (tx) =>
+      appendAudit(tx, {
+        siteId: user?.siteId ?? null,
+        userId: user?.id ?? null,
+        actor: req.email,
+        action: 'sign-in.failed',
+        entity: 'session',
+        newValue: { from, reason: !user ? 'unknown e-mail' : !ok ? 'wrong password' : 'user deactivated' },
+        at: now,
+      }),
+    );
     throw new HttpError(401, 'bad_credentials', 'E-mail or password is not right');
   }
   const sessionId = crypto.randomBytes(24).toString('base64url');
@@ -94,7 +96,17 @@ export function loadSessionUser(db: Db, userId: number): SessionUser | null {
   return found ? toSessionUser(found) : null;
 }
 
-function toSessionUser({ user, siteName, siteTimeZone, siteCurrency }: { user: UserRow; siteName: string; siteTimeZone: string; siteCurrency: string }): SessionUser | null {
+function toSessionUser({
+  user,
+  siteName,
+  siteTimeZone,
+  siteCurrency,
+}: {
+  user: UserRow;
+  siteName: string;
+  siteTimeZone: string;
+  siteCurrency: string;
+}): SessionUser | null {
   if (!user.isActive) return null;
   return {
     id: user.id,

@@ -16,7 +16,11 @@ const LATEST_KEPT = 50;
 
 export function getBatchDetail(s: Services, u: SessionUser, id: number): BatchDetail {
   const record = batchRecordOf(s.db, loadBatch(s.db, u.siteId, id).batch);
-  const chosen = sampleIndices(record.points.map((p) => p.c), DETAIL_READINGS, LATEST_KEPT);
+  const chosen = sampleIndices(
+    record.points.map((p) => p.c),
+    DETAIL_READINGS,
+    LATEST_KEPT,
+  );
   return { ...batchRecord(s, u, id, chosen.length === record.ids.length ? 'all' : chosen.map((i) => record.ids[i]!)), readingsTotal: record.ids.length };
 }
 

@@ -116,7 +116,10 @@ export function batchRecordOf(db: Db, b: BatchRef): BatchRecord {
   const version = newestReadingId(db, b.id);
   const hit = kept.get(db.$client)?.get(b.id);
   if (hit && hit.version === version) return hit;
-  const record = hit && hit.version < version ? merged(hit, fromRows(readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version) : { version, ...fromRows(readingPointRows(db, b.id), b.startedAt) };
+  const record =
+    hit && hit.version < version
+      ? merged(hit, fromRows(readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version)
+      : { version, ...fromRows(readingPointRows(db, b.id), b.startedAt) };
   if (db.$client.inTransaction) return record;
   keep(db, b.id, record);
   return record;
@@ -127,6 +130,8 @@ export function statusNow(db: Db, b: BatchRef & { program: BatchProgram }, nowIs
   const record = batchRecordOf(db, b);
   const nowH = batchHours(b.startedAt, nowIso);
   // Neither the integration nor the corrective setpoint (from the state at the last reading) depends on the clock.
-  const base = withCorrective ? (record.withCorrective ??= batchStatus(b.program, record.points, 0, true)) : (record.status ??= batchStatus(b.program, record.points, 0));
+  const base = withCorrective
+    ? (record.withCorrective ??= batchStatus(b.program, record.points, 0, true))
+    : (record.status ??= batchStatus(b.program, record.points, 0));
   return statusAtHour(b.program, base, nowH);
 }

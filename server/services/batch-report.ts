@@ -51,14 +51,20 @@ async function* reportParts(s: Services, record: Omit<BatchDetail, 'readingsTota
     ['status', 'forecast_at_close', b.forecastAtCloseGPerL, 'g/L'],
     ['status', 'measured_product', b.measuredProductGPerL, 'g/L'],
     ...(signed.length
-      ? signed.map((g) => ['signature', `${g.printedName} (${g.role})`, g.meaning, `${g.signedAt} ${g.comment}; change request ${g.changeRequestId}; record ${g.recordHash}`])
+      ? signed.map((g) => [
+          'signature',
+          `${g.printedName} (${g.role})`,
+          g.meaning,
+          `${g.signedAt} ${g.comment}; change request ${g.changeRequestId}; record ${g.recordHash}`,
+        ])
       : [['signature', 'none', p.source === 'released_plan' ? 'no signature found for the plan' : 'runs the recipe current setpoint', '']]),
   ];
   yield csvLines([['section', 'field', 'value', 'detail'], ...rows]);
-  for (let after: { takenAt: string; id: number } | null = null; ; ) {
+  for (let after: { takenAt: string; id: number } | null = null; ;) {
     await nextTurn();
     const page = readingsAfter(s.db, b.id, REPORT_PAGE, after);
-    if (page.length) yield csvLines(page.map(({ reading: r, enteredBy }) => ['reading', r.takenAt, r.c, `degC; ${r.source}; ${enteredBy}${r.note ? `; ${r.note}` : ''}`]));
+    if (page.length)
+      yield csvLines(page.map(({ reading: r, enteredBy }) => ['reading', r.takenAt, r.c, `degC; ${r.source}; ${enteredBy}${r.note ? `; ${r.note}` : ''}`]));
     if (page.length < REPORT_PAGE) break;
     after = page.at(-1)!.reading;
   }

@@ -55,7 +55,17 @@ export function changeBatchSettings({ db, clock }: Services, u: SessionUser, pat
   const now = clock.now();
   writeTx(db, (tx) => {
     upsertBatchSettings(tx, { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch_settings.update', entity: 'batch_settings', entityId: u.siteId, oldValue: before, newValue: after, at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'batch_settings.update',
+      entity: 'batch_settings',
+      entityId: u.siteId,
+      oldValue: before,
+      newValue: after,
+      at: now,
+    });
   });
   return after;
 }
@@ -105,10 +115,7 @@ export function listBatches({ db, clock }: Services, u: SessionUser): BatchSumma
   const now = clock.now().toISOString();
   return rows.map((j) => {
     const b = j.batch;
-    const forecast =
-      b.state === 'closed' && b.forecastAtCloseGPerL !== null
-        ? b.forecastAtCloseGPerL
-        : statusNow(db, b, now).forecastGPerL;
+    const forecast = b.state === 'closed' && b.forecastAtCloseGPerL !== null ? b.forecastAtCloseGPerL : statusNow(db, b, now).forecastGPerL;
     return {
       id: b.id,
       recipeName: j.recipeName,
@@ -138,23 +145,49 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
   const vessel = findSiteVessel(db, u.siteId, input.vesselId);
   if (!vessel) throw new HttpError(400, 'invalid_input', 'No such vessel at this site', { vesselId: 'Choose a vessel' });
   const lot = acceptedLot(db, u.siteId, input.lotId);
-  if (lot.enzymeId !== recipe.enzymeId) throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
+  if (lot.enzymeId !== recipe.enzymeId)
+    throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
   const now = clock.now();
   const startMs = Date.parse(input.startedAt);
-  if (startMs > now.getTime() + CLOCK_SKEW_MIN * 60_000) throw new HttpError(400, 'invalid_input', 'The start is in the future', { startedAt: 'A batch cannot start in the future' });
-  if (startMs < now.getTime() - LATE_START_LIMIT_H * 3_600_000) throw new HttpError(400, 'invalid_input', 'The start is more than a week ago', { startedAt: 'At most a week ago' });
-  if (runningBatchOnVessel(db, u.siteId, vessel.id)) throw new HttpError(409, 'vessel_busy', `${vessel.name} already has a running batch`, { vesselId: 'This vessel already has a running batch' });
+  if (startMs > now.getTime() + CLOCK_SKEW_MIN * 60_000)
+    throw new HttpError(400, 'invalid_input', 'The start is in the future', { startedAt: 'A batch cannot start in the future' });
+  if (startMs < now.getTime() - LATE_START_LIMIT_H * 3_600_000)
+    throw new HttpError(400, 'invalid_input', 'The start is more than a week ago', { startedAt: 'At most a week ago' });
+  if (runningBatchOnVessel(db, u.siteId, vessel.id))
+    throw new HttpError(409, 'vessel_busy', `${vessel.name} already has a running batch`, { vesselId: 'This vessel already has a running batch' });
   // The release in effect on the batch's start day, not necessarily the newest approval (its date may be ahead).
   const release = releaseInEffect(db, recipe, new Date(startMs), u.siteTimeZone);
   const plan = release.planId ? getPlan({ db, clock }, u, release.planId) : null;
   const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
-  const program = batchProgram({ recipe: { ...recipe, currentSetpointC: release.setpointC }, enzyme, lot: planningLot(db, u.siteId, lot, recipe.id), vessel, plan });
+  const program = batchProgram({
+    recipe: { ...recipe, currentSetpointC: release.setpointC },
+    enzyme,
+    lot: planningLot(db, u.siteId, lot, recipe.id),
+    vessel,
+    plan,
+  });
   const temps = program.stages.map((s) => s.c);
   if (Math.min(...temps) < vessel.minC || Math.max(...temps) > vessel.maxC)
-    throw new HttpError(400, 'plan_outside_vessel', `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`, { vesselId: 'The plan does not fit this vessel' });
+    throw new HttpError(
+      400,
+      'plan_outside_vessel',
+      `The ${program.source === 'released_plan' ? 'released plan' : 'current setpoint'} lies outside ${vessel.name}'s range of ${vessel.minC}-${vessel.maxC} °C`,
+      { vesselId: 'The plan does not fit this vessel' },
+    );
   const startedAt = new Date(startMs).toISOString();
   return writeTx(db, (t) => {
-    const row = insertBatch(t, { siteId: u.siteId, recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, planId: program.planId, source: program.source, program, state: 'running', startedAt, startedBy: u.id });
+    const row = insertBatch(t, {
+      siteId: u.siteId,
+      recipeId: recipe.id,
+      vesselId: vessel.id,
+      lotId: lot.id,
+      planId: program.planId,
+      source: program.source,
+      program,
+      state: 'running',
+      startedAt,
+      startedBy: u.id,
+    });
     appendAudit(t, {
       siteId: u.siteId,
       userId: u.id,
@@ -187,7 +220,17 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
   };
   const closed = writeTx(db, (t) => {
     updateBatch(t, b.id, patch);
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.close', entity: 'batch', entityId: b.id, oldValue: { state: 'running' }, newValue: { ...patch, closedBy: u.email }, at: now });
+    appendAudit(t, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'batch.close',
+      entity: 'batch',
+      entityId: b.id,
+      oldValue: { state: 'running' },
+      newValue: { ...patch, closedBy: u.email },
+      at: now,
+    });
     return toBatch(findSiteBatch(t, u.siteId, b.id)!, b.startedBy === u.id);
   });
   // A measured product makes the batch evidence: a new calibration is proposed (used only once an engineer accepts it).

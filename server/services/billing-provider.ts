@@ -1,7 +1,13 @@
 import Stripe from 'stripe';
 
 /** The seat's list price: invented for Yieldpoint, created once in the payment account under a lookup key. */
-export const SEAT_PRICE = { lookupKey: 'yieldpoint_seat_monthly', unitAmountCents: 4900, currency: 'eur', productName: 'Yieldpoint seat', nickname: 'Yieldpoint seat, monthly' } as const;
+export const SEAT_PRICE = {
+  lookupKey: 'yieldpoint_seat_monthly',
+  unitAmountCents: 4900,
+  currency: 'eur',
+  productName: 'Yieldpoint seat',
+  nickname: 'Yieldpoint seat, monthly',
+} as const;
 export const PLAN_NAME = 'Per seat, billed monthly';
 
 export type SeatPrice = { priceId: string; productId: string; unitAmountCents: number; currency: string };
@@ -34,10 +40,23 @@ export function createBilling(stripe: Stripe, webhookSecret: string, payOrigins:
   const lookUp = async (): Promise<SeatPrice> => {
     const found = await stripe.prices.list({ lookup_keys: [SEAT_PRICE.lookupKey], limit: 1 });
     const existing = found.data[0];
-    if (existing) return { priceId: existing.id, productId: typeof existing.product === 'string' ? existing.product : existing.product.id, unitAmountCents: existing.unit_amount ?? 0, currency: existing.currency };
+    if (existing)
+      return {
+        priceId: existing.id,
+        productId: typeof existing.product === 'string' ? existing.product : existing.product.id,
+        unitAmountCents: existing.unit_amount ?? 0,
+        currency: existing.currency,
+      };
     const product = await stripe.products.create({ name: SEAT_PRICE.productName }, { idempotencyKey: 'yieldpoint-seat-product-v1' });
     const created = await stripe.prices.create(
-      { product: product.id, unit_amount: SEAT_PRICE.unitAmountCents, currency: SEAT_PRICE.currency, recurring: { interval: 'month' }, lookup_key: SEAT_PRICE.lookupKey, nickname: SEAT_PRICE.nickname },
+      {
+        product: product.id,
+        unit_amount: SEAT_PRICE.unitAmountCents,
+        currency: SEAT_PRICE.currency,
+        recurring: { interval: 'month' },
+        lookup_key: SEAT_PRICE.lookupKey,
+        nickname: SEAT_PRICE.nickname,
+      },
       { idempotencyKey: 'yieldpoint-seat-price-v1' },
     );
     return { priceId: created.id, productId: product.id, unitAmountCents: created.unit_amount ?? 0, currency: created.currency };

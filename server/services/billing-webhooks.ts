@@ -48,7 +48,11 @@ export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signat
       const sub = await billing.stripe.subscriptions.retrieve(s.metadata.subscription);
       const item = sub.items.data[0];
       if (item && Number.isInteger(add) && add > 0) {
-        await billing.stripe.subscriptions.update(sub.id, { items: [{ id: item.id, quantity: (item.quantity ?? 0) + add }], proration_behavior: 'none' }, { idempotencyKey: `yieldpoint-add-seats-${event.id}` });
+        await billing.stripe.subscriptions.update(
+          sub.id,
+          { items: [{ id: item.id, quantity: (item.quantity ?? 0) + add }], proration_behavior: 'none' },
+          { idempotencyKey: `yieldpoint-add-seats-${event.id}` },
+        );
       }
     }
   }
@@ -90,7 +94,12 @@ function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscriptio
   if (row.stripeSubscriptionId && row.stripeSubscriptionId !== sub.id && row.status !== 'canceled' && row.status !== 'none') return;
   const item = sub.items.data[0];
   const status = deleted ? 'canceled' : mapStatus(sub.status);
-  const graceEndsAt = status === 'past_due' ? (row.status === 'past_due' && row.graceEndsAt ? row.graceEndsAt : new Date(now.getTime() + GRACE_DAYS * 86_400_000).toISOString()) : null;
+  const graceEndsAt =
+    status === 'past_due'
+      ? row.status === 'past_due' && row.graceEndsAt
+        ? row.graceEndsAt
+        : new Date(now.getTime() + GRACE_DAYS * 86_400_000).toISOString()
+      : null;
   const after = upsertSubscription(db, {
     ...row,
     plan: PLAN_NAME,
@@ -104,7 +113,17 @@ function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscriptio
     updatedAt: now.toISOString(),
   });
   if (after.seats !== row.seats || after.status !== row.status) {
-    appendAudit(db, { siteId: row.siteId, userId: null, actor: ACTOR, action: 'billing.subscription.update', entity: 'subscription', entityId: row.siteId, oldValue: { seats: row.seats, status: row.status }, newValue: { seats: after.seats, status: after.status, graceEndsAt }, at: now });
+    appendAudit(db, {
+      siteId: row.siteId,
+      userId: null,
+      actor: ACTOR,
+      action: 'billing.subscription.update',
+      entity: 'subscription',
+      entityId: row.siteId,
+      oldValue: { seats: row.seats, status: row.status },
+      newValue: { seats: after.seats, status: after.status, graceEndsAt },
+      at: now,
+    });
   }
 }
 
@@ -113,7 +132,16 @@ function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed:
   // Only the provider's own payment page is kept; any other address is refused and the refusal audited.
   const hostedUrl = providerPayUrl(billing, inv.hosted_invoice_url);
   if (inv.hosted_invoice_url && !hostedUrl) {
-    appendAudit(db, { siteId: row.siteId, userId: null, actor: ACTOR, action: 'billing.pay-link.refused', entity: 'invoice', entityId: inv.id, newValue: { host: hostOf(inv.hosted_invoice_url) }, at: now });
+    appendAudit(db, {
+      siteId: row.siteId,
+      userId: null,
+      actor: ACTOR,
+      action: 'billing.pay-link.refused',
+      entity: 'invoice',
+      entityId: inv.id,
+      newValue: { host: hostOf(inv.hosted_invoice_url) },
+      at: now,
+    });
   }
   upsertInvoice(db, {
     siteId: row.siteId,
@@ -133,6 +161,15 @@ function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed:
   if (failed && row.status === 'active') {
     const graceEndsAt = new Date(now.getTime() + GRACE_DAYS * 86_400_000).toISOString();
     upsertSubscription(db, { ...row, status: 'past_due', graceEndsAt, updatedAt: now.toISOString() });
-    appendAudit(db, { siteId: row.siteId, userId: null, actor: ACTOR, action: 'billing.payment.failed', entity: 'invoice', entityId: inv.id, newValue: { number: inv.number, amountDueCents: inv.amount_due, graceEndsAt }, at: now });
+    appendAudit(db, {
+      siteId: row.siteId,
+      userId: null,
+      actor: ACTOR,
+      action: 'billing.payment.failed',
+      entity: 'invoice',
+      entityId: inv.id,
+      newValue: { number: inv.number, amountDueCents: inv.amount_due, graceEndsAt },
+      at: now,
+    });
   }
 }

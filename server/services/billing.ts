@@ -4,7 +4,15 @@ import type { BillingSummary, BuySeats, ChangeSeats, CheckoutStarted, Invoice } 
 import type { SessionUser } from '../../src/contracts/session';
 import type { AppContext } from '../context';
 import { HttpError, notFound } from '../http-error';
-import { countActiveUsers, countOpenInvites, findSubscription, listSiteInvoices, upsertSubscription, type InvoiceRow, type SubscriptionRow } from '../repositories/billing';
+import {
+  countActiveUsers,
+  countOpenInvites,
+  findSubscription,
+  listSiteInvoices,
+  upsertSubscription,
+  type InvoiceRow,
+  type SubscriptionRow,
+} from '../repositories/billing';
 import { findSite } from '../repositories/sites';
 import { appendAudit } from './audit';
 import { PLAN_NAME, providerPayUrl, SEAT_PRICE, type Billing } from './billing-provider';
@@ -24,7 +32,8 @@ export function seatUsage(db: Db, siteId: number, now: Date): Usage {
   return { seats, activeUsers, pendingInvites, seatsInUse: activeUsers + pendingInvites };
 }
 
-const people = (u: Usage) => `${u.activeUsers} active ${u.activeUsers === 1 ? 'person' : 'people'}${u.pendingInvites ? ` and ${u.pendingInvites} open ${u.pendingInvites === 1 ? 'invite' : 'invites'}` : ''}`;
+const people = (u: Usage) =>
+  `${u.activeUsers} active ${u.activeUsers === 1 ? 'person' : 'people'}${u.pendingInvites ? ` and ${u.pendingInvites} open ${u.pendingInvites === 1 ? 'invite' : 'invites'}` : ''}`;
 
 /** Refuses a new invite or a reactivation when every paid seat is taken. */
 export function assertFreeSeat(db: Db, siteId: number, now: Date): void {
@@ -76,20 +85,22 @@ export function billingSummary({ db, clock }: BillingContext, actor: SessionUser
   };
 }
 
-const toInvoice = (billing: Billing | null) => (r: InvoiceRow): Invoice => ({
-  id: r.id,
-  number: r.number,
-  status: r.status,
-  currency: r.currency,
-  amountDueCents: r.amountDueCents,
-  amountPaidCents: r.amountPaidCents,
-  seats: r.seats,
-  periodStart: r.periodStart,
-  periodEnd: r.periodEnd,
-  issuedAt: r.issuedAt,
-  // Checked again on the way out: a row stored before the check, or a provider since changed, shows no foreign link.
-  payUrl: r.status === 'open' ? providerPayUrl(billing, r.hostedUrl) : null,
-});
+const toInvoice =
+  (billing: Billing | null) =>
+  (r: InvoiceRow): Invoice => ({
+    id: r.id,
+    number: r.number,
+    status: r.status,
+    currency: r.currency,
+    amountDueCents: r.amountDueCents,
+    amountPaidCents: r.amountPaidCents,
+    seats: r.seats,
+    periodStart: r.periodStart,
+    periodEnd: r.periodEnd,
+    issuedAt: r.issuedAt,
+    // Checked again on the way out: a row stored before the check, or a provider since changed, shows no foreign link.
+    payUrl: r.status === 'open' ? providerPayUrl(billing, r.hostedUrl) : null,
+  });
 
 export const siteInvoices = ({ db, billing }: BillingContext, actor: SessionUser) => ({ invoices: listSiteInvoices(db, actor.siteId).map(toInvoice(billing)) });
 
@@ -127,7 +138,16 @@ async function ensureCustomer(ctx: BillingContext, billing: Billing, actor: Sess
       stripeCustomerId: customer.id,
       updatedAt: now.toISOString(),
     });
-    appendAudit(tx, { siteId: site.id, userId: actor.id, actor: actor.email, action: 'billing.customer.create', entity: 'subscription', entityId: site.id, newValue: { customer: customer.id }, at: now });
+    appendAudit(tx, {
+      siteId: site.id,
+      userId: actor.id,
+      actor: actor.email,
+      action: 'billing.customer.create',
+      entity: 'subscription',
+      entityId: site.id,
+      newValue: { customer: customer.id },
+      at: now,
+    });
     return row;
   });
 }
@@ -171,7 +191,16 @@ export async function startCheckout(ctx: BillingContext, actor: SessionUser, req
         }),
   );
   if (!providerPayUrl(billing, session.url)) throw new HttpError(502, 'payment_provider', 'The payment provider gave no payment page of its own');
-  appendAudit(ctx.db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'billing.checkout.start', entity: 'subscription', entityId: actor.siteId, newValue: { addSeats: req.addSeats, checkoutSession: session.id }, at: ctx.clock.now() });
+  appendAudit(ctx.db, {
+    siteId: actor.siteId,
+    userId: actor.id,
+    actor: actor.email,
+    action: 'billing.checkout.start',
+    entity: 'subscription',
+    entityId: actor.siteId,
+    newValue: { addSeats: req.addSeats, checkoutSession: session.id },
+    at: ctx.clock.now(),
+  });
   return { url: session.url! };
 }
 
@@ -185,12 +214,30 @@ export async function changeSeats(ctx: BillingContext, actor: SessionUser, req: 
   }
   const u = seatUsage(ctx.db, actor.siteId, now);
   if (req.seats < u.seatsInUse) {
-    throw new HttpError(409, 'seats_in_use', `${u.seatsInUse} seats are in use (${people(u)}): deactivate people or withdraw invites before going below that.`, { seats: `At least ${u.seatsInUse}` });
+    throw new HttpError(
+      409,
+      'seats_in_use',
+      `${u.seatsInUse} seats are in use (${people(u)}): deactivate people or withdraw invites before going below that.`,
+      { seats: `At least ${u.seatsInUse}` },
+    );
   }
-  if (req.seats > row.seats) throw new HttpError(409, 'use_checkout', 'More seats are bought through payment: use Buy seats', { seats: `At most ${row.seats} here` });
+  if (req.seats > row.seats)
+    throw new HttpError(409, 'use_checkout', 'More seats are bought through payment: use Buy seats', { seats: `At most ${row.seats} here` });
   if (req.seats === row.seats) return billingSummary(ctx, actor);
-  await provider(() => billing.stripe.subscriptions.update(row.stripeSubscriptionId!, { items: [{ id: row.stripeItemId!, quantity: req.seats }], proration_behavior: 'none' }));
-  appendAudit(ctx.db, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'billing.seats.request', entity: 'subscription', entityId: actor.siteId, oldValue: { seats: row.seats }, newValue: { seats: req.seats }, at: now });
+  await provider(() =>
+    billing.stripe.subscriptions.update(row.stripeSubscriptionId!, { items: [{ id: row.stripeItemId!, quantity: req.seats }], proration_behavior: 'none' }),
+  );
+  appendAudit(ctx.db, {
+    siteId: actor.siteId,
+    userId: actor.id,
+    actor: actor.email,
+    action: 'billing.seats.request',
+    entity: 'subscription',
+    entityId: actor.siteId,
+    oldValue: { seats: row.seats },
+    newValue: { seats: req.seats },
+    at: now,
+  });
   return billingSummary(ctx, actor);
 }
 
@@ -202,7 +249,8 @@ export async function changeSeats(ctx: BillingContext, actor: SessionUser, req: 
 export function billingReturnPage(query: Record<string, unknown>): string {
   const checkout = query.checkout === 'done' ? 'done' : 'canceled';
   const int = (v: unknown) => (typeof v === 'string' && /^\d{1,4}$/.test(v) ? v : null);
-  const added = int(query.added), from = int(query.from);
+  const added = int(query.added),
+    from = int(query.from);
   const target = `/billing?checkout=${checkout}${added && from ? `&added=${added}&from=${from}` : ''}`;
   return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width"><meta http-equiv="refresh" content="0;url=${target}"><title>Back to billing · Yieldpoint</title></head><body><p><a href="${target}">Back to billing</a></p></body></html>`;
 }

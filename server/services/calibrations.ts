@@ -1,6 +1,14 @@
 import { writeTx, type Db } from '../../db/client';
 import { MEASUREMENT_REL_SD, proposeCalibration, type ClosedBatch } from '../../src/batches/calibration';
-import type { Calibration, CalibrationAccept, CalibrationExclusion, CalibrationQuery, CalibrationSettings, CalibrationSettingsPatch, CalibrationView } from '../../src/contracts/calibrations';
+import type {
+  Calibration,
+  CalibrationAccept,
+  CalibrationExclusion,
+  CalibrationQuery,
+  CalibrationSettings,
+  CalibrationSettingsPatch,
+  CalibrationView,
+} from '../../src/contracts/calibrations';
 import type { SessionUser } from '../../src/contracts/session';
 import { ModelInputError } from '../../src/model';
 import { lotKinetics } from '../../src/planning';
@@ -69,11 +77,29 @@ export function recalibrate(db: Db, u: SessionUser, recipeId: number, lotId: num
   }
   return writeTx(db, (tx) => {
     if (!proposal) {
-      if (problem) appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'calibration.refused', entity: 'recipe', entityId: recipeId, newValue: { lotId, problem }, at: now });
+      if (problem)
+        appendAudit(tx, {
+          siteId: u.siteId,
+          userId: u.id,
+          actor: u.email,
+          action: 'calibration.refused',
+          entity: 'recipe',
+          entityId: recipeId,
+          newValue: { lotId, problem },
+          at: now,
+        });
       return null;
     }
     for (const id of calibrationIdsIn(tx, u.siteId, recipeId, lotId, 'proposed')) setCalibrationState(tx, id, { state: 'superseded' });
-    const row = insertCalibration(tx, { siteId: u.siteId, recipeId, lotId, state: 'proposed', batchIds: proposal.batchIds, result: proposal.result, createdAt: now.toISOString() });
+    const row = insertCalibration(tx, {
+      siteId: u.siteId,
+      recipeId,
+      lotId,
+      state: 'proposed',
+      batchIds: proposal.batchIds,
+      result: proposal.result,
+      createdAt: now.toISOString(),
+    });
     const outliers = proposal.result.batches.filter((b) => b.isOutlier).map((b) => b.batchId);
     appendAudit(tx, {
       siteId: u.siteId,
@@ -98,7 +124,13 @@ export function getCalibrationView({ db }: Services, u: SessionUser, q: Calibrat
   const proposed = findCalibration(db, u.siteId, q.recipeId, q.lotId, 'proposed');
   const accepted = findCalibration(db, u.siteId, q.recipeId, q.lotId, 'accepted');
   const inUse = lotKinetics(found.recipe, enzyme.tRefC, planningLot(db, u.siteId, lotRow, q.recipeId)).evidence.text;
-  return { recipeId: q.recipeId, lotId: q.lotId, proposed: proposed ? toCalibration(proposed) : null, accepted: accepted ? toCalibration(accepted) : null, inUse };
+  return {
+    recipeId: q.recipeId,
+    lotId: q.lotId,
+    proposed: proposed ? toCalibration(proposed) : null,
+    accepted: accepted ? toCalibration(accepted) : null,
+    inUse,
+  };
 }
 
 /** The engineer's decision: a proposed calibration becomes the one plans use, audited with the batches it used. */
@@ -120,7 +152,14 @@ export function acceptCalibration({ db, clock }: Services, u: SessionUser, id: n
       entity: 'calibration',
       entityId: id,
       oldValue: { state: 'proposed', supersedes: previous },
-      newValue: { state: 'accepted', recipeId: c.recipeId, lotId: c.lotId, batchIds: c.batchIds, posterior: c.result.posterior, comment: input.comment ?? null },
+      newValue: {
+        state: 'accepted',
+        recipeId: c.recipeId,
+        lotId: c.lotId,
+        batchIds: c.batchIds,
+        posterior: c.result.posterior,
+        comment: input.comment ?? null,
+      },
       at: now,
     });
     return toCalibration(findSiteCalibration(tx, u.siteId, id)!);
@@ -165,7 +204,17 @@ export function changeCalibrationSettings({ db, clock }: Services, u: SessionUse
   const now = clock.now();
   writeTx(db, (tx) => {
     upsertCalibrationSettings(tx, { siteId: u.siteId, measurementRelSd: patch.measurementRelSd, updatedAt: now.toISOString() });
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'calibration_settings.update', entity: 'calibration_settings', entityId: u.siteId, oldValue: before, newValue: patch, at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'calibration_settings.update',
+      entity: 'calibration_settings',
+      entityId: u.siteId,
+      oldValue: before,
+      newValue: patch,
+      at: now,
+    });
   });
   return { ...patch };
 }

@@ -42,10 +42,20 @@ export type ChangeControlCtx = Pick<AppContext, 'db' | 'clock' | 'mail' | 'linkU
  * What every signature is bound to: the plan's full stored content and the request's own fields. Recomputed
  * from the rows at signing, so an edit to either after submission no longer matches the submitted hash.
  */
-export function recordHash(plan: PlanRow, req: Pick<ChangeRequestRow, 'planId' | 'recipeId' | 'proposedBy' | 'rationale' | 'expectedEffect' | 'effectiveFrom'>): string {
+export function recordHash(
+  plan: PlanRow,
+  req: Pick<ChangeRequestRow, 'planId' | 'recipeId' | 'proposedBy' | 'rationale' | 'expectedEffect' | 'effectiveFrom'>,
+): string {
   const content = {
     plan: { id: plan.id, recipeId: plan.recipeId, lotId: plan.lotId, modelVersion: plan.modelVersion, inputs: plan.inputs, outputs: plan.outputs },
-    request: { planId: req.planId, recipeId: req.recipeId, proposedBy: req.proposedBy, rationale: req.rationale, expectedEffect: req.expectedEffect, effectiveFrom: req.effectiveFrom },
+    request: {
+      planId: req.planId,
+      recipeId: req.recipeId,
+      proposedBy: req.proposedBy,
+      rationale: req.rationale,
+      expectedEffect: req.expectedEffect,
+      effectiveFrom: req.effectiveFrom,
+    },
   };
   return sha256(canonicalJson(content));
 }
@@ -183,7 +193,14 @@ export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: Chan
   if (listSiteChangeRequests(db, u.siteId, 'proposed').some((c) => c.request.planId === plan.id))
     throw new HttpError(409, 'already_proposed', 'This plan is already waiting for sign-off');
   const recipe = findSiteRecipe(db, u.siteId, plan.recipeId)!.recipe;
-  const fields = { planId: plan.id, recipeId: plan.recipeId, proposedBy: u.id, rationale: input.rationale, expectedEffect: input.expectedEffect, effectiveFrom: input.effectiveFrom };
+  const fields = {
+    planId: plan.id,
+    recipeId: plan.recipeId,
+    proposedBy: u.id,
+    rationale: input.rationale,
+    expectedEffect: input.expectedEffect,
+    effectiveFrom: input.effectiveFrom,
+  };
   const hash = recordHash(plan, fields);
   const id = writeTx(db, (tx) => {
     const row = insertChangeRequest(tx, { ...fields, siteId: u.siteId, status: 'proposed', recordHash: hash, createdAt: now.toISOString() });
@@ -237,7 +254,16 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
   const now = clock.now();
   const refuse = (reason: string) =>
     writeTx(db, (tx) =>
-      appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'signature.refused', entity: 'change-request', entityId: id, newValue: { reason, meaning: input.meaning }, at: now }),
+      appendAudit(tx, {
+        siteId: u.siteId,
+        userId: u.id,
+        actor: u.email,
+        action: 'signature.refused',
+        entity: 'change-request',
+        entityId: id,
+        newValue: { reason, meaning: input.meaning },
+        at: now,
+      }),
     );
   if (!ok) {
     refuse('wrong password');

@@ -93,9 +93,22 @@ type Conn = {
 export const toCelsius = (v: number, unit: VesselSourceRow['unit']) => (unit === 'K' ? v - 273.15 : unit === 'degF' ? ((v - 32) * 5) / 9 : v);
 // The deadband is set in °C; a tag in K has the same step, one in °F 1.8 times it.
 const deadbandIn = (c: number, unit: VesselSourceRow['unit']) => (unit === 'degF' ? c * 1.8 : c);
-const connKey = (siteId: number, s: VesselSourceRow) => JSON.stringify([siteId, s.endpointUrl, s.securityPolicy, s.securityMode, s.userName, s.password, s.userCertificate, s.trustedThumbprint]);
+const connKey = (siteId: number, s: VesselSourceRow) =>
+  JSON.stringify([siteId, s.endpointUrl, s.securityPolicy, s.securityMode, s.userName, s.password, s.userCertificate, s.trustedThumbprint]);
 /** What a tap depends on: any change makes a new one. */
-const tapSignature = (s: VesselSourceRow) => JSON.stringify([s.nodeId, s.unit, s.isEnabled, s.endpointUrl, s.securityPolicy, s.securityMode, s.userName, s.password, s.userCertificate, s.trustedThumbprint]);
+const tapSignature = (s: VesselSourceRow) =>
+  JSON.stringify([
+    s.nodeId,
+    s.unit,
+    s.isEnabled,
+    s.endpointUrl,
+    s.securityPolicy,
+    s.securityMode,
+    s.userName,
+    s.password,
+    s.userCertificate,
+    s.trustedThumbprint,
+  ]);
 const readingKey = (sourceMs: number) => `opcua:${new Date(sourceMs).toISOString()}`;
 /**
  * The server sends a change at once and then at most one per sampling interval; it holds notifications until the
@@ -233,8 +246,23 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     const gapFrom = lostAtMs ?? fromMs;
     if (to.getTime() - gapFrom < MIN_GAP_MS) return false;
     writeTx(db, (t) => {
-      const row = insertLinkGap(t, { siteId: tap.siteId, batchId: tap.batchId, fromAt: new Date(gapFrom).toISOString(), toAt: to.toISOString(), reason: `No history on the server (${h.reason})` });
-      appendAudit(t, { siteId: tap.siteId, userId: userOf(tap.siteId).id, actor: 'control system', action: 'link.gap', entity: 'batch', entityId: tap.batchId, newValue: { fromAt: row.fromAt, toAt: row.toAt, reason: row.reason }, at: to });
+      const row = insertLinkGap(t, {
+        siteId: tap.siteId,
+        batchId: tap.batchId,
+        fromAt: new Date(gapFrom).toISOString(),
+        toAt: to.toISOString(),
+        reason: `No history on the server (${h.reason})`,
+      });
+      appendAudit(t, {
+        siteId: tap.siteId,
+        userId: userOf(tap.siteId).id,
+        actor: 'control system',
+        action: 'link.gap',
+        entity: 'batch',
+        entityId: tap.batchId,
+        newValue: { fromAt: row.fromAt, toAt: row.toAt, reason: row.reason },
+        at: to,
+      });
     });
     return false;
   }
@@ -244,9 +272,13 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     if (!reader || tap.monitor) return;
     try {
       const hasHistory = await backfill(tap, reader, conn.lostAtMs);
-      tap.monitor = await reader.monitor(tap.source.nodeId, { samplingIntervalMs: conn.samplingIntervalMs, deadband: deadbandIn(conn.deadbandC, tap.source.unit) }, (dv) => {
-        if (taps.get(tap.vesselId) === tap) void take(tap, dv, true);
-      });
+      tap.monitor = await reader.monitor(
+        tap.source.nodeId,
+        { samplingIntervalMs: conn.samplingIntervalMs, deadband: deadbandIn(conn.deadbandC, tap.source.unit) },
+        (dv) => {
+          if (taps.get(tap.vesselId) === tap) void take(tap, dv, true);
+        },
+      );
       // Values written between the history read and the subscription: read that short span again (keys dedupe).
       if (hasHistory) await backfill(tap, reader, null);
     } catch (err) {
@@ -330,7 +362,14 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     for (const tap of [...taps.values()]) {
       const w = wanted.get(tap.vesselId);
       const s = settings(tap.siteId);
-      if (w && w.row.batchId === tap.batchId && tapSignature(w.row.source) === tapSignature(tap.source) && s.samplingIntervalMs === tap.conn.samplingIntervalMs && s.deadbandC === tap.conn.deadbandC) continue;
+      if (
+        w &&
+        w.row.batchId === tap.batchId &&
+        tapSignature(w.row.source) === tapSignature(tap.source) &&
+        s.samplingIntervalMs === tap.conn.samplingIntervalMs &&
+        s.deadbandC === tap.conn.deadbandC
+      )
+        continue;
       taps.delete(tap.vesselId);
       tap.conn.taps.delete(tap.vesselId);
       await tap.monitor?.stop();
@@ -345,7 +384,14 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
         const c = row.source;
         conn = {
           key,
-          connection: { endpointUrl: c.endpointUrl, securityPolicy: c.securityPolicy, securityMode: c.securityMode, userName: c.userName, password: c.password, userCertificate: c.userCertificate },
+          connection: {
+            endpointUrl: c.endpointUrl,
+            securityPolicy: c.securityPolicy,
+            securityMode: c.securityMode,
+            userName: c.userName,
+            password: c.password,
+            userCertificate: c.userCertificate,
+          },
           siteId,
           samplingIntervalMs: s.samplingIntervalMs,
           deadbandC: s.deadbandC,
@@ -425,7 +471,17 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     const tap = taps.get(row.source.vesselId);
     const base = { vesselId: row.source.vesselId, vesselName: row.vesselName };
     if (!tap || tap.siteId !== siteId)
-      return { ...base, batchId: null, state: row.source.isEnabled ? 'idle' : 'disabled', lastValueC: null, lastValueAt: null, ageS: null, lastError: null, errors: 0, stored: 0 };
+      return {
+        ...base,
+        batchId: null,
+        state: row.source.isEnabled ? 'idle' : 'disabled',
+        lastValueC: null,
+        lastValueAt: null,
+        ageS: null,
+        lastError: null,
+        errors: 0,
+        stored: 0,
+      };
     return {
       ...base,
       batchId: tap.batchId,
@@ -470,4 +526,3 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     },
   };
 }
-

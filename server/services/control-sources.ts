@@ -75,9 +75,11 @@ function loadSource(db: Db, siteId: number, vesselId: number) {
 /** Sets a vessel's source. A new address or security forgets the trusted server certificate. */
 export function saveSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number, input: VesselSourceParsed): VesselSource {
   const vessel = loadVessel(db, u.siteId, vesselId);
-  if (!isNodeId(input.nodeId)) throw new HttpError(400, 'invalid_input', 'Not an OPC UA node id', { nodeId: 'A node id such as ns=2;s=R101.TT01 or ns=3;i=1042' });
+  if (!isNodeId(input.nodeId))
+    throw new HttpError(400, 'invalid_input', 'Not an OPC UA node id', { nodeId: 'A node id such as ns=2;s=R101.TT01 or ns=3;i=1042' });
   const before = findVesselSource(db, u.siteId, vesselId);
-  const sameServer = before && before.endpointUrl === input.endpointUrl && before.securityPolicy === input.securityPolicy && before.securityMode === input.securityMode;
+  const sameServer =
+    before && before.endpointUrl === input.endpointUrl && before.securityPolicy === input.securityPolicy && before.securityMode === input.securityMode;
   const now = clock.now().toISOString();
   const row = writeTx(db, (tx) => {
     const saved = upsertVesselSource(tx, {
@@ -98,7 +100,17 @@ export function saveSource({ db, clock, controlLink: link }: LinkServices, u: Se
       updatedAt: now,
     });
     const audited = (r: VesselSourceRow | undefined) => (r ? toSource(r, vessel.name) : null);
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel_source.save', entity: 'vessel', entityId: vesselId, oldValue: audited(before), newValue: audited(saved), at: new Date(now) });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'vessel_source.save',
+      entity: 'vessel',
+      entityId: vesselId,
+      oldValue: audited(before),
+      newValue: audited(saved),
+      at: new Date(now),
+    });
     if (input.securityPolicy === 'None')
       appendAudit(tx, {
         siteId: u.siteId,
@@ -120,7 +132,16 @@ export function removeSource({ db, clock, controlLink: link }: LinkServices, u: 
   const { vessel, source } = loadSource(db, u.siteId, vesselId);
   writeTx(db, (tx) => {
     deleteVesselSource(tx, source.id);
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel_source.remove', entity: 'vessel', entityId: vesselId, oldValue: toSource(source, vessel.name), at: clock.now() });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'vessel_source.remove',
+      entity: 'vessel',
+      entityId: vesselId,
+      oldValue: toSource(source, vessel.name),
+      at: clock.now(),
+    });
   });
   link?.changed();
 }
@@ -146,17 +167,39 @@ export async function sourceCertificate({ db, controlLink: link }: LinkServices,
  * Trusts the server's certificate, only if it is still the one the admin was shown (same thumbprint), and
  * records who did and when.
  */
-export async function trustSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number, input: TrustRequest): Promise<VesselSource> {
+export async function trustSource(
+  { db, clock, controlLink: link }: LinkServices,
+  u: SessionUser,
+  vesselId: number,
+  input: TrustRequest,
+): Promise<VesselSource> {
   const { vessel, source } = loadSource(db, u.siteId, vesselId);
   const der = await fetchCertificate(link, source);
   const info = certificateInfo(der);
   if (!sameThumbprint(info.thumbprint, input.thumbprint))
-    throw new HttpError(409, 'thumbprint_mismatch', `The server now presents a certificate with thumbprint ${info.thumbprint}, not the one confirmed`, { thumbprint: 'Not the certificate the server presents' });
+    throw new HttpError(409, 'thumbprint_mismatch', `The server now presents a certificate with thumbprint ${info.thumbprint}, not the one confirmed`, {
+      thumbprint: 'Not the certificate the server presents',
+    });
   await running(link).pki.trust(der);
   const now = clock.now();
   const row = writeTx(db, (tx) => {
-    const r = updateVesselSource(tx, source.id, { trustedThumbprint: info.thumbprint, trustedAt: now.toISOString(), trustedBy: u.id, updatedAt: now.toISOString() });
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel_source.trust', entity: 'vessel', entityId: vesselId, oldValue: { trustedThumbprint: source.trustedThumbprint }, newValue: { endpointUrl: source.endpointUrl, ...info }, at: now });
+    const r = updateVesselSource(tx, source.id, {
+      trustedThumbprint: info.thumbprint,
+      trustedAt: now.toISOString(),
+      trustedBy: u.id,
+      updatedAt: now.toISOString(),
+    });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'vessel_source.trust',
+      entity: 'vessel',
+      entityId: vesselId,
+      oldValue: { trustedThumbprint: source.trustedThumbprint },
+      newValue: { endpointUrl: source.endpointUrl, ...info },
+      at: now,
+    });
     return r;
   });
   link?.changed();
@@ -176,7 +219,17 @@ export function changeLinkSettings({ db, clock, controlLink: link }: LinkService
   const now = clock.now();
   writeTx(db, (tx) => {
     upsertLinkSettings(tx, { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'link_settings.update', entity: 'link_settings', entityId: u.siteId, oldValue: before, newValue: after, at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'link_settings.update',
+      entity: 'link_settings',
+      entityId: u.siteId,
+      oldValue: before,
+      newValue: after,
+      at: now,
+    });
   });
   link?.changed();
   return after;
@@ -196,24 +249,55 @@ export function controlSystemUser(db: Db, siteId: number): SessionUser {
     row = writeTx(db, (tx) => {
       const created = insertUser(tx, { siteId, email: systemEmail(siteId), name: 'Control system', role: 'operator', passwordHash: '!' });
       updateUser(tx, created.id, { isActive: false });
-      appendAudit(tx, { siteId, userId: null, actor: 'system', action: 'user.create_control_system', entity: 'user', entityId: created.id, newValue: { email: created.email, isActive: false }, at: new Date() });
+      appendAudit(tx, {
+        siteId,
+        userId: null,
+        actor: 'system',
+        action: 'user.create_control_system',
+        entity: 'user',
+        entityId: created.id,
+        newValue: { email: created.email, isActive: false },
+        at: new Date(),
+      });
       return created;
     });
   }
   const j = findUserWithSite(db, row.id)!;
-  return { id: row.id, email: row.email, name: row.name, role: row.role, siteId, siteName: j.siteName, siteTimeZone: j.siteTimeZone, siteCurrency: j.siteCurrency, cautionsAcknowledgedAt: null };
+  return {
+    id: row.id,
+    email: row.email,
+    name: row.name,
+    role: row.role,
+    siteId,
+    siteName: j.siteName,
+    siteTimeZone: j.siteTimeZone,
+    siteCurrency: j.siteCurrency,
+    cautionsAcknowledgedAt: null,
+  };
 }
 
 // Status -------------------------------------------------------------------------------------------------
 
-const gapsOf = (db: Db, siteId: number, batchId: number) => listBatchGaps(db, siteId, batchId).map((g) => ({ fromAt: g.fromAt, toAt: g.toAt, reason: g.reason }));
+const gapsOf = (db: Db, siteId: number, batchId: number) =>
+  listBatchGaps(db, siteId, batchId).map((g) => ({ fromAt: g.fromAt, toAt: g.toAt, reason: g.reason }));
 
 /** Each source's link now; without a running link every source is 'off'. */
 export const linkStatus = ({ db, controlLink: link }: LinkServices, u: SessionUser): LinkStatusList =>
   link
     ? { links: link.status(u.siteId), certificate: link.pki.certificate(), userCertificate: link.pki.userCertificate() }
     : {
-        links: listSiteSources(db, u.siteId).map((r) => ({ vesselId: r.source.vesselId, vesselName: r.vesselName, batchId: null, state: 'off', lastValueC: null, lastValueAt: null, ageS: null, lastError: null, errors: 0, stored: 0 })),
+        links: listSiteSources(db, u.siteId).map((r) => ({
+          vesselId: r.source.vesselId,
+          vesselName: r.vesselName,
+          batchId: null,
+          state: 'off',
+          lastValueC: null,
+          lastValueAt: null,
+          ageS: null,
+          lastError: null,
+          errors: 0,
+          stored: 0,
+        })),
         certificate: null,
         userCertificate: null,
       };

@@ -19,7 +19,6 @@ import type { Services } from '../context';
 import { appendAudit } from './audit';
 import { batchSettingsOf, loadBatch, runningBatch } from './batches';
 
-
 export const toDeviation = ({ deviation: d, acknowledgedBy, closedBy }: DeviationJoined): Deviation => ({
   id: d.id,
   batchId: d.batchId,
@@ -61,7 +60,9 @@ export function raiseDeviations(
   // `opts.status` may give it computed elsewhere (an import's, on the worker) or null for "compute it here".
   const checksForecast = checkForecast && b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
   const status =
-    checksForecast || (withCorrective && raised.some((r) => CORRECTABLE.has(r.draft.kind))) ? (opts.status?.() ?? statusNow(t, b, now.toISOString(), true)) : null;
+    checksForecast || (withCorrective && raised.some((r) => CORRECTABLE.has(r.draft.kind)))
+      ? (opts.status?.() ?? statusNow(t, b, now.toISOString(), true))
+      : null;
   const low = status && checksForecast ? forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH) : null;
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
   return all.map(({ readingId, draft, by = u }) => {
@@ -137,7 +138,17 @@ export function acknowledgeDeviation({ db, clock }: Services, u: SessionUser, id
   const now = clock.now();
   writeTx(db, (t) => {
     updateDeviation(t, id, { state: 'acknowledged', acknowledgedBy: u.id, acknowledgedAt: now.toISOString(), acknowledgeComment: input.comment });
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.acknowledge', entity: 'deviation', entityId: id, oldValue: { state: 'open' }, newValue: { state: 'acknowledged', comment: input.comment }, at: now });
+    appendAudit(t, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'deviation.acknowledge',
+      entity: 'deviation',
+      entityId: id,
+      oldValue: { state: 'open' },
+      newValue: { state: 'acknowledged', comment: input.comment },
+      at: now,
+    });
   });
   return toDeviation(loadDeviation(db, u.siteId, id));
 }
@@ -149,7 +160,17 @@ export function closeDeviation({ db, clock }: Services, u: SessionUser, id: numb
   const now = clock.now();
   writeTx(db, (t) => {
     updateDeviation(t, id, { state: 'closed', closedBy: u.id, closedAt: now.toISOString(), closeComment: input.comment || null });
-    appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'deviation.close', entity: 'deviation', entityId: id, oldValue: { state: 'acknowledged' }, newValue: { state: 'closed', comment: input.comment ?? null }, at: now });
+    appendAudit(t, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'deviation.close',
+      entity: 'deviation',
+      entityId: id,
+      oldValue: { state: 'acknowledged' },
+      newValue: { state: 'closed', comment: input.comment ?? null },
+      at: now,
+    });
   });
   return toDeviation(loadDeviation(db, u.siteId, id));
 }

@@ -3,7 +3,15 @@
 // rows to store in time order, the deviations they raise and the batch's status with them. Pure: the server's
 // thread only stores the result, in short parts (server/services/reading-import.ts).
 import { batchStatus, CORRECTABLE, deviationRun, plannedAt, type DeviationDraft, type ReadingRules } from '../../src/batches';
-import { CLOCK_SKEW_MIN, READING_MAX_C, READING_MIN_C, type BatchProgram, type BatchSettings, type BatchStatus, type ImportProblem } from '../../src/contracts/batches';
+import {
+  CLOCK_SKEW_MIN,
+  READING_MAX_C,
+  READING_MIN_C,
+  type BatchProgram,
+  type BatchSettings,
+  type BatchStatus,
+  type ImportProblem,
+} from '../../src/contracts/batches';
 import type { Reading as Point } from '../../src/model';
 import type { CsvEncoding } from '../csv-reader';
 import type { ParsedCsv } from './historian-csv';

@@ -6,7 +6,15 @@ import type { SessionUser } from '../../src/contracts/session';
 import type { AppContext } from '../context';
 import { sha256 } from '../digest';
 import { HttpError, notFound } from '../http-error';
-import { findInviteByTokenHash, findOpenInviteByEmail, findSiteInvite, insertInvite, listOpenInvites, updateInvite, type InviteRow } from '../repositories/billing';
+import {
+  findInviteByTokenHash,
+  findOpenInviteByEmail,
+  findSiteInvite,
+  insertInvite,
+  listOpenInvites,
+  updateInvite,
+  type InviteRow,
+} from '../repositories/billing';
 import { findSite } from '../repositories/sites';
 import { revokeUserSessions } from '../repositories/sessions';
 import { findUserByEmail, insertUser, updateUser } from '../repositories/users';
@@ -22,7 +30,9 @@ export const INVITE_DAYS = 7;
 const hashToken = (token: string) => sha256(token);
 const toInvite = (r: InviteRow): Invite => ({ id: r.id, email: r.email, role: r.role, createdAt: r.createdAt, expiresAt: r.expiresAt });
 
-export const listInvites = ({ db, clock }: InviteContext, actor: SessionUser): InviteList => ({ invites: listOpenInvites(db, actor.siteId, clock.now().toISOString()).map(toInvite) });
+export const listInvites = ({ db, clock }: InviteContext, actor: SessionUser): InviteList => ({
+  invites: listOpenInvites(db, actor.siteId, clock.now().toISOString()).map(toInvite),
+});
 
 /** Reserves a seat for the invited address and mails them a one-time link (through the outbox). */
 export function createInvite(ctx: InviteContext, actor: SessionUser, req: CreateInvite): Invite {
@@ -31,8 +41,11 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
   // learns at the link that it is taken), so one site cannot find out who works at another.
   const existing = findUserByEmail(ctx.db, req.email);
   if (existing?.siteId === actor.siteId && existing.isActive)
-    throw new HttpError(409, 'email_taken', 'This person already signs in at this site; to let them back in, send a password reset from the Site screen', { email: 'Already a user at this site' });
-  if (findOpenInviteByEmail(ctx.db, req.email, now.toISOString())) throw new HttpError(409, 'already_invited', 'This address already has an open invite', { email: 'Already invited' });
+    throw new HttpError(409, 'email_taken', 'This person already signs in at this site; to let them back in, send a password reset from the Site screen', {
+      email: 'Already a user at this site',
+    });
+  if (findOpenInviteByEmail(ctx.db, req.email, now.toISOString()))
+    throw new HttpError(409, 'already_invited', 'This address already has an open invite', { email: 'Already invited' });
   const site = findSite(ctx.db, actor.siteId);
   if (!site) throw notFound('Site');
   const token = crypto.randomBytes(32).toString('base64url');
@@ -41,7 +54,15 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
   const invite = writeTx(ctx.db, (tx) => {
     // Checked inside the transaction: two invites racing for the last seat cannot both take it.
     assertFreeSeat(tx, actor.siteId, now);
-    const row = insertInvite(tx, { siteId: actor.siteId, email: req.email, role: req.role, tokenHash: hashToken(token), invitedBy: actor.id, expiresAt: expiresAt.toISOString(), createdAt: now.toISOString() });
+    const row = insertInvite(tx, {
+      siteId: actor.siteId,
+      email: req.email,
+      role: req.role,
+      tokenHash: hashToken(token),
+      invitedBy: actor.id,
+      expiresAt: expiresAt.toISOString(),
+      createdAt: now.toISOString(),
+    });
     enqueueMail(tx, {
       siteId: actor.siteId,
       to: req.email,
@@ -57,7 +78,16 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
       ].join('\n'),
       at: now,
     });
-    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.create', entity: 'invite', entityId: row.id, newValue: { email: req.email, role: req.role, expiresAt: row.expiresAt }, at: now });
+    appendAudit(tx, {
+      siteId: actor.siteId,
+      userId: actor.id,
+      actor: actor.email,
+      action: 'invite.create',
+      entity: 'invite',
+      entityId: row.id,
+      newValue: { email: req.email, role: req.role, expiresAt: row.expiresAt },
+      at: now,
+    });
     return row;
   });
   ctx.mail?.kick();
@@ -70,7 +100,16 @@ export function revokeInvite({ db, clock }: InviteContext, actor: SessionUser, i
   const now = clock.now();
   writeTx(db, (tx) => {
     updateInvite(tx, id, { revokedAt: now.toISOString() });
-    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'invite.revoke', entity: 'invite', entityId: id, oldValue: { email: row.email, role: row.role }, at: now });
+    appendAudit(tx, {
+      siteId: actor.siteId,
+      userId: actor.id,
+      actor: actor.email,
+      action: 'invite.revoke',
+      entity: 'invite',
+      entityId: id,
+      oldValue: { email: row.email, role: row.role },
+      at: now,
+    });
   });
 }
 
@@ -100,14 +139,27 @@ export async function acceptInvite({ db, clock }: InviteContext, req: AcceptInvi
     const existing = findUserByEmail(tx, row.email);
     // Told only to the address's owner, who opened the link from their own mail.
     if (existing && (existing.siteId !== row.siteId || existing.isActive))
-      throw new HttpError(409, 'email_taken', 'This e-mail address already has a Yieldpoint sign-in. Sign in with it, or ask for an invite to another address.');
+      throw new HttpError(
+        409,
+        'email_taken',
+        'This e-mail address already has a Yieldpoint sign-in. Sign in with it, or ask for an invite to another address.',
+      );
     // A person of this site who lost access (deactivated) comes back with the invite's role and a new password.
     const user = existing
       ? updateUser(tx, existing.id, { name: req.name, role: row.role, isActive: true, passwordHash })
       : insertUser(tx, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
     if (existing) revokeUserSessions(tx, existing.id, now.toISOString());
     updateInvite(tx, row.id, { acceptedAt: now.toISOString(), userId: user.id });
-    appendAudit(tx, { siteId: row.siteId, userId: user.id, actor: row.email, action: 'invite.accept', entity: 'user', entityId: user.id, newValue: { email: row.email, role: row.role, name: req.name, invite: row.id, ...(existing ? { reactivated: true } : {}) }, at: now });
+    appendAudit(tx, {
+      siteId: row.siteId,
+      userId: user.id,
+      actor: row.email,
+      action: 'invite.accept',
+      entity: 'user',
+      entityId: user.id,
+      newValue: { email: row.email, role: row.role, name: req.name, invite: row.id, ...(existing ? { reactivated: true } : {}) },
+      at: now,
+    });
     return { email: user.email };
   });
 }

@@ -15,7 +15,11 @@ import { appendAudit } from './audit';
 
 export type LotServices = Pick<AppContext, 'db' | 'clock' | 'files'>;
 
-const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzymeName: string, activityUnit: string): Lot => ({ ...l, enzymeName, activityUnit });
+const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzymeName: string, activityUnit: string): Lot => ({
+  ...l,
+  enzymeName,
+  activityUnit,
+});
 
 export const listLots = ({ db }: Services, u: SessionUser, q: LotQuery = {}): Lot[] =>
   listSiteLots(db, u.siteId, q).map(({ lot, enzymeName, activityUnit }) => toLot(lot, enzymeName, activityUnit));
@@ -32,7 +36,9 @@ export function acceptedLot(db: Db, siteId: number, lotId: number): LotRow {
   const lot = findSiteLot(db, siteId, lotId)?.lot;
   if (!lot) throw new HttpError(400, 'invalid_input', 'No such lot at this site', { lotId: 'No such lot at this site' });
   if (lot.status !== 'accepted')
-    throw new HttpError(400, 'lot_not_accepted', `Lot ${lot.lotCode} is ${lot.status}; only accepted lots can be planned with`, { lotId: 'Only accepted lots can be planned with' });
+    throw new HttpError(400, 'lot_not_accepted', `Lot ${lot.lotCode} is ${lot.status}; only accepted lots can be planned with`, {
+      lotId: 'Only accepted lots can be planned with',
+    });
   return lot;
 }
 
@@ -74,7 +80,11 @@ export function getLot({ db }: Services, u: SessionUser, id: number): LotDetail 
     certificate: certificateView(db, u.siteId, id),
     assays,
     evaluation: evaluateLot(enzyme, lot, fitted?.fit ?? null),
-    disagreement: certificateDisagreement({ certKdPerH: lot.certKdPerH, certTempC: lot.certTempC, fit: fitted?.fit ? { assayId: fitted.id, createdAt: fitted.createdAt, fit: fitted.fit } : null }),
+    disagreement: certificateDisagreement({
+      certKdPerH: lot.certKdPerH,
+      certTempC: lot.certTempC,
+      fit: fitted?.fit ? { assayId: fitted.id, createdAt: fitted.createdAt, fit: fitted.fit } : null,
+    }),
     decidedBy: decidedBy ?? null,
   };
 }
@@ -102,7 +112,16 @@ export function createLot({ db, clock }: Services, u: SessionUser, input: LotInp
       certTempC: conv.tempC,
       status: 'quarantined',
     });
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'lot.create', entity: 'lot', entityId: row.id, newValue: { ...input, certKdPerH: conv.kdPerH }, at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'lot.create',
+      entity: 'lot',
+      entityId: row.id,
+      newValue: { ...input, certKdPerH: conv.kdPerH },
+      at: now,
+    });
     return toLot(row, enzyme.name, enzyme.activityUnit);
   });
 }
@@ -154,8 +173,7 @@ export function sniffCertificateType(bytes: Buffer): CertificateFile['mimeType']
 }
 
 // A name fit for a Content-Disposition header and a file system: no path, no control characters.
-const safeName = (name: string) =>
-  (name.split(/[\\/]/).pop() ?? 'certificate').replace(/[^\w.\- ()]/g, '_').slice(0, 120) || 'certificate';
+const safeName = (name: string) => (name.split(/[\\/]/).pop() ?? 'certificate').replace(/[^\w.\- ()]/g, '_').slice(0, 120) || 'certificate';
 
 export function attachCertificate(s: LotServices, u: SessionUser, id: number, file: { originalname: string; buffer: Buffer } | undefined): CertificateFile {
   siteLot(s.db, u, id);
@@ -169,14 +187,34 @@ export function attachCertificate(s: LotServices, u: SessionUser, id: number, fi
   }
   if (!byName || byName.mime !== mime) {
     const label = SIGNATURES.find((sig) => sig.mime === mime)!.label;
-    throw new HttpError(415, 'type_mismatch', `The file's content is ${label} but its name says otherwise; rename it and try again`, { file: 'Name and content disagree' });
+    throw new HttpError(415, 'type_mismatch', `The file's content is ${label} but its name says otherwise; rename it and try again`, {
+      file: 'Name and content disagree',
+    });
   }
   const { sha256 } = s.files.put(file.buffer);
   const now = s.clock.now();
   const fileName = safeName(file.originalname);
   writeTx(s.db, (tx) => {
-    insertCertificate(tx, { siteId: u.siteId, lotId: id, fileName, mimeType: mime, sizeBytes: file.buffer.length, sha256, uploadedBy: u.id, uploadedAt: now.toISOString() });
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'lot.certificate.upload', entity: 'lot', entityId: id, newValue: { fileName, mimeType: mime, sizeBytes: file.buffer.length, sha256 }, at: now });
+    insertCertificate(tx, {
+      siteId: u.siteId,
+      lotId: id,
+      fileName,
+      mimeType: mime,
+      sizeBytes: file.buffer.length,
+      sha256,
+      uploadedBy: u.id,
+      uploadedAt: now.toISOString(),
+    });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'lot.certificate.upload',
+      entity: 'lot',
+      entityId: id,
+      newValue: { fileName, mimeType: mime, sizeBytes: file.buffer.length, sha256 },
+      at: now,
+    });
   });
   return certificateView(s.db, u.siteId, id)!;
 }

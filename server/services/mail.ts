@@ -11,7 +11,16 @@ export type MailInput = { siteId: number | null; to: string; subject: string; te
 
 /** Queues a message. Call inside the write's transaction: the record and its notice land together. */
 export function enqueueMail(tx: Db, m: MailInput): MailRow {
-  return insertMail(tx, { siteId: m.siteId, to: m.to, subject: m.subject, text: m.text, html: m.html ?? null, kind: m.kind, nextAttemptAt: m.at.toISOString(), createdAt: m.at.toISOString() });
+  return insertMail(tx, {
+    siteId: m.siteId,
+    to: m.to,
+    subject: m.subject,
+    text: m.text,
+    html: m.html ?? null,
+    kind: m.kind,
+    nextAttemptAt: m.at.toISOString(),
+    createdAt: m.at.toISOString(),
+  });
 }
 
 /** What the sender hands a message to; nodemailer's transport in the app, anything in tests. */
@@ -68,7 +77,12 @@ export function createMailSender(opts: { db: Db; clock: Clock; transport: MailTr
         const attempts = m.attempts + 1;
         const lastError = (e instanceof Error ? e.message : String(e)).slice(0, 500);
         const giveUp = attempts >= MAX_ATTEMPTS;
-        updateMail(db, m.id, { status: giveUp ? 'failed' : 'pending', attempts, lastError, nextAttemptAt: new Date(clock.now().getTime() + retryDelayMs(attempts)).toISOString() });
+        updateMail(db, m.id, {
+          status: giveUp ? 'failed' : 'pending',
+          attempts,
+          lastError,
+          nextAttemptAt: new Date(clock.now().getTime() + retryDelayMs(attempts)).toISOString(),
+        });
         failed++;
       }
     }
@@ -123,7 +137,17 @@ export function retryMail(db: Db, clock: Clock, actor: SessionUser, id: number):
   const now = clock.now();
   return writeTx(db, (tx) => {
     const after = updateMail(tx, id, { status: 'pending', attempts: 0, nextAttemptAt: now.toISOString() });
-    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'mail.retry', entity: 'mail', entityId: id, oldValue: { status: m.status, attempts: m.attempts }, newValue: { status: 'pending' }, at: now });
+    appendAudit(tx, {
+      siteId: actor.siteId,
+      userId: actor.id,
+      actor: actor.email,
+      action: 'mail.retry',
+      entity: 'mail',
+      entityId: id,
+      oldValue: { status: m.status, attempts: m.attempts },
+      newValue: { status: 'pending' },
+      at: now,
+    });
     return toMessage(after);
   });
 }

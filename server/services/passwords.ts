@@ -26,7 +26,16 @@ export async function changeOwnPassword(ctx: AuthContext, u: SessionUser, sessio
   writeTx(ctx.db, (tx) => {
     updateUser(tx, u.id, { passwordHash });
     revokeOtherSessions(tx, u.id, sessionId, now.toISOString());
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'user.password.change', entity: 'user', entityId: u.id, newValue: { otherSessionsEnded: true }, at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'user.password.change',
+      entity: 'user',
+      entityId: u.id,
+      newValue: { otherSessionsEnded: true },
+      at: now,
+    });
   });
 }
 
@@ -70,7 +79,16 @@ export async function sendPasswordReset(ctx: ResetContext, admin: SessionUser, u
       ].join('\n'),
       at: now,
     });
-    appendAudit(tx, { siteId: admin.siteId, userId: admin.id, actor: admin.email, action: 'user.password-reset.send', entity: 'user', entityId: user.id, newValue: { to: user.email, expiresAt: expires.toISOString() }, at: now });
+    appendAudit(tx, {
+      siteId: admin.siteId,
+      userId: admin.id,
+      actor: admin.email,
+      action: 'user.password-reset.send',
+      entity: 'user',
+      entityId: user.id,
+      newValue: { to: user.email, expiresAt: expires.toISOString() },
+      at: now,
+    });
   });
   ctx.mail?.kick();
   return { to: user.email, expiresAt: expires.toISOString() };
@@ -82,11 +100,20 @@ async function openReset(ctx: AuthContext, token: string): Promise<{ user: UserR
     ({ payload: claims } = await jwtVerify(token, resetKey(ctx.auth.secret), { algorithms: ['HS256'], currentDate: ctx.clock.now() }));
   } catch (e) {
     const expired = (e as { code?: string }).code === 'ERR_JWT_EXPIRED';
-    throw new HttpError(expired ? 410 : 404, expired ? 'reset_expired' : 'reset_not_found', expired ? 'This reset link has expired. Ask your site admin for a new one.' : 'This reset link is not valid. Ask your site admin for a new one.');
+    throw new HttpError(
+      expired ? 410 : 404,
+      expired ? 'reset_expired' : 'reset_not_found',
+      expired ? 'This reset link has expired. Ask your site admin for a new one.' : 'This reset link is not valid. Ask your site admin for a new one.',
+    );
   }
   const found = claims.purpose === 'password-reset' && claims.sub ? findUserWithSite(ctx.db, Number(claims.sub)) : undefined;
   if (!found || !found.user.isActive) throw new HttpError(404, 'reset_not_found', 'This reset link is not valid. Ask your site admin for a new one.');
-  if (claims.fp !== fingerprint(found.user)) throw new HttpError(410, 'reset_used', 'This reset link was already used, or a newer password was set since. Sign in, or ask your site admin for a new link.');
+  if (claims.fp !== fingerprint(found.user))
+    throw new HttpError(
+      410,
+      'reset_used',
+      'This reset link was already used, or a newer password was set since. Sign in, or ask your site admin for a new link.',
+    );
   return { user: found.user, expiresAt: new Date((claims.exp ?? 0) * 1000).toISOString() };
 }
 
@@ -103,10 +130,20 @@ export async function resetPassword(ctx: AuthContext, input: PasswordReset): Pro
   writeTx(ctx.db, (tx) => {
     // Read again after the slow hash: the same link submitted twice sets one password.
     const current = findSiteUser(tx, user.siteId, user.id);
-    if (!current || fingerprint(current) !== fingerprint(user)) throw new HttpError(410, 'reset_used', 'This reset link was already used. Sign in with your new password.');
+    if (!current || fingerprint(current) !== fingerprint(user))
+      throw new HttpError(410, 'reset_used', 'This reset link was already used. Sign in with your new password.');
     updateUser(tx, user.id, { passwordHash });
     revokeUserSessions(tx, user.id, now.toISOString());
-    appendAudit(tx, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'user.password-reset.use', entity: 'user', entityId: user.id, newValue: { sessionsEnded: true }, at: now });
+    appendAudit(tx, {
+      siteId: user.siteId,
+      userId: user.id,
+      actor: user.email,
+      action: 'user.password-reset.use',
+      entity: 'user',
+      entityId: user.id,
+      newValue: { sessionsEnded: true },
+      at: now,
+    });
   });
   return { email: user.email };
 }

@@ -83,7 +83,15 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
       action: 'plan.create',
       entity: 'plan',
       entityId: row.id,
-      newValue: { recipeId: recipe.id, lotId: lot.id, strategy: outputs.strategy, setpointC: outputs.setpointC, contentHash, modelVersion: MODEL_VERSION, evidence: outputs.kinetics.evidence?.text },
+      newValue: {
+        recipeId: recipe.id,
+        lotId: lot.id,
+        strategy: outputs.strategy,
+        setpointC: outputs.setpointC,
+        contentHash,
+        modelVersion: MODEL_VERSION,
+        evidence: outputs.kinetics.evidence?.text,
+      },
       at: clock.now(),
     });
     return toPlan(tx, findSitePlan(tx, u.siteId, row.id)!);
@@ -106,7 +114,11 @@ export function planCsv(s: Services, u: SessionUser, id: number): { filename: st
     ['content_hash', p.contentHash, 'sha256'],
     ...Object.entries(p.inputs)
       .filter(([k]) => k !== 'uncertainty')
-      .map(([k, v]) => [`input.${k}`, v, k === 'productPricePerKg' || k === 'enzymePricePerKg' ? `${cur}/kg` : k === 'heatingCostPerDegCHour' ? `${cur}/(degC h)` : '']),
+      .map(([k, v]) => [
+        `input.${k}`,
+        v,
+        k === 'productPricePerKg' || k === 'enzymePricePerKg' ? `${cur}/kg` : k === 'heatingCostPerDegCHour' ? `${cur}/(degC h)` : '',
+      ]),
     ...(p.inputs.uncertainty ? Object.entries(p.inputs.uncertainty).map(([k, v]) => [`input.uncertainty.${k}`, v, '']) : []),
     ['strategy', o.strategy, ''],
     ['setpoint_c', o.setpointC, 'degC'],

@@ -38,7 +38,7 @@ export function importProgress(s: Services, u: SessionUser, id: number): ImportP
 /** The batch's historian keys, a page per turn, as newline-joined pages. */
 async function historianKeys(s: Services, batchId: number): Promise<string[]> {
   const pages: string[] = [];
-  for (let after = HISTORIAN_KEY; ; ) {
+  for (let after = HISTORIAN_KEY; ;) {
     const page = readingKeysAfter(s.db, batchId, after, KEYS_PER_TURN).filter((k) => k.startsWith(HISTORIAN_KEY));
     if (page.length) pages.push(page.join('\n'));
     if (page.length < KEYS_PER_TURN) return pages;
@@ -53,7 +53,7 @@ const isoOf = (ms: number | undefined) => (ms === undefined ? null : new Date(ms
 function partEnds(rows: number, draftIndices: readonly number[]): number[] {
   const ends: number[] = [];
   let d = 0;
-  for (let from = 0; from < rows || ends.length === 0; ) {
+  for (let from = 0; from < rows || ends.length === 0;) {
     let cost = 0;
     let to = from;
     while (to < rows && cost < ROWS_PER_PART) {
@@ -79,7 +79,8 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
   const { db, clock } = s;
   const b0 = runningBatch(db, u.siteId, id).batch;
   const timeZone = q.timeZone ?? u.siteTimeZone;
-  if (!isTimeZone(timeZone)) throw new HttpError(400, 'invalid_input', `Unknown time zone ${timeZone}`, { timeZone: 'Give an IANA zone such as Europe/Berlin' });
+  if (!isTimeZone(timeZone))
+    throw new HttpError(400, 'invalid_input', `Unknown time zone ${timeZone}`, { timeZone: 'Give an IANA zone such as Europe/Berlin' });
   if (importsRunning.has(id)) throw new HttpError(409, 'import_running', 'Another import into this batch is running; try again when it has finished');
   const progress = { bytesRead: 0, bytesTotal: bytes.length, phase: 'reading' as 'reading' | 'storing', rowsStored: 0, rowsToStore: 0 };
   importsRunning.set(id, progress);
@@ -109,7 +110,10 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
     // Stored in parts, one transaction each, so no other request waits behind the whole file. The audit event
     // goes with the first part and states what the import stores; a part's deviations go with its readings.
     // Should the server stop between parts, those stored stay and the same file uploaded again stores the rest.
-    const ends = partEnds(n, plan.drafts.map((d) => d.index));
+    const ends = partEnds(
+      n,
+      plan.drafts.map((d) => d.index),
+    );
     const ids = new Int32Array(n);
     // Whether the batch gained nothing but this import's readings since the worker's basis: then the worker's
     // status is the batch's, and the kept record takes the import in without reading it back.
@@ -127,7 +131,17 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
         for (let i = from; i < to; i++) {
           const iso = (at[i] = new Date(plan.atMs[i]!).toISOString());
           points[i] = { h: (plan.atMs[i]! - startMs) / 3_600_000, c: plan.c[i]! };
-          rows.push({ siteId: u.siteId, batchId: b.id, clientKey: `${HISTORIAN_KEY}${iso}`, takenAt: iso, c: plan.c[i]!, note: null, source: 'historian' as const, enteredBy: u.id, receivedAt: now.toISOString() });
+          rows.push({
+            siteId: u.siteId,
+            batchId: b.id,
+            clientKey: `${HISTORIAN_KEY}${iso}`,
+            takenAt: iso,
+            c: plan.c[i]!,
+            note: null,
+            source: 'historian' as const,
+            enteredBy: u.id,
+            receivedAt: now.toISOString(),
+          });
         }
         const stored = insertReadings(t, rows);
         stored.forEach((rid, i) => (ids[from + i] = rid));
@@ -139,7 +153,16 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
             action: 'batch.readings_import',
             entity: 'batch',
             entityId: b.id,
-            newValue: { rows: plan.total, imported: n, parts: ends.length, timeZone, dateOrder: q.dateOrder, encoding: plan.encoding, first: isoOf(plan.atMs[0]), last: isoOf(plan.atMs[n - 1]) },
+            newValue: {
+              rows: plan.total,
+              imported: n,
+              parts: ends.length,
+              timeZone,
+              dateOrder: q.dateOrder,
+              encoding: plan.encoding,
+              first: isoOf(plan.atMs[0]),
+              last: isoOf(plan.atMs[n - 1]),
+            },
             at: now,
           });
         const mine: { readingId: number; draft: (typeof plan.drafts)[number]['draft'] }[] = [];
@@ -155,7 +178,16 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
     if (alone && n) {
       await keepAdded(db, b, record, { ids, at, points }, ids[n - 1]!, plan.status);
     }
-    return { rows: plan.total, imported: n, skipped: plan.skipped, outOfOrder: plan.outOfOrder, deviationsRaised: raised, problems: plan.problems, timeZone, encoding: plan.encoding };
+    return {
+      rows: plan.total,
+      imported: n,
+      skipped: plan.skipped,
+      outOfOrder: plan.outOfOrder,
+      deviationsRaised: raised,
+      problems: plan.problems,
+      timeZone,
+      encoding: plan.encoding,
+    };
   } finally {
     importsRunning.delete(id);
   }

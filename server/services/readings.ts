@@ -1,13 +1,7 @@
 // Readings logged one at a time (phone, control-system link) through group commit, and the readings table's pages.
 import { unwritableReason, writeTx, type Db } from '../../db/client';
 import { batchHours, readingDeviations, type DeviationDraft, type ReadingRules } from '../../src/batches';
-import {
-  type Reading,
-  type ReadingInput,
-  type ReadingResult,
-  type ReadingsPage,
-  type ReadingSource,
-} from '../../src/contracts/batches';
+import { type Reading, type ReadingInput, type ReadingResult, type ReadingsPage, type ReadingSource } from '../../src/contracts/batches';
 import type { SessionUser } from '../../src/contracts/session';
 import { HttpError } from '../http-error';
 import {
@@ -80,7 +74,11 @@ export function readingIngest(s: Services, opts: { checkForecast?: boolean } = {
     queue = [];
     let stored: Stored[];
     try {
-      stored = storeReadings(s, items.map((i) => i.req), checksForecast);
+      stored = storeReadings(
+        s,
+        items.map((i) => i.req),
+        checksForecast,
+      );
     } catch (err) {
       for (const i of items) i.reject(err);
       return;
@@ -159,8 +157,27 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
   const before = readingAtOrBefore(t, b.id, takenAt);
   const prev = before ? { h: batchHours(b.startedAt, before.takenAt), c: before.c } : null;
   const drafts = readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c });
-  const row = insertReading(t, { siteId: u.siteId, batchId: b.id, clientKey: input.key, takenAt, c: input.c, note, source, enteredBy: u.id, receivedAt: now.toISOString() });
-  appendAudit(t, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'batch.reading', entity: 'batch', entityId: b.id, newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note, ...(source === 'manual' ? {} : { source }) }, at: now });
+  const row = insertReading(t, {
+    siteId: u.siteId,
+    batchId: b.id,
+    clientKey: input.key,
+    takenAt,
+    c: input.c,
+    note,
+    source,
+    enteredBy: u.id,
+    receivedAt: now.toISOString(),
+  });
+  appendAudit(t, {
+    siteId: u.siteId,
+    userId: u.id,
+    actor: u.email,
+    action: 'batch.reading',
+    entity: 'batch',
+    entityId: b.id,
+    newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note, ...(source === 'manual' ? {} : { source }) },
+    at: now,
+  });
   for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
   g.lastBy = u;
   return { created: true, result: { reading: toReading(row, u.name, b.startedAt), deviations: [] } };

@@ -13,7 +13,12 @@ import { acceptedLot } from './lots';
 
 type Joined = NonNullable<ReturnType<typeof findSiteRecipe>>;
 
-const toRecipe = ({ recipe: { siteId: _s, createdAt: _c, ...r }, enzymeName, lotCode, vesselName }: Joined): Recipe => ({ ...r, enzymeName, lotCode, vesselName });
+const toRecipe = ({ recipe: { siteId: _s, createdAt: _c, ...r }, enzymeName, lotCode, vesselName }: Joined): Recipe => ({
+  ...r,
+  enzymeName,
+  lotCode,
+  vesselName,
+});
 
 export const listRecipes = ({ db }: Services, u: SessionUser): Recipe[] => listSiteRecipes(db, u.siteId).map(toRecipe);
 
@@ -25,7 +30,9 @@ function siteVessel(db: Db, siteId: number, vesselId: number): VesselRow {
 
 function checkSetpoint(v: VesselRow, c: number) {
   if (c < v.minC || c > v.maxC)
-    throw new HttpError(400, 'invalid_input', `The current setpoint must lie within ${v.name}'s range`, { currentSetpointC: `Must lie between ${v.minC} and ${v.maxC} °C` });
+    throw new HttpError(400, 'invalid_input', `The current setpoint must lie within ${v.name}'s range`, {
+      currentSetpointC: `Must lie between ${v.minC} and ${v.maxC} °C`,
+    });
 }
 
 function assertNameFree(db: Db, siteId: number, name: string, exceptId?: number) {
@@ -39,7 +46,12 @@ export function getRecipeDetail({ db }: Services, u: SessionUser, id: number): R
   const vessel = findSiteVessel(db, u.siteId, found.recipe.vesselId)!;
   const { siteId: _s, createdAt: _c, ...enzyme } = findSiteEnzyme(db, u.siteId, found.recipe.enzymeId)!;
   const { siteId: _vs, createdAt: _vc, ...vesselOut } = vessel;
-  return { recipe: toRecipe(found), vessel: vesselOut, enzyme, lots: listAcceptedLots(db, u.siteId, found.recipe.enzymeId).map((l) => planningLot(db, u.siteId, l, id)) };
+  return {
+    recipe: toRecipe(found),
+    vessel: vesselOut,
+    enzyme,
+    lots: listAcceptedLots(db, u.siteId, found.recipe.enzymeId).map((l) => planningLot(db, u.siteId, l, id)),
+  };
 }
 
 export function createRecipe({ db, clock }: Services, u: SessionUser, input: RecipeInput): Recipe {
@@ -73,7 +85,17 @@ export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number
     updateRecipe(tx, id, { ...patch, updatedAt: now.toISOString() });
     const after = toRecipe(findSiteRecipe(tx, u.siteId, id)!);
     const old = Object.fromEntries(Object.keys(patch).map((k) => [k, before[k as keyof typeof before]]));
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'recipe.update', entity: 'recipe', entityId: id, oldValue: old, newValue: patch, at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'recipe.update',
+      entity: 'recipe',
+      entityId: id,
+      oldValue: old,
+      newValue: patch,
+      at: now,
+    });
     return after;
   });
 }
@@ -84,7 +106,8 @@ export function changeRecipe({ db, clock }: Services, u: SessionUser, id: number
  * last, else what the first approval replaced (the previous released plan, or the bare setpoint).
  */
 export function releaseInEffect(db: Db, recipe: Joined['recipe'], at: Date, timeZone: string): { planId: number | null; setpointC: number } {
-  if (!recipe.releasedPlanId || !recipe.releasedAt || Date.parse(recipe.releasedAt) <= at.getTime()) return { planId: recipe.releasedPlanId, setpointC: recipe.currentSetpointC };
+  if (!recipe.releasedPlanId || !recipe.releasedAt || Date.parse(recipe.releasedAt) <= at.getTime())
+    return { planId: recipe.releasedPlanId, setpointC: recipe.currentSetpointC };
   const approvals = listApprovedChanges(db, recipe.siteId, recipe.id);
   const day = siteDay(at, timeZone);
   const due = approvals.filter((a) => a.effectiveFrom <= day).at(-1);

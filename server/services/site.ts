@@ -34,7 +34,17 @@ export function changeSite(s: Services, u: SessionUser, patch: SitePatch): SiteS
   const now = s.clock.now();
   writeTx(s.db, (tx) => {
     updateSite(tx, u.siteId, patch);
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'site.update', entity: 'site', entityId: u.siteId, oldValue: { currency: site.currency }, newValue: patch, at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'site.update',
+      entity: 'site',
+      entityId: u.siteId,
+      oldValue: { currency: site.currency },
+      newValue: patch,
+      at: now,
+    });
   });
   return siteSummary(s, u);
 }

@@ -45,6 +45,14 @@ export function acknowledgeCautions({ db, clock }: Services, actor: SessionUser)
   const now = clock.now();
   writeTx(db, (tx) => {
     updateUser(tx, actor.id, { cautionsAcknowledgedAt: now.toISOString() });
-    appendAudit(tx, { siteId: actor.siteId, userId: actor.id, actor: actor.email, action: 'cautions.acknowledge', entity: 'user', entityId: actor.id, at: now });
+    appendAudit(tx, {
+      siteId: actor.siteId,
+      userId: actor.id,
+      actor: actor.email,
+      action: 'cautions.acknowledge',
+      entity: 'user',
+      entityId: actor.id,
+      at: now,
+    });
   });
 }

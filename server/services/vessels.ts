@@ -20,7 +20,16 @@ export function createVessel({ db, clock }: Services, u: SessionUser, input: Ves
   const now = clock.now();
   return writeTx(db, (tx) => {
     const row = insertVessel(tx, u.siteId, input);
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel.create', entity: 'vessel', entityId: row.id, newValue: toVessel(row), at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'vessel.create',
+      entity: 'vessel',
+      entityId: row.id,
+      newValue: toVessel(row),
+      at: now,
+    });
     return toVessel(row);
   });
 }
@@ -35,7 +44,17 @@ export function changeVessel({ db, clock }: Services, u: SessionUser, id: number
   const now = clock.now();
   return writeTx(db, (tx) => {
     const after = updateVessel(tx, id, merged);
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'vessel.update', entity: 'vessel', entityId: id, oldValue: toVessel(before), newValue: toVessel(after), at: now });
+    appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'vessel.update',
+      entity: 'vessel',
+      entityId: id,
+      oldValue: toVessel(before),
+      newValue: toVessel(after),
+      at: now,
+    });
     return toVessel(after);
   });
 }

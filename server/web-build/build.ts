@@ -80,7 +80,8 @@ export async function finishExport(root: string, from: string, to: string, pipel
   try {
     // The server writes the session each page is served for before its `</head>` (server/web-app.ts).
     const withoutHead = filesUnder(to).filter((f) => f.endsWith('.html') && fs.readFileSync(path.join(to, f), 'utf8').split('</head>').length !== 2);
-    if (withoutHead.length) throw new Error(`Web build: ${withoutHead.length} pages have no single </head> for the session (${withoutHead.slice(0, 3).join(', ')}).`);
+    if (withoutHead.length)
+      throw new Error(`Web build: ${withoutHead.length} pages have no single </head> for the session (${withoutHead.slice(0, 3).join(', ')}).`);
     if (pipeline === 'finished') {
       renderOverSnapshots(to);
       splitBundle(to);
@@ -101,7 +102,10 @@ export function precompress(dir: string): void {
   for (const rel of filesUnder(dir).filter((f) => COMPRESSIBLE.test(f))) {
     const file = path.join(dir, rel);
     const body = fs.readFileSync(file);
-    fs.writeFileSync(`${file}.br`, zlib.brotliCompressSync(body, { params: { [zlib.constants.BROTLI_PARAM_QUALITY]: 11, [zlib.constants.BROTLI_PARAM_SIZE_HINT]: body.length } }));
+    fs.writeFileSync(
+      `${file}.br`,
+      zlib.brotliCompressSync(body, { params: { [zlib.constants.BROTLI_PARAM_QUALITY]: 11, [zlib.constants.BROTLI_PARAM_SIZE_HINT]: body.length } }),
+    );
     fs.writeFileSync(`${file}.gz`, zlib.gzipSync(body, { level: 9 }));
   }
 }

@@ -63,23 +63,34 @@ export function runtimeCaching(dir: string): RuntimeCaching[] {
   const pages = pageRoutes(dir);
   // Expo Router's page files are what the routes below are made from: none found is a changed export, not an app
   // without pages.
-  if (!pages.length) throw new Error(`Web build, service worker: no page routes in ${dir}; Expo Router's static pages have changed (DEVELOPERS.md, "Upgrading Expo, Metro or React").`);
+  if (!pages.length)
+    throw new Error(
+      `Web build, service worker: no page routes in ${dir}; Expo Router's static pages have changed (DEVELOPERS.md, "Upgrading Expo, Metro or React").`,
+    );
   return [
     {
       urlPattern: /^https?:\/\/[^/]+\/api\//,
       handler: 'NetworkFirst',
       method: 'GET',
-      options: { cacheName: API_CACHE, networkTimeoutSeconds: NETWORK_TIMEOUT_S, cacheableResponse: { statuses: [200] }, plugins: [{ cachedResponseWillBeUsed: markCachedAnswer }] },
+      options: {
+        cacheName: API_CACHE,
+        networkTimeoutSeconds: NETWORK_TIMEOUT_S,
+        cacheableResponse: { statuses: [200] },
+        plugins: [{ cachedResponseWillBeUsed: markCachedAnswer }],
+      },
     },
-    ...pages.map(
-      (r): RuntimeCaching => ({
-        urlPattern: hrefPattern(r.pattern),
-        handler: 'NetworkFirst',
-        method: 'GET',
-        // Status 0 keeps `/`'s redirect to the role's home (an opaque redirect) for an offline start.
-        options: { cacheName: PAGES_CACHE, networkTimeoutSeconds: NETWORK_TIMEOUT_S, cacheableResponse: { statuses: [0, 200] }, precacheFallback: { fallbackURL: `/${shellURL(r.file)}` } },
-      }),
-    ),
+    ...pages.map((r): RuntimeCaching => ({
+      urlPattern: hrefPattern(r.pattern),
+      handler: 'NetworkFirst',
+      method: 'GET',
+      // Status 0 keeps `/`'s redirect to the role's home (an opaque redirect) for an offline start.
+      options: {
+        cacheName: PAGES_CACHE,
+        networkTimeoutSeconds: NETWORK_TIMEOUT_S,
+        cacheableResponse: { statuses: [0, 200] },
+        precacheFallback: { fallbackURL: `/${shellURL(r.file)}` },
+      },
+    })),
   ];
 }
 
@@ -124,6 +135,7 @@ export async function writeOffline(root: string, dir: string): Promise<{ precach
   // Offline start needs every script the pages load; a bundle left out (too big, a new folder) would fail only offline.
   const scripts = filesUnder(dir).filter((f) => f.endsWith('.js') && f.startsWith('_expo'));
   const missing = scripts.filter((f) => !precached.has(f.split(path.sep).join('/')));
-  if (!scripts.length || missing.length) throw new Error(`Web build, service worker: ${scripts.length ? `not precached: ${missing.join(', ')}` : 'no bundle to precache'}.`);
+  if (!scripts.length || missing.length)
+    throw new Error(`Web build, service worker: ${scripts.length ? `not precached: ${missing.join(', ')}` : 'no bundle to precache'}.`);
   return { precached: count, bytes: size };
 }

@@ -10,7 +10,9 @@ import { filesUnder } from '../web-pages';
 
 /** Stops the build: the export no longer has the shape a step was written for. */
 function changedShape(step: string, what: string): never {
-  throw new Error(`Web build, ${step}: ${what}. Expo or Metro has changed its output; see DEVELOPERS.md, "Upgrading Expo, Metro or React" (WEB_PIPELINE=plain serves the plain export meanwhile).`);
+  throw new Error(
+    `Web build, ${step}: ${what}. Expo or Metro has changed its output; see DEVELOPERS.md, "Upgrading Expo, Metro or React" (WEB_PIPELINE=plain serves the plain export meanwhile).`,
+  );
 }
 
 const pagesOf = (dir: string) => filesUnder(dir).filter((f) => f.endsWith('.html'));
@@ -81,8 +83,15 @@ export function warmOrder(dir: string): number[] {
     if (!UNGUARDED.test(text)) changedShape('warm-up order', `${f} defines no \`__r.unguarded\``);
     for (const m of registrations) {
       const map: unknown = JSON.parse(m[2]!);
-      const ids = Array.isArray(map) ? map : Object.entries(map as object).filter(([k]) => /^\d+$/.test(k)).map(([, v]) => v);
-      deps.set(Number(m[1]), ids.filter((d): d is number => Number.isInteger(d)));
+      const ids = Array.isArray(map)
+        ? map
+        : Object.entries(map as object)
+            .filter(([k]) => /^\d+$/.test(k))
+            .map(([, v]) => v);
+      deps.set(
+        Number(m[1]),
+        ids.filter((d): d is number => Number.isInteger(d)),
+      );
     }
     for (const m of text.matchAll(START)) started.add(Number(m[1]));
   }
@@ -163,9 +172,13 @@ export function splitBundle(dir: string, count = BUNDLE_PARTS): void {
   const entries = fs.existsSync(jsDir) ? fs.readdirSync(jsDir).filter((f) => ENTRY_BUNDLE.test(f)) : [];
   if (entries.length !== 1) changedShape('bundle parts', `expected one entry bundle index-<hash>.js, found ${entries.length}`);
   const name = entries[0]!;
-  const lines = fs.readFileSync(path.join(jsDir, name), 'utf8').split('\n').filter((l) => !l.startsWith('//# '));
+  const lines = fs
+    .readFileSync(path.join(jsDir, name), 'utf8')
+    .split('\n')
+    .filter((l) => !l.startsWith('//# '));
   const parts = cutBundle(lines, count);
-  if (parts.length < Math.min(count, 2)) changedShape('bundle parts', `${name} could be cut into ${parts.length} part(s) only: its modules no longer start lines with \`__d(\``);
+  if (parts.length < Math.min(count, 2))
+    changedShape('bundle parts', `${name} could be cut into ${parts.length} part(s) only: its modules no longer start lines with \`__d(\``);
   const urls = parts.map((text, i) => {
     const part = name.replace(/\.js$/, `-${i}.js`);
     fs.writeFileSync(path.join(jsDir, part), text);

@@ -36,7 +36,9 @@ export const auditKey = (q: { action?: string; offset?: number }) =>
 export const lotKey = (id: number) => `/lots/${id}`;
 export const enzymeKey = (id: number) => `/enzymes/${id}`;
 export const enzymesKey = (q: { q?: string; sort?: string; dir?: string; page?: number; pageSize?: number } = {}) => {
-  const params = Object.entries(q).filter(([, v]) => v !== undefined && v !== '').map(([k, v]) => `${k}=${encodeURIComponent(String(v))}`);
+  const params = Object.entries(q)
+    .filter(([, v]) => v !== undefined && v !== '')
+    .map(([k, v]) => `${k}=${encodeURIComponent(String(v))}`);
   return params.length ? `/enzymes?${params.join('&')}` : '/enzymes';
 };
 

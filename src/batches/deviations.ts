@@ -19,7 +19,7 @@ const aboveMax = (r: ReadingRules, p: Point) => p.c > r.vesselMaxC;
 
 function gapText(hours: number) {
   const min = Math.round(hours * 60);
-  return min >= 120 ? `${(hours).toFixed(1)} h` : `${min} min`;
+  return min >= 120 ? `${hours.toFixed(1)} h` : `${min} min`;
 }
 
 /**
@@ -41,7 +41,13 @@ export function readingDeviations(rules: ReadingRules, prev: Point | null, p: Po
   const expected = rules.plannedAt(p.h);
   if (aboveMax(rules, p)) {
     if (!prev || !aboveMax(rules, prev))
-      out.push({ kind: 'vessel_max', h: p.h, valueC: p.c, expectedC: expected, message: `${c1(p.c)} is above the vessel's maximum of ${c1(rules.vesselMaxC)}.` });
+      out.push({
+        kind: 'vessel_max',
+        h: p.h,
+        valueC: p.c,
+        expectedC: expected,
+        message: `${c1(p.c)} is above the vessel's maximum of ${c1(rules.vesselMaxC)}.`,
+      });
   } else if (outOfBand(rules, p) && (!prev || !outOfBand(rules, prev) || aboveMax(rules, prev))) {
     const diff = p.c - expected;
     out.push({

@@ -10,12 +10,28 @@ const formatters = new Map<string, Intl.DateTimeFormat>();
 function wall(t: number, timeZone: string) {
   let f = formatters.get(timeZone);
   if (!f) {
-    f = new Intl.DateTimeFormat('en-GB', { timeZone, hourCycle: 'h23', year: 'numeric', month: 'numeric', day: 'numeric', hour: 'numeric', minute: 'numeric', timeZoneName: 'short' });
+    f = new Intl.DateTimeFormat('en-GB', {
+      timeZone,
+      hourCycle: 'h23',
+      year: 'numeric',
+      month: 'numeric',
+      day: 'numeric',
+      hour: 'numeric',
+      minute: 'numeric',
+      timeZoneName: 'short',
+    });
     formatters.set(timeZone, f);
   }
   const parts = f.formatToParts(new Date(t));
   const get = (type: string) => parts.find((p) => p.type === type)?.value ?? '';
-  return { y: Number(get('year')), mo: Number(get('month')), d: Number(get('day')), h: Number(get('hour')), mi: Number(get('minute')), zone: get('timeZoneName') };
+  return {
+    y: Number(get('year')),
+    mo: Number(get('month')),
+    d: Number(get('day')),
+    h: Number(get('hour')),
+    mi: Number(get('minute')),
+    zone: get('timeZoneName'),
+  };
 }
 
 /** The zone's short name at an instant as the site's clock shows it: `CET`, `CEST`, `UTC`, `GMT+5:30`. */
@@ -33,7 +49,8 @@ export function parseSiteInput(s: string, timeZone: string): Date | null {
   if (!m) return null;
   const [y, mo, d, h, mi, sec] = [m[1], m[2], m[3], m[4], m[5], m[6] ?? '0'].map(Number) as [number, number, number, number, number, number];
   const check = new Date(Date.UTC(y, mo - 1, d, h, mi, sec));
-  if (check.getUTCFullYear() !== y || check.getUTCMonth() !== mo - 1 || check.getUTCDate() !== d || check.getUTCHours() !== h || check.getUTCMinutes() !== mi) return null;
+  if (check.getUTCFullYear() !== y || check.getUTCMonth() !== mo - 1 || check.getUTCDate() !== d || check.getUTCHours() !== h || check.getUTCMinutes() !== mi)
+    return null;
   return new Date(zonedToUtcMs(y, mo, d, h, mi, sec, 0, timeZone));
 }
 

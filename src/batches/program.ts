@@ -26,9 +26,7 @@ export function batchProgram({ recipe, enzyme, lot, vessel, plan }: ProgramInput
   const batchH = plan ? plan.inputs.batchH : recipe.batchH;
   const dose = plan ? plan.inputs.doseGPerL : recipe.doseGPerL;
   const substrate = plan ? { s0GPerL: plan.inputs.s0GPerL, kmGPerL: plan.inputs.kmGPerL } : { s0GPerL: recipe.s0GPerL, kmGPerL: recipe.kmGPerL };
-  const stages: Stage[] = plan
-    ? (plan.outputs.stages ?? [{ hours: batchH, c: plan.outputs.setpointC }])
-    : [{ hours: batchH, c: recipe.currentSetpointC }];
+  const stages: Stage[] = plan ? (plan.outputs.stages ?? [{ hours: batchH, c: plan.outputs.setpointC }]) : [{ hours: batchH, c: recipe.currentSetpointC }];
   const log = stagesWithRamps(stages, recipe.fillC, vessel.maxHeatCPerH, vessel.maxCoolCPerH);
   const e = enzymeFor(ctx, dose);
   const enzymeParams = { tRefC: e.tRefC, vmaxRef: e.vmaxRef, eaKJPerMol: e.eaKJPerMol, kdRefPerH: e.kdRefPerH, edKJPerMol: e.edKJPerMol };

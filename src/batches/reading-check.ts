@@ -13,7 +13,8 @@ type Range = { name: string; minC: number; maxC: number };
 export function readingCaution(c: number, vessel: Range, lastC: number | null): string | null {
   if (c > vessel.maxC) return `${c.toFixed(1)} °C is above ${vessel.name}’s maximum of ${vessel.maxC.toFixed(1)} °C.`;
   if (c < vessel.minC) return `${c.toFixed(1)} °C is below ${vessel.name}’s minimum of ${vessel.minC.toFixed(1)} °C.`;
-  if (lastC !== null && Math.abs(c - lastC) >= READING_JUMP_C) return `${c.toFixed(1)} °C is ${Math.abs(c - lastC).toFixed(1)} °C from the last reading of ${lastC.toFixed(1)} °C.`;
+  if (lastC !== null && Math.abs(c - lastC) >= READING_JUMP_C)
+    return `${c.toFixed(1)} °C is ${Math.abs(c - lastC).toFixed(1)} °C from the last reading of ${lastC.toFixed(1)} °C.`;
   return null;
 }
 
@@ -28,7 +29,9 @@ const MINUTE_H = 1 / 60;
  */
 export function readingsExplained<R extends { h: number; c: number }>(readings: readonly R[], forecast?: (rs: readonly R[]) => number): string[] {
   if (!readings.length) return ['No readings yet: the forecast is the plan.'];
-  const lines = ['The forecast draws a straight line from each reading to the next, so a reading counts for the time until the next one; after the last reading it assumes the plan.'];
+  const lines = [
+    'The forecast draws a straight line from each reading to the next, so a reading counts for the time until the next one; after the last reading it assumes the plan.',
+  ];
   const last = readings[readings.length - 1]!;
   lines.push(`The last reading, ${last.c.toFixed(1)} °C, counts for no time until the next one is logged.`);
   // Runs of readings each less than a minute after the one before.
@@ -52,7 +55,9 @@ export function readingsExplained<R extends { h: number; c: number }>(readings: 
       const without = readings.filter((_, i) => i <= s.from || i >= s.from + s.n);
       effect = ` Forecast ${forecast(readings).toFixed(1)} g/L with them, ${forecast(without).toFixed(1)} g/L with only the first.`;
     }
-    lines.push(`${s.n} readings within one minute (${s.minC.toFixed(1)}–${s.maxC.toFixed(1)} °C) make a spike of almost no duration: it counts only for those seconds.${effect}`);
+    lines.push(
+      `${s.n} readings within one minute (${s.minC.toFixed(1)}–${s.maxC.toFixed(1)} °C) make a spike of almost no duration: it counts only for those seconds.${effect}`,
+    );
   }
   return lines;
 }

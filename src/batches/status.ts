@@ -64,5 +64,9 @@ export function batchStatus(program: BatchProgram, readings: readonly Point[], n
 
 /** A status computed earlier with its clock-dependent figures (hours left, planned now) for batch hour `nowH`. */
 export function statusAtHour(program: BatchProgram, status: BatchStatus, nowH: number): BatchStatus {
-  return { ...status, hoursLeft: Math.max(0, program.batchH - Math.max(0, nowH)), plannedNowC: plannedAt(program, Math.min(Math.max(0, nowH), program.batchH)) };
+  return {
+    ...status,
+    hoursLeft: Math.max(0, program.batchH - Math.max(0, nowH)),
+    plannedNowC: plannedAt(program, Math.min(Math.max(0, nowH), program.batchH)),
+  };
 }

@@ -126,8 +126,7 @@ async function main(): Promise<void> {
   const command = process.argv[2] ?? '';
   let input: unknown;
   try {
-    if (!(COMMANDS as readonly string[]).includes(command))
-      throw new ModelInputError('command', `must be one of ${COMMANDS.join(', ')}`);
+    if (!(COMMANDS as readonly string[]).includes(command)) throw new ModelInputError('command', `must be one of ${COMMANDS.join(', ')}`);
     const text = await readStdin();
     try {
       input = JSON.parse(text);

@@ -44,6 +44,12 @@ export const AuditVerification = z.object({
 });
 export type AuditVerification = z.infer<typeof AuditVerification>;
 
-export const AuditCheckpoint = z.object({ siteId: z.number().int().nullable(), events: z.number().int(), lastId: z.number().int(), head: z.string(), at: z.string() });
+export const AuditCheckpoint = z.object({
+  siteId: z.number().int().nullable(),
+  events: z.number().int(),
+  lastId: z.number().int(),
+  head: z.string(),
+  at: z.string(),
+});
 export const AuditCheckpointInput = z.strictObject({});
 export const AuditCheckpointsWritten = z.object({ written: z.array(AuditCheckpoint) });

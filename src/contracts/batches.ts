@@ -16,12 +16,18 @@ export const BatchSettings = z.object({
   /** Half-width of the band around the planned temperature, degC. */
   toleranceC: z.number().min(0.1, 'At least 0.1 °C').max(20, 'At most 20 °C'),
   /** Longest allowed time between readings, minutes. */
-  gapLimitMin: z.number().int().min(1, 'At least 1 minute').max(24 * 60, 'At most 24 h'),
+  gapLimitMin: z
+    .number()
+    .int()
+    .min(1, 'At least 1 minute')
+    .max(24 * 60, 'At most 24 h'),
 });
 export type BatchSettings = z.infer<typeof BatchSettings>;
 export const DEFAULT_BATCH_SETTINGS: BatchSettings = { toleranceC: 1.5, gapLimitMin: 30 };
 
-export const BatchSettingsPatch = BatchSettings.partial().strict().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
+export const BatchSettingsPatch = BatchSettings.partial()
+  .strict()
+  .refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type BatchSettingsPatch = z.infer<typeof BatchSettingsPatch>;
 
 const Point = z.object({ h: z.number(), c: z.number() });
@@ -232,7 +238,11 @@ export type BatchList = z.infer<typeof BatchList>;
 export const ReadingResult = z.object({ reading: Reading, deviations: z.array(Deviation) });
 export type ReadingResult = z.infer<typeof ReadingResult>;
 
-export const ImportProblem = z.object({ line: z.number().int(), kind: z.enum(['invalid', 'duplicate', 'already_stored', 'out_of_order']), message: z.string() });
+export const ImportProblem = z.object({
+  line: z.number().int(),
+  kind: z.enum(['invalid', 'duplicate', 'already_stored', 'out_of_order']),
+  message: z.string(),
+});
 export type ImportProblem = z.infer<typeof ImportProblem>;
 
 /** Largest historian import: readings (data rows) and bytes of CSV, both checked while the upload streams in. */

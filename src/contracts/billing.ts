@@ -42,12 +42,16 @@ export type InvoiceList = z.infer<typeof InvoiceList>;
 export const MAX_SEATS = 500;
 
 /** POST /api/billing/checkout: seats to add; the answer is the payment page to send the browser to. */
-export const BuySeats = z.strictObject({ addSeats: z.coerce.number().int('Whole seats only').min(1, 'Add at least one seat').max(MAX_SEATS, `At most ${MAX_SEATS} seats`) });
+export const BuySeats = z.strictObject({
+  addSeats: z.coerce.number().int('Whole seats only').min(1, 'Add at least one seat').max(MAX_SEATS, `At most ${MAX_SEATS} seats`),
+});
 export type BuySeats = z.infer<typeof BuySeats>;
 
 export const CheckoutStarted = z.object({ url: z.string().url() });
 export type CheckoutStarted = z.infer<typeof CheckoutStarted>;
 
 /** PATCH /api/billing/seats: the new total, never below the seats in use. */
-export const ChangeSeats = z.strictObject({ seats: z.coerce.number().int('Whole seats only').min(1, 'At least one seat').max(MAX_SEATS, `At most ${MAX_SEATS} seats`) });
+export const ChangeSeats = z.strictObject({
+  seats: z.coerce.number().int('Whole seats only').min(1, 'At least one seat').max(MAX_SEATS, `At most ${MAX_SEATS} seats`),
+});
 export type ChangeSeats = z.infer<typeof ChangeSeats>;

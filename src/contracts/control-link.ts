@@ -14,7 +14,10 @@ const optionalText = (max: number) => z.string().trim().max(max).optional();
 /** An admin's source for one vessel. Security None needs `allowInsecure: true`, and is audited as such. */
 export const VesselSourceInput = z
   .strictObject({
-    endpointUrl: z.string().trim().regex(/^opc\.tcp:\/\/[^\s/:]+(:\d{1,5})?(\/\S*)?$/, 'An OPC UA address such as opc.tcp://historian.plant:4840'),
+    endpointUrl: z
+      .string()
+      .trim()
+      .regex(/^opc\.tcp:\/\/[^\s/:]+(:\d{1,5})?(\/\S*)?$/, 'An OPC UA address such as opc.tcp://historian.plant:4840'),
     nodeId: z.string().trim().min(3, 'The node id of the temperature variable, e.g. ns=2;s=R101.TT01').max(300),
     unit: z.enum(SOURCE_UNITS).default('degC'),
     securityPolicy: z.enum(SECURITY_POLICIES).default('Basic256Sha256'),
@@ -28,13 +31,18 @@ export const VesselSourceInput = z
     allowInsecure: z.boolean().optional(),
   })
   .superRefine((v, ctx) => {
-    if (v.userCertificate && v.userName) ctx.addIssue({ code: 'custom', path: ['userCertificate'], message: 'Log in with a user name or with the user certificate, not both' });
+    if (v.userCertificate && v.userName)
+      ctx.addIssue({ code: 'custom', path: ['userCertificate'], message: 'Log in with a user name or with the user certificate, not both' });
     if (v.userCertificate && v.securityPolicy === 'None')
       ctx.addIssue({ code: 'custom', path: ['userCertificate'], message: 'A user certificate needs a secured connection (a security policy other than None)' });
     const none = [v.securityPolicy === 'None', v.securityMode === 'None'];
     if (none[0] !== none[1]) ctx.addIssue({ code: 'custom', path: ['securityMode'], message: 'Policy None goes with mode None, and only with it' });
     else if (none[0] && v.allowInsecure !== true)
-      ctx.addIssue({ code: 'custom', path: ['allowInsecure'], message: 'Security None sends the temperatures and the password in clear: confirm it to choose it' });
+      ctx.addIssue({
+        code: 'custom',
+        path: ['allowInsecure'],
+        message: 'Security None sends the temperatures and the password in clear: confirm it to choose it',
+      });
   });
 export type VesselSourceInput = z.input<typeof VesselSourceInput>;
 export type VesselSourceParsed = z.output<typeof VesselSourceInput>;
@@ -71,7 +79,12 @@ export const CertificateInfo = z.object({
 });
 export type CertificateInfo = z.infer<typeof CertificateInfo>;
 
-export const TrustRequest = z.strictObject({ thumbprint: z.string().trim().regex(/^[0-9a-fA-F:]{40,59}$/, 'The SHA-1 thumbprint shown with the certificate') });
+export const TrustRequest = z.strictObject({
+  thumbprint: z
+    .string()
+    .trim()
+    .regex(/^[0-9a-fA-F:]{40,59}$/, 'The SHA-1 thumbprint shown with the certificate'),
+});
 export type TrustRequest = z.infer<typeof TrustRequest>;
 
 /** How the site samples its tags. */
@@ -82,7 +95,9 @@ export const LinkSettings = z.object({
 });
 export type LinkSettings = z.infer<typeof LinkSettings>;
 export const DEFAULT_LINK_SETTINGS: LinkSettings = { samplingIntervalMs: 1000, deadbandC: 0.05 };
-export const LinkSettingsPatch = LinkSettings.partial().strict().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
+export const LinkSettingsPatch = LinkSettings.partial()
+  .strict()
+  .refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type LinkSettingsPatch = z.infer<typeof LinkSettingsPatch>;
 
 export const LinkStatus = z.object({

@@ -25,7 +25,10 @@ export const EnzymeInput = z.strictObject({
   name: text(80),
   enzymeClass: text(80),
   // EC numbers have four parts; the last may be '-' or a preliminary 'n1'.
-  ecNumber: z.string().trim().regex(/^\d{1,2}\.\d{1,3}\.\d{1,3}\.(\d{1,4}|-|n\d{1,3})$/, 'Four parts, like 3.2.1.3'),
+  ecNumber: z
+    .string()
+    .trim()
+    .regex(/^\d{1,2}\.\d{1,3}\.\d{1,3}\.(\d{1,4}|-|n\d{1,3})$/, 'Four parts, like 3.2.1.3'),
   supplier: text(80),
   activityUnit: text(30),
   unitDefinition: text(300),

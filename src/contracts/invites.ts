@@ -30,7 +30,6 @@ export type InviteToken = z.infer<typeof InviteToken>;
 export const InvitePreview = z.object({ email: z.string(), role: Role, siteName: z.string(), expiresAt: z.string() });
 export type InvitePreview = z.infer<typeof InvitePreview>;
 
-
 export const AcceptInvite = InviteToken.extend({
   name: z.string().trim().min(1, 'Enter your name').max(120),
   password: NewPassword,

@@ -5,4 +5,3 @@ export { ROLE_LABELS, ROLES };
 
 export const Role = z.enum(ROLES);
 export type Role = z.infer<typeof Role>;
-

@@ -21,7 +21,10 @@ const temperatureC = z.number().min(-20).max(250);
 // Field rules on their own, so a PATCH can take any subset and the merged record is checked as a whole.
 export const VesselFields = z.object({
   name: z.string().trim().min(1, 'Give the vessel a name').max(80),
-  workingVolumeL: z.number().positive('Must be more than 0').max(MAX_VESSEL_VOLUME_L, `At most ${MAX_VESSEL_VOLUME_L.toLocaleString('en')} L`),
+  workingVolumeL: z
+    .number()
+    .positive('Must be more than 0')
+    .max(MAX_VESSEL_VOLUME_L, `At most ${MAX_VESSEL_VOLUME_L.toLocaleString('en')} L`),
   minC: temperatureC,
   maxC: temperatureC,
   maxHeatCPerH: z.number().positive('Must be more than 0'),
@@ -37,5 +40,7 @@ export const VesselInput = VesselFields.strict().superRefine((v, ctx) => {
 });
 export type VesselInput = z.infer<typeof VesselInput>;
 
-export const VesselPatch = VesselFields.partial().strict().refine((v) => Object.keys(v).length > 0, 'Nothing to change');
+export const VesselPatch = VesselFields.partial()
+  .strict()
+  .refine((v) => Object.keys(v).length > 0, 'Nothing to change');
 export type VesselPatch = z.infer<typeof VesselPatch>;

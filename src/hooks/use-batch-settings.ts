@@ -8,4 +8,5 @@ import { useSubmit } from './use-submit';
 export const useBatchSettings = () => useResource<BatchSettings>(keys.batchSettings);
 
 /** Changes the rules (supervisor or admin); every batch view is read again, since their deviations follow them. */
-export const useUpdateBatchSettings = () => useSubmit((body: BatchSettingsPatch) => api<BatchSettings>(keys.batchSettings, { method: 'PATCH', body }), [keys.batches]);
+export const useUpdateBatchSettings = () =>
+  useSubmit((body: BatchSettingsPatch) => api<BatchSettings>(keys.batchSettings, { method: 'PATCH', body }), [keys.batches]);

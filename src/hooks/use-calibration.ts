@@ -3,4 +3,5 @@ import type { CalibrationView } from '../contracts/calibrations';
 import { useResource } from './use-resource';
 
 /** The proposal, the calibration in use and the model-quality figures of a recipe and lot; `null` skips the read. */
-export const useCalibration = (recipeId: number | null, lotId: number | null) => useResource<CalibrationView>(recipeId && lotId ? calibrationKey(recipeId, lotId) : null);
+export const useCalibration = (recipeId: number | null, lotId: number | null) =>
+  useResource<CalibrationView>(recipeId && lotId ? calibrationKey(recipeId, lotId) : null);

@@ -3,4 +3,5 @@ import { keys } from '../api/keys';
 import type { Batch, BatchClose } from '../contracts/batches';
 import { useSubmit } from './use-submit';
 
-export const useCloseBatch = (id: number) => useSubmit((input: BatchClose) => api<Batch>(`/batches/${id}/close`, { method: 'POST', body: input }), [keys.batches]);
+export const useCloseBatch = (id: number) =>
+  useSubmit((input: BatchClose) => api<Batch>(`/batches/${id}/close`, { method: 'POST', body: input }), [keys.batches]);

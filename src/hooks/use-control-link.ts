@@ -13,10 +13,16 @@ export const useVesselSources = () => useResource<VesselSourceList>(linkKeys.sou
 
 /** Sets a vessel's source (admin); the status and sources are read again. */
 export const useSaveSource = () =>
-  useSubmit((vesselId: number, body: VesselSourceInput) => api<VesselSource>(`/control-link/sources/${vesselId}`, { method: 'PUT', body }), [linkKeys.sources, linkKeys.status]);
+  useSubmit(
+    (vesselId: number, body: VesselSourceInput) => api<VesselSource>(`/control-link/sources/${vesselId}`, { method: 'PUT', body }),
+    [linkKeys.sources, linkKeys.status],
+  );
 
 /** Asks the server for its certificate now (admin), to compare its thumbprint before trusting it. */
 export const useServerCertificate = () => useSubmit((vesselId: number) => api<CertificateInfo>(`/control-link/sources/${vesselId}/server-certificate`), []);
 
 export const useTrustServer = () =>
-  useSubmit((vesselId: number, body: TrustRequest) => api<VesselSource>(`/control-link/sources/${vesselId}/trust`, { method: 'POST', body }), [linkKeys.sources, linkKeys.status]);
+  useSubmit(
+    (vesselId: number, body: TrustRequest) => api<VesselSource>(`/control-link/sources/${vesselId}/trust`, { method: 'POST', body }),
+    [linkKeys.sources, linkKeys.status],
+  );

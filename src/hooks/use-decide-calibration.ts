@@ -10,4 +10,5 @@ export const useAcceptCalibration = () =>
   useSubmit((id: number, body: CalibrationAccept) => api<Calibration>(`/calibrations/${id}/accept`, { method: 'POST', body }), CHANGED);
 
 /** Leaves a closed batch out of calibration, or takes it back in, with a reason; the server proposes anew. */
-export const useExcludeBatch = () => useSubmit((body: CalibrationExclusion) => api<CalibrationView>('/calibrations/exclusions', { method: 'POST', body }), CHANGED);
+export const useExcludeBatch = () =>
+  useSubmit((body: CalibrationExclusion) => api<CalibrationView>('/calibrations/exclusions', { method: 'POST', body }), CHANGED);

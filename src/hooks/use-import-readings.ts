@@ -7,6 +7,10 @@ import { useSubmit } from './use-submit';
 export const useImportReadings = (id: number) =>
   useSubmit(
     (csv: string, q: Partial<ImportQuery> = {}) =>
-      api<ImportResult>(`/batches/${id}/readings/import?${new URLSearchParams(q as Record<string, string>)}`, { method: 'POST', body: csv, contentType: 'text/csv' }),
+      api<ImportResult>(`/batches/${id}/readings/import?${new URLSearchParams(q as Record<string, string>)}`, {
+        method: 'POST',
+        body: csv,
+        contentType: 'text/csv',
+      }),
     [keys.batches],
   );

@@ -33,22 +33,30 @@ export function useLogReading(batchId: number) {
   const busy = useRef(false);
 
   // `fresh`: the key of a reading logged just now, which was never shown as waiting on the device.
-  const flush = useCallback(async (fresh?: string) => {
-    if (!store || busy.current) return;
-    busy.current = true;
-    try {
-      const r = await flushQueue(store, (x) => api<ReadingResult>(`/batches/${x.batchId}/readings`, { method: 'POST', body: { key: x.key, takenAt: x.takenAt, c: x.c, ...(x.note ? { note: x.note } : {}) } }));
-      setOffline(r.isOffline);
-      // The stored readings are read again before the device's copies leave the table, so a row never vanishes.
-      if (r.sent.length || r.rejected.length) await mutate((k) => typeof k === 'string' && k.startsWith(keys.batches));
-      const waited = r.sent.filter((x) => x.batchId === batchId && x.key !== fresh).length;
-      if (waited) setSentCount(waited);
-    } finally {
-      busy.current = false;
-      setQueued(ofBatch());
-      setRefused(refusedOfBatch());
-    }
-  }, [store, batchId, mutate, ofBatch, refusedOfBatch]);
+  const flush = useCallback(
+    async (fresh?: string) => {
+      if (!store || busy.current) return;
+      busy.current = true;
+      try {
+        const r = await flushQueue(store, (x) =>
+          api<ReadingResult>(`/batches/${x.batchId}/readings`, {
+            method: 'POST',
+            body: { key: x.key, takenAt: x.takenAt, c: x.c, ...(x.note ? { note: x.note } : {}) },
+          }),
+        );
+        setOffline(r.isOffline);
+        // The stored readings are read again before the device's copies leave the table, so a row never vanishes.
+        if (r.sent.length || r.rejected.length) await mutate((k) => typeof k === 'string' && k.startsWith(keys.batches));
+        const waited = r.sent.filter((x) => x.batchId === batchId && x.key !== fresh).length;
+        if (waited) setSentCount(waited);
+      } finally {
+        busy.current = false;
+        setQueued(ofBatch());
+        setRefused(refusedOfBatch());
+      }
+    },
+    [store, batchId, mutate, ofBatch, refusedOfBatch],
+  );
 
   useEffect(() => {
     // The device's queue is a store outside React: read again when the user or the batch changes.
@@ -71,7 +79,14 @@ export function useLogReading(batchId: number) {
   const log = useCallback(
     async (r: { takenAt: string; c: number; note?: string }) => {
       if (!store) return 'queued' as const;
-      const item: QueuedReading = { batchId, key: newReadingKey(), takenAt: r.takenAt, c: r.c, ...(r.note ? { note: r.note } : {}), queuedAt: new Date().toISOString() };
+      const item: QueuedReading = {
+        batchId,
+        key: newReadingKey(),
+        takenAt: r.takenAt,
+        c: r.c,
+        ...(r.note ? { note: r.note } : {}),
+        queuedAt: new Date().toISOString(),
+      };
       enqueue(store, item);
       setSentCount(0);
       setQueued(ofBatch());
@@ -87,5 +102,8 @@ export function useLogReading(batchId: number) {
     setRefused(refusedOfBatch());
   }, [store, batchId, refusedOfBatch]);
 
-  return useMemo(() => ({ log, flush, queued, refused, sentCount, isOffline, dismissRefused }), [log, flush, queued, refused, sentCount, isOffline, dismissRefused]);
+  return useMemo(
+    () => ({ log, flush, queued, refused, sentCount, isOffline, dismissRefused }),
+    [log, flush, queued, refused, sentCount, isOffline, dismissRefused],
+  );
 }

@@ -7,7 +7,9 @@ import { useSubmit } from './use-submit';
 
 /** Whose password a reset link sets; the token goes in a POST body so it stays out of server logs. */
 export function useResetPreview(token: string | null) {
-  const { data, error, mutate } = useSWR(token ? ['reset-preview', token] : null, ([, t]) => api<PasswordResetPreview>('/password-resets/preview', { method: 'POST', body: { token: t } }));
+  const { data, error, mutate } = useSWR(token ? ['reset-preview', token] : null, ([, t]) =>
+    api<PasswordResetPreview>('/password-resets/preview', { method: 'POST', body: { token: t } }),
+  );
   return { data, error: error as ApiError | undefined, retry: () => mutate() };
 }
 
@@ -21,4 +23,5 @@ export const useChangePassword = () =>
   }, []);
 
 /** An admin mails one of the site's people a reset link. */
-export const useSendReset = () => useSubmit((userId: number) => api<ResetSent>(`/users/${userId}/password-reset`, { method: 'POST', body: {} }), ['/mail-outbox']);
+export const useSendReset = () =>
+  useSubmit((userId: number) => api<ResetSent>(`/users/${userId}/password-reset`, { method: 'POST', body: {} }), ['/mail-outbox']);

@@ -4,4 +4,7 @@ import type { ChangeRequestDetail, ChangeRequestInput } from '../contracts/chang
 import { useSubmit } from './use-submit';
 
 export const useProposeChange = () =>
-  useSubmit((input: ChangeRequestInput) => api<ChangeRequestDetail>('/change-requests', { method: 'POST', body: input }), [changeRequestsKey(), changeRequestsKey('proposed')]);
+  useSubmit(
+    (input: ChangeRequestInput) => api<ChangeRequestDetail>('/change-requests', { method: 'POST', body: input }),
+    [changeRequestsKey(), changeRequestsKey('proposed')],
+  );

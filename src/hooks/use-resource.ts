@@ -12,6 +12,10 @@ export function useResource<T>(path: string | null, opts: { refreshMs?: number }
   // Arriving data renders in a transition: React slices the screen's render into short tasks, so a slow phone
   // stays responsive to taps while a long list or chart draws (screens show their loader until then).
   const data = useDeferredValue(latest);
-  const cachedAt = useSyncExternalStore(subscribeCachedAnswers, useCallback(() => cachedAnswerAt(path), [path]), () => null);
+  const cachedAt = useSyncExternalStore(
+    subscribeCachedAnswers,
+    useCallback(() => cachedAnswerAt(path), [path]),
+    () => null,
+  );
   return { data, error: error as ApiError | undefined, isLoading, retry: () => mutate(), cachedAt };
 }

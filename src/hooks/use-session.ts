@@ -25,6 +25,10 @@ const OPTIONS = fromPage ? { fallbackData: toSession(fromPage), revalidateOnMoun
 
 /** The signed-in user's session, `null` when signed out. */
 export function useSession() {
-  const { data, error, isLoading, mutate } = useSWR(keys.session, async (): Promise<Session | null> => toSession(await api<SessionState>(keys.session)), OPTIONS);
+  const { data, error, isLoading, mutate } = useSWR(
+    keys.session,
+    async (): Promise<Session | null> => toSession(await api<SessionState>(keys.session)),
+    OPTIONS,
+  );
   return { session: data, error: error as ApiError | undefined, isLoading, mutate };
 }

@@ -2,15 +2,7 @@ import { KELVIN_OFFSET, R } from './constants';
 import { compileRates, lnK2At, lnKAt, lnVAt, LN_RATE_CAP, slopeBoundK, softplus, type Rates } from './kinetics';
 import { wrightOmega } from './lambert-w';
 import { quadRule } from './quadrature';
-import type {
-  BatchState,
-  EnzymeParams,
-  Reading,
-  SimulationResult,
-  Substrate,
-  TemperatureInput,
-  TrajectoryPoint,
-} from './types';
+import type { BatchState, EnzymeParams, Reading, SimulationResult, Substrate, TemperatureInput, TrajectoryPoint } from './types';
 
 // Local bindings of hot imports: CommonJS transforms (tsx, esbuild) route every call to an imported
 // function through a getter, which blocks inlining in the inner loops.
@@ -435,13 +427,7 @@ export function resultOf(st: WorkState, substrate: Substrate, hasStable: boolean
 }
 
 /** Simulate a batch of batchH hours: product and conversion (g/L, fraction), activity left, work done (g/L). */
-export function simulate(
-  enzyme: EnzymeParams,
-  substrate: Substrate,
-  batchH: number,
-  temperature: TemperatureInput,
-  start?: BatchState,
-): SimulationResult {
+export function simulate(enzyme: EnzymeParams, substrate: Substrate, batchH: number, temperature: TemperatureInput, start?: BatchState): SimulationResult {
   if ('setpointC' in temperature && !enzyme.stableFraction) {
     // One constant segment: skip compiling the rates (two logarithms and an object) on this hot path.
     const dInv = 1 / (temperature.setpointC + K0) - 1 / (enzyme.tRefC + K0);

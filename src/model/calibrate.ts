@@ -7,15 +7,7 @@ import { ModelInputError } from './errors';
 import { compileRates, type Rates } from './kinetics';
 import { cholesky } from './random';
 import { gaussHermite } from './quadrature';
-import {
-  compileBatch,
-  coversTheta,
-  productAndSlope,
-  productDerivatives,
-  workCurvature,
-  workSensitivity,
-  type CompiledBatch,
-} from './sensitivity';
+import { compileBatch, coversTheta, productAndSlope, productDerivatives, workCurvature, workSensitivity, type CompiledBatch } from './sensitivity';
 import { invertSymmetric } from './stats';
 import type { EnzymeParams, Substrate, TemperatureInput } from './types';
 
@@ -138,15 +130,7 @@ function invert(a: number[][], what: string): number[][] {
 }
 
 /** Posterior mode over the active batches by Gauss-Newton with step halving; Hessian = P0 + sum J^T J / sd^2. */
-function solve(
-  model: Model,
-  batches: CalibrationBatch[],
-  active: boolean[],
-  mean: Vec3,
-  precision: number[][],
-  start: Vec3,
-  startEv?: Evaluation,
-): Solution {
+function solve(model: Model, batches: CalibrationBatch[], active: boolean[], mean: Vec3, precision: number[][], start: Vec3, startEv?: Evaluation): Solution {
   const objective = (theta: Vec3, ev: Evaluation) => {
     const d = [theta[0] - mean[0], theta[1] - mean[1], theta[2] - mean[2]];
     let s = 0.5 * quad(precision, d, d);
@@ -225,8 +209,7 @@ function posteriorMoments(
   for (let i = 0; i < batches.length; i++) {
     const sd2 = batches[i].measurementSdGPerL ** 2;
     const r = batches[i].measuredProductGPerL - ev2.f[i];
-    for (let a = 0; a < 3; a++)
-      for (let b = 0; b < 3; b++) h[a][b] += (ev2.j[i][a] * ev2.j[i][b] - r * ev2.h![i][a][b]) / sd2;
+    for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) h[a][b] += (ev2.j[i][a] * ev2.j[i][b] - r * ev2.h![i][a][b]) / sd2;
   }
   // Far from the data's fit the exact Hessian may not be positive definite: keep the Gauss-Newton one then.
   const exact = invertSymmetric(h);

@@ -105,13 +105,7 @@ function costs(econ: EconomicsParams, productGPerL: number, degreeHours: number,
 }
 
 /** Money of one batch run under a temperature program: revenue, costs, profit per batch and per reactor hour. */
-export function economics(
-  enzyme: EnzymeParams,
-  substrate: Substrate,
-  batchH: number,
-  temperature: TemperatureInput,
-  econ: EconomicsParams,
-): EconomicsResult {
+export function economics(enzyme: EnzymeParams, substrate: Substrate, batchH: number, temperature: TemperatureInput, econ: EconomicsParams): EconomicsResult {
   const sim = simulate(enzyme, substrate, batchH, temperature);
   return costs(econ, sim.productGPerL, degreeHoursAbove(temperature, batchH, econ.ambientC), batchH);
 }
@@ -123,13 +117,7 @@ export interface EconomicOptimum extends EconomicsResult {
 }
 
 /** Best isothermal setpoint (degC) for profit per batch at a fixed batch length (h). */
-export function profitSetpointC(
-  enzyme: EnzymeParams,
-  substrate: Substrate,
-  batchH: number,
-  boundsC: [number, number],
-  econ: EconomicsParams,
-): number {
+export function profitSetpointC(enzyme: EnzymeParams, substrate: Substrate, batchH: number, boundsC: [number, number], econ: EconomicsParams): number {
   const [lo] = boundsC;
   const best = optimalSetpointC(enzyme, batchH, boundsC);
   if (!(econ.heatingCostPerDegCHour > 0)) return best;
@@ -145,13 +133,7 @@ export function profitSetpointC(
   return money(best) >= res.fx ? best : res.x;
 }
 
-function evaluateAt(
-  enzyme: EnzymeParams,
-  substrate: Substrate,
-  batchH: number,
-  boundsC: [number, number],
-  econ: EconomicsParams,
-): EconomicOptimum {
+function evaluateAt(enzyme: EnzymeParams, substrate: Substrate, batchH: number, boundsC: [number, number], econ: EconomicsParams): EconomicOptimum {
   const c = profitSetpointC(enzyme, substrate, batchH, boundsC, econ);
   const res = economics(enzyme, substrate, batchH, { setpointC: c }, econ);
   return {

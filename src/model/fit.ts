@@ -443,7 +443,11 @@ function normalCdf(z: number): number {
     Math.exp(
       -x * x -
         1.26551223 +
-        t * (1.00002368 + t * (0.37409196 + t * (0.09678418 + t * (-0.18628806 + t * (0.27886807 + t * (-1.13520398 + t * (1.48851587 + t * (-0.82215223 + t * 0.17087277)))))))),
+        t *
+          (1.00002368 +
+            t *
+              (0.37409196 +
+                t * (0.09678418 + t * (-0.18628806 + t * (0.27886807 + t * (-1.13520398 + t * (1.48851587 + t * (-0.82215223 + t * 0.17087277)))))))),
     );
   return z >= 0 ? 1 - 0.5 * erfc : 0.5 * erfc;
 }
@@ -472,7 +476,7 @@ function lackOfFitOf(points: readonly InactivationPoint[], res: number[], k: num
   const dfLof = groups.size - k;
   if (dfPe > 0 && dfLof > 0 && ssPe > 0) {
     const ssr = res.reduce((a, v) => a + v * v, 0);
-    const f = (Math.max(0, ssr - ssPe) / dfLof) / (ssPe / dfPe);
+    const f = Math.max(0, ssr - ssPe) / dfLof / (ssPe / dfPe);
     const p = fUpperTail(f, dfLof, dfPe);
     if (p >= 0.05) return null;
     return `The model misses the data by more than the replicates' scatter allows (pure-error F test: F = ${f.toPrecision(3)} on ${dfLof} and ${dfPe} degrees of freedom, p = ${p.toPrecision(2)}).`;
@@ -524,11 +528,9 @@ export function fitInactivation(
 
   const n = points.length;
   const prep = prepare(points, tRefC, errorModel, collapse);
-  if (prep.n > MAX_FIT_ROWS)
-    throw new ModelInputError('points', `has ${prep.n} distinct (temperature, time) rows: at most ${MAX_FIT_ROWS} are fitted`);
+  if (prep.n > MAX_FIT_ROWS) throw new ModelInputError('points', `has ${prep.n} distinct (temperature, time) rows: at most ${MAX_FIT_ROWS} are fitted`);
   let start: number[];
-  if (twoStep.kdRefPerH !== null && twoStep.edKJPerMol !== null && twoStep.edKJPerMol > 0)
-    start = [Math.log(twoStep.kdRefPerH), twoStep.edKJPerMol];
+  if (twoStep.kdRefPerH !== null && twoStep.edKJPerMol !== null && twoStep.edKJPerMol > 0) start = [Math.log(twoStep.kdRefPerH), twoStep.edKJPerMol];
   else {
     const pos = twoStep.perTemperature.filter((t) => t.kdPerH > 0);
     const mean = pos.reduce((s, t) => s + Math.log(t.kdPerH) + 200 * xOf(t.c, tRefC), 0) / pos.length;
@@ -695,12 +697,7 @@ export function fitInitialRates(points: InitialRatePoint[], tRefC: number): Init
       const lnKeq = ((th[3] * 1000) / R) * (invTeq - invT[i]);
       const frac = 1 / (1 + Math.exp(-lnKeq));
       // d residual = -d model; d softplus/d lnKeq = Keq/(1+Keq).
-      return [
-        -1,
-        xs[i],
-        frac * ((th[3] * 1000) / R) * -(invTeq * invTeq),
-        frac * (1000 / R) * (invTeq - invT[i]),
-      ];
+      return [-1, xs[i], frac * ((th[3] * 1000) / R) * -(invTeq * invTeq), frac * (1000 / R) * (invTeq - invT[i])];
     });
   const fallArm = sorted.slice(iMax);
   const fall = ols(

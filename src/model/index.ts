@@ -1,28 +1,9 @@
 export { MODEL_VERSION, R, KELVIN_OFFSET } from './constants';
 export { ModelInputError, ModelCancelledError } from './errors';
-export type {
-  StableFraction,
-  EnzymeParams,
-  Substrate,
-  Stage,
-  Reading,
-  TemperatureInput,
-  BatchState,
-  SimulationResult,
-  TrajectoryPoint,
-} from './types';
+export type { StableFraction, EnzymeParams, Substrate, Stage, Reading, TemperatureInput, BatchState, SimulationResult, TrajectoryPoint } from './types';
 export * from './units';
 export { wrightOmega, lambertW0, lambertWm1 } from './lambert-w';
-export {
-  vmaxAt,
-  kdAt,
-  arrheniusFactor,
-  activeFraction,
-  eyringRatePerS,
-  twoFractionResidual,
-  firstOrderResidual,
-  observedKdRefPerH,
-} from './kinetics';
+export { vmaxAt, kdAt, arrheniusFactor, activeFraction, eyringRatePerS, twoFractionResidual, firstOrderResidual, observedKdRefPerH } from './kinetics';
 export { convert, type ConvertInput, type ConvertResult } from './convert';
 export { simulate, trajectory, temperatureAt, productFromWork } from './batch';
 export {
@@ -77,13 +58,6 @@ export { studentTQuantile, studentTCdf } from './stats';
 export { thermalDose, type DoseResult } from './dose';
 export { waterSaturationPressureKPa, pressureCaution } from './safety';
 export * from './validate';
-export {
-  calibrate,
-  OUTLIER_LIMIT,
-  type CalibrationInput,
-  type CalibrationBatch,
-  type CalibrationResult,
-  type CalibratedBatch,
-} from './calibrate';
+export { calibrate, OUTLIER_LIMIT, type CalibrationInput, type CalibrationBatch, type CalibrationResult, type CalibratedBatch } from './calibrate';
 export { productSensitivity, type ProductSensitivity } from './sensitivity';
 export { validateCalibrateInput } from './validate-calibrate';

@@ -6,17 +6,10 @@ import { softplus } from './kinetics';
 export type CatalysisLaw = { eaKJPerMol: number } | { dGcatKJPerMol: number };
 
 /** Temperature (degC, within boundsC) of the highest initial rate under the Equilibrium Model (no time-dependent loss). */
-export function initialRateOptimumC(
-  law: CatalysisLaw,
-  equilibrium: { teqC: number; dHeqKJPerMol: number },
-  boundsC: [number, number],
-): number {
+export function initialRateOptimumC(law: CatalysisLaw, equilibrium: { teqC: number; dHeqKJPerMol: number }, boundsC: [number, number]): number {
   const invTeq = 1 / (equilibrium.teqC + KELVIN_OFFSET);
   const dHR = (equilibrium.dHeqKJPerMol * 1000) / R;
-  const lnCat =
-    'eaKJPerMol' in law
-      ? (t: number) => -(law.eaKJPerMol * 1000) / (R * t)
-      : (t: number) => Math.log(t) - (law.dGcatKJPerMol * 1000) / (R * t);
+  const lnCat = 'eaKJPerMol' in law ? (t: number) => -(law.eaKJPerMol * 1000) / (R * t) : (t: number) => Math.log(t) - (law.dGcatKJPerMol * 1000) / (R * t);
   const f = (c: number) => {
     const t = c + KELVIN_OFFSET;
     return lnCat(t) - softplus(dHR * (invTeq - 1 / t));

@@ -83,12 +83,7 @@ export function leastSquares(problem: LeastSquaresProblem, p0: ArrayLike<number>
 }
 
 /** Levenberg-Marquardt least squares: residuals(p) and jacobian(p) (rows per point), through `leastSquares`. */
-export function levenbergMarquardt(
-  residuals: (p: number[]) => number[],
-  jacobian: (p: number[]) => number[][],
-  p0: number[],
-  maxIter = 200,
-): LmResult {
+export function levenbergMarquardt(residuals: (p: number[]) => number[], jacobian: (p: number[]) => number[][], p0: number[], maxIter = 200): LmResult {
   const k = p0.length;
   const n = residuals(p0).length;
   return leastSquares(

@@ -126,12 +126,7 @@ export function optimalSetpointC(enzyme: EnzymeParams, batchH: number, boundsC: 
 }
 
 /** Best isothermal setpoint (degC) for a batch of batchH hours within boundsC, with its product (g/L). */
-export function optimizeSetpoint(
-  enzyme: EnzymeParams,
-  substrate: Substrate,
-  batchH: number,
-  boundsC: [number, number],
-): SetpointOptimum {
+export function optimizeSetpoint(enzyme: EnzymeParams, substrate: Substrate, batchH: number, boundsC: [number, number]): SetpointOptimum {
   const c = optimalSetpointC(enzyme, batchH, boundsC);
   const sim = simulate(enzyme, substrate, batchH, { setpointC: c });
   return {

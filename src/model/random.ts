@@ -193,12 +193,7 @@ function interpolatedAt(a: Float64Array, k: number, lo: number, end: number, h: 
 }
 
 /** Type-7 quantiles of map(values) for ascending ps (0..1), by selection (selectRank); map must be increasing; reorders `scratch`. */
-export function quantilesBySelection(
-  values: ArrayLike<number>,
-  ps: number[],
-  scratch: Float64Array,
-  map: (x: number) => number = (x) => x,
-): number[] {
+export function quantilesBySelection(values: ArrayLike<number>, ps: number[], scratch: Float64Array, map: (x: number) => number = (x) => x): number[] {
   const n = values.length;
   return ps.map((p) => {
     const h = (n - 1) * p;

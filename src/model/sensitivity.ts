@@ -17,7 +17,9 @@ const RULE_4 = quadRule(4);
 const RULE_6 = quadRule(6);
 const ruleOf = (n: number): QuadRule => (n === 3 ? RULE_3 : n === 4 ? RULE_4 : RULE_6);
 // The 3-node rule (every sub-piece of a 1-minute log) unrolled: its weights and integration matrix.
-const W0 = RULE_3.w[0], W1 = RULE_3.w[1], W2 = RULE_3.w[2];
+const W0 = RULE_3.w[0],
+  W1 = RULE_3.w[1],
+  W2 = RULE_3.w[2];
 const [Q00, Q01, Q02, Q10, Q11, Q12, Q20, Q21, Q22] = Array.from(RULE_3.q);
 // The sub-pieces are cut for kd up to KD_MARGIN times its value at the compile point and Ed/R up to
 // 10 % (at least 10 kJ/mol) above it, so the rules stay exact to rounding for every theta in that box.
@@ -229,14 +231,18 @@ export function workSensitivity(cb: CompiledBatch, lnKd: number, edR: number, ln
       continue;
     }
     if (n === 3) {
-      const u0 = u[o], u1 = u[o + 1], u2 = u[o + 2];
+      const u0 = u[o],
+        u1 = u[o + 1],
+        u2 = u[o + 2];
       const k0 = Math.exp(lnKd + lnKOff[o] - edR * u0);
       const k1 = Math.exp(lnKd + lnKOff[o + 1] - edR * u1);
       const k2 = Math.exp(lnKd + lnKOff[o + 2] - edR * u2);
       const kEnd = h * (W0 * k0 + W1 * k1 + W2 * k2);
       const mEnd = h * (W0 * k0 * u0 + W1 * k1 * u1 + W2 * k2 * u2);
       if (a > 0) {
-        const ku0 = k0 * u0, ku1 = k1 * u1, ku2 = k2 * u2;
+        const ku0 = k0 * u0,
+          ku1 = k1 * u1,
+          ku2 = k2 * u2;
         const ki0 = Q00 * k0 + Q01 * k1 + Q02 * k2;
         const ki1 = Q10 * k0 + Q11 * k1 + Q12 * k2;
         const ki2 = Q20 * k0 + Q21 * k1 + Q22 * k2;
@@ -245,8 +251,7 @@ export function workSensitivity(cb: CompiledBatch, lnKd: number, edR: number, ln
         const e2 = W2 * Math.exp(lnV[o + 2] + lnScale - h * ki2);
         const s0 = e0 + e1 + e2;
         const sk = e0 * ki0 + e1 * ki1 + e2 * ki2;
-        const sm =
-          e0 * (Q00 * ku0 + Q01 * ku1 + Q02 * ku2) + e1 * (Q10 * ku0 + Q11 * ku1 + Q12 * ku2) + e2 * (Q20 * ku0 + Q21 * ku1 + Q22 * ku2);
+        const sm = e0 * (Q00 * ku0 + Q01 * ku1 + Q02 * ku2) + e1 * (Q10 * ku0 + Q11 * ku1 + Q12 * ku2) + e2 * (Q20 * ku0 + Q21 * ku1 + Q22 * ku2);
         const ah = a * h;
         x += ah * s0;
         dxk -= ah * (kInt * s0 + h * sk);
@@ -441,12 +446,7 @@ export function productDerivatives(w: WorkCurvature, substrate: Substrate): { pr
 }
 
 /** Product (g/L) of a fresh batch, its gradient and Hessian by [ln kdRefPerH, edKJPerMol, ln vmaxScale] at the enzyme's values (scale 1). */
-export function productSensitivity(
-  enzyme: EnzymeParams,
-  substrate: Substrate,
-  batchH: number,
-  temperature: TemperatureInput,
-): ProductSensitivity {
+export function productSensitivity(enzyme: EnzymeParams, substrate: Substrate, batchH: number, temperature: TemperatureInput): ProductSensitivity {
   const rates = compileRates(enzyme);
   const cb = compileBatch(rates, temperature, batchH, rates.lnKdRef, rates.edR);
   return productDerivatives(workCurvature(cb, rates.lnKdRef, rates.edR, 0), substrate);

@@ -1,15 +1,6 @@
 import type { CalibrationBatch, CalibrationInput } from './calibrate';
 import { ModelInputError } from './errors';
-import {
-  inputArray,
-  inputNumber,
-  inputObject,
-  validateBatchH,
-  validateCovariance,
-  validateEnzyme,
-  validateSubstrate,
-  validateTemperature,
-} from './validate';
+import { inputArray, inputNumber, inputObject, validateBatchH, validateCovariance, validateEnzyme, validateSubstrate, validateTemperature } from './validate';
 
 /** Input of the calibrate command: prior (enzyme means, 3x3 covariance) and closed batches with measured product (g/L). */
 export function validateCalibrateInput(v: unknown): CalibrationInput {

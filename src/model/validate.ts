@@ -40,8 +40,7 @@ function number(v: unknown, field: string, rule: NumRule = {}): number {
   if (typeof v !== 'number' || !Number.isFinite(v)) fail(field, 'must be a finite number');
   if (rule.integer && !Number.isInteger(v)) fail(field, 'must be an integer');
   if (rule.gt !== undefined && !(v > rule.gt)) fail(field, `must be > ${rule.gt}`);
-  if (rule.min !== undefined && rule.max !== undefined && (v < rule.min || v > rule.max))
-    fail(field, `must be between ${rule.min} and ${rule.max}`);
+  if (rule.min !== undefined && rule.max !== undefined && (v < rule.min || v > rule.max)) fail(field, `must be between ${rule.min} and ${rule.max}`);
   if (rule.min !== undefined && v < rule.min) fail(field, `must be >= ${rule.min}`);
   if (rule.max !== undefined && v > rule.max) fail(field, `must be <= ${rule.max}`);
   return v;
@@ -241,25 +240,14 @@ export function validateCovariance(v: unknown, field = 'covariance'): number[][]
   });
   for (let i = 0; i < n; i++) {
     if (m[i][i] < 0) fail(`${field}[${i}][${i}]`, 'must be >= 0');
-    for (let j = 0; j < i; j++)
-      if (Math.abs(m[i][j] - m[j][i]) > 1e-9 * Math.sqrt(m[i][i] * m[j][j]) + 1e-300) fail(field, 'must be symmetric');
+    for (let j = 0; j < i; j++) if (Math.abs(m[i][j] - m[j][i]) > 1e-9 * Math.sqrt(m[i][i] * m[j][j]) + 1e-300) fail(field, 'must be symmetric');
   }
   return m;
 }
 
 /** Input of the uncertainty command. */
 export function validateUncertaintyInput(v: unknown): UncertaintyInput {
-  const o = object(v, 'input', [
-    ...BATCH_KEYS,
-    'boundsC',
-    'covariance',
-    'sensorBiasSdC',
-    'doseRelSd',
-    'draws',
-    'seed',
-    'candidatesC',
-    'robust',
-  ]);
+  const o = object(v, 'input', [...BATCH_KEYS, 'boundsC', 'covariance', 'sensorBiasSdC', 'doseRelSd', 'draws', 'seed', 'candidatesC', 'robust']);
   const base = optimizeBase(o);
   const input: UncertaintyInput = {
     ...base,
@@ -289,15 +277,7 @@ export function validateUncertaintyInput(v: unknown): UncertaintyInput {
   return input;
 }
 
-const ECONOMICS_KEYS = [
-  'productPricePerKg',
-  'volumeL',
-  'enzymeCostPerBatch',
-  'heatingCostPerDegCHour',
-  'ambientC',
-  'turnaroundH',
-  'otherCostPerBatch',
-];
+const ECONOMICS_KEYS = ['productPricePerKg', 'volumeL', 'enzymeCostPerBatch', 'heatingCostPerDegCHour', 'ambientC', 'turnaroundH', 'otherCostPerBatch'];
 
 /** Check economics parameters (see EconomicsParams for units). */
 export function validateEconomicsParams(v: unknown, field = 'economics'): EconomicsParams {
@@ -373,7 +353,7 @@ export function validateConvertInput(v: unknown): ConvertInput {
   }
   if ((k === 'z' || k === 'ed' || k === 'equivalentTimes') && out.t1C === out.t2C) fail('t2C', 'must differ from t1C');
   if (k === 'equivalentTimes') {
-    const hotterShorter = ((out.t2C as number) > (out.t1C as number)) === ((out.time2 as number) < (out.time1 as number));
+    const hotterShorter = (out.t2C as number) > (out.t1C as number) === (out.time2 as number) < (out.time1 as number);
     if (out.time1 === out.time2 || !hotterShorter) fail('time2', 'must be shorter at the hotter temperature');
   }
   return out as ConvertInput;

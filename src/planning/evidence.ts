@@ -19,7 +19,13 @@ function fitAt(fit: AssayFit, tRefC: number): { kdRefPerH: number; covariance: n
   const x = -Math.log(kd / fit.kdRefPerH) / fit.edKJPerMol;
   const [[a, b], [, d]] = fit.covariance;
   const ab = b - x * d;
-  return { kdRefPerH: kd, covariance: [[a - 2 * x * b + x * x * d, ab], [ab, d]] };
+  return {
+    kdRefPerH: kd,
+    covariance: [
+      [a - 2 * x * b + x * x * d, ab],
+      [ab, d],
+    ],
+  };
 }
 
 // Stated default when the lot has no fit: kdRef +-20 % (1 sd, log-normal) and Ed +-10 % (1 sd), independent.
@@ -50,7 +56,11 @@ const date = (iso: string) => iso.slice(0, 10);
 const c0 = (c: number) => `${Number(c.toFixed(1))} °C`;
 
 /** The prior of a calibration: the assay fit (its covariance) or the certificate with the default spread. */
-export function assayKinetics(recipe: Pick<Recipe, 'edKJPerMol'>, tRefC: number, lot: EvidenceLot): Omit<LotKinetics, 'evidence'> & { source: 'fit' | 'certificate'; text: string } {
+export function assayKinetics(
+  recipe: Pick<Recipe, 'edKJPerMol'>,
+  tRefC: number,
+  lot: EvidenceLot,
+): Omit<LotKinetics, 'evidence'> & { source: 'fit' | 'certificate'; text: string } {
   const fit = lot.fit?.fit;
   if (fit) {
     const h = halfLifeAt(fit, tRefC);

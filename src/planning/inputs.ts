@@ -3,7 +3,17 @@ import type { Recipe } from '../contracts/recipes';
 
 type RecipeFigures = Pick<
   Recipe,
-  'id' | 'lotId' | 'batchH' | 'turnaroundH' | 'doseGPerL' | 's0GPerL' | 'kmGPerL' | 'productPricePerKg' | 'enzymePricePerKg' | 'heatingCostPerDegCHour' | 'currentSetpointC'
+  | 'id'
+  | 'lotId'
+  | 'batchH'
+  | 'turnaroundH'
+  | 'doseGPerL'
+  | 's0GPerL'
+  | 'kmGPerL'
+  | 'productPricePerKg'
+  | 'enzymePricePerKg'
+  | 'heatingCostPerDegCHour'
+  | 'currentSetpointC'
 >;
 
 /** The planner's starting point: the recipe as stored, held at one setpoint, no uncertainty run yet. */

@@ -43,7 +43,11 @@ export function planSeries(ev: PlanEvaluation, inputs: PlanInputs): PlanSeries {
     current: trajectory(ev.enzyme, ev.substrate, batchH, { log: ev.current.log }, 49),
     recommended: trajectory(ev.enzyme, ev.substrate, batchH, { log: ev.isothermal.log }, 49),
     staged: trajectory(ev.enzyme, ev.substrate, batchH, { log: ev.staged.log }, 49),
-    profit: profitCurve(ev.enzyme, ev.substrate, ev.boundsC, lengths, ev.econ).map((p) => ({ batchH: p.batchH, setpointC: p.setpointC, profitPerH: p.profitPerH })),
+    profit: profitCurve(ev.enzyme, ev.substrate, ev.boundsC, lengths, ev.econ).map((p) => ({
+      batchH: p.batchH,
+      setpointC: p.setpointC,
+      profitPerH: p.profitPerH,
+    })),
     bestBatch: { batchH: best.batchH, setpointC: best.setpointC, profitPerH: best.profitPerH },
   };
 }

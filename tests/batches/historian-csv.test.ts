@@ -38,7 +38,14 @@ describe('parseTime', () => {
 
 describe('readHistorianCsv', () => {
   it('finds the columns by header and reports bad lines by number', async () => {
-    const text = ['Tag,Timestamp,Temperature degC', 'R1,2026-12-01T08:00:00Z,50.1', 'R1,not a time,50', 'R1,2026-12-01T08:01:00Z,warm', 'R1,2026-12-01T08:02:00Z,50.3', ''].join('\r\n');
+    const text = [
+      'Tag,Timestamp,Temperature degC',
+      'R1,2026-12-01T08:00:00Z,50.1',
+      'R1,not a time,50',
+      'R1,2026-12-01T08:01:00Z,warm',
+      'R1,2026-12-01T08:02:00Z,50.3',
+      '',
+    ].join('\r\n');
     const r = await parseHistorianCsv(text, { timeZone: 'UTC', dateOrder: 'dmy' });
     expect(r.total).toBe(4);
     expect(r.rows).toEqual([

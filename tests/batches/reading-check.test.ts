@@ -36,7 +36,10 @@ const program: BatchProgram = {
 
 describe('what the readings do to the forecast', () => {
   it('holds for the engine: a last reading changes nothing yet; a same-minute spike counts for its seconds only', () => {
-    const on = [{ h: 1, c: 60 }, { h: 2, c: 60 }];
+    const on = [
+      { h: 1, c: 60 },
+      { h: 2, c: 60 },
+    ];
     const base = batchStatus(program, on, 2).forecastGPerL;
     // 95 °C logged last: the plan is assumed from it on, so the forecast is the same.
     expect(batchStatus(program, [...on, { h: 2, c: 95 }], 2).forecastGPerL).toBeCloseTo(base, 6);
@@ -48,10 +51,14 @@ describe('what the readings do to the forecast', () => {
     // spike's seconds cost activity; held for an hour, next to nothing is left.
     expect(spike).toBeLessThan(plain);
     expect(held).toBeLessThan(spike);
-    const lines = readingsExplained([...on, { h: 2 + 0.2 * m, c: 95 }, { h: 2 + 0.4 * m, c: 95 }, { h: 2 + 0.6 * m, c: 60 }], (rs) => batchStatus(program, [...rs], 2).forecastGPerL);
-    expect(lines[2]).toMatch(/^4 readings within one minute \(60\.0–95\.0 °C\) make a spike of almost no duration: it counts only for those seconds\. Forecast [\d.]+ g\/L with them, [\d.]+ g\/L with only the first\.$/);
+    const lines = readingsExplained(
+      [...on, { h: 2 + 0.2 * m, c: 95 }, { h: 2 + 0.4 * m, c: 95 }, { h: 2 + 0.6 * m, c: 60 }],
+      (rs) => batchStatus(program, [...rs], 2).forecastGPerL,
+    );
+    expect(lines[2]).toMatch(
+      /^4 readings within one minute \(60\.0–95\.0 °C\) make a spike of almost no duration: it counts only for those seconds\. Forecast [\d.]+ g\/L with them, [\d.]+ g\/L with only the first\.$/,
+    );
   });
-
 
   it('says the last reading counts for no time and names a same-minute spike', () => {
     const m = 1 / 60;

@@ -39,14 +39,37 @@ describe('batchStatus', () => {
     ]);
     // Readings on the plan give the plan's own forecast at every point of the batch.
     const full = batchStatus(plan, plan.log, 6).forecastGPerL;
-    const partial = batchStatus(plan, [{ h: 0.5, c: 60 }, { h: 2, c: 60 }], 2);
+    const partial = batchStatus(
+      plan,
+      [
+        { h: 0.5, c: 60 },
+        { h: 2, c: 60 },
+      ],
+      2,
+    );
     expect(partial.forecastGPerL).toBeCloseTo(full, 9);
     expect(partial.productSoFarGPerL).toBeLessThan(full);
   });
 
   it('lowers the forecast after a hot excursion and says so through activity', () => {
-    const onPlan = batchStatus(plan, [{ h: 0.5, c: 60 }, { h: 1, c: 60 }, { h: 1.5, c: 60 }], 1.5);
-    const hot = batchStatus(plan, [{ h: 0.5, c: 60 }, { h: 1, c: 70 }, { h: 1.5, c: 60 }], 1.5);
+    const onPlan = batchStatus(
+      plan,
+      [
+        { h: 0.5, c: 60 },
+        { h: 1, c: 60 },
+        { h: 1.5, c: 60 },
+      ],
+      1.5,
+    );
+    const hot = batchStatus(
+      plan,
+      [
+        { h: 0.5, c: 60 },
+        { h: 1, c: 70 },
+        { h: 1.5, c: 60 },
+      ],
+      1.5,
+    );
     expect(hot.activityLeft).toBeLessThan(onPlan.activityLeft);
     expect(hot.equivalentHAtRef).toBeGreaterThan(onPlan.equivalentHAtRef);
   });
@@ -55,7 +78,15 @@ describe('batchStatus', () => {
 describe('correctiveSetpoint', () => {
   const long: BatchProgram = { ...plan, batchH: 24, stages: [{ hours: 24, c: 60 }], log: [{ h: 0, c: 60 }] };
   it('re-optimises the rest of the batch within the vessel and never does worse than the plan', () => {
-    const s = batchStatus(long, [{ h: 0, c: 60 }, { h: 4, c: 66 }], 4, true);
+    const s = batchStatus(
+      long,
+      [
+        { h: 0, c: 60 },
+        { h: 4, c: 66 },
+      ],
+      4,
+      true,
+    );
     const c = s.corrective!;
     expect(c.remainingH).toBeCloseTo(20, 9);
     expect(c.setpointC).toBeGreaterThanOrEqual(20);

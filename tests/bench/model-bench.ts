@@ -85,8 +85,7 @@ function tempAt(temp: TemperatureInput, h: number): number {
   }
   const log = temp.log;
   if (h <= log[0].h) return log[0].c;
-  for (let i = 1; i < log.length; i++)
-    if (h <= log[i].h) return log[i - 1].c + ((log[i].c - log[i - 1].c) * (h - log[i - 1].h)) / (log[i].h - log[i - 1].h);
+  for (let i = 1; i < log.length; i++) if (h <= log[i].h) return log[i - 1].c + ((log[i].c - log[i - 1].c) * (h - log[i - 1].h)) / (log[i].h - log[i - 1].h);
   return log[log.length - 1].c;
 }
 
@@ -214,7 +213,15 @@ function fmtTime(s: number): string {
 const rows: string[][] = [];
 function row(op: string, t: number, target: string, accuracy: string, fixed?: number, mj?: number) {
   const cpu = cpuOf.get(t);
-  rows.push([op, fmtTime(t), cpu === undefined ? '-' : fmtTime(cpu), target, accuracy, fixed ? `${(fixed / t).toExponential(2)}x` : '-', mj ? `${(mj / t).toExponential(2)}x` : '-']);
+  rows.push([
+    op,
+    fmtTime(t),
+    cpu === undefined ? '-' : fmtTime(cpu),
+    target,
+    accuracy,
+    fixed ? `${(fixed / t).toExponential(2)}x` : '-',
+    mj ? `${(mj / t).toExponential(2)}x` : '-',
+  ]);
 }
 
 const relErr = (a: number, b: number) => Math.abs(a / b - 1).toExponential(1);
@@ -227,7 +234,14 @@ const relErr = (a: number, b: number) => Math.abs(a / b - 1).toExponential(1);
   const fx = median(() => fixedStep(temp), 1, 5);
   const tol = tolFor(temp, ref);
   const mj = median(() => mathjsSolve(temp, tol), 1, 3);
-  row('simulate, one setpoint (24 h)', t, '< 1 us', `rel ${relErr(simulate(enzyme, substrate, batchH, temp).productGPerL, ref)} (Euler 1 s: ${relErr(fixedStep(temp), ref)}; mathjs tol ${tol})`, fx, mj);
+  row(
+    'simulate, one setpoint (24 h)',
+    t,
+    '< 1 us',
+    `rel ${relErr(simulate(enzyme, substrate, batchH, temp).productGPerL, ref)} (Euler 1 s: ${relErr(fixedStep(temp), ref)}; mathjs tol ${tol})`,
+    fx,
+    mj,
+  );
 }
 // 2. Six stages.
 {
@@ -281,17 +295,27 @@ function simulateOdexSat(c: number, sat: Substrate): number {
   s.relativeTolerance = 1e-13;
   s.absoluteTolerance = 1e-300;
   const { v, k } = rates(c);
-  const y = s.solve((_h: number, yy: number[]) => {
-    const left = sat.s0GPerL - yy[0];
-    return [(v * yy[1] * left) / (sat.kmGPerL + left), -k * yy[1]];
-  }, 0, [0, 1], batchH).y;
+  const y = s.solve(
+    (_h: number, yy: number[]) => {
+      const left = sat.s0GPerL - yy[0];
+      return [(v * yy[1] * left) / (sat.kmGPerL + left), -k * yy[1]];
+    },
+    0,
+    [0, 1],
+    batchH,
+  ).y;
   return y[0];
 }
 // 5. 24-stage profile with a step limit.
 {
   const p = optimizeProfile(enzyme, substrate, batchH, [40, 60], 24, 1);
   const t = median(() => optimizeProfile(enzyme, substrate, batchH, [40, 60], 24, 1).productGPerL, 5, 7);
-  row('24-stage profile, step 1 degC', t, '< 30 ms', `gain ${(p.gainFraction * 100).toFixed(3)} % over isothermal; rel ${relErr(p.productGPerL, reference({ stages: p.stages }))} vs odex`);
+  row(
+    '24-stage profile, step 1 degC',
+    t,
+    '< 30 ms',
+    `gain ${(p.gainFraction * 100).toFixed(3)} % over isothermal; rel ${relErr(p.productGPerL, reference({ stages: p.stages }))} vs odex`,
+  );
 }
 // 6. Monte Carlo.
 {
@@ -311,10 +335,20 @@ function simulateOdexSat(c: number, sat: Substrate): number {
   };
   const a = monteCarlo({ ...input, robust: false });
   const t1 = median(() => monteCarlo({ ...input, robust: false }).optimum.p50, 3, 7);
-  row('Monte Carlo 10k: optimum distribution', t1, '< 20 ms', `P10/P50/P90 ${a.optimum.p10.toFixed(3)}/${a.optimum.p50.toFixed(3)}/${a.optimum.p90.toFixed(3)} degC`);
+  row(
+    'Monte Carlo 10k: optimum distribution',
+    t1,
+    '< 20 ms',
+    `P10/P50/P90 ${a.optimum.p10.toFixed(3)}/${a.optimum.p50.toFixed(3)}/${a.optimum.p90.toFixed(3)} degC`,
+  );
   const b = monteCarlo(input);
   const t2 = median(() => monteCarlo(input).robust!.setpointC, 1, 5);
-  row('Monte Carlo 10k: robust (best P10) setpoint', t2, '< 25 ms', `robust ${b.robust!.setpointC.toFixed(3)} degC vs nominal ${b.nominal.setpointC.toFixed(3)}`);
+  row(
+    'Monte Carlo 10k: robust (best P10) setpoint',
+    t2,
+    '< 25 ms',
+    `robust ${b.robust!.setpointC.toFixed(3)} degC vs nominal ${b.nominal.setpointC.toFixed(3)}`,
+  );
 }
 // 7. Four-temperature fit.
 {
@@ -388,20 +422,32 @@ function referenceGeneral(e: EnzymeParams, sub: Substrate, c: number, hours: num
   const inhibited: Substrate = { ...substrate, kiGPerL: 40, ksiGPerL: 600 };
   const temp = { setpointC: 49 };
   const t = median(() => simulate(enzyme, inhibited, batchH, temp).productGPerL, 200000);
-  row('simulate with inhibition (Ki, Ksi), one setpoint', t, '< 2 us', `rel ${relErr(simulate(enzyme, inhibited, batchH, temp).productGPerL, referenceGeneral(enzyme, inhibited, 49, batchH))} vs odex`);
+  row(
+    'simulate with inhibition (Ki, Ksi), one setpoint',
+    t,
+    '< 2 us',
+    `rel ${relErr(simulate(enzyme, inhibited, batchH, temp).productGPerL, referenceGeneral(enzyme, inhibited, 49, batchH))} vs odex`,
+  );
 }
 const twoFraction: EnzymeParams = { ...enzyme, stableFraction: { share: 0.25, kdRefPerH: 0.05, edKJPerMol: 320 } };
 {
   const temp = { setpointC: 49 };
   const t = median(() => simulate(twoFraction, substrate, batchH, temp).productGPerL, 200000);
-  row('simulate with two fractions, one setpoint', t, '< 2 us', `rel ${relErr(simulate(twoFraction, substrate, batchH, temp).productGPerL, referenceGeneral(twoFraction, substrate, 49, batchH))} vs odex`);
+  row(
+    'simulate with two fractions, one setpoint',
+    t,
+    '< 2 us',
+    `rel ${relErr(simulate(twoFraction, substrate, batchH, temp).productGPerL, referenceGeneral(twoFraction, substrate, 49, batchH))} vs odex`,
+  );
 }
 {
   const o = optimizeSetpoint(twoFraction, substrate, batchH, [30, 70]);
   const t = median(() => optimizeSetpoint(twoFraction, substrate, batchH, [30, 70]).setpointC, 2000);
   // Reference: golden section on the odex product in the bracket of a 0.05 degC scan of the engine.
   let best = 30;
-  for (let c = 30; c <= 70; c += 0.05) if (simulate(twoFraction, substrate, batchH, { setpointC: c }).productGPerL > simulate(twoFraction, substrate, batchH, { setpointC: best }).productGPerL) best = c;
+  for (let c = 30; c <= 70; c += 0.05)
+    if (simulate(twoFraction, substrate, batchH, { setpointC: c }).productGPerL > simulate(twoFraction, substrate, batchH, { setpointC: best }).productGPerL)
+      best = c;
   const sat = { s0GPerL: 1e6, kmGPerL: 1e-3 };
   const g = goldenMax((c) => Math.log(referenceGeneral(twoFraction, sat, c, batchH)), best - 0.1, best + 0.1, 1e-6);
   row('two-fraction optimum', t, '< 50 us', `|dT| ${Math.abs(o.setpointC - g.x).toExponential(1)} degC vs odex golden section`);
@@ -409,10 +455,16 @@ const twoFraction: EnzymeParams = { ...enzyme, stableFraction: { share: 0.25, kd
 {
   const rng = createRng(100);
   const pts: { c: number; h: number; residual: number }[] = [];
-  for (const c of [50, 55, 60, 65, 70]) for (let j = 1; j <= 20; j++) pts.push({ c, h: 0.25 * j, residual: Math.exp(-0.15 * arrheniusFactor(280, c, 60) * 0.25 * j + 0.05 * rng.normal()) });
+  for (const c of [50, 55, 60, 65, 70])
+    for (let j = 1; j <= 20; j++) pts.push({ c, h: 0.25 * j, residual: Math.exp(-0.15 * arrheniusFactor(280, c, 60) * 0.25 * j + 0.05 * rng.normal()) });
   const f = fitInactivation(60, pts);
   const t = median(() => fitInactivation(60, pts).kdRefPerH, 50);
-  row('three-model fit, 100 points (5 temperatures x 20 times)', t, '< 5 ms', `chosen ${f.chosen}; kd ${f.kdRefPerH.toFixed(4)} (truth 0.15), Ed ${f.edKJPerMol.toFixed(1)} (truth 280)`);
+  row(
+    'three-model fit, 100 points (5 temperatures x 20 times)',
+    t,
+    '< 5 ms',
+    `chosen ${f.chosen}; kd ${f.kdRefPerH.toFixed(4)} (truth 0.15), Ed ${f.edKJPerMol.toFixed(1)} (truth 280)`,
+  );
 }
 
 // 14. The three-model fit of a large assay: 100,000 distinct (temperature, time) rows, the fit's limit (one run).
@@ -431,7 +483,12 @@ const twoFraction: EnzymeParams = { ...enzyme, stableFraction: { share: 0.25, kd
   const wall = (performance.now() - t0) / 1000;
   const c = process.cpuUsage(c0);
   cpuOf.set(wall, (c.user + c.system) / 1e6);
-  row('three-model fit, 100,000 distinct rows (one run)', wall, '-', `models ${f.models.map((m) => m.name).join(', ')}; chosen ${f.chosen} (truth: first order, 10 % lost before h = 0)`);
+  row(
+    'three-model fit, 100,000 distinct rows (one run)',
+    wall,
+    '-',
+    `models ${f.models.map((m) => m.name).join(', ')}; chosen ${f.chosen} (truth: first order, 10 % lost before h = 0)`,
+  );
 }
 
 const head = ['operation', 'median', 'cpu', 'target', 'accuracy', 'x fixed-step', 'x mathjs'];
@@ -440,5 +497,10 @@ const line = (r: string[]) => r.map((c, i) => c.padEnd(widths[i])).join(' | ');
 console.log(line(head));
 console.log(widths.map((w) => '-'.repeat(w)).join('-|-'));
 for (const r of rows) console.log(line(r));
-console.log(`\nload average ${os.loadavg().map((v) => v.toFixed(1)).join(' / ')} (1 / 5 / 15 min) on ${os.cpus().length} cores`);
+console.log(
+  `\nload average ${os
+    .loadavg()
+    .map((v) => v.toFixed(1))
+    .join(' / ')} (1 / 5 / 15 min) on ${os.cpus().length} cores`,
+);
 if (!Number.isFinite(sink)) console.log('');

@@ -13,7 +13,12 @@ migrateDb(db);
 const { siteId } = seedDemo(db, { bcryptCost: 4 });
 const N = 40;
 for (const { recipe } of listSiteRecipes(db, siteId)) {
-  const ctx = planContext(recipe, findSiteEnzyme(db, siteId, recipe.enzymeId)!, planningLot(db, siteId, findSiteLot(db, siteId, recipe.lotId)!, recipe.id), findSiteVessel(db, siteId, recipe.vesselId)!);
+  const ctx = planContext(
+    recipe,
+    findSiteEnzyme(db, siteId, recipe.enzymeId)!,
+    planningLot(db, siteId, findSiteLot(db, siteId, recipe.lotId)!, recipe.id),
+    findSiteVessel(db, siteId, recipe.vesselId)!,
+  );
   const base = inputsFromRecipe(recipe);
   const times: number[] = [];
   for (let i = 0; i < N; i++) {

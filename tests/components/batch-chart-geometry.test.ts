@@ -17,7 +17,17 @@ const base: BatchTemperatureInput = {
 
 describe('batchTemperatureGeometry', () => {
   it('puts time left to right and temperature bottom to top inside the plotting box', () => {
-    const g = batchTemperatureGeometry({ ...base, readings: [{ h: 0, c: 20 }, { h: 10, c: 50 }] }, 400, 260);
+    const g = batchTemperatureGeometry(
+      {
+        ...base,
+        readings: [
+          { h: 0, c: 20 },
+          { h: 10, c: 50 },
+        ],
+      },
+      400,
+      260,
+    );
     expect(g.dots[0].x).toBeCloseTo(g.box.left, 9);
     expect(g.dots[1].x).toBeCloseTo(g.box.right, 9);
     // Hotter is higher on screen: a smaller SVG y.
@@ -60,7 +70,18 @@ describe('batchTemperatureGeometry', () => {
   });
 
   it('marks readings outside the band against the plan at their own time (the ramp included)', () => {
-    const g = batchTemperatureGeometry({ ...base, readings: [{ h: 0.5, c: 35 }, { h: 0.5, c: 38 }, { h: 5, c: 48.4 }] }, 400, 260);
+    const g = batchTemperatureGeometry(
+      {
+        ...base,
+        readings: [
+          { h: 0.5, c: 35 },
+          { h: 0.5, c: 38 },
+          { h: 5, c: 48.4 },
+        ],
+      },
+      400,
+      260,
+    );
     expect(g.dots.map((d) => d.isOutside)).toEqual([false, true, true]);
   });
 
@@ -79,7 +100,10 @@ describe('batchTemperatureGeometry', () => {
     expect(points).toBeLessThanOrEqual(2 * 400);
     expect(points).toBeGreaterThan(400);
     // The thinned line still spans the readings' full range.
-    const ys = g.loggedPaths[0].split(/[ML]/).filter(Boolean).map((s) => Number(s.split(',')[1]));
+    const ys = g.loggedPaths[0]
+      .split(/[ML]/)
+      .filter(Boolean)
+      .map((s) => Number(s.split(',')[1]));
     expect(Math.min(...ys)).toBeLessThan(g.box.top + (g.box.bottom - g.box.top) * 0.6);
   });
 

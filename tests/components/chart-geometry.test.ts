@@ -33,7 +33,10 @@ describe('decay geometry', () => {
     // 70 °C is hotter: faster decay under a positive Ed.
     expect(g.series[1]!.kdPerH!).toBeGreaterThan(s60.kdPerH!);
     const halfDot = s60.dots[1]!;
-    const coords = s60.curve!.slice(1).split('L').map((xy) => xy.split(',').map(Number) as [number, number]);
+    const coords = s60
+      .curve!.slice(1)
+      .split('L')
+      .map((xy) => xy.split(',').map(Number) as [number, number]);
     const nearest = coords.reduce((best, c) => (Math.abs(c[0] - halfDot.x) < Math.abs(best[0] - halfDot.x) ? c : best));
     expect(Math.abs(nearest[1] - halfDot.y)).toBeLessThan(3);
   });
@@ -47,7 +50,14 @@ describe('decay geometry', () => {
 describe('Arrhenius geometry', () => {
   it('places hotter temperatures left (smaller 1000/T) and higher kd up; the fit line spans the data', () => {
     const g = arrheniusGeometry(
-      { perTemperature: [{ c: 60, kdPerH: 0.05 }, { c: 70, kdPerH: 0.4 }, { c: 65, kdPerH: 0 }], fit: { tRefC: 60, kdRefPerH: 0.05, edKJPerMol: 200 } },
+      {
+        perTemperature: [
+          { c: 60, kdPerH: 0.05 },
+          { c: 70, kdPerH: 0.4 },
+          { c: 65, kdPerH: 0 },
+        ],
+        fit: { tRefC: 60, kdRefPerH: 0.05, edKJPerMol: 200 },
+      },
       W,
       H,
     );

@@ -26,7 +26,17 @@ function demoInstallation(dir: string) {
   writeTx(db, (tx) => {
     for (let i = 0; i < 60; i++) {
       const siteId = sites[i % 2]!;
-      appendAudit(tx, { siteId, userId: null, actor: 'copy test', action: 'lot.update', entity: 'lot', entityId: i, oldValue: { zeta: i, alpha: { y: 'Ä°C', b: [3, 1.5e-7] } }, newValue: i % 3 ? null : { note: `réglé ${i}`, amount: 12.3456789012345 }, at: new Date(at.getTime() + i * 1000) });
+      appendAudit(tx, {
+        siteId,
+        userId: null,
+        actor: 'copy test',
+        action: 'lot.update',
+        entity: 'lot',
+        entityId: i,
+        oldValue: { zeta: i, alpha: { y: 'Ä°C', b: [3, 1.5e-7] } },
+        newValue: i % 3 ? null : { note: `réglé ${i}`, amount: 12.3456789012345 },
+        at: new Date(at.getTime() + i * 1000),
+      });
     }
   });
   for (const s of sites) expect(verifyAudit(db, s).ok).toBe(true);
@@ -86,7 +96,9 @@ describe('npm run db:copy: a whole installation from SQLite into PostgreSQL 15',
     for (const { name, rows } of report.tables) {
       const source = sqliteRows(installation.file, name);
       expect(rows, name).toBe(source.length);
-      const cols = (await client.query(`select column_name, data_type from information_schema.columns where table_schema = 'public' and table_name = $1`, [name])).rows as { column_name: string; data_type: string }[];
+      const cols = (
+        await client.query(`select column_name, data_type from information_schema.columns where table_schema = 'public' and table_name = $1`, [name])
+      ).rows as { column_name: string; data_type: string }[];
       const sqliteCols = (new Database(installation.file, { readonly: true }).pragma(`table_info("${name}")`) as { name: string }[]).map((c) => c.name);
       const typeOf = new Map(cols.map((c) => [c.column_name, c.data_type]));
       const select = sqliteCols.map((c) => {
@@ -101,9 +113,17 @@ describe('npm run db:copy: a whole installation from SQLite into PostgreSQL 15',
 
   it("keeps every audit row byte for byte, so each site's chain verifies with the installation key", async () => {
     const s = new Database(installation.file, { readonly: true });
-    const source = s.prepare(`select cast(id as text), cast(site_id as text), cast(user_id as text), actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash from audit_events order by audit_events.id`).raw(true).all();
+    const source = s
+      .prepare(
+        `select cast(id as text), cast(site_id as text), cast(user_id as text), actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash from audit_events order by audit_events.id`,
+      )
+      .raw(true)
+      .all();
     s.close();
-    const { rows } = await client.query({ text: `select id::text, site_id::text, user_id::text, actor, action, entity, entity_id, old_value::text, new_value::text, at, prev_hash, hash from audit_events order by audit_events.id`, rowMode: 'array' });
+    const { rows } = await client.query({
+      text: `select id::text, site_id::text, user_id::text, actor, action, entity, entity_id, old_value::text, new_value::text, at, prev_hash, hash from audit_events order by audit_events.id`,
+      rowMode: 'array',
+    });
     expect(source.length).toBeGreaterThanOrEqual(60);
     for (let i = 0; i < source.length; i++) expect(rows[i], `audit row ${i}`).toEqual(source[i]);
     expect(rows.length).toBe(source.length);
@@ -113,7 +133,18 @@ describe('npm run db:copy: a whole installation from SQLite into PostgreSQL 15',
       let prev = GENESIS;
       for (const r of chain) {
         // int8 reaches this plain client as text; the chain hashes numbers, as the app reads them.
-        const row = { siteId: Number(r.site_id), userId: r.user_id === null ? null : Number(r.user_id), actor: r.actor, action: r.action, entity: r.entity, entityId: r.entity_id, oldValue: r.old_value, newValue: r.new_value, at: r.at, prevHash: r.prev_hash };
+        const row = {
+          siteId: Number(r.site_id),
+          userId: r.user_id === null ? null : Number(r.user_id),
+          actor: r.actor,
+          action: r.action,
+          entity: r.entity,
+          entityId: r.entity_id,
+          oldValue: r.old_value,
+          newValue: r.new_value,
+          at: r.at,
+          prevHash: r.prev_hash,
+        };
         expect(r.prev_hash).toBe(prev);
         expect(eventHash(installation.key, row)).toBe(r.hash);
         prev = r.hash;
@@ -123,8 +154,12 @@ describe('npm run db:copy: a whole installation from SQLite into PostgreSQL 15',
 
   it('moves every identity sequence past the largest id copied', async () => {
     for (const table of ['sites', 'audit_events', 'batch_readings']) {
-      const { rows: [{ max }] } = await client.query(`select max(id) as max from "${table}"`);
-      const { rows: [{ next }] } = await client.query(`select nextval(pg_get_serial_sequence('"${table}"', 'id')) as next`);
+      const {
+        rows: [{ max }],
+      } = await client.query(`select max(id) as max from "${table}"`);
+      const {
+        rows: [{ next }],
+      } = await client.query(`select nextval(pg_get_serial_sequence('"${table}"', 'id')) as next`);
       expect(Number(next), table).toBe(Number(max) + 1);
     }
   });

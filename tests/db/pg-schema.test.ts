@@ -16,16 +16,25 @@ import { startPostgres, type TestPostgres } from '../support/postgres';
 type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
 type PgTables = typeof pgSchema;
 type SqliteTables = { [K in keyof PgTables]: K extends keyof typeof sqliteSchema ? (typeof sqliteSchema)[K] : never };
-const sameRows: { [K in keyof PgTables]: [Same<PgTables[K]['$inferSelect'], SqliteTables[K]['$inferSelect']>, Same<Required<PgTables[K]['$inferInsert']>, Required<SqliteTables[K]['$inferInsert']>>] } = Object.fromEntries(
-  Object.keys(pgSchema).map((k) => [k, [true, true]]),
-) as Record<keyof PgTables, [true, true]>;
+const sameRows: {
+  [K in keyof PgTables]: [
+    Same<PgTables[K]['$inferSelect'], SqliteTables[K]['$inferSelect']>,
+    Same<Required<PgTables[K]['$inferInsert']>, Required<SqliteTables[K]['$inferInsert']>>,
+  ];
+} = Object.fromEntries(Object.keys(pgSchema).map((k) => [k, [true, true]])) as Record<keyof PgTables, [true, true]>;
 
 const sqliteTables = Object.entries(sqliteSchema as Record<string, unknown>).filter((e): e is [string, SQLiteTable] => is(e[1], SQLiteTable));
 const pgTables = Object.entries(pgSchema as Record<string, unknown>).filter((e): e is [string, PgTable] => is(e[1], PgTable));
 
 // The dialect mapping this test holds the generator to, written independently of it: SQLite INTEGER is 64-bit
 // (bigint), REAL is a double, JSON stays text-exact (json, not jsonb, which reorders keys).
-const PG_TYPE_OF: Record<string, string> = { SQLiteInteger: 'PgBigInt53', SQLiteBoolean: 'PgBoolean', SQLiteReal: 'PgDoublePrecision', SQLiteText: 'PgText', SQLiteTextJson: 'PgJson' };
+const PG_TYPE_OF: Record<string, string> = {
+  SQLiteInteger: 'PgBigInt53',
+  SQLiteBoolean: 'PgBoolean',
+  SQLiteReal: 'PgDoublePrecision',
+  SQLiteText: 'PgText',
+  SQLiteTextJson: 'PgJson',
+};
 
 const sqliteSql = new SQLiteSyncDialect();
 const pgSql = new PgDialect();
@@ -33,7 +42,7 @@ const defaultOf = (c: SQLiteColumn | PgColumn, dialect: 'sqlite' | 'pg') => {
   if (!c.hasDefault) return { none: true };
   if (is(c.default, SQL)) {
     const text = dialect === 'sqlite' ? sqliteSql.sqlToQuery(c.default).sql : pgSql.sqlToQuery(c.default).sql;
-    return { sql: dialect === 'sqlite' ? PG_SQL_DEFAULTS[text] ?? `unmapped: ${text}` : text };
+    return { sql: dialect === 'sqlite' ? (PG_SQL_DEFAULTS[text] ?? `unmapped: ${text}`) : text };
   }
   return { value: c.default };
 };
@@ -54,7 +63,7 @@ function describeTable(table: SQLiteTable | PgTable) {
       return {
         key,
         name: c.name,
-        type: isSqlite ? PG_TYPE_OF[c.columnType] ?? `unmapped ${c.columnType}` : c.columnType,
+        type: isSqlite ? (PG_TYPE_OF[c.columnType] ?? `unmapped ${c.columnType}`) : c.columnType,
         notNull: c.notNull,
         primary: c.primary,
         autoIncrement,
@@ -63,12 +72,23 @@ function describeTable(table: SQLiteTable | PgTable) {
       };
     }),
     indexes: cfg.indexes
-      .map((i) => ({ name: i.config.name, unique: i.config.unique, columns: i.config.columns.map((c) => (c as { name: string }).name), where: i.config.where ? 'partial' : null }))
+      .map((i) => ({
+        name: i.config.name,
+        unique: i.config.unique,
+        columns: i.config.columns.map((c) => (c as { name: string }).name),
+        where: i.config.where ? 'partial' : null,
+      }))
       .sort((a, b) => a.name!.localeCompare(b.name!)),
     foreignKeys: cfg.foreignKeys
       .map((f) => {
         const r = f.reference();
-        return { columns: r.columns.map((c) => c.name), table: nameOf(r.foreignTable as SQLiteTable | PgTable), foreignColumns: r.foreignColumns.map((c) => c.name), onDelete: f.onDelete ?? 'no action', onUpdate: f.onUpdate ?? 'no action' };
+        return {
+          columns: r.columns.map((c) => c.name),
+          table: nameOf(r.foreignTable as SQLiteTable | PgTable),
+          foreignColumns: r.foreignColumns.map((c) => c.name),
+          onDelete: f.onDelete ?? 'no action',
+          onUpdate: f.onUpdate ?? 'no action',
+        };
       })
       .sort((a, b) => a.columns.join().localeCompare(b.columns.join())),
     uniqueConstraints: cfg.uniqueConstraints.map((u) => u.columns.map((c) => c.name)),
@@ -88,10 +108,13 @@ describe('PostgreSQL schema: one definition of each table', () => {
     expect(sqliteTables.length).toBeGreaterThan(20);
   });
 
-  it.each(sqliteTables.map(([k, t]) => [k, t] as const))('%s: columns, types, nullability, defaults, indexes, foreign keys, unique and checks match', (key, table) => {
-    const pgTable = (pgSchema as Record<string, PgTable>)[key]!;
-    expect(describeTable(pgTable)).toEqual(describeTable(table));
-  });
+  it.each(sqliteTables.map(([k, t]) => [k, t] as const))(
+    '%s: columns, types, nullability, defaults, indexes, foreign keys, unique and checks match',
+    (key, table) => {
+      const pgTable = (pgSchema as Record<string, PgTable>)[key]!;
+      expect(describeTable(pgTable)).toEqual(describeTable(table));
+    },
+  );
 
   it('maps every SQL default, and a table the generator cannot map fails loudly', () => {
     for (const [, table] of sqliteTables) for (const c of describeTable(table).columns) expect(JSON.stringify(c.default)).not.toContain('unmapped');
@@ -115,13 +138,25 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
   const affinity: Record<string, string> = { bigint: 'INTEGER', boolean: 'INTEGER', 'double precision': 'REAL', text: 'TEXT', json: 'TEXT' };
   const normaliseDefault = (d: string | null) => {
     if (d === null) return null;
-    if (/strftime\('%Y-%m-%dT%H:%M:%fZ'/.test(d) || /^to_char\(\(now\(\) AT TIME ZONE 'UTC'::text\), 'YYYY-MM-DD"T"HH24:MI:SS\.MS"Z"'::text\)$/.test(d)) return 'now as ISO-8601 UTC with ms';
-    return d.replace(/::text$/, '').replace(/^'(.*)'$/, '$1').replace(/^true$/, '1').replace(/^false$/, '0');
+    if (/strftime\('%Y-%m-%dT%H:%M:%fZ'/.test(d) || /^to_char\(\(now\(\) AT TIME ZONE 'UTC'::text\), 'YYYY-MM-DD"T"HH24:MI:SS\.MS"Z"'::text\)$/.test(d))
+      return 'now as ISO-8601 UTC with ms';
+    return d
+      .replace(/::text$/, '')
+      .replace(/^'(.*)'$/, '$1')
+      .replace(/^true$/, '1')
+      .replace(/^false$/, '0');
   };
 
   async function pgCatalog() {
     const q = async <T>(text: string) => (await db.$client.query(text)).rows as T[];
-    const cols = await q<{ table_name: string; column_name: string; data_type: string; is_nullable: string; column_default: string | null; is_identity: string }>(
+    const cols = await q<{
+      table_name: string;
+      column_name: string;
+      data_type: string;
+      is_nullable: string;
+      column_default: string | null;
+      is_identity: string;
+    }>(
       `select table_name, column_name, data_type, is_nullable, column_default, is_identity from information_schema.columns where table_schema = 'public' order by table_name, ordinal_position`,
     );
     const pks = await q<{ table_name: string; column_name: string }>(
@@ -157,8 +192,14 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
               autoIncrement: c.is_identity === 'YES',
               default: normaliseDefault(c.column_default),
             })),
-          indexes: idx.filter((i) => i.table === t).map((i) => ({ name: i.name, unique: i.unique, columns: i.columns })).sort((a, b) => a.name.localeCompare(b.name)),
-          foreignKeys: fks.filter((f) => f.table === t).map((f) => ({ columns: f.cols, table: f.ref, foreignColumns: f.refcols, onDelete: action[f.del], onUpdate: action[f.upd] })).sort((a, b) => a.columns.join().localeCompare(b.columns.join())),
+          indexes: idx
+            .filter((i) => i.table === t)
+            .map((i) => ({ name: i.name, unique: i.unique, columns: i.columns }))
+            .sort((a, b) => a.name.localeCompare(b.name)),
+          foreignKeys: fks
+            .filter((f) => f.table === t)
+            .map((f) => ({ columns: f.cols, table: f.ref, foreignColumns: f.refcols, onDelete: action[f.del], onUpdate: action[f.upd] }))
+            .sort((a, b) => a.columns.join().localeCompare(b.columns.join())),
         },
       ]),
     );
@@ -168,7 +209,9 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
     const s = openDb(':memory:');
     migrateDb(s);
     const c = s.$client;
-    const tables = c.prepare(`select name, sql from sqlite_master where type = 'table' and name not like 'sqlite_%' and name not like '__drizzle%' order by name`).all() as { name: string; sql: string }[];
+    const tables = c
+      .prepare(`select name, sql from sqlite_master where type = 'table' and name not like 'sqlite_%' and name not like '__drizzle%' order by name`)
+      .all() as { name: string; sql: string }[];
     const out = Object.fromEntries(
       tables.map(({ name: t, sql }) => [
         t,
@@ -177,13 +220,13 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
           columns: (c.pragma(`table_info("${t}")`) as { name: string; type: string; notnull: number; dflt_value: string | null; pk: number }[])
             .sort((a, b) => a.name.localeCompare(b.name))
             .map((col) => ({
-            name: col.name,
-            type: col.type,
-            notNull: col.notnull === 1 || col.pk > 0,
-            primaryKey: col.pk > 0,
-            autoIncrement: col.pk > 0 && new RegExp(`[\`"]${col.name}[\`"] integer PRIMARY KEY AUTOINCREMENT`, 'i').test(sql),
-            default: normaliseDefault(col.dflt_value),
-          })),
+              name: col.name,
+              type: col.type,
+              notNull: col.notnull === 1 || col.pk > 0,
+              primaryKey: col.pk > 0,
+              autoIncrement: col.pk > 0 && new RegExp(`[\`"]${col.name}[\`"] integer PRIMARY KEY AUTOINCREMENT`, 'i').test(sql),
+              default: normaliseDefault(col.dflt_value),
+            })),
           indexes: (c.pragma(`index_list("${t}")`) as { name: string; unique: number; origin: string }[])
             .filter((i) => i.origin !== 'pk')
             .map((i) => ({ name: i.name, unique: i.unique === 1, columns: (c.pragma(`index_info("${i.name}")`) as { name: string }[]).map((x) => x.name) }))
@@ -208,7 +251,9 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
     const [{ created_at: at }] = (await db.$client.query(`insert into sites (name) values ('Default check') returning created_at`)).rows;
     const s = openDb(':memory:');
     migrateDb(s);
-    const { created_at: sqliteAt } = s.$client.prepare(`insert into sites (name) values ('Default check') returning created_at`).get() as { created_at: string };
+    const { created_at: sqliteAt } = s.$client.prepare(`insert into sites (name) values ('Default check') returning created_at`).get() as {
+      created_at: string;
+    };
     s.$client.close();
     const iso = /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z$/;
     expect(sqliteAt).toMatch(iso);

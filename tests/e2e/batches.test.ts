@@ -37,16 +37,28 @@ describe('batches on the floor', () => {
     const sup = await watchedPage(browser, PHONE);
     await signIn(sup.page, baseURL, 'supervisor');
     await acknowledgeCautionsIfShown(sup.page, 'screen-sign-offs');
-    const recipes = (await (await sup.page.request.get(`${baseURL}/api/recipes`)).json()).recipes as { id: number; name: string; vesselId: number; lotId: number }[];
+    const recipes = (await (await sup.page.request.get(`${baseURL}/api/recipes`)).json()).recipes as {
+      id: number;
+      name: string;
+      vesselId: number;
+      lotId: number;
+    }[];
     const lactose = recipes.find((r) => r.name === 'Lactose-free milk base')!;
     const now = Date.now();
     const startedAt = new Date(now - 4 * 3_600_000).toISOString();
-    const started = await sup.page.request.post(`${baseURL}/api/batches`, { headers: HEADERS, data: { recipeId: lactose.id, vesselId: lactose.vesselId, lotId: lactose.lotId, startedAt } });
+    const started = await sup.page.request.post(`${baseURL}/api/batches`, {
+      headers: HEADERS,
+      data: { recipeId: lactose.id, vesselId: lactose.vesselId, lotId: lactose.lotId, startedAt },
+    });
     expect(started.status()).toBe(201);
     const batch = (await started.json()) as Batch;
     const rows = ['time,degC'];
-    for (let m = 0; m <= 210; m += 10) rows.push(`${new Date(Date.parse(startedAt) + m * 60_000).toISOString()},${plannedAt(batch.program, m / 60).toFixed(1)}`);
-    const imported = await sup.page.request.post(`${baseURL}/api/batches/${batch.id}/readings/import`, { headers: { ...HEADERS, 'content-type': 'text/csv' }, data: rows.join('\n') });
+    for (let m = 0; m <= 210; m += 10)
+      rows.push(`${new Date(Date.parse(startedAt) + m * 60_000).toISOString()},${plannedAt(batch.program, m / 60).toFixed(1)}`);
+    const imported = await sup.page.request.post(`${baseURL}/api/batches/${batch.id}/readings/import`, {
+      headers: { ...HEADERS, 'content-type': 'text/csv' },
+      data: rows.join('\n'),
+    });
     expect((await imported.json()).imported).toBe(22);
     expect(sup.errors).toEqual([]);
     await sup.context.close();
@@ -86,7 +98,9 @@ describe('batches on the floor', () => {
     await expect.poll(() => summary.textContent(), { timeout: 10_000 }).toBe('1 of 1 not yet closed');
     expect(await page.getByTestId('deviation-corrective').textContent()).toMatch(/Suggested for the rest of the batch: hold \d+\.\d °C/);
     await log(0, '37.2', /14\.8 °C from the last reading of 52\.0 °C/);
-    await expect.poll(() => page.getByTestId('readings-explained').textContent(), { timeout: 10_000 }).toContain('The last reading, 37.2 °C, counts for no time until the next one is logged.');
+    await expect
+      .poll(() => page.getByTestId('readings-explained').textContent(), { timeout: 10_000 })
+      .toContain('The last reading, 37.2 °C, counts for no time until the next one is logged.');
     await expect.poll(() => page.getByTestId('readings-table').textContent()).toContain('37.2');
     const after = await figure(page, 'figure-forecast');
     expect(after).toBeLessThan(before);
@@ -114,7 +128,8 @@ describe('batches on the floor', () => {
     await page.getByTestId('screen-batches').waitFor();
     await page.locator('[data-testid="my-batches"] [data-testid^="batch-card-"]').first().click();
     await page.getByTestId('reading-entry').waitFor();
-    const count = async () => (await (await page.request.get(`${baseURL}${new URL(page.url()).pathname.replace('/batches', '/api/batches')}`)).json()).readings.length as number;
+    const count = async () =>
+      (await (await page.request.get(`${baseURL}${new URL(page.url()).pathname.replace('/batches', '/api/batches')}`)).json()).readings.length as number;
     const n0 = await count();
     await context.setOffline(true);
     await page.getByTestId('reading-c').fill('37.3');

@@ -13,7 +13,15 @@ export function launch(): Promise<Browser> {
   return chromium.launch({
     executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
     headless: true,
-    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
 }
 
@@ -70,7 +78,13 @@ export async function accessibilityViolations(page: Page): Promise<string[]> {
     .options({ rules: { 'label-content-name-mismatch': { enabled: true } } })
     .withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa', 'wcag22aa'])
     .analyze();
-  return result.violations.map((v) => `${v.id}: ${v.help} (${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join('; ')})`);
+  return result.violations.map(
+    (v) =>
+      `${v.id}: ${v.help} (${v.nodes
+        .map((n) => n.target.join(' '))
+        .slice(0, 3)
+        .join('; ')})`,
+  );
 }
 
 /** Confirms the cautions notice only if it shows: journeys share one server, and each user confirms it once. */

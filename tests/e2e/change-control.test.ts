@@ -117,7 +117,8 @@ describe('change control', () => {
     await sup.page.goto(`${server.baseURL}/audit`);
     await sup.page.getByTestId('audit-table').waitFor();
     const trail = await sup.page.getByTestId('audit-table').textContent();
-    for (const step of ['proposed change request', 'signed change request', 'approved change request', 'released a new setpoint for recipe']) expect(trail).toContain(step);
+    for (const step of ['proposed change request', 'signed change request', 'approved change request', 'released a new setpoint for recipe'])
+      expect(trail).toContain(step);
     expect(trail).not.toContain('{"');
     await sup.page.getByRole('button', { name: 'Approvals' }).click();
     await sup.page.getByTestId('audit-count').filter({ hasText: 'of 1 events' }).waitFor();

@@ -18,7 +18,14 @@ let plant: Plant;
 beforeAll(async () => {
   [browser, plant] = await Promise.all([
     launch(),
-    startPlant({ pkiFolder: path.join(os.tmpdir(), 'yieldpoint-test-plant-pki'), users: [USER], tags: [TAG], setpointOf: () => 59, tickMs: 1000, excursionChance: 0 }),
+    startPlant({
+      pkiFolder: path.join(os.tmpdir(), 'yieldpoint-test-plant-pki'),
+      users: [USER],
+      tags: [TAG],
+      setpointOf: () => 59,
+      tickMs: 1000,
+      excursionChance: 0,
+    }),
   ]);
 });
 afterAll(async () => {

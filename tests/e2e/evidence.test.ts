@@ -58,7 +58,9 @@ describe('evidence to decision', () => {
     await (await chooser).setFiles({ name: 'OF-LX5-0926-qc.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) });
     await expect.poll(() => text(proc.page, 'assay-done'), { timeout: 30_000 }).toMatch(/21 points from OF-LX5-0926-qc\.csv/);
     const fitHalfLife = Number((await text(proc.page, 'assay-half-life')).replace(' h', ''));
-    await expect.poll(() => text(proc.page, 'lot-disagreement'), { timeout: 10_000 }).toMatch(/lies outside the assay fit's 95 % interval .* less stable than its certificate says/);
+    await expect
+      .poll(() => text(proc.page, 'lot-disagreement'), { timeout: 10_000 })
+      .toMatch(/lies outside the assay fit's 95 % interval .* less stable than its certificate says/);
     await shot(proc.page, 'lot-disagreement', `evidence-lot-disagreement-${PHONE.width}x${PHONE.height}`);
     expect(proc.errors).toEqual([]);
     await proc.context.close();
@@ -83,30 +85,40 @@ describe('evidence to decision', () => {
     const sup = await watchedPage(browser, PHONE);
     await signIn(sup.page, baseURL, 'supervisor');
     await acknowledgeCautionsIfShown(sup.page, 'screen-sign-offs');
-    const running = ((await (await sup.page.request.get(`${baseURL}/api/batches`)).json()).batches as { id: number; vesselName: string; state: string }[]).filter(
-      (b) => b.vesselName === lactose.vesselName && b.state === 'running',
-    );
+    const running = (
+      (await (await sup.page.request.get(`${baseURL}/api/batches`)).json()).batches as { id: number; vesselName: string; state: string }[]
+    ).filter((b) => b.vesselName === lactose.vesselName && b.state === 'running');
     for (const b of running) {
       const d = (await (await sup.page.request.get(`${baseURL}/api/batches/${b.id}`)).json()) as BatchDetail;
       for (const dev of d.deviations.filter((x) => x.state !== 'closed')) {
-        if (dev.state === 'open') await sup.page.request.post(`${baseURL}/api/deviations/${dev.id}/acknowledge`, { headers: HEADERS, data: { comment: 'seen' } });
+        if (dev.state === 'open')
+          await sup.page.request.post(`${baseURL}/api/deviations/${dev.id}/acknowledge`, { headers: HEADERS, data: { comment: 'seen' } });
         await sup.page.request.post(`${baseURL}/api/deviations/${dev.id}/close`, { headers: HEADERS, data: {} });
       }
       expect((await sup.page.request.post(`${baseURL}/api/batches/${b.id}/close`, { headers: HEADERS, data: {} })).status()).toBe(200);
     }
     const startedAt = new Date(Math.floor(Date.now() / 60_000) * 60_000 - (lactose.batchH * 60 + 10) * 60_000).toISOString();
-    const started = await sup.page.request.post(`${baseURL}/api/batches`, { headers: HEADERS, data: { recipeId: lactose.id, vesselId: lactose.vesselId, lotId: lactose.lotId, startedAt } });
+    const started = await sup.page.request.post(`${baseURL}/api/batches`, {
+      headers: HEADERS,
+      data: { recipeId: lactose.id, vesselId: lactose.vesselId, lotId: lactose.lotId, startedAt },
+    });
     expect(started.status()).toBe(201);
     const batch = (await started.json()) as { id: number; program: { log: { h: number; c: number }[] } };
     const log = batch.program.log;
     const planned = (h: number) => {
-      const i = Math.max(1, log.findIndex((p) => p.h >= h));
+      const i = Math.max(
+        1,
+        log.findIndex((p) => p.h >= h),
+      );
       const [a, z] = [log[i - 1]!, log[Math.min(i, log.length - 1)]!];
       return z.h === a.h ? z.c : a.c + ((z.c - a.c) * (h - a.h)) / (z.h - a.h);
     };
     const rows = ['time,degC'];
     for (let m = 0; m <= lactose.batchH * 60; m += 15) rows.push(`${new Date(Date.parse(startedAt) + m * 60_000).toISOString()},${planned(m / 60).toFixed(2)}`);
-    const imported = await sup.page.request.post(`${baseURL}/api/batches/${batch.id}/readings/import`, { headers: { ...HEADERS, 'content-type': 'text/csv' }, data: rows.join('\n') });
+    const imported = await sup.page.request.post(`${baseURL}/api/batches/${batch.id}/readings/import`, {
+      headers: { ...HEADERS, 'content-type': 'text/csv' },
+      data: rows.join('\n'),
+    });
     expect(imported.status()).toBe(200);
     await sup.page.goto(`${baseURL}/batches/${batch.id}`);
     await sup.page.getByTestId('close-batch').waitFor();
@@ -127,11 +139,15 @@ describe('evidence to decision', () => {
     expect(await text(eng.page, 'calibration-proposed')).toMatch(/Prior: assay fit of/);
     await eng.page.getByTestId('calibration-params').waitFor();
     await eng.page.getByTestId('model-quality-accuracy').waitFor();
-    expect(await text(eng.page, 'model-quality-errors')).toMatch(/^Over \d+ closed batch(es)?: forecast on the assay evidence alone bias -?[\d.]+ g\/L, RMSE [\d.]+ g\/L; leave-one-out after calibration/);
+    expect(await text(eng.page, 'model-quality-errors')).toMatch(
+      /^Over \d+ closed batch(es)?: forecast on the assay evidence alone bias -?[\d.]+ g\/L, RMSE [\d.]+ g\/L; leave-one-out after calibration/,
+    );
     await shot(eng.page, 'calibration-review', `evidence-calibration-review-${WIDE.width}x${WIDE.height}`);
     await shot(eng.page, 'model-quality-drift-life', `evidence-model-quality-${WIDE.width}x${WIDE.height}`);
     await eng.page.getByTestId('calibration-accept').click();
-    await expect.poll(() => text(eng.page, 'planner-evidence-text'), { timeout: 20_000 }).toMatch(/^Kinetics from an accepted calibration: calibration of \d{4}-\d\d-\d\d from \d+ closed batch(es)? \(accepted by Tomasz Ekwueme\)/);
+    await expect
+      .poll(() => text(eng.page, 'planner-evidence-text'), { timeout: 20_000 })
+      .toMatch(/^Kinetics from an accepted calibration: calibration of \d{4}-\d\d-\d\d from \d+ closed batch(es)? \(accepted by Tomasz Ekwueme\)/);
     const setpointOnCalibration = await text(eng.page, 'recommended-setpoint');
     const bandOnCalibration = await band(eng.page);
     // The recommendation or its band moved with the accepted calibration (in practice both do).
@@ -143,9 +159,13 @@ describe('evidence to decision', () => {
     const glucose = recipes.find((r) => r.name === 'Glucose syrup DE 95')!;
     await eng.page.goto(`${baseURL}/planner/${glucose.id}`);
     await eng.page.getByTestId('input-dose').fill('0.9');
-    await expect.poll(() => text(eng.page, 'early-finish'), { timeout: 15_000 }).toMatch(/^A batch ended at hour [\d.]+ would earn \d+ [A-Z]{3} per reactor hour, against \d+ [A-Z]{3} for the full 48 h\.$/);
+    await expect
+      .poll(() => text(eng.page, 'early-finish'), { timeout: 15_000 })
+      .toMatch(/^A batch ended at hour [\d.]+ would earn \d+ [A-Z]{3} per reactor hour, against \d+ [A-Z]{3} for the full 48 h\.$/);
     expect(await text(eng.page, 'recommended-setpoint')).toBe('59.0 °C');
-    expect(await text(eng.page, 'recommended-product')).toMatch(/all the substrate, converted by hour [\d.]+ of 48 at the current setpoint, so no change is recommended/);
+    expect(await text(eng.page, 'recommended-product')).toMatch(
+      /all the substrate, converted by hour [\d.]+ of 48 at the current setpoint, so no change is recommended/,
+    );
     expect(await text(eng.page, 'reasons')).toMatch(/The substrate is fully converted by hour/);
     await shot(eng.page, 'recommendation', `evidence-planner-early-finish-${WIDE.width}x${WIDE.height}`);
     expect(eng.errors).toEqual([]);

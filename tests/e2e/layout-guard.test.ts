@@ -29,7 +29,16 @@ async function json<T>(page: Page, url: string): Promise<T> {
 /** Every place a role can open: its navigation, and the first record of each detail screen it reaches. */
 async function placesOf(page: Page, role: Role): Promise<Place[]> {
   const sees = (name: string) => canSee(role, name);
-  const screenOf: Record<string, string> = { site: 'site', planner: 'planner', 'sign-offs': 'sign-offs', lots: 'lots', batches: 'batches', billing: 'billing', audit: 'audit', you: 'you' };
+  const screenOf: Record<string, string> = {
+    site: 'site',
+    planner: 'planner',
+    'sign-offs': 'sign-offs',
+    lots: 'lots',
+    batches: 'batches',
+    billing: 'billing',
+    audit: 'audit',
+    you: 'you',
+  };
   const places: Place[] = NAV_ITEMS.filter((i) => sees(i.name)).map((i) => ({ path: i.href, screen: `screen-${screenOf[i.name]}` }));
   places.push({ path: '/cautions', screen: 'screen-cautions' });
   if (sees('sign-offs')) {
@@ -40,7 +49,11 @@ async function placesOf(page: Page, role: Role): Promise<Place[]> {
   if (sees('lots')) {
     const { lots } = await json<{ lots: { id: number }[] }>(page, '/api/lots');
     const { enzymes } = await json<{ enzymes: { id: number }[] }>(page, '/api/enzymes');
-    places.push({ path: `/lots/${lots[0].id}`, screen: 'screen-lot' }, { path: '/lots/enzymes', screen: 'screen-enzymes' }, { path: `/lots/enzymes/${enzymes[0].id}`, screen: 'screen-enzyme' });
+    places.push(
+      { path: `/lots/${lots[0].id}`, screen: 'screen-lot' },
+      { path: '/lots/enzymes', screen: 'screen-enzymes' },
+      { path: `/lots/enzymes/${enzymes[0].id}`, screen: 'screen-enzyme' },
+    );
   }
   if (sees('planner')) {
     const { recipes } = await json<{ recipes: { id: number }[] }>(page, '/api/recipes');

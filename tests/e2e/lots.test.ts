@@ -121,7 +121,10 @@ describe('procurement judges an incoming lot', () => {
     await page.getByRole('link', { name: /Lacta LX-5/ }).click();
     await page.getByTestId('lot-history-chart').waitFor();
     await shot(page, 'lot-history-chart', `enzyme-history-${PHONE.width}x${PHONE.height}`);
-    await page.getByRole('link', { name: /CLP-2611-02/ }).count().then((n) => expect(n).toBe(0));
+    await page
+      .getByRole('link', { name: /CLP-2611-02/ })
+      .count()
+      .then((n) => expect(n).toBe(0));
     await page.goto(`${baseURL}/lots`);
     await page.getByRole('link', { name: /TAA-4522/ }).click();
     await page.getByTestId('decision-card').waitFor();

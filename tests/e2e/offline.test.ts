@@ -38,7 +38,9 @@ describe('the operator at the vessel without a network', () => {
         await page.locator('[data-testid="reading-queue"], [data-testid="reading-confirm"]').first().waitFor();
         if (await page.getByTestId('reading-confirm').isVisible()) await page.getByTestId('reading-confirm-yes').click();
       }
-      await expect.poll(() => page.getByTestId('reading-queue').textContent(), { timeout: 10_000 }).toMatch(new RegExp(`^${i + 1} readings? saved on this device`));
+      await expect
+        .poll(() => page.getByTestId('reading-queue').textContent(), { timeout: 10_000 })
+        .toMatch(new RegExp(`^${i + 1} readings? saved on this device`));
     }
     await page.reload();
     await page.getByTestId('screen-batch').waitFor();
@@ -50,7 +52,16 @@ describe('the operator at the vessel without a network', () => {
     await screenshot(page, 'batch-offline-reloaded-390x844');
 
     await context.setOffline(false);
-    await expect.poll(() => page.getByTestId('reading-sent').textContent().catch(() => null), { timeout: 30_000 }).toBe('3 readings sent');
+    await expect
+      .poll(
+        () =>
+          page
+            .getByTestId('reading-sent')
+            .textContent()
+            .catch(() => null),
+        { timeout: 30_000 },
+      )
+      .toBe('3 readings sent');
     await expect.poll(() => table.getByText('on this device').count(), { timeout: 10_000 }).toBe(0);
     await expect.poll(() => page.getByTestId('cached-note').count(), { timeout: 10_000 }).toBe(0);
     // Sent once each: the three keys held across the reload and the resend.

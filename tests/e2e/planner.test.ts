@@ -32,8 +32,17 @@ describe('setpoint planner', () => {
     await page.getByTestId('recipe-lot').getByRole('radio').first().click();
     await page.getByTestId('recipe-vessel').getByRole('radio').first().click();
     const values: Record<string, string> = {
-      s0GPerL: '250', doseGPerL: '0.5', vmaxRefGPerLH: '9', edKJPerMol: '280', batchH: '30', turnaroundH: '5', fillC: '35',
-      currentSetpointC: '58', productPricePerKg: '0.4', enzymePricePerKg: '20', heatingCostPerDegCHour: '0.6',
+      s0GPerL: '250',
+      doseGPerL: '0.5',
+      vmaxRefGPerLH: '9',
+      edKJPerMol: '280',
+      batchH: '30',
+      turnaroundH: '5',
+      fillC: '35',
+      currentSetpointC: '58',
+      productPricePerKg: '0.4',
+      enzymePricePerKg: '20',
+      heatingCostPerDegCHour: '0.6',
     };
     for (const [k, v] of Object.entries(values)) await page.getByTestId(`recipe-${k}`).fill(v);
     await page.getByTestId('recipe-save').click();
@@ -64,7 +73,15 @@ describe('setpoint planner', () => {
     const { page, context, errors } = await watchedPage(browser, WIDE);
     await signInEngineer(page);
     await page.getByTestId('vessel-add').click();
-    const values: Record<string, string> = { name: 'R-450 Pilot', workingVolumeL: '600', minC: '10', maxC: '90', maxHeatCPerH: '15', maxCoolCPerH: '10', hygienicMinC: '95' };
+    const values: Record<string, string> = {
+      name: 'R-450 Pilot',
+      workingVolumeL: '600',
+      minC: '10',
+      maxC: '90',
+      maxHeatCPerH: '15',
+      maxCoolCPerH: '10',
+      hygienicMinC: '95',
+    };
     for (const [k, v] of Object.entries(values)) await page.getByTestId(`vessel-${k}`).fill(v);
     await page.getByTestId('vessel-save').click();
     await expect.poll(() => page.getByTestId('vessel-hygienicMinC-error').textContent()).toMatch(/between the minimum and maximum/);

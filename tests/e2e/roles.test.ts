@@ -27,10 +27,12 @@ describe.each([
     await page.getByTestId(screenOf(HOME[role])).waitFor();
     expect(new URL(page.url()).pathname).toBe(HOME[role]);
 
-    const expected = navItemsFor(role).map((i) => `nav-${i.name}`).sort();
-    const shown = await page.locator('[data-testid^="nav-"]').evaluateAll((els) =>
-      els.map((e) => e.getAttribute('data-testid')!).filter((id) => id !== 'nav' && id !== 'nav-cautions'),
-    );
+    const expected = navItemsFor(role)
+      .map((i) => `nav-${i.name}`)
+      .sort();
+    const shown = await page
+      .locator('[data-testid^="nav-"]')
+      .evaluateAll((els) => els.map((e) => e.getAttribute('data-testid')!).filter((id) => id !== 'nav' && id !== 'nav-cautions'));
     expect(shown.sort()).toEqual(expected);
     await screenshot(page, `${role}-home-${viewport.width}x${viewport.height}`);
     expect(await accessibilityViolations(page)).toEqual([]);

@@ -15,18 +15,22 @@ const NOT_MONEY = /\b(seats?|invites?|people|h|°C|degC|%|lots?|batches|g\/L|kJ\
 
 /** Each line of rendered text that breaks a rule, with the rule's name. */
 export function unlabelledFigures(text: string): string[] {
-  const lines = text.split('\n').map((l) => l.trim()).filter(Boolean);
+  const lines = text
+    .split('\n')
+    .map((l) => l.trim())
+    .filter(Boolean);
   const found: string[] = [];
   lines.forEach((line, i) => {
     if (CLOCK.test(line)) found.push(`time without a zone: "${line}"`);
     if (ISO_INSTANT.test(line)) found.push(`raw ISO time: "${line}"`);
     // A money word labels its own line or the value on the next one (a figure's label above its value).
     if (MONEY_WORD.test(line)) {
-      const value = NUMBER.test(line.replace(MONEY_WORD, '')) ? line : lines[i + 1] ?? '';
-      if (NUMBER.test(value) && !CURRENCY.test(value) && !CURRENCY.test(line) && !NOT_MONEY.test(value)) found.push(`amount without a currency: "${line}${value === line ? '' : ` / ${value}`}"`);
+      const value = NUMBER.test(line.replace(MONEY_WORD, '')) ? line : (lines[i + 1] ?? '');
+      if (NUMBER.test(value) && !CURRENCY.test(value) && !CURRENCY.test(line) && !NOT_MONEY.test(value))
+        found.push(`amount without a currency: "${line}${value === line ? '' : ` / ${value}`}"`);
     }
     if (/^Activity\b/.test(line)) {
-      const value = NUMBER.test(line) ? line : lines[i + 1] ?? '';
+      const value = NUMBER.test(line) ? line : (lines[i + 1] ?? '');
       if (/^\s*(Activity\s*)?\d+(?:[.,]\d+)?\s*$/.test(value)) found.push(`activity without a unit: "${line} ${value}"`);
     }
   });

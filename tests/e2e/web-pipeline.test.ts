@@ -58,13 +58,21 @@ describe("the build steps on Expo's real export", () => {
     splitBundle(dir);
     const parts = scriptsOf(dir).sort((a, b) => Number(/-(\d+)\.js$/.exec(a)![1]) - Number(/-(\d+)\.js$/.exec(b)![1]));
     expect(parts).toHaveLength(BUNDLE_PARTS);
-    expect(parts.map((p) => read(dir, `_expo/static/js/web/${p}`)).join('\n')).toBe(original.split('\n').filter((l) => !l.startsWith('//# ')).join('\n'));
+    expect(parts.map((p) => read(dir, `_expo/static/js/web/${p}`)).join('\n')).toBe(
+      original
+        .split('\n')
+        .filter((l) => !l.startsWith('//# '))
+        .join('\n'),
+    );
     for (const p of pagesOf(dir)) {
       const html = read(dir, p);
       expect(html, p).not.toContain(bundle);
       const list = new RegExp(`<script id="${BUNDLE_PARTS_ID}" type="application/json">(.*?)</script>`).exec(html);
       expect(JSON.parse(list![1]!), p).toEqual(parts.map((f) => `/_expo/static/js/web/${f}`));
-      expect([...html.matchAll(/<script>(.*?)<\/script>/g)].map((m) => m[1]), p).toEqual([BUNDLE_LOADER]);
+      expect(
+        [...html.matchAll(/<script>(.*?)<\/script>/g)].map((m) => m[1]),
+        p,
+      ).toEqual([BUNDLE_LOADER]);
     }
     expect(() => splitBundle(dir)).toThrow(/bundle parts: expected one entry bundle/);
   });
@@ -94,7 +102,9 @@ describe('WEB_PIPELINE=plain', () => {
     expect(scriptsOf(dir)).toEqual(scriptsOf(exported));
     expect(fs.existsSync(path.join(dir, 'sw.js'))).toBe(true);
     const { page, context, errors } = await watchedPage(browser, PHONE);
-    await page.addInitScript('window.cspViolations = []; document.addEventListener("securitypolicyviolation", (e) => window.cspViolations.push(e.violatedDirective));');
+    await page.addInitScript(
+      'window.cspViolations = []; document.addEventListener("securitypolicyviolation", (e) => window.cspViolations.push(e.violatedDirective));',
+    );
     const response = await page.goto(`${server.baseURL}/sign-in`);
     // The policy allows Expo's own inline scripts by their hashes, and no other.
     expect(response!.headers()['content-security-policy']).toContain(`script-src 'self' ${inlineScriptSources(dir).join(' ')};`);

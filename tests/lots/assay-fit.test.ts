@@ -50,7 +50,11 @@ describe('fitAssay', () => {
     expect(Math.abs(r.fit.kdRefPerH / 0.05 - 1)).toBeLessThan(0.02);
   });
   it('more distinct rows than the fit takes: a named problem, not a silent first-order fit', () => {
-    const pts: InactivationPoint[] = Array.from({ length: MAX_FIT_ROWS + 1 }, (_, i) => ({ c: 50 + (i % 4) * 5, h: 0.5 + i * 1e-4, residual: Math.exp(-0.01 * (0.5 + i * 1e-4) * (1 + (i % 4))) }));
+    const pts: InactivationPoint[] = Array.from({ length: MAX_FIT_ROWS + 1 }, (_, i) => ({
+      c: 50 + (i % 4) * 5,
+      h: 0.5 + i * 1e-4,
+      residual: Math.exp(-0.01 * (0.5 + i * 1e-4) * (1 + (i % 4))),
+    }));
     const r = fitAssay(55, pts);
     expect(r.fit).toBeNull();
     expect(r.problem).toBe(`The data has ${MAX_FIT_ROWS + 1} distinct (temperature, time) rows: at most ${MAX_FIT_ROWS} are fitted`);

@@ -1,16 +1,7 @@
 // The four defects an outside audit found, each with the input that showed it.
 import { describe, expect, it } from 'vitest';
 import { cli } from '../support/model';
-import {
-  createRng,
-  monteCarlo,
-  optimizeProfile,
-  optimizeSetpoint,
-  simulate,
-  type EnzymeParams,
-  type Stage,
-  type Substrate,
-} from '../../src/model';
+import { createRng, monteCarlo, optimizeProfile, optimizeSetpoint, simulate, type EnzymeParams, type Stage, type Substrate } from '../../src/model';
 
 // Independent solve of the staged programme: steps parameterised as maxStep * tanh(u), so every u is feasible,
 // then gradient ascent (central differences, Adam steps) on ln(work) of simulate from many starts.
@@ -141,7 +132,12 @@ describe('every output finite, or the input refused with field: rule (exit 2)', 
     expect(Number.isFinite(out.workGPerL)).toBe(true);
   });
   it('S0/Km beyond 1e308 is refused (it printed productGPerL: null)', () => {
-    const r = cli('simulate', { enzyme: { tRefC: 60, vmaxRef: 1, eaKJPerMol: 50, kdRefPerH: 0.1, edKJPerMol: 300 }, substrate: { s0GPerL: 1e300, kmGPerL: 1e-10 }, batchH: 24, temperature: { setpointC: 50 } });
+    const r = cli('simulate', {
+      enzyme: { tRefC: 60, vmaxRef: 1, eaKJPerMol: 50, kdRefPerH: 0.1, edKJPerMol: 300 },
+      substrate: { s0GPerL: 1e300, kmGPerL: 1e-10 },
+      batchH: 24,
+      temperature: { setpointC: 50 },
+    });
     expect(r.code).toBe(2);
     expect(r.stdout).toBe('');
     expect(r.stderr).toBe('substrate.s0GPerL: must be <= 10000\n');
@@ -179,7 +175,16 @@ describe('every output finite, or the input refused with field: rule (exit 2)', 
       if (i % 4 === 1) s.ksiGPerL = pick(1e-9, 1e9);
       const batchH = pick(1e-3, 1e5);
       const c = -50 + 300 * rng.uniform();
-      for (const temp of [{ setpointC: c }, { log: [{ h: 0, c: -50 }, { h: batchH / 2, c: 250 }, { h: batchH, c }] }]) {
+      for (const temp of [
+        { setpointC: c },
+        {
+          log: [
+            { h: 0, c: -50 },
+            { h: batchH / 2, c: 250 },
+            { h: batchH, c },
+          ],
+        },
+      ]) {
         const r = simulate(e, s, batchH, temp);
         for (const v of Object.values(r)) expect(Number.isFinite(v)).toBe(true);
         expect(r.productGPerL).toBeGreaterThanOrEqual(0);
@@ -197,13 +202,27 @@ describe('misspelt keys are refused, naming the key', () => {
   it.each([
     [
       'uncertainty',
-      { enzyme, substrate, batchH: 24, boundsC: [40, 60], covariance: [[0.001, 0], [0, 4]], sensorBiasSd: 0.5 },
+      {
+        enzyme,
+        substrate,
+        batchH: 24,
+        boundsC: [40, 60],
+        covariance: [
+          [0.001, 0],
+          [0, 4],
+        ],
+        sensorBiasSd: 0.5,
+      },
       'sensorBiasSd: is not a known key',
     ],
-    ['simulate', { enzyme: { ...enzyme, equilibirum: { teqC: 60, dHeqKJPerMol: 150 } }, substrate, batchH: 24, temperature: { setpointC: 50 } }, 'enzyme.equilibirum: is not a known key'],
+    [
+      'simulate',
+      { enzyme: { ...enzyme, equilibirum: { teqC: 60, dHeqKJPerMol: 150 } }, substrate, batchH: 24, temperature: { setpointC: 50 } },
+      'enzyme.equilibirum: is not a known key',
+    ],
     ['dose', { enzyme, substrate, batchH: 24, log: [{ h: 0, c: 20 }], plan: { setpointC: 50 }, refc: 55 }, 'refc: is not a known key'],
     ['simulate', { enzyme, substrate: { ...substrate, kiGperL: 3 }, batchH: 24, temperature: { setpointC: 50 } }, 'substrate.kiGperL: is not a known key'],
-  ])("%s refuses the misspelt key", (command, input, start) => {
+  ])('%s refuses the misspelt key', (command, input, start) => {
     const r = cli(command, input);
     expect(r.code).toBe(2);
     expect(r.stdout).toBe('');
@@ -219,7 +238,10 @@ describe('robust setpoint searches the bounds', () => {
     substrate: { s0GPerL: 150, kmGPerL: 10 },
     batchH: 24,
     boundsC: [55, 75] as [number, number],
-    covariance: [[0.04, 0.4], [0.4, 100]],
+    covariance: [
+      [0.04, 0.4],
+      [0.4, 100],
+    ],
     sensorBiasSdC: 0.5,
     draws: 4000,
     seed: 3,
@@ -237,7 +259,10 @@ describe('robust setpoint searches the bounds', () => {
     const r = monteCarlo({
       ...base,
       substrate: { s0GPerL: 1e4, kmGPerL: 1e-6 },
-      covariance: [[0, 0], [0, 0]],
+      covariance: [
+        [0, 0],
+        [0, 0],
+      ],
       sensorBiasSdC: 0,
       doseRelSd: 0.3,
       draws: 20000,

@@ -51,9 +51,21 @@ function batchesFrom(rng: Rng, truth: EnzymeParams, n: number, relSd = 0.02): Ca
     const c = 44 + 12 * rng.uniform();
     const temperature: TemperatureInput =
       i % 3 === 2
-        ? { stages: [{ hours: batchH / 2, c: c - 2 }, { hours: batchH / 2, c: c + 2 }] }
+        ? {
+            stages: [
+              { hours: batchH / 2, c: c - 2 },
+              { hours: batchH / 2, c: c + 2 },
+            ],
+          }
         : i % 3 === 1
-          ? { log: [{ h: 0, c: 20 }, { h: 1, c }, { h: batchH / 2, c: c + 1 }, { h: batchH, c: c + 3 }] }
+          ? {
+              log: [
+                { h: 0, c: 20 },
+                { h: 1, c },
+                { h: batchH / 2, c: c + 1 },
+                { h: batchH, c: c + 3 },
+              ],
+            }
           : { setpointC: c };
     const p = simulate(truth, substrate, batchH, temperature).productGPerL;
     const sd = relSd * p;
@@ -97,11 +109,54 @@ describe('forward-mode derivatives of product', () => {
   const cases: [string, EnzymeParams, number, TemperatureInput][] = [
     ['setpoint', enzyme, 24, { setpointC: 55 }],
     ['setpoint, kd tiny (series branch)', { ...enzyme, kdRefPerH: 1e-7 }, 24, { setpointC: 45 }],
-    ['stages cut by the batch end', enzyme, 20, { stages: [{ hours: 6, c: 48 }, { hours: 30, c: 54 }] }],
-    ['log with a hold, a step and readings past the end', enzyme, 20, { log: [{ h: 1, c: 40 }, { h: 3, c: 60 }, { h: 3, c: 50 }, { h: 30, c: 52 }] }],
+    [
+      'stages cut by the batch end',
+      enzyme,
+      20,
+      {
+        stages: [
+          { hours: 6, c: 48 },
+          { hours: 30, c: 54 },
+        ],
+      },
+    ],
+    [
+      'log with a hold, a step and readings past the end',
+      enzyme,
+      20,
+      {
+        log: [
+          { h: 1, c: 40 },
+          { h: 3, c: 60 },
+          { h: 3, c: 50 },
+          { h: 30, c: 52 },
+        ],
+      },
+    ],
     ['48 h log at 1-minute readings', enzyme, 48, { log: minuteLog }],
-    ['fast loss on a ramp (4- and 6-node rules)', { ...enzyme, kdRefPerH: 2 }, 10, { log: [{ h: 0, c: 40 }, { h: 10, c: 70 }] }],
-    ['Equilibrium Model', { ...enzyme, equilibrium: { teqC: 58, dHeqKJPerMol: 150 } }, 30, { log: [{ h: 0, c: 30 }, { h: 2, c: 58 }, { h: 30, c: 61 }] }],
+    [
+      'fast loss on a ramp (4- and 6-node rules)',
+      { ...enzyme, kdRefPerH: 2 },
+      10,
+      {
+        log: [
+          { h: 0, c: 40 },
+          { h: 10, c: 70 },
+        ],
+      },
+    ],
+    [
+      'Equilibrium Model',
+      { ...enzyme, equilibrium: { teqC: 58, dHeqKJPerMol: 150 } },
+      30,
+      {
+        log: [
+          { h: 0, c: 30 },
+          { h: 2, c: 58 },
+          { h: 30, c: 61 },
+        ],
+      },
+    ],
   ];
   it.each(cases)('%s: value is simulate, gradient matches central differences', (_name, e, batchH, temperature) => {
     const s = productSensitivity(e, substrate, batchH, temperature);
@@ -115,7 +170,9 @@ describe('forward-mode derivatives of product', () => {
       const down = [...base];
       up[k] += steps[k];
       down[k] -= steps[k];
-      const fd = (simulate(at(up, e), substrate, batchH, temperature).productGPerL - simulate(at(down, e), substrate, batchH, temperature).productGPerL) / (2 * steps[k]);
+      const fd =
+        (simulate(at(up, e), substrate, batchH, temperature).productGPerL - simulate(at(down, e), substrate, batchH, temperature).productGPerL) /
+        (2 * steps[k]);
       // Central differences carry ~1e-10 relative truncation and rounding here; a derivative near zero is judged against the largest.
       expect(Math.abs(s.gradient[k] - fd) * steps[k] * 1e5).toBeLessThan(1e-6 * scale + 1e-12);
     }
@@ -203,7 +260,12 @@ describe('posterior against random-walk Metropolis (three parameters)', () => {
     const c = [0, 1, 2].map((i) => [0, 1, 2].map((k) => xs.reduce((s, x) => s + (x[i] - mean[i]) * (x[k] - mean[k]), 0) / (xs.length - 1)));
     return { mean, c };
   };
-  const pilot = mcmc(prior, cov.map((row) => row.map((v) => v / 25)), 20000, true);
+  const pilot = mcmc(
+    prior,
+    cov.map((row) => row.map((v) => v / 25)),
+    20000,
+    true,
+  );
   const pilotMoments = moments(pilot.kept.slice(5000));
   const burn = mcmc(pilot.x, pilotMoments.c, 5000, false);
   const chain = moments(mcmc(burn.x, pilotMoments.c, 80000, true).kept);
@@ -275,7 +337,7 @@ describe('leave-one-out residuals and outliers', () => {
     expect(r.batches[4].outlier).toBe(true);
     for (const [i, b] of r.batches.entries()) if (i !== 4) expect([b.outlier, Math.abs(b.standardisedResidual) < 3]).toEqual([false, true]);
   });
-  it('the posterior keeps the outlier (leaving it out is the engineer\'s choice) while the others are judged without it', () => {
+  it("the posterior keeps the outlier (leaving it out is the engineer's choice) while the others are judged without it", () => {
     expect(Math.abs(Math.log(r.posterior.vmaxScale / without.posterior.vmaxScale))).toBeGreaterThan(0.2 * Math.sqrt(without.posterior.covariance[2][2]));
     const others = r.batches.filter((_, i) => i !== 4);
     others.forEach((b, i) => expect(b.standardisedResidual).toBeCloseTo(without.batches[i].standardisedResidual, 3));
@@ -324,7 +386,17 @@ describe('calibrate input', () => {
   const batch = { batchH: 24, temperature: { setpointC: 50 }, measuredProductGPerL: 100, measurementSdGPerL: 2 };
   const base = { enzyme, substrate, covariance: cov, batches: [batch] };
   it.each([
-    ['2x2 covariance', { ...base, covariance: [[0.04, 0], [0, 64]] }, 'covariance: must be 3x3 (ln kdRefPerH, edKJPerMol, ln vmaxScale)'],
+    [
+      '2x2 covariance',
+      {
+        ...base,
+        covariance: [
+          [0.04, 0],
+          [0, 64],
+        ],
+      },
+      'covariance: must be 3x3 (ln kdRefPerH, edKJPerMol, ln vmaxScale)',
+    ],
     ['zero measurement sd', { ...base, batches: [{ ...batch, measurementSdGPerL: 0 }] }, 'batches[0].measurementSdGPerL: must be > 0'],
     ['negative product', { ...base, batches: [{ ...batch, measuredProductGPerL: -1 }] }, 'batches[0].measuredProductGPerL: must be >= 0'],
     ['kelvin setpoint', { ...base, batches: [{ ...batch, temperature: { setpointC: 323 } }] }, 'batches[0].temperature.setpointC: must be between -50 and 250'],

@@ -1,13 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  degreeHoursAbove,
-  economics,
-  optimizeEconomics,
-  profitCurve,
-  simulate,
-  thermalDose,
-  type EconomicsParams,
-} from '../../src/model';
+import { degreeHoursAbove, economics, optimizeEconomics, profitCurve, simulate, thermalDose, type EconomicsParams } from '../../src/model';
 
 const enzyme = { tRefC: 60, vmaxRef: 2, eaKJPerMol: 50, kdRefPerH: Math.LN2, edKJPerMol: 300 };
 const substrate = { s0GPerL: 100, kmGPerL: 5 };
@@ -30,8 +22,27 @@ describe('economics', () => {
   });
   it.each([
     ['setpoint', { setpointC: 50 }, 30 * 10],
-    ['stages', { stages: [{ hours: 4, c: 30 }, { hours: 6, c: 10 }] }, 40],
-    ['log crossing ambient', { log: [{ h: 0, c: 10 }, { h: 2, c: 30 }, { h: 4, c: 30 }] }, 5 + 20 + 10 * 6],
+    [
+      'stages',
+      {
+        stages: [
+          { hours: 4, c: 30 },
+          { hours: 6, c: 10 },
+        ],
+      },
+      40,
+    ],
+    [
+      'log crossing ambient',
+      {
+        log: [
+          { h: 0, c: 10 },
+          { h: 2, c: 30 },
+          { h: 4, c: 30 },
+        ],
+      },
+      5 + 20 + 10 * 6,
+    ],
   ] as const)('degree-hours above ambient for a %s', (_n, temp, expected) => {
     expect(degreeHoursAbove(temp, 10, 20)).toBeCloseTo(expected, 12);
   });
@@ -70,7 +81,12 @@ describe('thermal dose', () => {
     { h: 6, c: 52 },
   ];
   it('forecast equals one simulation of the log followed by the plan', () => {
-    const plan = { stages: [{ hours: 6, c: 0 }, { hours: 18, c: 49 }] };
+    const plan = {
+      stages: [
+        { hours: 6, c: 0 },
+        { hours: 18, c: 49 },
+      ],
+    };
     const d = thermalDose(enzyme, substrate, log, plan, 24);
     const whole = simulate(enzyme, substrate, 24, { log: [...log, { h: 6, c: 49 }, { h: 24, c: 49 }] });
     expect(d.forecastProductGPerL).toBeCloseTo(whole.productGPerL, 10);
@@ -84,11 +100,29 @@ describe('thermal dose', () => {
     expect(d.state.workGPerL).toBeCloseTo(s.workGPerL, 12);
   });
   it('a log held at the reference temperature has equivalent time equal to its length', () => {
-    const d = thermalDose(enzyme, substrate, [{ h: 0, c: 60 }, { h: 3, c: 60 }], { setpointC: 60 }, 10);
+    const d = thermalDose(
+      enzyme,
+      substrate,
+      [
+        { h: 0, c: 60 },
+        { h: 3, c: 60 },
+      ],
+      { setpointC: 60 },
+      10,
+    );
     expect(d.equivalentHAtRef).toBeCloseTo(3, 12);
   });
   it('equivalent time does not need a non-zero kd', () => {
-    const d = thermalDose({ ...enzyme, kdRefPerH: 0 }, substrate, [{ h: 0, c: 70 }, { h: 1, c: 70 }], { setpointC: 60 }, 2);
+    const d = thermalDose(
+      { ...enzyme, kdRefPerH: 0 },
+      substrate,
+      [
+        { h: 0, c: 70 },
+        { h: 1, c: 70 },
+      ],
+      { setpointC: 60 },
+      2,
+    );
     expect(d.equivalentHAtRef).toBeCloseTo(Math.exp(((300000 / 8.314462618) * 10) / (333.15 * 343.15)), 9);
     expect(d.residualActivity).toBe(1);
   });

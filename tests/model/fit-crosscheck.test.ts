@@ -119,7 +119,6 @@ describe('fit against ml-levenberg-marquardt and an independent covariance', () 
     const s2 = ssrAt(th) / (pts.length - k);
     const cov = (inv(jtj) as number[][]).map((row) => row.map((v) => v * s2));
     for (let a = 0; a < k; a++)
-      for (let b = 0; b < k; b++)
-        expect(Math.abs(m.covariance[a][b] - cov[a][b]) / Math.sqrt(cov[a][a] * cov[b][b]), `cov ${a},${b}`).toBeLessThan(1e-4);
+      for (let b = 0; b < k; b++) expect(Math.abs(m.covariance[a][b] - cov[a][b]) / Math.sqrt(cov[a][a] * cov[b][b]), `cov ${a},${b}`).toBeLessThan(1e-4);
   });
 });

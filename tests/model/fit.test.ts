@@ -118,12 +118,65 @@ describe('fitInactivation', () => {
     expect(far.upperH / far.lowerH).toBeGreaterThan(mid.upperH / mid.lowerH);
   });
   const bad: [string, InactivationPoint[], string, string][] = [
-    ['one temperature', [{ c: 60, h: 1, residual: 0.5 }, { c: 60, h: 2, residual: 0.25 }, { c: 60, h: 3, residual: 0.12 }], 'points', 'needs at least two temperatures'],
-    ['residual <= 0', [{ c: 60, h: 1, residual: 0.5 }, { c: 65, h: 2, residual: 0 }, { c: 60, h: 3, residual: 0.12 }], 'points[1].residual', 'must be a fraction > 0 and <= 1.5 (got 0)'],
-    ['residual > 1.5 (percent)', [{ c: 60, h: 1, residual: 50 }, { c: 65, h: 2, residual: 25 }, { c: 60, h: 3, residual: 12 }], 'points[0].residual', 'must be a fraction > 0 and <= 1.5 (got 50: per cent? give fractions)'],
-    ['no decay', [{ c: 60, h: 1, residual: 1 }, { c: 65, h: 2, residual: 1.02 }, { c: 60, h: 3, residual: 1.01 }], 'points', 'shows no decay'],
-    ['too few points', [{ c: 60, h: 1, residual: 0.5 }, { c: 65, h: 2, residual: 0.25 }], 'points', 'needs at least three points'],
-    ['singular (all at time zero but one)', [{ c: 60, h: 0, residual: 1 }, { c: 65, h: 0, residual: 0.99 }, { c: 65, h: 1, residual: 0.5 }], 'points', 'gives a singular fit'],
+    [
+      'one temperature',
+      [
+        { c: 60, h: 1, residual: 0.5 },
+        { c: 60, h: 2, residual: 0.25 },
+        { c: 60, h: 3, residual: 0.12 },
+      ],
+      'points',
+      'needs at least two temperatures',
+    ],
+    [
+      'residual <= 0',
+      [
+        { c: 60, h: 1, residual: 0.5 },
+        { c: 65, h: 2, residual: 0 },
+        { c: 60, h: 3, residual: 0.12 },
+      ],
+      'points[1].residual',
+      'must be a fraction > 0 and <= 1.5 (got 0)',
+    ],
+    [
+      'residual > 1.5 (percent)',
+      [
+        { c: 60, h: 1, residual: 50 },
+        { c: 65, h: 2, residual: 25 },
+        { c: 60, h: 3, residual: 12 },
+      ],
+      'points[0].residual',
+      'must be a fraction > 0 and <= 1.5 (got 50: per cent? give fractions)',
+    ],
+    [
+      'no decay',
+      [
+        { c: 60, h: 1, residual: 1 },
+        { c: 65, h: 2, residual: 1.02 },
+        { c: 60, h: 3, residual: 1.01 },
+      ],
+      'points',
+      'shows no decay',
+    ],
+    [
+      'too few points',
+      [
+        { c: 60, h: 1, residual: 0.5 },
+        { c: 65, h: 2, residual: 0.25 },
+      ],
+      'points',
+      'needs at least three points',
+    ],
+    [
+      'singular (all at time zero but one)',
+      [
+        { c: 60, h: 0, residual: 1 },
+        { c: 65, h: 0, residual: 0.99 },
+        { c: 65, h: 1, residual: 0.5 },
+      ],
+      'points',
+      'gives a singular fit',
+    ],
   ];
   it.each(bad)('rejects %s with field and rule', (_n, pts, field, rule) => {
     try {

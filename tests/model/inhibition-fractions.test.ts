@@ -1,16 +1,7 @@
 // Inhibition and two-fraction decay inside a batch: the engine's closed forms against science.md's check values
 // and against odex on the raw ODE (tests/model/reference.ts), seeded, over practical and extreme ranges.
 import { describe, expect, it } from 'vitest';
-import {
-  createRng,
-  optimizeProfile,
-  optimizeSetpoint,
-  productFromWork,
-  simulate,
-  thermalDose,
-  type EnzymeParams,
-  type Substrate,
-} from '../../src/model';
+import { createRng, optimizeProfile, optimizeSetpoint, productFromWork, simulate, thermalDose, type EnzymeParams, type Substrate } from '../../src/model';
 import { odexReference } from './reference';
 
 // science.md #11-#12 and #21-#23 are set in mM and minutes; the engine's units are g/L and hours, and the
@@ -55,7 +46,13 @@ describe('inhibition against odex on the raw ODE', () => {
   });
   it('a staged program with both inhibitions agrees with odex', () => {
     const sub = { s0GPerL: 150, kmGPerL: 10, kiGPerL: 15, ksiGPerL: 300 };
-    const temp = { stages: [{ hours: 8, c: 45 }, { hours: 8, c: 48 }, { hours: 8, c: 52 }] };
+    const temp = {
+      stages: [
+        { hours: 8, c: 45 },
+        { hours: 8, c: 48 },
+        { hours: 8, c: 52 },
+      ],
+    };
     const ref = odexReference(enzyme, sub, 24, temp);
     expect(Math.abs(simulate(enzyme, sub, 24, temp).productGPerL / ref.product - 1)).toBeLessThan(1e-9);
   });
@@ -104,8 +101,22 @@ describe('two fractions against odex on the raw ODE', () => {
   it.each(cases)('case $i: setpoint, stages and a ramped log within 1e-9 of odex', ({ e, sub }) => {
     const programs = [
       { setpointC: 52 },
-      { stages: [{ hours: 6, c: 48 }, { hours: 6, c: 53 }, { hours: 12, c: 57 }] },
-      { log: [{ h: 0, c: 20 }, { h: 0.75, c: 50 }, { h: 10, c: 52 }, { h: 20, c: 58 }, { h: 24, c: 40 }] },
+      {
+        stages: [
+          { hours: 6, c: 48 },
+          { hours: 6, c: 53 },
+          { hours: 12, c: 57 },
+        ],
+      },
+      {
+        log: [
+          { h: 0, c: 20 },
+          { h: 0.75, c: 50 },
+          { h: 10, c: 52 },
+          { h: 20, c: 58 },
+          { h: 24, c: 40 },
+        ],
+      },
     ];
     for (const temp of programs) {
       const ref = odexReference(e, sub, 24, temp);
@@ -116,7 +127,11 @@ describe('two fractions against odex on the raw ODE', () => {
   });
   it('dose: the state at the last reading continues the batch exactly, both fractions kept apart', () => {
     const e = cases[0].e;
-    const log = [{ h: 0, c: 25 }, { h: 1, c: 50 }, { h: 8, c: 51 }];
+    const log = [
+      { h: 0, c: 25 },
+      { h: 1, c: 50 },
+      { h: 8, c: 51 },
+    ];
     const d = thermalDose(e, cases[0].sub, log, { setpointC: 53 }, 24);
     expect(d.state.stableActivity).toBeDefined();
     const whole = simulate(e, cases[0].sub, 24, { log: [...log, { h: 8, c: 53 }] });
@@ -152,7 +167,7 @@ describe('two-fraction optimum', () => {
     const o = optimizeSetpoint(e2, sub, 24, [30, 80]);
     for (let c = 30; c <= 80; c += 0.25) expect(f(o.setpointC)).toBeGreaterThanOrEqual(f(c) * (1 - 1e-12));
   });
-  it('seeded two-fraction lots: no setpoint on a 0.02 degC scan of the whole bounds beats the optimum (it searches only between the fractions\' own optima)', () => {
+  it("seeded two-fraction lots: no setpoint on a 0.02 degC scan of the whole bounds beats the optimum (it searches only between the fractions' own optima)", () => {
     const rng = createRng(77);
     for (let trial = 0; trial < 40; trial++) {
       const lot: EnzymeParams = {

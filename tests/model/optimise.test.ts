@@ -1,14 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  createRng,
-  lambertWm1,
-  optimizeProfile,
-  optimizeSetpoint,
-  simulate,
-  stagesWithRamps,
-  workOfStages,
-  type EnzymeParams,
-} from '../../src/model';
+import { createRng, lambertWm1, optimizeProfile, optimizeSetpoint, simulate, stagesWithRamps, workOfStages, type EnzymeParams } from '../../src/model';
 
 const saturating = { s0GPerL: 1e9, kmGPerL: 1e-6 };
 const case14: EnzymeParams = { tRefC: 60, vmaxRef: 1, eaKJPerMol: 50, kdRefPerH: Math.LN2, edKJPerMol: 300 };
@@ -180,7 +171,15 @@ describe('staged profile', () => {
 
 describe('stagesWithRamps', () => {
   it('adds heating and cooling ramps at the vessel limits and keeps the stage clock', () => {
-    const log = stagesWithRamps([{ hours: 2, c: 50 }, { hours: 3, c: 40 }], 20, 60, 20);
+    const log = stagesWithRamps(
+      [
+        { hours: 2, c: 50 },
+        { hours: 3, c: 40 },
+      ],
+      20,
+      60,
+      20,
+    );
     expect(log).toEqual([
       { h: 0, c: 20 },
       { h: 0.5, c: 50 },
@@ -190,12 +189,23 @@ describe('stagesWithRamps', () => {
     ]);
   });
   it('a ramp longer than its stage carries on into the next stage from where it got to', () => {
-    const log = stagesWithRamps([{ hours: 1, c: 80 }, { hours: 1, c: 80 }], 20, 40, 40);
+    const log = stagesWithRamps(
+      [
+        { hours: 1, c: 80 },
+        { hours: 1, c: 80 },
+      ],
+      20,
+      40,
+      40,
+    );
     expect(log[1]).toEqual({ h: 1, c: 60 });
     expect(log[2]).toEqual({ h: 1.5, c: 80 });
   });
   it('a planned profile with ramps makes less than the ideal steps when starting cold', () => {
-    const stages = [{ hours: 12, c: 47 }, { hours: 12, c: 50 }];
+    const stages = [
+      { hours: 12, c: 47 },
+      { hours: 12, c: 50 },
+    ];
     const ideal = simulate(case14, saturating, 24, { stages }).productGPerL;
     const real = simulate(case14, saturating, 24, { log: stagesWithRamps(stages, 20, 10, 10) }).productGPerL;
     expect(real).toBeLessThan(ideal);

@@ -39,8 +39,7 @@ export function program(temp: TemperatureInput, batchH: number): { knots: number
   const at = (h: number) => {
     if (h <= log[0].h) return log[0].c;
     for (let i = 1; i < log.length; i++)
-      if (h <= log[i].h && log[i].h > log[i - 1].h)
-        return log[i - 1].c + ((log[i].c - log[i - 1].c) * (h - log[i - 1].h)) / (log[i].h - log[i - 1].h);
+      if (h <= log[i].h && log[i].h > log[i - 1].h) return log[i - 1].c + ((log[i].c - log[i - 1].c) * (h - log[i - 1].h)) / (log[i].h - log[i - 1].h);
     return log[log.length - 1].c;
   };
   return { knots: [...log.map((r) => r.h).filter((h) => h > 0 && h < batchH), batchH], at };
@@ -63,12 +62,7 @@ function stableKd(e: EnzymeParams, c: number): number {
  * Product (g/L) and activity from odex on the raw ODE: dP/dt = rate(V, a1 + a2, P), da1/dt = -kd a1,
  * da2/dt = -kd2 a2 (a2 = 0 with one fraction), restarting at each knot.
  */
-export function odexReference(
-  e: EnzymeParams,
-  s: Substrate,
-  batchH: number,
-  temp: TemperatureInput,
-): { product: number; activity: number } {
+export function odexReference(e: EnzymeParams, s: Substrate, batchH: number, temp: TemperatureInput): { product: number; activity: number } {
   const midpoint = !('log' in temp);
   const solver = new Solver(3);
   solver.relativeTolerance = 1e-13;

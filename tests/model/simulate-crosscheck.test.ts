@@ -120,12 +120,10 @@ describe('simulate vs mathjs solveODE', () => {
     const { v, k } = rawRates(c.enzyme, setpoint);
     const { s0GPerL: s0, kmGPerL: km } = c.substrate;
     // Scaled state (P/S0, a) so mathjs's absolute tolerance acts as a relative one.
-    const sol = solveODE(
-      (_t: number, y: number[]) => [((v / s0) * y[1] * (1 - y[0])) / (km / s0 + 1 - y[0]), -k * y[1]],
-      [0, c.batchH],
-      [0, 1],
-      { tol: 1e-13, maxIter: 1e6 },
-    );
+    const sol = solveODE((_t: number, y: number[]) => [((v / s0) * y[1] * (1 - y[0])) / (km / s0 + 1 - y[0]), -k * y[1]], [0, c.batchH], [0, 1], {
+      tol: 1e-13,
+      maxIter: 1e6,
+    });
     const last = sol.y[sol.y.length - 1];
     const sim = simulate(c.enzyme, c.substrate, c.batchH, { setpointC: setpoint });
     expect(Math.abs(sim.productGPerL / s0 - last[0])).toBeLessThan(1e-9 + 1e-7 * last[0]);
@@ -164,7 +162,13 @@ describe('extremes give finite, sensible numbers', () => {
     expect(rel(r.productGPerL, (x * 100) / 110)).toBeLessThan(1e-12);
   });
   it('a trajectory ends where simulate ends and starts at zero product', () => {
-    const log = { log: [{ h: 0, c: 30 }, { h: 2, c: 55 }, { h: 20, c: 57 }] };
+    const log = {
+      log: [
+        { h: 0, c: 30 },
+        { h: 2, c: 55 },
+        { h: 20, c: 57 },
+      ],
+    };
     const tr = trajectory(e, { s0GPerL: 100, kmGPerL: 10 }, 24, log, 49);
     const sim = simulate(e, { s0GPerL: 100, kmGPerL: 10 }, 24, log);
     expect(tr).toHaveLength(49);
@@ -176,7 +180,12 @@ describe('extremes give finite, sensible numbers', () => {
     const s = { s0GPerL: 100, kmGPerL: 10 };
     const first = simulate(e, s, 6, { setpointC: 52 });
     const rest = simulate(e, s, 18, { setpointC: 56 }, { workGPerL: first.workGPerL, activity: first.residualActivity });
-    const whole = simulate(e, s, 24, { stages: [{ hours: 6, c: 52 }, { hours: 18, c: 56 }] });
+    const whole = simulate(e, s, 24, {
+      stages: [
+        { hours: 6, c: 52 },
+        { hours: 18, c: 56 },
+      ],
+    });
     expect(rel(rest.productGPerL, whole.productGPerL)).toBeLessThan(1e-13);
   });
 });

@@ -17,11 +17,87 @@ describe('bounded evaluation of the robust setpoint', () => {
   const enzyme = { tRefC: 60, vmaxRef: 8, eaKJPerMol: 50, kdRefPerH: Math.LN2, edKJPerMol: 300 };
   const substrate = { s0GPerL: 200, kmGPerL: 15 };
   const cases: [string, UncertaintyInput][] = [
-    ['the bench case', { enzyme, substrate, batchH: 24, boundsC: [40, 60], covariance: [[0.0004, 0.02], [0.02, 4]], sensorBiasSdC: 0.3, doseRelSd: 0.05, draws: 10000, seed: 1 }],
-    ['wide 3x3 covariance, clamped draws', { enzyme, substrate, batchH: 24, boundsC: [30, 70], covariance: [[0.09, 0.5, 0], [0.5, 900, 0], [0, 0, 400]], sensorBiasSdC: 1, doseRelSd: 0.2, draws: 3000, seed: 7 }],
-    ['candidates inside wider bounds', { enzyme: { ...enzyme, kdRefPerH: 0.05 }, substrate, batchH: 48, boundsC: [55, 75], candidatesC: [62, 64, 66, 68], covariance: [[0.01, 0.1], [0.1, 9]], draws: 5000, seed: 3 }],
-    ['activity gone long before the end (kd t far above 40)', { enzyme: { ...enzyme, kdRefPerH: 50 }, substrate, batchH: 200, boundsC: [40, 80], covariance: [[0.04, 0], [0, 25]], draws: 2000, seed: 11 }],
-    ['hardly any loss (kd t far below e^-40)', { enzyme: { ...enzyme, kdRefPerH: 1e-25 }, substrate, batchH: 10, boundsC: [20, 40], covariance: [[0.04, 0], [0, 25]], draws: 2000, seed: 12 }],
+    [
+      'the bench case',
+      {
+        enzyme,
+        substrate,
+        batchH: 24,
+        boundsC: [40, 60],
+        covariance: [
+          [0.0004, 0.02],
+          [0.02, 4],
+        ],
+        sensorBiasSdC: 0.3,
+        doseRelSd: 0.05,
+        draws: 10000,
+        seed: 1,
+      },
+    ],
+    [
+      'wide 3x3 covariance, clamped draws',
+      {
+        enzyme,
+        substrate,
+        batchH: 24,
+        boundsC: [30, 70],
+        covariance: [
+          [0.09, 0.5, 0],
+          [0.5, 900, 0],
+          [0, 0, 400],
+        ],
+        sensorBiasSdC: 1,
+        doseRelSd: 0.2,
+        draws: 3000,
+        seed: 7,
+      },
+    ],
+    [
+      'candidates inside wider bounds',
+      {
+        enzyme: { ...enzyme, kdRefPerH: 0.05 },
+        substrate,
+        batchH: 48,
+        boundsC: [55, 75],
+        candidatesC: [62, 64, 66, 68],
+        covariance: [
+          [0.01, 0.1],
+          [0.1, 9],
+        ],
+        draws: 5000,
+        seed: 3,
+      },
+    ],
+    [
+      'activity gone long before the end (kd t far above 40)',
+      {
+        enzyme: { ...enzyme, kdRefPerH: 50 },
+        substrate,
+        batchH: 200,
+        boundsC: [40, 80],
+        covariance: [
+          [0.04, 0],
+          [0, 25],
+        ],
+        draws: 2000,
+        seed: 11,
+      },
+    ],
+    [
+      'hardly any loss (kd t far below e^-40)',
+      {
+        enzyme: { ...enzyme, kdRefPerH: 1e-25 },
+        substrate,
+        batchH: 10,
+        boundsC: [20, 40],
+        covariance: [
+          [0.04, 0],
+          [0, 25],
+        ],
+        draws: 2000,
+        seed: 12,
+      },
+    ],
   ];
   for (const [name, input] of cases)
     it(`${name}: the same result as evaluating every draw`, () => {

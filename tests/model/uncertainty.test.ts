@@ -51,7 +51,12 @@ describe('seeded random numbers', () => {
     expect(back[0][0]).toBeCloseTo(0.0004, 15);
     expect(back[1][0]).toBeCloseTo(0.02, 15);
     expect(back[1][1]).toBeCloseTo(4, 12);
-    expect(cholesky([[1, 2], [2, 1]])).toBeNull();
+    expect(
+      cholesky([
+        [1, 2],
+        [2, 1],
+      ]),
+    ).toBeNull();
   });
   it('quantiles by selection equal quantiles of the sorted values, ties included', () => {
     const r = createRng(21);
@@ -71,7 +76,11 @@ describe('seeded random numbers', () => {
       const sd = Array.from({ length: n }, () => 1 + 5 * r.uniform());
       const w = (i: number, c: number) => A[i] * Math.exp(-(((c - m[i]) / sd[i]) ** 2));
       const map = (x: number) => Math.sqrt(x);
-      for (const [a, b] of [[46, 50], [40, 60], [49.9, 50]]) {
+      for (const [a, b] of [
+        [46, 50],
+        [40, 60],
+        [49.9, 50],
+      ]) {
         const col = (c: number) => Float64Array.from({ length: n }, (_, i) => w(i, c));
         let evaluated = 0;
         const q = bracketQuantile(n, 0.1, a, b, col(a), col(b), m, (i, c) => (evaluated++, w(i, c)), map);
@@ -98,7 +107,14 @@ describe('monteCarlo', () => {
     expect(monteCarlo({ ...base, seed: 6 })).not.toEqual(a);
   });
   it('zero covariance: every draw has the nominal optimum and product', () => {
-    const r = monteCarlo({ ...base, covariance: [[0, 0], [0, 0]], draws: 200 });
+    const r = monteCarlo({
+      ...base,
+      covariance: [
+        [0, 0],
+        [0, 0],
+      ],
+      draws: 200,
+    });
     const nominal = optimizeSetpoint(enzyme, substrate, 24, [40, 60]);
     expect(r.optimum.p10).toBeCloseTo(nominal.setpointC, 9);
     expect(r.optimum.p90).toBeCloseTo(nominal.setpointC, 9);
@@ -118,7 +134,14 @@ describe('monteCarlo', () => {
     expect(r.optimum.p10).toBeLessThan(r.optimum.p90);
   });
   it('with uncertain stability the robust setpoint sits below the nominal optimum (a cooler, safer choice)', () => {
-    const r = monteCarlo({ ...base, covariance: [[0.09, 0], [0, 400]], draws: 4000 });
+    const r = monteCarlo({
+      ...base,
+      covariance: [
+        [0.09, 0],
+        [0, 400],
+      ],
+      draws: 4000,
+    });
     expect(r.robust!.setpointC).toBeLessThan(r.nominal.setpointC);
   });
   it('the spread of the optimum grows with the covariance', () => {
@@ -155,15 +178,40 @@ describe('monteCarlo', () => {
   });
   it('Equilibrium Model draws (no closed form): zero covariance gives the nominal optimum', () => {
     const em = { ...enzyme, equilibrium: { teqC: 55, dHeqKJPerMol: 200 } };
-    const r = monteCarlo({ ...base, enzyme: em, covariance: [[0, 0], [0, 0]], draws: 50, robust: false });
+    const r = monteCarlo({
+      ...base,
+      enzyme: em,
+      covariance: [
+        [0, 0],
+        [0, 0],
+      ],
+      draws: 50,
+      robust: false,
+    });
     const nominal = optimizeSetpoint(em, substrate, 24, [40, 60]).setpointC;
     expect(Math.abs(r.optimum.p50 - nominal)).toBeLessThan(1e-4);
   });
   it('rejects a covariance that is not positive semi-definite', () => {
-    expect(() => monteCarlo({ ...base, covariance: [[1, 3], [3, 1]] })).toThrow(ModelInputError);
+    expect(() =>
+      monteCarlo({
+        ...base,
+        covariance: [
+          [1, 3],
+          [3, 1],
+        ],
+      }),
+    ).toThrow(ModelInputError);
   });
   it('a 3x3 covariance draws Ea too: the optimum then moves with Ea', () => {
-    const r = monteCarlo({ ...base, robust: false, covariance: [[0, 0, 0], [0, 0, 0], [0, 0, 25]] });
+    const r = monteCarlo({
+      ...base,
+      robust: false,
+      covariance: [
+        [0, 0, 0],
+        [0, 0, 0],
+        [0, 0, 25],
+      ],
+    });
     expect(r.optimum.p90 - r.optimum.p10).toBeGreaterThan(0.5);
   });
 });

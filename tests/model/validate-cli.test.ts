@@ -11,19 +11,38 @@ const substrate = { s0GPerL: 100, kmGPerL: 5 };
 describe('input rules', () => {
   it.each([
     ['missing enzyme', { substrate, batchH: 1, temperature: { setpointC: 50 } }, 'enzyme: must be an object'],
-    ['negative kd', { enzyme: { ...enzyme, kdRefPerH: -1 }, substrate, batchH: 1, temperature: { setpointC: 50 } }, 'enzyme.kdRefPerH: must be between 0 and 1000000'],
-    ['Km zero', { enzyme, substrate: { s0GPerL: 1, kmGPerL: 0 }, batchH: 1, temperature: { setpointC: 50 } }, 'substrate.kmGPerL: must be between 1e-9 and 1000000000'],
+    [
+      'negative kd',
+      { enzyme: { ...enzyme, kdRefPerH: -1 }, substrate, batchH: 1, temperature: { setpointC: 50 } },
+      'enzyme.kdRefPerH: must be between 0 and 1000000',
+    ],
+    [
+      'Km zero',
+      { enzyme, substrate: { s0GPerL: 1, kmGPerL: 0 }, batchH: 1, temperature: { setpointC: 50 } },
+      'substrate.kmGPerL: must be between 1e-9 and 1000000000',
+    ],
     ['batch zero', { enzyme, substrate, batchH: 0, temperature: { setpointC: 50 } }, 'batchH: must be > 0'],
     ['kelvin setpoint', { enzyme, substrate, batchH: 1, temperature: { setpointC: 323 } }, 'temperature.setpointC: must be between -50 and 250'],
-    ['two temperature kinds', { enzyme, substrate, batchH: 1, temperature: { setpointC: 50, stages: [] } }, 'temperature: must have exactly one of setpointC, stages, log'],
+    [
+      'two temperature kinds',
+      { enzyme, substrate, batchH: 1, temperature: { setpointC: 50, stages: [] } },
+      'temperature: must have exactly one of setpointC, stages, log',
+    ],
     ['string number', { enzyme: { ...enzyme, vmaxRef: '2' }, substrate, batchH: 1, temperature: { setpointC: 50 } }, 'enzyme.vmaxRef: must be a finite number'],
   ])('%s', (_n, input, message) => {
     expect(ruleOf(() => validateSimulateInput(input))).toBe(message);
   });
   it('log readings must not go back in time', () => {
-    expect(ruleOf(() => validateTemperature({ log: [{ h: 1, c: 50 }, { h: 0.5, c: 50 }] }))).toBe(
-      'temperature.log[1].h: must not be earlier than the reading before it',
-    );
+    expect(
+      ruleOf(() =>
+        validateTemperature({
+          log: [
+            { h: 1, c: 50 },
+            { h: 0.5, c: 50 },
+          ],
+        }),
+      ),
+    ).toBe('temperature.log[1].h: must not be earlier than the reading before it');
   });
   it('profile stages must be a whole number', () => {
     expect(ruleOf(() => validateProfileInput({ enzyme, substrate, batchH: 24, boundsC: [40, 60], stages: 2.5, maxStepC: 1 }))).toBe(
@@ -76,10 +95,34 @@ describe('command line', () => {
       },
       ['kdRefPerH', 'edKJPerMol', 'halfLifeRefH', 'se'],
     ],
-    ['dose', { enzyme: enz, substrate, batchH: 24, log: [{ h: 0, c: 20 }, { h: 1, c: 50 }], plan: { setpointC: 50 } }, ['equivalentHAtRef', 'forecastProductGPerL']],
+    [
+      'dose',
+      {
+        enzyme: enz,
+        substrate,
+        batchH: 24,
+        log: [
+          { h: 0, c: 20 },
+          { h: 1, c: 50 },
+        ],
+        plan: { setpointC: 50 },
+      },
+      ['equivalentHAtRef', 'forecastProductGPerL'],
+    ],
     [
       'uncertainty',
-      { enzyme: enz, substrate, batchH: 24, boundsC: [40, 60], covariance: [[0.001, 0.01], [0.01, 4]], draws: 300, seed: 2 },
+      {
+        enzyme: enz,
+        substrate,
+        batchH: 24,
+        boundsC: [40, 60],
+        covariance: [
+          [0.001, 0.01],
+          [0.01, 4],
+        ],
+        draws: 300,
+        seed: 2,
+      },
       ['candidates', 'robust', 'optimum'],
     ],
     [
@@ -102,13 +145,38 @@ describe('command line', () => {
     for (const f of fields) expect(out).toHaveProperty(f);
   });
   it('simulate on the command line equals the library call', () => {
-    const input = { enzyme: enz, substrate, batchH: 24, temperature: { stages: [{ hours: 12, c: 48 }, { hours: 12, c: 51 }] } };
+    const input = {
+      enzyme: enz,
+      substrate,
+      batchH: 24,
+      temperature: {
+        stages: [
+          { hours: 12, c: 48 },
+          { hours: 12, c: 51 },
+        ],
+      },
+    };
     const out = JSON.parse(cli('simulate', input).stdout);
     expect(out.productGPerL).toBe(simulate(enz, substrate, 24, input.temperature).productGPerL);
   });
   it.each([
-    ['simulate', { enzyme: { ...enz, edKJPerMol: -5 }, substrate, batchH: 24, temperature: { setpointC: 50 } }, 'enzyme.edKJPerMol: must be between 0 and 3000'],
-    ['fit', { tRefC: 60, points: [{ c: 60, h: 1, residual: 0.5 }, { c: 60, h: 2, residual: 0.3 }, { c: 60, h: 3, residual: 0.2 }] }, 'points: needs at least two temperatures'],
+    [
+      'simulate',
+      { enzyme: { ...enz, edKJPerMol: -5 }, substrate, batchH: 24, temperature: { setpointC: 50 } },
+      'enzyme.edKJPerMol: must be between 0 and 3000',
+    ],
+    [
+      'fit',
+      {
+        tRefC: 60,
+        points: [
+          { c: 60, h: 1, residual: 0.5 },
+          { c: 60, h: 2, residual: 0.3 },
+          { c: 60, h: 3, residual: 0.2 },
+        ],
+      },
+      'points: needs at least two temperatures',
+    ],
     ['simulate', 'not json', 'input: must be one JSON object'],
     ['explode', {}, 'command: must be one of simulate, optimize, profile, fit, fit-rates, convert, dose, uncertainty, economics, calibrate'],
   ])('%s with bad input exits 2 with one stderr line and no stdout', (command, input, line) => {

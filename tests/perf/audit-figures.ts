@@ -17,13 +17,18 @@ const ms = (t0: bigint) => Number(process.hrtime.bigint() - t0) / 1e6;
 // A chain as the code before the key wrote it (plain SHA-256 links), site-less so no site rows are needed.
 const db = openDb(file);
 migrateDb(db);
-const ins = db.$client.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (null, null, ?, ?, ?, null, null, ?, ?, ?, ?)');
+const ins = db.$client.prepare(
+  'insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (null, null, ?, ?, ?, null, null, ?, ?, ?, ?)',
+);
 let prev = '0'.repeat(64);
 db.$client.transaction(() => {
   for (let i = 0; i < N; i++) {
     const at = new Date(Date.UTC(2026, 0, 1) + i * 1000).toISOString();
     const nv = { from: `10.0.${(i >> 8) & 255}.${i & 255}`, reason: 'wrong password' };
-    const h = crypto.createHash('sha256').update(JSON.stringify([null, null, `u${i % 50}@plant.test`, 'sign-in.failed', 'session', null, null, nv, at, prev])).digest('hex');
+    const h = crypto
+      .createHash('sha256')
+      .update(JSON.stringify([null, null, `u${i % 50}@plant.test`, 'sign-in.failed', 'session', null, null, nv, at, prev]))
+      .digest('hex');
     ins.run(`u${i % 50}@plant.test`, 'sign-in.failed', 'session', JSON.stringify(nv), at, prev, h);
     prev = h;
   }
@@ -41,7 +46,9 @@ t0 = process.hrtime.bigint();
 const v = verifyAudit(again, null);
 const verifyMs = ms(t0);
 again.$client.close();
-console.log(`audit chain of ${N.toLocaleString('en')} events: legacy check + re-link ${relinkMs.toFixed(0)} ms, one checkpoint ${sealMs.toFixed(1)} ms, verify (links + checkpoints) ${verifyMs.toFixed(0)} ms, ok=${v.ok}`);
+console.log(
+  `audit chain of ${N.toLocaleString('en')} events: legacy check + re-link ${relinkMs.toFixed(0)} ms, one checkpoint ${sealMs.toFixed(1)} ms, verify (links + checkpoints) ${verifyMs.toFixed(0)} ms, ok=${v.ok}`,
+);
 fs.rmSync(dir, { recursive: true, force: true });
 
 // A guesser trying one account every 100 ms for an hour against the defaults (5 free, 1 s doubling to 60 s).

@@ -27,10 +27,14 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
   // LOAD_PLANT=sampled (default): the server measures a tag when it samples it; set: the plant sets the tags on its
   // own 1 s clock and the server samples the last value set (up to a second old by then).
   const mode = process.env.LOAD_PLANT === 'set' ? 'set' : 'sampled';
-  const child = fork(path.join(__dirname, 'plant-process.ts'), [String(opts.tags), path.join(os.tmpdir(), 'yieldpoint-test-plant-pki'), 'reader', 'load-password-1', mode], {
-    execArgv: ['--import', 'tsx'],
-    stdio: ['ignore', 'ignore', 'inherit', 'ipc'],
-  });
+  const child = fork(
+    path.join(__dirname, 'plant-process.ts'),
+    [String(opts.tags), path.join(os.tmpdir(), 'yieldpoint-test-plant-pki'), 'reader', 'load-password-1', mode],
+    {
+      execArgv: ['--import', 'tsx'],
+      stdio: ['ignore', 'ignore', 'inherit', 'ipc'],
+    },
+  );
   const ask = <T>(cmd?: string) =>
     new Promise<T>((resolve) => {
       child.once('message', (m) => resolve(m as T));
@@ -47,7 +51,14 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
     {
       file: path.join(dir, 'load.db'),
       now: new Date(),
-      controlLink: (db, clock) => (link = startControlLink({ db, clock, pki, reconcileMs: 0, onStored: (src, received, stored) => (delays.push(stored - src), ownDelays.push(stored - received)) })),
+      controlLink: (db, clock) =>
+        (link = startControlLink({
+          db,
+          clock,
+          pki,
+          reconcileMs: 0,
+          onStored: (src, received, stored) => (delays.push(stored - src), ownDelays.push(stored - received)),
+        })),
     },
   );
   // The test clock stands still unless moved: follow the wall clock, as the server's does.
@@ -62,8 +73,16 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
     upsertLinkSettings(db, { siteId: running.siteId, samplingIntervalMs: 1000, deadbandC: 0, updatedAt: now });
     const batchOf = new Map<string, number>();
     for (const tag of tags) {
-      const v = db.insert(vessels).values({ siteId: running.siteId, name: tag, workingVolumeL: 1000, minC: 20, maxC: 75, maxHeatCPerH: 12, maxCoolCPerH: 8, hygienicMinC: 50 }).returning().get();
-      const b = db.insert(batches).values({ ...running, id: undefined, vesselId: v.id, startedAt, createdAt: undefined }).returning().get();
+      const v = db
+        .insert(vessels)
+        .values({ siteId: running.siteId, name: tag, workingVolumeL: 1000, minC: 20, maxC: 75, maxHeatCPerH: 12, maxCoolCPerH: 8, hygienicMinC: 50 })
+        .returning()
+        .get();
+      const b = db
+        .insert(batches)
+        .values({ ...running, id: undefined, vesselId: v.id, startedAt, createdAt: undefined })
+        .returning()
+        .get();
       batchOf.set(tag, b.id);
       upsertVesselSource(db, {
         siteId: running.siteId,
@@ -91,7 +110,8 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
     );
     const cpu0 = process.cpuUsage();
     // Under --cpu-prof: the window's bounds on the profile's clock (microseconds), to read the profile of the run alone.
-    const mark = (what: string) => process.execArgv.some((a) => a.startsWith('--cpu-prof')) && console.log(`profile mark ${what} ${process.hrtime.bigint() / 1000n}`);
+    const mark = (what: string) =>
+      process.execArgv.some((a) => a.startsWith('--cpu-prof')) && console.log(`profile mark ${what} ${process.hrtime.bigint() / 1000n}`);
     mark('start');
     const wall0 = performance.now();
 
@@ -106,7 +126,11 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
             overallRate: 40,
             duration: opts.seconds,
             headers: { cookie: c.cookie!, 'x-yieldpoint-client': 'load' },
-            requests: [{ method: 'GET', path: '/api/vessels' }, { method: 'GET', path: `/api/batches/${running.id}` }, { method: 'GET', path: '/api/control-link/status' }],
+            requests: [
+              { method: 'GET', path: '/api/vessels' },
+              { method: 'GET', path: `/api/batches/${running.id}` },
+              { method: 'GET', path: '/api/control-link/status' },
+            ],
           },
           (err, r) => (err ? reject(err) : resolve(r)),
         ),
@@ -125,7 +149,7 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
         .get()!;
     // Let the last publish and commits land: until every value is stored, or nothing more arrives for 3 s.
     let stored = count();
-    for (let quiet = 0; stored.n < written && quiet < 6; ) {
+    for (let quiet = 0; stored.n < written && quiet < 6;) {
       await new Promise((r) => setTimeout(r, 500));
       const now2 = count();
       quiet = now2.n === stored.n ? quiet + 1 : 0;
@@ -134,8 +158,12 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
     console.log(
       `written ${written}, stored ${stored.n} (distinct ${stored.distinct}), lost ${written - stored.n}; source time to stored p50 ${pct(delays, 50)} ms, p99 ${pct(delays, 99)} ms, max ${pct(delays, 100)} ms; arrival to stored p50 ${pct(ownDelays, 50)} ms, p99 ${pct(ownDelays, 99)} ms`,
     );
-    console.log(`app process CPU meanwhile (link, ingest, requests and the load client): ${((cpu.user + cpu.system) / 1000 / wallS).toFixed(0)} ms per s; load average now ${os.loadavg()[0]!.toFixed(1)}`);
-    console.log(`other requests meanwhile: ${reads.requests.total} at ${reads.requests.average.toFixed(0)}/s, p50 ${reads.latency.p50} ms, p99 ${reads.latency.p99} ms, max ${reads.latency.max} ms, non-2xx ${reads.non2xx}`);
+    console.log(
+      `app process CPU meanwhile (link, ingest, requests and the load client): ${((cpu.user + cpu.system) / 1000 / wallS).toFixed(0)} ms per s; load average now ${os.loadavg()[0]!.toFixed(1)}`,
+    );
+    console.log(
+      `other requests meanwhile: ${reads.requests.total} at ${reads.requests.average.toFixed(0)}/s, p50 ${reads.latency.p50} ms, p99 ${reads.latency.p99} ms, max ${reads.latency.max} ms, non-2xx ${reads.non2xx}`,
+    );
   } finally {
     await link?.close();
     await app.close();

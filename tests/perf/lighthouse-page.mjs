@@ -12,7 +12,13 @@ const failures = [];
 for (let attempt = 0; valid.length < runs && attempt < runs + 2; attempt++) {
   const result = await lighthouse(
     url,
-    { port: Number(port), output: 'json', logLevel: 'error', onlyCategories: ['performance', 'accessibility'], extraHeaders: cookie ? { Cookie: cookie } : undefined },
+    {
+      port: Number(port),
+      output: 'json',
+      logLevel: 'error',
+      onlyCategories: ['performance', 'accessibility'],
+      extraHeaders: cookie ? { Cookie: cookie } : undefined,
+    },
     form === 'desktop' ? desktopConfig : undefined,
   );
   const lhr = result.lhr;
@@ -42,7 +48,9 @@ process.stdout.write(
         lcpMs: lhr.audits['largest-contentful-paint'].numericValue,
         tbtMs: lhr.audits['total-blocking-time'].numericValue,
         cls: lhr.audits['cumulative-layout-shift'].numericValue,
-        failedA11y: Object.values(lhr.audits).filter((a) => a.score === 0 && a11yIds.has(a.id)).map((a) => a.id),
+        failedA11y: Object.values(lhr.audits)
+          .filter((a) => a.score === 0 && a11yIds.has(a.id))
+          .map((a) => a.id),
       };
     }),
   }),

@@ -23,14 +23,33 @@ const FORMS = (process.env.LIGHTHOUSE_FORMS?.split(',') ?? ['mobile', 'desktop']
 const RUNS = Math.max(1, Number(process.env.LIGHTHOUSE_RUNS ?? 5));
 const BUDGET = { performance: 0.9, lcpMs: 2500, tbtMs: 200, cls: 0.1, accessibility: 1 };
 
-type Row = { page: string; form: 'mobile' | 'desktop'; performance: number; lcpMs: number; tbtMs: number; tbtRangeMs: [number, number]; cls: number; accessibility: number; failing: string[] };
+type Row = {
+  page: string;
+  form: 'mobile' | 'desktop';
+  performance: number;
+  lcpMs: number;
+  tbtMs: number;
+  tbtRangeMs: [number, number];
+  cls: number;
+  accessibility: number;
+  failing: string[];
+};
 
 async function main() {
   await ensureWebBuild(ROOT, 'dist', readEnv().webPipeline);
   const server = await startServer();
   const chrome = await chromeLauncher.launch({
     chromePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    chromeFlags: ['--headless=new', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+    chromeFlags: [
+      '--headless=new',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
   });
   const rows: Row[] = [];
   try {
@@ -50,10 +69,22 @@ async function main() {
       for (const form of FORMS) {
         type Run = { performance: number; accessibility: number; lcpMs: number; tbtMs: number; cls: number; failedA11y: string[] };
         const out: { runtimeError: string | null; runs: Run[] } = JSON.parse(
-          execFileSync(process.execPath, [path.join(__dirname, 'lighthouse-page.mjs'), `${server.baseURL}${p.path}`, String(chrome.port), form, cookie ?? '', REPORTS ? path.join(REPORTS, `${p.page.replace(/ /g, '-')}-${form}.json`) : '', String(RUNS)], {
-            encoding: 'utf8',
-            maxBuffer: 64 * 1024 * 1024,
-          }),
+          execFileSync(
+            process.execPath,
+            [
+              path.join(__dirname, 'lighthouse-page.mjs'),
+              `${server.baseURL}${p.path}`,
+              String(chrome.port),
+              form,
+              cookie ?? '',
+              REPORTS ? path.join(REPORTS, `${p.page.replace(/ /g, '-')}-${form}.json`) : '',
+              String(RUNS),
+            ],
+            {
+              encoding: 'utf8',
+              maxBuffer: 64 * 1024 * 1024,
+            },
+          ),
         );
         if (out.runtimeError) throw new Error(`${p.page} ${form}: ${out.runtimeError}`);
         const mid = (pick: (r: Run) => number) => median(out.runs.map(pick)) as number;

@@ -40,7 +40,8 @@ const user = (role: string) => DEMO_USERS.find((u) => u.role === role)!;
 
 async function main() {
   if (ONLY_MIX !== 'opcua') await httpLoad();
-  if (!ONLY_MIX || ONLY_MIX === 'opcua') await controlLinkLoad({ tags: Number(process.env.LOAD_TAGS ?? 200), seconds: Number(process.env.LOAD_LINK_SECONDS ?? 60) });
+  if (!ONLY_MIX || ONLY_MIX === 'opcua')
+    await controlLinkLoad({ tags: Number(process.env.LOAD_TAGS ?? 200), seconds: Number(process.env.LOAD_LINK_SECONDS ?? 60) });
 }
 
 async function httpLoad() {
@@ -54,7 +55,9 @@ async function httpLoad() {
     const engineer = await sessionCookie(server.baseURL, user('engineer').email, user('engineer').password);
     const operator = await sessionCookie(server.baseURL, user('operator').email, user('operator').password);
     const headers = { cookie: operator, 'x-yieldpoint-client': 'load' };
-    const batches = (await (await fetch(`${server.baseURL}/api/batches`, { headers })).json()) as { batches: { id: number; state: string; startedAt: string }[] };
+    const batches = (await (await fetch(`${server.baseURL}/api/batches`, { headers })).json()) as {
+      batches: { id: number; state: string; startedAt: string }[];
+    };
     const running = batches.batches.find((b) => b.state === 'running');
     if (!running) throw new Error('the demo site has no running batch');
     const storedReadings = async () =>
@@ -85,7 +88,9 @@ async function httpLoad() {
         ],
       },
     ];
-    console.log(`Load on ${server.baseURL}, ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores (figures from a busy machine are not the product's)\n`);
+    console.log(
+      `Load on ${server.baseURL}, ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores (figures from a busy machine are not the product's)\n`,
+    );
     console.log('mix        conns   req/s    p50 ms  p99 ms  max ms  errors  timeouts  non-2xx');
     for (const mix of mixes.filter((m) => !ONLY_MIX || m.name === ONLY_MIX)) {
       for (const connections of [50, 200]) {
@@ -122,7 +127,12 @@ function longTurns(file: string, fromMs: number, toMs: number): string {
     .filter(([at]) => at >= fromMs && at <= toMs)
     .map(([, ms]) => ms)
     .sort((a, b) => b - a);
-  return `${held.length} turns over 20 ms (${held.filter((ms) => ms > 50).length} over 50 ms), longest ${held.slice(0, 5).map((ms) => ms.toFixed(0)).join(', ') || '-'} ms`;
+  return `${held.length} turns over 20 ms (${held.filter((ms) => ms > 50).length} over 50 ms), longest ${
+    held
+      .slice(0, 5)
+      .map((ms) => ms.toFixed(0))
+      .join(', ') || '-'
+  } ms`;
 }
 
 async function importMix(baseURL: string, reads: Mix, operator: string, running: { id: number; startedAt: string }, turnsFile: string) {
@@ -154,7 +164,12 @@ async function importMix(baseURL: string, reads: Mix, operator: string, running:
     return body.imported ?? 0;
   });
   // The reads run as long as the import does, its storing included.
-  const r = await run(baseURL, reads, 20, upload.catch(() => 0));
+  const r = await run(
+    baseURL,
+    reads,
+    20,
+    upload.catch(() => 0),
+  );
   const imported = await upload;
   console.log(
     `\nimport mix: ${rows.toLocaleString('en')} rows (${(csv.length / 1e6).toFixed(1)} MB) imported ${imported.toLocaleString('en')} in ${(importMs / 1000).toFixed(1)} s; ` +

@@ -19,7 +19,12 @@ async function main() {
     written++;
     return 59 + 0.5 * Math.sin(at.getTime() / 7000 + index.get(tag)!);
   };
-  const plant = await startPlant({ pkiFolder: pkiFolder!, users: [{ userName: userName!, password: password! }], tags, ...(mode === 'sampled' ? { measure } : {}) });
+  const plant = await startPlant({
+    pkiFolder: pkiFolder!,
+    users: [{ userName: userName!, password: password! }],
+    tags,
+    ...(mode === 'sampled' ? { measure } : {}),
+  });
   let ticker: ReturnType<typeof setInterval> | null = null;
   process.on('message', async (m: Msg) => {
     if (m.cmd === 'start' && mode === 'sampled') running = true;

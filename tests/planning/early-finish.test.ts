@@ -35,7 +35,10 @@ describe('the hour conversion completes', () => {
     // At S = (1 - 0.999) S0 that gives t = -ln(1 - kd W / Vmax) / kd, W = 0.999 S0 + Km ln 1000.
     const enzyme = { tRefC: 60, vmaxRef: 9, eaKJPerMol: 55, kdRefPerH: 0.02, edKJPerMol: 300 };
     const substrate = { s0GPerL: 300, kmGPerL: 2 };
-    const log = [{ h: 0, c: 60 }, { h: 96, c: 60 }];
+    const log = [
+      { h: 0, c: 60 },
+      { h: 96, c: 60 },
+    ];
     const w = COMPLETE_CONVERSION * 300 + 2 * Math.log(1 / (1 - COMPLETE_CONVERSION));
     const expected = -Math.log(1 - (0.02 * w) / 9) / 0.02;
     expect(conversionCompleteAtH(enzyme, substrate, 96, log)).toBeCloseTo(expected, 6);
@@ -60,7 +63,11 @@ describe('the batch that finishes early', () => {
     expect(e.shorterProfitPerH).toBeGreaterThan(e.fullProfitPerH);
     expect(e.fullProfitPerH).toBeCloseTo(o.profitPerH, 9);
     const reasons = planReasons(o, planSeries(ev, inputs({ doseGPerL: 0.9 })), 48, 6);
-    expect(reasons[0]).toMatch(new RegExp(`^The substrate is fully converted by hour ${e.completeAtH.toFixed(1)} at 59\\.0 °C; .* would earn ${e.shorterProfitPerH.toFixed(0)} per reactor hour`));
+    expect(reasons[0]).toMatch(
+      new RegExp(
+        `^The substrate is fully converted by hour ${e.completeAtH.toFixed(1)} at 59\\.0 °C; .* would earn ${e.shorterProfitPerH.toFixed(0)} per reactor hour`,
+      ),
+    );
     expect(reasons.join(' ')).toMatch(/No setpoint change/);
   });
 

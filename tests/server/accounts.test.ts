@@ -92,7 +92,9 @@ describe('inviting', () => {
     expect((await admin.patch(`/api/users/${target.id}`, { isActive: false })).status).toBe(200);
     const res = await admin.post('/api/invites', { email: email('procurement'), role: 'procurement' });
     expect(res.status).toBe(201);
-    const token = /accept-invite\?token=([\w-]+)/.exec((await t.sink.waitFor((m) => m.to.includes(email('procurement')) && /invited/.test(m.subject))).text)![1]!;
+    const token = /accept-invite\?token=([\w-]+)/.exec(
+      (await t.sink.waitFor((m) => m.to.includes(email('procurement')) && /invited/.test(m.subject))).text,
+    )![1]!;
     expect((await t.client().post('/api/invites/accept', { token, name: 'Back Again', password: 'back-again-password' })).status).toBe(201);
     const signIn = await signInWith(email('procurement'), 'back-again-password');
     expect(signIn.status).toBe(201);
@@ -108,7 +110,11 @@ const env = (vars: Record<string, string>) => vars as NodeJS.ProcessEnv;
 
 describe('set-up', () => {
   it('create-admin keeps a password holding "=" whole', () => {
-    expect(cliArgs(['--password=abcdefghijkl=mnop', '--site=Plant = North', '--name='])).toEqual({ password: 'abcdefghijkl=mnop', site: 'Plant = North', name: '' });
+    expect(cliArgs(['--password=abcdefghijkl=mnop', '--site=Plant = North', '--name='])).toEqual({
+      password: 'abcdefghijkl=mnop',
+      site: 'Plant = North',
+      name: '',
+    });
   });
 
   it('the session cookie is Secure by default when PUBLIC_URL is https, and COOKIE_SECURE still decides when set', () => {

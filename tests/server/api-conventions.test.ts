@@ -20,8 +20,18 @@ describe('every API route declares its roles', () => {
   });
 
   it('only signing in, asking who is signed in, taking up an invite or a reset link and the return from the payment page are open', () => {
-    const open = listApiRoutes(t.mounts).filter((r) => r.roles === 'public').map((r) => `${r.method} ${r.path}`);
-    expect(open.sort()).toEqual(['GET /api/billing/return', 'GET /api/session', 'POST /api/invites/accept', 'POST /api/invites/preview', 'POST /api/password-resets', 'POST /api/password-resets/preview', 'POST /api/session']);
+    const open = listApiRoutes(t.mounts)
+      .filter((r) => r.roles === 'public')
+      .map((r) => `${r.method} ${r.path}`);
+    expect(open.sort()).toEqual([
+      'GET /api/billing/return',
+      'GET /api/session',
+      'POST /api/invites/accept',
+      'POST /api/invites/preview',
+      'POST /api/password-resets',
+      'POST /api/password-resets/preview',
+      'POST /api/session',
+    ]);
   });
 
   it('refuses signed-out callers with 401 on every guarded route', async () => {
@@ -34,7 +44,10 @@ describe('every API route declares its roles', () => {
   });
 
   it('refuses every role not in the list with 403, and lets listed roles through', async () => {
-    const clients = Object.fromEntries(await Promise.all(ROLES.map(async (role) => [role, await t.signIn(role)]))) as Record<Role, Awaited<ReturnType<TestApp['signIn']>>>;
+    const clients = Object.fromEntries(await Promise.all(ROLES.map(async (role) => [role, await t.signIn(role)]))) as Record<
+      Role,
+      Awaited<ReturnType<TestApp['signIn']>>
+    >;
     for (const r of listApiRoutes(t.mounts).filter((r) => r.roles !== 'public' && r.path !== '/api/session')) {
       for (const role of ROLES) {
         const res = await clients[role].req(r.method, concrete(r.path), r.method === 'GET' ? undefined : {});
@@ -91,7 +104,11 @@ describe('errors', () => {
 
   it('refuses writes without the client header, and cross-site writes', async () => {
     const c = await t.signIn('admin');
-    const noHeader = await fetch(`${t.base}/api/session`, { method: 'PATCH', headers: { cookie: c.cookie!, 'content-type': 'application/json' }, body: '{"cautionsAcknowledged":true}' });
+    const noHeader = await fetch(`${t.base}/api/session`, {
+      method: 'PATCH',
+      headers: { cookie: c.cookie!, 'content-type': 'application/json' },
+      body: '{"cautionsAcknowledged":true}',
+    });
     expect(noHeader.status).toBe(403);
     const crossSite = await c.patch('/api/session', { cautionsAcknowledged: true }, { 'sec-fetch-site': 'cross-site' });
     expect(crossSite.status).toBe(403);

@@ -46,7 +46,17 @@ describe('audit trail API', () => {
     const admin = await t.signIn('admin');
     // 20,000 invented events on the site's chain (a fifth of the 100,000 that held the server for 3 s in one turn).
     writeTx(t.db, (tx) => {
-      for (let i = 0; i < 20_000; i++) appendAudit(tx, { siteId: 1, userId: null, actor: 'load@example.test', action: 'test.event', entity: 'test', entityId: i, newValue: { i }, at: t.clock.now() });
+      for (let i = 0; i < 20_000; i++)
+        appendAudit(tx, {
+          siteId: 1,
+          userId: null,
+          actor: 'load@example.test',
+          action: 'test.event',
+          entity: 'test',
+          entityId: i,
+          newValue: { i },
+          at: t.clock.now(),
+        });
     });
     let verified = false;
     const verify = admin.get('/api/audit-events/verify').finally(() => (verified = true));

@@ -23,7 +23,11 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const count = (table: typeof batchReadings | typeof deviations | typeof auditEvents) => t.db.select({ n: sql<number>`count(*)` }).from(table).get()!.n;
+const count = (table: typeof batchReadings | typeof deviations | typeof auditEvents) =>
+  t.db
+    .select({ n: sql<number>`count(*)` })
+    .from(table)
+    .get()!.n;
 let keySeq = 0;
 const key = () => `test-key-${++keySeq}-abcdef`;
 
@@ -106,15 +110,36 @@ describe('starting a batch', () => {
     const detail = (await eng.get(`/api/recipes/${r.id}`)).body;
     const rec = detail.recipe;
     const plan = await eng.post('/api/plans', {
-      recipeId: rec.id, lotId: rec.lotId, batchH: rec.batchH, turnaroundH: rec.turnaroundH, doseGPerL: rec.doseGPerL, s0GPerL: rec.s0GPerL, kmGPerL: rec.kmGPerL,
-      productPricePerKg: rec.productPricePerKg, enzymePricePerKg: rec.enzymePricePerKg, heatingCostPerDegCHour: rec.heatingCostPerDegCHour, currentSetpointC: rec.currentSetpointC,
-      strategy: 'isothermal', stages: 3, maxStepC: 3, uncertainty: { draws: 400, seed: 7, sensorBiasSdC: 0.5, doseRelSd: 0.05 },
+      recipeId: rec.id,
+      lotId: rec.lotId,
+      batchH: rec.batchH,
+      turnaroundH: rec.turnaroundH,
+      doseGPerL: rec.doseGPerL,
+      s0GPerL: rec.s0GPerL,
+      kmGPerL: rec.kmGPerL,
+      productPricePerKg: rec.productPricePerKg,
+      enzymePricePerKg: rec.enzymePricePerKg,
+      heatingCostPerDegCHour: rec.heatingCostPerDegCHour,
+      currentSetpointC: rec.currentSetpointC,
+      strategy: 'isothermal',
+      stages: 3,
+      maxStepC: 3,
+      uncertainty: { draws: 400, seed: 7, sensorBiasSdC: 0.5, doseRelSd: 0.05 },
     });
     expect(plan.status).toBe(201);
     // Released through change control: the engineer proposes, the supervisor signs with a password.
-    const cr = await eng.post('/api/change-requests', { planId: plan.body.id, rationale: 'Robust setpoint from the uncertainty run.', expectedEffect: 'Fewer low batches', effectiveFrom: '2026-12-01' });
+    const cr = await eng.post('/api/change-requests', {
+      planId: plan.body.id,
+      rationale: 'Robust setpoint from the uncertainty run.',
+      expectedEffect: 'Fewer low batches',
+      effectiveFrom: '2026-12-01',
+    });
     expect(cr.status).toBe(201);
-    const signed = await sup.post(`/api/change-requests/${cr.body.id}/signatures`, { password: password('supervisor'), meaning: 'approved', comment: 'Go ahead' });
+    const signed = await sup.post(`/api/change-requests/${cr.body.id}/signatures`, {
+      password: password('supervisor'),
+      meaning: 'approved',
+      comment: 'Go ahead',
+    });
     expect(signed.body.status).toBe('approved');
     try {
       const { body } = await startLactose();
@@ -148,11 +173,22 @@ describe('starting a batch', () => {
       expect((await op.get(`/api/batches/${late.id}`)).body.deviations.filter((d: any) => d.kind === 'forecast_low')).toHaveLength(1);
       // The control-system link's feed: its readings skip the check in their transaction, and checkForecastLow
       // raises the low forecast apart, once, only while none is active.
-      const lows = () => t.db.select().from(deviations).where(eq(deviations.batchId, late.id)).all().filter((d) => d.kind === 'forecast_low' && d.state !== 'closed');
+      const lows = () =>
+        t.db
+          .select()
+          .from(deviations)
+          .where(eq(deviations.batchId, late.id))
+          .all()
+          .filter((d) => d.kind === 'forecast_low' && d.state !== 'closed');
       t.db.update(deviations).set({ state: 'closed' }).where(eq(deviations.batchId, late.id)).run();
       const services = { db: t.db, clock: t.clock };
       const operator = loadSessionUser(t.db, t.db.select().from(users).where(eq(users.role, 'operator')).get()!.id)!;
-      const fed = await readingIngest(services, { checkForecast: false }).log(operator, late.id, { key: key(), takenAt: at(late.startedAt, 15.97), c: 8 }, 'control_system');
+      const fed = await readingIngest(services, { checkForecast: false }).log(
+        operator,
+        late.id,
+        { key: key(), takenAt: at(late.startedAt, 15.97), c: 8 },
+        'control_system',
+      );
       expect(fed.created).toBe(true);
       expect(lows()).toHaveLength(0);
       expect(checkForecastLow(services, operator, late.id)).toBe(true);
@@ -171,7 +207,9 @@ describe('starting a batch', () => {
     const quarantined = lots.find((l) => l.lotCode === 'CGA-2611-07')!;
     const now = t.clock.now().toISOString();
     const list0 = (await sup.get('/api/batches')).body.batches.length;
-    expect((await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: quarantined.id, startedAt: now })).body.error.code).toBe('lot_not_accepted');
+    expect((await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: quarantined.id, startedAt: now })).body.error.code).toBe(
+      'lot_not_accepted',
+    );
     const busy = await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: r.lotId, startedAt: now });
     expect([busy.status, busy.body.error.code]).toEqual([409, 'vessel_busy']);
     const lac = await recipeByName('Lactose-free milk base');
@@ -291,7 +329,13 @@ describe('deviations', () => {
     expect((await op.post(`/api/deviations/${dev.id}/close`, {})).status).toBe(403);
     const closed = await sup.post(`/api/deviations/${dev.id}/close`, { comment: 'Valve serviced' });
     expect(closed.body).toMatchObject({ state: 'closed', closedBy: 'Marit Oyelaran' });
-    const actions = t.db.select().from(auditEvents).where(eq(auditEvents.entityId, String(dev.id))).all().filter((e) => e.entity === 'deviation').map((e) => e.action);
+    const actions = t.db
+      .select()
+      .from(auditEvents)
+      .where(eq(auditEvents.entityId, String(dev.id)))
+      .all()
+      .filter((e) => e.entity === 'deviation')
+      .map((e) => e.action);
     expect(actions).toEqual(['deviation.raise', 'deviation.acknowledge', 'deviation.close']);
   });
 
@@ -364,7 +408,11 @@ describe('historian import', () => {
     const again = await upload(op, csv);
     expect(again.body).toMatchObject({ rows: 50_000, imported: 0, skipped: 50_000 });
     expect(again.body.problems).toHaveLength(200);
-    expect(again.body.problems[0]).toMatchObject({ line: 2, kind: 'already_stored', message: `A reading at ${new Date(start).toISOString()} (UTC, to the millisecond) is already stored` });
+    expect(again.body.problems[0]).toMatchObject({
+      line: 2,
+      kind: 'already_stored',
+      message: `A reading at ${new Date(start).toISOString()} (UTC, to the millisecond) is already stored`,
+    });
     expect(count(batchReadings)).toBe(n0 + 50_000);
   });
 
@@ -441,8 +489,16 @@ describe('historian import', () => {
     const b = j.batch;
     const settings = batchSettingsOf(t.db, 1);
     const stored = batchRecordOf(t.db, b).points.slice();
-    const hadLow = t.db.select().from(deviations).where(eq(deviations.batchId, b.id)).all().some((d) => d.kind === 'forecast_low' && d.state !== 'closed');
-    const lastDev = t.db.select({ n: sql<number>`coalesce(max(id), 0)` }).from(deviations).get()!.n;
+    const hadLow = t.db
+      .select()
+      .from(deviations)
+      .where(eq(deviations.batchId, b.id))
+      .all()
+      .some((d) => d.kind === 'forecast_low' && d.state !== 'closed');
+    const lastDev = t.db
+      .select({ n: sql<number>`coalesce(max(id), 0)` })
+      .from(deviations)
+      .get()!.n;
     const from = Date.parse(b.startedAt) + 750;
     const rows = Array.from({ length: 4_000 }, (_, i) => {
       const c = (6 + (10 * i) / 3600) * 1;
@@ -457,9 +513,16 @@ describe('historian import', () => {
     const points = readingPoints(t.db, b.id).map((p) => ({ h: (Date.parse(p.takenAt) - Date.parse(b.startedAt)) / 3_600_000, c: p.c }));
     const status = batchStatus(b.program, points, 0, true);
     const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hadLow, status.lastH);
-    const raisedNow = t.db.select().from(deviations).where(and(eq(deviations.batchId, b.id), gt(deviations.id, lastDev))).orderBy(asc(deviations.id)).all();
+    const raisedNow = t.db
+      .select()
+      .from(deviations)
+      .where(and(eq(deviations.batchId, b.id), gt(deviations.id, lastDev)))
+      .orderBy(asc(deviations.id))
+      .all();
     expect(drafts.length).toBeGreaterThan(2);
-    expect(raisedNow.map((d) => [d.kind, d.message, d.valueC, d.expectedC])).toEqual([...drafts.map((d) => d.draft), ...(low ? [low] : [])].map((d) => [d.kind, d.message, d.valueC, d.expectedC]));
+    expect(raisedNow.map((d) => [d.kind, d.message, d.valueC, d.expectedC])).toEqual(
+      [...drafts.map((d) => d.draft), ...(low ? [low] : [])].map((d) => [d.kind, d.message, d.valueC, d.expectedC]),
+    );
     expect(r.body.deviationsRaised).toBe(raisedNow.length);
     // Correctives only on the last part's deviations of a correctable kind, each the whole record's.
     const withCorrective = raisedNow.filter((d) => d.corrective);
@@ -485,7 +548,16 @@ describe('historian import', () => {
       const p = (n: number) => String(n).padStart(2, '0');
       return `${p(d.getUTCDate())}.${p(d.getUTCMonth() + 1)}.${d.getUTCFullYear()} ${p(d.getUTCHours())}:${p(d.getUTCMinutes())}`;
     };
-    const csv = ['Zeit;Temperatur °C', `${local(0)};37,1`, `${local(10)};37,2`, `${local(10)};37,3`, `${local(5)};36,9`, `${local(20)};-300`, `${local(30)};abc`, ''].join('\r\n');
+    const csv = [
+      'Zeit;Temperatur °C',
+      `${local(0)};37,1`,
+      `${local(10)};37,2`,
+      `${local(10)};37,3`,
+      `${local(5)};36,9`,
+      `${local(20)};-300`,
+      `${local(30)};abc`,
+      '',
+    ].join('\r\n');
     const r = await upload(op, csv);
     expect(r.status).toBe(200);
     expect(r.body.timeZone).toBe('Europe/Berlin');
@@ -517,7 +589,17 @@ describe('the kept reading record', () => {
     await closeRunning('R-204 Lactose tank');
     const b = await startLactose(3);
     const user = t.db.select().from(users).where(eq(users.email, 'operator@haldenbay.test')).get()!;
-    const row = (k: string, h: number, c: number) => ({ siteId: user.siteId, batchId: b.id, clientKey: k, takenAt: at(b.startedAt, h), c, note: null, source: 'manual' as const, enteredBy: user.id, receivedAt: at(b.startedAt, h) });
+    const row = (k: string, h: number, c: number) => ({
+      siteId: user.siteId,
+      batchId: b.id,
+      clientKey: k,
+      takenAt: at(b.startedAt, h),
+      c,
+      note: null,
+      source: 'manual' as const,
+      enteredBy: user.id,
+      receivedAt: at(b.startedAt, h),
+    });
     writeTx(t.db, (tx) => insertReadings(tx, [row('kept-1', 0.5, 30), row('kept-2', 1, 31)]));
     expect(batchRecordOf(t.db, b).points.map((p) => p.c)).toEqual([30, 31]);
     // Inside the transaction the record sees its own uncommitted reading; after the rollback it is gone.

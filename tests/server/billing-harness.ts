@@ -15,8 +15,17 @@ export async function startBillingTestApp(opts: { publicUrl?: string | null } = 
   const { fake, billing } = await startFakeBilling({ webhookSecret });
   const sink = await startSmtpSink();
   let mail: MailSender | null = null;
-  const t = await startTestApp({ billing, publicUrl: opts.publicUrl === null ? undefined : (opts.publicUrl ?? 'http://yieldpoint.test'), mail: { kick: () => mail?.kick() } });
-  mail = createMailSender({ db: t.db, clock: t.clock, transport: smtpTransport({ host: '127.0.0.1', port: sink.port, secure: false }), from: 'Yieldpoint <no-reply@yieldpoint.test>' });
+  const t = await startTestApp({
+    billing,
+    publicUrl: opts.publicUrl === null ? undefined : (opts.publicUrl ?? 'http://yieldpoint.test'),
+    mail: { kick: () => mail?.kick() },
+  });
+  mail = createMailSender({
+    db: t.db,
+    clock: t.clock,
+    transport: smtpTransport({ host: '127.0.0.1', port: sink.port, secure: false }),
+    from: 'Yieldpoint <no-reply@yieldpoint.test>',
+  });
   fake.setWebhookUrl(`${t.base}/api/billing/webhook`);
   await handOverToFake(t.db, fake, billing);
   const m = mail;

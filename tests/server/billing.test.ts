@@ -22,8 +22,7 @@ const demoIds = () => {
 const fakeQuantity = () => t.fake.get(demoIds().subscription)!.items.data[0].quantity as number;
 
 /** Submits the fake's hosted card form as a browser would, without following the redirect. */
-const pay = (url: string, card: string) =>
-  fetch(url, { method: 'POST', body: new URLSearchParams({ card, exp: '12/34', cvc: '123' }), redirect: 'manual' });
+const pay = (url: string, card: string) => fetch(url, { method: 'POST', body: new URLSearchParams({ card, exp: '12/34', cvc: '123' }), redirect: 'manual' });
 
 async function checkout(addSeats: number): Promise<string> {
   const admin = await t.signIn('admin');
@@ -38,12 +37,26 @@ function signed(event: object, secret = t.billing.webhookSecret) {
   return { payload, header: t.billing.stripe.webhooks.generateTestHeaderString({ payload, secret }) };
 }
 const deliver = (payload: string, header?: string) =>
-  fetch(`${t.base}/api/billing/webhook`, { method: 'POST', headers: { 'content-type': 'application/json', ...(header ? { 'stripe-signature': header } : {}) }, body: payload });
+  fetch(`${t.base}/api/billing/webhook`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', ...(header ? { 'stripe-signature': header } : {}) },
+    body: payload,
+  });
 
 function subscriptionEvent(id: string, quantity: number, created = Math.floor(Date.now() / 1000)) {
   const sub = structuredClone(t.fake.get(demoIds().subscription)!);
   sub.items.data[0].quantity = quantity;
-  return { id, object: 'event', api_version: '2026-02-25.clover', created, type: 'customer.subscription.updated', data: { object: sub }, livemode: false, pending_webhooks: 1, request: { id: null, idempotency_key: null } };
+  return {
+    id,
+    object: 'event',
+    api_version: '2026-02-25.clover',
+    created,
+    type: 'customer.subscription.updated',
+    data: { object: sub },
+    livemode: false,
+    pending_webhooks: 1,
+    request: { id: null, idempotency_key: null },
+  };
 }
 
 describe('webhook signatures', () => {

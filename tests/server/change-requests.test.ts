@@ -28,14 +28,24 @@ async function savePlan(batchH: number): Promise<{ id: number; outputs: { setpoi
 }
 
 const propose = (by: Client, planId: number, over: Record<string, unknown> = {}) =>
-  by.post('/api/change-requests', { planId, rationale: 'The new lot holds up better at 60 °C in QC assays.', expectedEffect: '+3 % glucose per batch', effectiveFrom: '2026-12-15', ...over });
+  by.post('/api/change-requests', {
+    planId,
+    rationale: 'The new lot holds up better at 60 °C in QC assays.',
+    expectedEffect: '+3 % glucose per batch',
+    effectiveFrom: '2026-12-15',
+    ...over,
+  });
 
 const sign = (by: Client, id: number, meaning: string, pw = password('supervisor'), comment = '') =>
   by.post(`/api/change-requests/${id}/signatures`, { password: pw, meaning, comment });
 
 const recipeRow = () => t.db.select().from(recipes).where(eq(recipes.id, recipeId)).get()!;
 const auditOf = (action: string, entityId: number) =>
-  t.db.select().from(auditEvents).where(and(eq(auditEvents.action, action), eq(auditEvents.entityId, String(entityId)))).all();
+  t.db
+    .select()
+    .from(auditEvents)
+    .where(and(eq(auditEvents.action, action), eq(auditEvents.entityId, String(entityId))))
+    .all();
 const signatureCount = (id: number) => t.db.select().from(signatures).where(eq(signatures.changeRequestId, id)).all().length;
 
 describe('proposing', () => {
@@ -43,7 +53,14 @@ describe('proposing', () => {
     const plan = await savePlan(40);
     const r = await propose(engineer, plan.id);
     expect(r.status).toBe(201);
-    expect(r.body).toMatchObject({ status: 'proposed', planId: plan.id, recipeName: 'Glucose syrup DE 95', proposedBy: 'Tomasz Ekwueme', isIntact: true, signatures: [] });
+    expect(r.body).toMatchObject({
+      status: 'proposed',
+      planId: plan.id,
+      recipeName: 'Glucose syrup DE 95',
+      proposedBy: 'Tomasz Ekwueme',
+      isIntact: true,
+      signatures: [],
+    });
     expect(r.body.recordHash).toMatch(/^[0-9a-f]{64}$/);
     expect(r.body.proposed).toMatchObject({ source: 'proposed-plan', setpointC: plan.outputs.setpointC });
     // No plan is released on the seeded recipe, so its bare setpoint is the current side.
@@ -111,7 +128,11 @@ describe('signing', () => {
     const plan = await savePlan(45);
     const { id } = (await propose(engineer, plan.id)).body;
     const row = t.db.select().from(plans).where(eq(plans.id, plan.id)).get()!;
-    t.db.update(plans).set({ outputs: { ...row.outputs, setpointC: row.outputs.setpointC + 5 } }).where(eq(plans.id, plan.id)).run();
+    t.db
+      .update(plans)
+      .set({ outputs: { ...row.outputs, setpointC: row.outputs.setpointC + 5 } })
+      .where(eq(plans.id, plan.id))
+      .run();
     expect((await supervisor.get(`/api/change-requests/${id}`)).body.isIntact).toBe(false);
     const r = await sign(supervisor, id, 'approved');
     expect(r.status).toBe(409);
@@ -179,14 +200,26 @@ describe('signing', () => {
     expect(r.body.status).toBe('rejected');
     expect(recipeRow()).toEqual(before);
     expect(auditOf('change-request.reject', id)).toHaveLength(1);
-    expect(t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).all().map((m) => m.to)).toEqual(['engineer@haldenbay.test']);
+    expect(
+      t.db
+        .select()
+        .from(mailOutbox)
+        .where(eq(mailOutbox.kind, 'change-request.rejected'))
+        .all()
+        .map((m) => m.to),
+    ).toEqual(['engineer@haldenbay.test']);
   });
 
   it('keeps a decision when the mail relay fails: the notice stays pending for a retry', async () => {
     const plan = await savePlan(49);
     const { id } = (await propose(engineer, plan.id)).body;
     expect((await sign(supervisor, id, 'rejected')).status).toBe(201);
-    const sender = createMailSender({ db: t.db as Db, clock: t.clock, transport: { sendMail: () => Promise.reject(new Error('relay down')) }, from: 'x@y.test' });
+    const sender = createMailSender({
+      db: t.db as Db,
+      clock: t.clock,
+      transport: { sendMail: () => Promise.reject(new Error('relay down')) },
+      from: 'x@y.test',
+    });
     await sender.deliverDue();
     await sender.stop();
     const notice = t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).all().at(-1)!;
@@ -219,7 +252,23 @@ describe('sign rate limit and audit chain', () => {
       const detail = (await eng.get(`/api/recipes/${rId}`)).body;
       const r = detail.recipe;
       const plan = (
-        await eng.post('/api/plans', { recipeId: r.id, lotId: r.lotId, batchH: r.batchH, turnaroundH: r.turnaroundH, doseGPerL: r.doseGPerL, s0GPerL: r.s0GPerL, kmGPerL: r.kmGPerL, productPricePerKg: r.productPricePerKg, enzymePricePerKg: r.enzymePricePerKg, heatingCostPerDegCHour: r.heatingCostPerDegCHour, currentSetpointC: r.currentSetpointC, strategy: 'isothermal', stages: 4, maxStepC: 4, uncertainty: null })
+        await eng.post('/api/plans', {
+          recipeId: r.id,
+          lotId: r.lotId,
+          batchH: r.batchH,
+          turnaroundH: r.turnaroundH,
+          doseGPerL: r.doseGPerL,
+          s0GPerL: r.s0GPerL,
+          kmGPerL: r.kmGPerL,
+          productPricePerKg: r.productPricePerKg,
+          enzymePricePerKg: r.enzymePricePerKg,
+          heatingCostPerDegCHour: r.heatingCostPerDegCHour,
+          currentSetpointC: r.currentSetpointC,
+          strategy: 'isothermal',
+          stages: 4,
+          maxStepC: 4,
+          uncertainty: null,
+        })
       ).body;
       const { id } = (await propose(eng, plan.id)).body;
       for (let i = 0; i < 3; i++) expect((await sign(sup, id, 'approved', 'guess-' + i)).status).toBe(400);
@@ -236,9 +285,15 @@ describe('sign rate limit and audit chain', () => {
     const first = (await admin.get('/api/audit-events/verify')).body;
     // Earlier tests edited a plan and a request row directly: the check names those records, and the chain is whole.
     expect(first.firstBrokenId).toBeNull();
-    expect(first.problems.map((p: { message: string }) => p.message)).toEqual([6, 7].map((id) => `Change request ${id}: its plan or its text changed after it was submitted (the record no longer hashes as submitted)`));
+    expect(first.problems.map((p: { message: string }) => p.message)).toEqual(
+      [6, 7].map((id) => `Change request ${id}: its plan or its text changed after it was submitted (the record no longer hashes as submitted)`),
+    );
     const row = t.db.select().from(auditEvents).where(eq(auditEvents.action, 'signature.create')).get()!;
-    t.db.update(auditEvents).set({ newValue: { ...(row.newValue as object), meaning: 'rejected' } }).where(eq(auditEvents.id, row.id)).run();
+    t.db
+      .update(auditEvents)
+      .set({ newValue: { ...(row.newValue as object), meaning: 'rejected' } })
+      .where(eq(auditEvents.id, row.id))
+      .run();
     expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: false, firstBrokenId: row.id });
   });
 });

@@ -81,17 +81,16 @@ const controlReadings = () =>
     .from(batchReadings)
     .where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.source, 'control_system')))
     .all();
-const statusOf = async () => ((await operator.get(`/api/control-link/batches/${batchId}`)).body as { link: { state: string; lastError: string | null; lastValueC: number | null } | null }).link;
+const statusOf = async () =>
+  ((await operator.get(`/api/control-link/batches/${batchId}`)).body as { link: { state: string; lastError: string | null; lastValueC: number | null } | null })
+    .link;
 // Source times a little in the past, distinct to the millisecond, so every value is a new one.
 let tick = Date.now() - 60_000;
 const nextAt = () => new Date((tick += 1000));
 
 beforeAll(async () => {
   pkiDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-pki-'));
-  [plant, pki] = await Promise.all([
-    startPlant({ pkiFolder: PLANT_PKI, users: [PLANT_USER], tags: [TAG, 'R-204 Lactose tank'] }),
-    openAppPki(pkiDir),
-  ]);
+  [plant, pki] = await Promise.all([startPlant({ pkiFolder: PLANT_PKI, users: [PLANT_USER], tags: [TAG, 'R-204 Lactose tank'] }), openAppPki(pkiDir)]);
   net1 = await relay(plant.port);
   t = await startTestApp(
     {},
@@ -102,7 +101,9 @@ beforeAll(async () => {
     },
   );
   [admin, operator] = await Promise.all([t.signIn('admin'), t.signIn('operator')]);
-  const running = ((await operator.get('/api/batches')).body.batches as { id: number; state: string; vesselName: string }[]).find((b) => b.state === 'running' && b.vesselName === TAG)!;
+  const running = ((await operator.get('/api/batches')).body.batches as { id: number; state: string; vesselName: string }[]).find(
+    (b) => b.state === 'running' && b.vesselName === TAG,
+  )!;
   batchId = running.id;
   vesselId = ((await admin.get('/api/vessels')).body.vessels as { id: number; name: string }[]).find((v) => v.name === TAG)!.id;
   // The server reports at most one change per sampling interval: 100 ms, and the tests space their values more.
@@ -143,7 +144,14 @@ describe('the application certificate', () => {
 
 describe('a vessel source', () => {
   it('refuses security None unless confirmed, and audits the confirmation', async () => {
-    const body = { endpointUrl: net1.url, nodeId: plant.nodeIdOf(TAG), securityPolicy: 'None', securityMode: 'None', userName: PLANT_USER.userName, password: PLANT_USER.password };
+    const body = {
+      endpointUrl: net1.url,
+      nodeId: plant.nodeIdOf(TAG),
+      securityPolicy: 'None',
+      securityMode: 'None',
+      userName: PLANT_USER.userName,
+      password: PLANT_USER.password,
+    };
     const refused = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, body);
     expect(refused.status).toBe(400);
     expect(refused.body.error.fields.allowInsecure).toMatch(/confirm/);
@@ -161,7 +169,7 @@ describe('a vessel source', () => {
     expect(saved.body).toMatchObject({ securityPolicy: 'Basic256Sha256', securityMode: 'SignAndEncrypt', hasPassword: true, trustedThumbprint: null });
     expect(saved.body).not.toHaveProperty('password');
     await link.reconcile();
-    expect((await statusOf())).toMatchObject({ state: 'refused', lastError: expect.stringMatching(/certificate is not trusted/) });
+    expect(await statusOf()).toMatchObject({ state: 'refused', lastError: expect.stringMatching(/certificate is not trusted/) });
 
     const cert = await admin.get(`/api/control-link/sources/${vesselId}/server-certificate`);
     expect(cert.status).toBe(200);
@@ -217,7 +225,12 @@ describe('values from the plant', () => {
     plant.set(TAG, 0, { status: StatusCodes.BadSensorFailure, at: nextAt() });
     await until('the bad status', async () => /BadSensorFailure/.test((await statusOf())?.lastError ?? ''));
     expect(controlReadings()).toHaveLength(before);
-    const lost = () => t.db.select().from(deviations).where(and(eq(deviations.batchId, batchId), eq(deviations.kind, 'signal_lost'))).all();
+    const lost = () =>
+      t.db
+        .select()
+        .from(deviations)
+        .where(and(eq(deviations.batchId, batchId), eq(deviations.kind, 'signal_lost')))
+        .all();
     expect(lost()).toHaveLength(0);
     // The site's gap limit is 30 min (the default): 31 min without a good value.
     t.clock.advanceMinutes(31);
@@ -229,7 +242,12 @@ describe('values from the plant', () => {
   });
 
   it('refuses a wrong password with a clear message', async () => {
-    const r = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { endpointUrl: net1.url, nodeId: plant.nodeIdOf(TAG), userName: PLANT_USER.userName, password: 'wrong-password' });
+    const r = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, {
+      endpointUrl: net1.url,
+      nodeId: plant.nodeIdOf(TAG),
+      userName: PLANT_USER.userName,
+      password: 'wrong-password',
+    });
     expect(r.status).toBe(200);
     await link.reconcile();
     expect(await until('refused', async () => ((await statusOf())?.state === 'refused' ? statusOf() : null))).toMatchObject({
@@ -243,13 +261,20 @@ describe('a server that checks who connects', () => {
   const strictDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-strict-plant-'));
   beforeAll(async () => {
     // Trusts only the client certificates and user certificates its admin listed (none yet).
-    strict = await startPlant({ pkiFolder: `${PLANT_PKI}-strict`, users: [PLANT_USER], tags: [TAG], trustClients: 'listed', userCertificates: path.join(strictDir, 'users') });
+    strict = await startPlant({
+      pkiFolder: `${PLANT_PKI}-strict`,
+      users: [PLANT_USER],
+      tags: [TAG],
+      trustClients: 'listed',
+      userCertificates: path.join(strictDir, 'users'),
+    });
   }, 30_000);
   afterAll(async () => {
     await strict?.close();
     fs.rmSync(strictDir, { recursive: true, force: true });
   });
-  const own = async () => (await admin.get('/api/control-link/status')).body as { certificate: { thumbprint: string }; userCertificate: { thumbprint: string } };
+  const own = async () =>
+    (await admin.get('/api/control-link/status')).body as { certificate: { thumbprint: string }; userCertificate: { thumbprint: string } };
   const refusedWith = async () => until('refused', async () => ((await statusOf())?.state === 'refused' ? (await statusOf())!.lastError : null));
   const trustServer = async () => {
     const cert = await admin.get(`/api/control-link/sources/${vesselId}/server-certificate`);
@@ -257,7 +282,10 @@ describe('a server that checks who connects', () => {
   };
 
   it("says so when the server rejects Yieldpoint's application certificate, and connects once it is trusted there", async () => {
-    expect((await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { endpointUrl: strict.endpointUrl, nodeId: strict.nodeIdOf(TAG), ...PLANT_USER })).status).toBe(200);
+    expect(
+      (await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { endpointUrl: strict.endpointUrl, nodeId: strict.nodeIdOf(TAG), ...PLANT_USER }))
+        .status,
+    ).toBe(200);
     await trustServer();
     await link.reconcile();
     const { certificate } = await own();
@@ -274,7 +302,13 @@ describe('a server that checks who connects', () => {
     const both = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { ...base, ...PLANT_USER, userCertificate: true });
     expect(both.status).toBe(400);
     expect(both.body.error.fields.userCertificate).toMatch(/not both/);
-    const unsecured = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, { ...base, securityPolicy: 'None', securityMode: 'None', allowInsecure: true, userCertificate: true });
+    const unsecured = await admin.req('PUT', `/api/control-link/sources/${vesselId}`, {
+      ...base,
+      securityPolicy: 'None',
+      securityMode: 'None',
+      allowInsecure: true,
+      userCertificate: true,
+    });
     expect(unsecured.status).toBe(400);
     expect(unsecured.body.error.fields.userCertificate).toMatch(/secured connection/);
 
@@ -285,7 +319,9 @@ describe('a server that checks who connects', () => {
     await link.reconcile();
     const { userCertificate, certificate } = await own();
     expect(userCertificate.thumbprint).not.toBe(certificate.thumbprint);
-    expect(await refusedWith()).toBe(`The server refused Yieldpoint's user certificate (thumbprint ${userCertificate.thumbprint}): its admin trusts it as a user certificate`);
+    expect(await refusedWith()).toBe(
+      `The server refused Yieldpoint's user certificate (thumbprint ${userCertificate.thumbprint}): its admin trusts it as a user certificate`,
+    );
     await strict.trustUser(pki.userIdentity().certificateData);
     await until('connected', async () => (await statusOf())?.state === 'connected');
   });
@@ -303,7 +339,11 @@ describe('a server without history', () => {
       await link.reconcile();
       const gaps = ((await operator.get(`/api/control-link/batches/${batchId}`)).body as { gaps: { fromAt: string; toAt: string; reason: string }[] }).gaps;
       expect(gaps).toHaveLength(1);
-      expect(gaps[0]).toMatchObject({ fromAt: new Date(Date.parse(lastBefore) + 1).toISOString(), toAt: t.clock.now().toISOString(), reason: expect.stringMatching(/No history/) });
+      expect(gaps[0]).toMatchObject({
+        fromAt: new Date(Date.parse(lastBefore) + 1).toISOString(),
+        toAt: t.clock.now().toISOString(),
+        reason: expect.stringMatching(/No history/),
+      });
       const before = controlReadings().length;
       await pause();
       // The test clock is past the earlier values (the lost-signal test moved it): a value stamped now by it.
@@ -325,11 +365,20 @@ describe('read-only by construction', () => {
 
   it('would have caught a write (the recorder sees every request type)', async () => {
     const seen: string[] = [];
-    const client = OPCUAClient.create({ endpointMustExist: false, connectionStrategy: { maxRetry: 0 }, securityMode: MessageSecurityMode.None, securityPolicy: SecurityPolicy.None });
+    const client = OPCUAClient.create({
+      endpointMustExist: false,
+      connectionStrategy: { maxRetry: 0 },
+      securityMode: MessageSecurityMode.None,
+      securityPolicy: SecurityPolicy.None,
+    });
     client.on('send_request', (r) => seen.push(r.constructor.name));
     await client.connect(plant.endpointUrl);
     const session = await client.createSession({ type: UserTokenType.UserName, ...PLANT_USER });
-    await session.write({ nodeId: plant.nodeIdOf('R-204 Lactose tank'), attributeId: AttributeIds.Value, value: { value: { dataType: DataType.Double, value: 1 } } });
+    await session.write({
+      nodeId: plant.nodeIdOf('R-204 Lactose tank'),
+      attributeId: AttributeIds.Value,
+      value: { value: { dataType: DataType.Double, value: 1 } },
+    });
     await session.close();
     await client.disconnect();
     expect(seen).toContain('WriteRequest');

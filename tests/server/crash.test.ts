@@ -42,7 +42,9 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
       const headers = { cookie, 'content-type': 'application/json', 'x-yieldpoint-client': 'crash-test' };
       const users = ((await (await fetch(`${baseURL}/api/users`, { headers })).json()) as { users: { id: number }[] }).users;
       const opHeaders = { ...headers, cookie: await sessionCookie(baseURL, operator.email, operator.password) };
-      const batches = ((await (await fetch(`${baseURL}/api/batches`, { headers: opHeaders })).json()) as { batches: { id: number; state: string; startedAt: string }[] }).batches;
+      const batches = (
+        (await (await fetch(`${baseURL}/api/batches`, { headers: opHeaders })).json()) as { batches: { id: number; state: string; startedAt: string }[] }
+      ).batches;
       const running = batches.find((b) => b.state === 'running')!;
       let stop = false;
       // Operators' readings, each with its own idempotency key, beside the admin's edits.
@@ -51,7 +53,11 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
           const key = `crash-r${round}-w${w}-${k}`;
           const takenAt = new Date(Date.parse(running.startedAt) + (round * 1000 + w * 500 + k) * 1000).toISOString();
           try {
-            const res = await fetch(`${baseURL}/api/batches/${running.id}/readings`, { method: 'POST', headers: opHeaders, body: JSON.stringify({ key, takenAt, c: 50 }) });
+            const res = await fetch(`${baseURL}/api/batches/${running.id}/readings`, {
+              method: 'POST',
+              headers: opHeaders,
+              body: JSON.stringify({ key, takenAt, c: 50 }),
+            });
             if (res.ok) acknowledgedReadings.add(key);
           } catch {
             return;
@@ -77,7 +83,7 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
       server.child.kill('SIGKILL');
       stop = true;
       await Promise.all([...writers, ...loggers]);
-      await new Promise((r) => server!.child.exitCode !== null || server!.child.signalCode !== null ? r(null) : server!.child.once('exit', r));
+      await new Promise((r) => (server!.child.exitCode !== null || server!.child.signalCode !== null ? r(null) : server!.child.once('exit', r)));
     }
     server = null;
 
@@ -86,7 +92,9 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
     expect(raw.pragma('integrity_check', { simple: true })).toBe('ok');
     expect(raw.pragma('foreign_key_check')).toEqual([]);
     const names = new Set(
-      (raw.prepare(`select json_extract(new_value, '$.name') as name from audit_events where action = 'user.update'`).all() as { name: string }[]).map((r) => r.name),
+      (raw.prepare(`select json_extract(new_value, '$.name') as name from audit_events where action = 'user.update'`).all() as { name: string }[]).map(
+        (r) => r.name,
+      ),
     );
     const keys = new Set((raw.prepare('select client_key as k from batch_readings').all() as { k: string }[]).map((r) => r.k));
     raw.close();

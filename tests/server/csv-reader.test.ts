@@ -11,7 +11,11 @@ import { readHistorianCsv } from '../../server/services/historian-csv';
 
 const records = async (bytes: Uint8Array) => {
   const out: [number, string[]][] = [];
-  const layout = await readCsv(bytes, { maxRecords: 100, tooMany: () => new HttpError(400, 'too_many', 'too many'), onRecord: (r) => void out.push([r.line, r.cells]) });
+  const layout = await readCsv(bytes, {
+    maxRecords: 100,
+    tooMany: () => new HttpError(400, 'too_many', 'too many'),
+    onRecord: (r) => void out.push([r.line, r.cells]),
+  });
   return { ...layout, out };
 };
 const utf16 = (text: string, bom: 'le' | 'be') => {
@@ -25,7 +29,11 @@ afterAll(() => stopImports());
 describe('readCsv', () => {
   it('keeps a quoted cell with line breaks whole and numbers later rows by the line they start on', async () => {
     const r = await records(Buffer.from('a,b\r\n1,"two\r\nlines"\r\n\r\n3,4\n'));
-    expect(r.out).toEqual([[1, ['a', 'b']], [2, ['1', 'two\nlines']], [5, ['3', '4']]]);
+    expect(r.out).toEqual([
+      [1, ['a', 'b']],
+      [2, ['1', 'two\nlines']],
+      [5, ['3', '4']],
+    ]);
   });
 
   it.each([
@@ -34,7 +42,10 @@ describe('readCsv', () => {
   ] as const)('reads %s with its BOM', async (encoding, bom) => {
     const r = await records(utf16('Zeit;Temperatur °C\n01.12.2026 09:00;59,4\n', bom));
     expect(r.encoding).toBe(encoding);
-    expect(r.out).toEqual([[1, ['Zeit', 'Temperatur °C']], [2, ['01.12.2026 09:00', '59,4']]]);
+    expect(r.out).toEqual([
+      [1, ['Zeit', 'Temperatur °C']],
+      [2, ['01.12.2026 09:00', '59,4']],
+    ]);
   });
 
   it('reads Latin-1 (Windows-1252) bytes as the characters they stand for', async () => {
@@ -50,7 +61,11 @@ describe('readCsv', () => {
 
   it('stops at the row limit instead of reading on', async () => {
     let seen = 0;
-    const read = readCsv(Buffer.from('a\n'.repeat(1000)), { maxRecords: 10, tooMany: (n) => new HttpError(400, 'too_many', `${n}`), onRecord: () => void seen++ });
+    const read = readCsv(Buffer.from('a\n'.repeat(1000)), {
+      maxRecords: 10,
+      tooMany: (n) => new HttpError(400, 'too_many', `${n}`),
+      onRecord: () => void seen++,
+    });
     await expect(read).rejects.toMatchObject({ code: 'too_many', message: '11' });
     expect(seen).toBe(10);
   });
@@ -63,8 +78,13 @@ describe('readCsv', () => {
 describe('decimal commas', () => {
   it('reads "59,4" as 59.4 in a semicolon assay file, with the line of each bad row', async () => {
     const a = await readAssayCsv(Buffer.from('\uFEFFtemperature_c;time_h;residual_activity_percent\n59,4;0;100\n59,4;2,5;81,2\n'));
-    expect(a.points.map((p) => [p.line, p.tempC, p.timeH, p.residual])).toEqual([[2, 59.4, 0, 1], [3, 59.4, 2.5, 0.812]]);
-    await expect(readAssayCsv(Buffer.from('temperature_c;time_h;residual_activity_fraction\n60;0;1\n60;x;0,9\n'))).rejects.toMatchObject({ fields: { 'line 3': 'time "x" is not a number' } });
+    expect(a.points.map((p) => [p.line, p.tempC, p.timeH, p.residual])).toEqual([
+      [2, 59.4, 0, 1],
+      [3, 59.4, 2.5, 0.812],
+    ]);
+    await expect(readAssayCsv(Buffer.from('temperature_c;time_h;residual_activity_fraction\n60;0;1\n60;x;0,9\n'))).rejects.toMatchObject({
+      fields: { 'line 3': 'time "x" is not a number' },
+    });
   });
 
   it('keeps a comma a separator in a comma file', async () => {
@@ -88,7 +108,15 @@ describe('import worker', () => {
     migrateDb(db);
     seedDemo(db, { bcryptCost: 4 });
     const program = db.select().from(batches).get()!.program;
-    const basis = { startedAt: new Date(start).toISOString(), program, settings: DEFAULT_BATCH_SETTINGS, nowMs: start + 1000 * 300_000, storedKeys: [], storedH: new Float64Array(0), storedC: new Float64Array(0) };
+    const basis = {
+      startedAt: new Date(start).toISOString(),
+      program,
+      settings: DEFAULT_BATCH_SETTINGS,
+      nowMs: start + 1000 * 300_000,
+      storedKeys: [],
+      storedH: new Float64Array(0),
+      storedC: new Float64Array(0),
+    };
     const read = await runImport({ kind: 'historian', bytes, ...opts, basis }, (n) => progress.push(n)).finally(() => clearInterval(timer));
     expect(read.total).toBe(300_000);
     expect(read.atMs.length).toBe(300_000);

@@ -28,10 +28,18 @@ describe('demo proposal', () => {
     const plan = await supervisor.get(`/api/plans/${(detail.body as { planId: number }).planId}`);
     expect((detail.body as { rationale: string }).rationale).toContain(`${(plan.body as { outputs: { setpointC: number } }).outputs.setpointC.toFixed(1)} °C`);
 
-    const mails = t.db.select().from(mailOutbox).all().filter((m) => m.kind === 'change-request.proposed');
+    const mails = t.db
+      .select()
+      .from(mailOutbox)
+      .all()
+      .filter((m) => m.kind === 'change-request.proposed');
     expect(mails.map((m) => m.to)).toContain('supervisor@haldenbay.test');
 
-    const signed = await supervisor.post(`/api/change-requests/${mine[0]!.id}/signatures`, { password: password('supervisor'), meaning: 'approved', comment: '' });
+    const signed = await supervisor.post(`/api/change-requests/${mine[0]!.id}/signatures`, {
+      password: password('supervisor'),
+      meaning: 'approved',
+      comment: '',
+    });
     expect(signed.status).toBe(201);
     expect(signed.body).toMatchObject({ status: 'approved' });
   });

@@ -62,7 +62,10 @@ describe('a lot without a fit plans from its certificate', () => {
     const id = lots['OF-LX5-1128']!.id;
     expect((await proc.post(`/api/lots/${id}/decision`, { decision: 'accept', reason: 'Certificate 55 h at 40 °C, assay to follow' })).status).toBe(200);
     const r = recipes['Lactose-free milk base']!;
-    const res = await eng.post('/api/plans', planBody(r.id, id, { batchH: 20, s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, currentSetpointC: 37, uncertainty: MC }));
+    const res = await eng.post(
+      '/api/plans',
+      planBody(r.id, id, { batchH: 20, s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, currentSetpointC: 37, uncertainty: MC }),
+    );
     expect(res.status, JSON.stringify(res.body)).toBe(201);
     const k = res.body.outputs.kinetics;
     // Lacta LX-5: certificate half-life 55 h at 40 °C, which is also its reference temperature (invented demo data).
@@ -75,7 +78,10 @@ describe('a lot without a fit plans from its certificate', () => {
 });
 
 /** Starts a batch of a recipe its length before the clock, logs its planned temperatures hourly and closes it with a product. */
-async function closedBatch(r: { id: number; vesselId: number; vesselName: string; lotId: number; batchH: number }, measured: (forecast: number) => number | null): Promise<number> {
+async function closedBatch(
+  r: { id: number; vesselId: number; vesselName: string; lotId: number; batchH: number },
+  measured: (forecast: number) => number | null,
+): Promise<number> {
   const list = (await sup.get('/api/batches')).body.batches as { id: number; vesselName: string; state: string }[];
   for (const b of list.filter((x) => x.vesselName === r.vesselName && x.state === 'running')) {
     const d = (await sup.get(`/api/batches/${b.id}`)).body;
@@ -89,11 +95,17 @@ async function closedBatch(r: { id: number; vesselId: number; vesselName: string
   const b = (await sup.post('/api/batches', { recipeId: r.id, vesselId: r.vesselId, lotId: r.lotId, startedAt })).body;
   const log = b.program.log as { h: number; c: number }[];
   const at = (h: number) => {
-    const i = Math.max(1, log.findIndex((p) => p.h >= h));
+    const i = Math.max(
+      1,
+      log.findIndex((p) => p.h >= h),
+    );
     const [a, z] = [log[i - 1]!, log[Math.min(i, log.length - 1)]!];
     return z.h === a.h ? z.c : a.c + ((z.c - a.c) * (h - a.h)) / (z.h - a.h);
   };
-  const csv = ['time,temperature', ...Array.from({ length: r.batchH }, (_, h) => `${new Date(Date.parse(startedAt) + h * 3_600_000).toISOString()},${at(h).toFixed(2)}`)].join('\n');
+  const csv = [
+    'time,temperature',
+    ...Array.from({ length: r.batchH }, (_, h) => `${new Date(Date.parse(startedAt) + h * 3_600_000).toISOString()},${at(h).toFixed(2)}`),
+  ].join('\n');
   const imp = await sup.req('POST', `/api/batches/${b.id}/readings/import`, csv, { 'content-type': 'text/csv' });
   expect(imp.status, JSON.stringify(imp.body)).toBe(200);
   const d = (await sup.get(`/api/batches/${b.id}`)).body;
@@ -168,11 +180,22 @@ describe('closing the loop', () => {
     const ex = await eng.post('/api/calibrations/exclusions', { batchId: bad, isExcluded: true, reason: 'Sample taken after dilution' });
     expect(ex.status).toBe(200);
     expect(ex.body.proposed.batchIds).toEqual(used);
-    expect(ex.body.proposed.result.leftOut).toContainEqual({ batchId: bad, reason: 'Sample taken after dilution', by: 'Tomasz Ekwueme', at: t.clock.now().toISOString() });
+    expect(ex.body.proposed.result.leftOut).toContainEqual({
+      batchId: bad,
+      reason: 'Sample taken after dilution',
+      by: 'Tomasz Ekwueme',
+      at: t.clock.now().toISOString(),
+    });
     expect(t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration.exclude_batch')).all()).toHaveLength(1);
     // The accepted calibration stays as it was: leaving a batch out changes only the proposal.
     expect(ex.body.accepted.batchIds).toEqual(used);
-    expect(t.db.select().from(calibrations).all().filter((c) => c.state === 'accepted')).toHaveLength(1);
+    expect(
+      t.db
+        .select()
+        .from(calibrations)
+        .all()
+        .filter((c) => c.state === 'accepted'),
+    ).toHaveLength(1);
   });
 });
 
@@ -191,7 +214,18 @@ describe('the demo site shows calibration working', () => {
     expect(post.halfLifeRefH).toBeLessThan(prior.halfLifeRefH);
     expect(post.halfLifeHighH - post.halfLifeLowH).toBeLessThan(prior.halfLifeHighH - prior.halfLifeLowH);
     expect(v.proposed.result.after.rmseGPerL).toBeLessThan(v.proposed.result.before.rmseGPerL);
-    const body = planBody(r.id, lot.id, { batchH: 20, turnaroundH: 3, s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, currentSetpointC: 37, productPricePerKg: 2.5, enzymePricePerKg: 20, heatingCostPerDegCHour: 0.05, uncertainty: { draws: 4000, seed: 1, sensorBiasSdC: 0.5, doseRelSd: 0.05 } });
+    const body = planBody(r.id, lot.id, {
+      batchH: 20,
+      turnaroundH: 3,
+      s0GPerL: 48,
+      kmGPerL: 10,
+      doseGPerL: 0.4,
+      currentSetpointC: 37,
+      productPricePerKg: 2.5,
+      enzymePricePerKg: 20,
+      heatingCostPerDegCHour: 0.05,
+      uncertainty: { draws: 4000, seed: 1, sensorBiasSdC: 0.5, doseRelSd: 0.05 },
+    });
     const before = (await eng.post('/api/plans', body)).body.outputs;
     expect((await eng.post(`/api/calibrations/${v.proposed.id}/accept`, {})).status).toBe(200);
     const after = (await eng.post('/api/plans', body)).body.outputs;
@@ -214,7 +248,18 @@ describe('the whole chain on one lot', () => {
     const admin = await t.signIn('admin');
     const r = recipes['Lactose-free milk base']!;
     const lot = lots[DEMO_PLANT_TRUTH.lotCode]!;
-    const body = planBody(r.id, lot.id, { batchH: 20, turnaroundH: 3, s0GPerL: 48, kmGPerL: 10, doseGPerL: 0.4, currentSetpointC: 37, productPricePerKg: 2.5, enzymePricePerKg: 20, heatingCostPerDegCHour: 0.05, uncertainty: MC });
+    const body = planBody(r.id, lot.id, {
+      batchH: 20,
+      turnaroundH: 3,
+      s0GPerL: 48,
+      kmGPerL: 10,
+      doseGPerL: 0.4,
+      currentSetpointC: 37,
+      productPricePerKg: 2.5,
+      enzymePricePerKg: 20,
+      heatingCostPerDegCHour: 0.05,
+      uncertainty: MC,
+    });
     const onCalibration = (await eng.post('/api/plans', body)).body;
     // The admin sets the site's measurement spread: 3 % instead of the default 2 %; only the admin may.
     expect((await admin.get('/api/calibrations/settings')).body).toEqual({ measurementRelSd: 0.02 });
@@ -230,7 +275,9 @@ describe('the whole chain on one lot', () => {
     expect(up.status, JSON.stringify(up.body)).toBe(201);
     const detail = (await proc.get(`/api/lots/${lot.id}`)).body;
     const fit = detail.assays[0].fit;
-    expect(detail.disagreement).toMatch(/^The certificate's half-life of 60 h at 40 °C lies outside the assay fit's 95 % interval .*less stable than its certificate says/);
+    expect(detail.disagreement).toMatch(
+      /^The certificate's half-life of 60 h at 40 °C lies outside the assay fit's 95 % interval .*less stable than its certificate says/,
+    );
 
     // The plan now comes from the fit (a calibration made on the certificate is a prior of the past); the earlier plan says it is older.
     const onFit = (await eng.post('/api/plans', body)).body;

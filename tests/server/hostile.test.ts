@@ -32,7 +32,18 @@ afterAll(() => t.close());
 const LEAK = /\bat [\w.<>]+ \(|node_modules|\.ts:\d+|SQLITE_|sqlite_master|SyntaxError|TypeError|ReferenceError|select .* from /i;
 
 const nasty = fc.oneof(
-  fc.constantFrom("' or 1=1 --", '"; drop table users; --', '=cmd|\'/c calc\'!A1', '<script>alert(1)</script>', '../../etc/passwd', '\u0000', 'NaN', 'Infinity', '-1e309', '9'.repeat(400)),
+  fc.constantFrom(
+    "' or 1=1 --",
+    '"; drop table users; --',
+    "=cmd|'/c calc'!A1",
+    '<script>alert(1)</script>',
+    '../../etc/passwd',
+    '\u0000',
+    'NaN',
+    'Infinity',
+    '-1e309',
+    '9'.repeat(400),
+  ),
   fc.string({ maxLength: 40 }),
   fc.double(),
   fc.integer(),
@@ -40,7 +51,31 @@ const nasty = fc.oneof(
   fc.constant(null),
 );
 const body = fc.oneof(
-  fc.dictionary(fc.constantFrom('name', 'email', 'role', 'planId', 'lotId', 'recipeId', 'batchH', 'setpointC', 'c', 'h', 'value', 'password', 'rows', 'decision', 'reason', 'seats', 'quantity', 'meaning', 'comment'), nasty, { maxKeys: 6 }),
+  fc.dictionary(
+    fc.constantFrom(
+      'name',
+      'email',
+      'role',
+      'planId',
+      'lotId',
+      'recipeId',
+      'batchH',
+      'setpointC',
+      'c',
+      'h',
+      'value',
+      'password',
+      'rows',
+      'decision',
+      'reason',
+      'seats',
+      'quantity',
+      'meaning',
+      'comment',
+    ),
+    nasty,
+    { maxKeys: 6 },
+  ),
   fc.anything({ maxDepth: 3 }),
   fc.array(nasty, { maxLength: 5 }),
 );
@@ -100,7 +135,13 @@ describe(`hostile input (seed ${SEED})`, () => {
 });
 
 describe('refused calls cannot grow the audit trail without bound', () => {
-  const audit = () => t.db.$client.prepare('select action, actor, entity_id as entityId, new_value as newValue from audit_events order by id').all() as { action: string; actor: string; entityId: string; newValue: string }[];
+  const audit = () =>
+    t.db.$client.prepare('select action, actor, entity_id as entityId, new_value as newValue from audit_events order by id').all() as {
+      action: string;
+      actor: string;
+      entityId: string;
+      newValue: string;
+    }[];
   const bytes = () => (t.db.$client.pragma('page_count', { simple: true }) as number) * (t.db.$client.pragma('page_size', { simple: true }) as number);
 
   it('one address: the first denial of a minute is an event, the rest one counted event, with the path cut', async () => {
@@ -169,7 +210,12 @@ describe('unknown keys', () => {
 
 describe('text that is not well-formed Unicode', () => {
   it.each([
-    ['a vessel name', '/api/vessels', { name: 'tank\ud800end', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 }, 'name'],
+    [
+      'a vessel name',
+      '/api/vessels',
+      { name: 'tank\ud800end', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 },
+      'name',
+    ],
     ['a change rationale', '/api/change-requests', { planId: 1, rationale: 'Because \udc00 of this', expectedEffect: 'More product' }, 'rationale'],
     ['a nested key', '/api/plans', { uncertainty: { ['seed\ud83d']: 1 } }, 'uncertainty.seed\ud83d'],
   ])('refuses a lone surrogate in %s at the boundary, naming the field, and writes nothing', async (_label, path, body, field) => {
@@ -183,7 +229,15 @@ describe('text that is not well-formed Unicode', () => {
 
   it('keeps well-formed text outside the basic plane (a surrogate pair)', async () => {
     const c = await t.signIn('engineer');
-    const res = await c.post('/api/vessels', { name: 'Tank 🌾 7', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 });
+    const res = await c.post('/api/vessels', {
+      name: 'Tank 🌾 7',
+      workingVolumeL: 500,
+      minC: 10,
+      maxC: 90,
+      maxHeatCPerH: 20,
+      maxCoolCPerH: 15,
+      hygienicMinC: 40,
+    });
     expect(res.status).toBe(201);
     expect(res.body.name).toBe('Tank 🌾 7');
   });
@@ -194,11 +248,18 @@ describe('a stranger guessing passwords cannot lock the account out', () => {
     const app = await startTestApp({ signInLimit: { perAddress: 1000, perAccount: 5, windowMs: 15 * 60_000, maxDelayMs: 60_000 } });
     try {
       const login = (headers: Record<string, string>, pw: string) =>
-        fetch(`${app.base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-yieldpoint-client': 'test', ...headers }, body: JSON.stringify({ email: email('supervisor'), password: pw }) });
+        fetch(`${app.base}/api/session`, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json', 'x-yieldpoint-client': 'test', ...headers },
+          body: JSON.stringify({ email: email('supervisor'), password: pw }),
+        });
       // The supervisor's browser signed in yesterday and keeps its device cookie.
       const first = await login({}, password('supervisor'));
       expect(first.status).toBe(201);
-      const device = first.headers.getSetCookie().find((c) => c.startsWith('yp_device='))!.split(';')[0]!;
+      const device = first.headers
+        .getSetCookie()
+        .find((c) => c.startsWith('yp_device='))!
+        .split(';')[0]!;
       // A stranger sprays guesses at the account from 200 spoofed addresses, keeping pace with the slow-down.
       let wrong = 0;
       let slowed = 0;
@@ -244,11 +305,25 @@ describe('payment events cannot be forged in the default set-up', () => {
       const other = findSubscription(app.db, 2)!;
       expect(row.stripeCustomerId).not.toMatch(/site1$/);
       expect(row.stripeCustomerId).not.toBe(other.stripeCustomerId!.replace(/2$/, '1'));
-      const event = (type: string, object: object) => ({ id: `evt_forged_${type}`, object: 'event', api_version: '2026-02-25.clover', created: Math.floor(Date.now() / 1000), type, data: { object }, livemode: false, pending_webhooks: 1, request: { id: null, idempotency_key: null } });
+      const event = (type: string, object: object) => ({
+        id: `evt_forged_${type}`,
+        object: 'event',
+        api_version: '2026-02-25.clover',
+        created: Math.floor(Date.now() / 1000),
+        type,
+        data: { object },
+        livemode: false,
+        pending_webhooks: 1,
+        request: { id: null, idempotency_key: null },
+      });
       const deliver = (e: object, secret: string) => {
         const payload = JSON.stringify(e);
         const header = app.billing.stripe.webhooks.generateTestHeaderString({ payload, secret });
-        return fetch(`${app.base}/api/billing/webhook`, { method: 'POST', headers: { 'content-type': 'application/json', 'stripe-signature': header }, body: payload });
+        return fetch(`${app.base}/api/billing/webhook`, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json', 'stripe-signature': header },
+          body: payload,
+        });
       };
       const sub = structuredClone(app.fake.get(row.stripeSubscriptionId!)!);
       sub.items.data[0].quantity = 500;
@@ -257,7 +332,21 @@ describe('payment events cannot be forged in the default set-up', () => {
 
       // Even a correctly signed invoice keeps only a link to the provider's own payment page.
       const now = Math.floor(Date.now() / 1000);
-      const invoice = { id: 'in_forged_1', object: 'invoice', customer: row.stripeCustomerId, number: 'X-1', status: 'open', currency: 'eur', amount_due: 100, amount_paid: 0, lines: { object: 'list', data: [], has_more: false }, period_start: now, period_end: now, created: now, hosted_invoice_url: 'https://pay.example.net/steal' };
+      const invoice = {
+        id: 'in_forged_1',
+        object: 'invoice',
+        customer: row.stripeCustomerId,
+        number: 'X-1',
+        status: 'open',
+        currency: 'eur',
+        amount_due: 100,
+        amount_paid: 0,
+        lines: { object: 'list', data: [], has_more: false },
+        period_start: now,
+        period_end: now,
+        created: now,
+        hosted_invoice_url: 'https://pay.example.net/steal',
+      };
       expect((await deliver(event('invoice.finalized', invoice), app.billing.webhookSecret)).status).toBe(200);
       const admin = await app.signIn('admin');
       const stored = (await admin.get('/api/billing/invoices')).body.invoices.find((i: { number: string }) => i.number === 'X-1');
@@ -305,7 +394,24 @@ describe('the audit trail cannot be rewritten without a trace', () => {
     const rows = raw().prepare('select * from audit_events where site_id = 1 order by id').all() as any[];
     expect(rows.length).toBeGreaterThanOrEqual(2);
     // The attacker knows the published recipe (plain SHA-256 over the same fields) but not the key.
-    const link = (r: any, prev: string) => crypto.createHash('sha256').update(JSON.stringify([r.site_id, r.user_id, r.actor, r.action, r.entity, r.entity_id, r.old_value == null ? null : JSON.parse(r.old_value), r.new_value == null ? null : JSON.parse(r.new_value), r.at, prev])).digest('hex');
+    const link = (r: any, prev: string) =>
+      crypto
+        .createHash('sha256')
+        .update(
+          JSON.stringify([
+            r.site_id,
+            r.user_id,
+            r.actor,
+            r.action,
+            r.entity,
+            r.entity_id,
+            r.old_value == null ? null : JSON.parse(r.old_value),
+            r.new_value == null ? null : JSON.parse(r.new_value),
+            r.at,
+            prev,
+          ]),
+        )
+        .digest('hex');
     const snapshot = rows.map((r) => ({ ...r }));
     let prev = rows[0].prev_hash;
     rows[0].actor = 'someone-else@haldenbay.test';
@@ -329,14 +435,29 @@ describe('the audit trail cannot be rewritten without a trace', () => {
     expect(after.firstBrokenId).toBeNull(); // the links that are left are whole
     expect(after.ok).toBe(false);
     expect(after.problems[0]).toMatchObject({ kind: 'checkpoint', eventId: kept[0].id });
-    const put = raw().prepare('insert into audit_events (id, site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (@id, @site_id, @user_id, @actor, @action, @entity, @entity_id, @old_value, @new_value, @at, @prev_hash, @hash)');
+    const put = raw().prepare(
+      'insert into audit_events (id, site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (@id, @site_id, @user_id, @actor, @action, @entity, @entity_id, @old_value, @new_value, @at, @prev_hash, @hash)',
+    );
     for (const r of kept.reverse()) put.run(r);
     expect((await verify()).ok).toBe(true);
 
     // Someone holding the key edits the newest sealed event and recomputes its link: the chain passes, the checkpoint does not.
     const head = raw().prepare('select * from audit_events where site_id = 1 order by id desc limit 1').get() as any;
-    const edited = { siteId: 1, userId: head.user_id, actor: 'forger@haldenbay.test', action: head.action, entity: head.entity, entityId: head.entity_id, oldValue: head.old_value == null ? null : JSON.parse(head.old_value), newValue: head.new_value == null ? null : JSON.parse(head.new_value), at: head.at, prevHash: head.prev_hash };
-    raw().prepare('update audit_events set actor = ?, hash = ? where id = ?').run(edited.actor, eventHash(auditKeyOf(a.db), edited), head.id);
+    const edited = {
+      siteId: 1,
+      userId: head.user_id,
+      actor: 'forger@haldenbay.test',
+      action: head.action,
+      entity: head.entity,
+      entityId: head.entity_id,
+      oldValue: head.old_value == null ? null : JSON.parse(head.old_value),
+      newValue: head.new_value == null ? null : JSON.parse(head.new_value),
+      at: head.at,
+      prevHash: head.prev_hash,
+    };
+    raw()
+      .prepare('update audit_events set actor = ?, hash = ? where id = ?')
+      .run(edited.actor, eventHash(auditKeyOf(a.db), edited), head.id);
     const rebuilt = await verify();
     expect(rebuilt.firstBrokenId).toBeNull();
     expect(rebuilt.problems.map((p: { kind: string }) => p.kind)).toEqual(['checkpoint']);
@@ -352,14 +473,46 @@ describe('the audit trail cannot be rewritten without a trace', () => {
     // Start from a clean slate of checkpoints for this site (the forged line above stays reported otherwise).
     const fresh = await startTestApp();
     try {
-      const [proc, eng, sup, adm] = await Promise.all([fresh.signIn('procurement'), fresh.signIn('engineer'), fresh.signIn('supervisor'), fresh.signIn('admin')]);
+      const [proc, eng, sup, adm] = await Promise.all([
+        fresh.signIn('procurement'),
+        fresh.signIn('engineer'),
+        fresh.signIn('supervisor'),
+        fresh.signIn('admin'),
+      ]);
       const check = async () => (await adm.get('/api/audit-events/verify')).body;
       const lot = ((await proc.get('/api/lots')).body.lots as { id: number; status: string }[]).find((l) => l.status === 'quarantined')!;
       expect((await proc.post(`/api/lots/${lot.id}/decision`, { decision: 'reject', reason: 'Half-life below specification' })).status).toBe(200);
       const rec = (await eng.get(`/api/recipes/${((await eng.get('/api/recipes')).body.recipes as { id: number }[])[0]!.id}`)).body.recipe;
-      const plan = (await eng.post('/api/plans', { recipeId: rec.id, lotId: rec.lotId, batchH: rec.batchH, turnaroundH: rec.turnaroundH, doseGPerL: rec.doseGPerL, s0GPerL: rec.s0GPerL, kmGPerL: rec.kmGPerL, productPricePerKg: rec.productPricePerKg, enzymePricePerKg: rec.enzymePricePerKg, heatingCostPerDegCHour: rec.heatingCostPerDegCHour, currentSetpointC: rec.currentSetpointC, strategy: 'isothermal', stages: 3, maxStepC: 3, uncertainty: null })).body;
-      const cr = (await eng.post('/api/change-requests', { planId: plan.id, rationale: 'The assays support a warmer setpoint.', expectedEffect: 'More product', effectiveFrom: '2026-12-20' })).body;
-      expect((await sup.post(`/api/change-requests/${cr.id}/signatures`, { password: password('supervisor'), meaning: 'rejected', comment: 'Not yet' })).status).toBe(201);
+      const plan = (
+        await eng.post('/api/plans', {
+          recipeId: rec.id,
+          lotId: rec.lotId,
+          batchH: rec.batchH,
+          turnaroundH: rec.turnaroundH,
+          doseGPerL: rec.doseGPerL,
+          s0GPerL: rec.s0GPerL,
+          kmGPerL: rec.kmGPerL,
+          productPricePerKg: rec.productPricePerKg,
+          enzymePricePerKg: rec.enzymePricePerKg,
+          heatingCostPerDegCHour: rec.heatingCostPerDegCHour,
+          currentSetpointC: rec.currentSetpointC,
+          strategy: 'isothermal',
+          stages: 3,
+          maxStepC: 3,
+          uncertainty: null,
+        })
+      ).body;
+      const cr = (
+        await eng.post('/api/change-requests', {
+          planId: plan.id,
+          rationale: 'The assays support a warmer setpoint.',
+          expectedEffect: 'More product',
+          effectiveFrom: '2026-12-20',
+        })
+      ).body;
+      expect(
+        (await sup.post(`/api/change-requests/${cr.id}/signatures`, { password: password('supervisor'), meaning: 'rejected', comment: 'Not yet' })).status,
+      ).toBe(201);
       expect(await check()).toMatchObject({ ok: true, problems: [] });
       const db = fresh.db.$client;
       db.prepare("update lots set status = 'accepted', decision_reason = 'Meets specification' where id = ?").run(lot.id);
@@ -385,7 +538,9 @@ describe('databases written before the chain was keyed', () => {
     const first = openDb(file);
     migrateDb(first);
     const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
-    const ins = first.$client.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, null, ?, ?, ?)');
+    const ins = first.$client.prepare(
+      'insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, null, ?, ?, ?)',
+    );
     // Site-less chain: whole. Written as the earlier code did (plain SHA-256 links).
     let prev = '0'.repeat(64);
     for (let i = 0; i < 5; i++) {
@@ -414,7 +569,9 @@ describe('databases written before the chain was keyed', () => {
     const first = openDb(file);
     migrateDb(first);
     const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
-    const ins = first.$client.prepare('insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (null, null, ?, ?, ?, null, null, null, ?, ?, ?)');
+    const ins = first.$client.prepare(
+      'insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (null, null, ?, ?, ?, null, null, null, ?, ?, ?)',
+    );
     let prev = '0'.repeat(64);
     for (let i = 0; i < 4; i++) {
       const at = new Date(Date.UTC(2026, 10, 1, 8, i)).toISOString();

@@ -30,7 +30,12 @@ describe('invites', () => {
     expect(JSON.stringify(outbox)).not.toContain(token);
 
     const anon = t.client();
-    expect((await anon.post('/api/invites/preview', { token })).body).toEqual({ email: 'new.person@haldenbay.test', role: 'engineer', siteName: 'Halden Bay Biorefinery', expiresAt: '2026-12-08T08:00:00.000Z' });
+    expect((await anon.post('/api/invites/preview', { token })).body).toEqual({
+      email: 'new.person@haldenbay.test',
+      role: 'engineer',
+      siteName: 'Halden Bay Biorefinery',
+      expiresAt: '2026-12-08T08:00:00.000Z',
+    });
     const short = await anon.post('/api/invites/accept', { token, name: 'Nadia Person', password: 'short' });
     expect(short.status).toBe(400);
     expect(short.body.error.fields.password).toMatch(/12 characters/);
@@ -52,9 +57,18 @@ describe('invites', () => {
     const over = await admin.post('/api/invites', { email: 'p4@haldenbay.test', role: 'operator' });
     expect(over.status).toBe(409);
     expect(over.body.error.code).toBe('no_free_seat');
-    expect(over.body.error.message).toBe('All 8 paid seats are taken (5 active people and 3 open invites). Buy more seats on the Billing screen, or deactivate someone or withdraw an invite first.');
+    expect(over.body.error.message).toBe(
+      'All 8 paid seats are taken (5 active people and 3 open invites). Buy more seats on the Billing screen, or deactivate someone or withdraw an invite first.',
+    );
     expect((await admin.get('/api/invites')).body.invites).toHaveLength(3);
-    expect(t.db.select().from(mailOutbox).all().map((m) => m.to).sort()).toEqual(['p1@haldenbay.test', 'p2@haldenbay.test', 'p3@haldenbay.test']);
+    expect(
+      t.db
+        .select()
+        .from(mailOutbox)
+        .all()
+        .map((m) => m.to)
+        .sort(),
+    ).toEqual(['p1@haldenbay.test', 'p2@haldenbay.test', 'p3@haldenbay.test']);
     // Withdrawing one frees its seat.
     const first = (await admin.get('/api/invites')).body.invites.find((i: { email: string }) => i.email === 'p1@haldenbay.test');
     expect((await admin.del(`/api/invites/${first.id}`)).status).toBe(204);
@@ -99,7 +113,8 @@ describe('mail outbox', () => {
   });
   afterEach(() => db.$client.close());
 
-  const queue = (clock: TestClock, to: string) => db.transaction((tx) => enqueueMail(tx as unknown as Db, { siteId: null, to, subject: `Hello ${to}`, text: 'Body', kind: 'test', at: clock.now() }));
+  const queue = (clock: TestClock, to: string) =>
+    db.transaction((tx) => enqueueMail(tx as unknown as Db, { siteId: null, to, subject: `Hello ${to}`, text: 'Body', kind: 'test', at: clock.now() }));
 
   it('keeps messages while the relay is down and delivers them all when it is back', async () => {
     const clock = new TestClock();
@@ -113,7 +128,10 @@ describe('mail outbox', () => {
 
     expect(await sender.deliverDue()).toEqual({ sent: 0, failed: 2 });
     let rows = db.select().from(mailOutbox).all();
-    expect(rows.map((r) => [r.status, r.attempts])).toEqual([['pending', 1], ['pending', 1]]);
+    expect(rows.map((r) => [r.status, r.attempts])).toEqual([
+      ['pending', 1],
+      ['pending', 1],
+    ]);
     expect(rows[0]!.lastError).toMatch(/ECONNREFUSED/);
     // Not due again before the backoff has passed.
     expect(await sender.deliverDue()).toEqual({ sent: 0, failed: 0 });
@@ -123,8 +141,16 @@ describe('mail outbox', () => {
       clock.advanceMinutes(retryDelayMs(1) / 60_000);
       expect(await sender.deliverDue()).toEqual({ sent: 2, failed: 0 });
       rows = db.select().from(mailOutbox).all();
-      expect(rows.map((r) => [r.status, r.attempts, r.lastError])).toEqual([['sent', 2, null], ['sent', 2, null]]);
-      expect(sink.messages().map((m) => m.to[0]).sort()).toEqual(['a@x.test', 'b@x.test']);
+      expect(rows.map((r) => [r.status, r.attempts, r.lastError])).toEqual([
+        ['sent', 2, null],
+        ['sent', 2, null],
+      ]);
+      expect(
+        sink
+          .messages()
+          .map((m) => m.to[0])
+          .sort(),
+      ).toEqual(['a@x.test', 'b@x.test']);
       expect(sink.messages()[0]!.subject).toBe('Hello a@x.test');
     } finally {
       await sink.close();

@@ -27,7 +27,8 @@ async function upload(c: Client, path: string, name: string, bytes: Buffer | str
   return { status: res.status, body, headers: res.headers };
 }
 
-const lotId = async (c: Client, code: string) => ((await c.get('/api/lots')).body.lots as { id: number; lotCode: string }[]).find((l) => l.lotCode === code)!.id;
+const lotId = async (c: Client, code: string) =>
+  ((await c.get('/api/lots')).body.lots as { id: number; lotCode: string }[]).find((l) => l.lotCode === code)!.id;
 const enzymeId = async (c: Client, name: string) => (await c.get(`/api/enzymes?q=${encodeURIComponent(name)}`)).body.enzymes[0].id as number;
 const pointCount = () => (t.db.$client.prepare('select count(*) as n from assay_points').get() as { n: number }).n;
 
@@ -77,7 +78,11 @@ describe('registering lots', () => {
     const c = await t.signIn('engineer');
     const before = (await c.get('/api/lots')).body.lots.length;
     const ga = await enzymeId(c, 'Amylo');
-    const bad = await c.post('/api/lots', { ...input(ga, 'X', { form: 'residual', tempC: 60, minutes: 60, residualFraction: 78 }), quantityKg: '500', receivedOn: '2026-13-01' });
+    const bad = await c.post('/api/lots', {
+      ...input(ga, 'X', { form: 'residual', tempC: 60, minutes: 60, residualFraction: 78 }),
+      quantityKg: '500',
+      receivedOn: '2026-13-01',
+    });
     expect(bad.status).toBe(400);
     expect(Object.keys(bad.body.error.fields).sort()).toEqual(['certStability.residualFraction', 'quantityKg', 'receivedOn']);
     const noForm = await c.post('/api/lots', input(ga, 'X', { form: 'guess', tempC: 60 }));
@@ -101,7 +106,7 @@ describe('registering lots', () => {
     }
   });
 
-  it('filters by status and enzyme, and hides other sites\' lots (404)', async () => {
+  it("filters by status and enzyme, and hides other sites' lots (404)", async () => {
     const c = await t.signIn('operator');
     const accepted = (await c.get('/api/lots?status=accepted')).body.lots as { status: string }[];
     expect(accepted.length).toBe(5);
@@ -191,7 +196,13 @@ describe('assays', () => {
   it('reads per cent when the header says so, converts to fractions, and refuses a file that names no unit', async () => {
     const c = await t.signIn('engineer');
     const id = await lotId(c, 'OF-LX5-1128');
-    const unnamed = await upload(c, `/api/lots/${id}/assays`, 'qc-pct.csv', demoAssayCsv(points, true).replace('residual_activity_percent', 'remaining activity'), 'text/csv');
+    const unnamed = await upload(
+      c,
+      `/api/lots/${id}/assays`,
+      'qc-pct.csv',
+      demoAssayCsv(points, true).replace('residual_activity_percent', 'remaining activity'),
+      'text/csv',
+    );
     expect([unnamed.status, unnamed.body.error.code]).toEqual([400, 'scale_missing']);
     const r = await upload(c, `/api/lots/${id}/assays`, 'qc-pct.csv', demoAssayCsv(points, true), 'text/csv');
     expect(r.status).toBe(201);
@@ -218,7 +229,13 @@ describe('assays', () => {
   it('keeps a fit problem in words rather than failing when the data cannot be fitted', async () => {
     const c = await t.signIn('admin');
     const id = await lotId(c, 'CGA-2611-07');
-    const r = await c.post(`/api/lots/${id}/assays`, { rows: [{ tempC: 60, timeH: 0, residual: 1 }, { tempC: 60, timeH: 4, residual: 0.9 }, { tempC: 60, timeH: 8, residual: 0.8 }] });
+    const r = await c.post(`/api/lots/${id}/assays`, {
+      rows: [
+        { tempC: 60, timeH: 0, residual: 1 },
+        { tempC: 60, timeH: 4, residual: 0.9 },
+        { tempC: 60, timeH: 8, residual: 0.8 },
+      ],
+    });
     expect(r.status).toBe(201);
     expect(r.body.fit).toBeNull();
     expect(r.body.fitProblem).toMatch(/two temperatures/);
@@ -297,7 +314,7 @@ describe('assays', () => {
     const id = await lotId(c, 'TAA-4522');
     const csv = [
       'temperature_c,time_h,residual_activity_fraction,note',
-      '85,0,1,=cmd|\' /C calc\'!A0',
+      "85,0,1,=cmd|' /C calc'!A0",
       '85,1,0.83,+SUM(A1:A2)',
       '89,0,1,-2+3',
       '89,1,0.6,@HYPERLINK("http://x.test")',
@@ -305,7 +322,13 @@ describe('assays', () => {
     ].join('\n');
     const r = await upload(c, `/api/lots/${id}/assays`, 'notes.csv', csv, 'text/csv');
     expect(r.status).toBe(201);
-    expect(r.body.points.map((p: { note: string }) => p.note)).toEqual(["=cmd|' /C calc'!A0", '+SUM(A1:A2)', '-2+3', '@HYPERLINK("http://x.test")', 'plain, with comma']);
+    expect(r.body.points.map((p: { note: string }) => p.note)).toEqual([
+      "=cmd|' /C calc'!A0",
+      '+SUM(A1:A2)',
+      '-2+3',
+      '@HYPERLINK("http://x.test")',
+      'plain, with comma',
+    ]);
     const res = await fetch(`${t.base}/api/lots/${id}/assays/${r.body.id}/csv`, { headers: { cookie: (await t.signIn('operator')).cookie! } });
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toMatch(/text\/csv/);
@@ -364,7 +387,11 @@ describe('acceptance', () => {
     expect(r.body.lot).toMatchObject({ status: 'accepted', decisionReason: 'Assay lower bound above 3 h' });
     expect(r.body.decidedBy).toBe('Rafael Lindqvist');
     const last = listAudit(t.db, 1).at(-1)!;
-    expect(last).toMatchObject({ action: 'lot.accept', oldValue: { status: 'quarantined' }, newValue: { status: 'accepted', reason: 'Assay lower bound above 3 h', basis: 'assay' } });
+    expect(last).toMatchObject({
+      action: 'lot.accept',
+      oldValue: { status: 'quarantined' },
+      newValue: { status: 'accepted', reason: 'Assay lower bound above 3 h', basis: 'assay' },
+    });
     expect(verifyAudit(t.db, 1).ok).toBe(true);
     const again = await c.post(`/api/lots/${id}/decision`, { decision: 'reject', reason: 'Changed my mind' });
     expect(again.status).toBe(409);

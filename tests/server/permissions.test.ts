@@ -75,7 +75,12 @@ function resolveImport(from: string, spec: string): string | null {
 /** The read hooks a place's screens call: its route files in app/(app) and every client module they import. */
 function readsOfPlace(name: string, hooks: Map<string, string>): string[] {
   const folder = path.join(ROOT, 'app/(app)', name);
-  const start = fs.existsSync(folder) ? fs.readdirSync(folder, { recursive: true, encoding: 'utf8' }).filter((f) => f.endsWith('.tsx')).map((f) => path.join(folder, f)) : [`${folder}.tsx`];
+  const start = fs.existsSync(folder)
+    ? fs
+        .readdirSync(folder, { recursive: true, encoding: 'utf8' })
+        .filter((f) => f.endsWith('.tsx'))
+        .map((f) => path.join(folder, f))
+    : [`${folder}.tsx`];
   const seen = new Set<string>();
   const used = new Set<string>();
   const queue = [...start];
@@ -127,7 +132,11 @@ describe('the navigation never shows a place whose API the role cannot use', () 
 
   it('knows the API route of every read hook', () => {
     expect([...hooks.keys()].filter((h) => !(h in READS)).sort()).toEqual([]);
-    for (const [hook, route] of Object.entries(READS)) expect(routes.map((r) => `${r.method} ${r.path}`), hook).toContain(route);
+    for (const [hook, route] of Object.entries(READS))
+      expect(
+        routes.map((r) => `${r.method} ${r.path}`),
+        hook,
+      ).toContain(route);
   });
 
   it.each(NAV_ITEMS.map((i) => i.name))('%s: every role that sees it may make every read its screens make', (name) => {
@@ -137,7 +146,8 @@ describe('the navigation never shows a place whose API the role cannot use', () 
     for (const role of ROLES.filter((r) => canSee(r, name))) {
       for (const hook of reads) {
         const route = routes.find((r) => `${r.method} ${r.path}` === READS[hook])!;
-        if (route.roles !== 'public' && !route.roles!.includes(role)) refused.push(`${role} sees ${name}, whose ${hook} (${READS[hook]}) needs ${route.capability}`);
+        if (route.roles !== 'public' && !route.roles!.includes(role))
+          refused.push(`${role} sees ${name}, whose ${hook} (${READS[hook]}) needs ${route.capability}`);
       }
     }
     expect(refused).toEqual([]);

@@ -22,9 +22,20 @@ afterAll(async () => {
   await Promise.all([seq.close(), grouped.close()]);
 });
 
-const count = (t: TestApp, table: typeof batchReadings | typeof deviations | typeof auditEvents) => t.db.select({ n: sql<number>`count(*)` }).from(table).get()!.n;
+const count = (t: TestApp, table: typeof batchReadings | typeof deviations | typeof auditEvents) =>
+  t.db
+    .select({ n: sql<number>`count(*)` })
+    .from(table)
+    .get()!.n;
 const sessionUser = (t: TestApp, role: 'operator' | 'supervisor', site: 'main' | 'other' = 'main') =>
-  loadSessionUser(t.db, t.db.select().from(users).where(eq(users.email, email(role, site))).get()!.id)!;
+  loadSessionUser(
+    t.db,
+    t.db
+      .select()
+      .from(users)
+      .where(eq(users.email, email(role, site)))
+      .get()!.id,
+  )!;
 
 async function runningBatch(c: Client): Promise<{ id: number; startedAt: string }> {
   const list = (await c.get('/api/batches')).body.batches as { id: number; state: string; startedAt: string }[];
@@ -77,7 +88,12 @@ describe('readings that arrive together', () => {
     const good = results.slice(0, READINGS.length);
     expect(good.map((r) => r.status === 'fulfilled' && r.value.created)).toEqual(READINGS.map(() => true));
     const stored = grouped.db.select().from(batchReadings).where(eq(batchReadings.batchId, batchId)).all();
-    expect(stored.filter((r) => r.clientKey.startsWith('group-reading-')).map((r) => r.clientKey).sort()).toEqual([...keys].sort());
+    expect(
+      stored
+        .filter((r) => r.clientKey.startsWith('group-reading-'))
+        .map((r) => r.clientKey)
+        .sort(),
+    ).toEqual([...keys].sort());
     const events = listAudit(grouped.db, 1, { action: 'batch.reading' }).slice(-READINGS.length);
     expect(events.map((e) => (e.newValue as { key: string }).key)).toEqual(keys);
     expect(events.map((e) => e.actor)).toEqual(READINGS.map((_, i) => email(i % 2 ? 'supervisor' : 'operator')));
@@ -90,7 +106,8 @@ describe('readings that arrive together', () => {
     const good1 = results[1];
     expect(repeat.status === 'fulfilled' && repeat.value.created).toBe(false);
     expect(repeat.status === 'fulfilled' && good1.status === 'fulfilled' && repeat.value.result).toEqual(good1.status === 'fulfilled' && good1.value.result);
-    const refusal = (r: PromiseSettledResult<unknown>) => (r.status === 'rejected' && r.reason instanceof HttpError ? [r.reason.status, r.reason.code] : r.status);
+    const refusal = (r: PromiseSettledResult<unknown>) =>
+      r.status === 'rejected' && r.reason instanceof HttpError ? [r.reason.status, r.reason.code] : r.status;
     expect(refusal(reused)).toEqual([409, 'key_reused']);
     expect(refusal(future)).toEqual([400, 'invalid_input']);
     expect(refusal(other)).toEqual([404, 'not_found']);
@@ -100,7 +117,15 @@ describe('readings that arrive together', () => {
   it('raises the same deviations, for the same readings, as the readings logged one by one', () => {
     const shape = (t: TestApp) =>
       t.db
-        .select({ kind: deviations.kind, at: deviations.at, valueC: deviations.valueC, expectedC: deviations.expectedC, message: deviations.message, key: batchReadings.clientKey, corrective: deviations.corrective })
+        .select({
+          kind: deviations.kind,
+          at: deviations.at,
+          valueC: deviations.valueC,
+          expectedC: deviations.expectedC,
+          message: deviations.message,
+          key: batchReadings.clientKey,
+          corrective: deviations.corrective,
+        })
         .from(deviations)
         .leftJoin(batchReadings, eq(deviations.readingId, batchReadings.id))
         .where(eq(deviations.batchId, batchId))
@@ -138,7 +163,9 @@ describe('concurrent reading requests', () => {
     const readings0 = count(seq, batchReadings);
     const audit0 = count(seq, auditEvents);
     const replies = await Promise.all(
-      Array.from({ length: 50 }, (_, i) => op.post(`/api/batches/${id}/readings`, { key: `concurrent-${i}-abcdef`, takenAt: at(startedAt, 3 + i / 1000), c: 59 })),
+      Array.from({ length: 50 }, (_, i) =>
+        op.post(`/api/batches/${id}/readings`, { key: `concurrent-${i}-abcdef`, takenAt: at(startedAt, 3 + i / 1000), c: 59 }),
+      ),
     );
     expect(replies.map((r) => r.status)).toEqual(replies.map(() => 201));
     expect(new Set(replies.map((r) => r.body.reading.id)).size).toBe(50);

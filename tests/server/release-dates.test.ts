@@ -19,12 +19,29 @@ async function recipe(name: string) {
 /** A saved plan for the recipe (batchH varies the optimum), released through change control from `effectiveFrom`. */
 async function release(rec: any, batchH: number, effectiveFrom: string): Promise<number> {
   const plan = await eng.post('/api/plans', {
-    recipeId: rec.id, lotId: rec.lotId, batchH, turnaroundH: rec.turnaroundH, doseGPerL: rec.doseGPerL, s0GPerL: rec.s0GPerL, kmGPerL: rec.kmGPerL,
-    productPricePerKg: rec.productPricePerKg, enzymePricePerKg: rec.enzymePricePerKg, heatingCostPerDegCHour: rec.heatingCostPerDegCHour, currentSetpointC: rec.currentSetpointC,
-    strategy: 'isothermal', stages: 3, maxStepC: 3, uncertainty: null,
+    recipeId: rec.id,
+    lotId: rec.lotId,
+    batchH,
+    turnaroundH: rec.turnaroundH,
+    doseGPerL: rec.doseGPerL,
+    s0GPerL: rec.s0GPerL,
+    kmGPerL: rec.kmGPerL,
+    productPricePerKg: rec.productPricePerKg,
+    enzymePricePerKg: rec.enzymePricePerKg,
+    heatingCostPerDegCHour: rec.heatingCostPerDegCHour,
+    currentSetpointC: rec.currentSetpointC,
+    strategy: 'isothermal',
+    stages: 3,
+    maxStepC: 3,
+    uncertainty: null,
   });
   expect(plan.status, JSON.stringify(plan.body)).toBe(201);
-  const cr = await eng.post('/api/change-requests', { planId: plan.body.id, rationale: 'A longer batch suits the new schedule.', expectedEffect: 'More product per batch', effectiveFrom });
+  const cr = await eng.post('/api/change-requests', {
+    planId: plan.body.id,
+    rationale: 'A longer batch suits the new schedule.',
+    expectedEffect: 'More product per batch',
+    effectiveFrom,
+  });
   expect(cr.status, JSON.stringify(cr.body)).toBe(201);
   const signed = await sup.post(`/api/change-requests/${cr.body.id}/signatures`, { password: password('supervisor'), meaning: 'approved', comment: '' });
   expect(signed.body.status).toBe('approved');
@@ -73,14 +90,27 @@ describe('effective date of a released plan', () => {
 describe('calendar dates', () => {
   it.each(['2026-13-45', '2027-02-30', '2027-00-10'])('refuses %s as an effective date, naming the field', async (day) => {
     const plans = (await eng.get('/api/plans')).body.plans as { id: number }[];
-    const res = await eng.post('/api/change-requests', { planId: plans[0]!.id, rationale: 'A longer batch suits the new schedule.', expectedEffect: 'More product', effectiveFrom: day });
+    const res = await eng.post('/api/change-requests', {
+      planId: plans[0]!.id,
+      rationale: 'A longer batch suits the new schedule.',
+      expectedEffect: 'More product',
+      effectiveFrom: day,
+    });
     expect(res.status).toBe(400);
     expect(res.body.error.fields.effectiveFrom).toMatch(/Not a calendar date/);
   });
 
   it('refuses 30 February as a lot’s expiry, naming the field (it used to roll over to 2 March)', async () => {
     const procurement = await t.signIn('procurement');
-    const res = await procurement.post('/api/lots', { enzymeId: 1, lotCode: 'CAL-1', receivedOn: '2027-01-10', expiresOn: '2027-02-30', quantityKg: 5, certActivity: 1000, certStability: { form: 'halfLife', tempC: 50, hours: 10 } });
+    const res = await procurement.post('/api/lots', {
+      enzymeId: 1,
+      lotCode: 'CAL-1',
+      receivedOn: '2027-01-10',
+      expiresOn: '2027-02-30',
+      quantityKg: 5,
+      certActivity: 1000,
+      certStability: { form: 'halfLife', tempC: 50, hours: 10 },
+    });
     expect(res.status).toBe(400);
     expect(res.body.error.fields.expiresOn).toMatch(/Not a calendar date/);
   });

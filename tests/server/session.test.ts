@@ -74,7 +74,8 @@ describe('sign-in', () => {
 });
 
 describe('sign-in limits (failures only, slow-down per account)', () => {
-  const signInAs = (c: ReturnType<TestApp['client']>, role: Parameters<typeof email>[0], pw = password(role)) => c.post('/api/session', { email: email(role), password: pw });
+  const signInAs = (c: ReturnType<TestApp['client']>, role: Parameters<typeof email>[0], pw = password(role)) =>
+    c.post('/api/session', { email: email(role), password: pw });
 
   it('never counts successful sign-ins: ten right passwords in a row all open a session', async () => {
     await t.close();

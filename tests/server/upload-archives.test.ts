@@ -68,9 +68,17 @@ async function upload(c: Client, urlPath: string, name: string, bytes: Buffer, t
 }
 
 const lotId = async (code: string) => ((await procurement.get('/api/lots')).body.lots as { id: number; lotCode: string }[]).find((l) => l.lotCode === code)!.id;
-const count = (table: typeof certificateFiles | typeof auditEvents) => t.db.select({ n: sql<number>`count(*)` }).from(table).get()!.n;
+const count = (table: typeof certificateFiles | typeof auditEvents) =>
+  t.db
+    .select({ n: sql<number>`count(*)` })
+    .from(table)
+    .get()!.n;
 /** Every file under the store's folder, with its size: an unpacked entry would show up here. */
-const stored = () => fs.readdirSync(filesDir, { recursive: true, withFileTypes: true }).filter((e) => e.isFile()).map((e) => fs.statSync(path.join(e.parentPath, e.name)).size);
+const stored = () =>
+  fs
+    .readdirSync(filesDir, { recursive: true, withFileTypes: true })
+    .filter((e) => e.isFile())
+    .map((e) => fs.statSync(path.join(e.parentPath, e.name)).size);
 
 describe('an uploaded archive', () => {
   it('is a real zip bomb: the test file inflates to 64 MB', () => {

@@ -8,13 +8,20 @@ import { BUNDLE_PARTS_ID, WARM_ORDER_ID } from '../../src/web/page';
 
 // An export in the shape Metro writes it (the real one is checked in tests/e2e/web-pipeline.test.ts): its runtime
 // with `__r.unguarded`, one `__d(factory, id, [dependency ids])` per module, then the entry (99, importing 0) started.
-const RUNTIME = "var __BUNDLE_START_TIME__=0;\n!(function(e){e.__r=i;function i(){}i.unguarded=function(e,r){}})(globalThis);";
-function fakeExport(modules: [number, number[]][], html: string, opts: { registration?: (id: number, deps: number[]) => string; runtime?: string } = {}): string {
+const RUNTIME = 'var __BUNDLE_START_TIME__=0;\n!(function(e){e.__r=i;function i(){}i.unguarded=function(e,r){}})(globalThis);';
+function fakeExport(
+  modules: [number, number[]][],
+  html: string,
+  opts: { registration?: (id: number, deps: number[]) => string; runtime?: string } = {},
+): string {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-export-'));
   fs.mkdirSync(path.join(dir, '_expo/static/js/web'), { recursive: true });
   const register = opts.registration ?? ((id, deps) => `__d(function(g,r,i,a,m,e,d){m.exports=${id}},${id},[${deps.join(',')}]);`);
   const body = [...modules, [99, [0]] as [number, number[]]].map(([id, deps]) => register(id, deps)).join('\n');
-  fs.writeFileSync(path.join(dir, '_expo/static/js/web/index-0abc.js'), `${opts.runtime ?? RUNTIME}\n${body}\n__r(99);\n//# sourceMappingURL=index-0abc.js.map\n`);
+  fs.writeFileSync(
+    path.join(dir, '_expo/static/js/web/index-0abc.js'),
+    `${opts.runtime ?? RUNTIME}\n${body}\n__r(99);\n//# sourceMappingURL=index-0abc.js.map\n`,
+  );
   fs.writeFileSync(path.join(dir, 'index.html'), html);
   return dir;
 }
@@ -27,7 +34,17 @@ describe('finishing the web export', () => {
   afterEach(() => dirs.splice(0).forEach((d) => fs.rmSync(d, { recursive: true, force: true })));
 
   it('orders the modules so each comes after everything it imports, once each, through a cycle, without the started entry', () => {
-    const dir = fakeExport([[0, [1, 3]], [1, [2, 4]], [2, []], [3, [2]], [4, [1]], [5, []]], '<html><head></head><body></body></html>');
+    const dir = fakeExport(
+      [
+        [0, [1, 3]],
+        [1, [2, 4]],
+        [2, []],
+        [3, [2]],
+        [4, [1]],
+        [5, []],
+      ],
+      '<html><head></head><body></body></html>',
+    );
     dirs.push(dir);
     const order = warmOrder(dir);
     expect([...order].sort()).toEqual([0, 1, 2, 3, 4, 5]);
@@ -39,7 +56,13 @@ describe('finishing the web export', () => {
   });
 
   it('takes out the hydration flag and the empty title, and writes the order as a data block', () => {
-    const dir = fakeExport([[0, [1]], [1, []]], EXPO_PAGE);
+    const dir = fakeExport(
+      [
+        [0, [1]],
+        [1, []],
+      ],
+      EXPO_PAGE,
+    );
     dirs.push(dir);
     renderOverSnapshots(dir);
     const out = fs.readFileSync(path.join(dir, 'index.html'), 'utf8');
@@ -64,7 +87,7 @@ describe('finishing the web export', () => {
     expect(cutBundle(['var a;', '__d(1);', '__r(0);'], 8).every((p) => p.length > 0)).toBe(true);
   });
 
-  it('replaces the bundle with its parts and the page\'s script tag with the list and the loader the policy allows', () => {
+  it("replaces the bundle with its parts and the page's script tag with the list and the loader the policy allows", () => {
     const modules: [number, number[]][] = Array.from({ length: 30 }, (_, i) => [i, []]);
     const tag = '<script src="/_expo/static/js/web/index-0abc.js" defer></script>';
     const dir = fakeExport(modules, `<html><head>${tag}</head><body></body></html>`);
@@ -81,7 +104,12 @@ describe('finishing the web export', () => {
     expect(urls).toEqual(['0', '1', '2'].map((n) => `/_expo/static/js/web/index-0abc-${n}.js`));
     // The parts, in the list's order, are the bundle without its source-map comment.
     const joined = urls.map((u) => fs.readFileSync(path.join(dir, u), 'utf8')).join('\n');
-    expect(joined).toBe(original.split('\n').filter((l) => !l.startsWith('//# ')).join('\n'));
+    expect(joined).toBe(
+      original
+        .split('\n')
+        .filter((l) => !l.startsWith('//# '))
+        .join('\n'),
+    );
     // The page's one inline script is the loader, and the content security policy's hash is of exactly that text.
     const inline = [...html.matchAll(/<script>(.*?)<\/script>/g)].map((m) => m[1]!);
     expect(inline).toEqual([BUNDLE_LOADER]);
@@ -89,9 +117,17 @@ describe('finishing the web export', () => {
   });
 
   it('reads the dependencies of a module that uses require.resolveWeak (an object with paths)', () => {
-    const dir = fakeExport([[0, [1, 2]], [1, []], [2, [1]]], EXPO_PAGE, {
-      registration: (id, deps) => `__d(function(){},${id},${id === 0 ? `{${deps.map((d, i) => `"${i}":${d}`).join(',')},"paths":{}}` : `[${deps}]`});`,
-    });
+    const dir = fakeExport(
+      [
+        [0, [1, 2]],
+        [1, []],
+        [2, [1]],
+      ],
+      EXPO_PAGE,
+      {
+        registration: (id, deps) => `__d(function(){},${id},${id === 0 ? `{${deps.map((d, i) => `"${i}":${d}`).join(',')},"paths":{}}` : `[${deps}]`});`,
+      },
+    );
     dirs.push(dir);
     expect(warmOrder(dir)).toEqual([1, 2, 0]);
   });
@@ -127,7 +163,7 @@ describe('a step that finds nothing to change stops the build', () => {
     expect(() => splitBundle(dir, 4)).toThrow(/bundle parts: expected one entry bundle index-<hash>\.js, found 0/);
   });
 
-  it("when Metro registers modules another way, or its runtime has no unguarded require", () => {
+  it('when Metro registers modules another way, or its runtime has no unguarded require', () => {
     // Metro's development format names each module after its dependencies.
     const named = exportOf(modules, EXPO_PAGE, { registration: (id, deps) => `__d(function(){},${id},[${deps}],"src/m${id}.ts");` });
     expect(() => warmOrder(named)).toThrow(/warm-up order: index-0abc\.js has 31 module lines but 0 registrations/);

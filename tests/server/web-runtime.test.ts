@@ -14,7 +14,12 @@ describe('the API process', () => {
     const loaded = (JSON.parse(line.slice('loaded:'.length)) as string[]).map((f) => f.slice(ROOT.length + 1));
     // What it does load: the serving side of the web app.
     expect(loaded).toEqual(expect.arrayContaining(['server/web-app.ts', 'server/web-pages.ts', 'node_modules/express/index.js']));
-    const offending = loaded.filter((f) => /^node_modules\/(react|react-dom|react-native|react-native-web|expo|expo-router|workbox-build)\//.test(f) || f.startsWith('server/web-build/') || f.startsWith('app/'));
+    const offending = loaded.filter(
+      (f) =>
+        /^node_modules\/(react|react-dom|react-native|react-native-web|expo|expo-router|workbox-build)\//.test(f) ||
+        f.startsWith('server/web-build/') ||
+        f.startsWith('app/'),
+    );
     expect(offending).toEqual([]);
   });
 });

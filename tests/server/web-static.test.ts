@@ -96,7 +96,17 @@ describe('serving the exported web app', () => {
   });
 
   it('escapes the session so no name can close the block and run as script', () => {
-    const user = { id: 1, email: 'a@b.test', name: '</script><script>alert(1)</script>', role: 'operator' as const, siteId: 1, siteName: 'S', siteTimeZone: 'UTC', siteCurrency: 'EUR', cautionsAcknowledgedAt: null };
+    const user = {
+      id: 1,
+      email: 'a@b.test',
+      name: '</script><script>alert(1)</script>',
+      role: 'operator' as const,
+      siteId: 1,
+      siteName: 'S',
+      siteTimeZone: 'UTC',
+      siteCurrency: 'EUR',
+      cautionsAcknowledgedAt: null,
+    };
     const html = pageWithSession('<html><head></head><body></body></html>', { user });
     expect(html).not.toContain('</script><script>');
     expect(html.match(/<script/g)).toHaveLength(1);
@@ -104,7 +114,8 @@ describe('serving the exported web app', () => {
   });
 
   it("allows the export's own inline scripts by their hashes, read again when the export is rebuilt, and no data block", async () => {
-    const scriptSrc = async (urlPath: string) => /script-src ([^;]*)/.exec((await raw(t.base, urlPath)).headers['content-security-policy'] as string)![1]!.trim();
+    const scriptSrc = async (urlPath: string) =>
+      /script-src ([^;]*)/.exec((await raw(t.base, urlPath)).headers['content-security-policy'] as string)![1]!.trim();
     expect(await scriptSrc('/batches')).toBe("'self'");
     const index = path.join(webDir, 'index.html');
     const before = fs.readFileSync(index, 'utf8');

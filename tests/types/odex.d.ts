@@ -18,7 +18,13 @@ declare module 'odex' {
     relativeTolerance: number | number[];
     absoluteTolerance: number | number[];
     grid(dt: number, out: (xOut: number, yOut: number[]) => unknown): OutputFunction;
-    solve(f: Derivative, x: number, y0: number[], xEnd: number, solOut?: OutputFunction): {
+    solve(
+      f: Derivative,
+      x: number,
+      y0: number[],
+      xEnd: number,
+      solOut?: OutputFunction,
+    ): {
       y: number[];
       outcome: Outcome;
       nStep: number;

@@ -8,19 +8,62 @@ const base = { width: W, height: H };
 // Pixel positions in the tests are worked out by hand from the margins and the data range.
 describe('lineChartGeometry', () => {
   it('maps the data range onto the plot area, larger y higher up', () => {
-    const g = lineChartGeometry({ ...base, series: [{ id: 'a', points: [{ x: 0, y: 0 }, { x: 10, y: 100 }] }] });
-    expect(g.plot).toEqual({ left: CHART_MARGIN.left, top: CHART_MARGIN.top, width: W - CHART_MARGIN.left - CHART_MARGIN.right, height: H - CHART_MARGIN.top - CHART_MARGIN.bottom });
+    const g = lineChartGeometry({
+      ...base,
+      series: [
+        {
+          id: 'a',
+          points: [
+            { x: 0, y: 0 },
+            { x: 10, y: 100 },
+          ],
+        },
+      ],
+    });
+    expect(g.plot).toEqual({
+      left: CHART_MARGIN.left,
+      top: CHART_MARGIN.top,
+      width: W - CHART_MARGIN.left - CHART_MARGIN.right,
+      height: H - CHART_MARGIN.top - CHART_MARGIN.bottom,
+    });
     const bottom = CHART_MARGIN.top + g.plot.height;
     expect(g.lines[0]!.d).toBe(`M${CHART_MARGIN.left},${bottom}L${W - CHART_MARGIN.right},${CHART_MARGIN.top}`);
   });
 
   it('breaks a line at a missing value instead of joining across it', () => {
-    const g = lineChartGeometry({ ...base, series: [{ id: 'a', points: [{ x: 0, y: 1 }, { x: 1, y: 2 }, { x: 2, y: NaN }, { x: 3, y: 2 }, { x: 4, y: 1 }] }] });
+    const g = lineChartGeometry({
+      ...base,
+      series: [
+        {
+          id: 'a',
+          points: [
+            { x: 0, y: 1 },
+            { x: 1, y: 2 },
+            { x: 2, y: NaN },
+            { x: 3, y: 2 },
+            { x: 4, y: 1 },
+          ],
+        },
+      ],
+    });
     expect(g.lines[0]!.d.match(/M/g)!.length).toBe(2);
   });
 
   it('starts at zero when asked, and ticks cover the data with labels from the formatter', () => {
-    const g = lineChartGeometry({ ...base, yFromZero: true, formatY: (v) => `${v} g/L`, series: [{ id: 'a', points: [{ x: 40, y: 180 }, { x: 80, y: 240 }] }] });
+    const g = lineChartGeometry({
+      ...base,
+      yFromZero: true,
+      formatY: (v) => `${v} g/L`,
+      series: [
+        {
+          id: 'a',
+          points: [
+            { x: 40, y: 180 },
+            { x: 80, y: 240 },
+          ],
+        },
+      ],
+    });
     expect(g.yTicks[0]!.value).toBe(0);
     expect(g.yTicks[0]!.label).toBe('0 g/L');
     expect(g.yTicks.at(-1)!.value).toBeGreaterThanOrEqual(240);
@@ -29,7 +72,27 @@ describe('lineChartGeometry', () => {
   });
 
   it('closes a band between its lower and upper edges and includes it in the range', () => {
-    const g = lineChartGeometry({ ...base, series: [{ id: 'a', points: [{ x: 0, y: 5 }, { x: 1, y: 5 }] }], bands: [{ id: 'b', points: [{ x: 0, lo: 4, hi: 8 }, { x: 1, lo: 3, hi: 9 }] }] });
+    const g = lineChartGeometry({
+      ...base,
+      series: [
+        {
+          id: 'a',
+          points: [
+            { x: 0, y: 5 },
+            { x: 1, y: 5 },
+          ],
+        },
+      ],
+      bands: [
+        {
+          id: 'b',
+          points: [
+            { x: 0, lo: 4, hi: 8 },
+            { x: 1, lo: 3, hi: 9 },
+          ],
+        },
+      ],
+    });
     expect(g.bands[0]!.d.endsWith('Z')).toBe(true);
     expect(g.yTicks[0]!.value).toBeLessThanOrEqual(3);
     expect(g.yTicks.at(-1)!.value).toBeGreaterThanOrEqual(9);
@@ -38,7 +101,15 @@ describe('lineChartGeometry', () => {
   it('places markers on the data', () => {
     const g = lineChartGeometry({
       ...base,
-      series: [{ id: 'a', points: [{ x: 0, y: 0 }, { x: 10, y: 10 }] }],
+      series: [
+        {
+          id: 'a',
+          points: [
+            { x: 0, y: 0 },
+            { x: 10, y: 10 },
+          ],
+        },
+      ],
       markers: [{ id: 'm', x: 1, y: 1, label: 'L' }],
     });
     expect(g.markers[0]!.cx).toBeCloseTo(CHART_MARGIN.left + g.plot.width / 10, 9);

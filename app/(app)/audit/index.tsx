@@ -25,16 +25,25 @@ function VerifyCard() {
     <Card>
       <Text weight="semibold">Chain check</Text>
       <Text tone="muted" variant="small">
-        Each event carries a keyed hash of the one before it, so an edited or deleted event breaks every later link; signed checkpoints kept outside the database catch removed newest events, and lot decisions, signatures and change requests are compared with their audited state.
+        Each event carries a keyed hash of the one before it, so an edited or deleted event breaks every later link; signed checkpoints kept outside the
+        database catch removed newest events, and lot decisions, signatures and change requests are compared with their audited state.
       </Text>
       {result ? (
         <Text tone={result.ok ? 'success' : 'danger'} testID="audit-verify-result" accessibilityLiveRegion="polite">
-          {result.ok ? `Unbroken: all ${result.events} events check out.` : `${result.problems.length} problem${result.problems.length > 1 ? 's' : ''}: ${result.problems.slice(0, 3).map((p) => p.message).join('; ')}.`}
+          {result.ok
+            ? `Unbroken: all ${result.events} events check out.`
+            : `${result.problems.length} problem${result.problems.length > 1 ? 's' : ''}: ${result.problems
+                .slice(0, 3)
+                .map((p) => p.message)
+                .join('; ')}.`}
         </Text>
       ) : null}
       {result?.ok ? (
         <Text tone="muted" variant="small" testID="audit-verify-detail">
-          {result.checkpoints ? `Matches all ${result.checkpoints} signed checkpoints (the last at ${result.lastCheckpointAt}).` : 'No signed checkpoint yet; one is written every 15 minutes.'} Every decided lot, signature and change request reads as audited.
+          {result.checkpoints
+            ? `Matches all ${result.checkpoints} signed checkpoints (the last at ${result.lastCheckpointAt}).`
+            : 'No signed checkpoint yet; one is written every 15 minutes.'}{' '}
+          Every decided lot, signature and change request reads as audited.
         </Text>
       ) : null}
       {error ? <Text tone="danger">{error.message}</Text> : null}
@@ -64,7 +73,12 @@ function AuditBody() {
             }}
           />
         ))}
-        <Button label="Export CSV" compact variant="ghost" onPress={() => Linking.openURL(`/api/audit-events/export.csv${action ? `?action=${action}` : ''}`)} />
+        <Button
+          label="Export CSV"
+          compact
+          variant="ghost"
+          onPress={() => Linking.openURL(`/api/audit-events/export.csv${action ? `?action=${action}` : ''}`)}
+        />
       </View>
       {error ? (
         <ErrorState error={error} onRetry={retry} />
@@ -94,7 +108,11 @@ function AuditBody() {
 
 export default function AuditScreen() {
   return (
-    <Screen title="Audit trail" subtitle="Every sign-in, change, signature and decision at this site, on the site clock. Append-only; the CSV keeps each raw record." testID="screen-audit">
+    <Screen
+      title="Audit trail"
+      subtitle="Every sign-in, change, signature and decision at this site, on the site clock. Append-only; the CSV keeps each raw record."
+      testID="screen-audit"
+    >
       <AuditBody />
     </Screen>
   );

@@ -24,7 +24,6 @@ import { useSession } from '@/hooks/use-session';
 import { useSiteFormat } from '@/hooks/use-site-format';
 import { space, useBreakpoint } from '@/theme';
 
-
 // The newest readings shown at once; a longer record pages below them.
 const LATEST_SHOWN = 12;
 
@@ -58,14 +57,25 @@ function BatchBody({ id }: { id: number }) {
     const stored = new Set(data.readings.map((r) => r.key));
     const onDevice = logger.queued.filter((q) => !stored.has(q.key));
     const queued = onDevice.map((q) => ({ h: batchHours(start, q.takenAt), c: q.c, isQueued: true }));
-    const all = [...data.readings.map((r) => ({ h: r.h, c: r.c, isQueued: false, isControl: r.source === 'control_system' })), ...queued].sort((a, b) => a.h - b.h);
+    const all = [...data.readings.map((r) => ({ h: r.h, c: r.c, isQueued: false, isControl: r.source === 'control_system' })), ...queued].sort(
+      (a, b) => a.h - b.h,
+    );
     // A sampled historian record cannot be re-integrated here: then the server's figures stand until the readings arrive.
     const canPreview = queued.length > 0 && data.readings.length === data.readingsTotal;
-    const status = canPreview ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective } : data.status;
+    const status = canPreview
+      ? { ...batchStatus(data.batch.program, all, batchHours(start, new Date().toISOString())), corrective: data.status.corrective }
+      : data.status;
     const rows: ReadingRow[] = [
       ...data.readings.map(readingRow),
       ...onDevice.map((q) => ({ key: q.key, takenAt: q.takenAt, h: batchHours(start, q.takenAt), c: q.c, by: 'on this device', note: q.note ?? '' })),
-      ...logger.refused.map(({ reading: q, message }) => ({ key: q.key, takenAt: q.takenAt, h: batchHours(start, q.takenAt), c: q.c, by: 'not stored', note: message })),
+      ...logger.refused.map(({ reading: q, message }) => ({
+        key: q.key,
+        takenAt: q.takenAt,
+        h: batchHours(start, q.takenAt),
+        c: q.c,
+        by: 'not stored',
+        note: message,
+      })),
     ].sort((a, b) => Date.parse(a.takenAt) - Date.parse(b.takenAt));
     return { all, status, isPreview: canPreview || (cachedAt !== null && queued.length > 0), rows, count: data.status.readings + onDevice.length };
   }, [data, logger.queued, logger.refused, cachedAt]);
@@ -84,7 +94,14 @@ function BatchBody({ id }: { id: number }) {
   const s = preview.status;
   const sentence = `${preview.count} readings. Planned now ${fmt(s.plannedNowC)} °C${last ? `, last logged ${fmt(last.c)} °C` : ''}. Activity left ${fmt(s.activityLeft * 100, 0)} %, product so far ${fmt(s.productSoFarGPerL)} g/L; if the plan is followed from now the batch ends with ${fmt(s.forecastGPerL)} g/L against ${fmt(s.plannedProductGPerL)} g/L planned.`;
 
-  const entry = canLog ? <ReadingEntry startedAt={b.startedAt} lastC={last ? last.c : null} vessel={{ name: b.vesselName, minC: b.program.vessel.minC, maxC: b.program.vessel.maxC }} logger={logger} /> : null;
+  const entry = canLog ? (
+    <ReadingEntry
+      startedAt={b.startedAt}
+      lastC={last ? last.c : null}
+      vessel={{ name: b.vesselName, minC: b.program.vessel.minC, maxC: b.program.vessel.maxC }}
+      logger={logger}
+    />
+  ) : null;
   const deviations = <DeviationList deviations={data.deviations} role={role} current={status.corrective} />;
   const chart = (
     <Card>
@@ -93,7 +110,16 @@ function BatchBody({ id }: { id: number }) {
       </Text>
       <BatchTemperatureChart
         label={sentence}
-        input={{ plan: b.program.log, batchH: b.program.batchH, toleranceC: data.settings.toleranceC, readings: preview.all, gaps: (link.data?.gaps ?? []).map((g) => ({ fromH: batchHours(b.startedAt, g.fromAt), toH: batchHours(b.startedAt, g.toAt) })), gapLimitH: data.settings.gapLimitMin / 60, vesselMaxC: b.program.vessel.maxC, nowH: isRunning ? nowH : null }}
+        input={{
+          plan: b.program.log,
+          batchH: b.program.batchH,
+          toleranceC: data.settings.toleranceC,
+          readings: preview.all,
+          gaps: (link.data?.gaps ?? []).map((g) => ({ fromH: batchHours(b.startedAt, g.fromAt), toH: batchHours(b.startedAt, g.toAt) })),
+          gapLimitH: data.settings.gapLimitMin / 60,
+          vesselMaxC: b.program.vessel.maxC,
+          nowH: isRunning ? nowH : null,
+        }}
       />
       <Text variant="small" testID="batch-sentence">
         {sentence}
@@ -114,7 +140,9 @@ function BatchBody({ id }: { id: number }) {
           {b.recipeName} · {b.vesselName}
         </Text>
         <Text variant="small" tone={isRunning ? 'success' : 'muted'} weight="semibold" testID="batch-state">
-          {isRunning ? `Running · hour ${fmt(Math.max(0, nowH))} of ${fmt(b.program.batchH, 0)}` : `Closed ${b.closedAt ? site.time(b.closedAt) : ''} by ${b.closedBy ?? '—'}`}
+          {isRunning
+            ? `Running · hour ${fmt(Math.max(0, nowH))} of ${fmt(b.program.batchH, 0)}`
+            : `Closed ${b.closedAt ? site.time(b.closedAt) : ''} by ${b.closedBy ?? '—'}`}
         </Text>
         <Text variant="small" tone="muted">
           Lot {b.lotCode} · started {site.time(b.startedAt)} by {b.startedBy}
@@ -131,7 +159,8 @@ function BatchBody({ id }: { id: number }) {
         ) : null}
         {!isRunning ? (
           <Text variant="small" testID="batch-outcome">
-            Forecast at closing {fmt(b.forecastAtCloseGPerL ?? NaN)} g/L · measured {b.measuredProductGPerL === null ? 'not recorded' : `${fmt(b.measuredProductGPerL)} g/L`}
+            Forecast at closing {fmt(b.forecastAtCloseGPerL ?? NaN)} g/L · measured{' '}
+            {b.measuredProductGPerL === null ? 'not recorded' : `${fmt(b.measuredProductGPerL)} g/L`}
           </Text>
         ) : null}
       </Card>
@@ -159,7 +188,13 @@ function BatchBody({ id }: { id: number }) {
               </View>
             ) : null}
             {preview.rows.length ? (
-              <DataTable columns={readingColumns(site.time)} rows={[...preview.rows].reverse().slice(0, LATEST_SHOWN)} rowKey={(r) => r.key} caption="Latest readings, newest first" testID="readings-table" />
+              <DataTable
+                columns={readingColumns(site.time)}
+                rows={[...preview.rows].reverse().slice(0, LATEST_SHOWN)}
+                rowKey={(r) => r.key}
+                caption="Latest readings, newest first"
+                testID="readings-table"
+              />
             ) : (
               <Text tone="muted">No readings yet.</Text>
             )}
@@ -180,7 +215,12 @@ function BatchBody({ id }: { id: number }) {
 export default function BatchScreen() {
   const batchId = useIdParam();
   return (
-    <Screen title="Batch" subtitle="Log the reactor temperature; the forecast follows." testID="screen-batch" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}>
+    <Screen
+      title="Batch"
+      subtitle="Log the reactor temperature; the forecast follows."
+      testID="screen-batch"
+      actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} testID="back-to-batches" />}
+    >
       {batchId ? <BatchBody id={batchId} /> : <ErrorState error={new Error('No such batch')} />}
     </Screen>
   );

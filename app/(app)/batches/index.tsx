@@ -25,7 +25,9 @@ function Section({ title, batches, now, testID, empty }: { title: string; batche
 }
 
 function Accuracy({ closed }: { closed: BatchSummary[] }) {
-  const points = closed.filter((b) => b.measuredProductGPerL !== null).map((b) => ({ id: b.id, forecastGPerL: b.forecastGPerL, measuredGPerL: b.measuredProductGPerL! }));
+  const points = closed
+    .filter((b) => b.measuredProductGPerL !== null)
+    .map((b) => ({ id: b.id, forecastGPerL: b.forecastGPerL, measuredGPerL: b.measuredProductGPerL! }));
   if (!points.length) return null;
   const bias = forecastAccuracyGeometry(points, 1, 1).meanBias!;
   const worst = Math.max(...points.map((p) => Math.abs(p.measuredGPerL / p.forecastGPerL - 1)));
@@ -56,7 +58,13 @@ function BatchesBody() {
   if (error) return <ErrorState error={error} onRetry={retry} />;
   if (isLoading || !data) return <Loader rows={4} label="Loading batches" />;
   if (!data.batches.length)
-    return <EmptyState title="No batches yet" message="A batch appears here when a supervisor or engineer starts it on a vessel with an accepted lot." action={start} />;
+    return (
+      <EmptyState
+        title="No batches yet"
+        message="A batch appears here when a supervisor or engineer starts it on a vessel with an accepted lot."
+        action={start}
+      />
+    );
   const now = new Date();
   const running = data.batches.filter((b) => b.state === 'running');
   const closed = data.batches.filter((b) => b.state === 'closed');
@@ -65,7 +73,13 @@ function BatchesBody() {
       {start}
       <View style={[styles.columns, isWide && styles.columnsWide]}>
         <View style={[styles.column, isWide && styles.columnWide]}>
-          <Section title="My batches" batches={running.filter((b) => b.isMine)} now={now} testID="my-batches" empty="None yet: batches you start or log readings on come here first." />
+          <Section
+            title="My batches"
+            batches={running.filter((b) => b.isMine)}
+            now={now}
+            testID="my-batches"
+            empty="None yet: batches you start or log readings on come here first."
+          />
           <Section title="Other running batches" batches={running.filter((b) => !b.isMine)} now={now} testID="other-batches" />
         </View>
         <View style={[styles.column, isWide && styles.columnWide]}>

@@ -67,7 +67,13 @@ function StartForm() {
   const f = start.error?.fields ?? {};
   return (
     <Card testID="start-form">
-      <Choice label="Recipe" testID="start-recipe" value={recipeId ?? NONE} onChange={setRecipeId} options={recipes.data.recipes.map((x) => ({ value: x.id, label: x.name }))} />
+      <Choice
+        label="Recipe"
+        testID="start-recipe"
+        value={recipeId ?? NONE}
+        onChange={setRecipeId}
+        options={recipes.data.recipes.map((x) => ({ value: x.id, label: x.name }))}
+      />
       <FieldError message={f.recipeId} testID="start-recipe-error" />
       {source ? (
         <Text variant="small" testID="start-source">
@@ -77,9 +83,21 @@ function StartForm() {
       {detail.error ? <ErrorState error={detail.error} onRetry={detail.retry} /> : null}
       {detail.data ? (
         <>
-          <Choice label="Vessel" testID="start-vessel" value={vesselId ?? NONE} onChange={setVesselId} options={vessels.data.vessels.map((v) => ({ value: v.id, label: `${v.name} (${v.minC}–${v.maxC} °C)` }))} />
+          <Choice
+            label="Vessel"
+            testID="start-vessel"
+            value={vesselId ?? NONE}
+            onChange={setVesselId}
+            options={vessels.data.vessels.map((v) => ({ value: v.id, label: `${v.name} (${v.minC}–${v.maxC} °C)` }))}
+          />
           <FieldError message={f.vesselId} testID="start-vessel-error" />
-          <Choice label="Lot (accepted only)" testID="start-lot" value={lotId ?? NONE} onChange={setLotId} options={detail.data.lots.map((l) => ({ value: l.id, label: `${l.lotCode} (expires ${l.expiresOn})` }))} />
+          <Choice
+            label="Lot (accepted only)"
+            testID="start-lot"
+            value={lotId ?? NONE}
+            onChange={setLotId}
+            options={detail.data.lots.map((l) => ({ value: l.id, label: `${l.lotCode} (expires ${l.expiresOn})` }))}
+          />
           <FieldError message={f.lotId} testID="start-lot-error" />
         </>
       ) : null}
@@ -96,7 +114,12 @@ function StartForm() {
 
 export default function StartBatchScreen() {
   return (
-    <Screen title="Start a batch" subtitle="Recipe, vessel, an accepted lot and the start time." testID="screen-batch-start" actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} />}>
+    <Screen
+      title="Start a batch"
+      subtitle="Recipe, vessel, an accepted lot and the start time."
+      testID="screen-batch-start"
+      actions={<Button label="All batches" variant="ghost" onPress={() => router.navigate('/batches')} />}
+    >
       <StartForm />
     </Screen>
   );

@@ -20,7 +20,13 @@ const COLUMNS: Column<Lot>[] = [
   { key: 'lot', label: 'Lot', value: (l) => l.lotCode, flex: 1.2, isCode: true },
   { key: 'enzyme', label: 'Enzyme', value: (l) => l.enzymeName, flex: 1.2 },
   { key: 'received', label: 'Received', value: (l) => l.receivedOn },
-  { key: 'halfLife', label: 'Certificate half-life', value: (l) => `${fmt(halfLifeFromKd(l.certKdPerH))} h at ${fmt(l.certTempC, 0)} °C`, isNumeric: true, flex: 1.4 },
+  {
+    key: 'halfLife',
+    label: 'Certificate half-life',
+    value: (l) => `${fmt(halfLifeFromKd(l.certKdPerH))} h at ${fmt(l.certTempC, 0)} °C`,
+    isNumeric: true,
+    flex: 1.4,
+  },
   { key: 'status', label: 'Status', value: (l) => STATUS_LABEL[l.status], flex: 1.3, tone: (l) => STATUS_TONE[l.status] },
 ];
 

@@ -47,9 +47,7 @@ function Body({ id }: { id: number | null }) {
 
 export default function RecipePlannerScreen() {
   const id = useIdParam('recipeId');
-  return (
-    <Body id={id} />
-  );
+  return <Body id={id} />;
 }
 
 const styles = StyleSheet.create({

@@ -52,7 +52,9 @@ export default function SignOffsScreen() {
       actions={
         <View style={styles.actions}>
           {/* Only engineers save plans, so only they can propose one. */}
-          {role === 'engineer' ? <Button label="Propose from a plan" variant="secondary" testID="open-planner" onPress={() => router.navigate('/planner')} /> : null}
+          {role === 'engineer' ? (
+            <Button label="Propose from a plan" variant="secondary" testID="open-planner" onPress={() => router.navigate('/planner')} />
+          ) : null}
           {canAudit ? <Button label="Audit trail" variant="secondary" testID="open-audit" onPress={() => router.navigate('/audit')} /> : null}
         </View>
       }

@@ -19,7 +19,11 @@ function Body({ planId }: { planId: number | null }) {
 export default function ProposeChangeScreen() {
   const planId = useIdParam('planId');
   return (
-    <Screen title="Propose a setpoint change" subtitle="The saved plan goes to the site’s supervisors for review and electronic signature." testID="screen-propose-change">
+    <Screen
+      title="Propose a setpoint change"
+      subtitle="The saved plan goes to the site’s supervisors for review and electronic signature."
+      testID="screen-propose-change"
+    >
       <Body planId={planId} />
     </Screen>
   );

@@ -15,7 +15,6 @@ import { useSite } from '@/hooks/use-site';
 import { useUsers } from '@/hooks/use-users';
 import { space, useBreakpoint } from '@/theme';
 
-
 function People() {
   const users = useUsers();
   const invites = useInvites();
@@ -44,7 +43,8 @@ function Outbox() {
   const outbox = useMailOutbox();
   if (outbox.error) return <ErrorState error={outbox.error} onRetry={outbox.retry} />;
   if (!outbox.data) return <Loader rows={2} label="Loading outgoing mail" />;
-  if (!outbox.data.messages.length) return <EmptyState title="No mail yet" message="Invites and notices sent from this site are listed here with their delivery state." />;
+  if (!outbox.data.messages.length)
+    return <EmptyState title="No mail yet" message="Invites and notices sent from this site are listed here with their delivery state." />;
   return <OutboxList messages={outbox.data.messages} />;
 }
 

@@ -26,7 +26,15 @@ export function AuditEventItem({ e }: { e: AuditEvent }) {
       <Text variant="small" tone="muted">
         {site.stamp(e.at)}
       </Text>
-      {changes.length ? <DataTable columns={changes.every((r) => r.before === '–') ? RECORDED : COLUMNS} rows={changes} rowKey={(r) => r.field} caption="What changed" testID="audit-changes" /> : null}
+      {changes.length ? (
+        <DataTable
+          columns={changes.every((r) => r.before === '–') ? RECORDED : COLUMNS}
+          rows={changes}
+          rowKey={(r) => r.field}
+          caption="What changed"
+          testID="audit-changes"
+        />
+      ) : null}
     </View>
   );
 }

@@ -59,7 +59,13 @@ export type AuditChange = { field: string; before: string; after: string };
 // with its zone (inside a nested record too); the CSV keeps the full value.
 const ISO_INSTANT = /\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}(?:\.\d+)?Z/g;
 const raw = (v: unknown): string =>
-  v === undefined || v === null ? '–' : typeof v === 'number' && !Number.isInteger(v) ? String(Number(v.toFixed(4))) : typeof v === 'object' ? JSON.stringify(v) : String(v);
+  v === undefined || v === null
+    ? '–'
+    : typeof v === 'number' && !Number.isInteger(v)
+      ? String(Number(v.toFixed(4)))
+      : typeof v === 'object'
+        ? JSON.stringify(v)
+        : String(v);
 
 /** How the site writes what a person reads: its currency and its clock. */
 export type AuditSite = { currency: string; stamp: (iso: string) => string };
@@ -68,7 +74,15 @@ const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'obj
 // `setpointC` -> `setpoint (°C)`, `releasedPlanId` -> `released plan id`: the unit suffixes the records use;
 // a price or cost names the site's currency (`productPricePerKg` -> `product price (EUR/kg)`).
 const fieldName = (k: string, currency: string) =>
-  words(k.replace(/PricePerKg$/, ` price (${currency}/kg)`).replace(/CostPerDegCHour$/, ` cost (${currency} per °C·h)`).replace(/GPerL$/, ' (g/L)').replace(/(?<=[a-z])C$/, ' (°C)').replace(/(?<=[a-z])H$/, ' (h)').replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`));
+  words(
+    k
+      .replace(/PricePerKg$/, ` price (${currency}/kg)`)
+      .replace(/CostPerDegCHour$/, ` cost (${currency} per °C·h)`)
+      .replace(/GPerL$/, ' (g/L)')
+      .replace(/(?<=[a-z])C$/, ' (°C)')
+      .replace(/(?<=[a-z])H$/, ' (h)')
+      .replace(/([a-z])([A-Z])/g, (_, a: string, b: string) => `${a} ${b.toLowerCase()}`),
+  );
 
 /** What an event changed, field by field: only the fields whose values differ, old -> new. */
 export function auditChanges(e: Pick<AuditEvent, 'oldValue' | 'newValue'>, site: AuditSite): AuditChange[] {

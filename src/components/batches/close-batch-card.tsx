@@ -29,7 +29,14 @@ export function CloseBatchCard({ batchId, status, openDeviations }: { batchId: n
         The forecast now is {fmt(status.forecastGPerL)} g/L; it is kept beside the lab result so the site can see how good the forecasts are.
         {openDeviations ? ` Close the ${openDeviations} open deviation${openDeviations > 1 ? 's' : ''} first.` : ''}
       </Text>
-      <Field label="Measured product, g/L (optional)" value={measured} onChangeText={setMeasured} inputMode="decimal" testID="close-measured" error={localError ?? close.error?.fields?.measuredProductGPerL} />
+      <Field
+        label="Measured product, g/L (optional)"
+        value={measured}
+        onChangeText={setMeasured}
+        inputMode="decimal"
+        testID="close-measured"
+        error={localError ?? close.error?.fields?.measuredProductGPerL}
+      />
       <Field label="Comment (optional)" value={comment} onChangeText={setComment} testID="close-comment" />
       {close.error && !close.error.fields?.measuredProductGPerL ? (
         <Text variant="small" tone="danger">

@@ -26,9 +26,10 @@ function Suggestion({ d }: { d: NonNullable<Deviation['corrective']> }) {
   const gain = d.forecastGPerL - d.planForecastGPerL;
   return (
     <Text variant="small" testID="deviation-corrective">
-      Suggested for the rest of the batch: hold {fmt(d.setpointC)} °C from hour {fmt(d.fromH)} ({fmt(d.remainingH)} h left, within {fmt(d.boundsC[0], 0)}–{fmt(d.boundsC[1], 0)} °C).
-      Forecast {fmt(d.forecastGPerL)} g/L against {fmt(d.planForecastGPerL)} g/L back on the plan
-      {Math.abs(gain) < 0.05 ? ' — the plan is as good.' : ` (${gain > 0 ? '+' : ''}${fmt(gain)} g/L).`} Advisory only: setpoint changes go through the site’s procedure.
+      Suggested for the rest of the batch: hold {fmt(d.setpointC)} °C from hour {fmt(d.fromH)} ({fmt(d.remainingH)} h left, within {fmt(d.boundsC[0], 0)}–
+      {fmt(d.boundsC[1], 0)} °C). Forecast {fmt(d.forecastGPerL)} g/L against {fmt(d.planForecastGPerL)} g/L back on the plan
+      {Math.abs(gain) < 0.05 ? ' — the plan is as good.' : ` (${gain > 0 ? '+' : ''}${fmt(gain)} g/L).`} Advisory only: setpoint changes go through the site’s
+      procedure.
     </Text>
   );
 }

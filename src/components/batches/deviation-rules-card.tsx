@@ -26,8 +26,22 @@ export function DeviationRulesCard({ canChange }: { canChange: boolean }) {
       </Text>
       {draft ? (
         <>
-          <Field label="Band around the plan, ± °C" value={draft.toleranceC} onChangeText={(v) => setDraft({ ...draft, toleranceC: v })} inputMode="decimal" error={update.error?.fields.toleranceC} testID="rules-toleranceC" />
-          <Field label="Longest gap between readings, min" value={draft.gapLimitMin} onChangeText={(v) => setDraft({ ...draft, gapLimitMin: v })} inputMode="numeric" error={update.error?.fields.gapLimitMin} testID="rules-gapLimitMin" />
+          <Field
+            label="Band around the plan, ± °C"
+            value={draft.toleranceC}
+            onChangeText={(v) => setDraft({ ...draft, toleranceC: v })}
+            inputMode="decimal"
+            error={update.error?.fields.toleranceC}
+            testID="rules-toleranceC"
+          />
+          <Field
+            label="Longest gap between readings, min"
+            value={draft.gapLimitMin}
+            onChangeText={(v) => setDraft({ ...draft, gapLimitMin: v })}
+            inputMode="numeric"
+            error={update.error?.fields.gapLimitMin}
+            testID="rules-gapLimitMin"
+          />
           {update.error && !Object.keys(update.error.fields).length ? <Text tone="danger">{update.error.message}</Text> : null}
           <View style={styles.actions}>
             <Button label="Save rules" onPress={save} isBusy={update.isBusy} testID="rules-save" />
@@ -36,7 +50,12 @@ export function DeviationRulesCard({ canChange }: { canChange: boolean }) {
         </>
       ) : canChange ? (
         <View style={styles.actions}>
-          <Button label="Change the rules" variant="secondary" onPress={() => setDraft({ toleranceC: String(data.toleranceC), gapLimitMin: String(data.gapLimitMin) })} testID="rules-edit" />
+          <Button
+            label="Change the rules"
+            variant="secondary"
+            onPress={() => setDraft({ toleranceC: String(data.toleranceC), gapLimitMin: String(data.gapLimitMin) })}
+            testID="rules-edit"
+          />
         </View>
       ) : null}
     </Card>

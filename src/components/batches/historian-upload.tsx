@@ -18,7 +18,10 @@ export function HistorianUpload({ batchId, siteTimeZone }: { batchId: number; si
   const [result, setResult] = useState<ImportResult | null>(null);
   const progress = useImportProgress(batchId, upload.isBusy);
   async function pick() {
-    const picked = await DocumentPicker.getDocumentAsync({ type: ['text/csv', 'text/comma-separated-values', 'text/plain', 'application/vnd.ms-excel'], base64: false });
+    const picked = await DocumentPicker.getDocumentAsync({
+      type: ['text/csv', 'text/comma-separated-values', 'text/plain', 'application/vnd.ms-excel'],
+      base64: false,
+    });
     if (picked.canceled || !picked.assets[0]) return;
     const asset = picked.assets[0];
     const text = asset.file ? await asset.file.text() : await (await fetch(asset.uri)).text();
@@ -30,13 +33,16 @@ export function HistorianUpload({ batchId, siteTimeZone }: { batchId: number; si
         Historian export
       </Text>
       <Text variant="small" tone="muted">
-        A CSV of time and °C. Times without a zone are read as {siteTimeZone}; day.month.year, ISO and Unix times are understood. Rows already stored are skipped.
+        A CSV of time and °C. Times without a zone are read as {siteTimeZone}; day.month.year, ISO and Unix times are understood. Rows already stored are
+        skipped.
       </Text>
       <Button label="Upload CSV" variant="secondary" isBusy={upload.isBusy} onPress={() => void pick()} testID="historian-upload-button" />
       {progress?.isRunning ? (
         <View style={styles.result} testID="historian-progress">
           <ProgressBar
-            value={progress.phase === 'storing' ? progress.rowsStored / Math.max(1, progress.rowsToStore) : progress.bytesRead / Math.max(1, progress.bytesTotal)}
+            value={
+              progress.phase === 'storing' ? progress.rowsStored / Math.max(1, progress.rowsToStore) : progress.bytesRead / Math.max(1, progress.bytesTotal)
+            }
             label="Historian import progress"
           />
           <Text variant="small" tone="muted" accessibilityLiveRegion="polite">
@@ -54,7 +60,8 @@ export function HistorianUpload({ batchId, siteTimeZone }: { batchId: number; si
       {result ? (
         <View style={styles.result} testID="historian-result">
           <Text variant="small" weight="semibold">
-            {result.imported} of {result.rows} rows stored · {result.skipped} skipped · {result.outOfOrder} out of order · {result.deviationsRaised} deviations raised
+            {result.imported} of {result.rows} rows stored · {result.skipped} skipped · {result.outOfOrder} out of order · {result.deviationsRaised} deviations
+            raised
           </Text>
           {result.problems.slice(0, 20).map((p) => (
             <Text key={`${p.line}-${p.kind}`} variant="caption" tone={p.kind === 'out_of_order' ? 'warning' : 'danger'}>

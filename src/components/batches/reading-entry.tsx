@@ -122,7 +122,11 @@ export function ReadingEntry({ startedAt, lastC, vessel, logger }: Props) {
             {confirm.message} Is that what the reactor reads?
           </Text>
           <View style={styles.buttons}>
-            <Button label={`Log ${confirm.c.toFixed(1)} °C as read`} onPress={() => void submit(confirm.c, confirm.timeText, true)} testID="reading-confirm-yes" />
+            <Button
+              label={`Log ${confirm.c.toFixed(1)} °C as read`}
+              onPress={() => void submit(confirm.c, confirm.timeText, true)}
+              testID="reading-confirm-yes"
+            />
             <Button label="Change it" variant="secondary" onPress={() => setConfirm(null)} testID="reading-confirm-no" />
           </View>
         </View>
@@ -130,12 +134,7 @@ export function ReadingEntry({ startedAt, lastC, vessel, logger }: Props) {
       <View style={styles.buttons}>
         <Button label="Log reading" onPress={onLog} testID="reading-submit" />
         {lastC !== null ? (
-          <Button
-            label={`Repeat ${lastC.toFixed(1)} °C now`}
-            variant="secondary"
-            onPress={() => void submit(lastC, null)}
-            testID="reading-repeat"
-          />
+          <Button label={`Repeat ${lastC.toFixed(1)} °C now`} variant="secondary" onPress={() => void submit(lastC, null)} testID="reading-repeat" />
         ) : null}
       </View>
       {done ? (
@@ -145,7 +144,8 @@ export function ReadingEntry({ startedAt, lastC, vessel, logger }: Props) {
       ) : null}
       {logger.queued.length ? (
         <Text variant="small" tone="warning" testID="reading-queue">
-          {logger.queued.length} reading{logger.queued.length > 1 ? 's' : ''} saved on this device, waiting for the network{logger.isOffline ? ' (offline)' : ''}. They are sent by themselves.
+          {logger.queued.length} reading{logger.queued.length > 1 ? 's' : ''} saved on this device, waiting for the network
+          {logger.isOffline ? ' (offline)' : ''}. They are sent by themselves.
         </Text>
       ) : logger.sentCount ? (
         <Text variant="small" tone="success" testID="reading-sent" accessibilityLiveRegion="polite">

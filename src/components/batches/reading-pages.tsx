@@ -21,7 +21,14 @@ export const readingColumns = (time: (iso: string) => string): Column<ReadingRow
 
 const SOURCE_BY = { historian: 'historian', control_system: 'control system' } as const;
 
-export const readingRow = (r: Reading): ReadingRow => ({ key: r.key, takenAt: r.takenAt, h: r.h, c: r.c, by: r.source === 'manual' ? r.enteredBy : SOURCE_BY[r.source], note: r.note ?? '' });
+export const readingRow = (r: Reading): ReadingRow => ({
+  key: r.key,
+  takenAt: r.takenAt,
+  h: r.h,
+  c: r.c,
+  by: r.source === 'manual' ? r.enteredBy : SOURCE_BY[r.source],
+  note: r.note ?? '',
+});
 
 const PAGE = 50;
 
@@ -51,7 +58,15 @@ export function ReadingPages({ batchId, total }: { batchId: number; total: numbe
   const isOpen = next !== undefined;
   return (
     <View style={styles.block} testID="reading-pages">
-      {isOpen ? <DataTable columns={readingColumns(site.time)} rows={rows} rowKey={(r) => r.key} caption="All stored readings, newest first" testID="reading-pages-table" /> : null}
+      {isOpen ? (
+        <DataTable
+          columns={readingColumns(site.time)}
+          rows={rows}
+          rowKey={(r) => r.key}
+          caption="All stored readings, newest first"
+          testID="reading-pages-table"
+        />
+      ) : null}
       {isOpen ? (
         <Text variant="small" tone="muted" testID="reading-pages-count">
           {rows.length.toLocaleString('en')} of {total.toLocaleString('en')} stored readings shown, newest first.
@@ -63,7 +78,13 @@ export function ReadingPages({ batchId, total }: { batchId: number; total: numbe
         </Text>
       ) : null}
       {next !== null ? (
-        <Button label={isOpen ? `Older ${PAGE}` : `All ${total.toLocaleString('en')} stored readings`} variant="ghost" onPress={() => void load()} isBusy={busy} testID="reading-pages-more" />
+        <Button
+          label={isOpen ? `Older ${PAGE}` : `All ${total.toLocaleString('en')} stored readings`}
+          variant="ghost"
+          onPress={() => void load()}
+          isBusy={busy}
+          testID="reading-pages-more"
+        />
       ) : null}
     </View>
   );

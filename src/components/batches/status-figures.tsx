@@ -17,7 +17,11 @@ export function StatusFigures({ status, isPreview }: { status: BatchStatus; isPr
           testID="figure-forecast"
         />
         <Figure label={`Product so far, at hour ${fmt(status.lastH)}`} value={`${fmt(status.productSoFarGPerL)} g/L`} testID="figure-product" />
-        <Figure label={`Activity left · ${fmt(status.forecastActivityLeft * 100, 0)} % at the end`} value={`${fmt(status.activityLeft * 100, 0)} %`} testID="figure-activity" />
+        <Figure
+          label={`Activity left · ${fmt(status.forecastActivityLeft * 100, 0)} % at the end`}
+          value={`${fmt(status.activityLeft * 100, 0)} %`}
+          testID="figure-activity"
+        />
         <Figure label={`Thermal dose, h equivalent at ${fmt(status.refC, 0)} °C`} value={fmt(status.equivalentHAtRef, 2)} testID="figure-dose" />
         <Figure label={`Planned now · ${fmt(status.hoursLeft)} h left`} value={`${fmt(status.plannedNowC)} °C`} testID="figure-planned-now" />
       </View>

@@ -15,13 +15,16 @@ const count = (n: number, one: string, many: string) => `${n} ${n === 1 ? one : 
 
 const STATUS_LABEL: Record<BillingSummary['status'], string> = { none: 'No paid plan', active: 'Paid up', past_due: 'Payment failed', canceled: 'Ended' };
 
-
 export function PlanFigures({ b }: { b: BillingSummary }) {
   const { isWide } = useBreakpoint();
   return (
     <View style={[styles.figures, isWide && styles.figuresWide]}>
       <Figure label="paid seats" value={String(b.seats)} testID="billing-seats" />
-      <Figure label={`in use (${count(b.activeUsers, 'person', 'people')}, ${count(b.pendingInvites, 'invite', 'invites')})`} value={String(b.seatsInUse)} testID="billing-seats-in-use" />
+      <Figure
+        label={`in use (${count(b.activeUsers, 'person', 'people')}, ${count(b.pendingInvites, 'invite', 'invites')})`}
+        value={String(b.seatsInUse)}
+        testID="billing-seats-in-use"
+      />
       <Figure label="free seats" value={String(Math.max(0, b.seats - b.seatsInUse))} testID="billing-seats-free" />
     </View>
   );
@@ -124,9 +127,18 @@ export function ReduceSeatsCard({ b }: { b: BillingSummary }) {
         Reduce seats
       </Text>
       <Text tone="muted">
-        Fewer seats bill from the next period. You cannot go below the {b.seatsInUse} seats in use: deactivate people or withdraw invites on the Site screen first.
+        Fewer seats bill from the next period. You cannot go below the {b.seatsInUse} seats in use: deactivate people or withdraw invites on the Site screen
+        first.
       </Text>
-      <Field label="New seat count" testID="billing-reduce-count" value={count} onChangeText={setCount} inputMode="numeric" keyboardType="number-pad" error={errorFor(change.error, 'seats')} />
+      <Field
+        label="New seat count"
+        testID="billing-reduce-count"
+        value={count}
+        onChangeText={setCount}
+        inputMode="numeric"
+        keyboardType="number-pad"
+        error={errorFor(change.error, 'seats')}
+      />
       {change.error && change.error.fields.seats ? (
         <Text tone="danger" variant="small" testID="billing-reduce-error">
           {change.error.message}
@@ -148,7 +160,12 @@ const INVOICE_COLUMNS: Column<Invoice>[] = [
   { key: 'number', label: 'Invoice', value: (i) => i.number, flex: 1.2 },
   { key: 'issued', label: 'Issued', value: (i) => isoDate(i.issuedAt) },
   // A one-off charge for added seats has no period of its own.
-  { key: 'period', label: 'Period', value: (i) => (i.periodStart === i.periodEnd ? `${isoDate(i.periodStart)}, seats added (one-off)` : `${isoDate(i.periodStart)} – ${isoDate(i.periodEnd)}`), flex: 1.6 },
+  {
+    key: 'period',
+    label: 'Period',
+    value: (i) => (i.periodStart === i.periodEnd ? `${isoDate(i.periodStart)}, seats added (one-off)` : `${isoDate(i.periodStart)} – ${isoDate(i.periodEnd)}`),
+    flex: 1.6,
+  },
   { key: 'seats', label: 'Seats', value: (i) => String(i.seats), isNumeric: true, flex: 0.6 },
   { key: 'amount', label: 'Amount', value: (i) => cents(i.amountDueCents, i.currency), isNumeric: true },
   { key: 'status', label: 'Status', value: (i) => (i.status === 'paid' ? 'Paid' : i.status === 'open' ? 'Unpaid' : i.status) },

@@ -34,19 +34,43 @@ const PARAM_COLUMNS = (hasProposed: boolean, hasAccepted: boolean): Column<Param
 ];
 
 /** An outlier batch with the engineer's explicit choice to leave it out, with a reason (audited by the server). */
-function OutlierAction({ batch, canDecide, onExclude, isBusy, error }: { batch: CalibrationBatchResult; canDecide: boolean; onExclude: (reason: string) => void; isBusy: boolean; error?: string }) {
+function OutlierAction({
+  batch,
+  canDecide,
+  onExclude,
+  isBusy,
+  error,
+}: {
+  batch: CalibrationBatchResult;
+  canDecide: boolean;
+  onExclude: (reason: string) => void;
+  isBusy: boolean;
+  error?: string;
+}) {
   const [reason, setReason] = useState('');
   return (
     <View style={styles.outlier} testID={`outlier-${batch.batchId}`}>
       <Text tone="warning" weight="semibold">
-        Batch #{batch.batchId} is an outlier: measured {fmt(batch.measuredProductGPerL)} g/L against {fmt(batch.leaveOneOutForecastGPerL)} g/L expected from the others (standardised residual {fmt(batch.standardisedResidual, 1)}). It stays in
-        the calibration unless you leave it out.
+        Batch #{batch.batchId} is an outlier: measured {fmt(batch.measuredProductGPerL)} g/L against {fmt(batch.leaveOneOutForecastGPerL)} g/L expected from the
+        others (standardised residual {fmt(batch.standardisedResidual, 1)}). It stays in the calibration unless you leave it out.
       </Text>
       {canDecide ? (
         <>
-          <Field label={`Why leave batch #${batch.batchId} out (recorded in the audit trail)`} value={reason} onChangeText={setReason} error={error} testID={`outlier-reason-${batch.batchId}`} />
+          <Field
+            label={`Why leave batch #${batch.batchId} out (recorded in the audit trail)`}
+            value={reason}
+            onChangeText={setReason}
+            error={error}
+            testID={`outlier-reason-${batch.batchId}`}
+          />
           <View style={styles.row}>
-            <Button label={`Leave batch #${batch.batchId} out`} variant="secondary" isBusy={isBusy} onPress={() => onExclude(reason)} testID={`outlier-exclude-${batch.batchId}`} />
+            <Button
+              label={`Leave batch #${batch.batchId} out`}
+              variant="secondary"
+              isBusy={isBusy}
+              onPress={() => onExclude(reason)}
+              testID={`outlier-exclude-${batch.batchId}`}
+            />
           </View>
         </>
       ) : null}
@@ -81,14 +105,21 @@ export function CalibrationReview({ recipeId, lotId, canDecide }: { recipeId: nu
       <>
         {proposed ? (
           <Text testID="calibration-proposed">
-            Proposed {proposed.createdAt.slice(0, 10)} from {proposed.batchIds.length} closed batch{proposed.batchIds.length === 1 ? '' : 'es'} ({proposed.batchIds.map((id) => `#${id}`).join(', ')}). Prior: {proposed.result.prior.text}.
+            Proposed {proposed.createdAt.slice(0, 10)} from {proposed.batchIds.length} closed batch{proposed.batchIds.length === 1 ? '' : 'es'} (
+            {proposed.batchIds.map((id) => `#${id}`).join(', ')}). Prior: {proposed.result.prior.text}.
           </Text>
         ) : (
           <Text tone="muted" testID="calibration-none-proposed">
             No new proposal: the calibration in use covers every closed batch.
           </Text>
         )}
-        <DataTable columns={PARAM_COLUMNS(!!proposed, !!accepted)} rows={paramRows(basis, proposed, accepted)} rowKey={(r) => r.label} caption="Parameters: assay evidence against the calibration" testID="calibration-params" />
+        <DataTable
+          columns={PARAM_COLUMNS(!!proposed, !!accepted)}
+          rows={paramRows(basis, proposed, accepted)}
+          rowKey={(r) => r.label}
+          caption="Parameters: assay evidence against the calibration"
+          testID="calibration-params"
+        />
         {outliers.map((b) => (
           <OutlierAction
             key={b.batchId}

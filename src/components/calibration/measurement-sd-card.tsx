@@ -22,7 +22,8 @@ export function MeasurementSdCard({ canChange }: { canChange: boolean }) {
         Calibration
       </Text>
       <Text testID={data ? 'measurement-sd-sentence' : undefined}>
-        A lab result of a closed batch counts in calibration with a standard deviation of {data ? fmt(data.measurementRelSd * 100) : '–'} % of the measured product.
+        A lab result of a closed batch counts in calibration with a standard deviation of {data ? fmt(data.measurementRelSd * 100) : '–'} % of the measured
+        product.
       </Text>
       <Text variant="small" tone="muted">
         Set it from the lab’s own replicate measurements; new proposals use it, earlier ones state the value they used.
@@ -35,7 +36,7 @@ export function MeasurementSdCard({ canChange }: { canChange: boolean }) {
             onChangeText={setDraft}
             inputMode="decimal"
             // The API checks the fraction; the field shows per cent.
-            error={update.error?.fields.measurementRelSd ? "Between 0.1 and 20 %" : undefined}
+            error={update.error?.fields.measurementRelSd ? 'Between 0.1 and 20 %' : undefined}
             testID="measurement-sd-input"
           />
           {update.error && !update.error.fields.measurementRelSd ? <Text tone="danger">{update.error.message}</Text> : null}
@@ -46,7 +47,13 @@ export function MeasurementSdCard({ canChange }: { canChange: boolean }) {
         </>
       ) : canChange ? (
         <View style={styles.actions}>
-          <Button label="Change the measurement spread" variant="secondary" disabled={!data} onPress={() => data && setDraft(String(Number((data.measurementRelSd * 100).toFixed(2))))} testID="measurement-sd-edit" />
+          <Button
+            label="Change the measurement spread"
+            variant="secondary"
+            disabled={!data}
+            onPress={() => data && setDraft(String(Number((data.measurementRelSd * 100).toFixed(2))))}
+            testID="measurement-sd-edit"
+          />
         </View>
       ) : null}
     </Card>

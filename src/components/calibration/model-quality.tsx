@@ -11,7 +11,13 @@ const BATCH_COLUMNS: Column<CalibrationBatchResult>[] = [
   { key: 'closed', label: 'Closed', value: (b) => b.closedAt.slice(0, 10), flex: 1.3 },
   { key: 'm', label: 'Measured g/L', value: (b) => fmt(b.measuredProductGPerL), isNumeric: true },
   { key: 'prior', label: 'Forecast before g/L', value: (b) => `${fmt(b.priorForecastGPerL)} ± ${fmt(b.priorSdGPerL)}`, isNumeric: true, flex: 1.3 },
-  { key: 'loo', label: 'Leave-one-out after g/L', value: (b) => `${fmt(b.leaveOneOutForecastGPerL)} ± ${fmt(b.leaveOneOutSdGPerL)}`, isNumeric: true, flex: 1.3 },
+  {
+    key: 'loo',
+    label: 'Leave-one-out after g/L',
+    value: (b) => `${fmt(b.leaveOneOutForecastGPerL)} ± ${fmt(b.leaveOneOutSdGPerL)}`,
+    isNumeric: true,
+    flex: 1.3,
+  },
   { key: 'r', label: 'Std. residual', value: (b) => `${fmt(b.standardisedResidual, 2)}${b.isOutlier ? ' (outlier)' : ''}`, isNumeric: true },
 ];
 
@@ -19,7 +25,13 @@ const DRIFT_COLUMNS: Column<DriftPoint>[] = [
   { key: 'n', label: 'Batches', value: (d) => (d.batchCount === 0 ? '0 (assay evidence)' : String(d.batchCount)), flex: 1.2 },
   { key: 'h', label: 't½ h (95 %)', value: (d) => `${fmt(d.halfLifeRefH)} (${fmt(d.halfLifeLowH)}–${fmt(d.halfLifeHighH)})`, isNumeric: true, flex: 1.4 },
   { key: 'ed', label: 'Ed kJ/mol (95 %)', value: (d) => `${fmt(d.edKJPerMol, 0)} (${fmt(d.edLow, 0)}–${fmt(d.edHigh, 0)})`, isNumeric: true, flex: 1.4 },
-  { key: 'v', label: 'Vmax × (95 %)', value: (d) => `${d.vmaxScale.toFixed(3)} (${d.vmaxScaleLow.toFixed(3)}–${d.vmaxScaleHigh.toFixed(3)})`, isNumeric: true, flex: 1.4 },
+  {
+    key: 'v',
+    label: 'Vmax × (95 %)',
+    value: (d) => `${d.vmaxScale.toFixed(3)} (${d.vmaxScaleLow.toFixed(3)}–${d.vmaxScaleHigh.toFixed(3)})`,
+    isNumeric: true,
+    flex: 1.4,
+  },
 ];
 
 /** Bias and RMSE of the forecasts before and after calibration, in one sentence. */
@@ -87,7 +99,13 @@ export function ModelQuality({ result: r, testID = 'model-quality' }: { result: 
         testID={`${testID}-batches`}
         onRowPress={(b) => router.push(`/batches/${b.batchId}`)}
       />
-      <DataTable columns={DRIFT_COLUMNS} rows={d} rowKey={(p) => String(p.batchCount)} caption="Parameters after each closed batch" testID={`${testID}-drift`} />
+      <DataTable
+        columns={DRIFT_COLUMNS}
+        rows={d}
+        rowKey={(p) => String(p.batchCount)}
+        caption="Parameters after each closed batch"
+        testID={`${testID}-drift`}
+      />
       {r.leftOut.length ? (
         <Text variant="small" tone="muted" testID={`${testID}-left-out`}>
           Left out: {r.leftOut.map((l) => `#${l.batchId} (${l.reason}${l.by ? `, ${l.by}` : ''})`).join('; ')}.

@@ -41,6 +41,15 @@ export function ChangeRequestList({ items }: { items: ChangeRequestSummary[] }) 
 
 const styles = StyleSheet.create({
   list: { gap: space.sm },
-  row: { minHeight: touchTarget, borderWidth: 1, borderRadius: radius.lg, padding: space.lg, gap: space.sm, flexDirection: 'row', flexWrap: 'wrap', justifyContent: 'space-between' },
+  row: {
+    minHeight: touchTarget,
+    borderWidth: 1,
+    borderRadius: radius.lg,
+    padding: space.lg,
+    gap: space.sm,
+    flexDirection: 'row',
+    flexWrap: 'wrap',
+    justifyContent: 'space-between',
+  },
   main: { gap: space.xs, flexBasis: 260, flexGrow: 1, flexShrink: 1 },
 });

@@ -22,7 +22,6 @@ const COLUMNS: Column<Row>[] = [
   { key: 'value', label: 'Value', value: (r) => r.value, flex: 1.6 },
 ];
 
-
 function inputRows(d: ChangeRequestDetail, currency: string): Row[] {
   const i = d.plan.inputs;
   const k = d.plan.outputs.kinetics;
@@ -52,7 +51,8 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
           {STATUS_LABELS[d.status]}
         </Text>
         <Text tone="muted" testID="record-meta">
-          #{d.id} · {d.recipeName} in {d.vesselName} · proposed by {d.proposedBy}, {site.stamp(d.createdAt)} · effective from {d.effectiveFrom} ({d.siteTimeZone})
+          #{d.id} · {d.recipeName} in {d.vesselName} · proposed by {d.proposedBy}, {site.stamp(d.createdAt)} · effective from {d.effectiveFrom} (
+          {d.siteTimeZone})
         </Text>
       </View>
       <View style={styles.actions} testID="record-actions">
@@ -64,7 +64,12 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
         <Card testID="record-closed">
           <Text weight="semibold">{closedBecause(d.status, d.supersededBy)}</Text>
           <View style={styles.actions}>
-            <Button label={`Open request #${d.supersededBy}`} variant="secondary" onPress={() => router.push(`/sign-offs/${d.supersededBy}`)} testID="record-open-superseding" />
+            <Button
+              label={`Open request #${d.supersededBy}`}
+              variant="secondary"
+              onPress={() => router.push(`/sign-offs/${d.supersededBy}`)}
+              testID="record-open-superseding"
+            />
           </View>
         </Card>
       ) : null}
@@ -84,7 +89,9 @@ export function ChangeRequestRecord({ detail: d, user }: { detail: ChangeRequest
             </Text>
             <Comparison current={d.current} proposed={d.proposed} />
             {cautions.crossesBoiling ? <Text tone="warning">Above 100 °C: a pressurised operation for a water-based batch.</Text> : null}
-            {cautions.belowHygienicMin ? <Text tone="warning">Holds the batch below the vessel’s hygienic minimum of {fmt(cautions.hygienicMinC)} °C.</Text> : null}
+            {cautions.belowHygienicMin ? (
+              <Text tone="warning">Holds the batch below the vessel’s hygienic minimum of {fmt(cautions.hygienicMinC)} °C.</Text>
+            ) : null}
           </Card>
           <Card>
             <Text variant="title" accessibilityRole="header">

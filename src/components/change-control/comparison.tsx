@@ -32,7 +32,9 @@ export function Comparison({ current, proposed }: { current: SetpointSide; propo
     row('Basis', (s) => `${SOURCE[s.source]}${s.planId ? ` #${s.planId}` : ''}`),
     row(proposed.stages || current.stages ? 'Setpoint or profile' : 'Setpoint', setpoint),
     row('Predicted product', (s) => orDash(s.predictedProductGPerL, (x) => `${fmt(x)} g/L`)),
-    row('P10 / P50 / P90', (s) => (s.p10GPerL === null || s.p50GPerL === null || s.p90GPerL === null ? 'Not run' : `${fmt(s.p10GPerL)} / ${fmt(s.p50GPerL)} / ${fmt(s.p90GPerL)} g/L`)),
+    row('P10 / P50 / P90', (s) =>
+      s.p10GPerL === null || s.p50GPerL === null || s.p90GPerL === null ? 'Not run' : `${fmt(s.p10GPerL)} / ${fmt(s.p50GPerL)} / ${fmt(s.p90GPerL)} g/L`,
+    ),
     row('Activity left at the end', (s) => orDash(s.activityLeft, (x) => `${fmt(x * 100, 0)} %`)),
     row('Profit per reactor hour', (s) => orDash(s.profitPerH, (x) => site.money(x, 1))),
     row('Constraints met', (s) => (s.constraintsMet === null ? '–' : s.constraintsMet ? 'Yes' : 'No')),

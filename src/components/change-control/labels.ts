@@ -7,7 +7,13 @@ export const STATUS_LABELS: Record<ChangeStatus, string> = {
   superseded: 'Superseded',
   stale: 'Stale',
 };
-export const STATUS_TONES: Record<ChangeStatus, 'warning' | 'success' | 'danger' | 'muted'> = { proposed: 'warning', approved: 'success', rejected: 'danger', superseded: 'muted', stale: 'muted' };
+export const STATUS_TONES: Record<ChangeStatus, 'warning' | 'success' | 'danger' | 'muted'> = {
+  proposed: 'warning',
+  approved: 'success',
+  rejected: 'danger',
+  superseded: 'muted',
+  stale: 'muted',
+};
 
 /** Why a request closed without a decision of its own. */
 export const closedBecause = (status: ChangeStatus, by: number | null) =>

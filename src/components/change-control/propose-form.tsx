@@ -6,7 +6,8 @@ import { useProposeChange } from '../../hooks/use-propose-change';
 import { Button, Card, Field, Text } from '../ui';
 
 /** Today's date on the site's clock, YYYY-MM-DD. */
-export const siteToday = (timeZone: string) => new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date());
+export const siteToday = (timeZone: string) =>
+  new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date());
 
 /** Proposes a saved plan as the recipe's setpoint; the server fixes the record hash on submission. */
 export function ProposeForm({ plan, timeZone }: { plan: Plan; timeZone: string }) {
@@ -23,9 +24,18 @@ export function ProposeForm({ plan, timeZone }: { plan: Plan; timeZone: string }
   return (
     <Card testID="propose-form">
       <Text>
-        Plan #{plan.id} for {plan.recipeName}: {plan.outputs.stages ? 'staged profile' : `${fmt(plan.outputs.setpointC)} °C held`} instead of {fmt(plan.outputs.current.setpointC)} °C.
+        Plan #{plan.id} for {plan.recipeName}: {plan.outputs.stages ? 'staged profile' : `${fmt(plan.outputs.setpointC)} °C held`} instead of{' '}
+        {fmt(plan.outputs.current.setpointC)} °C.
       </Text>
-      <Field label="Rationale" value={rationale} onChangeText={setRationale} multiline error={error?.fields.rationale} hint="Why this change, for the supervisor and the record." testID="propose-rationale" />
+      <Field
+        label="Rationale"
+        value={rationale}
+        onChangeText={setRationale}
+        multiline
+        error={error?.fields.rationale}
+        hint="Why this change, for the supervisor and the record."
+        testID="propose-rationale"
+      />
       <Field label="Expected effect" value={expectedEffect} onChangeText={setExpectedEffect} error={error?.fields.expectedEffect} testID="propose-effect" />
       <Field
         label="Effective from (site date)"

@@ -25,7 +25,13 @@ export function SignForm({ id, signerName, recordHash }: { id: number; signerNam
       <Text variant="small" tone="muted">
         Signing as {signerName}. Your signature is bound to record hash {recordHash.slice(0, 16)}…; if the plan or request changes, it cannot be signed.
       </Text>
-      <Choice label="Meaning" value={meaning} options={MEANINGS.map((m) => ({ value: m, label: MEANING_LABELS[m] }))} onChange={setMeaning} testID="sign-meaning" />
+      <Choice
+        label="Meaning"
+        value={meaning}
+        options={MEANINGS.map((m) => ({ value: m, label: MEANING_LABELS[m] }))}
+        onChange={setMeaning}
+        testID="sign-meaning"
+      />
       <Text variant="small" tone="muted">
         {MEANING_HINTS[meaning]}
       </Text>

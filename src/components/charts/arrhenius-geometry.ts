@@ -36,7 +36,14 @@ export function arrheniusGeometry({ perTemperature, fit }: ArrheniusInput, width
   const [y0, y1] = ys.length ? pad(Math.min(...ys), Math.max(...ys)) : [-5, 0];
   const x = scaleLinear().domain([x0!, x1!]).nice().range([box.left, box.right]);
   const y = scaleLinear().domain([y0!, y1!]).nice().range([box.bottom, box.top]);
-  const dots = usable.map((p) => ({ x: x(invT1000(p.c)), y: y(Math.log(p.kdPerH)), c: p.c, kdPerH: p.kdPerH, invTPerK: invT1000(p.c), lnKd: Math.log(p.kdPerH) }));
+  const dots = usable.map((p) => ({
+    x: x(invT1000(p.c)),
+    y: y(Math.log(p.kdPerH)),
+    c: p.c,
+    kdPerH: p.kdPerH,
+    invTPerK: invT1000(p.c),
+    lnKd: Math.log(p.kdPerH),
+  }));
   const fitLine =
     fit && temps.length
       ? (() => {

@@ -24,7 +24,9 @@ export function BatchTemperatureChart({ input, label }: { input: BatchTemperatur
                 ))}
                 <Path d={g.bandPath} fill={c.chartLine} opacity={0.12} />
                 <Path d={g.planPath} stroke={c.chartLine} strokeWidth={2} strokeDasharray="6 4" fill="none" />
-                {g.vesselMaxY !== null ? <Line x1={g.box.left} x2={g.box.right} y1={g.vesselMaxY} y2={g.vesselMaxY} stroke={c.danger} strokeWidth={1.5} strokeDasharray="2 3" /> : null}
+                {g.vesselMaxY !== null ? (
+                  <Line x1={g.box.left} x2={g.box.right} y1={g.vesselMaxY} y2={g.vesselMaxY} stroke={c.danger} strokeWidth={1.5} strokeDasharray="2 3" />
+                ) : null}
                 {g.nowX !== null ? <Line x1={g.nowX} x2={g.nowX} y1={g.box.top} y2={g.box.bottom} stroke={c.textMuted} strokeWidth={1} /> : null}
                 {g.loggedPaths.map((d, i) => (
                   <Path key={i} d={d} stroke={c.chartLineAlt} strokeWidth={2} fill="none" />
@@ -36,7 +38,15 @@ export function BatchTemperatureChart({ input, label }: { input: BatchTemperatur
                   d.isControl ? (
                     <Rect key={i} x={d.x - 2.5} y={d.y - 2.5} width={5} height={5} fill={d.isOutside ? c.danger : c.primary} />
                   ) : (
-                  <Circle key={i} cx={d.x} cy={d.y} r={d.isOutside ? 5 : 3.5} fill={d.isQueued ? c.surface : d.isOutside ? c.danger : c.chartLineAlt} stroke={d.isOutside ? c.danger : c.chartLineAlt} strokeWidth={1.5} />
+                    <Circle
+                      key={i}
+                      cx={d.x}
+                      cy={d.y}
+                      r={d.isOutside ? 5 : 3.5}
+                      fill={d.isQueued ? c.surface : d.isOutside ? c.danger : c.chartLineAlt}
+                      stroke={d.isOutside ? c.danger : c.chartLineAlt}
+                      strokeWidth={1.5}
+                    />
                   ),
                 )}
               </G>

@@ -22,7 +22,13 @@ export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
   const [width, setWidth] = useState(0);
   const drawn = width > 0 ? render(width, HEIGHT) : null;
   return (
-    <View testID={testID} accessibilityRole="image" accessibilityLabel={label} style={{ height: HEIGHT }} onLayout={(e) => setWidth(Math.floor(e.nativeEvent.layout.width))}>
+    <View
+      testID={testID}
+      accessibilityRole="image"
+      accessibilityLabel={label}
+      style={{ height: HEIGHT }}
+      onLayout={(e) => setWidth(Math.floor(e.nativeEvent.layout.width))}
+    >
       {drawn ? (
         <Svg width={width} height={HEIGHT}>
           <G>
@@ -35,12 +41,27 @@ export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
               </G>
             ))}
             {drawn.xTicks.map((t) => (
-              <SvgText key={`x${t.value}`} x={t.pos} y={drawn.box.bottom + 16} fontSize={chartText.tick} fontFamily={font.regular} fill={c.textMuted} textAnchor="middle">
+              <SvgText
+                key={`x${t.value}`}
+                x={t.pos}
+                y={drawn.box.bottom + 16}
+                fontSize={chartText.tick}
+                fontFamily={font.regular}
+                fill={c.textMuted}
+                textAnchor="middle"
+              >
                 {t.label}
               </SvgText>
             ))}
             <Line x1={drawn.box.left} x2={drawn.box.right} y1={drawn.box.bottom} y2={drawn.box.bottom} stroke={c.border} strokeWidth={1} />
-            <SvgText x={(drawn.box.left + drawn.box.right) / 2} y={HEIGHT - 4} fontSize={chartText.title} fontFamily={font.semibold} fill={c.textMuted} textAnchor="middle">
+            <SvgText
+              x={(drawn.box.left + drawn.box.right) / 2}
+              y={HEIGHT - 4}
+              fontSize={chartText.title}
+              fontFamily={font.semibold}
+              fill={c.textMuted}
+              textAnchor="middle"
+            >
               {xTitle}
             </SvgText>
             <SvgText x={4} y={14} fontSize={chartText.title} fontFamily={font.semibold} fill={c.textMuted}>
@@ -74,7 +95,16 @@ export function Legend({ items, testID }: { items: LegendItem[]; testID?: string
         <View key={`${i}-${it.label}`} style={styles.legendItem}>
           {it.mark === 'line' ? (
             <Svg width={24} height={6} aria-hidden>
-              <Line x1={1} x2={23} y1={3} y2={3} stroke={it.color} strokeWidth={2.5} strokeLinecap={it.roundCap ? 'round' : undefined} strokeDasharray={it.dashArray} />
+              <Line
+                x1={1}
+                x2={23}
+                y1={3}
+                y2={3}
+                stroke={it.color}
+                strokeWidth={2.5}
+                strokeLinecap={it.roundCap ? 'round' : undefined}
+                strokeDasharray={it.dashArray}
+              />
             </Svg>
           ) : (
             <View style={[it.mark === 'band' ? styles.band : styles.point, { backgroundColor: it.color }]} />

@@ -30,10 +30,12 @@ export function decayGeometry(points: readonly DecayPoint[], fit: DecayFit | nul
     const curve =
       kdPerH === null
         ? null
-        : path(Array.from({ length: CURVE_STEPS + 1 }, (_, i) => {
-            const t = (tEnd * i) / CURVE_STEPS;
-            return [t, Math.exp(-kdPerH * t)] as [number, number];
-          }));
+        : path(
+            Array.from({ length: CURVE_STEPS + 1 }, (_, i) => {
+              const t = (tEnd * i) / CURVE_STEPS;
+              return [t, Math.exp(-kdPerH * t)] as [number, number];
+            }),
+          );
     const dots = points.filter((p) => p.tempC === tempC).map((p) => ({ x: x(p.timeH), y: y(p.residual), p }));
     return { tempC, kdPerH, dots, curve };
   });

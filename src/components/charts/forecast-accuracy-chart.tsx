@@ -13,7 +13,13 @@ type Props = {
 };
 
 /** Measured product against a forecast, one dot a batch (per group), with the line of perfect forecasts. */
-export function ForecastAccuracyChart({ points, label, groups = ['Closed batch'], xTitle = 'Forecast at closing, g/L', testID = 'forecast-accuracy-chart' }: Props) {
+export function ForecastAccuracyChart({
+  points,
+  label,
+  groups = ['Closed batch'],
+  xTitle = 'Forecast at closing, g/L',
+  testID = 'forecast-accuracy-chart',
+}: Props) {
   const c = useColors();
   const colors = useSeriesColors();
   return (

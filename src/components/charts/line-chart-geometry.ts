@@ -70,9 +70,14 @@ export function lineChartGeometry(input: LineChartInput): LineChartGeometry {
     y0 -= Math.abs(y0) * 0.1 || 1;
     y1 += Math.abs(y1) * 0.1 || 1;
   }
-  const x = scaleLinear().domain([x0, x1]).range([plot.left, plot.left + plot.width]);
+  const x = scaleLinear()
+    .domain([x0, x1])
+    .range([plot.left, plot.left + plot.width]);
   // SVG y grows downwards: the range is inverted so larger values sit higher.
-  const y = scaleLinear().domain([y0, y1]).range([plot.top + plot.height, plot.top]).nice(input.yTicks ?? 5);
+  const y = scaleLinear()
+    .domain([y0, y1])
+    .range([plot.top + plot.height, plot.top])
+    .nice(input.yTicks ?? 5);
   const fx = input.formatX ?? ((v: number) => String(v));
   const fy = input.formatY ?? ((v: number) => String(v));
   const path = line<Point>()

@@ -64,7 +64,15 @@ export function LineChart({ title, summary, series, bands = [], markers = [], xL
               <Path key={b.id} d={b.d} fill={toneColor(c, bands[i]!.tone)} fillOpacity={0.18} stroke="none" />
             ))}
             {g.lines.map((l, i) => (
-              <Path key={l.id} d={l.d} fill="none" stroke={toneColor(c, series[i]!.tone)} strokeWidth={2.5} strokeLinecap={series[i]!.dotted ? 'round' : undefined} strokeDasharray={dashOf(series[i]!)} />
+              <Path
+                key={l.id}
+                d={l.d}
+                fill="none"
+                stroke={toneColor(c, series[i]!.tone)}
+                strokeWidth={2.5}
+                strokeLinecap={series[i]!.dotted ? 'round' : undefined}
+                strokeDasharray={dashOf(series[i]!)}
+              />
             ))}
             {g.markers.map((m, i) => {
               const color = toneColor(c, markers[i]!.tone);

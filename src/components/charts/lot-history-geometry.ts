@@ -1,7 +1,14 @@
 import { scaleLinear, scaleUtc } from 'd3-scale';
 import { plotBox, tickLabel, ticksOf, type Box, type Tick } from './axes';
 
-export type HistoryPoint = { lotCode: string; receivedOn: string; basis: 'assay' | 'certificate' | 'none'; halfLifeH: number | null; lowerH: number | null; upperH: number | null };
+export type HistoryPoint = {
+  lotCode: string;
+  receivedOn: string;
+  basis: 'assay' | 'certificate' | 'none';
+  halfLifeH: number | null;
+  lowerH: number | null;
+  upperH: number | null;
+};
 export type HistoryGeometry = {
   box: Box;
   xTicks: Tick[];
@@ -29,9 +36,14 @@ export function lotHistoryGeometry(points: readonly HistoryPoint[], specMinHalfL
   const lo = times.length ? Math.min(...times) : Date.UTC(2026, 0, 1);
   const hi = times.length ? Math.max(...times) : lo;
   // A fortnight either side keeps the first and last marks off the axes.
-  const x = scaleUtc().domain([lo - 14 * DAY_MS, hi + 14 * DAY_MS]).range([box.left + 8, box.right - 8]);
+  const x = scaleUtc()
+    .domain([lo - 14 * DAY_MS, hi + 14 * DAY_MS])
+    .range([box.left + 8, box.right - 8]);
   const values = shown.flatMap((p) => [p.halfLifeH!, p.lowerH ?? p.halfLifeH!, p.upperH ?? p.halfLifeH!]);
-  const y = scaleLinear().domain([0, Math.max(specMinHalfLifeH, ...values) * 1.1]).nice().range([box.bottom, box.top]);
+  const y = scaleLinear()
+    .domain([0, Math.max(specMinHalfLifeH, ...values) * 1.1])
+    .nice()
+    .range([box.bottom, box.top]);
   const xTicks = x.ticks(4).map((d) => ({ value: d.getTime(), pos: x(d), label: monthLabel(d.getTime()) }));
   return {
     box,

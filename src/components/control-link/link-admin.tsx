@@ -49,27 +49,73 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
       ...form,
       ...(login === 'certificate' ? { userName: '', password: undefined, userCertificate: true } : { password: form.password || undefined }),
       unit,
-      ...(security === 'none' ? { securityPolicy: 'None', securityMode: 'None', allowInsecure: confirmNone } : { securityPolicy: 'Basic256Sha256', securityMode: 'SignAndEncrypt' }),
+      ...(security === 'none'
+        ? { securityPolicy: 'None', securityMode: 'None', allowInsecure: confirmNone }
+        : { securityPolicy: 'Basic256Sha256', securityMode: 'SignAndEncrypt' }),
     });
   return (
     <View style={styles.stack}>
-      <Choice label="Vessel" value={vesselId ?? 0} options={vessels.data.vessels.map((v) => ({ value: v.id, label: v.name }))} onChange={pick} compact testID="source-vessel" />
+      <Choice
+        label="Vessel"
+        value={vesselId ?? 0}
+        options={vessels.data.vessels.map((v) => ({ value: v.id, label: v.name }))}
+        onChange={pick}
+        compact
+        testID="source-vessel"
+      />
       {vesselId ? (
         <>
-          <Field label="Server address" value={form.endpointUrl} onChangeText={(t) => setForm({ ...form, endpointUrl: t })} placeholder="opc.tcp://historian.plant:4840" error={fields.endpointUrl} testID="source-endpoint" autoCapitalize="none" />
-          <Field label="Node id of the temperature" value={form.nodeId} onChangeText={(t) => setForm({ ...form, nodeId: t })} placeholder="ns=2;s=R101.TT01" error={fields.nodeId} testID="source-node" autoCapitalize="none" />
-          <Choice label="Unit of the tag" value={unit} options={[{ value: 'degC', label: '°C' }, { value: 'K', label: 'K' }, { value: 'degF', label: '°F' }]} onChange={setUnit} compact testID="source-unit" />
+          <Field
+            label="Server address"
+            value={form.endpointUrl}
+            onChangeText={(t) => setForm({ ...form, endpointUrl: t })}
+            placeholder="opc.tcp://historian.plant:4840"
+            error={fields.endpointUrl}
+            testID="source-endpoint"
+            autoCapitalize="none"
+          />
+          <Field
+            label="Node id of the temperature"
+            value={form.nodeId}
+            onChangeText={(t) => setForm({ ...form, nodeId: t })}
+            placeholder="ns=2;s=R101.TT01"
+            error={fields.nodeId}
+            testID="source-node"
+            autoCapitalize="none"
+          />
+          <Choice
+            label="Unit of the tag"
+            value={unit}
+            options={[
+              { value: 'degC', label: '°C' },
+              { value: 'K', label: 'K' },
+              { value: 'degF', label: '°F' },
+            ]}
+            onChange={setUnit}
+            compact
+            testID="source-unit"
+          />
           <Choice
             label="Log in with"
             value={login}
-            options={[{ value: 'password', label: 'User name and password' }, { value: 'certificate', label: 'Yieldpoint’s user certificate' }]}
+            options={[
+              { value: 'password', label: 'User name and password' },
+              { value: 'certificate', label: 'Yieldpoint’s user certificate' },
+            ]}
             onChange={setLogin}
             compact
             testID="source-login"
           />
           {login === 'password' ? (
             <>
-              <Field label="User name" value={form.userName} onChangeText={(t) => setForm({ ...form, userName: t })} error={fields.userName} testID="source-user" autoCapitalize="none" />
+              <Field
+                label="User name"
+                value={form.userName}
+                onChangeText={(t) => setForm({ ...form, userName: t })}
+                error={fields.userName}
+                testID="source-user"
+                autoCapitalize="none"
+              />
               <Field
                 label="Password"
                 value={form.password}
@@ -88,7 +134,10 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
           <Choice
             label="Security"
             value={security}
-            options={[{ value: 'secure', label: 'Basic256Sha256, sign and encrypt' }, { value: 'none', label: 'None' }]}
+            options={[
+              { value: 'secure', label: 'Basic256Sha256, sign and encrypt' },
+              { value: 'none', label: 'None' },
+            ]}
             onChange={setSecurity}
             compact
             testID="source-security"
@@ -97,7 +146,10 @@ function SourceForm({ sources }: { sources: VesselSource[] }) {
             <Choice
               label="Security None sends temperatures and the password unencrypted and unsigned. Choose it anyway?"
               value={confirmNone ? 'yes' : 'no'}
-              options={[{ value: 'no', label: 'No' }, { value: 'yes', label: 'Yes, recorded in the audit trail' }]}
+              options={[
+                { value: 'no', label: 'No' },
+                { value: 'yes', label: 'Yes, recorded in the audit trail' },
+              ]}
               onChange={(v) => setConfirmNone(v === 'yes')}
               compact
               testID="source-none-confirm"
@@ -120,7 +172,8 @@ function TrustRow({ source }: { source: VesselSource }) {
   return (
     <View style={styles.stack}>
       <Text variant="small">
-        {source.vesselName}: {source.trustedThumbprint ? `server certificate trusted (SHA-1 ${source.trustedThumbprint})` : 'server certificate not trusted yet'}
+        {source.vesselName}:{' '}
+        {source.trustedThumbprint ? `server certificate trusted (SHA-1 ${source.trustedThumbprint})` : 'server certificate not trusted yet'}
       </Text>
       {cert ? (
         <>
@@ -130,10 +183,21 @@ function TrustRow({ source }: { source: VesselSource }) {
           <Text variant="small" tone="muted">
             Compare the thumbprint with the one the control system’s owner reads out before trusting it.
           </Text>
-          <Button label="Trust this certificate" onPress={() => void trust.submit(source.vesselId, { thumbprint: cert.thumbprint }).then((r) => r && setCert(null))} isBusy={trust.isBusy} testID="server-trust" />
+          <Button
+            label="Trust this certificate"
+            onPress={() => void trust.submit(source.vesselId, { thumbprint: cert.thumbprint }).then((r) => r && setCert(null))}
+            isBusy={trust.isBusy}
+            testID="server-trust"
+          />
         </>
       ) : (
-        <Button label="Show the server certificate" variant="secondary" onPress={() => void fetchCert.submit(source.vesselId).then(setCert)} isBusy={fetchCert.isBusy} testID="server-certificate" />
+        <Button
+          label="Show the server certificate"
+          variant="secondary"
+          onPress={() => void fetchCert.submit(source.vesselId).then(setCert)}
+          isBusy={fetchCert.isBusy}
+          testID="server-certificate"
+        />
       )}
       {fetchCert.error || trust.error ? <Text tone="danger">{(fetchCert.error ?? trust.error)!.message}</Text> : null}
     </View>
@@ -154,7 +218,9 @@ export function LinkAdmin() {
       <Text variant="small" tone="muted">
         Yieldpoint reads each running batch’s vessel temperature and never writes to the control system.
         {status.data.certificate ? ` Its certificate for the server’s trust list: SHA-1 ${status.data.certificate.thumbprint}.` : ''}
-        {status.data.userCertificate ? ` Its user certificate, for servers that log readers in by certificate: SHA-1 ${status.data.userCertificate.thumbprint}.` : ''}
+        {status.data.userCertificate
+          ? ` Its user certificate, for servers that log readers in by certificate: SHA-1 ${status.data.userCertificate.thumbprint}.`
+          : ''}
       </Text>
       {status.data.links.length ? (
         <DataTable columns={STATUS_COLUMNS} rows={status.data.links} rowKey={(l) => String(l.vesselId)} caption="Link state per vessel" testID="link-status" />

@@ -22,7 +22,13 @@ type PerT = { c: number; kdPerH: number; se: number | null; n: number };
 const ARRHENIUS_COLUMNS: Column<PerT>[] = [
   { key: 'c', label: 'Temperature, °C', value: (p) => fmt(p.c, 1), isNumeric: true },
   { key: 'x', label: '1000/T, 1/K', value: (p) => fmt(invT1000(p.c), 4), isNumeric: true },
-  { key: 'kd', label: 'kd, 1/h (this temperature alone)', value: (p) => `${p.kdPerH.toPrecision(3)}${p.se ? ` ± ${p.se.toPrecision(2)}` : ''}`, isNumeric: true, flex: 1.4 },
+  {
+    key: 'kd',
+    label: 'kd, 1/h (this temperature alone)',
+    value: (p) => `${p.kdPerH.toPrecision(3)}${p.se ? ` ± ${p.se.toPrecision(2)}` : ''}`,
+    isNumeric: true,
+    flex: 1.4,
+  },
   { key: 'ln', label: 'ln kd', value: (p) => (p.kdPerH > 0 ? fmt(Math.log(p.kdPerH), 3) : '–'), isNumeric: true },
   { key: 'n', label: 'Points', value: (p) => String(p.n), isNumeric: true, flex: 0.6 },
 ];
@@ -66,7 +72,13 @@ export function AssayResults({ assay, specTempC }: { assay: Assay; specTempC: nu
             <Figure label="Ed, inactivation" value={`${fmt(fit.edKJPerMol, 0)} ± ${fmt(fit.se.edKJPerMol, 0)} kJ/mol`} />
           </View>
           {fit.models && fit.models.length > 0 ? (
-            <DataTable columns={modelColumns(fit.chosen, fit.tRefC)} rows={fit.models} rowKey={(m) => m.name} caption="Models compared on the same points" testID="fit-models-table" />
+            <DataTable
+              columns={modelColumns(fit.chosen, fit.tRefC)}
+              rows={fit.models}
+              rowKey={(m) => m.name}
+              caption="Models compared on the same points"
+              testID="fit-models-table"
+            />
           ) : null}
           {fit.lackOfFit ? (
             <Text tone="warning" testID="fit-lack-of-fit">
@@ -97,7 +109,13 @@ export function AssayResults({ assay, specTempC }: { assay: Assay; specTempC: nu
             Dots: each temperature fitted on its own. Dashed line: the one-step fit of all points
             {fit.twoStep.edKJPerMol !== null ? ` (the dots alone give Ed ${fmt(fit.twoStep.edKJPerMol, 0)} kJ/mol)` : ''}.
           </Text>
-          <DataTable columns={ARRHENIUS_COLUMNS} rows={fit.twoStep.perTemperature} rowKey={(p) => String(p.c)} caption="Arrhenius plot as a table" testID="arrhenius-table" />
+          <DataTable
+            columns={ARRHENIUS_COLUMNS}
+            rows={fit.twoStep.perTemperature}
+            rowKey={(p) => String(p.c)}
+            caption="Arrhenius plot as a table"
+            testID="arrhenius-table"
+          />
         </>
       ) : null}
       <Text weight="semibold">Measurements{shown.length < assay.pointCount ? ` (first ${shown.length} of ${assay.pointCount}; the CSV has all)` : ''}</Text>

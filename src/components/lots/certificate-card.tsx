@@ -9,13 +9,24 @@ import { pickFile } from './pick-file';
 const kb = (bytes: number) => `${fmt(bytes / 1024, 0)} KB`;
 
 /** The certificate's figures, the engine's conversion of its stability figure, and the attached file. */
-export function CertificateCard({ lot, conversion, certificate, canEdit }: { lot: Lot; conversion: CertConversion; certificate: CertificateFile | null; canEdit: boolean }) {
+export function CertificateCard({
+  lot,
+  conversion,
+  certificate,
+  canEdit,
+}: {
+  lot: Lot;
+  conversion: CertConversion;
+  certificate: CertificateFile | null;
+  canEdit: boolean;
+}) {
   const { submit, error, isBusy } = useUploadCertificate(lot.id);
   return (
     <Card testID="certificate-card">
       <Text variant="title">Certificate of analysis</Text>
       <Text>
-        Activity {fmt(lot.certActivity, 0)} {lot.activityUnit} · stability figure converted to kd = {fmt(conversion.kdPerH, 4)} /h at {fmt(conversion.tempC, 0)} °C (half-life {fmt(conversion.halfLifeH, 2)} h)
+        Activity {fmt(lot.certActivity, 0)} {lot.activityUnit} · stability figure converted to kd = {fmt(conversion.kdPerH, 4)} /h at {fmt(conversion.tempC, 0)}{' '}
+        °C (half-life {fmt(conversion.halfLifeH, 2)} h)
       </Text>
       <View testID="certificate-conversion">
         {conversion.steps.map((s) => (

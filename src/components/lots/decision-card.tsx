@@ -36,7 +36,14 @@ export function DecisionCard({ detail, canDecide }: { detail: LotDetail; canDeci
         </Text>
       ) : canDecide ? (
         <View style={styles.decide}>
-          <Field label="Reason for the decision (recorded in the audit trail)" value={reason} onChangeText={setReason} error={error?.fields?.reason} multiline testID="decision-reason" />
+          <Field
+            label="Reason for the decision (recorded in the audit trail)"
+            value={reason}
+            onChangeText={setReason}
+            error={error?.fields?.reason}
+            multiline
+            testID="decision-reason"
+          />
           {error && !error.fields?.reason ? <Text tone="danger">{error.message}</Text> : null}
           <View style={styles.row}>
             <Button label="Accept lot" isBusy={isBusy} testID="decision-accept" onPress={() => submit({ decision: 'accept', reason })} />

@@ -25,13 +25,18 @@ const NUMBER_FIELDS = [
 export function EnzymeForm({ enzyme, onDone, onCancel }: { enzyme?: Enzyme; onDone: (e: Enzyme) => void; onCancel: () => void }) {
   const { isWide } = useBreakpoint();
   const { submit, error, isBusy } = useSaveEnzyme();
-  const [v, setV] = useState<Record<string, string>>(() =>
-    enzyme ? Object.fromEntries(Object.entries(enzyme).map(([k, x]) => [k, String(x)])) : {},
-  );
+  const [v, setV] = useState<Record<string, string>>(() => (enzyme ? Object.fromEntries(Object.entries(enzyme).map(([k, x]) => [k, String(x)])) : {}));
   const f = error?.fields ?? {};
   const field = (k: string, label: string, numeric: boolean) => (
     <View key={k} style={isWide ? styles.half : styles.full}>
-      <Field label={label} value={v[k] ?? ''} onChangeText={(t) => setV((o) => ({ ...o, [k]: t }))} error={f[k]} keyboardType={numeric ? 'decimal-pad' : 'default'} testID={`enzyme-${k}`} />
+      <Field
+        label={label}
+        value={v[k] ?? ''}
+        onChangeText={(t) => setV((o) => ({ ...o, [k]: t }))}
+        error={f[k]}
+        keyboardType={numeric ? 'decimal-pad' : 'default'}
+        testID={`enzyme-${k}`}
+      />
     </View>
   );
   return (

@@ -44,7 +44,14 @@ export function LotForm({ enzymes, onDone }: { enzymes: Enzyme[]; onDone: (lot: 
   return (
     <Card testID="lot-form">
       <Text variant="title">Register a lot</Text>
-      <Choice compact label="Enzyme" value={enzymeId} options={enzymes.map((e) => ({ value: String(e.id), label: e.name }))} onChange={setEnzymeId} testID="lot-enzyme" />
+      <Choice
+        compact
+        label="Enzyme"
+        value={enzymeId}
+        options={enzymes.map((e) => ({ value: String(e.id), label: e.name }))}
+        onChange={setEnzymeId}
+        testID="lot-enzyme"
+      />
       {f.enzymeId ? <Text tone="danger">{f.enzymeId}</Text> : null}
       <View style={styles.grid}>
         {field('lotCode', 'Lot code', { autoCapitalize: 'characters' })}
@@ -103,4 +110,8 @@ function safeConversion(s: CertStability) {
   return certConversion(s);
 }
 
-const styles = StyleSheet.create({ grid: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md }, half: { flexBasis: '47%', flexGrow: 1 }, full: { width: '100%' } });
+const styles = StyleSheet.create({
+  grid: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
+  half: { flexBasis: '47%', flexGrow: 1 },
+  full: { width: '100%' },
+});

@@ -8,7 +8,12 @@ import { useSiteFormat } from '../../hooks/use-site-format';
 function statusLine(m: OutboxMessage, when: (iso: string) => string): { text: string; tone: 'success' | 'warning' | 'danger' } {
   if (m.status === 'sent') return { text: `Sent ${when(m.sentAt ?? m.createdAt)}`, tone: 'success' };
   if (m.status === 'failed') return { text: `Not delivered after ${m.attempts} attempts: ${m.lastError ?? 'unknown error'}`, tone: 'danger' };
-  return { text: m.attempts ? `Pending: attempt ${m.attempts} failed (${m.lastError ?? 'unknown error'}); next try ${when(m.nextAttemptAt ?? m.createdAt)}` : 'Pending: queued for delivery', tone: 'warning' };
+  return {
+    text: m.attempts
+      ? `Pending: attempt ${m.attempts} failed (${m.lastError ?? 'unknown error'}); next try ${when(m.nextAttemptAt ?? m.createdAt)}`
+      : 'Pending: queued for delivery',
+    tone: 'warning',
+  };
 }
 
 /** The site's outgoing mail with each message's delivery state; a message that gave up can be queued again. */
@@ -33,7 +38,15 @@ export function OutboxList({ messages }: { messages: OutboxMessage[] }) {
                 {s.text}
               </Text>
             </View>
-            {m.status === 'failed' ? <Button label="Try again" variant="secondary" compact accessibilityLabel={`Send the mail to ${m.to} again`} onPress={() => void retry.submit(m.id)} /> : null}
+            {m.status === 'failed' ? (
+              <Button
+                label="Try again"
+                variant="secondary"
+                compact
+                accessibilityLabel={`Send the mail to ${m.to} again`}
+                onPress={() => void retry.submit(m.id)}
+              />
+            ) : null}
           </View>
         );
       })}

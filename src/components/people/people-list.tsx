@@ -28,7 +28,10 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
             {user.email}
           </Text>
           <Text variant="small">
-            {ROLE_LABELS[user.role]} · <Text variant="small" tone={user.isActive ? 'success' : 'muted'}>{user.isActive ? 'Active' : 'Deactivated'}</Text>
+            {ROLE_LABELS[user.role]} ·{' '}
+            <Text variant="small" tone={user.isActive ? 'success' : 'muted'}>
+              {user.isActive ? 'Active' : 'Deactivated'}
+            </Text>
           </Text>
         </View>
         {isSelf ? (
@@ -36,13 +39,20 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
             You
           </Text>
         ) : (
-          <Button label={editing ? 'Close' : 'Change'} variant="ghost" compact accessibilityLabel={`Change ${user.name}`} onPress={() => setEditing(!editing)} testID={`person-${user.id}-edit`} />
+          <Button
+            label={editing ? 'Close' : 'Change'}
+            variant="ghost"
+            compact
+            accessibilityLabel={`Change ${user.name}`}
+            onPress={() => setEditing(!editing)}
+            testID={`person-${user.id}-edit`}
+          />
         )}
       </View>
       {editing ? (
         <View style={styles.editor}>
           <RoleChoice value={role} onChange={setRole} testID={`person-${user.id}-role`} />
-          {update.error ?? reset.error ? (
+          {(update.error ?? reset.error) ? (
             <Text tone="danger" variant="small" accessibilityRole="alert">
               {(update.error ?? reset.error)!.message}
             </Text>
@@ -53,7 +63,13 @@ function PersonRow({ user, isSelf }: { user: User; isSelf: boolean }) {
             </Text>
           ) : null}
           <View style={styles.actions}>
-            <Button label="Save role" compact disabled={role === user.role} isBusy={update.isBusy} onPress={() => void update.submit({ id: user.id, patch: { role } })} />
+            <Button
+              label="Save role"
+              compact
+              disabled={role === user.role}
+              isBusy={update.isBusy}
+              onPress={() => void update.submit({ id: user.id, patch: { role } })}
+            />
             <Button
               label={user.isActive ? 'Deactivate' : 'Reactivate'}
               variant={user.isActive ? 'danger' : 'secondary'}
@@ -104,7 +120,14 @@ export function PendingInvites({ invites }: { invites: Invite[] }) {
               {ROLE_LABELS[i.role]} · invited {isoDate(i.createdAt)} · link valid until {isoDate(i.expiresAt)}
             </Text>
           </View>
-          <Button label="Withdraw" variant="ghost" compact accessibilityLabel={`Withdraw the invite for ${i.email}`} isBusy={revoke.isBusy} onPress={() => void revoke.submit(i.id)} />
+          <Button
+            label="Withdraw"
+            variant="ghost"
+            compact
+            accessibilityLabel={`Withdraw the invite for ${i.email}`}
+            isBusy={revoke.isBusy}
+            onPress={() => void revoke.submit(i.id)}
+          />
         </View>
       ))}
     </View>

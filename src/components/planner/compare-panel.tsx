@@ -15,7 +15,19 @@ const TONES: ChartTone[] = ['primary', 'accent', 'third', 'fourth'];
 
 export type Scenario = { id: string; inputs: PlanInputs };
 
-type Row = { id: string; lot: string; batchH: number; dose: number; price: number; enzymePrice: number; heating: number; setpointC: number; product: number; activity: number; profit: number };
+type Row = {
+  id: string;
+  lot: string;
+  batchH: number;
+  dose: number;
+  price: number;
+  enzymePrice: number;
+  heating: number;
+  setpointC: number;
+  product: number;
+  activity: number;
+  profit: number;
+};
 
 const columnsIn = (cur: string): Column<Row>[] => [
   { key: 'id', label: '#', value: (r) => r.id, flex: 0.4 },
@@ -32,7 +44,19 @@ const columnsIn = (cur: string): Column<Row>[] => [
 ];
 
 /** Up to four saved snapshots of the inputs, side by side in a table and as overlaid curves. */
-export function ComparePanel({ detail, scenarios, canAdd, onAdd, onRemove }: { detail: RecipeDetail; scenarios: Scenario[]; canAdd: boolean; onAdd: () => void; onRemove: (id: string) => void }) {
+export function ComparePanel({
+  detail,
+  scenarios,
+  canAdd,
+  onAdd,
+  onRemove,
+}: {
+  detail: RecipeDetail;
+  scenarios: Scenario[];
+  canAdd: boolean;
+  onAdd: () => void;
+  onRemove: (id: string) => void;
+}) {
   const site = useSiteFormat();
   const evaluated = useMemo(
     () =>
@@ -67,7 +91,13 @@ export function ComparePanel({ detail, scenarios, canAdd, onAdd, onRemove }: { d
       <Text variant="small" tone="muted">
         Keep the current inputs as a scenario, change lot, batch length, dose or prices, and keep another (up to {MAX_SCENARIOS}).
       </Text>
-      <Button label={`Keep these inputs as scenario ${String.fromCharCode(65 + scenarios.length)}`} variant="secondary" disabled={!canAdd} onPress={onAdd} testID="compare-add" />
+      <Button
+        label={`Keep these inputs as scenario ${String.fromCharCode(65 + scenarios.length)}`}
+        variant="secondary"
+        disabled={!canAdd}
+        onPress={onAdd}
+        testID="compare-add"
+      />
       {rows.length ? (
         <>
           <DataTable columns={columnsIn(site.currency)} rows={rows} rowKey={(r) => r.id} caption="Scenarios compared" testID="compare-table" />

@@ -29,13 +29,22 @@ export function PlanSheet({ plan }: { plan: Plan }) {
   const held = o.stages ? o.stages.map((s) => s.c) : [o.setpointC];
   const planRange = Math.min(...held) === Math.max(...held) ? fmt(held[0]!) : `${fmt(Math.min(...held))}–${fmt(Math.max(...held))}`;
   const result: Row[] = [
-    { label: o.strategy === 'staged' ? 'Profile' : 'Setpoint', value: o.stages ? o.stages.map((s) => `${fmt(s.hours)} h at ${fmt(s.c)} °C`).join(', ') : `${fmt(o.setpointC)} °C` },
+    {
+      label: o.strategy === 'staged' ? 'Profile' : 'Setpoint',
+      value: o.stages ? o.stages.map((s) => `${fmt(s.hours)} h at ${fmt(s.c)} °C`).join(', ') : `${fmt(o.setpointC)} °C`,
+    },
     { label: 'Predicted product (ramps included)', value: `${fmt(o.predictedProductGPerL)} g/L` },
-    { label: 'P10 / P50 / P90 (setpoint held)', value: u ? `${fmt(u.p10)} / ${fmt(u.p50)} / ${fmt(u.p90)} g/L, ${u.draws} draws, seed ${u.seed}, ${SPREAD_LABELS[u.parameterSpread]}` : 'Not run' },
+    {
+      label: 'P10 / P50 / P90 (setpoint held)',
+      value: u ? `${fmt(u.p10)} / ${fmt(u.p50)} / ${fmt(u.p90)} g/L, ${u.draws} draws, seed ${u.seed}, ${SPREAD_LABELS[u.parameterSpread]}` : 'Not run',
+    },
     { label: 'Robust setpoint', value: u ? `${fmt(u.robustSetpointC)} °C (P10 ${fmt(u.robustP10)} g/L)` : '–' },
     { label: 'Activity left at the end', value: `${fmt(o.activityLeft * 100, 0)} %` },
     { label: 'Profit per reactor hour', value: site.money(o.profitPerH, 1) },
-    { label: 'Current setpoint', value: `${fmt(o.current.setpointC)} °C: ${fmt(o.current.productGPerL)} g/L, ${fmt(o.current.activityLeft * 100, 0)} % activity left` },
+    {
+      label: 'Current setpoint',
+      value: `${fmt(o.current.setpointC)} °C: ${fmt(o.current.productGPerL)} g/L, ${fmt(o.current.activityLeft * 100, 0)} % activity left`,
+    },
     { label: 'Gain over current', value: `${fmt(o.gainOverCurrent * 100)} %` },
     ...(o.earlyFinish
       ? [
@@ -45,9 +54,17 @@ export function PlanSheet({ plan }: { plan: Plan }) {
           },
         ]
       : []),
-    { label: 'Range the plan uses', value: `${planRange} °C, within the vessel’s ${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at its ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}` },
+    {
+      label: 'Range the plan uses',
+      value: `${planRange} °C, within the vessel’s ${fmt(o.boundsC[0])}–${fmt(o.boundsC[1])} °C${o.atBound ? ` (at its ${o.atBound === 'upper' ? 'maximum' : 'minimum'})` : ''}`,
+    },
     { label: 'Constraints met', value: o.constraintsMet ? 'Yes' : 'No' },
-    { label: 'Pressure caution', value: o.cautions.crossesBoiling ? `Yes: ${fmt(o.cautions.maxC)} °C, ${fmt(o.cautions.saturationKPa, 0)} kPa abs saturation` : 'No (stays at or below 100 °C)' },
+    {
+      label: 'Pressure caution',
+      value: o.cautions.crossesBoiling
+        ? `Yes: ${fmt(o.cautions.maxC)} °C, ${fmt(o.cautions.saturationKPa, 0)} kPa abs saturation`
+        : 'No (stays at or below 100 °C)',
+    },
     { label: 'Below hygienic minimum', value: o.cautions.belowHygienicMin ? `Yes (${fmt(o.cautions.hygienicMinC)} °C)` : 'No' },
   ];
   const inputs: Row[] = [
@@ -55,7 +72,10 @@ export function PlanSheet({ plan }: { plan: Plan }) {
     { label: 'Batch length / turnaround', value: `${fmt(i.batchH)} h / ${fmt(i.turnaroundH)} h` },
     { label: 'Dose', value: `${fmt(i.doseGPerL, 2)} g/L (Vmax ${fmt(o.kinetics.vmaxRefGPerLH, 2)} g/L/h at ${fmt(o.kinetics.tRefC, 0)} °C)` },
     { label: 'Substrate S0 / Km', value: `${fmt(i.s0GPerL, 0)} / ${fmt(i.kmGPerL, 2)} g/L` },
-    { label: 'Stability', value: `kd ${o.kinetics.kdRefPerH.toPrecision(3)} /h at ${fmt(o.kinetics.tRefC, 0)} °C, Ed ${fmt(o.kinetics.edKJPerMol, 0)} kJ/mol, Ea ${fmt(o.kinetics.eaKJPerMol, 0)} kJ/mol (${o.kinetics.stabilitySource})` },
+    {
+      label: 'Stability',
+      value: `kd ${o.kinetics.kdRefPerH.toPrecision(3)} /h at ${fmt(o.kinetics.tRefC, 0)} °C, Ed ${fmt(o.kinetics.edKJPerMol, 0)} kJ/mol, Ea ${fmt(o.kinetics.eaKJPerMol, 0)} kJ/mol (${o.kinetics.stabilitySource})`,
+    },
     { label: 'Prices', value: pricesText(i, site.currency) },
     { label: 'Staged search', value: `${i.stages} stages, steps at most ${fmt(i.maxStepC)} °C` },
     { label: 'Model version', value: plan.modelVersion },

@@ -22,7 +22,9 @@ export function SetpointChart({ ev, series, inputs, uncertainty }: Props & { unc
   const summary =
     `Held for ${fmt(inputs.batchH, 0)} h, the best setpoint is ${fmt(o.setpointC)} °C (about ${fmt(held(o.setpointC), 0)} g/L); ` +
     `the current ${fmt(o.current.setpointC)} °C gives about ${fmt(held(o.current.setpointC), 0)} g/L.` +
-    (robust && uncertainty ? ` With ${uncertainty.draws} draws, P10–P90 is shaded; the setpoint with the best P10 is ${fmt(robust.setpointC)} °C (P10 ${fmt(robust.p10, 0)} g/L).` : '');
+    (robust && uncertainty
+      ? ` With ${uncertainty.draws} draws, P10–P90 is shaded; the setpoint with the best P10 is ${fmt(robust.setpointC)} °C (P10 ${fmt(robust.p10, 0)} g/L).`
+      : '');
   return (
     <Card>
       <LineChart
@@ -37,7 +39,9 @@ export function SetpointChart({ ev, series, inputs, uncertainty }: Props & { unc
         markers={[
           { id: 'current', x: o.current.setpointC, y: held(o.current.setpointC), label: `Current ${fmt(o.current.setpointC)} °C`, tone: 'accent' },
           { id: 'best', x: o.setpointC, y: held(o.setpointC), label: `Best ${fmt(o.setpointC)} °C`, tone: 'primary' },
-          ...(robust ? [{ id: 'robust', x: robust.setpointC, y: robust.p10, label: `Robust (best P10) ${fmt(robust.setpointC)} °C`, tone: 'third' as const }] : []),
+          ...(robust
+            ? [{ id: 'robust', x: robust.setpointC, y: robust.p10, label: `Robust (best P10) ${fmt(robust.setpointC)} °C`, tone: 'third' as const }]
+            : []),
         ]}
         height={240}
       />
@@ -62,7 +66,13 @@ export function TimeCharts({ ev, series, inputs }: Props) {
         yFromZero
         series={[
           { id: 'rec', label: `Best, ${fmt(o.setpointC)} °C`, tone: 'primary', points: rec.map((p) => ({ x: p.h, y: p.productGPerL })) },
-          { id: 'cur', label: `Current, ${fmt(o.current.setpointC)} °C`, tone: 'accent', dashed: true, points: cur.map((p) => ({ x: p.h, y: p.productGPerL })) },
+          {
+            id: 'cur',
+            label: `Current, ${fmt(o.current.setpointC)} °C`,
+            tone: 'accent',
+            dashed: true,
+            points: cur.map((p) => ({ x: p.h, y: p.productGPerL })),
+          },
         ]}
       />
       <LineChart
@@ -75,7 +85,13 @@ export function TimeCharts({ ev, series, inputs }: Props) {
         formatY={(v) => `${v}`}
         series={[
           { id: 'rec', label: `Best, ${fmt(o.setpointC)} °C`, tone: 'primary', points: rec.map((p) => ({ x: p.h, y: p.activity * 100 })) },
-          { id: 'cur', label: `Current, ${fmt(o.current.setpointC)} °C`, tone: 'accent', dashed: true, points: cur.map((p) => ({ x: p.h, y: p.activity * 100 })) },
+          {
+            id: 'cur',
+            label: `Current, ${fmt(o.current.setpointC)} °C`,
+            tone: 'accent',
+            dashed: true,
+            points: cur.map((p) => ({ x: p.h, y: p.activity * 100 })),
+          },
         ]}
       />
     </Card>
@@ -123,7 +139,14 @@ export function ProfitChart({ ev, series, inputs }: Props) {
         testID="chart-profit"
         xLabel="batch length, h"
         yLabel={`profit, ${site.currency}/h`}
-        series={[{ id: 'profit', label: 'Profit per hour, each at its best setpoint', tone: 'primary', points: series.profit.map((p) => ({ x: p.batchH, y: p.profitPerH })) }]}
+        series={[
+          {
+            id: 'profit',
+            label: 'Profit per hour, each at its best setpoint',
+            tone: 'primary',
+            points: series.profit.map((p) => ({ x: p.batchH, y: p.profitPerH })),
+          },
+        ]}
         markers={[
           { id: 'best', x: b.batchH, y: b.profitPerH, label: `Best ${fmt(b.batchH, 0)} h`, tone: 'primary' },
           { id: 'chosen', x: chosen.batchH, y: chosen.profitPerH, label: `Chosen ${fmt(inputs.batchH, 0)} h`, tone: 'accent' },

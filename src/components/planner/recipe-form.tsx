@@ -42,7 +42,9 @@ export function RecipeForm({ recipe, onDone }: { recipe?: Recipe; onDone: () => 
   const [name, setName] = useState(recipe?.name ?? '');
   const [lotId, setLotId] = useState<string>(recipe ? String(recipe.lotId) : '');
   const [vesselId, setVesselId] = useState<string>(recipe ? String(recipe.vesselId) : '');
-  const [text, setText] = useState<Record<NumberKey, string>>(() => Object.fromEntries(FIELDS.map((f) => [f.key, recipe ? String(recipe[f.key]) : ''])) as Record<NumberKey, string>);
+  const [text, setText] = useState<Record<NumberKey, string>>(
+    () => Object.fromEntries(FIELDS.map((f) => [f.key, recipe ? String(recipe[f.key]) : ''])) as Record<NumberKey, string>,
+  );
   if (lots.error) return <ErrorState error={lots.error} onRetry={lots.retry} />;
   if (vessels.error) return <ErrorState error={vessels.error} onRetry={vessels.retry} />;
   if (!lots.data || !vessels.data) return <Loader rows={4} label="Loading lots and vessels" />;
@@ -59,9 +61,23 @@ export function RecipeForm({ recipe, onDone }: { recipe?: Recipe; onDone: () => 
       </Text>
       {recipe ? <Text tone="muted">Setpoint {fmt(recipe.currentSetpointC)} °C: only a signed-off change moves it.</Text> : null}
       <Field label="Name" value={name} onChangeText={setName} error={error?.fields.name} testID="recipe-name" />
-      <Choice compact label="Accepted lot" value={lotId} options={accepted.map((l) => ({ value: String(l.id), label: `${l.lotCode} · ${l.enzymeName}` }))} onChange={setLotId} testID="recipe-lot" />
+      <Choice
+        compact
+        label="Accepted lot"
+        value={lotId}
+        options={accepted.map((l) => ({ value: String(l.id), label: `${l.lotCode} · ${l.enzymeName}` }))}
+        onChange={setLotId}
+        testID="recipe-lot"
+      />
       {error?.fields.lotId ? <Text tone="danger">{error.fields.lotId}</Text> : null}
-      <Choice compact label="Vessel" value={vesselId} options={vessels.data.vessels.map((v) => ({ value: String(v.id), label: v.name }))} onChange={setVesselId} testID="recipe-vessel" />
+      <Choice
+        compact
+        label="Vessel"
+        value={vesselId}
+        options={vessels.data.vessels.map((v) => ({ value: String(v.id), label: v.name }))}
+        onChange={setVesselId}
+        testID="recipe-vessel"
+      />
       {error?.fields.vesselId ? <Text tone="danger">{error.fields.vesselId}</Text> : null}
       <View style={styles.grid}>
         {fields.map((f) => (

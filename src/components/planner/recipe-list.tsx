@@ -85,7 +85,13 @@ export function RecipeList() {
         <Loader rows={2} label="Loading vessels" />
       ) : (
         <>
-          <DataTable columns={VESSEL_COLUMNS} rows={vessels.data.vessels} rowKey={(v) => String(v.id)} caption="Vessels and their limits" testID="vessels-table" />
+          <DataTable
+            columns={VESSEL_COLUMNS}
+            rows={vessels.data.vessels}
+            rowKey={(v) => String(v.id)}
+            caption="Vessels and their limits"
+            testID="vessels-table"
+          />
           {canEdit && !editing ? (
             <View style={styles.actions}>
               <Button label="Add a vessel" variant="secondary" onPress={() => setEditing('new')} testID="vessel-add" />
@@ -94,7 +100,9 @@ export function RecipeList() {
               ))}
             </View>
           ) : null}
-          {editing ? <VesselForm key={editing === 'new' ? 'new' : editing.id} vessel={editing === 'new' ? null : editing} onDone={() => setEditing(null)} /> : null}
+          {editing ? (
+            <VesselForm key={editing === 'new' ? 'new' : editing.id} vessel={editing === 'new' ? null : editing} onDone={() => setEditing(null)} />
+          ) : null}
         </>
       )}
     </>

@@ -27,7 +27,17 @@ const SIDE_COLUMN = 360;
 const runKey = (inputs: PlanInputs, settings: unknown, evidence: { fitAssayId: number | null; calibrationId: number | null }) =>
   JSON.stringify({ ...inputs, uncertainty: settings, fit: evidence.fitAssayId, calibration: evidence.calibrationId });
 
-function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redrawMs, computeMs, hasUncertainty }: {
+function Recommendation({
+  ev,
+  inputs,
+  canSave,
+  isSaving,
+  saveError,
+  onSave,
+  redrawMs,
+  computeMs,
+  hasUncertainty,
+}: {
   ev: PlanEvaluation;
   inputs: PlanInputs;
   canSave: boolean;
@@ -54,11 +64,12 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
         <>
           <Text testID="recommended-product">
             {fmt(o.predictedProductGPerL, 0)} g/L: all the substrate, converted by hour {fmt(o.earlyFinish.completeAtH)} of {fmt(inputs.batchH, 0)}
-            {Math.abs(o.setpointC - o.current.setpointC) < 0.05 ? ' at the current setpoint, so no change is recommended' : ''} · {fmt(o.activityLeft * 100, 0)} % activity left
+            {Math.abs(o.setpointC - o.current.setpointC) < 0.05 ? ' at the current setpoint, so no change is recommended' : ''} · {fmt(o.activityLeft * 100, 0)}{' '}
+            % activity left
           </Text>
           <Text tone="primary" weight="semibold" testID="early-finish">
-            A batch ended at hour {fmt(o.earlyFinish.completeAtH)} would earn {site.money(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour, against {site.money(o.earlyFinish.fullProfitPerH, 0)} for the full{' '}
-            {fmt(inputs.batchH, 0)} h.
+            A batch ended at hour {fmt(o.earlyFinish.completeAtH)} would earn {site.money(o.earlyFinish.shorterProfitPerH, 0)} per reactor hour, against{' '}
+            {site.money(o.earlyFinish.fullProfitPerH, 0)} for the full {fmt(inputs.batchH, 0)} h.
           </Text>
         </>
       ) : (
@@ -70,13 +81,14 @@ function Recommendation({ ev, inputs, canSave, isSaving, saveError, onSave, redr
       <EvidenceNote evidence={o.kinetics.evidence} showDisagreement testID="planner-evidence" />
       {o.atBound ? (
         <Text tone="warning" testID="caution-bound">
-          Held at the vessel’s {o.atBound === 'upper' ? 'maximum' : 'minimum'} of {fmt(o.atBound === 'upper' ? o.boundsC[1] : o.boundsC[0])} °C: never planned beyond it.
+          Held at the vessel’s {o.atBound === 'upper' ? 'maximum' : 'minimum'} of {fmt(o.atBound === 'upper' ? o.boundsC[1] : o.boundsC[0])} °C: never planned
+          beyond it.
         </Text>
       ) : null}
       {o.cautions.crossesBoiling ? (
         <Text tone="danger" testID="caution-pressure">
-          Pressure caution: {fmt(o.cautions.maxC)} °C is above 100 °C. A water-based batch is then pressurised (about {fmt(o.cautions.saturationKPa, 0)} kPa absolute saturation pressure); follow the site’s
-          pressure procedures.
+          Pressure caution: {fmt(o.cautions.maxC)} °C is above 100 °C. A water-based batch is then pressurised (about {fmt(o.cautions.saturationKPa, 0)} kPa
+          absolute saturation pressure); follow the site’s pressure procedures.
         </Text>
       ) : null}
       {o.cautions.belowHygienicMin ? (
@@ -111,7 +123,11 @@ function CompactRecommendation({ ev }: { ev: PlanEvaluation }) {
   const o = ev.outputs;
   const what = o.strategy === 'staged' && o.stages ? o.stages.map((s) => fmt(s.c)).join(' → ') : fmt(o.setpointC);
   return (
-    <View style={[styles.compact, { backgroundColor: c.surfaceRaised, borderColor: c.border }]} testID="recommendation-compact" accessibilityLiveRegion="polite">
+    <View
+      style={[styles.compact, { backgroundColor: c.surfaceRaised, borderColor: c.border }]}
+      testID="recommendation-compact"
+      accessibilityLiveRegion="polite"
+    >
       <Text weight="semibold">
         {what} °C · {fmt(o.predictedProductGPerL, 0)} g/L · {site.money(o.profitPerH, 0)}/h
       </Text>
@@ -133,7 +149,9 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
   const [scenarios, setScenarios] = useState<Scenario[]>([]);
 
   if (!detail.lots.length || !ctx || !computed)
-    return <EmptyState title="No accepted lot" message={`${detail.enzyme.name} has no accepted lot to plan with. Procurement accepts lots on the Lots screen.`} />;
+    return (
+      <EmptyState title="No accepted lot" message={`${detail.enzyme.name} has no accepted lot to plan with. Procurement accepts lots on the Lots screen.`} />
+    );
   const { ev, series, reasons } = computed;
   const key = runKey(inputs, settings, ctx.evidence);
   const run = uncertainty.run;
@@ -187,18 +205,28 @@ export function RecipePlanner({ detail }: { detail: RecipeDetail }) {
   );
   const role = session?.user.role;
   const calibration =
-    role && can(role, 'calibrations.read') ? <CalibrationReview recipeId={detail.recipe.id} lotId={inputs.lotId} canDecide={can(role, 'calibrations.decide')} /> : null;
+    role && can(role, 'calibrations.read') ? (
+      <CalibrationReview recipeId={detail.recipe.id} lotId={inputs.lotId} canDecide={can(role, 'calibrations.decide')} />
+    ) : null;
   const rest = (
     <>
       <TimeCharts ev={ev} series={series} inputs={inputs} />
       <ProfileChart ev={ev} series={series} inputs={inputs} />
       <ProfitChart ev={ev} series={series} inputs={inputs} />
-      <ComparePanel detail={detail} scenarios={scenarios} canAdd={scenarios.length < MAX_SCENARIOS} onAdd={addScenario} onRemove={(id) => setScenarios(scenarios.filter((s) => s.id !== id))} />
+      <ComparePanel
+        detail={detail}
+        scenarios={scenarios}
+        canAdd={scenarios.length < MAX_SCENARIOS}
+        onAdd={addScenario}
+        onRemove={(id) => setScenarios(scenarios.filter((s) => s.id !== id))}
+      />
       <SavedPlans recipeId={detail.recipe.id} />
     </>
   );
   const notice = lotNotAccepted ? (
-    <Text tone="warning">The recipe’s lot {detail.recipe.lotCode} is no longer accepted; the planner uses an accepted lot of {detail.enzyme.name} instead.</Text>
+    <Text tone="warning">
+      The recipe’s lot {detail.recipe.lotCode} is no longer accepted; the planner uses an accepted lot of {detail.enzyme.name} instead.
+    </Text>
   ) : null;
 
   // The calibration review spans the full width under the planner: its charts and tables need the room.

@@ -38,7 +38,17 @@ export function UncertaintyPanel({ planner, ev, run, current, onStart, onCancel 
       </Text>
       <View style={styles.grid}>
         <NumberField label="Sensor bias sd" unit="°C" value={settings.sensorBiasSdC} step={0.1} min={0} max={5} onChange={on.bias} testID="input-bias" />
-        <NumberField label="Dose spread sd" unit="%" value={settings.doseRelSd * 100} step={1} min={0} max={50} decimals={0} onChange={on.spread} testID="input-dose-spread" />
+        <NumberField
+          label="Dose spread sd"
+          unit="%"
+          value={settings.doseRelSd * 100}
+          step={1}
+          min={0}
+          max={50}
+          decimals={0}
+          onChange={on.spread}
+          testID="input-dose-spread"
+        />
         <NumberField label="Draws" value={settings.draws} step={1000} min={200} max={20000} decimals={0} onChange={on.draws} testID="input-draws" />
       </View>
       {isRunning ? (
@@ -57,7 +67,8 @@ export function UncertaintyPanel({ planner, ev, run, current, onStart, onCancel 
       {run.status === 'done' && !current ? <Text tone="warning">The inputs changed since the last run: run it again to see the band.</Text> : null}
       {current && at ? (
         <Text testID="uncertainty-result" accessibilityLiveRegion="polite">
-          At {fmt(ev.outputs.setpointC)} °C held: P10 {fmt(at.p10, 0)}, P50 {fmt(at.p50, 0)}, P90 {fmt(at.p90, 0)} g/L over {current.draws} draws (seed {current.seed}).
+          At {fmt(ev.outputs.setpointC)} °C held: P10 {fmt(at.p10, 0)}, P50 {fmt(at.p50, 0)}, P90 {fmt(at.p90, 0)} g/L over {current.draws} draws (seed{' '}
+          {current.seed}).
           {current.robust ? ` The robust setpoint, with the best P10, is ${fmt(current.robust.setpointC)} °C (P10 ${fmt(current.robust.p10, 0)} g/L).` : ''}
         </Text>
       ) : null}

@@ -36,7 +36,23 @@ type Submit = { label: string; testID: string; onPress: () => unknown; isBusy: b
  * Their form: a title, a line on whom it is for, the fields (each shows its own error), the API's error that
  * belongs to no field, and the one button.
  */
-export function AuthCard({ title, note, error, errorTestID, submit, footer, children }: { title: string; note?: ReactNode; error: ApiError | null | undefined; errorTestID: string; submit: Submit; footer?: ReactNode; children: ReactNode }) {
+export function AuthCard({
+  title,
+  note,
+  error,
+  errorTestID,
+  submit,
+  footer,
+  children,
+}: {
+  title: string;
+  note?: ReactNode;
+  error: ApiError | null | undefined;
+  errorTestID: string;
+  submit: Submit;
+  footer?: ReactNode;
+  children: ReactNode;
+}) {
   const general = error && !Object.keys(error.fields).length ? error.message : null;
   return (
     <Card>
@@ -57,7 +73,11 @@ export function AuthCard({ title, note, error, errorTestID, submit, footer, chil
 /** The page a mail links to: the form for the link's token, or a plain message when the link arrived cut short. */
 export function MailLinkPage({ testID, linkName, children }: { testID: string; linkName: string; children: (token: string) => ReactNode }) {
   const { token } = useLocalSearchParams<{ token?: string }>();
-  return <AuthPage testID={testID}>{token ? children(token) : <ErrorState error={new Error(`This ${linkName} link is not complete. Open the link from the mail again.`)} />}</AuthPage>;
+  return (
+    <AuthPage testID={testID}>
+      {token ? children(token) : <ErrorState error={new Error(`This ${linkName} link is not complete. Open the link from the mail again.`)} />}
+    </AuthPage>
+  );
 }
 
 const styles = StyleSheet.create({

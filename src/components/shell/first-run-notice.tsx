@@ -15,12 +15,7 @@ export function FirstRunNotice() {
   return (
     <Modal transparent animationType="fade" visible>
       <View style={[styles.backdrop, { backgroundColor: 'rgba(10,16,19,0.6)' }]}>
-        <View
-          accessibilityRole="alert"
-          aria-modal
-          testID="first-run-notice"
-          style={[styles.sheet, { backgroundColor: c.surface, borderColor: c.border }]}
-        >
+        <View accessibilityRole="alert" aria-modal testID="first-run-notice" style={[styles.sheet, { backgroundColor: c.surface, borderColor: c.border }]}>
           <ScrollView contentContainerStyle={styles.content}>
             <Text variant="title" accessibilityRole="header">
               Before you start

@@ -15,12 +15,7 @@ export function NavBar({ activeName, user, layout }: Props) {
   const items = user ? navItemsFor(user.role) : [];
   const side = layout === 'side';
   return (
-    <View
-      role="navigation"
-      aria-label="Main"
-      testID="nav"
-      style={[side ? styles.side : styles.bottom, { backgroundColor: c.navBackground }]}
-    >
+    <View role="navigation" aria-label="Main" testID="nav" style={[side ? styles.side : styles.bottom, { backgroundColor: c.navBackground }]}>
       {side ? (
         <View style={styles.brand}>
           <Text variant="title" style={{ color: c.navActive }}>
@@ -74,7 +69,15 @@ export function NavBar({ activeName, user, layout }: Props) {
 const styles = StyleSheet.create({
   bottom: { borderTopWidth: 0, paddingHorizontal: space.xs, paddingVertical: space.xs },
   bottomItems: { flexDirection: 'row', justifyContent: 'space-around', minHeight: touchTarget + 8 },
-  bottomItem: { flex: 1, minHeight: touchTarget + 8, alignItems: 'center', justifyContent: 'center', gap: space.xxs, borderRadius: radius.md, marginHorizontal: space.xxs },
+  bottomItem: {
+    flex: 1,
+    minHeight: touchTarget + 8,
+    alignItems: 'center',
+    justifyContent: 'center',
+    gap: space.xxs,
+    borderRadius: radius.md,
+    marginHorizontal: space.xxs,
+  },
   side: { width: sidebarWidth, height: '100%', paddingVertical: space.xl, paddingHorizontal: space.md, gap: space.xl },
   brand: { paddingHorizontal: space.sm, gap: space.xxs },
   sideItems: { gap: space.xs, flex: 1 },

@@ -89,6 +89,15 @@ export const NumberField = memo(function NumberField({ label, value, onChange, s
 const styles = StyleSheet.create({
   wrap: { gap: space.xs, flexGrow: 1, flexBasis: 150 },
   row: { flexDirection: 'row', gap: space.xs },
-  input: { flex: 1, minWidth: 0, minHeight: touchTarget, borderWidth: 1, borderRadius: radius.md, paddingHorizontal: space.sm, textAlign: 'center', ...typeScale.body },
+  input: {
+    flex: 1,
+    minWidth: 0,
+    minHeight: touchTarget,
+    borderWidth: 1,
+    borderRadius: radius.md,
+    paddingHorizontal: space.sm,
+    textAlign: 'center',
+    ...typeScale.body,
+  },
   button: { width: touchTarget, height: touchTarget, borderWidth: 1, borderRadius: radius.md, alignItems: 'center', justifyContent: 'center' },
 });

@@ -54,7 +54,8 @@ export function CachedNote({ cachedAt }: { cachedAt: string }) {
   const site = useSiteFormat();
   return (
     <Text variant="small" tone="warning" weight="semibold" testID="cached-note" accessibilityLiveRegion="polite">
-      {Number.isFinite(at) ? `As of ${site.time(new Date(at).toISOString())}, offline` : 'Offline: the last answer saved on this device'}: readings you log are kept here and sent when the network returns.
+      {Number.isFinite(at) ? `As of ${site.time(new Date(at).toISOString())}, offline` : 'Offline: the last answer saved on this device'}: readings you log are
+      kept here and sent when the network returns.
     </Text>
   );
 }

@@ -28,7 +28,12 @@ type Props<T> = {
 
 /** A row that opens its record when the table has `onRowPress`; inside a table it keeps the row role (ARIA needs it). */
 function Row({ onPress, style, testID, children, role }: { onPress?: () => void; style: object[]; testID?: string; children: React.ReactNode; role?: 'row' }) {
-  if (!onPress) return <View role={role} style={style} testID={testID}>{children}</View>;
+  if (!onPress)
+    return (
+      <View role={role} style={style} testID={testID}>
+        {children}
+      </View>
+    );
   return (
     <Pressable role={role ?? 'link'} onPress={onPress} style={({ pressed }) => [...style, pressed && { opacity: 0.7 }]} testID={testID}>
       {children}
@@ -47,7 +52,12 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPres
     return (
       <View testID={testID} accessibilityLabel={caption} style={styles.list}>
         {rows.map((row) => (
-          <Row key={rowKey(row)} onPress={onRowPress && (() => onRowPress(row))} style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]} testID={testID ? `${testID}-row` : undefined}>
+          <Row
+            key={rowKey(row)}
+            onPress={onRowPress && (() => onRowPress(row))}
+            style={[styles.card, { borderColor: c.border, backgroundColor: c.surface }]}
+            testID={testID ? `${testID}-row` : undefined}
+          >
             {/* The first column names the card; a lone second column is its value, with no repeated header beside it. */}
             <Text variant="small" weight="semibold" tone={columns[0]!.tone?.(row)} style={cellStyle(columns[0]!)}>
               {columns[0]!.value(row)}
@@ -85,10 +95,21 @@ export function DataTable<T>({ columns, rows, rowKey, caption, testID, onRowPres
         ))}
       </View>
       {rows.map((row) => (
-        <Row key={rowKey(row)} role="row" onPress={onRowPress && (() => onRowPress(row))} style={[styles.row, { borderColor: c.border }]} testID={testID ? `${testID}-row` : undefined}>
+        <Row
+          key={rowKey(row)}
+          role="row"
+          onPress={onRowPress && (() => onRowPress(row))}
+          style={[styles.row, { borderColor: c.border }]}
+          testID={testID ? `${testID}-row` : undefined}
+        >
           {columns.map((col) => (
             <View key={col.key} role="cell" style={[styles.cell, { flex: col.flex ?? 1 }]}>
-              <Text variant="small" tone={col.tone?.(row)} weight={col.tone ? 'semibold' : undefined} style={[col.isNumeric && styles.right, col.isCode && styles.code]}>
+              <Text
+                variant="small"
+                tone={col.tone?.(row)}
+                weight={col.tone ? 'semibold' : undefined}
+                style={[col.isNumeric && styles.right, col.isCode && styles.code]}
+              >
                 {col.value(row)}
               </Text>
             </View>

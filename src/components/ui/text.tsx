@@ -13,10 +13,5 @@ export type AppTextProps = TextProps & { variant?: Variant; tone?: Tone; weight?
 export function Text({ variant = 'body', tone = 'default', weight, style, ...rest }: AppTextProps) {
   const c = useColors();
   const heading = variant === 'title' || variant === 'headline' || variant === 'figure';
-  return (
-    <RNText
-      {...rest}
-      style={[{ fontFamily: font[weight ?? (heading ? 'bold' : 'regular')], color: toneColor(c, tone), ...typeScale[variant] }, style]}
-    />
-  );
+  return <RNText {...rest} style={[{ fontFamily: font[weight ?? (heading ? 'bold' : 'regular')], color: toneColor(c, tone), ...typeScale[variant] }, style]} />;
 }

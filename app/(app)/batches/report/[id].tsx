@@ -58,26 +58,46 @@ function ReportBody({ id }: { id: number }) {
       <Row label="Vessel · lot" value={`${b.vesselName} · ${b.lotCode}`} />
       <Row label="Started" value={`${stamp(b.startedAt)} by ${b.startedBy}`} />
       <Row label="Closed" value={b.closedAt ? `${stamp(b.closedAt)} by ${b.closedBy}${b.closeComment ? ` (${b.closeComment})` : ''}` : 'running'} />
-      <Row label="Plan" value={`${p.source === 'released_plan' ? `released plan #${p.planId}` : 'recipe current setpoint'}: ${p.stages.map((x) => `${fmt(x.hours)} h at ${fmt(x.c)} °C`).join(', ')}; fill ${fmt(p.fillC, 0)} °C`} />
+      <Row
+        label="Plan"
+        value={`${p.source === 'released_plan' ? `released plan #${p.planId}` : 'recipe current setpoint'}: ${p.stages.map((x) => `${fmt(x.hours)} h at ${fmt(x.c)} °C`).join(', ')}; fill ${fmt(p.fillC, 0)} °C`}
+      />
       <Row label="Kinetics from" value={p.evidence ? p.evidence.text : 'not recorded (started before Yieldpoint kept where kinetics came from)'} />
       <Row label="Planned product" value={`${fmt(p.plannedProductGPerL)} g/L${p.p10GPerL !== null ? ` (P10 ${fmt(p.p10GPerL)})` : ''}`} />
       <Row label="Limits" value={`band ±${data.settings.toleranceC} °C · gap ${data.settings.gapLimitMin} min · vessel max ${p.vessel.maxC} °C`} />
       <Row label="Activity left" value={`${fmt(s.activityLeft * 100, 1)} %`} />
       <Row label="Thermal dose" value={`${fmt(s.equivalentHAtRef, 2)} h equivalent at ${fmt(s.refC, 0)} °C`} />
       <Row label="Product so far · forecast" value={`${fmt(s.productSoFarGPerL)} · ${fmt(s.forecastGPerL)} g/L`} />
-      <Row label="Forecast at closing · measured" value={`${b.forecastAtCloseGPerL === null ? '—' : fmt(b.forecastAtCloseGPerL)} · ${b.measuredProductGPerL === null ? '—' : fmt(b.measuredProductGPerL)} g/L`} />
+      <Row
+        label="Forecast at closing · measured"
+        value={`${b.forecastAtCloseGPerL === null ? '—' : fmt(b.forecastAtCloseGPerL)} · ${b.measuredProductGPerL === null ? '—' : fmt(b.measuredProductGPerL)} g/L`}
+      />
       <Text variant="title" accessibilityRole="header">
         Signatures ({data.signatures.length})
       </Text>
       {data.signatures.length ? (
-        data.signatures.map((g) => <Row key={`${g.changeRequestId}-${g.signedAt}-${g.printedName}`} label={`${g.printedName} (${g.role})`} value={`${g.meaning} · ${stamp(g.signedAt)} · change request ${g.changeRequestId}${g.comment ? ` · “${g.comment}”` : ''}`} />)
+        data.signatures.map((g) => (
+          <Row
+            key={`${g.changeRequestId}-${g.signedAt}-${g.printedName}`}
+            label={`${g.printedName} (${g.role})`}
+            value={`${g.meaning} · ${stamp(g.signedAt)} · change request ${g.changeRequestId}${g.comment ? ` · “${g.comment}”` : ''}`}
+          />
+        ))
       ) : (
-        <Text tone="muted">{p.source === 'released_plan' ? 'No signature found for the released plan.' : 'None: the batch runs the recipe’s current setpoint, not a released plan.'}</Text>
+        <Text tone="muted">
+          {p.source === 'released_plan'
+            ? 'No signature found for the released plan.'
+            : 'None: the batch runs the recipe’s current setpoint, not a released plan.'}
+        </Text>
       )}
       <Text variant="title" accessibilityRole="header">
         Deviations ({data.deviations.length})
       </Text>
-      {data.deviations.length ? <DataTable columns={deviationColumns(stamp)} rows={data.deviations} rowKey={(d) => String(d.id)} caption="Deviations" /> : <Text tone="muted">None.</Text>}
+      {data.deviations.length ? (
+        <DataTable columns={deviationColumns(stamp)} rows={data.deviations} rowKey={(d) => String(d.id)} caption="Deviations" />
+      ) : (
+        <Text tone="muted">None.</Text>
+      )}
       <Text variant="title" accessibilityRole="header">
         Readings ({data.readingsTotal})
       </Text>

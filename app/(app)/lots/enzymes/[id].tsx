@@ -18,7 +18,12 @@ const COLUMNS: Column<LotHistoryPoint>[] = [
   { key: 'lot', label: 'Lot', value: (p) => p.lotCode, flex: 1.2 },
   { key: 'received', label: 'Received', value: (p) => p.receivedOn },
   { key: 'half', label: 'Half-life, h', value: (p) => (p.halfLifeH === null ? '–' : fmt(p.halfLifeH, 1)), isNumeric: true },
-  { key: 'ci', label: '95 % interval, h', value: (p) => (p.lowerH === null || p.upperH === null ? '–' : `${fmt(p.lowerH, 1)}–${fmt(p.upperH, 1)}`), isNumeric: true },
+  {
+    key: 'ci',
+    label: '95 % interval, h',
+    value: (p) => (p.lowerH === null || p.upperH === null ? '–' : `${fmt(p.lowerH, 1)}–${fmt(p.upperH, 1)}`),
+    isNumeric: true,
+  },
   { key: 'basis', label: 'Basis', value: (p) => BASIS[p.basis] },
   { key: 'status', label: 'Status', value: (p) => STATUS[p.status] },
 ];
@@ -41,7 +46,8 @@ function EnzymeBody({ id }: { id: number }) {
           {e.enzymeClass} (EC {e.ecNumber}) from {e.supplier}. Unit: {e.activityUnit} — {e.unitDefinition}. Reference temperature {fmt(e.tRefC, 0)} °C.
         </Text>
         <Text>
-          Specification: half-life at least {fmt(e.specMinHalfLifeH, 1)} h at {fmt(e.specTempC, 0)} °C; activity at least {fmt(e.specMinActivity, 0)} {e.activityUnit}.
+          Specification: half-life at least {fmt(e.specMinHalfLifeH, 1)} h at {fmt(e.specTempC, 0)} °C; activity at least {fmt(e.specMinActivity, 0)}{' '}
+          {e.activityUnit}.
         </Text>
         {canEdit && !isEditing ? (
           <View style={styles.start}>
@@ -58,7 +64,14 @@ function EnzymeBody({ id }: { id: number }) {
               Filled dots: assay fit with its 95 % interval; hollow dots: certificate figure. Dashed line: the specification.
             </Text>
             <LotHistoryChart points={data.history} specMinHalfLifeH={e.specMinHalfLifeH} specTempC={e.specTempC} />
-            <DataTable columns={COLUMNS} rows={data.history} rowKey={(p) => String(p.lotId)} caption="Lot history" testID="lot-history-table" onRowPress={(p) => router.push(`/lots/${p.lotId}`)} />
+            <DataTable
+              columns={COLUMNS}
+              rows={data.history}
+              rowKey={(p) => String(p.lotId)}
+              caption="Lot history"
+              testID="lot-history-table"
+              onRowPress={(p) => router.push(`/lots/${p.lotId}`)}
+            />
           </>
         ) : (
           <EmptyState title="No lots yet" message="Each lot of this enzyme will appear here with its half-life." />

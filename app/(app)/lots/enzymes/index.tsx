@@ -46,7 +46,12 @@ function EnzymesBody() {
         </View>
       ) : null}
       {editing ? (
-        <EnzymeForm key={editing === 'new' ? 'new' : editing.id} enzyme={editing === 'new' ? undefined : editing} onDone={() => setEditing(null)} onCancel={() => setEditing(null)} />
+        <EnzymeForm
+          key={editing === 'new' ? 'new' : editing.id}
+          enzyme={editing === 'new' ? undefined : editing}
+          onDone={() => setEditing(null)}
+          onCancel={() => setEditing(null)}
+        />
       ) : null}
       <Field
         label="Search name, class, EC number or supplier"
@@ -60,7 +65,16 @@ function EnzymesBody() {
       />
       <View style={styles.row}>
         <Choice compact label="Sort by" value={sort} options={SORTS} onChange={setSort} testID="enzyme-sort" />
-        <Choice compact label="Order" value={dir} options={[{ value: 'asc', label: 'Ascending' }, { value: 'desc', label: 'Descending' }]} onChange={setDir} />
+        <Choice
+          compact
+          label="Order"
+          value={dir}
+          options={[
+            { value: 'asc', label: 'Ascending' },
+            { value: 'desc', label: 'Descending' },
+          ]}
+          onChange={setDir}
+        />
       </View>
       {error ? (
         <ErrorState error={error} onRetry={retry} />

@@ -19,7 +19,9 @@ export default function PlanScreen() {
       title="Saved plan"
       subtitle="Immutable once saved; change control signs exactly this content."
       testID="screen-plan"
-      actions={id !== null ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined}
+      actions={
+        id !== null ? <Button label="Propose as setpoint change" testID="plan-propose" onPress={() => router.push(`/sign-offs/new?planId=${id}`)} /> : undefined
+      }
     >
       <Body id={id} />
     </Screen>
