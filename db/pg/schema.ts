@@ -7,28 +7,24 @@ export const assayPoints = pgTable(
   'assay_points',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    assayId: bigint('assay_id', { mode: 'number' })
-      .notNull()
-      .references(() => assays.id),
+    assayId: bigint('assay_id', { mode: 'number' }).notNull().references(() => assays.id),
     line: bigint('line', { mode: 'number' }).notNull(),
     tempC: doublePrecision('temp_c').notNull(),
     timeH: doublePrecision('time_h').notNull(),
     residual: doublePrecision('residual').notNull(),
     note: text('note'),
   },
-  (t) => [index('assay_points_assay_idx').on(t.assayId)],
+  (t) => [
+    index('assay_points_assay_idx').on(t.assayId),
+  ],
 );
 
 export const assays = pgTable(
   'assays',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    lotId: bigint('lot_id', { mode: 'number' })
-      .notNull()
-      .references(() => lots.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
     source: text('source', { enum: ['csv', 'table'] }).notNull(),
     fileName: text('file_name'),
     scale: text('scale', { enum: ['fraction', 'percent'] }).notNull(),
@@ -37,11 +33,11 @@ export const assays = pgTable(
     fitProblem: text('fit_problem'),
     pointCount: bigint('point_count', { mode: 'number' }).notNull(),
     createdBy: bigint('created_by', { mode: 'number' }).references(() => users.id),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [index('assays_lot_idx').on(t.lotId)],
+  (t) => [
+    index('assays_lot_idx').on(t.lotId),
+  ],
 );
 
 export const auditEvents = pgTable(
@@ -60,65 +56,49 @@ export const auditEvents = pgTable(
     prevHash: text('prev_hash').notNull(),
     hash: text('hash').notNull(),
   },
-  (t) => [index('audit_site_idx').on(t.siteId, t.id)],
+  (t) => [
+    index('audit_site_idx').on(t.siteId, t.id),
+  ],
 );
 
 export const batches = pgTable(
   'batches',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    recipeId: bigint('recipe_id', { mode: 'number' })
-      .notNull()
-      .references(() => recipes.id),
-    vesselId: bigint('vessel_id', { mode: 'number' })
-      .notNull()
-      .references(() => vessels.id),
-    lotId: bigint('lot_id', { mode: 'number' })
-      .notNull()
-      .references(() => lots.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
+    vesselId: bigint('vessel_id', { mode: 'number' }).notNull().references(() => vessels.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
     planId: bigint('plan_id', { mode: 'number' }).references(() => plans.id),
     source: text('source', { enum: ['released_plan', 'current_setpoint'] }).notNull(),
     program: json('program').$type<(typeof sqlite.batches.$inferSelect)['program']>().notNull(),
-    state: text('state', { enum: ['running', 'closed'] })
-      .notNull()
-      .default('running'),
+    state: text('state', { enum: ['running', 'closed'] }).notNull().default('running'),
     startedAt: text('started_at').notNull(),
-    startedBy: bigint('started_by', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    startedBy: bigint('started_by', { mode: 'number' }).notNull().references(() => users.id),
     closedAt: text('closed_at'),
     closedBy: bigint('closed_by', { mode: 'number' }).references(() => users.id),
     closeComment: text('close_comment'),
     measuredProductGPerL: doublePrecision('measured_product_g_per_l'),
     forecastAtCloseGPerL: doublePrecision('forecast_at_close_g_per_l'),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [index('batches_site_idx').on(t.siteId, t.state, t.id)],
+  (t) => [
+    index('batches_site_idx').on(t.siteId, t.state, t.id),
+  ],
 );
 
 export const batchReadings = pgTable(
   'batch_readings',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' })
-      .notNull()
-      .references(() => batches.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
     clientKey: text('client_key').notNull(),
     takenAt: text('taken_at').notNull(),
     c: doublePrecision('c').notNull(),
     note: text('note'),
     source: text('source', { enum: ['manual', 'historian', 'control_system'] }).notNull(),
-    enteredBy: bigint('entered_by', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    enteredBy: bigint('entered_by', { mode: 'number' }).notNull().references(() => users.id),
     receivedAt: text('received_at').notNull(),
   },
   (t) => [
@@ -129,57 +109,49 @@ export const batchReadings = pgTable(
   ],
 );
 
-export const batchSettings = pgTable('batch_settings', {
-  siteId: bigint('site_id', { mode: 'number' })
-    .primaryKey()
-    .references(() => sites.id),
-  toleranceC: doublePrecision('tolerance_c').notNull(),
-  gapLimitMin: bigint('gap_limit_min', { mode: 'number' }).notNull(),
-  updatedAt: text('updated_at').notNull(),
-});
+export const batchSettings = pgTable(
+  'batch_settings',
+  {
+    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
+    toleranceC: doublePrecision('tolerance_c').notNull(),
+    gapLimitMin: bigint('gap_limit_min', { mode: 'number' }).notNull(),
+    updatedAt: text('updated_at').notNull(),
+  },
+);
 
-export const billingEvents = pgTable('billing_events', {
-  eventId: text('event_id').primaryKey(),
-  type: text('type').notNull(),
-  siteId: bigint('site_id', { mode: 'number' }),
-  receivedAt: text('received_at').notNull(),
-});
+export const billingEvents = pgTable(
+  'billing_events',
+  {
+    eventId: text('event_id').primaryKey(),
+    type: text('type').notNull(),
+    siteId: bigint('site_id', { mode: 'number' }),
+    receivedAt: text('received_at').notNull(),
+  },
+);
 
 export const calibrationExclusions = pgTable(
   'calibration_exclusions',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' })
-      .notNull()
-      .references(() => batches.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
     reason: text('reason').notNull(),
-    excludedBy: bigint('excluded_by', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    excludedBy: bigint('excluded_by', { mode: 'number' }).notNull().references(() => users.id),
     excludedAt: text('excluded_at').notNull(),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [uniqueIndex('calibration_exclusions_batch_unique').on(t.batchId)],
+  (t) => [
+    uniqueIndex('calibration_exclusions_batch_unique').on(t.batchId),
+  ],
 );
 
 export const calibrations = pgTable(
   'calibrations',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    recipeId: bigint('recipe_id', { mode: 'number' })
-      .notNull()
-      .references(() => recipes.id),
-    lotId: bigint('lot_id', { mode: 'number' })
-      .notNull()
-      .references(() => lots.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
     state: text('state', { enum: ['proposed', 'accepted', 'superseded'] }).notNull(),
     batchIds: json('batch_ids').$type<(typeof sqlite.calibrations.$inferSelect)['batchIds']>().notNull(),
     result: json('result').$type<(typeof sqlite.calibrations.$inferSelect)['result']>().notNull(),
@@ -187,27 +159,26 @@ export const calibrations = pgTable(
     decidedBy: bigint('decided_by', { mode: 'number' }).references(() => users.id),
     decidedAt: text('decided_at'),
   },
-  (t) => [index('calibrations_recipe_lot_idx').on(t.siteId, t.recipeId, t.lotId, t.state)],
+  (t) => [
+    index('calibrations_recipe_lot_idx').on(t.siteId, t.recipeId, t.lotId, t.state),
+  ],
 );
 
-export const calibrationSettings = pgTable('calibration_settings', {
-  siteId: bigint('site_id', { mode: 'number' })
-    .primaryKey()
-    .references(() => sites.id),
-  measurementRelSd: doublePrecision('measurement_rel_sd').notNull(),
-  updatedAt: text('updated_at').notNull(),
-});
+export const calibrationSettings = pgTable(
+  'calibration_settings',
+  {
+    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
+    measurementRelSd: doublePrecision('measurement_rel_sd').notNull(),
+    updatedAt: text('updated_at').notNull(),
+  },
+);
 
 export const certificateFiles = pgTable(
   'certificate_files',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    lotId: bigint('lot_id', { mode: 'number' })
-      .notNull()
-      .references(() => lots.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
     fileName: text('file_name').notNull(),
     mimeType: text('mime_type', { enum: ['application/pdf', 'image/png', 'image/jpeg'] }).notNull(),
     sizeBytes: bigint('size_bytes', { mode: 'number' }).notNull(),
@@ -215,54 +186,42 @@ export const certificateFiles = pgTable(
     uploadedBy: bigint('uploaded_by', { mode: 'number' }).references(() => users.id),
     uploadedAt: text('uploaded_at').notNull(),
   },
-  (t) => [index('certificate_files_lot_idx').on(t.lotId)],
+  (t) => [
+    index('certificate_files_lot_idx').on(t.lotId),
+  ],
 );
 
 export const changeRequests = pgTable(
   'change_requests',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    recipeId: bigint('recipe_id', { mode: 'number' })
-      .notNull()
-      .references(() => recipes.id),
-    planId: bigint('plan_id', { mode: 'number' })
-      .notNull()
-      .references(() => plans.id),
-    proposedBy: bigint('proposed_by', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
+    planId: bigint('plan_id', { mode: 'number' }).notNull().references(() => plans.id),
+    proposedBy: bigint('proposed_by', { mode: 'number' }).notNull().references(() => users.id),
     rationale: text('rationale').notNull(),
     expectedEffect: text('expected_effect').notNull(),
     effectiveFrom: text('effective_from').notNull(),
-    status: text('status', { enum: ['proposed', 'approved', 'rejected', 'superseded', 'stale'] })
-      .notNull()
-      .default('proposed'),
+    status: text('status', { enum: ['proposed', 'approved', 'rejected', 'superseded', 'stale'] }).notNull().default('proposed'),
     recordHash: text('record_hash').notNull(),
     createdAt: text('created_at').notNull(),
     decidedAt: text('decided_at'),
     replaced: json('replaced').$type<(typeof sqlite.changeRequests.$inferSelect)['replaced']>(),
     supersededBy: bigint('superseded_by', { mode: 'number' }),
   },
-  (t) => [index('change_requests_site_idx').on(t.siteId, t.status, t.id)],
+  (t) => [
+    index('change_requests_site_idx').on(t.siteId, t.status, t.id),
+  ],
 );
 
 export const deviations = pgTable(
   'deviations',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' })
-      .notNull()
-      .references(() => batches.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
     kind: text('kind', { enum: ['band', 'gap', 'vessel_max', 'forecast_low', 'signal_lost'] }).notNull(),
-    state: text('state', { enum: ['open', 'acknowledged', 'closed'] })
-      .notNull()
-      .default('open'),
+    state: text('state', { enum: ['open', 'acknowledged', 'closed'] }).notNull().default('open'),
     readingId: bigint('reading_id', { mode: 'number' }).references(() => batchReadings.id),
     at: text('at').notNull(),
     message: text('message').notNull(),
@@ -277,16 +236,17 @@ export const deviations = pgTable(
     closedAt: text('closed_at'),
     closeComment: text('close_comment'),
   },
-  (t) => [index('deviations_batch_idx').on(t.batchId, t.id), index('deviations_reading_idx').on(t.readingId)],
+  (t) => [
+    index('deviations_batch_idx').on(t.batchId, t.id),
+    index('deviations_reading_idx').on(t.readingId),
+  ],
 );
 
 export const enzymes = pgTable(
   'enzymes',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
     name: text('name').notNull(),
     enzymeClass: text('enzyme_class').notNull(),
     ecNumber: text('ec_number').notNull(),
@@ -298,44 +258,39 @@ export const enzymes = pgTable(
     specTempC: doublePrecision('spec_temp_c').notNull(),
     specMinHalfLifeH: doublePrecision('spec_min_half_life_h').notNull(),
     specMinActivity: doublePrecision('spec_min_activity').notNull(),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [uniqueIndex('enzymes_site_name_unique').on(t.siteId, t.name)],
+  (t) => [
+    uniqueIndex('enzymes_site_name_unique').on(t.siteId, t.name),
+  ],
 );
 
 export const invites = pgTable(
   'invites',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
     email: text('email').notNull(),
     role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
     tokenHash: text('token_hash').notNull(),
-    invitedBy: bigint('invited_by', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    invitedBy: bigint('invited_by', { mode: 'number' }).notNull().references(() => users.id),
     expiresAt: text('expires_at').notNull(),
     acceptedAt: text('accepted_at'),
     revokedAt: text('revoked_at'),
     userId: bigint('user_id', { mode: 'number' }).references(() => users.id),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [uniqueIndex('invites_token_unique').on(t.tokenHash), index('invites_site_idx').on(t.siteId)],
+  (t) => [
+    uniqueIndex('invites_token_unique').on(t.tokenHash),
+    index('invites_site_idx').on(t.siteId),
+  ],
 );
 
 export const invoices = pgTable(
   'invoices',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
     stripeInvoiceId: text('stripe_invoice_id').notNull(),
     number: text('number').notNull(),
     status: text('status').notNull(),
@@ -348,48 +303,44 @@ export const invoices = pgTable(
     hostedUrl: text('hosted_url'),
     issuedAt: text('issued_at').notNull(),
   },
-  (t) => [uniqueIndex('invoices_stripe_unique').on(t.stripeInvoiceId), index('invoices_site_idx').on(t.siteId, t.issuedAt)],
+  (t) => [
+    uniqueIndex('invoices_stripe_unique').on(t.stripeInvoiceId),
+    index('invoices_site_idx').on(t.siteId, t.issuedAt),
+  ],
 );
 
 export const linkGaps = pgTable(
   'link_gaps',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    batchId: bigint('batch_id', { mode: 'number' })
-      .notNull()
-      .references(() => batches.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    batchId: bigint('batch_id', { mode: 'number' }).notNull().references(() => batches.id),
     fromAt: text('from_at').notNull(),
     toAt: text('to_at').notNull(),
     reason: text('reason').notNull(),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [index('link_gaps_batch_idx').on(t.batchId, t.fromAt)],
+  (t) => [
+    index('link_gaps_batch_idx').on(t.batchId, t.fromAt),
+  ],
 );
 
-export const linkSettings = pgTable('link_settings', {
-  siteId: bigint('site_id', { mode: 'number' })
-    .primaryKey()
-    .references(() => sites.id),
-  samplingIntervalMs: bigint('sampling_interval_ms', { mode: 'number' }).notNull(),
-  deadbandC: doublePrecision('deadband_c').notNull(),
-  updatedAt: text('updated_at').notNull(),
-});
+export const linkSettings = pgTable(
+  'link_settings',
+  {
+    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
+    samplingIntervalMs: bigint('sampling_interval_ms', { mode: 'number' }).notNull(),
+    deadbandC: doublePrecision('deadband_c').notNull(),
+    updatedAt: text('updated_at').notNull(),
+  },
+);
 
 export const lots = pgTable(
   'lots',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    enzymeId: bigint('enzyme_id', { mode: 'number' })
-      .notNull()
-      .references(() => enzymes.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    enzymeId: bigint('enzyme_id', { mode: 'number' }).notNull().references(() => enzymes.id),
     lotCode: text('lot_code').notNull(),
     receivedOn: text('received_on').notNull(),
     expiresOn: text('expires_on').notNull(),
@@ -398,17 +349,16 @@ export const lots = pgTable(
     certStability: json('cert_stability').$type<(typeof sqlite.lots.$inferSelect)['certStability']>().notNull(),
     certKdPerH: doublePrecision('cert_kd_per_h').notNull(),
     certTempC: doublePrecision('cert_temp_c').notNull(),
-    status: text('status', { enum: ['quarantined', 'accepted', 'rejected'] })
-      .notNull()
-      .default('quarantined'),
+    status: text('status', { enum: ['quarantined', 'accepted', 'rejected'] }).notNull().default('quarantined'),
     decisionReason: text('decision_reason'),
     decidedBy: bigint('decided_by', { mode: 'number' }).references(() => users.id),
     decidedAt: text('decided_at'),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [uniqueIndex('lots_enzyme_code_unique').on(t.enzymeId, t.lotCode), index('lots_site_idx').on(t.siteId)],
+  (t) => [
+    uniqueIndex('lots_enzyme_code_unique').on(t.enzymeId, t.lotCode),
+    index('lots_site_idx').on(t.siteId),
+  ],
 );
 
 export const mailOutbox = pgTable(
@@ -421,36 +371,27 @@ export const mailOutbox = pgTable(
     text: text('text').notNull(),
     html: text('html'),
     kind: text('kind').notNull(),
-    status: text('status', { enum: ['pending', 'sent', 'failed'] })
-      .notNull()
-      .default('pending'),
+    status: text('status', { enum: ['pending', 'sent', 'failed'] }).notNull().default('pending'),
     attempts: bigint('attempts', { mode: 'number' }).notNull().default(0),
     lastError: text('last_error'),
     nextAttemptAt: text('next_attempt_at').notNull(),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
     sentAt: text('sent_at'),
   },
-  (t) => [index('mail_outbox_due_idx').on(t.status, t.nextAttemptAt), index('mail_outbox_site_idx').on(t.siteId, t.id)],
+  (t) => [
+    index('mail_outbox_due_idx').on(t.status, t.nextAttemptAt),
+    index('mail_outbox_site_idx').on(t.siteId, t.id),
+  ],
 );
 
 export const plans = pgTable(
   'plans',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    recipeId: bigint('recipe_id', { mode: 'number' })
-      .notNull()
-      .references(() => recipes.id),
-    lotId: bigint('lot_id', { mode: 'number' })
-      .notNull()
-      .references(() => lots.id),
-    createdBy: bigint('created_by', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    recipeId: bigint('recipe_id', { mode: 'number' }).notNull().references(() => recipes.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
+    createdBy: bigint('created_by', { mode: 'number' }).notNull().references(() => users.id),
     createdAt: text('created_at').notNull(),
     modelVersion: text('model_version').notNull(),
     inputs: json('inputs').$type<(typeof sqlite.plans.$inferSelect)['inputs']>().notNull(),
@@ -466,26 +407,20 @@ export const plans = pgTable(
     constraintsMet: boolean('constraints_met').notNull(),
     contentHash: text('content_hash').notNull(),
   },
-  (t) => [index('plans_site_recipe_idx').on(t.siteId, t.recipeId, t.id)],
+  (t) => [
+    index('plans_site_recipe_idx').on(t.siteId, t.recipeId, t.id),
+  ],
 );
 
 export const recipes = pgTable(
   'recipes',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
     name: text('name').notNull(),
-    enzymeId: bigint('enzyme_id', { mode: 'number' })
-      .notNull()
-      .references(() => enzymes.id),
-    lotId: bigint('lot_id', { mode: 'number' })
-      .notNull()
-      .references(() => lots.id),
-    vesselId: bigint('vessel_id', { mode: 'number' })
-      .notNull()
-      .references(() => vessels.id),
+    enzymeId: bigint('enzyme_id', { mode: 'number' }).notNull().references(() => enzymes.id),
+    lotId: bigint('lot_id', { mode: 'number' }).notNull().references(() => lots.id),
+    vesselId: bigint('vessel_id', { mode: 'number' }).notNull().references(() => vessels.id),
     s0GPerL: doublePrecision('s0_g_per_l').notNull(),
     kmGPerL: doublePrecision('km_g_per_l').notNull(),
     doseGPerL: doublePrecision('dose_g_per_l').notNull(),
@@ -500,43 +435,37 @@ export const recipes = pgTable(
     currentSetpointC: doublePrecision('current_setpoint_c').notNull(),
     releasedPlanId: bigint('released_plan_id', { mode: 'number' }),
     releasedAt: text('released_at'),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
     updatedAt: text('updated_at').notNull(),
   },
-  (t) => [uniqueIndex('recipes_site_name_unique').on(t.siteId, t.name)],
+  (t) => [
+    uniqueIndex('recipes_site_name_unique').on(t.siteId, t.name),
+  ],
 );
 
 export const sessions = pgTable(
   'sessions',
   {
     id: text('id').primaryKey(),
-    userId: bigint('user_id', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    userId: bigint('user_id', { mode: 'number' }).notNull().references(() => users.id),
     role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
     createdAt: text('created_at').notNull(),
     lastSeenAt: text('last_seen_at').notNull(),
     expiresAt: text('expires_at').notNull(),
     revokedAt: text('revoked_at'),
   },
-  (t) => [index('sessions_user_idx').on(t.userId)],
+  (t) => [
+    index('sessions_user_idx').on(t.userId),
+  ],
 );
 
 export const signatures = pgTable(
   'signatures',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    changeRequestId: bigint('change_request_id', { mode: 'number' })
-      .notNull()
-      .references(() => changeRequests.id),
-    userId: bigint('user_id', { mode: 'number' })
-      .notNull()
-      .references(() => users.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    changeRequestId: bigint('change_request_id', { mode: 'number' }).notNull().references(() => changeRequests.id),
+    userId: bigint('user_id', { mode: 'number' }).notNull().references(() => users.id),
     printedName: text('printed_name').notNull(),
     role: text('role').notNull(),
     meaning: text('meaning', { enum: ['reviewed', 'approved', 'rejected'] }).notNull(),
@@ -545,62 +474,63 @@ export const signatures = pgTable(
     siteTimeZone: text('site_time_zone').notNull(),
     recordHash: text('record_hash').notNull(),
   },
-  (t) => [index('signatures_request_idx').on(t.changeRequestId, t.id)],
+  (t) => [
+    index('signatures_request_idx').on(t.changeRequestId, t.id),
+  ],
 );
 
-export const sites = pgTable('sites', {
-  id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-  name: text('name').notNull(),
-  timeZone: text('time_zone').notNull().default('UTC'),
-  currency: text('currency').notNull().default('EUR'),
-  createdAt: text('created_at')
-    .notNull()
-    .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
-});
+export const sites = pgTable(
+  'sites',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
+    name: text('name').notNull(),
+    timeZone: text('time_zone').notNull().default('UTC'),
+    currency: text('currency').notNull().default('EUR'),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+  },
+);
 
-export const subscriptions = pgTable('subscriptions', {
-  siteId: bigint('site_id', { mode: 'number' })
-    .primaryKey()
-    .references(() => sites.id),
-  plan: text('plan').notNull(),
-  seats: bigint('seats', { mode: 'number' }).notNull(),
-  status: text('status', { enum: ['none', 'active', 'past_due', 'canceled'] }).notNull(),
-  graceEndsAt: text('grace_ends_at'),
-  currentPeriodEnd: text('current_period_end'),
-  stripeCustomerId: text('stripe_customer_id'),
-  stripeSubscriptionId: text('stripe_subscription_id'),
-  stripeItemId: text('stripe_item_id'),
-  lastEventCreated: bigint('last_event_created', { mode: 'number' }).notNull().default(0),
-  updatedAt: text('updated_at').notNull(),
-});
+export const subscriptions = pgTable(
+  'subscriptions',
+  {
+    siteId: bigint('site_id', { mode: 'number' }).primaryKey().references(() => sites.id),
+    plan: text('plan').notNull(),
+    seats: bigint('seats', { mode: 'number' }).notNull(),
+    status: text('status', { enum: ['none', 'active', 'past_due', 'canceled'] }).notNull(),
+    graceEndsAt: text('grace_ends_at'),
+    currentPeriodEnd: text('current_period_end'),
+    stripeCustomerId: text('stripe_customer_id'),
+    stripeSubscriptionId: text('stripe_subscription_id'),
+    stripeItemId: text('stripe_item_id'),
+    lastEventCreated: bigint('last_event_created', { mode: 'number' }).notNull().default(0),
+    updatedAt: text('updated_at').notNull(),
+  },
+);
 
 export const users = pgTable(
   'users',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
     email: text('email').notNull(),
     name: text('name').notNull(),
     role: text('role', { enum: ['admin', 'engineer', 'supervisor', 'procurement', 'operator'] }).notNull(),
     passwordHash: text('password_hash').notNull(),
     isActive: boolean('is_active').notNull().default(true),
     cautionsAcknowledgedAt: text('cautions_acknowledged_at'),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [uniqueIndex('users_email_unique').on(t.email), index('users_site_idx').on(t.siteId)],
+  (t) => [
+    uniqueIndex('users_email_unique').on(t.email),
+    index('users_site_idx').on(t.siteId),
+  ],
 );
 
 export const vessels = pgTable(
   'vessels',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
     name: text('name').notNull(),
     workingVolumeL: doublePrecision('working_volume_l').notNull(),
     minC: doublePrecision('min_c').notNull(),
@@ -608,23 +538,19 @@ export const vessels = pgTable(
     maxHeatCPerH: doublePrecision('max_heat_c_per_h').notNull(),
     maxCoolCPerH: doublePrecision('max_cool_c_per_h').notNull(),
     hygienicMinC: doublePrecision('hygienic_min_c').notNull(),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
   },
-  (t) => [uniqueIndex('vessels_site_name_unique').on(t.siteId, t.name)],
+  (t) => [
+    uniqueIndex('vessels_site_name_unique').on(t.siteId, t.name),
+  ],
 );
 
 export const vesselSources = pgTable(
   'vessel_sources',
   {
     id: bigint('id', { mode: 'number' }).primaryKey().generatedByDefaultAsIdentity(),
-    siteId: bigint('site_id', { mode: 'number' })
-      .notNull()
-      .references(() => sites.id),
-    vesselId: bigint('vessel_id', { mode: 'number' })
-      .notNull()
-      .references(() => vessels.id),
+    siteId: bigint('site_id', { mode: 'number' }).notNull().references(() => sites.id),
+    vesselId: bigint('vessel_id', { mode: 'number' }).notNull().references(() => vessels.id),
     endpointUrl: text('endpoint_url').notNull(),
     nodeId: text('node_id').notNull(),
     unit: text('unit', { enum: ['degC', 'K', 'degF'] }).notNull(),
@@ -637,10 +563,11 @@ export const vesselSources = pgTable(
     trustedThumbprint: text('trusted_thumbprint'),
     trustedAt: text('trusted_at'),
     trustedBy: bigint('trusted_by', { mode: 'number' }).references(() => users.id),
-    createdAt: text('created_at')
-      .notNull()
-      .default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
+    createdAt: text('created_at').notNull().default(sql`(to_char(now() at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'))`),
     updatedAt: text('updated_at').notNull(),
   },
-  (t) => [uniqueIndex('vessel_sources_vessel_unique').on(t.vesselId), index('vessel_sources_site_idx').on(t.siteId)],
+  (t) => [
+    uniqueIndex('vessel_sources_vessel_unique').on(t.vesselId),
+    index('vessel_sources_site_idx').on(t.siteId),
+  ],
 );
