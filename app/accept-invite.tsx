@@ -1,10 +1,10 @@
 import { router } from 'expo-router';
 import { useState } from 'react';
 import { AuthCard, MailLinkPage } from '@/components/shell/auth-card';
+import { NewPasswordFields, useNewPassword } from '@/components/shell/new-password-fields';
 import { Field } from '@/components/ui/field';
 import { ErrorState, Loader } from '@/components/ui/states';
 import { Text } from '@/components/ui/text';
-import { MIN_PASSWORD_LENGTH } from '@/contracts/rules';
 import { ROLE_LABELS } from '@/contracts/rules';
 import { useAcceptInvite, useInvitePreview } from '@/hooks/use-accept-invite';
 
@@ -12,16 +12,13 @@ function AcceptForm({ token }: { token: string }) {
   const preview = useInvitePreview(token);
   const accept = useAcceptInvite();
   const [name, setName] = useState('');
-  const [password, setPassword] = useState('');
-  const [repeat, setRepeat] = useState('');
-  const [mismatch, setMismatch] = useState(false);
+  const pw = useNewPassword();
   if (preview.error) return <ErrorState error={preview.error} />;
   if (!preview.data) return <Loader rows={2} label="Checking the invite" />;
   const p = preview.data;
   const submit = async () => {
-    setMismatch(password !== repeat);
-    if (password !== repeat) return;
-    const out = await accept.submit({ token, name, password });
+    if (!pw.confirmed()) return;
+    const out = await accept.submit({ token, name, password: pw.password });
     if (out) router.replace({ pathname: '/sign-in', params: { email: out.email, welcome: '1' } });
   };
   return (
@@ -37,26 +34,7 @@ function AcceptForm({ token }: { token: string }) {
       submit={{ label: 'Set password', testID: 'accept-submit', onPress: submit, isBusy: accept.isBusy }}
     >
       <Field label="Your name" testID="accept-name" value={name} onChangeText={setName} autoComplete="name" error={accept.error?.fields.name} />
-      <Field
-        label="Password"
-        testID="accept-password"
-        value={password}
-        onChangeText={setPassword}
-        secureTextEntry
-        autoComplete="new-password"
-        hint={`At least ${MIN_PASSWORD_LENGTH} characters`}
-        error={accept.error?.fields.password}
-      />
-      <Field
-        label="Password again"
-        testID="accept-password-repeat"
-        value={repeat}
-        onChangeText={setRepeat}
-        secureTextEntry
-        autoComplete="new-password"
-        onSubmitEditing={submit}
-        error={mismatch ? 'The two passwords differ' : undefined}
-      />
+      <NewPasswordFields state={pw} label="Password" testID="accept-password" error={accept.error?.fields.password} onSubmit={submit} />
     </AuthCard>
   );
 }
