@@ -26,6 +26,9 @@ export const type = {
 /** Text drawn inside charts (SVG): tick labels, and axis titles. */
 export const chartText = { tick: 11, title: type.caption.fontSize } as const;
 
+/** Every chart's drawing height (its width is its container's). */
+export const chartHeight = 240;
+
 /** Smallest touch target (WCAG 2.5.5 AAA size, also the common mobile guideline). */
 export const touchTarget = 44;
 

@@ -1,11 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { CHART_MARGIN, lineChartGeometry } from '../../src/components/charts/line-chart-geometry';
+import { plotBox } from '../../src/components/charts/axes';
+import { lineChartGeometry } from '../../src/components/charts/line-chart-geometry';
 
 const W = 400;
 const H = 240;
 const base = { width: W, height: H };
 
-// Pixel positions in the tests are worked out by hand from the margins and the data range.
+// Pixel positions in the tests are worked out by hand from the frame's box (the margins every chart shares) and the data range.
+const box = plotBox(W, H);
 describe('lineChartGeometry', () => {
   it('maps the data range onto the plot area, larger y higher up', () => {
     const g = lineChartGeometry({
@@ -20,14 +22,8 @@ describe('lineChartGeometry', () => {
         },
       ],
     });
-    expect(g.plot).toEqual({
-      left: CHART_MARGIN.left,
-      top: CHART_MARGIN.top,
-      width: W - CHART_MARGIN.left - CHART_MARGIN.right,
-      height: H - CHART_MARGIN.top - CHART_MARGIN.bottom,
-    });
-    const bottom = CHART_MARGIN.top + g.plot.height;
-    expect(g.lines[0]!.d).toBe(`M${CHART_MARGIN.left},${bottom}L${W - CHART_MARGIN.right},${CHART_MARGIN.top}`);
+    expect(g.box).toEqual(box);
+    expect(g.lines[0]!.d).toBe(`M${box.left},${box.bottom}L${box.right},${box.top}`);
   });
 
   it('breaks a line at a missing value instead of joining across it', () => {
@@ -68,7 +64,7 @@ describe('lineChartGeometry', () => {
     expect(g.yTicks[0]!.label).toBe('0 g/L');
     expect(g.yTicks.at(-1)!.value).toBeGreaterThanOrEqual(240);
     expect(g.xTicks.map((t) => t.value)).toEqual([40, 50, 60, 70, 80]);
-    expect(g.yTicks[0]!.pos).toBe(CHART_MARGIN.top + g.plot.height);
+    expect(g.yTicks[0]!.pos).toBe(box.bottom);
   });
 
   it('closes a band between its lower and upper edges and includes it in the range', () => {
@@ -112,8 +108,8 @@ describe('lineChartGeometry', () => {
       ],
       markers: [{ id: 'm', x: 1, y: 1, label: 'L' }],
     });
-    expect(g.markers[0]!.cx).toBeCloseTo(CHART_MARGIN.left + g.plot.width / 10, 9);
-    expect(g.markers[0]!.cy).toBeCloseTo(CHART_MARGIN.top + g.plot.height * 0.9, 9);
+    expect(g.markers[0]!.cx).toBeCloseTo(box.left + (box.right - box.left) / 10, 9);
+    expect(g.markers[0]!.cy).toBeCloseTo(box.top + (box.bottom - box.top) * 0.9, 9);
   });
 
   it('copes with a single flat point without dividing by zero', () => {

@@ -1,11 +1,11 @@
 import { useState, type ReactNode } from 'react';
 import { StyleSheet, View } from 'react-native';
 import Svg, { G, Line, Text as SvgText } from 'react-native-svg';
-import { chartText, font, radius, space, useColors } from '../../theme';
+import { chartHeight, chartText, font, radius, space, useColors } from '../../theme';
 import { Text } from '../ui/text';
 import type { Box, Tick } from './axes';
 
-const HEIGHT = 260;
+const HEIGHT = chartHeight;
 
 type Props = {
   label: string;
@@ -16,7 +16,10 @@ type Props = {
   render: (width: number, height: number) => { box: Box; xTicks: Tick[]; yTicks: Tick[]; marks: ReactNode };
 };
 
-/** An SVG chart as wide as its container, with grid, ticks and axis titles; the marks come from a geometry. */
+/**
+ * The one frame of every chart: an SVG as wide as its container, `chartHeight` tall, with grid, ticks and axis titles
+ * in the margins of `plotBox`; the marks come from a geometry.
+ */
 export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
   const c = useColors();
   const [width, setWidth] = useState(0);

@@ -1,5 +1,6 @@
 import { scaleLinear } from 'd3-scale';
 import { area, line } from 'd3-shape';
+import { plotBox, type Box, type Tick } from './axes';
 
 export type Point = { x: number; y: number };
 export type LineSeries = { id: string; points: readonly Point[] };
@@ -20,10 +21,8 @@ export type LineChartInput = {
   formatY?: (v: number) => string;
 };
 
-export type Tick = { value: number; pos: number; label: string };
-
 export type LineChartGeometry = {
-  plot: { left: number; top: number; width: number; height: number };
+  box: Box;
   lines: { id: string; d: string }[];
   bands: { id: string; d: string }[];
   markers: { id: string; cx: number; cy: number; label: string }[];
@@ -31,15 +30,11 @@ export type LineChartGeometry = {
   yTicks: Tick[];
 };
 
-// The top margin leaves a row for the y-axis title above the plot.
-export const CHART_MARGIN = { left: 52, right: 16, top: 28, bottom: 30 };
-
 const finite = (v: number) => Number.isFinite(v);
 
 /** Scales, ticks and SVG paths of a line chart; pure so it can be tested without rendering. Non-finite y breaks a line. */
 export function lineChartGeometry(input: LineChartInput): LineChartGeometry {
-  const m = CHART_MARGIN;
-  const plot = { left: m.left, top: m.top, width: Math.max(1, input.width - m.left - m.right), height: Math.max(1, input.height - m.top - m.bottom) };
+  const box = plotBox(input.width, input.height);
   const xs: number[] = [];
   const ys: number[] = [];
   for (const s of input.series)
@@ -72,11 +67,11 @@ export function lineChartGeometry(input: LineChartInput): LineChartGeometry {
   }
   const x = scaleLinear()
     .domain([x0, x1])
-    .range([plot.left, plot.left + plot.width]);
+    .range([box.left, box.right]);
   // SVG y grows downwards: the range is inverted so larger values sit higher.
   const y = scaleLinear()
     .domain([y0, y1])
-    .range([plot.top + plot.height, plot.top])
+    .range([box.bottom, box.top])
     .nice(input.yTicks ?? 5);
   const fx = input.formatX ?? ((v: number) => String(v));
   const fy = input.formatY ?? ((v: number) => String(v));
@@ -90,7 +85,7 @@ export function lineChartGeometry(input: LineChartInput): LineChartGeometry {
     .y0((p) => y(p.lo))
     .y1((p) => y(p.hi));
   return {
-    plot,
+    box,
     lines: input.series.map((s) => ({ id: s.id, d: path([...s.points]) ?? '' })),
     bands: (input.bands ?? []).map((b) => ({ id: b.id, d: band([...b.points]) ?? '' })),
     markers: (input.markers ?? [])

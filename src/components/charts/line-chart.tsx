@@ -1,9 +1,8 @@
-import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import Svg, { Circle, G, Line, Path, Text as SvgText } from 'react-native-svg';
-import { chartText, font, space, useColors, type Palette } from '../../theme';
+import { Circle, G, Line, Path } from 'react-native-svg';
+import { space, useColors, type Palette } from '../../theme';
 import { Text } from '../ui/text';
-import { Legend, type LegendItem } from './chart-frame';
+import { ChartFrame, Legend, type LegendItem } from './chart-frame';
 import { lineChartGeometry, type BandSeries, type LineSeries, type MarkerSpec } from './line-chart-geometry';
 
 // `limit`: a bound that is never planned past (a vessel's maximum), in the danger colour.
@@ -25,67 +24,54 @@ type Props = {
   yFromZero?: boolean;
   formatX?: (v: number) => string;
   formatY?: (v: number) => string;
-  height?: number;
   testID: string;
 };
 
-/** A thin SVG renderer of lineChartGeometry, with a legend and its sentence equivalent. */
-export function LineChart({ title, summary, series, bands = [], markers = [], xLabel, yLabel, yFromZero, formatX, formatY, height = 220, testID }: Props) {
+/** A line chart in the one chart frame, with a title, the legend and its sentence equivalent. */
+export function LineChart({ title, summary, series, bands = [], markers = [], xLabel, yLabel, yFromZero, formatX, formatY, testID }: Props) {
   const c = useColors();
-  const [width, setWidth] = useState(0);
-  const g = width > 0 ? lineChartGeometry({ width, height, series, bands, markers, yFromZero, formatX, formatY }) : null;
-  const bottom = g ? g.plot.top + g.plot.height : 0;
   return (
     <View style={styles.wrap} testID={testID}>
       <Text weight="semibold">{title}</Text>
-      <View onLayout={(e) => setWidth(Math.floor(e.nativeEvent.layout.width))} style={{ height }}>
-        {g ? (
-          <Svg width={width} height={height} accessibilityLabel={`${title}. ${summary}`} role="img">
-            {g.yTicks.map((t) => (
-              <G key={`y${t.value}`}>
-                <Line x1={g.plot.left} x2={g.plot.left + g.plot.width} y1={t.pos} y2={t.pos} stroke={c.chartGrid} strokeWidth={1} />
-                <SvgText x={g.plot.left - 6} y={t.pos + 4} fontSize={chartText.tick} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
-                  {t.label}
-                </SvgText>
+      <ChartFrame
+        testID={`${testID}-plot`}
+        label={`${title}. ${summary}`}
+        xTitle={xLabel}
+        yTitle={yLabel}
+        render={(width, height) => {
+          const g = lineChartGeometry({ width, height, series, bands, markers, yFromZero, formatX, formatY });
+          return {
+            ...g,
+            marks: (
+              <G>
+                {g.bands.map((b, i) => (
+                  <Path key={b.id} d={b.d} fill={toneColor(c, bands[i]!.tone)} fillOpacity={0.18} stroke="none" />
+                ))}
+                {g.lines.map((l, i) => (
+                  <Path
+                    key={l.id}
+                    d={l.d}
+                    fill="none"
+                    stroke={toneColor(c, series[i]!.tone)}
+                    strokeWidth={2.5}
+                    strokeLinecap={series[i]!.dotted ? 'round' : undefined}
+                    strokeDasharray={dashOf(series[i]!)}
+                  />
+                ))}
+                {g.markers.map((m, i) => {
+                  const color = toneColor(c, markers[i]!.tone);
+                  return (
+                    <G key={m.id}>
+                      <Line x1={m.cx} x2={m.cx} y1={m.cy} y2={g.box.bottom} stroke={color} strokeWidth={1} strokeDasharray="3 3" />
+                      <Circle cx={m.cx} cy={m.cy} r={5} fill={color} stroke={c.surface} strokeWidth={2} />
+                    </G>
+                  );
+                })}
               </G>
-            ))}
-            {g.xTicks.map((t) => (
-              <SvgText key={`x${t.value}`} x={t.pos} y={bottom + 16} fontSize={chartText.tick} fill={c.textMuted} textAnchor="middle" fontFamily={font.regular}>
-                {t.label}
-              </SvgText>
-            ))}
-            <SvgText x={g.plot.left + g.plot.width} y={bottom + 28} fontSize={chartText.tick} fill={c.textMuted} textAnchor="end" fontFamily={font.regular}>
-              {xLabel}
-            </SvgText>
-            <SvgText x={4} y={chartText.tick + 2} fontSize={chartText.tick} fill={c.textMuted} fontFamily={font.regular}>
-              {yLabel}
-            </SvgText>
-            {g.bands.map((b, i) => (
-              <Path key={b.id} d={b.d} fill={toneColor(c, bands[i]!.tone)} fillOpacity={0.18} stroke="none" />
-            ))}
-            {g.lines.map((l, i) => (
-              <Path
-                key={l.id}
-                d={l.d}
-                fill="none"
-                stroke={toneColor(c, series[i]!.tone)}
-                strokeWidth={2.5}
-                strokeLinecap={series[i]!.dotted ? 'round' : undefined}
-                strokeDasharray={dashOf(series[i]!)}
-              />
-            ))}
-            {g.markers.map((m, i) => {
-              const color = toneColor(c, markers[i]!.tone);
-              return (
-                <G key={m.id}>
-                  <Line x1={m.cx} x2={m.cx} y1={m.cy} y2={bottom} stroke={color} strokeWidth={1} strokeDasharray="3 3" />
-                  <Circle cx={m.cx} cy={m.cy} r={5} fill={color} stroke={c.surface} strokeWidth={2} />
-                </G>
-              );
-            })}
-          </Svg>
-        ) : null}
-      </View>
+            ),
+          };
+        }}
+      />
       <Legend
         items={[
           ...series.map((s): LegendItem => ({ label: s.label, color: toneColor(c, s.tone), mark: 'line', dashArray: dashOf(s), roundCap: s.dotted })),

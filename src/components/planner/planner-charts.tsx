@@ -43,7 +43,6 @@ export function SetpointChart({ ev, series, inputs, uncertainty }: Props & { unc
             ? [{ id: 'robust', x: robust.setpointC, y: robust.p10, label: `Robust (best P10) ${fmt(robust.setpointC)} °C`, tone: 'third' as const }]
             : []),
         ]}
-        height={240}
       />
     </Card>
   );
