@@ -2,35 +2,9 @@
 // month/day/year) local times with optional AM/PM, and Unix epoch seconds or milliseconds. The file itself is
 // read on the server (server/services/historian-csv.ts); these rules are pure so any caller reads times alike.
 
+import { zoneOffsetMin } from './wall-clock';
+
 export type DateOrder = 'dmy' | 'mdy';
-
-// Building a formatter costs far more than using one; a 50,000-row import asks for the same zone each time.
-const formatters = new Map<string, Intl.DateTimeFormat>();
-function formatter(timeZone: string): Intl.DateTimeFormat {
-  let f = formatters.get(timeZone);
-  if (!f) {
-    f = new Intl.DateTimeFormat('en-US', {
-      timeZone,
-      hourCycle: 'h23',
-      year: 'numeric',
-      month: '2-digit',
-      day: '2-digit',
-      hour: '2-digit',
-      minute: '2-digit',
-      second: '2-digit',
-    });
-    formatters.set(timeZone, f);
-  }
-  return f;
-}
-
-/** Offset of a time zone from UTC at an instant, minutes (positive east); throws on an unknown zone. */
-export function zoneOffsetMin(timeZone: string, utcMs: number): number {
-  const parts = formatter(timeZone).formatToParts(new Date(utcMs));
-  const get = (t: string) => Number(parts.find((p) => p.type === t)!.value);
-  const asUtc = Date.UTC(get('year'), get('month') - 1, get('day'), get('hour'), get('minute'), get('second'));
-  return Math.round((asUtc - Math.floor(utcMs / 1000) * 1000) / 60_000);
-}
 
 /** True when the zone is known to this runtime. */
 export function isTimeZone(tz: string): boolean {

@@ -1,38 +1,10 @@
 // Times as people type and read them on the floor: the site's clock, labelled with its zone, minutes only. The
 // device's own zone plays no part, so phones in three zones show one batch the same way.
 import { zonedToUtcMs } from './historian-csv';
+import { wallClock as wall } from './wall-clock';
 
 const p2 = (n: number) => String(n).padStart(2, '0');
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
-
-// Building an Intl formatter costs a phone tens of ms on a long list; one per zone, kept.
-const formatters = new Map<string, Intl.DateTimeFormat>();
-function wall(t: number, timeZone: string) {
-  let f = formatters.get(timeZone);
-  if (!f) {
-    f = new Intl.DateTimeFormat('en-GB', {
-      timeZone,
-      hourCycle: 'h23',
-      year: 'numeric',
-      month: 'numeric',
-      day: 'numeric',
-      hour: 'numeric',
-      minute: 'numeric',
-      timeZoneName: 'short',
-    });
-    formatters.set(timeZone, f);
-  }
-  const parts = f.formatToParts(new Date(t));
-  const get = (type: string) => parts.find((p) => p.type === type)?.value ?? '';
-  return {
-    y: Number(get('year')),
-    mo: Number(get('month')),
-    d: Number(get('day')),
-    h: Number(get('hour')),
-    mi: Number(get('minute')),
-    zone: get('timeZoneName'),
-  };
-}
 
 /** The zone's short name at an instant as the site's clock shows it: `CET`, `CEST`, `UTC`, `GMT+5:30`. */
 export const zoneLabel = (timeZone: string, at = Date.now()) => wall(at, timeZone).zone;
