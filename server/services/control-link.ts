@@ -12,7 +12,7 @@ import { appendAudit } from './audit';
 import { batchSettingsOf } from './batches';
 import { checkForecastLow, raiseBatchDeviation } from './deviations';
 import { readingIngest, type ReadingIngest } from './readings';
-import { controlSystemUser, linkSettingsOf } from './control-sources';
+import { controlSystemUser, linkSettingsOf, quietLink } from './control-sources';
 
 /**
  * The control-system link: for every running batch whose vessel has an enabled source, a monitored item on the
@@ -470,18 +470,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
   const statusOf = (siteId: number, row: { source: VesselSourceRow; vesselName: string }, nowMs: number): LinkStatus => {
     const tap = taps.get(row.source.vesselId);
     const base = { vesselId: row.source.vesselId, vesselName: row.vesselName };
-    if (!tap || tap.siteId !== siteId)
-      return {
-        ...base,
-        batchId: null,
-        state: row.source.isEnabled ? 'idle' : 'disabled',
-        lastValueC: null,
-        lastValueAt: null,
-        ageS: null,
-        lastError: null,
-        errors: 0,
-        stored: 0,
-      };
+    if (!tap || tap.siteId !== siteId) return quietLink(row, row.source.isEnabled ? 'idle' : 'disabled');
     return {
       ...base,
       batchId: tap.batchId,

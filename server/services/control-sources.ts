@@ -2,6 +2,7 @@ import { writeTx, type Db } from '../../db/client';
 import {
   DEFAULT_LINK_SETTINGS,
   type BatchLink,
+  type LinkStatus,
   type LinkStatusList,
   type CertificateInfo,
   type LinkSettings,
@@ -281,23 +282,26 @@ export function controlSystemUser(db: Db, siteId: number): SessionUser {
 const gapsOf = (db: Db, siteId: number, batchId: number) =>
   listBatchGaps(db, siteId, batchId).map((g) => ({ fromAt: g.fromAt, toAt: g.toAt, reason: g.reason }));
 
+/** A source's status while nothing is read from it: no batch, no value, no errors yet. */
+export const quietLink = (row: { source: { vesselId: number }; vesselName: string }, state: 'off' | 'idle' | 'disabled'): LinkStatus => ({
+  vesselId: row.source.vesselId,
+  vesselName: row.vesselName,
+  batchId: null,
+  state,
+  lastValueC: null,
+  lastValueAt: null,
+  ageS: null,
+  lastError: null,
+  errors: 0,
+  stored: 0,
+});
+
 /** Each source's link now; without a running link every source is 'off'. */
 export const linkStatus = ({ db, controlLink: link }: LinkServices, u: SessionUser): LinkStatusList =>
   link
     ? { links: link.status(u.siteId), certificate: link.pki.certificate(), userCertificate: link.pki.userCertificate() }
     : {
-        links: listSiteSources(db, u.siteId).map((r) => ({
-          vesselId: r.source.vesselId,
-          vesselName: r.vesselName,
-          batchId: null,
-          state: 'off',
-          lastValueC: null,
-          lastValueAt: null,
-          ageS: null,
-          lastError: null,
-          errors: 0,
-          stored: 0,
-        })),
+        links: listSiteSources(db, u.siteId).map((r) => quietLink(r, 'off')),
         certificate: null,
         userCertificate: null,
       };
