@@ -65,9 +65,7 @@ export function lineChartGeometry(input: LineChartInput): LineChartGeometry {
     y0 -= Math.abs(y0) * 0.1 || 1;
     y1 += Math.abs(y1) * 0.1 || 1;
   }
-  const x = scaleLinear()
-    .domain([x0, x1])
-    .range([box.left, box.right]);
+  const x = scaleLinear().domain([x0, x1]).range([box.left, box.right]);
   // SVG y grows downwards: the range is inverted so larger values sit higher.
   const y = scaleLinear()
     .domain([y0, y1])
