@@ -6,6 +6,8 @@
 const ZONE = String.raw`\s?(?:[A-Z]{2,5}|(?:GMT|UTC)[+\-−]\d{1,2}(?::\d{2})?)\b`;
 const CLOCK = new RegExp(String.raw`(?<![\d:.])\d{1,2}:\d{2}(?::\d{2})?(?![\d:])(?!${ZONE})`);
 const ISO_INSTANT = /\d{4}-\d{2}-\d{2}T\d{2}:\d{2}/;
+// A certificate thumbprint (hex pairs joined by colons, 44:F5:...:C0:80) is not a clock: its "0:80" would read as one.
+const THUMBPRINT = /\b(?:[0-9A-F]{2}:){7,}[0-9A-F]{2}\b/g;
 const CURRENCY = /\b[A-Z]{3}\b|[€$£¥]/;
 const MONEY_WORD = /\b(profit|price|cost|amount|invoice|charged|total due|per kg)\b/i;
 // Not a figure inside a code (YP-DEMO-0002, CGA-2605-11).
@@ -21,7 +23,7 @@ export function unlabelledFigures(text: string): string[] {
     .filter(Boolean);
   const found: string[] = [];
   lines.forEach((line, i) => {
-    if (CLOCK.test(line)) found.push(`time without a zone: "${line}"`);
+    if (CLOCK.test(line.replace(THUMBPRINT, ''))) found.push(`time without a zone: "${line}"`);
     if (ISO_INSTANT.test(line)) found.push(`raw ISO time: "${line}"`);
     // A money word labels its own line or the value on the next one (a figure's label above its value).
     if (MONEY_WORD.test(line)) {
