@@ -469,10 +469,10 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
 
   const statusOf = (siteId: number, row: { source: VesselSourceRow; vesselName: string }, nowMs: number): LinkStatus => {
     const tap = taps.get(row.source.vesselId);
-    const base = { vesselId: row.source.vesselId, vesselName: row.vesselName };
     if (!tap || tap.siteId !== siteId) return quietLink(row, row.source.isEnabled ? 'idle' : 'disabled');
     return {
-      ...base,
+      vesselId: row.source.vesselId,
+      vesselName: row.vesselName,
       batchId: tap.batchId,
       state: tap.conn.state,
       lastValueC: tap.lastValueC,

@@ -5,8 +5,6 @@ import { chartHeight, chartText, font, radius, space, useColors } from '../../th
 import { Text } from '../ui/text';
 import type { Box, Tick } from './axes';
 
-const HEIGHT = chartHeight;
-
 type Props = {
   label: string;
   xTitle: string;
@@ -23,17 +21,17 @@ type Props = {
 export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
   const c = useColors();
   const [width, setWidth] = useState(0);
-  const drawn = width > 0 ? render(width, HEIGHT) : null;
+  const drawn = width > 0 ? render(width, chartHeight) : null;
   return (
     <View
       testID={testID}
       accessibilityRole="image"
       accessibilityLabel={label}
-      style={{ height: HEIGHT }}
+      style={{ height: chartHeight }}
       onLayout={(e) => setWidth(Math.floor(e.nativeEvent.layout.width))}
     >
       {drawn ? (
-        <Svg width={width} height={HEIGHT}>
+        <Svg width={width} height={chartHeight}>
           <G>
             {drawn.yTicks.map((t) => (
               <G key={`y${t.value}`}>
@@ -59,7 +57,7 @@ export function ChartFrame({ label, xTitle, yTitle, testID, render }: Props) {
             <Line x1={drawn.box.left} x2={drawn.box.right} y1={drawn.box.bottom} y2={drawn.box.bottom} stroke={c.border} strokeWidth={1} />
             <SvgText
               x={(drawn.box.left + drawn.box.right) / 2}
-              y={HEIGHT - 4}
+              y={chartHeight - 4}
               fontSize={chartText.title}
               fontFamily={font.semibold}
               fill={c.textMuted}
