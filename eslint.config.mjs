@@ -8,7 +8,7 @@ import globals from 'globals';
 import tseslint from 'typescript-eslint';
 
 export default defineConfig([
-  globalIgnores(['node_modules/', 'dist/', '.expo/', 'data/', 'test-results/', 'backups/', 'migrations/']),
+  globalIgnores(['node_modules/', 'dist/', '.expo/', 'data/', 'test-results/', 'backups/', 'migrations/', 'tests/.tmp-*']),
   js.configs.recommended,
   tseslint.configs.recommended,
   reactHooks.configs.flat.recommended,
@@ -23,6 +23,18 @@ export default defineConfig([
       '@typescript-eslint/no-unused-expressions': ['error', { allowShortCircuit: true, allowTernary: true }],
       // Metro resolves assets (fonts) by require, and index.ts requires the router only after its warm-up.
       '@typescript-eslint/no-require-imports': ['error', { allow: ['\\.woff2$', '^expo-router/entry$'] }],
+    },
+  },
+  {
+    // The server's database calls are asynchronous: a promise left unawaited is a write that may not have happened
+    // (or a failure nobody sees), and a promise used as a condition is always true. Type-aware, so server-side only.
+    files: ['server/**/*.ts', 'db/**/*.ts', 'tests/**/*.ts'],
+    ignores: ['tests/fixtures/**', 'tests/e2e/**'],
+    languageOptions: { parserOptions: { projectService: true, tsconfigRootDir: import.meta.dirname } },
+    rules: {
+      '@typescript-eslint/no-floating-promises': 'error',
+      '@typescript-eslint/no-misused-promises': ['error', { checksVoidReturn: false }],
+      '@typescript-eslint/await-thenable': 'error',
     },
   },
   {

@@ -1,12 +1,21 @@
 import Database from 'better-sqlite3';
 import { sql } from 'drizzle-orm';
-import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3';
+import { drizzle } from 'drizzle-orm/better-sqlite3';
 import { migrate } from 'drizzle-orm/better-sqlite3/migrator';
+import type { NodePgDatabase } from 'drizzle-orm/node-postgres';
 import fs from 'node:fs';
 import path from 'node:path';
+import type * as pgSchema from './pg/schema';
 import * as schema from './schema';
+import { databaseDialect } from './tables';
 
-export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database };
+/**
+ * The database handle every repository and service takes. Queries are written once, typed with Drizzle's
+ * PostgreSQL builder (awaited, `.execute()`, `.prepare(name)`: the calls both drivers share) over the tables of
+ * db/tables.ts. On SQLite the same calls run on Drizzle's better-sqlite3 driver and SQLite's tables, whose rows
+ * are the same (tests/db/pg-schema.test.ts); `sqliteOf` gives the SQLite connection where a path needs it.
+ */
+export type Db = NodePgDatabase<typeof pgSchema>;
 
 const MIGRATIONS = path.resolve(__dirname, '..', 'migrations');
 // How long a write waits for another connection's lock before the database counts as not writable.
@@ -14,6 +23,7 @@ const BUSY_TIMEOUT_MS = 5000;
 
 /** Opens (creating if needed) a SQLite file, or ':memory:', with the pragmas every connection needs. */
 export function openDb(file: string): Db {
+  if (databaseDialect !== 'sqlite') throw new Error('This process runs on PostgreSQL (DATABASE_URL is set): it cannot open a SQLite file as its database');
   if (file !== ':memory:') fs.mkdirSync(path.dirname(path.resolve(file)), { recursive: true });
   const sqlite = new Database(file);
   sqlite.pragma('journal_mode = WAL');
@@ -21,47 +31,108 @@ export function openDb(file: string): Db {
   sqlite.pragma('synchronous = FULL');
   sqlite.pragma(`busy_timeout = ${BUSY_TIMEOUT_MS}`);
   sqlite.pragma('foreign_keys = ON');
-  return drizzle(sqlite, { schema }) as Db;
+  return drizzle(sqlite, { schema }) as unknown as Db;
 }
 
-/** The SQLite connection behind a handle; a transaction handle (inside writeTx) reaches it through its session. */
-export const clientOf = (db: Db): Database.Database => db.$client ?? (db as unknown as { session: { client: Database.Database } }).session.client;
+/** The SQLite connection behind a handle, or null on PostgreSQL. */
+export function sqliteOf(db: Db): Database.Database | null {
+  const client: unknown = (db as { $client?: unknown }).$client;
+  return client instanceof Database ? client : null;
+}
+
+/** The SQLite connection behind a handle; throws on PostgreSQL (for SQLite-only tools: backup, scripts). */
+export function sqliteClient(db: Db): Database.Database {
+  const client = sqliteOf(db);
+  if (!client) throw new Error('This needs the SQLite database; this installation runs on PostgreSQL');
+  return client;
+}
+
+// PostgreSQL: what the process knows of each pool (where its installation files live), and the pool behind each
+// write transaction's handle.
+const pools = new WeakMap<object, { dataDir: string | null }>();
+const txPool = new WeakMap<Db, object>();
+
+/** Registers a PostgreSQL handle made by db/pg/client.ts, with the folder of its installation files. */
+export function adoptPg(db: Db, dataDir: string | null): Db {
+  pools.set((db as unknown as { $client: object }).$client, { dataDir });
+  return db;
+}
+
+/**
+ * What identifies the database behind a handle, the same object for the handle's write transactions: the SQLite
+ * connection, or the PostgreSQL pool. Per-database caches key on it.
+ */
+export function databaseOf(db: Db): object {
+  return sqliteOf(db) ?? txPool.get(db) ?? (db as unknown as { $client: object }).$client;
+}
+
+/** Whether the handle is inside a write transaction (whose reads may still be rolled back). */
+export function inWriteTx(db: Db): boolean {
+  const client = sqliteOf(db);
+  return client ? client.inTransaction : txPool.has(db);
+}
+
+/**
+ * The folder of the installation's own files (its secrets: `.audit-key`, `.session-secret`; the audit
+ * checkpoints): beside the SQLite file, or DATA_DIR for PostgreSQL. Null for an in-memory database.
+ */
+export function installationDir(db: Db): string | null {
+  const client = sqliteOf(db);
+  if (client) return client.name && client.name !== ':memory:' ? path.dirname(path.resolve(client.name)) : null;
+  return pools.get(databaseOf(db))?.dataDir ?? null;
+}
 
 /** Applies the committed drizzle-kit migrations. */
-export function migrateDb(db: Db): void {
-  migrate(db, { migrationsFolder: MIGRATIONS });
+export async function migrateDb(db: Db): Promise<void> {
+  migrate(db as unknown as Parameters<typeof migrate>[0], { migrationsFolder: MIGRATIONS });
 }
+
+/** Closes the connection (SQLite) or the pool (PostgreSQL). */
+export async function closeDb(db: Db): Promise<void> {
+  const client = sqliteOf(db);
+  if (client) client.close();
+  else await (db as unknown as { $client: { end(): Promise<void> } }).$client.end();
+}
+
+/** The first row of a result, or undefined: `query.then(first)` where SQLite's `.get()` was. */
+export const first = <T>(rows: T[]): T | undefined => rows[0];
+
+/** The row an INSERT or UPDATE ... RETURNING gave back: `query.returning().then(returned)`. */
+export const returned = <T>(rows: T[]): T => rows[0] as T;
 
 /** Runs `fn` under a savepoint: if it throws, only its own writes are undone and the transaction carries on. */
-export type Savepoint = <T>(fn: () => T) => T;
+export type Savepoint = <T>(fn: () => Promise<T>) => Promise<T>;
 
-// better-sqlite3 turns a transaction function called inside a transaction into a savepoint, with its statements
-// prepared once per connection.
-const savepoints = new WeakMap<Database.Database, Savepoint>();
-function savepointOf(client: Database.Database): Savepoint {
-  let sp = savepoints.get(client);
-  if (!sp) savepoints.set(client, (sp = client.transaction((fn: () => unknown) => fn()) as unknown as Savepoint));
-  return sp;
-}
-
-/** Why the database file cannot take a write just now. */
+/** Why the database cannot take a write just now. */
 export type UnwritableReason = 'locked' | 'full' | 'read-only' | 'io';
 
 /** A write refused because the file cannot be written (nothing was changed); the error middleware answers 503. */
 export class DatabaseUnwritable extends Error {
   constructor(
     readonly reason: UnwritableReason,
-    readonly sqliteCode: string,
+    readonly code: string,
   ) {
-    super(`database not writable (${reason}, ${sqliteCode})`);
+    super(`database not writable (${reason}, ${code})`);
   }
 }
 
-// SQLite's result codes for a file that cannot be written now, as opposed to a write the data refuses
-// (SQLITE_CONSTRAINT and the like stay errors of the request).
+// The driver's error code, also when Drizzle wrapped the driver's error (DrizzleQueryError keeps it as `cause`).
+const codeOf = (err: unknown): string | null => {
+  for (let e = err as { code?: unknown; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++)
+    if (typeof e.code === 'string') return e.code;
+  return null;
+};
+
+// The database cannot take a write now, as opposed to a write the data refuses (a constraint and the like stay
+// errors of the request). SQLite's result codes; PostgreSQL's SQLSTATEs and node's socket errors.
 export function unwritableReason(err: unknown): UnwritableReason | null {
-  const code = (err as { code?: unknown })?.code;
-  if (typeof code !== 'string') return null;
+  const code = codeOf(err);
+  if (!code) return null;
+  // A hot standby or a read-only session (25006), a full disk (53100), a server going down or refusing
+  // connections (57P0x, connection errors: class 08), or no reachable server at all.
+  if (code === '25006') return 'read-only';
+  if (code === '53100') return 'full';
+  if (/^(57P0|08)/.test(code) || /^(ECONNREFUSED|ECONNRESET|ETIMEDOUT|EHOSTUNREACH|ENOTFOUND|EPIPE)$/.test(code)) return 'io';
   if (/^SQLITE_(BUSY|LOCKED)/.test(code)) return 'locked';
   if (code === 'SQLITE_FULL') return 'full';
   if (/^SQLITE_(READONLY|PERM|CANTOPEN)/.test(code)) return 'read-only';
@@ -73,21 +144,130 @@ export function unwritableReason(err: unknown): UnwritableReason | null {
 // without waiting on busy_timeout, so a held lock costs every write a blocked event loop only the first time.
 const failing = new WeakMap<Database.Database, UnwritableReason>();
 
+type TxStatements = {
+  begin: Database.Statement;
+  commit: Database.Statement;
+  rollback: Database.Statement;
+  save: Database.Statement;
+  release: Database.Statement;
+  undo: Database.Statement;
+};
+const statements = new WeakMap<Database.Database, TxStatements>();
+function txStatements(client: Database.Database): TxStatements {
+  let s = statements.get(client);
+  if (!s)
+    statements.set(
+      client,
+      (s = {
+        begin: client.prepare('begin immediate'),
+        commit: client.prepare('commit'),
+        rollback: client.prepare('rollback'),
+        save: client.prepare('savepoint yp'),
+        release: client.prepare('release yp'),
+        undo: client.prepare('rollback to yp'),
+      }),
+    );
+  return s;
+}
+
+// One write transaction at a time per SQLite connection: the next one starts when the previous one ended.
+const queues = new WeakMap<Database.Database, Promise<unknown>>();
+
 /**
- * Runs a write as one BEGIN IMMEDIATE transaction: it takes the write lock up front, so concurrent writers queue
- * on busy_timeout instead of failing half-way with SQLITE_BUSY. Synchronous: an async callback would commit early.
- * `savepoint` lets one item of a group commit fail alone. A file that cannot be written (locked by another
- * process, full, read-only, I/O error) rolls the whole write back and throws DatabaseUnwritable; the first write
- * that succeeds afterwards clears that state by itself.
+ * Runs a write as one transaction and resolves once it committed.
+ *
+ * SQLite: BEGIN IMMEDIATE takes the write lock up front, so concurrent writers queue on busy_timeout instead of
+ * failing half-way with SQLITE_BUSY. The connection is shared by every request of the process, so the callback
+ * must not give the event loop a turn (await only the database: better-sqlite3 answers at once); one that does
+ * is rolled back with an error, before another request could read its uncommitted rows. A file that cannot be
+ * written (locked by another process, full, read-only, I/O error) rolls the whole write back and throws
+ * DatabaseUnwritable; the first write that succeeds afterwards clears that state by itself.
+ *
+ * PostgreSQL: one SERIALIZABLE transaction on a connection of the pool; several server processes may write at once,
+ * and a transaction that could not have run in some serial order with the others fails with 40001 (or a deadlock,
+ * 40P01) and is run again from the start, up to PG_ATTEMPTS times with a short random wait. What SQLite's single
+ * writer gave (a read-then-write never acts on a stale read: the audit chain's head, the seats left, a reading
+ * key) holds the same way. So the callback must do nothing outside the database that a second run would repeat.
+ *
+ * `savepoint` lets one item of a group commit fail alone.
  */
-export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => T): T {
-  const client = db.$client;
+export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
+  const client = sqliteOf(db);
+  if (!client) return pgWriteTx(db, fn);
+  const previous = queues.get(client);
+  const run = previous ? previous.then(() => sqliteTx(db, client, fn)) : sqliteTx(db, client, fn);
+  const settled = run.then(
+    () => undefined,
+    () => undefined,
+  );
+  queues.set(client, settled);
+  void settled.then(() => {
+    if (queues.get(client) === settled) queues.delete(client);
+  });
+  return run;
+}
+
+const PG_ATTEMPTS = 12;
+const SERIALIZATION_FAILURE = new Set(['40001', '40P01']);
+
+async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
+  const database = databaseOf(db);
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await db.transaction(
+        async (tx) => {
+          const handle = tx as unknown as Db;
+          txPool.set(handle, database);
+          const savepoint: Savepoint = (inner) => tx.transaction(() => inner());
+          return fn(handle, savepoint);
+        },
+        { isolationLevel: 'serializable' },
+      );
+    } catch (err) {
+      const code = codeOf(err);
+      if (code && SERIALIZATION_FAILURE.has(code) && attempt < PG_ATTEMPTS) {
+        // Up to about 5 ms, then doubling to about 0.3 s: the transactions it collided with finish meanwhile.
+        await new Promise((r) => setTimeout(r, Math.random() * 5 * 2 ** Math.min(attempt - 1, 6)));
+        continue;
+      }
+      const reason = unwritableReason(err);
+      if (reason) throw new DatabaseUnwritable(reason, code!);
+      throw err;
+    }
+  }
+}
+
+async function sqliteTx<T>(db: Db, client: Database.Database, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
+  const st = txStatements(client);
   const wasFailing = failing.get(client);
-  const savepoint: Savepoint = (inner) => savepointOf(client)(inner);
   if (wasFailing) client.pragma('busy_timeout = 0');
+  let turned = false;
+  const sentinel = setImmediate(() => (turned = true));
+  const savepoint: Savepoint = async (inner) => {
+    st.save.run();
+    try {
+      const result = await inner();
+      st.release.run();
+      return result;
+    } catch (err) {
+      if (client.inTransaction) {
+        st.undo.run();
+        st.release.run();
+      }
+      throw err;
+    }
+  };
   try {
-    // The transaction handle gets the connection as `$client` too, as the Db type promises (caches key on it).
-    const result = db.transaction((tx) => fn(Object.assign(tx, { $client: client }) as unknown as Db, savepoint), { behavior: 'immediate' });
+    st.begin.run();
+    let result: T;
+    try {
+      result = await fn(db, savepoint);
+      if (turned) throw new Error('writeTx: the transaction gave the event loop a turn before it committed; a write transaction may await only the database');
+      st.commit.run();
+    } catch (err) {
+      if (client.inTransaction) st.rollback.run();
+      throw err;
+    }
     if (wasFailing) {
       failing.delete(client);
       console.error(`[${new Date().toISOString()}] database writable again`);
@@ -98,8 +278,9 @@ export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => T): T {
     if (!reason) throw err;
     if (!wasFailing) console.error(`[${new Date().toISOString()}] database not writable (${reason}): ${(err as Error).message}`);
     failing.set(client, reason);
-    throw new DatabaseUnwritable(reason, (err as { code: string }).code);
+    throw new DatabaseUnwritable(reason, codeOf(err)!);
   } finally {
+    clearImmediate(sentinel);
     if (wasFailing) client.pragma(`busy_timeout = ${BUSY_TIMEOUT_MS}`);
   }
 }
@@ -107,17 +288,26 @@ export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => T): T {
 /**
  * Memoises a drizzle prepared query per connection handle, and per variant when the SQL itself differs (which
  * optional filters are present, the sort order). Building the SQL on every call cost more than running it on the
- * hot paths (session check, list reads; profiled under `npm run load`). A transaction handle is a different
- * object, so it prepares its own on first use.
+ * hot paths (session check, list reads; profiled under `npm run load`). `build` gets the statement's name, one
+ * per query and variant (PostgreSQL keeps named statements per connection; SQLite ignores the name).
  */
-export function preparedPer<T, V = void>(build: (db: Db, variant: V) => T): (db: Db, variant: V) => T {
+let preparedCount = 0;
+export function preparedPer<T, V = void>(build: (db: Db, variant: V, name: string) => T): (db: Db, variant: V) => T {
   const cache = new WeakMap<Db, Map<string | undefined, T>>();
+  const id = ++preparedCount;
+  // Names are shared by every handle: one SQL text per name on any PostgreSQL connection.
+  const names = new Map<string | undefined, string>();
+  const nameOf = (key: string | undefined) => {
+    let name = names.get(key);
+    if (name === undefined) names.set(key, (name = `yp_q${id}_${names.size}`));
+    return name;
+  };
   return (db, variant) => {
     let byVariant = cache.get(db);
     if (!byVariant) cache.set(db, (byVariant = new Map()));
     const key = variant === undefined ? undefined : JSON.stringify(variant);
     let q = byVariant.get(key);
-    if (q === undefined) byVariant.set(key, (q = build(db, variant)));
+    if (q === undefined) byVariant.set(key, (q = build(db, variant, nameOf(key))));
     return q;
   };
 }

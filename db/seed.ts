@@ -10,8 +10,8 @@ import { createRng, KELVIN_OFFSET, R, simulate } from '../src/model';
 import { fitAssay } from '../src/assay-fit';
 import { certKdPerH } from '../src/stability';
 import type { Role } from '../src/contracts/roles';
-import type { Db } from './client';
-import { assayPoints, assays, batchReadings, batches, calibrations, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './schema';
+import { first, returned, writeTx, type Db } from './client';
+import { assayPoints, assays, batchReadings, batches, calibrations, enzymes, invoices, lots, recipes, sites, subscriptions, users, vessels } from './tables';
 
 // An invented plant for demos and tests. Names, suppliers, lots and figures are made up.
 
@@ -359,41 +359,44 @@ function plantTruthProduct(program: BatchProgram, logged: { h: number; c: number
  * the recipe and lot's closed batches), stored as proposed; nothing plans with it until it is accepted. Two earlier
  * proposals (after 4 and 7 batches) stand superseded, as each close proposes anew.
  */
-function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: number, recipe: typeof recipes.$inferSelect): void {
-  const lot = tx
+async function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: number, recipe: typeof recipes.$inferSelect): Promise<void> {
+  const lot = (await tx
     .select()
     .from(lots)
     .where(sql`${lots.id} = ${recipe.lotId}`)
-    .get()!;
-  const enzyme = tx
+    .then(first))!;
+  const enzyme = (await tx
     .select()
     .from(enzymes)
     .where(sql`${enzymes.id} = ${recipe.enzymeId}`)
-    .get()!;
-  const assay = tx
+    .then(first))!;
+  const assay = await tx
     .select()
     .from(assays)
     .where(sql`${assays.lotId} = ${lot.id}`)
-    .get();
-  const closed = tx
-    .select()
-    .from(batches)
-    .where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`)
-    .orderBy(batches.closedAt)
-    .all()
-    .map((b) => ({
+    .then(first);
+  const closed = await Promise.all(
+    (
+      await tx
+        .select()
+        .from(batches)
+        .where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`)
+        .orderBy(batches.closedAt)
+        .execute()
+    ).map(async (b) => ({
       batchId: b.id,
       startedAt: b.startedAt,
       closedAt: b.closedAt!,
       program: b.program,
       measuredProductGPerL: b.measuredProductGPerL,
-      readings: tx
+      readings: await tx
         .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
         .from(batchReadings)
         .where(sql`${batchReadings.batchId} = ${b.id}`)
         .orderBy(batchReadings.takenAt)
-        .all(),
-    }));
+        .execute(),
+    })),
+  );
   const evidence = {
     certKdPerH: lot.certKdPerH,
     certTempC: lot.certTempC,
@@ -404,9 +407,10 @@ function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId: numbe
     const proposal = proposeCalibration({ recipe, enzyme, lot: evidence, batches: used, excluded: [] });
     if (!proposal) continue;
     const state = n === closed.length ? 'proposed' : 'superseded';
-    tx.insert(calibrations)
+    await tx
+      .insert(calibrations)
       .values({ siteId, recipeId: recipe.id, lotId: lot.id, state, batchIds: proposal.batchIds, result: proposal.result, createdAt: used.at(-1)!.closedAt })
-      .run();
+      .execute();
   }
 }
 
@@ -428,11 +432,13 @@ const DEMO_INVOICES = [
 ];
 
 /** True when the database has no site yet. */
-export const isEmpty = (db: Db) =>
-  (db
-    .select({ n: sql<number>`count(*)` })
-    .from(sites)
-    .get()?.n ?? 0) === 0;
+export const isEmpty = async (db: Db) =>
+  ((
+    await db
+      .select({ n: sql<number>`count(*)`.mapWith(Number) })
+      .from(sites)
+      .then(first)
+  )?.n ?? 0) === 0;
 
 /**
  * Writes the demo site in one transaction. Deterministic: the same rows every time, except bcrypt salts.
@@ -442,26 +448,26 @@ export const isEmpty = (db: Db) =>
  * `now`: the running batch starts four hours before it (on the half hour) with its readings up to then, so the
  * demo's floor screens look like a live shift on any day. Without it (the tests) every date is the fixed one above.
  */
-export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string; emailDomain?: string; now?: Date } = {}): { siteId: number } {
+export async function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string; emailDomain?: string; now?: Date } = {}): Promise<{ siteId: number }> {
   const cost = opts.bcryptCost ?? 12;
   const hashes = DEMO_USERS.map((u) => bcrypt.hashSync(u.password, cost));
-  return db.transaction((tx) => {
-    const site = tx
+  return await writeTx(db, async (tx) => {
+    const site = await tx
       .insert(sites)
       .values({ name: opts.siteName ?? DEMO_SITE_NAME, timeZone: 'Europe/Berlin' })
       .returning()
-      .get();
+      .then(returned);
     const domain = opts.emailDomain ?? 'haldenbay.test';
     const userIds = new Map<Role, number>();
-    DEMO_USERS.forEach((u, i) => {
-      const row = tx
+    for (const [i, u] of DEMO_USERS.entries()) {
+      const row = await tx
         .insert(users)
         .values({ siteId: site.id, email: u.email.replace('haldenbay.test', domain), name: u.name, role: u.role, passwordHash: hashes[i]! })
         .returning()
-        .get();
+        .then(returned);
       userIds.set(u.role, row.id);
-    });
-    const vesselRows = tx
+    }
+    const vesselRows = await tx
       .insert(vessels)
       .values([
         { siteId: site.id, name: 'R-101 Saccharifier', workingVolumeL: 40000, minC: 20, maxC: 75, maxHeatCPerH: 12, maxCoolCPerH: 8, hygienicMinC: 50 },
@@ -469,22 +475,24 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         { siteId: site.id, name: 'R-310 Liquefier', workingVolumeL: 8000, minC: 20, maxC: 105, maxHeatCPerH: 30, maxCoolCPerH: 20, hygienicMinC: 45 },
       ])
       .returning()
-      .all();
+      .execute();
     const enzymeIds = new Map<string, number>();
     for (const e of ENZYMES)
       enzymeIds.set(
         e.name,
-        tx
-          .insert(enzymes)
-          .values({ ...e, siteId: site.id })
-          .returning()
-          .get().id,
+        (
+          await tx
+            .insert(enzymes)
+            .values({ ...e, siteId: site.id })
+            .returning()
+            .then(returned)
+        ).id,
       );
     const lotRows = new Map<string, { id: number; enzymeId: number }>();
     // Each lot's assay fit, so the demo's batch programs plan from it as the app's own do (else the certificate).
     const lotFits = new Map<number, LotFit>();
     for (const l of LOTS) {
-      const lot = tx
+      const lot = await tx
         .insert(lots)
         .values({
           siteId: site.id,
@@ -503,7 +511,7 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
           decidedBy: l.status ? userIds.get('procurement')! : null,
         })
         .returning()
-        .get();
+        .then(returned);
       lotRows.set(l.lotCode, lot);
       if (!l.qc) continue;
       const enzyme = ENZYMES.find((e) => e.name === l.enzyme)!;
@@ -512,7 +520,7 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         enzyme.tRefC,
         points.map((p) => ({ c: p.tempC, h: p.timeH, residual: p.residual })),
       );
-      const assay = tx
+      const assay = await tx
         .insert(assays)
         .values({
           siteId: site.id,
@@ -530,11 +538,12 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
           createdAt: `${l.receivedOn}T10:00:00.000Z`,
         })
         .returning()
-        .get();
+        .then(returned);
       if (result.fit) lotFits.set(lot.id, { assayId: assay.id, createdAt: assay.createdAt, fit: result.fit });
-      tx.insert(assayPoints)
+      await tx
+        .insert(assayPoints)
         .values(points.map((p, i) => ({ ...p, assayId: assay.id, line: i + 2, note: null })))
-        .run();
+        .execute();
     }
     const recipeRows = new Map<string, typeof recipes.$inferSelect>();
     for (const { lotCode, vessel, ...r } of RECIPES) {
@@ -542,11 +551,11 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       const vesselId = vesselRows.find((v) => v.name === vessel)!.id;
       recipeRows.set(
         r.name,
-        tx
+        await tx
           .insert(recipes)
           .values({ ...r, siteId: site.id, enzymeId: lot.enzymeId, lotId: lot.id, vesselId, updatedAt: RECIPES_UPDATED_AT })
           .returning()
-          .get(),
+          .then(returned),
       );
     }
     const truthRng = createRng(DEMO_PLANT_TRUTH.seed);
@@ -559,18 +568,18 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
       const saved = recipeRows.get(b.recipe)!;
       const recipe = b.setpointC === undefined ? saved : { ...saved, currentSetpointC: b.setpointC };
       const vessel = vesselRows.find((v) => v.id === recipe.vesselId)!;
-      const lot = tx
+      const lot = (await tx
         .select()
         .from(lots)
         .where(sql`${lots.id} = ${recipe.lotId}`)
-        .get()!;
-      const enzyme = tx
+        .then(first))!;
+      const enzyme = (await tx
         .select()
         .from(enzymes)
         .where(sql`${enzymes.id} = ${recipe.enzymeId}`)
-        .get()!;
+        .then(first))!;
       const program = batchProgram({ recipe, enzyme, lot: { ...lot, fit: lotFits.get(lot.id) ?? null }, vessel, plan: null });
-      const row = tx
+      const row = await tx
         .insert(batches)
         .values({
           siteId: site.id,
@@ -585,9 +594,10 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
           startedBy: userIds.get('supervisor')!,
         })
         .returning()
-        .get();
+        .then(returned);
       const readings = demoReadings(program, b.startedAt, b.readUntilH);
-      tx.insert(batchReadings)
+      await tx
+        .insert(batchReadings)
         .values(
           readings.map((r, i) => ({
             siteId: site.id,
@@ -601,7 +611,7 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
             receivedAt: r.takenAt,
           })),
         )
-        .run();
+        .execute();
       if (b.closedAt) {
         const logged = readings.map((r) => ({ h: batchHours(b.startedAt, r.takenAt), c: r.c }));
         const forecast = batchStatus(program, logged, program.batchH).forecastGPerL;
@@ -609,7 +619,8 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
           lot.lotCode === DEMO_PLANT_TRUTH.lotCode
             ? plantTruthProduct(program, logged, enzyme.tRefC) * Math.exp(DEMO_PLANT_TRUTH.noiseRelSd * truthRng.normal())
             : forecast * (b.measuredRatio ?? 1);
-        tx.update(batches)
+        await tx
+          .update(batches)
           .set({
             state: 'closed',
             closedAt: b.closedAt,
@@ -619,12 +630,13 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
             closeComment: 'Lab result from the end-of-batch sample',
           })
           .where(sql`${batches.id} = ${row.id}`)
-          .run();
+          .execute();
       }
     }
-    proposeDemoCalibration(tx, site.id, recipeRows.get('Lactose-free milk base')!);
+    await proposeDemoCalibration(tx, site.id, recipeRows.get('Lactose-free milk base')!);
     const ids = demoStripeIds();
-    tx.insert(subscriptions)
+    await tx
+      .insert(subscriptions)
       .values({
         siteId: site.id,
         plan: 'Per seat, billed monthly',
@@ -636,9 +648,10 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
         stripeItemId: ids.item,
         updatedAt: '2026-12-01T00:00:00.000Z',
       })
-      .run();
-    DEMO_INVOICES.forEach((inv, i) => {
-      tx.insert(invoices)
+      .execute();
+    for (const [i, inv] of DEMO_INVOICES.entries()) {
+      await tx
+        .insert(invoices)
         .values({
           siteId: site.id,
           stripeInvoiceId: `in_demo_site${site.id}_${i + 1}`,
@@ -653,8 +666,8 @@ export function seedDemo(db: Db, opts: { bcryptCost?: number; siteName?: string;
           hostedUrl: null,
           issuedAt: inv.periodStart,
         })
-        .run();
-    });
+        .execute();
+    }
     return { siteId: site.id };
   });
 }

@@ -1,6 +1,6 @@
 import { createInterface } from 'node:readline/promises';
-import { migrateDb, openDb, writeTx } from '../db/client';
-import { sites } from '../db/schema';
+import { closeDb, migrateDb, openDb, returned, writeTx } from '../db/client';
+import { sites } from '../db/tables';
 import { SignInRequest } from '../src/contracts/session';
 import { cliArgs } from './cli-args';
 import { readEnv } from './env';
@@ -30,16 +30,16 @@ async function main() {
   if (password.length < 12) throw new Error('The password needs at least 12 characters');
   const creds = SignInRequest.parse({ email, password });
   const db = openDb(env.databaseFile);
-  migrateDb(db);
+  await migrateDb(db);
   const hash = await hashPassword(creds.password);
-  writeTx(db, (tx) => {
-    const site = tx
+  await writeTx(db, async (tx) => {
+    const site = await tx
       .insert(sites)
       .values({ name: siteName, timeZone: timeZone || 'UTC' })
       .returning()
-      .get();
-    const user = insertUser(tx, { siteId: site.id, email: creds.email, name, role: 'admin', passwordHash: hash });
-    appendAudit(tx, {
+      .then(returned);
+    const user = await insertUser(tx, { siteId: site.id, email: creds.email, name, role: 'admin', passwordHash: hash });
+    await appendAudit(tx, {
       siteId: site.id,
       userId: user.id,
       actor: 'create-admin',
@@ -51,7 +51,7 @@ async function main() {
     });
   });
   console.log(`Created site "${siteName}" with admin ${creds.email} in ${env.databaseFile}.`);
-  db.$client.close();
+  await closeDb(db);
 }
 
 main().catch((err) => {

@@ -6,6 +6,15 @@ const Env = z.object({
   PORT: z.coerce.number().int().min(0).max(65535).default(8080),
   HOST: z.string().default('0.0.0.0'),
   DATABASE_FILE: z.string().default(path.join('data', 'yieldpoint.db')),
+  // postgres://…: run on PostgreSQL instead of the SQLite file (README, Multi-site on PostgreSQL).
+  DATABASE_URL: z
+    .string()
+    .regex(/^postgres(ql)?:\/\//, 'must be a postgres:// URL')
+    .optional(),
+  // The installation's own files (secrets, audit checkpoints, certificates, mail sink): beside the SQLite file by default.
+  DATA_DIR: z.string().optional(),
+  // PostgreSQL connections this process keeps open.
+  DATABASE_POOL: z.coerce.number().int().min(1).max(200).default(10),
   SESSION_SECRET: z.string().min(32).optional(),
   // Unset: Secure when PUBLIC_URL is https (a browser then never sends the session cookie over plain http).
   COOKIE_SECURE: z.enum(['0', '1']).optional(),
@@ -56,6 +65,11 @@ export type ServerEnv = {
   port: number;
   host: string;
   databaseFile: string;
+  /** PostgreSQL when set; else the SQLite file. */
+  databaseUrl: string | null;
+  databasePool: number;
+  /** The folder of the installation's own files: DATA_DIR, else the SQLite file's folder (`data` on PostgreSQL). */
+  dataDir: string;
   sessionSecret: Uint8Array | null;
   cookieSecure: boolean;
   sessionIdleMinutes: number;
@@ -80,10 +94,14 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): ServerEnv {
     throw new Error(`Environment variable ${issue.path.join('.')}: ${issue.message}`);
   }
   const e = parsed.data;
+  const dataDir = path.resolve(e.DATA_DIR ?? (e.DATABASE_URL ? 'data' : path.dirname(e.DATABASE_FILE)));
   return {
     port: e.PORT,
     host: e.HOST,
     databaseFile: e.DATABASE_FILE,
+    databaseUrl: e.DATABASE_URL ?? null,
+    databasePool: e.DATABASE_POOL,
+    dataDir,
     sessionSecret: e.SESSION_SECRET ? new TextEncoder().encode(e.SESSION_SECRET) : null,
     cookieSecure: e.COOKIE_SECURE ? e.COOKIE_SECURE === '1' : (e.PUBLIC_URL?.startsWith('https:') ?? false),
     sessionIdleMinutes: e.SESSION_IDLE_MINUTES,
@@ -97,7 +115,7 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): ServerEnv {
     publicUrl: e.PUBLIC_URL ?? null,
     mail: e.SMTP_HOST
       ? { mode: 'smtp', host: e.SMTP_HOST, port: e.SMTP_PORT, secure: e.SMTP_SECURE === '1', user: e.SMTP_USER, pass: e.SMTP_PASS, from: e.MAIL_FROM }
-      : { mode: 'sink', sinkPort: e.SMTP_SINK_PORT, sinkDir: e.MAIL_SINK_DIR ?? path.join(path.dirname(e.DATABASE_FILE), 'mail-sink'), from: e.MAIL_FROM },
+      : { mode: 'sink', sinkPort: e.SMTP_SINK_PORT, sinkDir: e.MAIL_SINK_DIR ?? path.join(dataDir, 'mail-sink'), from: e.MAIL_FROM },
     billing: billingEnv(e.STRIPE_SECRET_KEY, e.STRIPE_WEBHOOK_SECRET, e.STRIPE_FAKE_PORT),
     plantSim: { enabled: e.PLANT_SIM === 'auto', port: e.PLANT_SIM_PORT },
   };

@@ -3,12 +3,12 @@ import fs from 'node:fs';
 import path from 'node:path';
 
 /**
- * A random secret of this installation, kept in a file beside the database (created 0600 on first use), so it
+ * A random secret of this installation, kept in a file in its folder (beside the SQLite file, or DATA_DIR; created 0600 on first use), so it
  * survives a restart without being a constant anyone can read in the source. Used when no secret is configured:
  * the session key, the local payment fake's webhook secret, the audit chain's key.
  */
-export function installationSecret(databaseFile: string, name: '.session-secret' | '.webhook-secret' | '.audit-key', bytes = 32): Buffer {
-  const file = path.join(path.dirname(path.resolve(databaseFile)), name);
+export function installationSecret(dir: string, name: '.session-secret' | '.webhook-secret' | '.audit-key', bytes = 32): Buffer {
+  const file = path.join(path.resolve(dir), name);
   if (!fs.existsSync(file)) {
     fs.mkdirSync(path.dirname(file), { recursive: true });
     // 'wx': two processes starting at once do not overwrite each other's secret.

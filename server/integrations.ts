@@ -70,14 +70,14 @@ export async function startFakeBilling(opts: { port?: number; webhookSecret: str
 
 /** Gives the fake the customers and subscriptions the database refers to, so they can be changed there. */
 export async function handOverToFake(db: Db, fake: StripeFake, billing: Billing): Promise<void> {
-  const rows = listLinkedSubscriptions(db);
+  const rows = await listLinkedSubscriptions(db);
   if (!rows.length) return;
   const price = await billing.seatPrice();
   for (const r of rows) {
     if (r.status === 'none') continue;
     fake.adopt({
       customerId: r.stripeCustomerId!,
-      customerName: findSite(db, r.siteId)?.name ?? `Site ${r.siteId}`,
+      customerName: (await findSite(db, r.siteId))?.name ?? `Site ${r.siteId}`,
       subscriptionId: r.stripeSubscriptionId!,
       itemId: r.stripeItemId ?? `si_${r.siteId}`,
       priceId: price.priceId,

@@ -2,6 +2,8 @@ import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
 import { migrate } from 'drizzle-orm/node-postgres/migrator';
 import path from 'node:path';
 import pg from 'pg';
+import { adoptPg, type Db } from '../client';
+import { databaseDialect } from '../tables';
 import * as schema from './schema';
 
 export type PgDb = NodePgDatabase<typeof schema> & { $client: pg.Pool };
@@ -31,3 +33,19 @@ export function openPg(url: string, opts: { max?: number } = {}): PgDb {
 export async function migratePg(db: PgDb): Promise<void> {
   await migrate(db, { migrationsFolder: MIGRATIONS });
 }
+
+/**
+ * The product's database handle on PostgreSQL: the pool with Drizzle over the generated schema, registered with
+ * the folder of the installation's files. The process must run on PostgreSQL (DATABASE_URL set before start), so
+ * its queries use the PostgreSQL tables (db/tables.ts).
+ */
+export async function openPgDb(url: string, opts: { dataDir: string | null; max?: number }): Promise<Db> {
+  if (databaseDialect !== 'postgres') throw new Error('Set DATABASE_URL before the process starts: its queries were bound to the SQLite tables');
+  const db = openPg(url, { max: opts.max });
+  // A dropped idle connection is replaced on the next query; without a listener its error would end the process.
+  db.$client.on('error', (err) => console.error(`[${new Date().toISOString()}] PostgreSQL connection lost: ${err.message}`));
+  return adoptPg(db as unknown as Db, opts.dataDir);
+}
+
+/** migratePg for the product's handle. */
+export const migratePgDb = (db: Db) => migratePg(db as unknown as PgDb);

@@ -34,16 +34,16 @@ export function auditDenials(ctx: Services): RequestHandler {
   let minute = -1;
   let repeats = new Map<string, Repeats>();
 
-  const write = (event: AuditInput) => {
+  const write = async (event: AuditInput) => {
     try {
-      writeTx(ctx.db, (tx) => appendAudit(tx, event));
+      await writeTx(ctx.db, (tx) => appendAudit(tx, event));
     } catch (err) {
       // writeTx has already logged that the file is not writable.
       if (!(err instanceof DatabaseUnwritable)) console.error(`[${new Date().toISOString()}] could not record a refused request`, err);
     }
   };
 
-  const closeMinute = (now: Date) => {
+  const closeMinute = async (now: Date) => {
     const current = Math.floor(now.getTime() / MINUTE_MS);
     if (current === minute) return;
     const ended = repeats;
@@ -52,7 +52,7 @@ export function auditDenials(ctx: Services): RequestHandler {
     repeats = new Map();
     for (const r of ended.values()) {
       if (r.count === 0) continue;
-      write({
+      await write({
         ...r.first,
         action: 'access.denied.repeated',
         entityId: r.lastRoute,
@@ -66,9 +66,9 @@ export function auditDenials(ctx: Services): RequestHandler {
   const timer = setInterval(() => closeMinute(ctx.clock.now()), MINUTE_MS);
   (timer as unknown as { unref?: () => void }).unref?.();
 
-  const record = (req: Request, status: number) => {
+  const record = async (req: Request, status: number) => {
     const now = ctx.clock.now();
-    closeMinute(now);
+    await closeMinute(now);
     const user = req.user;
     const route = cut(`${req.method} ${req.originalUrl.split('?')[0]}`, DENIAL_LIMITS.pathChars);
     let key = user ? `user:${user.id}` : `address:${req.ip ?? 'unknown'}`;
@@ -94,15 +94,15 @@ export function auditDenials(ctx: Services): RequestHandler {
       at: now,
     };
     repeats.set(key, { first, count: 0, statuses: {}, lastRoute: route });
-    write(first);
+    await write(first);
   };
 
   return (req, res, next) => {
-    res.on('finish', () => {
+    res.on('finish', async () => {
       if (res.statusCode !== 401 && res.statusCode !== 403) return;
       if (req.method === 'POST' && req.baseUrl + req.path === '/api/session') return;
       try {
-        record(req, res.statusCode);
+        await record(req, res.statusCode);
       } catch (err) {
         console.error(`[${new Date().toISOString()}] could not record a refused request`, err);
       }

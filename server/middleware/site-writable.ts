@@ -8,9 +8,9 @@ const ALWAYS_OPEN = ['/session', '/billing'];
 
 /** Refuses writes of signed-in users on a site that is read-only after a failed payment (402 site_read_only). */
 export function requireWritableSite(ctx: Services): RequestHandler {
-  return (req, _res, next) => {
+  return async (req, _res, next) => {
     if (SAFE.has(req.method) || !req.user || ALWAYS_OPEN.some((p) => req.path === p || req.path.startsWith(`${p}/`))) return next();
-    assertWritable(ctx.db, req.user.siteId, ctx.clock.now());
+    await assertWritable(ctx.db, req.user.siteId, ctx.clock.now());
     next();
   };
 }

@@ -14,10 +14,17 @@ const IDLE_C = 20;
  */
 export async function startDemoPlant(db: Db, siteId: number, opts: { port: number; pkiFolder: string }): Promise<Plant> {
   const rows = () => vesselsWithRunningBatch(db, siteId);
-  let cache = { at: 0, rows: rows() };
+  let cache = { at: Date.now(), rows: await rows() };
+  let reading = false;
   const setpointOf = (tag: string, at: Date) => {
-    // Read the batches once per tick, not once per tag.
-    if (at.getTime() - cache.at > 500) cache = { at: at.getTime(), rows: rows() };
+    // Read the batches at most once per tick, not once per tag, in the background: a tag answers from the last read.
+    if (at.getTime() - cache.at > 500 && !reading) {
+      reading = true;
+      void rows()
+        .then((r) => (cache = { at: at.getTime(), rows: r }))
+        .catch((err: unknown) => console.error(`[${new Date().toISOString()}] simulated plant: batches not read: ${(err as Error).message}`))
+        .finally(() => (reading = false));
+    }
     const r = cache.rows.find((x) => x.vessel.name === tag);
     return r?.program && r.startedAt ? plannedAt(r.program, Math.max(0, batchHours(r.startedAt, at.toISOString()))) : IDLE_C;
   };

@@ -11,14 +11,18 @@ import type { Plant } from './plant';
  * beside the database. On 4840 when free, else on any free port. Never stops the app: a plant that cannot start
  * is reported and left out.
  */
-export function launchPlant(db: Db, env: Pick<ServerEnv, 'plantSim'>, dataDir: string): { ready: Promise<Plant | null>; close(): Promise<void> } {
-  const site = firstSite(db);
+export async function launchPlant(
+  db: Db,
+  env: Pick<ServerEnv, 'plantSim'>,
+  dataDir: string,
+): Promise<{ ready: Promise<Plant | null>; close(): Promise<void> }> {
+  const site = await firstSite(db);
   // Beside the app unless the site reads a real plant: no source yet, or one reads this plant's address.
-  const sources = site ? listSiteSources(db, site.id) : [];
+  const sources = site ? await listSiteSources(db, site.id) : [];
   const readsPlant = sources.some((r) => /^opc\.tcp:\/\/(127\.0\.0\.1|localhost):/.test(r.source.endpointUrl));
   if (!env.plantSim.enabled || !site || (sources.length && !readsPlant)) return { ready: Promise.resolve(null), close: async () => {} };
   const pkiFolder = path.join(dataDir, 'plant-sim-pki');
-  const start = (port: number) => startDemoPlant(db, site.id, { port, pkiFolder });
+  const start = async (port: number) => await startDemoPlant(db, site.id, { port, pkiFolder });
   const ready = start(env.plantSim.port)
     .catch((err: unknown) => {
       if (env.plantSim.port === 0) throw err;

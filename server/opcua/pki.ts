@@ -28,7 +28,6 @@ export type AppPki = {
 };
 
 export const APPLICATION_NAME = 'Yieldpoint';
-export const pkiFolderBeside = (databaseFile: string) => path.join(path.dirname(path.resolve(databaseFile)), 'pki');
 
 /** OPC UA's thumbprint (SHA-1 of the DER certificate), as colon-separated hex; SHA-256 beside it. */
 export function certificateInfo(der: Buffer): CertificateInfo {

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { assayPoints, assays, users } from '../../db/schema';
+import { first, returned, type Db } from '../../db/client';
+import { assayPoints, assays, users } from '../../db/tables';
 
 export type AssayRow = typeof assays.$inferSelect;
 export type NewAssayRow = Omit<typeof assays.$inferInsert, 'id'>;
@@ -10,12 +10,13 @@ export type NewPoint = Omit<typeof assayPoints.$inferInsert, 'id' | 'assayId'>;
 const CHUNK = 2_000;
 
 /** Inserts an assay and all its points; call inside the write's transaction. */
-export function insertAssay(db: Db, row: NewAssayRow, points: readonly NewPoint[]): AssayRow {
-  const assay = db.insert(assays).values(row).returning().get();
+export async function insertAssay(db: Db, row: NewAssayRow, points: readonly NewPoint[]): Promise<AssayRow> {
+  const assay = await db.insert(assays).values(row).returning().then(returned);
   for (let i = 0; i < points.length; i += CHUNK) {
-    db.insert(assayPoints)
+    await db
+      .insert(assayPoints)
       .values(points.slice(i, i + CHUNK).map((p) => ({ ...p, assayId: assay.id })))
-      .run();
+      .execute();
   }
   return assay;
 }
@@ -27,18 +28,18 @@ export const listLotAssays = (db: Db, siteId: number, lotId: number) =>
     .leftJoin(users, eq(assays.createdBy, users.id))
     .where(and(eq(assays.siteId, siteId), eq(assays.lotId, lotId)))
     .orderBy(desc(assays.createdAt), desc(assays.id))
-    .all();
+    .execute();
 
 export const findLotAssay = (db: Db, siteId: number, lotId: number, assayId: number) =>
   db
     .select()
     .from(assays)
     .where(and(eq(assays.siteId, siteId), eq(assays.lotId, lotId), eq(assays.id, assayId)))
-    .get();
+    .then(first);
 
 export const listAssayPoints = (db: Db, assayId: number, limit?: number) => {
   const q = db.select().from(assayPoints).where(eq(assayPoints.assayId, assayId)).orderBy(asc(assayPoints.line));
-  return (limit ? q.limit(limit) : q).all();
+  return (limit ? q.limit(limit) : q).execute();
 };
 
 /** Newest fitted assay of each lot of a site, for lists and history. */
@@ -48,4 +49,4 @@ export const listSiteFits = (db: Db, siteId: number) =>
     .from(assays)
     .where(eq(assays.siteId, siteId))
     .orderBy(desc(assays.createdAt), desc(assays.id))
-    .all();
+    .execute();

@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, gt, inArray, lt, lte, ne, or, sql } from 'drizzle-orm';
-import { boundRow, columnPlaceholders, preparedPer, type Db } from '../../db/client';
-import { alias } from 'drizzle-orm/sqlite-core';
-import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/schema';
+import { boundRow, columnPlaceholders, preparedPer, first, returned, type Db } from '../../db/client';
+import { alias } from 'drizzle-orm/pg-core';
+import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/tables';
 
 export type BatchRow = typeof batches.$inferSelect;
 export type ReadingRow = typeof batchReadings.$inferSelect;
@@ -20,42 +20,43 @@ const joinedBatches = (db: Db) =>
     .innerJoin(starter, eq(batches.startedBy, starter.id))
     .leftJoin(closer, eq(batches.closedBy, closer.id));
 
-export type BatchJoined = NonNullable<ReturnType<typeof findSiteBatch>>;
+export type BatchJoined = NonNullable<Awaited<ReturnType<typeof findSiteBatch>>>;
 
 // Prepared (per connection or transaction handle) where a reading's path runs them: see preparedPer.
-const siteBatch = preparedPer((db) =>
+const siteBatch = preparedPer((db, _v, name) =>
   joinedBatches(db)
     .where(and(eq(batches.siteId, sql.placeholder('siteId')), eq(batches.id, sql.placeholder('id'))))
-    .prepare(),
+    .prepare(name),
 );
-export const findSiteBatch = (db: Db, siteId: number, id: number) => siteBatch(db).get({ siteId, id });
+export const findSiteBatch = (db: Db, siteId: number, id: number) => siteBatch(db).execute({ siteId, id }).then(first);
 
-export const listSiteBatches = (db: Db, siteId: number) => joinedBatches(db).where(eq(batches.siteId, siteId)).orderBy(desc(batches.id)).limit(500).all();
+export const listSiteBatches = (db: Db, siteId: number) => joinedBatches(db).where(eq(batches.siteId, siteId)).orderBy(desc(batches.id)).limit(500).execute();
 
 export const runningBatchOnVessel = (db: Db, siteId: number, vesselId: number) =>
   db
     .select({ id: batches.id })
     .from(batches)
     .where(and(eq(batches.siteId, siteId), eq(batches.vesselId, vesselId), eq(batches.state, 'running')))
-    .get();
+    .then(first);
 
-export const insertBatch = (db: Db, row: Omit<typeof batches.$inferInsert, 'id' | 'createdAt'>) => db.insert(batches).values(row).returning().get();
+export const insertBatch = (db: Db, row: Omit<typeof batches.$inferInsert, 'id' | 'createdAt'>) => db.insert(batches).values(row).returning().then(returned);
 
 export const updateBatch = (
   db: Db,
   id: number,
   patch: Partial<Pick<BatchRow, 'state' | 'closedAt' | 'closedBy' | 'closeComment' | 'measuredProductGPerL' | 'forecastAtCloseGPerL'>>,
-) => db.update(batches).set(patch).where(eq(batches.id, id)).returning().get();
+) => db.update(batches).set(patch).where(eq(batches.id, id)).returning().then(returned);
 
 /** Batch ids among `ids` where the user logged a reading. */
-export const batchesLoggedBy = (db: Db, userId: number, ids: number[]) =>
+export const batchesLoggedBy = async (db: Db, userId: number, ids: number[]) =>
   ids.length
-    ? db
-        .selectDistinct({ batchId: batchReadings.batchId })
-        .from(batchReadings)
-        .where(and(eq(batchReadings.enteredBy, userId), inArray(batchReadings.batchId, ids)))
-        .all()
-        .map((r) => r.batchId)
+    ? (
+        await db
+          .selectDistinct({ batchId: batchReadings.batchId })
+          .from(batchReadings)
+          .where(and(eq(batchReadings.enteredBy, userId), inArray(batchReadings.batchId, ids)))
+          .execute()
+      ).map((r) => r.batchId)
     : [];
 
 // Readings: the batch's own, in time order (ties by arrival).
@@ -66,21 +67,21 @@ export const listReadings = (db: Db, batchId: number) =>
     .innerJoin(users, eq(batchReadings.enteredBy, users.id))
     .where(eq(batchReadings.batchId, batchId))
     .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
-    .all();
+    .execute();
 
-const pointsOfBatch = preparedPer((db) =>
+const pointsOfBatch = preparedPer((db, _v, name) =>
   db
     .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
     .from(batchReadings)
     .where(eq(batchReadings.batchId, sql.placeholder('batchId')))
     .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
-    .prepare(),
+    .prepare(name),
 );
-export const readingPoints = (db: Db, batchId: number) => pointsOfBatch(db).all({ batchId });
+export const readingPoints = (db: Db, batchId: number) => pointsOfBatch(db).execute({ batchId });
 
 // The same in columns, rows as arrays (no per-row objects): the cache of long records reads these, all of a
 // batch's or those added after a given reading.
-const pointColumns = preparedPer((db, afterOnly: boolean) =>
+const pointColumns = preparedPer((db, afterOnly: boolean, name: string) =>
   db
     .select({ id: batchReadings.id, takenAt: batchReadings.takenAt, c: batchReadings.c })
     .from(batchReadings)
@@ -90,22 +91,24 @@ const pointColumns = preparedPer((db, afterOnly: boolean) =>
         : eq(batchReadings.batchId, sql.placeholder('batchId')),
     )
     .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
-    .prepare(),
+    .prepare(name),
 );
 export type PointRow = [id: number, takenAt: string, c: number];
-export const readingPointRows = (db: Db, batchId: number) => pointColumns(db, false).values({ batchId }) as PointRow[];
+const asPointRows = (rows: { id: number; takenAt: string; c: number }[]): PointRow[] => rows.map((r) => [r.id, r.takenAt, r.c]);
+export const readingPointRows = async (db: Db, batchId: number) => asPointRows(await pointColumns(db, false).execute({ batchId }));
 /** The readings added after the one with id `afterId`, as readingPointRows. */
-export const readingPointRowsAfter = (db: Db, batchId: number, afterId: number) => pointColumns(db, true).values({ batchId, afterId }) as PointRow[];
+export const readingPointRowsAfter = async (db: Db, batchId: number, afterId: number) =>
+  asPointRows(await pointColumns(db, true).execute({ batchId, afterId }));
 
 // Readings are only ever added, and ids only grow: the newest id is the version of a batch's record.
-const newestReading = preparedPer((db) =>
+const newestReading = preparedPer((db, _v, name) =>
   db
-    .select({ id: sql<number | null>`max(${batchReadings.id})` })
+    .select({ id: sql<number | null>`max(${batchReadings.id})`.mapWith(Number) })
     .from(batchReadings)
     .where(eq(batchReadings.batchId, sql.placeholder('batchId')))
-    .prepare(),
+    .prepare(name),
 );
-export const newestReadingId = (db: Db, batchId: number): number => newestReading(db).get({ batchId })?.id ?? 0;
+export const newestReadingId = async (db: Db, batchId: number): Promise<number> => (await newestReading(db).execute({ batchId }))[0]?.id ?? 0;
 
 /** Whole readings with who entered them, for the given ids, in time order. */
 export const readingsByIds = (db: Db, ids: readonly number[]) =>
@@ -114,9 +117,9 @@ export const readingsByIds = (db: Db, ids: readonly number[]) =>
         .select({ reading: batchReadings, enteredBy: users.name })
         .from(batchReadings)
         .innerJoin(users, eq(batchReadings.enteredBy, users.id))
-        .where(sql`${batchReadings.id} in (select value from json_each(${JSON.stringify(ids)}))`)
+        .where(inArray(batchReadings.id, [...ids]))
         .orderBy(asc(batchReadings.takenAt), asc(batchReadings.id))
-        .all()
+        .execute()
     : [];
 
 type Cursor = { takenAt: string; id: number };
@@ -137,35 +140,35 @@ function readingsPast(db: Db, batchId: number, limit: number, cursor: Cursor | n
     )
     .orderBy(by(batchReadings.takenAt), by(batchReadings.id))
     .limit(limit)
-    .all();
+    .execute();
 }
 
 /** Readings in time order after `after` (the last of the previous page), `limit` at a time: the report. */
 export const readingsAfter = (db: Db, batchId: number, limit: number, after: Cursor | null) => readingsPast(db, batchId, limit, after, 'asc');
 
 /** A page of a batch's readings, newest first, older than the reading `beforeId` when given; null for no such reading. */
-export function readingsPage(db: Db, batchId: number, limit: number, beforeId: number | null) {
+export async function readingsPage(db: Db, batchId: number, limit: number, beforeId: number | null) {
   if (beforeId === null) return readingsPast(db, batchId, limit, null, 'desc');
-  const before = db
+  const before = await db
     .select({ takenAt: batchReadings.takenAt })
     .from(batchReadings)
     .where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.id, beforeId)))
-    .get();
-  return before ? readingsPast(db, batchId, limit, { takenAt: before.takenAt, id: beforeId }, 'desc') : null;
+    .then(first);
+  return before ? await readingsPast(db, batchId, limit, { takenAt: before.takenAt, id: beforeId }, 'desc') : null;
 }
 
 // Times are stored as toISOString() text, so text order is time order; among equal times the later id is later.
-const readingBefore = preparedPer((db) =>
+const readingBefore = preparedPer((db, _v, name) =>
   db
     .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
     .from(batchReadings)
     .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), lte(batchReadings.takenAt, sql.placeholder('takenAt'))))
     .orderBy(desc(batchReadings.takenAt), desc(batchReadings.id))
     .limit(1)
-    .prepare(),
+    .prepare(name),
 );
 /** The latest stored reading taken at or before `takenAt`, as the deviation rules see "the reading before". */
-export const readingAtOrBefore = (db: Db, batchId: number, takenAt: string) => readingBefore(db).get({ batchId, takenAt });
+export const readingAtOrBefore = (db: Db, batchId: number, takenAt: string) => readingBefore(db).execute({ batchId, takenAt }).then(first);
 
 export const lastReadingTimes = (db: Db, batchIds: number[]) =>
   batchIds.length
@@ -174,66 +177,67 @@ export const lastReadingTimes = (db: Db, batchIds: number[]) =>
         .from(batchReadings)
         .where(inArray(batchReadings.batchId, batchIds))
         .groupBy(batchReadings.batchId)
-        .all()
+        .execute()
     : [];
 
-const readingByKey = preparedPer((db) =>
+const readingByKey = preparedPer((db, _v, name) =>
   db
     .select()
     .from(batchReadings)
     .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), eq(batchReadings.clientKey, sql.placeholder('key'))))
-    .prepare(),
+    .prepare(name),
 );
-export const findReadingByKey = (db: Db, batchId: number, key: string) => readingByKey(db).get({ batchId, key });
+export const findReadingByKey = (db: Db, batchId: number, key: string) => readingByKey(db).execute({ batchId, key }).then(first);
 
-const readingJoined = preparedPer((db) =>
+const readingJoined = preparedPer((db, _v, name) =>
   db
     .select({ reading: batchReadings, enteredBy: users.name })
     .from(batchReadings)
     .innerJoin(users, eq(batchReadings.enteredBy, users.id))
     .where(eq(batchReadings.id, sql.placeholder('id')))
-    .prepare(),
+    .prepare(name),
 );
-export const findReadingJoined = (db: Db, id: number) => readingJoined(db).get({ id });
+export const findReadingJoined = (db: Db, id: number) => readingJoined(db).execute({ id }).then(first);
 
 // A batch's keys from `prefix` on, in key order, a page at a time (the unique key index answers it alone).
-const keysFrom = preparedPer((db) =>
+const keysFrom = preparedPer((db, _v, name) =>
   db
     .select({ k: batchReadings.clientKey })
     .from(batchReadings)
     .where(and(eq(batchReadings.batchId, sql.placeholder('batchId')), gt(batchReadings.clientKey, sql.placeholder('after'))))
     .orderBy(asc(batchReadings.clientKey))
     .limit(sql.placeholder('limit'))
-    .prepare(),
+    .prepare(name),
 );
 /** Up to `limit` of the batch's reading keys after the key `after`, in key order. */
-export const readingKeysAfter = (db: Db, batchId: number, after: string, limit: number): string[] =>
-  keysFrom(db)
-    .all({ batchId, after, limit })
-    .map((r) => r.k);
+export const readingKeysAfter = async (db: Db, batchId: number, after: string, limit: number): Promise<string[]> =>
+  (await keysFrom(db).execute({ batchId, after, limit })).map((r) => r.k);
 
 type NewReading = Omit<typeof batchReadings.$inferInsert, 'id'>;
 const READING_COLUMNS = ['siteId', 'batchId', 'clientKey', 'takenAt', 'c', 'note', 'source', 'enteredBy', 'receivedAt'] as const;
-const insertReadingRow = preparedPer((db) =>
+const insertReadingRow = preparedPer((db, _v, name) =>
   db
     .insert(batchReadings)
     .values(columnPlaceholders(READING_COLUMNS) as unknown as NewReading)
     .returning()
-    .prepare(),
+    .prepare(name),
 );
-export const insertReading = (db: Db, row: NewReading): ReadingRow => insertReadingRow(db).get(boundRow(READING_COLUMNS, row))!;
+export const insertReading = async (db: Db, row: NewReading): Promise<ReadingRow> =>
+  insertReadingRow(db).execute(boundRow(READING_COLUMNS, row)).then(returned);
 
-const insertReadingId = preparedPer((db) =>
+const insertReadingId = preparedPer((db, _v, name) =>
   db
     .insert(batchReadings)
     .values(columnPlaceholders(READING_COLUMNS) as unknown as NewReading)
     .returning({ id: batchReadings.id })
-    .prepare(),
+    .prepare(name),
 );
 /** Many readings through one prepared statement (no SQL built per row); their new ids in order. */
-export function insertReadings(db: Db, rows: readonly NewReading[]): number[] {
+export async function insertReadings(db: Db, rows: readonly NewReading[]): Promise<number[]> {
   const insert = insertReadingId(db);
-  return rows.map((row) => insert.get(boundRow(READING_COLUMNS, row))!.id);
+  const ids: number[] = [];
+  for (const row of rows) ids.push((await insert.execute(boundRow(READING_COLUMNS, row)))[0]!.id);
+  return ids;
 }
 
 // Deviations, with the names of who acknowledged and closed them.
@@ -245,67 +249,68 @@ const joinedDeviations = (db: Db) =>
     .from(deviations)
     .leftJoin(acker, eq(deviations.acknowledgedBy, acker.id))
     .leftJoin(devCloser, eq(deviations.closedBy, devCloser.id));
-export type DeviationJoined = NonNullable<ReturnType<typeof findSiteDeviation>>;
+export type DeviationJoined = NonNullable<Awaited<ReturnType<typeof findSiteDeviation>>>;
 
 export const listDeviations = (db: Db, batchId: number) =>
-  joinedDeviations(db).where(eq(deviations.batchId, batchId)).orderBy(asc(deviations.at), asc(deviations.id)).all();
+  joinedDeviations(db).where(eq(deviations.batchId, batchId)).orderBy(asc(deviations.at), asc(deviations.id)).execute();
 
 export const findSiteDeviation = (db: Db, siteId: number, id: number) =>
   joinedDeviations(db)
     .where(and(eq(deviations.siteId, siteId), eq(deviations.id, id)))
-    .get();
+    .then(first);
 
-const readingDeviations = preparedPer((db) =>
+const readingDeviations = preparedPer((db, _v, name) =>
   joinedDeviations(db)
     .where(eq(deviations.readingId, sql.placeholder('readingId')))
     .orderBy(asc(deviations.id))
-    .prepare(),
+    .prepare(name),
 );
-export const deviationsOfReading = (db: Db, readingId: number) => readingDeviations(db).all({ readingId });
+export const deviationsOfReading = (db: Db, readingId: number) => readingDeviations(db).execute({ readingId });
 
-const activeDeviation = preparedPer((db) =>
+const activeDeviation = preparedPer((db, _v, name) =>
   db
     .select({ id: deviations.id })
     .from(deviations)
     .where(and(eq(deviations.batchId, sql.placeholder('batchId')), eq(deviations.kind, sql.placeholder('kind')), ne(deviations.state, 'closed')))
-    .prepare(),
+    .prepare(name),
 );
-export const hasActiveDeviation = (db: Db, batchId: number, kind: DeviationRow['kind']) => !!activeDeviation(db).get({ batchId, kind });
+export const hasActiveDeviation = async (db: Db, batchId: number, kind: DeviationRow['kind']) =>
+  !!(await activeDeviation(db).execute({ batchId, kind }).then(first));
 
 export const countActiveDeviations = (db: Db, batchIds: number[]) =>
   batchIds.length
     ? db
-        .select({ batchId: deviations.batchId, n: sql<number>`count(*)` })
+        .select({ batchId: deviations.batchId, n: sql<number>`count(*)`.mapWith(Number) })
         .from(deviations)
         .where(and(inArray(deviations.batchId, batchIds), ne(deviations.state, 'closed')))
         .groupBy(deviations.batchId)
-        .all()
+        .execute()
     : [];
 
-export const insertDeviation = (db: Db, row: Omit<typeof deviations.$inferInsert, 'id'>) => db.insert(deviations).values(row).returning().get();
+export const insertDeviation = (db: Db, row: Omit<typeof deviations.$inferInsert, 'id'>) => db.insert(deviations).values(row).returning().then(returned);
 
 export const updateDeviation = (
   db: Db,
   id: number,
   patch: Partial<Pick<DeviationRow, 'state' | 'acknowledgedBy' | 'acknowledgedAt' | 'acknowledgeComment' | 'closedBy' | 'closedAt' | 'closeComment'>>,
-) => db.update(deviations).set(patch).where(eq(deviations.id, id)).run();
+) => db.update(deviations).set(patch).where(eq(deviations.id, id)).execute();
 
 // Settings
-const settingsOfSite = preparedPer((db) =>
+const settingsOfSite = preparedPer((db, _v, name) =>
   db
     .select()
     .from(batchSettings)
     .where(eq(batchSettings.siteId, sql.placeholder('siteId')))
-    .prepare(),
+    .prepare(name),
 );
-export const findBatchSettings = (db: Db, siteId: number) => settingsOfSite(db).get({ siteId });
+export const findBatchSettings = (db: Db, siteId: number) => settingsOfSite(db).execute({ siteId }).then(first);
 
 export const upsertBatchSettings = (db: Db, row: typeof batchSettings.$inferInsert) =>
   db
     .insert(batchSettings)
     .values(row)
     .onConflictDoUpdate({ target: batchSettings.siteId, set: { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin, updatedAt: row.updatedAt } })
-    .run();
+    .execute();
 
 // Change control's signatures on the plan a batch runs: the batch record shows who released it.
 export const planSignatures = (db: Db, siteId: number, planId: number) =>
@@ -315,4 +320,4 @@ export const planSignatures = (db: Db, siteId: number, planId: number) =>
     .innerJoin(changeRequests, eq(signatures.changeRequestId, changeRequests.id))
     .where(and(eq(changeRequests.siteId, siteId), eq(changeRequests.planId, planId)))
     .orderBy(asc(signatures.id))
-    .all();
+    .execute();

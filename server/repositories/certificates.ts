@@ -1,8 +1,9 @@
 import { and, desc, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { certificateFiles, users } from '../../db/schema';
+import { first, returned, type Db } from '../../db/client';
+import { certificateFiles, users } from '../../db/tables';
 
-export const insertCertificate = (db: Db, row: Omit<typeof certificateFiles.$inferInsert, 'id'>) => db.insert(certificateFiles).values(row).returning().get();
+export const insertCertificate = (db: Db, row: Omit<typeof certificateFiles.$inferInsert, 'id'>) =>
+  db.insert(certificateFiles).values(row).returning().then(returned);
 
 export const latestCertificate = (db: Db, siteId: number, lotId: number) =>
   db
@@ -11,4 +12,4 @@ export const latestCertificate = (db: Db, siteId: number, lotId: number) =>
     .leftJoin(users, eq(certificateFiles.uploadedBy, users.id))
     .where(and(eq(certificateFiles.siteId, siteId), eq(certificateFiles.lotId, lotId)))
     .orderBy(desc(certificateFiles.uploadedAt), desc(certificateFiles.id))
-    .get();
+    .then(first);

@@ -1,16 +1,10 @@
 import { and, asc, desc, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { batches, batchReadings, linkGaps, linkSettings, sites, vessels, vesselSources } from '../../db/schema';
+import { first, returned, type Db } from '../../db/client';
+import { batches, batchReadings, linkGaps, linkSettings, sites, vessels, vesselSources } from '../../db/tables';
 
 export type VesselSourceRow = typeof vesselSources.$inferSelect;
 
-export const listSiteIds = (db: Db) =>
-  db
-    .select({ id: sites.id })
-    .from(sites)
-    .orderBy(sites.id)
-    .all()
-    .map((r) => r.id);
+export const listSiteIds = async (db: Db) => (await db.select({ id: sites.id }).from(sites).orderBy(sites.id).execute()).map((r) => r.id);
 
 export const listSiteSources = (db: Db, siteId: number) =>
   db
@@ -19,14 +13,14 @@ export const listSiteSources = (db: Db, siteId: number) =>
     .innerJoin(vessels, eq(vesselSources.vesselId, vessels.id))
     .where(eq(vesselSources.siteId, siteId))
     .orderBy(vessels.name)
-    .all();
+    .execute();
 
 export const findVesselSource = (db: Db, siteId: number, vesselId: number) =>
   db
     .select()
     .from(vesselSources)
     .where(and(eq(vesselSources.siteId, siteId), eq(vesselSources.vesselId, vesselId)))
-    .get();
+    .then(first);
 
 export const upsertVesselSource = (db: Db, row: Omit<typeof vesselSources.$inferInsert, 'id' | 'createdAt'>) =>
   db
@@ -34,12 +28,12 @@ export const upsertVesselSource = (db: Db, row: Omit<typeof vesselSources.$infer
     .values(row)
     .onConflictDoUpdate({ target: vesselSources.vesselId, set: { ...row } })
     .returning()
-    .get();
+    .then(returned);
 
 export const updateVesselSource = (db: Db, id: number, patch: Partial<Pick<VesselSourceRow, 'trustedThumbprint' | 'trustedAt' | 'trustedBy' | 'updatedAt'>>) =>
-  db.update(vesselSources).set(patch).where(eq(vesselSources.id, id)).returning().get();
+  db.update(vesselSources).set(patch).where(eq(vesselSources.id, id)).returning().then(returned);
 
-export const deleteVesselSource = (db: Db, id: number) => db.delete(vesselSources).where(eq(vesselSources.id, id)).run();
+export const deleteVesselSource = (db: Db, id: number) => db.delete(vesselSources).where(eq(vesselSources.id, id)).execute();
 
 /** Enabled sources of the site whose vessel runs a batch, with that batch. */
 export const sourcesOfRunningBatches = (db: Db, siteId: number) =>
@@ -49,19 +43,21 @@ export const sourcesOfRunningBatches = (db: Db, siteId: number) =>
     .innerJoin(vessels, eq(vesselSources.vesselId, vessels.id))
     .innerJoin(batches, and(eq(batches.vesselId, vesselSources.vesselId), eq(batches.state, 'running')))
     .where(and(eq(vesselSources.siteId, siteId), eq(vesselSources.isEnabled, true)))
-    .all();
+    .execute();
 
 /** Source time of the batch's latest control-system reading. */
-export const lastControlReadingAt = (db: Db, batchId: number) =>
-  db
-    .select({ takenAt: batchReadings.takenAt })
-    .from(batchReadings)
-    .where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.source, 'control_system')))
-    .orderBy(desc(batchReadings.takenAt))
-    .limit(1)
-    .get()?.takenAt ?? null;
+export const lastControlReadingAt = async (db: Db, batchId: number) =>
+  (
+    await db
+      .select({ takenAt: batchReadings.takenAt })
+      .from(batchReadings)
+      .where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.source, 'control_system')))
+      .orderBy(desc(batchReadings.takenAt))
+      .limit(1)
+      .then(first)
+  )?.takenAt ?? null;
 
-export const findLinkSettings = (db: Db, siteId: number) => db.select().from(linkSettings).where(eq(linkSettings.siteId, siteId)).get();
+export const findLinkSettings = (db: Db, siteId: number) => db.select().from(linkSettings).where(eq(linkSettings.siteId, siteId)).then(first);
 
 export const upsertLinkSettings = (db: Db, row: typeof linkSettings.$inferInsert) =>
   db
@@ -71,9 +67,10 @@ export const upsertLinkSettings = (db: Db, row: typeof linkSettings.$inferInsert
       target: linkSettings.siteId,
       set: { samplingIntervalMs: row.samplingIntervalMs, deadbandC: row.deadbandC, updatedAt: row.updatedAt },
     })
-    .run();
+    .execute();
 
-export const insertLinkGap = (db: Db, row: Omit<typeof linkGaps.$inferInsert, 'id' | 'createdAt'>) => db.insert(linkGaps).values(row).returning().get();
+export const insertLinkGap = (db: Db, row: Omit<typeof linkGaps.$inferInsert, 'id' | 'createdAt'>) =>
+  db.insert(linkGaps).values(row).returning().then(returned);
 
 export const listBatchGaps = (db: Db, siteId: number, batchId: number) =>
   db
@@ -81,4 +78,4 @@ export const listBatchGaps = (db: Db, siteId: number, batchId: number) =>
     .from(linkGaps)
     .where(and(eq(linkGaps.siteId, siteId), eq(linkGaps.batchId, batchId)))
     .orderBy(asc(linkGaps.fromAt))
-    .all();
+    .execute();

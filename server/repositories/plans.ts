@@ -1,6 +1,6 @@
 import { and, desc, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { lots, plans, recipes, users, vessels } from '../../db/schema';
+import { first, returned, type Db } from '../../db/client';
+import { lots, plans, recipes, users, vessels } from '../../db/tables';
 
 export type PlanRow = typeof plans.$inferSelect;
 
@@ -13,19 +13,19 @@ const joined = (db: Db) =>
     .innerJoin(vessels, eq(recipes.vesselId, vessels.id))
     .innerJoin(users, eq(plans.createdBy, users.id));
 
-export type PlanJoined = NonNullable<ReturnType<typeof findSitePlan>>;
+export type PlanJoined = NonNullable<Awaited<ReturnType<typeof findSitePlan>>>;
 
 export const findSitePlan = (db: Db, siteId: number, id: number) =>
   joined(db)
     .where(and(eq(plans.siteId, siteId), eq(plans.id, id)))
-    .get();
+    .then(first);
 
 export const listSitePlans = (db: Db, siteId: number, recipeId?: number) =>
   joined(db)
     .where(recipeId === undefined ? eq(plans.siteId, siteId) : and(eq(plans.siteId, siteId), eq(plans.recipeId, recipeId)))
     .orderBy(desc(plans.id))
     .limit(200)
-    .all();
+    .execute();
 
 // Insert only: there is deliberately no update or delete for plans.
-export const insertPlan = (db: Db, row: Omit<typeof plans.$inferInsert, 'id'>) => db.insert(plans).values(row).returning().get();
+export const insertPlan = (db: Db, row: Omit<typeof plans.$inferInsert, 'id'>) => db.insert(plans).values(row).returning().then(returned);

@@ -1,6 +1,6 @@
 import { and, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { enzymes, lots, recipes, vessels } from '../../db/schema';
+import { first, returned, type Db } from '../../db/client';
+import { enzymes, lots, recipes, vessels } from '../../db/tables';
 
 export type RecipeRow = typeof recipes.$inferSelect;
 export type RecipeValues = Omit<typeof recipes.$inferInsert, 'id' | 'siteId' | 'createdAt'>;
@@ -13,28 +13,28 @@ const joined = (db: Db) =>
     .innerJoin(lots, eq(recipes.lotId, lots.id))
     .innerJoin(vessels, eq(recipes.vesselId, vessels.id));
 
-export const listSiteRecipes = (db: Db, siteId: number) => joined(db).where(eq(recipes.siteId, siteId)).orderBy(recipes.name).all();
+export const listSiteRecipes = (db: Db, siteId: number) => joined(db).where(eq(recipes.siteId, siteId)).orderBy(recipes.name).execute();
 
 export const findSiteRecipe = (db: Db, siteId: number, id: number) =>
   joined(db)
     .where(and(eq(recipes.siteId, siteId), eq(recipes.id, id)))
-    .get();
+    .then(first);
 
 export const findSiteRecipeByName = (db: Db, siteId: number, name: string) =>
   db
     .select()
     .from(recipes)
     .where(and(eq(recipes.siteId, siteId), eq(recipes.name, name)))
-    .get();
+    .then(first);
 
 export const insertRecipe = (db: Db, siteId: number, v: RecipeValues) =>
   db
     .insert(recipes)
     .values({ ...v, siteId })
     .returning()
-    .get();
+    .then(returned);
 
-export const updateRecipe = (db: Db, id: number, v: Partial<RecipeValues>) => db.update(recipes).set(v).where(eq(recipes.id, id)).returning().get();
+export const updateRecipe = (db: Db, id: number, v: Partial<RecipeValues>) => db.update(recipes).set(v).where(eq(recipes.id, id)).returning().then(returned);
 
 // Planning reads of the catalogue, scoped by site like every query here.
 export const findSiteLot = (db: Db, siteId: number, id: number) =>
@@ -42,14 +42,14 @@ export const findSiteLot = (db: Db, siteId: number, id: number) =>
     .select()
     .from(lots)
     .where(and(eq(lots.siteId, siteId), eq(lots.id, id)))
-    .get();
+    .then(first);
 
 export const findSiteEnzyme = (db: Db, siteId: number, id: number) =>
   db
     .select()
     .from(enzymes)
     .where(and(eq(enzymes.siteId, siteId), eq(enzymes.id, id)))
-    .get();
+    .then(first);
 
 export const listAcceptedLots = (db: Db, siteId: number, enzymeId: number) =>
   db
@@ -57,4 +57,4 @@ export const listAcceptedLots = (db: Db, siteId: number, enzymeId: number) =>
     .from(lots)
     .where(and(eq(lots.siteId, siteId), eq(lots.enzymeId, enzymeId), eq(lots.status, 'accepted')))
     .orderBy(lots.receivedOn)
-    .all();
+    .execute();

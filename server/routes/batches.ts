@@ -35,25 +35,25 @@ const csvBody = express.raw({ type: ['text/csv', 'text/plain', 'application/csv'
 export function batchesRouter(s: AppContext): Router {
   const router = Router();
   const readings = readingIngest(s);
-  router.get('/', allow('batches.read'), (req, res) => {
-    res.json(BatchList.parse({ batches: listBatches(s, currentUser(req)) }));
+  router.get('/', allow('batches.read'), async (req, res) => {
+    res.json(BatchList.parse({ batches: await listBatches(s, currentUser(req)) }));
   });
-  router.post('/', allow('batches.start'), (req, res) => {
-    res.status(201).json(Batch.parse(startBatch(s, currentUser(req), BatchStart.parse(req.body))));
+  router.post('/', allow('batches.start'), async (req, res) => {
+    res.status(201).json(Batch.parse(await startBatch(s, currentUser(req), BatchStart.parse(req.body))));
   });
-  router.get('/settings', allow('batches.read'), (req, res) => {
-    res.json(BatchSettings.parse(batchSettingsOf(s.db, currentUser(req).siteId)));
+  router.get('/settings', allow('batches.read'), async (req, res) => {
+    res.json(BatchSettings.parse(await batchSettingsOf(s.db, currentUser(req).siteId)));
   });
-  router.patch('/settings', allow('batches.settings'), (req, res) => {
-    res.json(BatchSettings.parse(changeBatchSettings(s, currentUser(req), BatchSettingsPatch.parse(req.body))));
+  router.patch('/settings', allow('batches.settings'), async (req, res) => {
+    res.json(BatchSettings.parse(await changeBatchSettings(s, currentUser(req), BatchSettingsPatch.parse(req.body))));
   });
-  router.get('/:id', allow('batches.read'), (req, res) => {
+  router.get('/:id', allow('batches.read'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(BatchDetail.parse(getBatchDetail(s, currentUser(req), id)));
+    res.json(BatchDetail.parse(await getBatchDetail(s, currentUser(req), id)));
   });
-  router.get('/:id/readings', allow('batches.read'), (req, res) => {
+  router.get('/:id/readings', allow('batches.read'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(ReadingsPage.parse(getReadingsPage(s, currentUser(req), id, ReadingsPageQuery.parse(req.query))));
+    res.json(ReadingsPage.parse(await getReadingsPage(s, currentUser(req), id, ReadingsPageQuery.parse(req.query))));
   });
   router.post('/:id/readings', allow('readings.log'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
@@ -65,16 +65,16 @@ export function batchesRouter(s: AppContext): Router {
     if (!Buffer.isBuffer(req.body)) throw new HttpError(400, 'invalid_input', 'Send the historian export as text/csv', { file: 'Expected a CSV file' });
     res.json(ImportResult.parse(await importReadings(s, currentUser(req), id, req.body, ImportQuery.parse(req.query))));
   });
-  router.get('/:id/readings/import', allow('readings.log'), (req, res) => {
-    res.json(ImportProgress.parse(importProgress(s, currentUser(req), IdParam.parse(req.params).id)));
+  router.get('/:id/readings/import', allow('readings.log'), async (req, res) => {
+    res.json(ImportProgress.parse(await importProgress(s, currentUser(req), IdParam.parse(req.params).id)));
   });
-  router.post('/:id/close', allow('batches.close'), (req, res) => {
+  router.post('/:id/close', allow('batches.close'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(Batch.parse(closeBatch(s, currentUser(req), id, BatchClose.parse(req.body))));
+    res.json(Batch.parse(await closeBatch(s, currentUser(req), id, BatchClose.parse(req.body))));
   });
   router.get('/:id/report.csv', allow('batches.read'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    const { filename, parts } = batchReportCsv(s, currentUser(req), id);
+    const { filename, parts } = await batchReportCsv(s, currentUser(req), id);
     res.type('text/csv').attachment(filename);
     await pipeline(Readable.from(parts), res);
   });

@@ -7,11 +7,11 @@ import { handleStripeEvent } from '../services/billing-webhooks';
 
 export function billingRouter(ctx: AppContext): Router {
   const router = Router();
-  router.get('/', allow('billing.manage'), (req, res) => {
-    res.json(BillingSummary.parse(billingSummary(ctx, currentUser(req))));
+  router.get('/', allow('billing.manage'), async (req, res) => {
+    res.json(BillingSummary.parse(await billingSummary(ctx, currentUser(req))));
   });
-  router.get('/invoices', allow('billing.manage'), (req, res) => {
-    res.json(InvoiceList.parse(siteInvoices(ctx, currentUser(req))));
+  router.get('/invoices', allow('billing.manage'), async (req, res) => {
+    res.json(InvoiceList.parse(await siteInvoices(ctx, currentUser(req))));
   });
   router.post('/checkout', allow('billing.manage'), async (req, res) => {
     const body = BuySeats.parse(req.body);

@@ -22,19 +22,19 @@ export function changeRequestsRouter(opts: AppContext): Router {
     message: { error: { code: 'rate_limited', message: 'Too many wrong passwords; wait a few minutes and try again' } },
   });
 
-  router.get('/', allow('change-requests.read'), (req, res) => {
-    res.json(ChangeRequestList.parse({ changeRequests: listChangeRequests(opts, currentUser(req), ChangeRequestQuery.parse(req.query)) }));
+  router.get('/', allow('change-requests.read'), async (req, res) => {
+    res.json(ChangeRequestList.parse({ changeRequests: await listChangeRequests(opts, currentUser(req), ChangeRequestQuery.parse(req.query)) }));
   });
-  router.post('/', allow('change-requests.propose'), (req, res) => {
-    res.status(201).json(ChangeRequestDetail.parse(proposeChange(opts, currentUser(req), ChangeRequestInput.parse(req.body))));
+  router.post('/', allow('change-requests.propose'), async (req, res) => {
+    res.status(201).json(ChangeRequestDetail.parse(await proposeChange(opts, currentUser(req), ChangeRequestInput.parse(req.body))));
   });
-  router.get('/:id', allow('change-requests.read'), (req, res) => {
+  router.get('/:id', allow('change-requests.read'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(ChangeRequestDetail.parse(getChangeRequest(opts, currentUser(req), id)));
+    res.json(ChangeRequestDetail.parse(await getChangeRequest(opts, currentUser(req), id)));
   });
-  router.get('/:id/export.csv', allow('change-requests.read'), (req, res) => {
+  router.get('/:id/export.csv', allow('change-requests.read'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    const { filename, csv } = changeRequestCsv(opts, currentUser(req), id);
+    const { filename, csv } = await changeRequestCsv(opts, currentUser(req), id);
     res.type('text/csv').attachment(filename).send(csv);
   });
   router.post('/:id/signatures', allow('change-requests.sign'), signLimit, async (req, res) => {

@@ -32,14 +32,14 @@ const VesselParam = z.object({ vesselId: RowId });
 export function controlLinkRouter(base: AppContext): Router {
   const router = Router();
   const vessel = (req: Request) => VesselParam.parse(req.params).vesselId;
-  router.get('/sources', allow('control-link.configure'), (req, res) => {
-    res.json(VesselSourceList.parse({ sources: listSources(base, currentUser(req)) }));
+  router.get('/sources', allow('control-link.configure'), async (req, res) => {
+    res.json(VesselSourceList.parse({ sources: await listSources(base, currentUser(req)) }));
   });
-  router.put('/sources/:vesselId', allow('control-link.configure'), (req, res) => {
-    res.json(VesselSource.parse(saveSource(base, currentUser(req), vessel(req), VesselSourceInput.parse(req.body))));
+  router.put('/sources/:vesselId', allow('control-link.configure'), async (req, res) => {
+    res.json(VesselSource.parse(await saveSource(base, currentUser(req), vessel(req), VesselSourceInput.parse(req.body))));
   });
-  router.delete('/sources/:vesselId', allow('control-link.configure'), (req, res) => {
-    removeSource(base, currentUser(req), vessel(req));
+  router.delete('/sources/:vesselId', allow('control-link.configure'), async (req, res) => {
+    await removeSource(base, currentUser(req), vessel(req));
     res.status(204).end();
   });
   router.get('/sources/:vesselId/server-certificate', allow('control-link.configure'), async (req, res) => {
@@ -48,17 +48,17 @@ export function controlLinkRouter(base: AppContext): Router {
   router.post('/sources/:vesselId/trust', allow('control-link.configure'), async (req, res) => {
     res.json(VesselSource.parse(await trustSource(base, currentUser(req), vessel(req), TrustRequest.parse(req.body))));
   });
-  router.get('/settings', allow('control-link.read'), (req, res) => {
-    res.json(LinkSettings.parse(linkSettingsOf(base.db, currentUser(req).siteId)));
+  router.get('/settings', allow('control-link.read'), async (req, res) => {
+    res.json(LinkSettings.parse(await linkSettingsOf(base.db, currentUser(req).siteId)));
   });
-  router.patch('/settings', allow('control-link.configure'), (req, res) => {
-    res.json(LinkSettings.parse(changeLinkSettings(base, currentUser(req), LinkSettingsPatch.parse(req.body))));
+  router.patch('/settings', allow('control-link.configure'), async (req, res) => {
+    res.json(LinkSettings.parse(await changeLinkSettings(base, currentUser(req), LinkSettingsPatch.parse(req.body))));
   });
-  router.get('/status', allow('batches.read'), (req, res) => {
-    res.json(LinkStatusList.parse(linkStatus(base, currentUser(req))));
+  router.get('/status', allow('batches.read'), async (req, res) => {
+    res.json(LinkStatusList.parse(await linkStatus(base, currentUser(req))));
   });
-  router.get('/batches/:id', allow('batches.read'), (req, res) => {
-    res.json(BatchLink.parse(batchLinkOf(base, currentUser(req), IdParam.parse(req.params).id)));
+  router.get('/batches/:id', allow('batches.read'), async (req, res) => {
+    res.json(BatchLink.parse(await batchLinkOf(base, currentUser(req), IdParam.parse(req.params).id)));
   });
   return router;
 }

@@ -7,13 +7,13 @@ import type { AppContext } from '../context';
 
 export function deviationsRouter(s: AppContext): Router {
   const router = Router();
-  router.post('/:id/acknowledge', allow('deviations.acknowledge'), (req, res) => {
+  router.post('/:id/acknowledge', allow('deviations.acknowledge'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(Deviation.parse(acknowledgeDeviation(s, currentUser(req), id, DeviationAcknowledge.parse(req.body))));
+    res.json(Deviation.parse(await acknowledgeDeviation(s, currentUser(req), id, DeviationAcknowledge.parse(req.body))));
   });
-  router.post('/:id/close', allow('deviations.close'), (req, res) => {
+  router.post('/:id/close', allow('deviations.close'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(Deviation.parse(closeDeviation(s, currentUser(req), id, DeviationClose.parse(req.body))));
+    res.json(Deviation.parse(await closeDeviation(s, currentUser(req), id, DeviationClose.parse(req.body))));
   });
   return router;
 }

@@ -7,17 +7,17 @@ import type { AppContext } from '../context';
 
 export function enzymesRouter(s: AppContext): Router {
   const router = Router();
-  router.get('/', allow('enzymes.read'), (req, res) => {
-    res.json(EnzymeList.parse(listEnzymes(s, currentUser(req), EnzymeQuery.parse(req.query))));
+  router.get('/', allow('enzymes.read'), async (req, res) => {
+    res.json(EnzymeList.parse(await listEnzymes(s, currentUser(req), EnzymeQuery.parse(req.query))));
   });
-  router.post('/', allow('lots.edit'), (req, res) => {
-    res.status(201).json(Enzyme.parse(createEnzyme(s, currentUser(req), EnzymeInput.parse(req.body))));
+  router.post('/', allow('lots.edit'), async (req, res) => {
+    res.status(201).json(Enzyme.parse(await createEnzyme(s, currentUser(req), EnzymeInput.parse(req.body))));
   });
-  router.get('/:id', allow('enzymes.read'), (req, res) => {
-    res.json(EnzymeDetail.parse(getEnzyme(s, currentUser(req), IdParam.parse(req.params).id)));
+  router.get('/:id', allow('enzymes.read'), async (req, res) => {
+    res.json(EnzymeDetail.parse(await getEnzyme(s, currentUser(req), IdParam.parse(req.params).id)));
   });
-  router.patch('/:id', allow('lots.edit'), (req, res) => {
-    res.json(Enzyme.parse(changeEnzyme(s, currentUser(req), IdParam.parse(req.params).id, EnzymeUpdate.parse(req.body))));
+  router.patch('/:id', allow('lots.edit'), async (req, res) => {
+    res.json(Enzyme.parse(await changeEnzyme(s, currentUser(req), IdParam.parse(req.params).id, EnzymeUpdate.parse(req.body))));
   });
   return router;
 }

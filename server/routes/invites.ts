@@ -7,19 +7,19 @@ import type { AppContext } from '../context';
 
 export function invitesRouter(ctx: AppContext): Router {
   const router = Router();
-  router.get('/', allow('people.manage'), (req, res) => {
-    res.json(InviteList.parse(listInvites(ctx, currentUser(req))));
+  router.get('/', allow('people.manage'), async (req, res) => {
+    res.json(InviteList.parse(await listInvites(ctx, currentUser(req))));
   });
-  router.post('/', allow('people.manage'), (req, res) => {
-    res.status(201).json(Invite.parse(createInvite(ctx, currentUser(req), CreateInvite.parse(req.body))));
+  router.post('/', allow('people.manage'), async (req, res) => {
+    res.status(201).json(Invite.parse(await createInvite(ctx, currentUser(req), CreateInvite.parse(req.body))));
   });
-  router.delete('/:id', allow('people.manage'), (req, res) => {
-    revokeInvite(ctx, currentUser(req), IdParam.parse(req.params).id);
+  router.delete('/:id', allow('people.manage'), async (req, res) => {
+    await revokeInvite(ctx, currentUser(req), IdParam.parse(req.params).id);
     res.status(204).end();
   });
   // Open: the invited person has no account yet; the link's token (in the body, kept out of logs) is the key.
-  router.post('/preview', open, (req, res) => {
-    res.json(InvitePreview.parse(previewInvite(ctx, InviteToken.parse(req.body).token)));
+  router.post('/preview', open, async (req, res) => {
+    res.json(InvitePreview.parse(await previewInvite(ctx, InviteToken.parse(req.body).token)));
   });
   router.post('/accept', open, async (req, res) => {
     res.status(201).json(InviteAccepted.parse(await acceptInvite(ctx, AcceptInvite.parse(req.body))));

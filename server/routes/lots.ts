@@ -15,28 +15,28 @@ const attachment = (name: string) => `attachment; filename="${name.replace(/["\\
 
 export function lotsRouter(s: AppContext): Router {
   const router = Router();
-  router.get('/', allow('lots.read'), (req, res) => {
-    res.json(LotList.parse({ lots: listLots(s, currentUser(req), LotQuery.parse(req.query)) }));
+  router.get('/', allow('lots.read'), async (req, res) => {
+    res.json(LotList.parse({ lots: await listLots(s, currentUser(req), LotQuery.parse(req.query)) }));
   });
-  router.post('/', allow('lots.edit'), (req, res) => {
-    res.status(201).json(Lot.parse(createLot(s, currentUser(req), LotInput.parse(req.body))));
+  router.post('/', allow('lots.edit'), async (req, res) => {
+    res.status(201).json(Lot.parse(await createLot(s, currentUser(req), LotInput.parse(req.body))));
   });
   router.get('/assay-template', allow('lots.read'), (_req, res) => {
     res.type('text/csv').set('content-disposition', attachment('assay-template.csv')).send(ASSAY_TEMPLATE_CSV);
   });
-  router.get('/:id', allow('lots.read'), (req, res) => {
-    res.json(LotDetail.parse(getLot(s, currentUser(req), IdParam.parse(req.params).id)));
+  router.get('/:id', allow('lots.read'), async (req, res) => {
+    res.json(LotDetail.parse(await getLot(s, currentUser(req), IdParam.parse(req.params).id)));
   });
-  router.post('/:id/decision', allow('lots.decide'), (req, res) => {
+  router.post('/:id/decision', allow('lots.decide'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(LotDetail.parse(decideLot(s, currentUser(req), id, LotDecision.parse(req.body))));
+    res.json(LotDetail.parse(await decideLot(s, currentUser(req), id, LotDecision.parse(req.body))));
   });
-  router.post('/:id/certificate', allow('lots.edit'), singleFile('file', MAX_CERTIFICATE_BYTES), (req, res) => {
+  router.post('/:id/certificate', allow('lots.edit'), singleFile('file', MAX_CERTIFICATE_BYTES), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.status(201).json(CertificateFile.parse(attachCertificate(s, currentUser(req), id, req.file)));
+    res.status(201).json(CertificateFile.parse(await attachCertificate(s, currentUser(req), id, req.file)));
   });
-  router.get('/:id/certificate', allow('lots.read'), (req, res) => {
-    const { file, bytes } = readCertificate(s, currentUser(req), IdParam.parse(req.params).id);
+  router.get('/:id/certificate', allow('lots.read'), async (req, res) => {
+    const { file, bytes } = await readCertificate(s, currentUser(req), IdParam.parse(req.params).id);
     res
       .type(file.mimeType)
       .set({ 'content-disposition': attachment(file.fileName), 'x-sha256': file.sha256 })
@@ -57,9 +57,9 @@ export function lotsRouter(s: AppContext): Router {
       : await addAssay(s, currentUser(req), id, () => ({ kind: 'assay-table', input: AssayTableInput.parse(req.body) }), null);
     res.status(201).json(Assay.parse(assay));
   });
-  router.get('/:id/assays/:assayId/csv', allow('lots.read'), (req, res) => {
+  router.get('/:id/assays/:assayId/csv', allow('lots.read'), async (req, res) => {
     const { id, assayId } = AssayParam.parse(req.params);
-    const { fileName, csv } = exportAssayCsv(s, currentUser(req), id, assayId);
+    const { fileName, csv } = await exportAssayCsv(s, currentUser(req), id, assayId);
     res.type('text/csv').set('content-disposition', attachment(fileName)).send(csv);
   });
   return router;

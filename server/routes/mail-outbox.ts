@@ -7,11 +7,11 @@ import type { AppContext } from '../context';
 
 export function mailOutboxRouter(s: AppContext): Router {
   const router = Router();
-  router.get('/', allow('mail-outbox.manage'), (req, res) => {
-    res.json(Outbox.parse(siteOutbox(s.db, currentUser(req))));
+  router.get('/', allow('mail-outbox.manage'), async (req, res) => {
+    res.json(Outbox.parse(await siteOutbox(s.db, currentUser(req))));
   });
-  router.post('/:id/retry', allow('mail-outbox.manage'), (req, res) => {
-    const message = retryMail(s.db, s.clock, currentUser(req), IdParam.parse(req.params).id);
+  router.post('/:id/retry', allow('mail-outbox.manage'), async (req, res) => {
+    const message = await retryMail(s.db, s.clock, currentUser(req), IdParam.parse(req.params).id);
     s.mail?.kick();
     res.json(OutboxMessage.parse(message));
   });

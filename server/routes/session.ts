@@ -53,11 +53,11 @@ export function sessionRouter(opts: AppContext): Router {
     res.json(SessionState.parse({ user: req.user ?? null }));
   });
 
-  router.patch('/', allow('session.own'), (req, res) => {
+  router.patch('/', allow('session.own'), async (req, res) => {
     UpdateMe.parse(req.body);
     const user = currentUser(req);
-    acknowledgeCautions(opts, user);
-    res.json(Session.parse({ user: loadSessionUser(opts.db, user.id) }));
+    await acknowledgeCautions(opts, user);
+    res.json(Session.parse({ user: await loadSessionUser(opts.db, user.id) }));
   });
 
   // A stolen session cannot guess the current password faster than sign-in allows.
@@ -75,8 +75,8 @@ export function sessionRouter(opts: AppContext): Router {
     res.status(204).end();
   });
 
-  router.delete('/', allow('session.own'), (req, res) => {
-    signOut(opts, req.sessionId!, currentUser(req));
+  router.delete('/', allow('session.own'), async (req, res) => {
+    await signOut(opts, req.sessionId!, currentUser(req));
     res.clearCookie(SESSION_COOKIE, { path: '/' });
     res.status(204).end();
   });

@@ -6,10 +6,10 @@ import type { AppContext } from '../context';
 
 export function siteRouter(s: AppContext): Router {
   return Router()
-    .get('/', allow('site.read'), (req, res) => {
-      res.json(SiteSummary.parse(siteSummary(s, currentUser(req))));
+    .get('/', allow('site.read'), async (req, res) => {
+      res.json(SiteSummary.parse(await siteSummary(s, currentUser(req))));
     })
-    .patch('/', allow('site.edit'), (req, res) => {
-      res.json(SiteSummary.parse(changeSite(s, currentUser(req), SitePatch.parse(req.body))));
+    .patch('/', allow('site.edit'), async (req, res) => {
+      res.json(SiteSummary.parse(await changeSite(s, currentUser(req), SitePatch.parse(req.body))));
     });
 }

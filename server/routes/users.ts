@@ -9,12 +9,12 @@ import type { AppContext } from '../context';
 
 export function usersRouter(s: AppContext): Router {
   const router = Router();
-  router.get('/', allow('people.manage'), (req, res) => {
-    res.json(UserList.parse({ users: listUsers(s, currentUser(req)) }));
+  router.get('/', allow('people.manage'), async (req, res) => {
+    res.json(UserList.parse({ users: await listUsers(s, currentUser(req)) }));
   });
-  router.patch('/:id', allow('people.manage'), (req, res) => {
+  router.patch('/:id', allow('people.manage'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(User.parse(changeUser(s, currentUser(req), id, UpdateUser.parse(req.body))));
+    res.json(User.parse(await changeUser(s, currentUser(req), id, UpdateUser.parse(req.body))));
   });
   router.post('/:id/password-reset', allow('people.manage'), async (req, res) => {
     const { id } = IdParam.parse(req.params);

@@ -7,15 +7,15 @@ import type { AppContext } from '../context';
 
 export function vesselsRouter(s: AppContext): Router {
   const router = Router();
-  router.get('/', allow('vessels.read'), (req, res) => {
-    res.json(VesselList.parse({ vessels: listVessels(s, currentUser(req)) }));
+  router.get('/', allow('vessels.read'), async (req, res) => {
+    res.json(VesselList.parse({ vessels: await listVessels(s, currentUser(req)) }));
   });
-  router.post('/', allow('vessels.edit'), (req, res) => {
-    res.status(201).json(Vessel.parse(createVessel(s, currentUser(req), VesselInput.parse(req.body))));
+  router.post('/', allow('vessels.edit'), async (req, res) => {
+    res.status(201).json(Vessel.parse(await createVessel(s, currentUser(req), VesselInput.parse(req.body))));
   });
-  router.patch('/:id', allow('vessels.edit'), (req, res) => {
+  router.patch('/:id', allow('vessels.edit'), async (req, res) => {
     const { id } = IdParam.parse(req.params);
-    res.json(Vessel.parse(changeVessel(s, currentUser(req), id, VesselPatch.parse(req.body))));
+    res.json(Vessel.parse(await changeVessel(s, currentUser(req), id, VesselPatch.parse(req.body))));
   });
   return router;
 }

@@ -22,16 +22,16 @@ export async function addAssay(
   job: () => DistributiveOmit<AssayJob, 'tRefC'>,
   fileName: string | null,
 ): Promise<Assay> {
-  const found = findSiteLot(db, u.siteId, lotId);
+  const found = await findSiteLot(db, u.siteId, lotId);
   if (!found) throw notFound('Lot');
-  const enzyme = findSiteEnzyme(db, u.siteId, found.lot.enzymeId)!;
+  const enzyme = (await findSiteEnzyme(db, u.siteId, found.lot.enzymeId))!;
   // Read after the lot check, so another site's lot id answers 404 whatever the file holds.
   const task = job();
   const source = task.kind === 'assay-csv' ? 'csv' : 'table';
   const { checked, fit: result } = await runImport({ ...task, tRefC: enzyme.tRefC } as AssayJob);
   const now = clock.now();
-  const id = writeTx(db, (tx) => {
-    const row = insertAssay(
+  const id = await writeTx(db, async (tx) => {
+    const row = await insertAssay(
       tx,
       {
         siteId: u.siteId,
@@ -48,7 +48,7 @@ export async function addAssay(
       },
       checked.points,
     );
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -69,14 +69,14 @@ export async function addAssay(
     });
     return row.id;
   });
-  return listLotAssayViews(db, u, lotId, enzyme.specTempC).find((a) => a.id === id)!;
+  return (await listLotAssayViews(db, u, lotId, enzyme.specTempC)).find((a) => a.id === id)!;
 }
 
 /** All points of one assay as CSV, text cells escaped against spreadsheet formulas. */
-export function exportAssayCsv({ db }: Services, u: SessionUser, lotId: number, assayId: number): { fileName: string; csv: string } {
-  const found = findSiteLot(db, u.siteId, lotId);
+export async function exportAssayCsv({ db }: Services, u: SessionUser, lotId: number, assayId: number): Promise<{ fileName: string; csv: string }> {
+  const found = await findSiteLot(db, u.siteId, lotId);
   if (!found) throw notFound('Lot');
-  const assay = findLotAssay(db, u.siteId, lotId, assayId);
+  const assay = await findLotAssay(db, u.siteId, lotId, assayId);
   if (!assay) throw notFound('Assay');
-  return { fileName: `${found.lot.lotCode.replace(/[^\w.-]/g, '_')}-assay-${assay.id}.csv`, csv: assayPointsCsv(listAssayPoints(db, assay.id)) };
+  return { fileName: `${found.lot.lotCode.replace(/[^\w.-]/g, '_')}-assay-${assay.id}.csv`, csv: assayPointsCsv(await listAssayPoints(db, assay.id)) };
 }

@@ -1,20 +1,22 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import type Database from 'better-sqlite3';
+import { databaseOf, installationDir, type Db } from '../../db/client';
 
 /**
  * Signed checkpoints of the audit chains, kept outside the database: one JSON line per checkpoint in
- * `audit-checkpoints.jsonl` beside the database file (in memory for an in-memory database). Each names a site's
+ * `audit-checkpoints.jsonl` in the installation's folder (in memory for an in-memory database). Each names a site's
  * event count, last event id and head hash at a moment, with an HMAC made with a key derived from the audit key,
  * so deleting the newest events or rebuilding the chain no longer matches what was sealed.
  */
 export type Checkpoint = { siteId: number | null; events: number; lastId: number; head: string; at: string };
 type Stored = Checkpoint & { mac: string };
 
-const memory = new WeakMap<Database.Database, string[]>();
-const fileOf = (client: Database.Database) =>
-  client.name && client.name !== ':memory:' ? path.join(path.dirname(path.resolve(client.name)), 'audit-checkpoints.jsonl') : null;
+const memory = new WeakMap<object, string[]>();
+const fileOf = (db: Db) => {
+  const dir = installationDir(db);
+  return dir ? path.join(dir, 'audit-checkpoints.jsonl') : null;
+};
 
 const macOf = (key: Buffer, c: Checkpoint) => {
   const sealKey = crypto.createHmac('sha256', key).update('yieldpoint audit checkpoint').digest();
@@ -24,9 +26,9 @@ const macOf = (key: Buffer, c: Checkpoint) => {
     .digest('hex');
 };
 
-function lines(client: Database.Database): string[] {
-  const file = fileOf(client);
-  if (!file) return memory.get(client) ?? [];
+function lines(db: Db): string[] {
+  const file = fileOf(db);
+  if (!file) return memory.get(databaseOf(db)) ?? [];
   try {
     return fs.readFileSync(file, 'utf8').split('\n').filter(Boolean);
   } catch (e) {
@@ -44,10 +46,10 @@ const parse = (line: string): Partial<Stored> | null => {
 };
 
 /** The site's checkpoints whose signature holds, oldest first, and how many lines for it do not verify. */
-export function readCheckpoints(client: Database.Database, key: Buffer, siteId: number | null): { valid: Checkpoint[]; forged: number } {
+export function readCheckpoints(db: Db, key: Buffer, siteId: number | null): { valid: Checkpoint[]; forged: number } {
   const valid: Checkpoint[] = [];
   let forged = 0;
-  for (const line of lines(client)) {
+  for (const line of lines(db)) {
     const c = parse(line);
     if (!c || (c.siteId ?? null) !== siteId) {
       if (!c) forged++;
@@ -62,14 +64,15 @@ export function readCheckpoints(client: Database.Database, key: Buffer, siteId: 
 }
 
 /** Whether any checkpoint line names this site (signed or not): such a chain is never re-linked. */
-export const hasCheckpoint = (client: Database.Database, siteId: number | null) => lines(client).some((l) => (parse(l)?.siteId ?? null) === siteId);
+export const hasCheckpoint = (db: Db, siteId: number | null) => lines(db).some((l) => (parse(l)?.siteId ?? null) === siteId);
 
 /** Appends one checkpoint and flushes it to disk before returning. */
-export function appendCheckpoint(client: Database.Database, key: Buffer, c: Checkpoint): void {
+export function appendCheckpoint(db: Db, key: Buffer, c: Checkpoint): void {
   const line = `${JSON.stringify({ ...c, mac: macOf(key, c) })}\n`;
-  const file = fileOf(client);
+  const file = fileOf(db);
   if (!file) {
-    memory.set(client, [...(memory.get(client) ?? []), line.trim()]);
+    const database = databaseOf(db);
+    memory.set(database, [...(memory.get(database) ?? []), line.trim()]);
     return;
   }
   const fd = fs.openSync(file, 'a', 0o600);

@@ -1,5 +1,4 @@
 import type { Db } from '../../db/client';
-import { clientOf } from '../../db/client';
 import type { AuditProblem, AuditVerification } from '../../src/contracts/audit-events';
 import { auditCountUpTo, auditHeads, listAuditAfter, listAuditOfActions, type AuditRow } from '../repositories/audit';
 import { nextTurn } from '../next-turn';
@@ -14,16 +13,21 @@ import { recordHash } from './change-requests';
  * Seals every chain whose head moved since its last checkpoint (or `siteId`'s only): a signed line with its
  * count, last id and head hash, written outside the database. Called at intervals, at start and on demand.
  */
-export function sealAudit(db: Db, at: Date, siteId?: number | null): Checkpoint[] {
+export async function sealAudit(db: Db, at: Date, siteId?: number | null): Promise<Checkpoint[]> {
   const key = auditKeyOf(db);
-  const client = clientOf(db);
   const written: Checkpoint[] = [];
-  for (const h of auditHeads(db)) {
+  for (const h of await auditHeads(db)) {
     if (siteId !== undefined && h.siteId !== siteId) continue;
-    const last = readCheckpoints(client, key, h.siteId).valid.at(-1);
+    const last = readCheckpoints(db, key, h.siteId).valid.at(-1);
     if (last && last.lastId === h.lastId && last.events === h.events) continue;
-    const c: Checkpoint = { siteId: h.siteId, events: h.events, lastId: h.lastId, head: auditCountUpTo(db, h.siteId, h.lastId).hash!, at: at.toISOString() };
-    appendCheckpoint(client, key, c);
+    const c: Checkpoint = {
+      siteId: h.siteId,
+      events: h.events,
+      lastId: h.lastId,
+      head: (await auditCountUpTo(db, h.siteId, h.lastId)).hash!,
+      at: at.toISOString(),
+    };
+    appendCheckpoint(db, key, c);
     written.push(c);
   }
   return written;
@@ -37,10 +41,10 @@ const EVENTS_PER_STEP = 500;
  * deleted newest event or a rebuilt chain no longer matches), and the current state of signed and decided
  * records against their last audited state (lot decisions, signatures, change requests).
  */
-export function verifyAudit(db: Db, siteId: number | null): AuditVerification {
+export async function verifyAudit(db: Db, siteId: number | null): Promise<AuditVerification> {
   const steps = verifySteps(db, siteId);
   for (;;) {
-    const r = steps.next();
+    const r = await steps.next();
     if (r.done) return r.value;
   }
 }
@@ -49,21 +53,21 @@ export function verifyAudit(db: Db, siteId: number | null): AuditVerification {
 export async function verifyAuditInTurns(db: Db, siteId: number | null): Promise<AuditVerification> {
   const steps = verifySteps(db, siteId);
   for (;;) {
-    const r = steps.next();
+    const r = await steps.next();
     if (r.done) return r.value;
     await nextTurn();
   }
 }
 
 // Events only ever follow the newest: one read in pages by id sees the chain as it stood, plus any appended meanwhile.
-function* verifySteps(db: Db, siteId: number | null): Generator<void, AuditVerification> {
+async function* verifySteps(db: Db, siteId: number | null): AsyncGenerator<void, AuditVerification> {
   const key = auditKeyOf(db);
   const problems: AuditProblem[] = [];
   let firstBrokenId: number | null = null;
   let prev = GENESIS;
   let events = 0;
   for (let after = 0, broken = false; !broken;) {
-    const rows = listAuditAfter(db, siteId, after, EVENTS_PER_STEP);
+    const rows = await listAuditAfter(db, siteId, after, EVENTS_PER_STEP);
     events += rows.length;
     for (const r of rows) {
       if (!broken && (r.prevHash !== prev || eventHash(key, r) !== r.hash)) {
@@ -82,14 +86,14 @@ function* verifySteps(db: Db, siteId: number | null): Generator<void, AuditVerif
     yield;
   }
   // A broken chain still counts every event (the count the answer gives).
-  if (firstBrokenId !== null) events = auditCountUpTo(db, siteId, Number.MAX_SAFE_INTEGER).events;
+  if (firstBrokenId !== null) events = (await auditCountUpTo(db, siteId, Number.MAX_SAFE_INTEGER)).events;
   yield;
-  const { valid, forged } = readCheckpoints(clientOf(db), key, siteId);
+  const { valid, forged } = readCheckpoints(db, key, siteId);
   if (forged)
     problems.push({ kind: 'checkpoint', eventId: null, message: `${forged} checkpoint line${forged > 1 ? 's do' : ' does'} not carry a valid signature` });
   for (const c of valid) {
     yield;
-    const now = auditCountUpTo(db, siteId, c.lastId);
+    const now = await auditCountUpTo(db, siteId, c.lastId);
     if (now.hash !== c.head || now.events !== c.events) {
       problems.push({
         kind: 'checkpoint',
@@ -102,7 +106,7 @@ function* verifySteps(db: Db, siteId: number | null): Generator<void, AuditVerif
     }
   }
   yield;
-  if (siteId !== null) problems.push(...recordProblems(db, siteId));
+  if (siteId !== null) problems.push(...(await recordProblems(db, siteId)));
   const last = valid.at(-1);
   return { ok: problems.length === 0, events, firstBrokenId, checkpoints: valid.length, lastCheckpointAt: last?.at ?? null, problems };
 }
@@ -117,10 +121,10 @@ const lastBy = (events: AuditRow[], keyOf: (e: AuditRow) => string | null) => {
 };
 const nv = (e: AuditRow) => (e.newValue ?? {}) as Record<string, unknown>;
 
-function recordProblems(db: Db, siteId: number): AuditProblem[] {
+async function recordProblems(db: Db, siteId: number): Promise<AuditProblem[]> {
   const out: AuditProblem[] = [];
   const record = (eventId: number | null, message: string) => out.push({ kind: 'record', eventId, message });
-  const events = listAuditOfActions(db, siteId, [
+  const events = await listAuditOfActions(db, siteId, [
     'lot.create',
     'lot.accept',
     'lot.reject',
@@ -138,7 +142,7 @@ function recordProblems(db: Db, siteId: number): AuditProblem[] {
     (e) => e.entityId,
   );
   const created = new Set(events.filter((e) => e.action === 'lot.create').map((e) => e.entityId));
-  for (const { lot } of listSiteLots(db, siteId)) {
+  for (const { lot } of await listSiteLots(db, siteId)) {
     const e = lotEvents.get(String(lot.id));
     if (e) {
       if (lot.status !== nv(e).status || lot.decisionReason !== nv(e).reason)
@@ -155,7 +159,7 @@ function recordProblems(db: Db, siteId: number): AuditProblem[] {
     events.filter((e) => e.action === 'signature.create'),
     (e) => (nv(e).signatureId == null ? null : String(nv(e).signatureId)),
   );
-  for (const s of listSiteSignatures(db, siteId)) {
+  for (const s of await listSiteSignatures(db, siteId)) {
     const e = signed.get(String(s.id));
     if (!e) {
       record(null, `Signature ${s.id} (${s.printedName}) has no audited signing`);
@@ -174,7 +178,7 @@ function recordProblems(db: Db, siteId: number): AuditProblem[] {
     crEvents.filter((e) => e.action === 'change-request.create'),
     (e) => e.entityId,
   );
-  for (const cr of listAllSiteChangeRequests(db, siteId)) {
+  for (const cr of await listAllSiteChangeRequests(db, siteId)) {
     const e = lastCr.get(String(cr.id));
     const c = createdCr.get(String(cr.id));
     if (!e || !c) {
@@ -183,7 +187,7 @@ function recordProblems(db: Db, siteId: number): AuditProblem[] {
     }
     const audited = e.action === 'change-request.create' ? 'proposed' : String(nv(e).status);
     if (cr.status !== audited) record(e.id, `Change request ${cr.id} reads ${cr.status}; its last audited state is ${audited}`);
-    const plan = findSitePlan(db, siteId, cr.planId)?.plan;
+    const plan = (await findSitePlan(db, siteId, cr.planId))?.plan;
     const now = plan ? recordHash(plan, cr) : null;
     if (cr.recordHash !== nv(c).recordHash || now !== nv(c).recordHash)
       record(c.id, `Change request ${cr.id}: its plan or its text changed after it was submitted (the record no longer hashes as submitted)`);

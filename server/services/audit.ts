@@ -1,6 +1,6 @@
 import crypto from 'node:crypto';
 import type Database from 'better-sqlite3';
-import { clientOf, type Db } from '../../db/client';
+import { databaseOf, installationDir, sqliteOf, type Db } from '../../db/client';
 import { sha256 } from '../digest';
 import { installationSecret } from '../installation-secrets';
 import { hasCheckpoint } from './audit-checkpoints';
@@ -34,25 +34,28 @@ export const eventHash = (key: Buffer, e: Hashed): string => crypto.createHmac('
 // Before the chain was keyed (databases written until 2026-12-03): a plain SHA-256 of the same content.
 const legacyHash = (e: Hashed): string => sha256(canonical(e));
 
-const keys = new WeakMap<Database.Database, Buffer>();
+const keys = new WeakMap<object, Buffer>();
 
 /**
- * The audit key of a connection: for a database file, the installation's (`.audit-key` beside the file, made on
- * first use); for an in-memory database, a random one. On first use the chains written before the key existed are
+ * The audit key of a database: the installation's (`.audit-key` in its folder, made on first use); for an
+ * in-memory database, a random one. On first use the chains written before the key existed are
  * re-linked with it (adoptLegacyChains).
  */
 export function auditKeyOf(db: Db): Buffer {
-  const client = clientOf(db);
-  let key = keys.get(client);
+  const database = databaseOf(db);
+  let key = keys.get(database);
   if (key) return key;
-  key = client.name && client.name !== ':memory:' ? installationSecret(client.name, '.audit-key') : crypto.randomBytes(32);
-  keys.set(client, key);
-  adoptLegacyChains(client, key);
+  const dir = installationDir(db);
+  key = dir ? installationSecret(dir, '.audit-key') : crypto.randomBytes(32);
+  keys.set(database, key);
+  // Chains written before the key existed are SQLite files of before 2026-12-03; PostgreSQL came later.
+  const client = sqliteOf(db);
+  if (client) adoptLegacyChains(db, client, key);
   return key;
 }
 
 /** Appends one event to its site's chain. Call inside the write's transaction so both land or neither. */
-export function appendAudit(db: Db, input: AuditInput): AuditRow {
+export async function appendAudit(db: Db, input: AuditInput): Promise<AuditRow> {
   const key = auditKeyOf(db);
   const row = {
     siteId: input.siteId,
@@ -64,9 +67,9 @@ export function appendAudit(db: Db, input: AuditInput): AuditRow {
     oldValue: input.oldValue ?? null,
     newValue: input.newValue ?? null,
     at: input.at.toISOString(),
-    prevHash: lastAuditHash(db, input.siteId) ?? GENESIS,
+    prevHash: (await lastAuditHash(db, input.siteId)) ?? GENESIS,
   };
-  return insertAudit(db, { ...row, hash: eventHash(key, row) });
+  return await insertAudit(db, { ...row, hash: eventHash(key, row) });
 }
 
 type RawRow = {
@@ -102,11 +105,11 @@ const hashedOf = (r: RawRow): Hashed => ({
  * re-linked with the key in one transaction (an `audit.rekeyed` event records it). A chain already broken is left
  * as it is: verify then reports it broken. A chain with a checkpoint is never re-linked.
  */
-function adoptLegacyChains(client: Database.Database, key: Buffer): void {
+function adoptLegacyChains(db: Db, client: Database.Database, key: Buffer): void {
   const hasTable = client.prepare("select 1 from sqlite_master where type = 'table' and name = 'audit_events'").get();
   if (!hasTable) return;
   const heads = client.prepare('select * from audit_events where id in (select max(id) from audit_events group by site_id)').all() as RawRow[];
-  const legacy = heads.filter((h) => legacyHash(hashedOf(h)) === h.hash && !hasCheckpoint(client, h.site_id));
+  const legacy = heads.filter((h) => legacyHash(hashedOf(h)) === h.hash && !hasCheckpoint(db, h.site_id));
   if (!legacy.length) return;
   const rowsOf = client.prepare('select * from audit_events where site_id is ? order by id');
   const relink = client.prepare('update audit_events set prev_hash = ?, hash = ? where id = ?');

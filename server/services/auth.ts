@@ -52,11 +52,11 @@ async function verifiedClaims(secret: Uint8Array, token: string, now: Date): Pro
 /** Checks a password and opens a server-side session; the JWT only names that session. */
 export async function signIn(ctx: AuthContext, req: SignInRequest, from: string): Promise<{ token: string; expiresAt: Date; user: SessionUser }> {
   const { db, clock } = ctx;
-  const user = findUserByEmail(db, req.email);
+  const user = await findUserByEmail(db, req.email);
   const ok = await bcrypt.compare(req.password, user?.passwordHash ?? DUMMY_HASH);
   const now = clock.now();
   if (!user || !ok || !user.isActive) {
-    writeTx(db, (tx) =>
+    await writeTx(db, (tx) =>
       appendAudit(tx, {
         siteId: user?.siteId ?? null,
         userId: user?.id ?? null,
@@ -71,8 +71,8 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
   }
   const sessionId = crypto.randomBytes(24).toString('base64url');
   const expiresAt = new Date(now.getTime() + ctx.auth.absoluteHours * 3_600_000);
-  writeTx(db, (tx) => {
-    insertSession(tx, {
+  await writeTx(db, async (tx) => {
+    await insertSession(tx, {
       id: sessionId,
       userId: user.id,
       role: user.role,
@@ -80,7 +80,7 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
       lastSeenAt: now.toISOString(),
       expiresAt: expiresAt.toISOString(),
     });
-    appendAudit(tx, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-in', entity: 'session', newValue: { from }, at: now });
+    await appendAudit(tx, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-in', entity: 'session', newValue: { from }, at: now });
   });
   const token = await new SignJWT({ sid: sessionId })
     .setProtectedHeader({ alg: 'HS256' })
@@ -88,11 +88,11 @@ export async function signIn(ctx: AuthContext, req: SignInRequest, from: string)
     .setIssuedAt(Math.floor(now.getTime() / 1000))
     .setExpirationTime(Math.floor(expiresAt.getTime() / 1000))
     .sign(sessionKey(ctx.auth.secret));
-  return { token, expiresAt, user: loadSessionUser(db, user.id)! };
+  return { token, expiresAt, user: (await loadSessionUser(db, user.id))! };
 }
 
-export function loadSessionUser(db: Db, userId: number): SessionUser | null {
-  const found = findUserWithSite(db, userId);
+export async function loadSessionUser(db: Db, userId: number): Promise<SessionUser | null> {
+  const found = await findUserWithSite(db, userId);
   return found ? toSessionUser(found) : null;
 }
 
@@ -130,7 +130,7 @@ export async function resolveSession(ctx: AuthContext, token: string): Promise<{
   const claims = await verifiedClaims(ctx.auth.secret, token, now);
   if (!claims) return null;
   const { sid, sub } = claims;
-  const found = findSessionWithUser(ctx.db, sid);
+  const found = await findSessionWithUser(ctx.db, sid);
   if (!found) return null;
   const { session } = found;
   if (session.revokedAt || String(session.userId) !== sub) return null;
@@ -139,23 +139,23 @@ export async function resolveSession(ctx: AuthContext, token: string): Promise<{
   const user = toSessionUser(found);
   if (!user || user.role !== session.role) return null;
   // Writing on every request would serialise reads behind the writer; a minute's resolution is enough.
-  if (now.getTime() - new Date(session.lastSeenAt).getTime() > 60_000) touchQuietly(ctx.db, sid, now);
+  if (now.getTime() - new Date(session.lastSeenAt).getTime() > 60_000) await touchQuietly(ctx.db, sid, now);
   return { sessionId: sid, user };
 }
 
 // Only the idle timeout needs it: a file that cannot be written must not turn a read into an error.
-function touchQuietly(db: Db, sid: string, now: Date): void {
+async function touchQuietly(db: Db, sid: string, now: Date): Promise<void> {
   try {
-    writeTx(db, (tx) => touchSession(tx, sid, now.toISOString()));
+    await writeTx(db, (tx) => touchSession(tx, sid, now.toISOString()));
   } catch (err) {
     if (!(err instanceof DatabaseUnwritable)) throw err;
   }
 }
 
-export function signOut(ctx: AuthContext, sessionId: string, user: SessionUser): void {
+export async function signOut(ctx: AuthContext, sessionId: string, user: SessionUser): Promise<void> {
   const now = ctx.clock.now();
-  writeTx(ctx.db, (tx) => {
-    revokeSession(tx, sessionId, now.toISOString());
-    appendAudit(tx, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-out', entity: 'session', at: now });
+  await writeTx(ctx.db, async (tx) => {
+    await revokeSession(tx, sessionId, now.toISOString());
+    await appendAudit(tx, { siteId: user.siteId, userId: user.id, actor: user.email, action: 'sign-out', entity: 'session', at: now });
   });
 }

@@ -14,28 +14,36 @@ import { toReading } from './readings';
 const DETAIL_READINGS = 5000;
 const LATEST_KEPT = 50;
 
-export function getBatchDetail(s: Services, u: SessionUser, id: number): BatchDetail {
-  const record = batchRecordOf(s.db, loadBatch(s.db, u.siteId, id).batch);
+export async function getBatchDetail(s: Services, u: SessionUser, id: number): Promise<BatchDetail> {
+  const record = await batchRecordOf(s.db, (await loadBatch(s.db, u.siteId, id)).batch);
   const chosen = sampleIndices(
     record.points.map((p) => p.c),
     DETAIL_READINGS,
     LATEST_KEPT,
   );
-  return { ...batchRecord(s, u, id, chosen.length === record.ids.length ? 'all' : chosen.map((i) => record.ids[i]!)), readingsTotal: record.ids.length };
+  return {
+    ...(await batchRecord(s, u, id, chosen.length === record.ids.length ? 'all' : chosen.map((i) => record.ids[i]!))),
+    readingsTotal: record.ids.length,
+  };
 }
 
 /** The batch record with every reading (the report) or the chosen ones (the batch page of a long record). */
-export function batchRecord({ db, clock }: Services, u: SessionUser, id: number, which: 'all' | readonly number[] = 'all'): Omit<BatchDetail, 'readingsTotal'> {
-  const j = loadBatch(db, u.siteId, id);
+export async function batchRecord(
+  { db, clock }: Services,
+  u: SessionUser,
+  id: number,
+  which: 'all' | readonly number[] = 'all',
+): Promise<Omit<BatchDetail, 'readingsTotal'>> {
+  const j = await loadBatch(db, u.siteId, id);
   const b = j.batch;
-  const readings = (which === 'all' ? listReadings(db, b.id) : readingsByIds(db, which)).map((r) => toReading(r.reading, r.enteredBy, b.startedAt));
-  const devs = listDeviations(db, b.id).map(toDeviation);
+  const readings = (await (which === 'all' ? listReadings(db, b.id) : readingsByIds(db, which))).map((r) => toReading(r.reading, r.enteredBy, b.startedAt));
+  const devs = (await listDeviations(db, b.id)).map(toDeviation);
   const now = clock.now().toISOString();
   const needsCorrective = b.state === 'running' && devs.some((d) => d.state !== 'closed' && CORRECTABLE.has(d.kind));
-  const status = statusNow(db, b, now, needsCorrective);
-  const isMine = b.startedBy === u.id || batchesLoggedBy(db, u.id, [b.id]).length > 0;
+  const status = await statusNow(db, b, now, needsCorrective);
+  const isMine = b.startedBy === u.id || (await batchesLoggedBy(db, u.id, [b.id])).length > 0;
   const signed = b.planId
-    ? planSignatures(db, u.siteId, b.planId).map(({ signature: sg, changeRequestId }) => ({
+    ? (await planSignatures(db, u.siteId, b.planId)).map(({ signature: sg, changeRequestId }) => ({
         changeRequestId,
         printedName: sg.printedName,
         role: sg.role,
@@ -45,5 +53,5 @@ export function batchRecord({ db, clock }: Services, u: SessionUser, id: number,
         recordHash: sg.recordHash,
       }))
     : [];
-  return { batch: toBatch(j, isMine), readings, deviations: devs, status, settings: batchSettingsOf(db, u.siteId), signatures: signed, now };
+  return { batch: toBatch(j, isMine), readings, deviations: devs, status, settings: await batchSettingsOf(db, u.siteId), signatures: signed, now };
 }

@@ -4,8 +4,7 @@
 //
 // Readings are only ever added and ids only grow, so the newest id (an index lookup) is the record's version. A
 // record read inside a transaction is not kept: the transaction may roll back and its ids be given out again.
-import type Database from 'better-sqlite3';
-import type { Db } from '../../db/client';
+import { databaseOf, inWriteTx, type Db } from '../../db/client';
 import { batchHours, batchStatus, statusAtHour } from '../../src/batches';
 import type { BatchProgram, BatchStatus } from '../../src/contracts/batches';
 import type { Reading as Point } from '../../src/model';
@@ -24,7 +23,7 @@ export type BatchRecord = {
 };
 
 const KEPT_PER_CONNECTION = 32;
-const kept = new WeakMap<Database.Database, Map<number, BatchRecord>>();
+const kept = new WeakMap<object, Map<number, BatchRecord>>();
 
 type BatchRef = { id: number; startedAt: string };
 
@@ -84,8 +83,8 @@ function merged(old: BatchRecord, added: Added, version: number): BatchRecord {
 }
 
 function keep(db: Db, batchId: number, record: BatchRecord) {
-  let byBatch = kept.get(db.$client);
-  if (!byBatch) kept.set(db.$client, (byBatch = new Map()));
+  let byBatch = kept.get(databaseOf(db));
+  if (!byBatch) kept.set(databaseOf(db), (byBatch = new Map()));
   byBatch.delete(batchId);
   byBatch.set(batchId, record);
   if (byBatch.size > KEPT_PER_CONNECTION) byBatch.delete(byBatch.keys().next().value!);
@@ -103,7 +102,7 @@ const MERGED_PER_TURN = 10_000;
 export async function keepAdded(db: Db, b: BatchRef, base: BatchRecord, added: Added, version: number, withCorrective: BatchStatus | null): Promise<void> {
   const m = merger(base, added);
   while (!m.step(MERGED_PER_TURN)) await nextTurn();
-  if (newestReadingId(db, b.id) !== version) return; // more came meanwhile: the next reader merges from the database
+  if ((await newestReadingId(db, b.id)) !== version) return; // more came meanwhile: the next reader merges from the database
   const record = m.record(version);
   if (withCorrective) {
     record.withCorrective = withCorrective;
@@ -112,22 +111,22 @@ export async function keepAdded(db: Db, b: BatchRef, base: BatchRecord, added: A
   keep(db, b.id, record);
 }
 
-export function batchRecordOf(db: Db, b: BatchRef): BatchRecord {
-  const version = newestReadingId(db, b.id);
-  const hit = kept.get(db.$client)?.get(b.id);
+export async function batchRecordOf(db: Db, b: BatchRef): Promise<BatchRecord> {
+  const version = await newestReadingId(db, b.id);
+  const hit = kept.get(databaseOf(db))?.get(b.id);
   if (hit && hit.version === version) return hit;
   const record =
     hit && hit.version < version
-      ? merged(hit, fromRows(readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version)
-      : { version, ...fromRows(readingPointRows(db, b.id), b.startedAt) };
-  if (db.$client.inTransaction) return record;
+      ? merged(hit, fromRows(await readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version)
+      : { version, ...fromRows(await readingPointRows(db, b.id), b.startedAt) };
+  if (inWriteTx(db)) return record;
   keep(db, b.id, record);
   return record;
 }
 
 /** The batch's status now: the kept integration with the figures that depend on the clock brought up to date. */
-export function statusNow(db: Db, b: BatchRef & { program: BatchProgram }, nowIso: string, withCorrective = false): BatchStatus {
-  const record = batchRecordOf(db, b);
+export async function statusNow(db: Db, b: BatchRef & { program: BatchProgram }, nowIso: string, withCorrective = false): Promise<BatchStatus> {
+  const record = await batchRecordOf(db, b);
   const nowH = batchHours(b.startedAt, nowIso);
   // Neither the integration nor the corrective setpoint (from the state at the last reading) depends on the clock.
   const base = withCorrective

@@ -14,8 +14,8 @@ const REPORT_PAGE = 5_000;
  * The batch record as section/field/value rows: recipe, plan, status, readings and deviations, spreadsheet-safe.
  * The batch is checked at once (not found, wrong site); the CSV itself comes in parts.
  */
-export function batchReportCsv(s: Services, u: SessionUser, id: number): { filename: string; parts: AsyncGenerator<string> } {
-  const record = batchRecord(s, u, id, []);
+export async function batchReportCsv(s: Services, u: SessionUser, id: number): Promise<{ filename: string; parts: AsyncGenerator<string> }> {
+  const record = await batchRecord(s, u, id, []);
   return { filename: `batch-${record.batch.id}.csv`, parts: reportParts(s, record) };
 }
 
@@ -62,7 +62,7 @@ async function* reportParts(s: Services, record: Omit<BatchDetail, 'readingsTota
   yield csvLines([['section', 'field', 'value', 'detail'], ...rows]);
   for (let after: { takenAt: string; id: number } | null = null; ;) {
     await nextTurn();
-    const page = readingsAfter(s.db, b.id, REPORT_PAGE, after);
+    const page = await readingsAfter(s.db, b.id, REPORT_PAGE, after);
     if (page.length)
       yield csvLines(page.map(({ reading: r, enteredBy }) => ['reading', r.takenAt, r.c, `degC; ${r.source}; ${enteredBy}${r.note ? `; ${r.note}` : ''}`]));
     if (page.length < REPORT_PAGE) break;

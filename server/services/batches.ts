@@ -44,18 +44,18 @@ const LATE_START_LIMIT_H = 7 * 24;
 
 // Settings -----------------------------------------------------------------------------------------------
 
-export function batchSettingsOf(db: Db, siteId: number): BatchSettings {
-  const row = findBatchSettings(db, siteId);
+export async function batchSettingsOf(db: Db, siteId: number): Promise<BatchSettings> {
+  const row = await findBatchSettings(db, siteId);
   return row ? { toleranceC: row.toleranceC, gapLimitMin: row.gapLimitMin } : { ...DEFAULT_BATCH_SETTINGS };
 }
 
-export function changeBatchSettings({ db, clock }: Services, u: SessionUser, patch: BatchSettingsPatch): BatchSettings {
-  const before = batchSettingsOf(db, u.siteId);
+export async function changeBatchSettings({ db, clock }: Services, u: SessionUser, patch: BatchSettingsPatch): Promise<BatchSettings> {
+  const before = await batchSettingsOf(db, u.siteId);
   const after = { ...before, ...patch };
   const now = clock.now();
-  writeTx(db, (tx) => {
-    upsertBatchSettings(tx, { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
-    appendAudit(tx, {
+  await writeTx(db, async (tx) => {
+    await upsertBatchSettings(tx, { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -92,31 +92,32 @@ export const toBatch = (j: BatchJoined, isMine: boolean): Batch => ({
   isMine,
 });
 
-export function loadBatch(db: Db, siteId: number, id: number): BatchJoined {
-  const found = findSiteBatch(db, siteId, id);
+export async function loadBatch(db: Db, siteId: number, id: number): Promise<BatchJoined> {
+  const found = await findSiteBatch(db, siteId, id);
   if (!found) throw notFound('Batch');
   return found;
 }
 
-export function runningBatch(db: Db, siteId: number, id: number): BatchJoined {
-  const j = loadBatch(db, siteId, id);
+export async function runningBatch(db: Db, siteId: number, id: number): Promise<BatchJoined> {
+  const j = await loadBatch(db, siteId, id);
   if (j.batch.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is closed; readings can no longer be added');
   return j;
 }
 
 // Reads --------------------------------------------------------------------------------------------------
 
-export function listBatches({ db, clock }: Services, u: SessionUser): BatchSummary[] {
-  const rows = listSiteBatches(db, u.siteId);
+export async function listBatches({ db, clock }: Services, u: SessionUser): Promise<BatchSummary[]> {
+  const rows = await listSiteBatches(db, u.siteId);
   const ids = rows.map((r) => r.batch.id);
-  const logged = new Set(batchesLoggedBy(db, u.id, ids));
-  const active = new Map(countActiveDeviations(db, ids).map((r) => [r.batchId, r.n]));
-  const last = new Map(lastReadingTimes(db, ids).map((r) => [r.batchId, r.last]));
+  const logged = new Set(await batchesLoggedBy(db, u.id, ids));
+  const active = new Map((await countActiveDeviations(db, ids)).map((r) => [r.batchId, r.n]));
+  const last = new Map((await lastReadingTimes(db, ids)).map((r) => [r.batchId, r.last]));
   const now = clock.now().toISOString();
-  return rows.map((j) => {
+  const out: BatchSummary[] = [];
+  for (const j of rows) {
     const b = j.batch;
-    const forecast = b.state === 'closed' && b.forecastAtCloseGPerL !== null ? b.forecastAtCloseGPerL : statusNow(db, b, now).forecastGPerL;
-    return {
+    const forecast = b.state === 'closed' && b.forecastAtCloseGPerL !== null ? b.forecastAtCloseGPerL : (await statusNow(db, b, now)).forecastGPerL;
+    out.push({
       id: b.id,
       recipeName: j.recipeName,
       vesselName: j.vesselName,
@@ -132,19 +133,20 @@ export function listBatches({ db, clock }: Services, u: SessionUser): BatchSumma
       plannedProductGPerL: b.program.plannedProductGPerL,
       forecastGPerL: forecast,
       measuredProductGPerL: b.measuredProductGPerL,
-    };
-  });
+    });
+  }
+  return out;
 }
 
 // Start and close ----------------------------------------------------------------------------------------
 
-export function startBatch({ db, clock }: Services, u: SessionUser, input: BatchStart): Batch {
-  const found = findSiteRecipe(db, u.siteId, input.recipeId);
+export async function startBatch({ db, clock }: Services, u: SessionUser, input: BatchStart): Promise<Batch> {
+  const found = await findSiteRecipe(db, u.siteId, input.recipeId);
   if (!found) throw new HttpError(400, 'invalid_input', 'No such recipe at this site', { recipeId: 'Choose a recipe' });
   const { recipe } = found;
-  const vessel = findSiteVessel(db, u.siteId, input.vesselId);
+  const vessel = await findSiteVessel(db, u.siteId, input.vesselId);
   if (!vessel) throw new HttpError(400, 'invalid_input', 'No such vessel at this site', { vesselId: 'Choose a vessel' });
-  const lot = acceptedLot(db, u.siteId, input.lotId);
+  const lot = await acceptedLot(db, u.siteId, input.lotId);
   if (lot.enzymeId !== recipe.enzymeId)
     throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
   const now = clock.now();
@@ -153,16 +155,16 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
     throw new HttpError(400, 'invalid_input', 'The start is in the future', { startedAt: 'A batch cannot start in the future' });
   if (startMs < now.getTime() - LATE_START_LIMIT_H * 3_600_000)
     throw new HttpError(400, 'invalid_input', 'The start is more than a week ago', { startedAt: 'At most a week ago' });
-  if (runningBatchOnVessel(db, u.siteId, vessel.id))
+  if (await runningBatchOnVessel(db, u.siteId, vessel.id))
     throw new HttpError(409, 'vessel_busy', `${vessel.name} already has a running batch`, { vesselId: 'This vessel already has a running batch' });
   // The release in effect on the batch's start day, not necessarily the newest approval (its date may be ahead).
-  const release = releaseInEffect(db, recipe, new Date(startMs), u.siteTimeZone);
-  const plan = release.planId ? getPlan({ db, clock }, u, release.planId) : null;
-  const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
+  const release = await releaseInEffect(db, recipe, new Date(startMs), u.siteTimeZone);
+  const plan = release.planId ? await getPlan({ db, clock }, u, release.planId) : null;
+  const enzyme = (await findSiteEnzyme(db, u.siteId, recipe.enzymeId))!;
   const program = batchProgram({
     recipe: { ...recipe, currentSetpointC: release.setpointC },
     enzyme,
-    lot: planningLot(db, u.siteId, lot, recipe.id),
+    lot: await planningLot(db, u.siteId, lot, recipe.id),
     vessel,
     plan,
   });
@@ -175,8 +177,8 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
       { vesselId: 'The plan does not fit this vessel' },
     );
   const startedAt = new Date(startMs).toISOString();
-  return writeTx(db, (t) => {
-    const row = insertBatch(t, {
+  return writeTx(db, async (t) => {
+    const row = await insertBatch(t, {
       siteId: u.siteId,
       recipeId: recipe.id,
       vesselId: vessel.id,
@@ -188,7 +190,7 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
       startedAt,
       startedBy: u.id,
     });
-    appendAudit(t, {
+    await appendAudit(t, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -198,18 +200,18 @@ export function startBatch({ db, clock }: Services, u: SessionUser, input: Batch
       newValue: { recipeId: recipe.id, vesselId: vessel.id, lotId: lot.id, startedAt, source: program.source, planId: program.planId, stages: program.stages },
       at: now,
     });
-    return toBatch(findSiteBatch(t, u.siteId, row.id)!, true);
+    return toBatch((await findSiteBatch(t, u.siteId, row.id))!, true);
   });
 }
 
-export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, input: BatchClose): Batch {
-  const j = loadBatch(db, u.siteId, id);
+export async function closeBatch({ db, clock }: Services, u: SessionUser, id: number, input: BatchClose): Promise<Batch> {
+  const j = await loadBatch(db, u.siteId, id);
   const b = j.batch;
   if (b.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is already closed');
-  const open = listDeviations(db, b.id).filter((d) => d.deviation.state !== 'closed').length;
+  const open = (await listDeviations(db, b.id)).filter((d) => d.deviation.state !== 'closed').length;
   if (open) throw new HttpError(409, 'open_deviations', `Close the batch's ${open} open deviation${open > 1 ? 's' : ''} first`);
   const now = clock.now();
-  const forecast = statusNow(db, b, now.toISOString()).forecastGPerL;
+  const forecast = (await statusNow(db, b, now.toISOString())).forecastGPerL;
   const patch = {
     state: 'closed' as const,
     closedAt: now.toISOString(),
@@ -218,9 +220,9 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
     measuredProductGPerL: input.measuredProductGPerL ?? null,
     forecastAtCloseGPerL: forecast,
   };
-  const closed = writeTx(db, (t) => {
-    updateBatch(t, b.id, patch);
-    appendAudit(t, {
+  const closed = writeTx(db, async (t) => {
+    await updateBatch(t, b.id, patch);
+    await appendAudit(t, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -231,9 +233,9 @@ export function closeBatch({ db, clock }: Services, u: SessionUser, id: number, 
       newValue: { ...patch, closedBy: u.email },
       at: now,
     });
-    return toBatch(findSiteBatch(t, u.siteId, b.id)!, b.startedBy === u.id);
+    return toBatch((await findSiteBatch(t, u.siteId, b.id))!, b.startedBy === u.id);
   });
   // A measured product makes the batch evidence: a new calibration is proposed (used only once an engineer accepts it).
-  if (patch.measuredProductGPerL !== null) recalibrate(db, u, b.recipeId, b.lotId, now);
+  if (patch.measuredProductGPerL !== null) await recalibrate(db, u, b.recipeId, b.lotId, now);
   return closed;
 }

@@ -37,7 +37,7 @@ export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signat
   } catch {
     throw new HttpError(400, 'bad_signature', 'The event signature does not verify');
   }
-  if (isEventClaimed(ctx.db, event.id)) return { duplicate: true };
+  if (await isEventClaimed(ctx.db, event.id)) return { duplicate: true };
 
   // The one effect that calls out: raise the plan's quantity after the seats were paid for. The provider's
   // idempotency key makes a second delivery of the same event (racing this one) change nothing there.
@@ -58,21 +58,21 @@ export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signat
   }
 
   const now = ctx.clock.now();
-  const duplicate = writeTx(ctx.db, (tx) => {
-    const site = siteOf(tx, event);
-    if (!claimEvent(tx, { eventId: event.id, type: event.type, siteId: site?.siteId ?? null, receivedAt: now.toISOString() })) return true;
+  const duplicate = await writeTx(ctx.db, async (tx) => {
+    const site = await siteOf(tx, event);
+    if (!(await claimEvent(tx, { eventId: event.id, type: event.type, siteId: site?.siteId ?? null, receivedAt: now.toISOString() }))) return true;
     if (!site) return false;
     switch (event.type) {
       case 'customer.subscription.created':
       case 'customer.subscription.updated':
       case 'customer.subscription.deleted':
-        applySubscription(tx, site, event.data.object, event.type === 'customer.subscription.deleted', event.created, now);
+        await applySubscription(tx, site, event.data.object, event.type === 'customer.subscription.deleted', event.created, now);
         break;
       case 'invoice.paid':
       case 'invoice.payment_failed':
       case 'invoice.finalized':
       case 'invoice.voided':
-        applyInvoice(tx, site, event.data.object, event.type === 'invoice.payment_failed', now, billing);
+        await applyInvoice(tx, site, event.data.object, event.type === 'invoice.payment_failed', now, billing);
         break;
     }
     return false;
@@ -81,13 +81,13 @@ export async function handleStripeEvent(ctx: BillingContext, raw: Buffer, signat
 }
 
 /** The site an event is about: known by the customer id we stored when we created that customer. */
-function siteOf(db: Db, event: Stripe.Event): SubscriptionRow | undefined {
+async function siteOf(db: Db, event: Stripe.Event): Promise<SubscriptionRow | undefined> {
   const o = event.data.object as { customer?: string | { id: string } | null };
   const customer = idOf(o.customer);
-  return customer ? findSubscriptionByCustomer(db, customer) : undefined;
+  return customer ? await findSubscriptionByCustomer(db, customer) : undefined;
 }
 
-function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscription, deleted: boolean, created: number, now: Date): void {
+async function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscription, deleted: boolean, created: number, now: Date): Promise<void> {
   // Events can arrive out of order; one older than the last applied would undo a newer state.
   if (created < row.lastEventCreated) return;
   // A plan other than the one we track (e.g. an older one replaced) must not overwrite it.
@@ -100,7 +100,7 @@ function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscriptio
         ? row.graceEndsAt
         : new Date(now.getTime() + GRACE_DAYS * 86_400_000).toISOString()
       : null;
-  const after = upsertSubscription(db, {
+  const after = await upsertSubscription(db, {
     ...row,
     plan: PLAN_NAME,
     seats: deleted ? 0 : (item?.quantity ?? 0),
@@ -113,7 +113,7 @@ function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscriptio
     updatedAt: now.toISOString(),
   });
   if (after.seats !== row.seats || after.status !== row.status) {
-    appendAudit(db, {
+    await appendAudit(db, {
       siteId: row.siteId,
       userId: null,
       actor: ACTOR,
@@ -127,12 +127,12 @@ function applySubscription(db: Db, row: SubscriptionRow, sub: Stripe.Subscriptio
   }
 }
 
-function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed: boolean, now: Date, billing: Billing): void {
+async function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed: boolean, now: Date, billing: Billing): Promise<void> {
   if (!inv.id) return;
   // Only the provider's own payment page is kept; any other address is refused and the refusal audited.
   const hostedUrl = providerPayUrl(billing, inv.hosted_invoice_url);
   if (inv.hosted_invoice_url && !hostedUrl) {
-    appendAudit(db, {
+    await appendAudit(db, {
       siteId: row.siteId,
       userId: null,
       actor: ACTOR,
@@ -143,7 +143,7 @@ function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed:
       at: now,
     });
   }
-  upsertInvoice(db, {
+  await upsertInvoice(db, {
     siteId: row.siteId,
     stripeInvoiceId: inv.id,
     number: inv.number ?? inv.id,
@@ -160,8 +160,8 @@ function applyInvoice(db: Db, row: SubscriptionRow, inv: Stripe.Invoice, failed:
   // A failed renewal starts the grace period at once, even if the subscription's own event comes later.
   if (failed && row.status === 'active') {
     const graceEndsAt = new Date(now.getTime() + GRACE_DAYS * 86_400_000).toISOString();
-    upsertSubscription(db, { ...row, status: 'past_due', graceEndsAt, updatedAt: now.toISOString() });
-    appendAudit(db, {
+    await upsertSubscription(db, { ...row, status: 'past_due', graceEndsAt, updatedAt: now.toISOString() });
+    await appendAudit(db, {
       siteId: row.siteId,
       userId: null,
       actor: ACTOR,

@@ -25,10 +25,10 @@ export const GRACE_DAYS = 7;
 
 type Usage = { seats: number; activeUsers: number; pendingInvites: number; seatsInUse: number };
 
-export function seatUsage(db: Db, siteId: number, now: Date): Usage {
-  const seats = findSubscription(db, siteId)?.seats ?? 0;
-  const activeUsers = countActiveUsers(db, siteId);
-  const pendingInvites = countOpenInvites(db, siteId, now.toISOString());
+export async function seatUsage(db: Db, siteId: number, now: Date): Promise<Usage> {
+  const seats = (await findSubscription(db, siteId))?.seats ?? 0;
+  const activeUsers = await countActiveUsers(db, siteId);
+  const pendingInvites = await countOpenInvites(db, siteId, now.toISOString());
   return { seats, activeUsers, pendingInvites, seatsInUse: activeUsers + pendingInvites };
 }
 
@@ -36,8 +36,8 @@ const people = (u: Usage) =>
   `${u.activeUsers} active ${u.activeUsers === 1 ? 'person' : 'people'}${u.pendingInvites ? ` and ${u.pendingInvites} open ${u.pendingInvites === 1 ? 'invite' : 'invites'}` : ''}`;
 
 /** Refuses a new invite or a reactivation when every paid seat is taken. */
-export function assertFreeSeat(db: Db, siteId: number, now: Date): void {
-  const u = seatUsage(db, siteId, now);
+export async function assertFreeSeat(db: Db, siteId: number, now: Date): Promise<void> {
+  const u = await seatUsage(db, siteId, now);
   if (u.seatsInUse + 1 > u.seats) {
     throw new HttpError(
       409,
@@ -56,8 +56,8 @@ export function isReadOnly(row: SubscriptionRow | undefined, now: Date): boolean
 }
 
 /** Refuses writes on a site whose payment failed and whose grace period is over; reads stay allowed. */
-export function assertWritable(db: Db, siteId: number, now: Date): void {
-  const row = findSubscription(db, siteId);
+export async function assertWritable(db: Db, siteId: number, now: Date): Promise<void> {
+  const row = await findSubscription(db, siteId);
   if (!isReadOnly(row, now)) return;
   throw new HttpError(
     402,
@@ -68,10 +68,10 @@ export function assertWritable(db: Db, siteId: number, now: Date): void {
   );
 }
 
-export function billingSummary({ db, clock }: BillingContext, actor: SessionUser): BillingSummary {
+export async function billingSummary({ db, clock }: BillingContext, actor: SessionUser): Promise<BillingSummary> {
   const now = clock.now();
-  const row = findSubscription(db, actor.siteId);
-  const u = seatUsage(db, actor.siteId, now);
+  const row = await findSubscription(db, actor.siteId);
+  const u = await seatUsage(db, actor.siteId, now);
   return {
     plan: row && row.status !== 'none' ? row.plan : 'No paid plan',
     status: row?.status ?? 'none',
@@ -102,7 +102,9 @@ const toInvoice =
     payUrl: r.status === 'open' ? providerPayUrl(billing, r.hostedUrl) : null,
   });
 
-export const siteInvoices = ({ db, billing }: BillingContext, actor: SessionUser) => ({ invoices: listSiteInvoices(db, actor.siteId).map(toInvoice(billing)) });
+export const siteInvoices = async ({ db, billing }: BillingContext, actor: SessionUser) => ({
+  invoices: (await listSiteInvoices(db, actor.siteId)).map(toInvoice(billing)),
+});
 
 function requireBilling(b: Billing | null): Billing {
   if (!b) throw new HttpError(503, 'billing_unavailable', 'Payments are not set up on this server');
@@ -121,16 +123,20 @@ async function provider<T>(call: () => Promise<T>): Promise<T> {
 
 /** The site's payment customer, created (once, idempotently) on its first purchase. */
 async function ensureCustomer(ctx: BillingContext, billing: Billing, actor: SessionUser): Promise<SubscriptionRow> {
-  const existing = findSubscription(ctx.db, actor.siteId);
+  const existing = await findSubscription(ctx.db, actor.siteId);
   if (existing?.stripeCustomerId) return existing;
-  const site = findSite(ctx.db, actor.siteId);
+  const site = await findSite(ctx.db, actor.siteId);
   if (!site) throw notFound('Site');
-  const customer = await provider(() =>
-    billing.stripe.customers.create({ name: site.name, metadata: { siteId: String(site.id) } }, { idempotencyKey: `yieldpoint-customer-site-${site.id}` }),
+  const customer = await provider(
+    async () =>
+      await billing.stripe.customers.create(
+        { name: site.name, metadata: { siteId: String(site.id) } },
+        { idempotencyKey: `yieldpoint-customer-site-${site.id}` },
+      ),
   );
   const now = ctx.clock.now();
-  return writeTx(ctx.db, (tx) => {
-    const row = upsertSubscription(tx, {
+  return writeTx(ctx.db, async (tx) => {
+    const row = await upsertSubscription(tx, {
       siteId: site.id,
       plan: existing?.plan ?? PLAN_NAME,
       seats: existing?.seats ?? 0,
@@ -138,7 +144,7 @@ async function ensureCustomer(ctx: BillingContext, billing: Billing, actor: Sess
       stripeCustomerId: customer.id,
       updatedAt: now.toISOString(),
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: site.id,
       userId: actor.id,
       actor: actor.email,
@@ -191,7 +197,7 @@ export async function startCheckout(ctx: BillingContext, actor: SessionUser, req
         }),
   );
   if (!providerPayUrl(billing, session.url)) throw new HttpError(502, 'payment_provider', 'The payment provider gave no payment page of its own');
-  appendAudit(ctx.db, {
+  await appendAudit(ctx.db, {
     siteId: actor.siteId,
     userId: actor.id,
     actor: actor.email,
@@ -208,11 +214,11 @@ export async function startCheckout(ctx: BillingContext, actor: SessionUser, req
 export async function changeSeats(ctx: BillingContext, actor: SessionUser, req: ChangeSeats): Promise<BillingSummary> {
   const billing = requireBilling(ctx.billing);
   const now = ctx.clock.now();
-  const row = findSubscription(ctx.db, actor.siteId);
+  const row = await findSubscription(ctx.db, actor.siteId);
   if (!row?.stripeSubscriptionId || !row.stripeItemId || (row.status !== 'active' && row.status !== 'past_due')) {
     throw new HttpError(409, 'no_plan', 'This site has no running plan: buy seats first');
   }
-  const u = seatUsage(ctx.db, actor.siteId, now);
+  const u = await seatUsage(ctx.db, actor.siteId, now);
   if (req.seats < u.seatsInUse) {
     throw new HttpError(
       409,
@@ -224,10 +230,14 @@ export async function changeSeats(ctx: BillingContext, actor: SessionUser, req: 
   if (req.seats > row.seats)
     throw new HttpError(409, 'use_checkout', 'More seats are bought through payment: use Buy seats', { seats: `At most ${row.seats} here` });
   if (req.seats === row.seats) return billingSummary(ctx, actor);
-  await provider(() =>
-    billing.stripe.subscriptions.update(row.stripeSubscriptionId!, { items: [{ id: row.stripeItemId!, quantity: req.seats }], proration_behavior: 'none' }),
+  await provider(
+    async () =>
+      await billing.stripe.subscriptions.update(row.stripeSubscriptionId!, {
+        items: [{ id: row.stripeItemId!, quantity: req.seats }],
+        proration_behavior: 'none',
+      }),
   );
-  appendAudit(ctx.db, {
+  await appendAudit(ctx.db, {
     siteId: actor.siteId,
     userId: actor.id,
     actor: actor.email,

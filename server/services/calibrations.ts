@@ -52,33 +52,42 @@ const toCalibration = ({ calibration: c, decidedBy }: CalibrationJoined): Calibr
  * Nothing else changes: plans use a calibration only once the engineer accepts it. Computed before the write so
  * the transaction stays short; an engine refusal leaves the previous proposal in place and says why in the audit.
  */
-export function recalibrate(db: Db, u: SessionUser, recipeId: number, lotId: number, now: Date): Calibration | null {
-  const recipe = findSiteRecipe(db, u.siteId, recipeId)?.recipe;
-  const lotRow = findSiteLot(db, u.siteId, lotId);
+export async function recalibrate(db: Db, u: SessionUser, recipeId: number, lotId: number, now: Date): Promise<Calibration | null> {
+  const recipe = (await findSiteRecipe(db, u.siteId, recipeId))?.recipe;
+  const lotRow = await findSiteLot(db, u.siteId, lotId);
   if (!recipe || !lotRow) return null;
-  const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
-  const lot = planningLot(db, u.siteId, lotRow, recipeId);
-  const closed: ClosedBatch[] = closedBatchesOf(db, u.siteId, recipeId, lotId).map((b) => ({
-    batchId: b.id,
-    startedAt: b.startedAt,
-    closedAt: b.closedAt!,
-    program: b.program,
-    measuredProductGPerL: b.measuredProductGPerL,
-    readings: readingPoints(db, b.id),
-  }));
-  const excluded = listExclusions(db, u.siteId).map((e) => ({ batchId: e.batchId, reason: e.reason, by: e.by, at: e.at }));
+  const enzyme = (await findSiteEnzyme(db, u.siteId, recipe.enzymeId))!;
+  const lot = await planningLot(db, u.siteId, lotRow, recipeId);
+  const closed: ClosedBatch[] = [];
+  for (const b of await closedBatchesOf(db, u.siteId, recipeId, lotId))
+    closed.push({
+      batchId: b.id,
+      startedAt: b.startedAt,
+      closedAt: b.closedAt!,
+      program: b.program,
+      measuredProductGPerL: b.measuredProductGPerL,
+      readings: await readingPoints(db, b.id),
+    });
+  const excluded = (await listExclusions(db, u.siteId)).map((e) => ({ batchId: e.batchId, reason: e.reason, by: e.by, at: e.at }));
   let proposal: ReturnType<typeof proposeCalibration> = null;
   let problem: string | null = null;
   try {
-    proposal = proposeCalibration({ recipe, enzyme, lot, batches: closed, excluded, measurementRelSd: calibrationSettingsOf(db, u.siteId).measurementRelSd });
+    proposal = proposeCalibration({
+      recipe,
+      enzyme,
+      lot,
+      batches: closed,
+      excluded,
+      measurementRelSd: (await calibrationSettingsOf(db, u.siteId)).measurementRelSd,
+    });
   } catch (e) {
     if (!(e instanceof ModelInputError)) throw e;
     problem = `${e.field}: ${e.rule}`;
   }
-  return writeTx(db, (tx) => {
+  return writeTx(db, async (tx) => {
     if (!proposal) {
       if (problem)
-        appendAudit(tx, {
+        await appendAudit(tx, {
           siteId: u.siteId,
           userId: u.id,
           actor: u.email,
@@ -90,8 +99,8 @@ export function recalibrate(db: Db, u: SessionUser, recipeId: number, lotId: num
         });
       return null;
     }
-    for (const id of calibrationIdsIn(tx, u.siteId, recipeId, lotId, 'proposed')) setCalibrationState(tx, id, { state: 'superseded' });
-    const row = insertCalibration(tx, {
+    for (const id of await calibrationIdsIn(tx, u.siteId, recipeId, lotId, 'proposed')) await setCalibrationState(tx, id, { state: 'superseded' });
+    const row = await insertCalibration(tx, {
       siteId: u.siteId,
       recipeId,
       lotId,
@@ -101,7 +110,7 @@ export function recalibrate(db: Db, u: SessionUser, recipeId: number, lotId: num
       createdAt: now.toISOString(),
     });
     const outliers = proposal.result.batches.filter((b) => b.isOutlier).map((b) => b.batchId);
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -111,19 +120,19 @@ export function recalibrate(db: Db, u: SessionUser, recipeId: number, lotId: num
       newValue: { recipeId, lotId, batchIds: proposal.batchIds, outliers, posterior: proposal.result.posterior },
       at: now,
     });
-    return toCalibration(findSiteCalibration(tx, u.siteId, row.id)!);
+    return toCalibration((await findSiteCalibration(tx, u.siteId, row.id))!);
   });
 }
 
-export function getCalibrationView({ db }: Services, u: SessionUser, q: CalibrationQuery): CalibrationView {
-  const found = findSiteRecipe(db, u.siteId, q.recipeId);
-  const lotRow = findSiteLot(db, u.siteId, q.lotId);
+export async function getCalibrationView({ db }: Services, u: SessionUser, q: CalibrationQuery): Promise<CalibrationView> {
+  const found = await findSiteRecipe(db, u.siteId, q.recipeId);
+  const lotRow = await findSiteLot(db, u.siteId, q.lotId);
   if (!found) throw notFound('Recipe');
   if (!lotRow) throw notFound('Lot');
-  const enzyme = findSiteEnzyme(db, u.siteId, found.recipe.enzymeId)!;
-  const proposed = findCalibration(db, u.siteId, q.recipeId, q.lotId, 'proposed');
-  const accepted = findCalibration(db, u.siteId, q.recipeId, q.lotId, 'accepted');
-  const inUse = lotKinetics(found.recipe, enzyme.tRefC, planningLot(db, u.siteId, lotRow, q.recipeId)).evidence.text;
+  const enzyme = (await findSiteEnzyme(db, u.siteId, found.recipe.enzymeId))!;
+  const proposed = await findCalibration(db, u.siteId, q.recipeId, q.lotId, 'proposed');
+  const accepted = await findCalibration(db, u.siteId, q.recipeId, q.lotId, 'accepted');
+  const inUse = lotKinetics(found.recipe, enzyme.tRefC, await planningLot(db, u.siteId, lotRow, q.recipeId)).evidence.text;
   return {
     recipeId: q.recipeId,
     lotId: q.lotId,
@@ -134,17 +143,17 @@ export function getCalibrationView({ db }: Services, u: SessionUser, q: Calibrat
 }
 
 /** The engineer's decision: a proposed calibration becomes the one plans use, audited with the batches it used. */
-export function acceptCalibration({ db, clock }: Services, u: SessionUser, id: number, input: CalibrationAccept): Calibration {
-  const found = findSiteCalibration(db, u.siteId, id);
+export async function acceptCalibration({ db, clock }: Services, u: SessionUser, id: number, input: CalibrationAccept): Promise<Calibration> {
+  const found = await findSiteCalibration(db, u.siteId, id);
   if (!found) throw notFound('Calibration');
   const c = found.calibration;
   if (c.state !== 'proposed') throw new HttpError(409, 'calibration_not_proposed', `This calibration is ${c.state}; only the current proposal can be accepted`);
   const now = clock.now();
-  return writeTx(db, (tx) => {
-    const previous = calibrationIdsIn(tx, u.siteId, c.recipeId, c.lotId, 'accepted');
-    for (const old of previous) setCalibrationState(tx, old, { state: 'superseded' });
-    setCalibrationState(tx, id, { state: 'accepted', decidedBy: u.id, decidedAt: now.toISOString() });
-    appendAudit(tx, {
+  return writeTx(db, async (tx) => {
+    const previous = await calibrationIdsIn(tx, u.siteId, c.recipeId, c.lotId, 'accepted');
+    for (const old of previous) await setCalibrationState(tx, old, { state: 'superseded' });
+    await setCalibrationState(tx, id, { state: 'accepted', decidedBy: u.id, decidedAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -162,22 +171,23 @@ export function acceptCalibration({ db, clock }: Services, u: SessionUser, id: n
       },
       at: now,
     });
-    return toCalibration(findSiteCalibration(tx, u.siteId, id)!);
+    return toCalibration((await findSiteCalibration(tx, u.siteId, id))!);
   });
 }
 
 /** Leaves a closed batch out of calibration (or takes it back in), with the reason, audited; then proposes anew. */
-export function setExclusion({ db, clock }: Services, u: SessionUser, input: CalibrationExclusion): CalibrationView {
-  const j = findSiteBatch(db, u.siteId, input.batchId);
+export async function setExclusion({ db, clock }: Services, u: SessionUser, input: CalibrationExclusion): Promise<CalibrationView> {
+  const j = await findSiteBatch(db, u.siteId, input.batchId);
   if (!j) throw new HttpError(400, 'invalid_input', 'No such batch at this site', { batchId: 'No such batch at this site' });
   if (j.batch.state !== 'closed') throw new HttpError(409, 'batch_running', 'Only a closed batch is calibration evidence');
   const now = clock.now();
-  const existing = findExclusion(db, j.batch.id);
+  const existing = await findExclusion(db, j.batch.id);
   if (input.isExcluded === !!existing) throw new HttpError(409, 'no_change', input.isExcluded ? 'This batch is already left out' : 'This batch is already in');
-  writeTx(db, (tx) => {
-    if (input.isExcluded) insertExclusion(tx, { siteId: u.siteId, batchId: j.batch.id, reason: input.reason, excludedBy: u.id, excludedAt: now.toISOString() });
-    else deleteExclusion(tx, j.batch.id);
-    appendAudit(tx, {
+  await writeTx(db, async (tx) => {
+    if (input.isExcluded)
+      await insertExclusion(tx, { siteId: u.siteId, batchId: j.batch.id, reason: input.reason, excludedBy: u.id, excludedAt: now.toISOString() });
+    else await deleteExclusion(tx, j.batch.id);
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -189,22 +199,22 @@ export function setExclusion({ db, clock }: Services, u: SessionUser, input: Cal
       at: now,
     });
   });
-  recalibrate(db, u, j.batch.recipeId, j.batch.lotId, now);
-  return getCalibrationView({ db, clock }, u, { recipeId: j.batch.recipeId, lotId: j.batch.lotId });
+  await recalibrate(db, u, j.batch.recipeId, j.batch.lotId, now);
+  return await getCalibrationView({ db, clock }, u, { recipeId: j.batch.recipeId, lotId: j.batch.lotId });
 }
 
 /** The site's measurement spread for calibration, or the stated default. */
-export function calibrationSettingsOf(db: Db, siteId: number): CalibrationSettings {
-  return { measurementRelSd: findCalibrationSettings(db, siteId)?.measurementRelSd ?? MEASUREMENT_REL_SD };
+export async function calibrationSettingsOf(db: Db, siteId: number): Promise<CalibrationSettings> {
+  return { measurementRelSd: (await findCalibrationSettings(db, siteId))?.measurementRelSd ?? MEASUREMENT_REL_SD };
 }
 
 /** The admin sets the measurement spread, audited; proposals computed from then on use it (earlier ones keep theirs, stated with them). */
-export function changeCalibrationSettings({ db, clock }: Services, u: SessionUser, patch: CalibrationSettingsPatch): CalibrationSettings {
-  const before = calibrationSettingsOf(db, u.siteId);
+export async function changeCalibrationSettings({ db, clock }: Services, u: SessionUser, patch: CalibrationSettingsPatch): Promise<CalibrationSettings> {
+  const before = await calibrationSettingsOf(db, u.siteId);
   const now = clock.now();
-  writeTx(db, (tx) => {
-    upsertCalibrationSettings(tx, { siteId: u.siteId, measurementRelSd: patch.measurementRelSd, updatedAt: now.toISOString() });
-    appendAudit(tx, {
+  await writeTx(db, async (tx) => {
+    await upsertCalibrationSettings(tx, { siteId: u.siteId, measurementRelSd: patch.measurementRelSd, updatedAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,

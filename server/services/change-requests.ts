@@ -60,7 +60,7 @@ export function recordHash(
   return sha256(canonicalJson(content));
 }
 
-const siteTimeZone = (db: Db, siteId: number) => findSite(db, siteId)?.timeZone ?? 'UTC';
+const siteTimeZone = async (db: Db, siteId: number) => (await findSite(db, siteId))?.timeZone ?? 'UTC';
 
 function planSide(p: PlanRow, source: SetpointSide['source']): SetpointSide {
   return {
@@ -80,8 +80,8 @@ function planSide(p: PlanRow, source: SetpointSide['source']): SetpointSide {
 }
 
 /** The recipe's setpoint now: its released plan, else its bare setpoint with the figures the proposed plan computed for it. */
-function currentSide(db: Db, siteId: number, recipe: RecipeRow, proposed: PlanRow): SetpointSide {
-  const released = recipe.releasedPlanId ? findSitePlan(db, siteId, recipe.releasedPlanId)?.plan : undefined;
+async function currentSide(db: Db, siteId: number, recipe: RecipeRow, proposed: PlanRow): Promise<SetpointSide> {
+  const released = recipe.releasedPlanId ? (await findSitePlan(db, siteId, recipe.releasedPlanId))?.plan : undefined;
   if (released) return planSide(released, 'released-plan');
   const c = proposed.outputs.current;
   const same = c.setpointC === recipe.currentSetpointC;
@@ -132,28 +132,28 @@ const toSignature = (s: SignatureRow): Signature => ({
   recordHash: s.recordHash,
 });
 
-export const listChangeRequests = ({ db }: Services, u: SessionUser, q: ChangeRequestQuery): ChangeRequestSummary[] =>
-  listSiteChangeRequests(db, u.siteId, q.status).map(toSummary);
+export const listChangeRequests = async ({ db }: Services, u: SessionUser, q: ChangeRequestQuery): Promise<ChangeRequestSummary[]> =>
+  (await listSiteChangeRequests(db, u.siteId, q.status)).map(toSummary);
 
-function load(db: Db, u: SessionUser, id: number) {
-  const found = findSiteChangeRequest(db, u.siteId, id);
+async function load(db: Db, u: SessionUser, id: number) {
+  const found = await findSiteChangeRequest(db, u.siteId, id);
   if (!found) throw notFound('Change request');
-  const plan = findSitePlan(db, u.siteId, found.request.planId)!.plan;
-  const recipe = findSiteRecipe(db, u.siteId, found.request.recipeId)!.recipe;
+  const plan = (await findSitePlan(db, u.siteId, found.request.planId))!.plan;
+  const recipe = (await findSiteRecipe(db, u.siteId, found.request.recipeId))!.recipe;
   return { found, plan, recipe };
 }
 
-export function getChangeRequest(s: Services, u: SessionUser, id: number): ChangeRequestDetail {
-  const { found, plan, recipe } = load(s.db, u, id);
+export async function getChangeRequest(s: Services, u: SessionUser, id: number): Promise<ChangeRequestDetail> {
+  const { found, plan, recipe } = await load(s.db, u, id);
   const r = found.request;
   return {
     ...toSummary(found),
-    siteTimeZone: siteTimeZone(s.db, u.siteId),
+    siteTimeZone: await siteTimeZone(s.db, u.siteId),
     isIntact: recordHash(plan, r) === r.recordHash,
-    current: r.replaced ?? currentSide(s.db, u.siteId, recipe, plan),
+    current: r.replaced ?? (await currentSide(s.db, u.siteId, recipe, plan)),
     proposed: planSide(plan, 'proposed-plan'),
-    plan: getPlan(s, u, plan.id),
-    signatures: listSignatures(s.db, r.id).map(toSignature),
+    plan: await getPlan(s, u, plan.id),
+    signatures: (await listSignatures(s.db, r.id)).map(toSignature),
   };
 }
 
@@ -161,11 +161,11 @@ export function getChangeRequest(s: Services, u: SessionUser, id: number): Chang
  * Closes the recipe's other waiting requests unsigned, each audited: `superseded` by a newer proposal, `stale` once
  * another was released. Each keeps the comparison it showed, so its record still reads as it did.
  */
-function closeOthers(tx: Db, u: SessionUser, recipe: RecipeRow, byId: number, status: 'superseded' | 'stale', now: Date): void {
-  for (const other of listWaitingForRecipe(tx, u.siteId, recipe.id, byId)) {
-    const plan = findSitePlan(tx, u.siteId, other.planId)!.plan;
-    decideChangeRequest(tx, other.id, status, now.toISOString(), currentSide(tx, u.siteId, recipe, plan), byId);
-    appendAudit(tx, {
+async function closeOthers(tx: Db, u: SessionUser, recipe: RecipeRow, byId: number, status: 'superseded' | 'stale', now: Date): Promise<void> {
+  for (const other of await listWaitingForRecipe(tx, u.siteId, recipe.id, byId)) {
+    const plan = (await findSitePlan(tx, u.siteId, other.planId))!.plan;
+    await decideChangeRequest(tx, other.id, status, now.toISOString(), await currentSide(tx, u.siteId, recipe, plan), byId);
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -181,18 +181,18 @@ function closeOthers(tx: Db, u: SessionUser, recipe: RecipeRow, byId: number, st
 
 const link = (ctx: ChangeControlCtx, id: number) => `${ctx.linkUrl.replace(/\/$/, '')}/sign-offs/${id}`;
 
-export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: ChangeRequestInput): ChangeRequestDetail {
+export async function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: ChangeRequestInput): Promise<ChangeRequestDetail> {
   const { db, clock } = ctx;
-  const planFound = findSitePlan(db, u.siteId, input.planId);
+  const planFound = await findSitePlan(db, u.siteId, input.planId);
   if (!planFound) throw new HttpError(400, 'invalid_input', 'No such plan at this site', { planId: 'No such plan at this site' });
   const { plan } = planFound;
   const now = clock.now();
-  const tz = siteTimeZone(db, u.siteId);
+  const tz = await siteTimeZone(db, u.siteId);
   if (input.effectiveFrom < siteDay(now, tz))
     throw new HttpError(400, 'invalid_input', 'The change cannot take effect in the past', { effectiveFrom: `Choose ${siteDay(now, tz)} or later` });
-  if (listSiteChangeRequests(db, u.siteId, 'proposed').some((c) => c.request.planId === plan.id))
+  if ((await listSiteChangeRequests(db, u.siteId, 'proposed')).some((c) => c.request.planId === plan.id))
     throw new HttpError(409, 'already_proposed', 'This plan is already waiting for sign-off');
-  const recipe = findSiteRecipe(db, u.siteId, plan.recipeId)!.recipe;
+  const recipe = (await findSiteRecipe(db, u.siteId, plan.recipeId))!.recipe;
   const fields = {
     planId: plan.id,
     recipeId: plan.recipeId,
@@ -202,9 +202,9 @@ export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: Chan
     effectiveFrom: input.effectiveFrom,
   };
   const hash = recordHash(plan, fields);
-  const id = writeTx(db, (tx) => {
-    const row = insertChangeRequest(tx, { ...fields, siteId: u.siteId, status: 'proposed', recordHash: hash, createdAt: now.toISOString() });
-    appendAudit(tx, {
+  const id = await writeTx(db, async (tx) => {
+    const row = await insertChangeRequest(tx, { ...fields, siteId: u.siteId, status: 'proposed', recordHash: hash, createdAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -216,10 +216,10 @@ export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: Chan
       at: now,
     });
     // One request per recipe waits at a time: the newest, with the rationale written against what runs now.
-    closeOthers(tx, u, recipe, row.id, 'superseded', now);
-    for (const sup of listActiveSupervisors(tx, u.siteId)) {
+    await closeOthers(tx, u, recipe, row.id, 'superseded', now);
+    for (const sup of await listActiveSupervisors(tx, u.siteId)) {
       if (sup.id === u.id) continue;
-      enqueueMail(tx, {
+      await enqueueMail(tx, {
         siteId: u.siteId,
         to: sup.email,
         kind: 'change-request.proposed',
@@ -247,9 +247,9 @@ export function proposeChange(ctx: ChangeControlCtx, u: SessionUser, input: Chan
  */
 export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: number, input: SignatureInput): Promise<ChangeRequestDetail> {
   const { db, clock } = ctx;
-  const { found } = load(db, u, id);
+  const { found } = await load(db, u, id);
   if (found.request.proposedBy === u.id) throw new HttpError(403, 'own_proposal', 'You proposed this change; another supervisor must sign it');
-  const signer = findSiteUser(db, u.siteId, u.id)!;
+  const signer = (await findSiteUser(db, u.siteId, u.id))!;
   const ok = await bcrypt.compare(input.password, signer.passwordHash);
   const now = clock.now();
   const refuse = (reason: string) =>
@@ -266,18 +266,18 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
       }),
     );
   if (!ok) {
-    refuse('wrong password');
+    await refuse('wrong password');
     throw new HttpError(400, 'wrong_password', 'The password is not right; nothing was signed', { password: 'Password is not right' });
   }
-  const tz = siteTimeZone(db, u.siteId);
-  const outcome = writeTx(db, (tx) => {
+  const tz = await siteTimeZone(db, u.siteId);
+  const outcome = await writeTx(db, async (tx) => {
     // Read again inside the write lock: a decision made meanwhile, or an edit to the record, wins over this signature.
-    const { found: cur, plan, recipe } = load(tx, u, id);
+    const { found: cur, plan, recipe } = await load(tx, u, id);
     const r = cur.request;
     if (r.status !== 'proposed') return { refused: 'decided' as const, status: r.status };
     const hash = recordHash(plan, r);
     if (hash !== r.recordHash) return { refused: 'changed' as const };
-    const sig = insertSignature(tx, {
+    const sig = await insertSignature(tx, {
       siteId: u.siteId,
       changeRequestId: id,
       userId: u.id,
@@ -289,7 +289,7 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
       siteTimeZone: tz,
       recordHash: hash,
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -300,9 +300,9 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
       at: now,
     });
     if (input.meaning === 'reviewed') return { refused: null };
-    const replaced = currentSide(tx, u.siteId, recipe, plan);
-    decideChangeRequest(tx, id, input.meaning, now.toISOString(), replaced);
-    appendAudit(tx, {
+    const replaced = await currentSide(tx, u.siteId, recipe, plan);
+    await decideChangeRequest(tx, id, input.meaning, now.toISOString(), replaced);
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -315,8 +315,8 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
     });
     if (input.meaning === 'approved') {
       const releasedAt = startOfSiteDay(r.effectiveFrom, tz);
-      updateRecipe(tx, recipe.id, { releasedPlanId: plan.id, releasedAt, currentSetpointC: plan.setpointC, updatedAt: now.toISOString() });
-      appendAudit(tx, {
+      await updateRecipe(tx, recipe.id, { releasedPlanId: plan.id, releasedAt, currentSetpointC: plan.setpointC, updatedAt: now.toISOString() });
+      await appendAudit(tx, {
         siteId: u.siteId,
         userId: u.id,
         actor: u.email,
@@ -327,12 +327,12 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
         newValue: { releasedPlanId: plan.id, releasedAt, currentSetpointC: plan.setpointC, changeRequestId: id },
         at: now,
       });
-      closeOthers(tx, u, recipe, id, 'stale', now);
+      await closeOthers(tx, u, recipe, id, 'stale', now);
     }
-    const proposer = findSiteUser(tx, u.siteId, r.proposedBy);
+    const proposer = await findSiteUser(tx, u.siteId, r.proposedBy);
     if (proposer?.isActive) {
       const verdict = input.meaning === 'approved' ? 'approved' : 'rejected';
-      enqueueMail(tx, {
+      await enqueueMail(tx, {
         siteId: u.siteId,
         to: proposer.email,
         kind: `change-request.${verdict}`,
@@ -352,7 +352,7 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
   });
   if (outcome.refused === 'decided') throw new HttpError(409, 'already_decided', `This change was already ${outcome.status}`);
   if (outcome.refused === 'changed') {
-    refuse('record changed since submission');
+    await refuse('record changed since submission');
     throw new HttpError(409, 'record_changed', 'The plan or request changed after it was submitted; it cannot be signed');
   }
   ctx.mail?.kick();
@@ -360,8 +360,8 @@ export async function signChange(ctx: ChangeControlCtx, u: SessionUser, id: numb
 }
 
 /** The record with its signatures as field/value rows, for a spreadsheet or an archive. */
-export function changeRequestCsv(s: Services, u: SessionUser, id: number): { filename: string; csv: string } {
-  const d = getChangeRequest(s, u, id);
+export async function changeRequestCsv(s: Services, u: SessionUser, id: number): Promise<{ filename: string; csv: string }> {
+  const d = await getChangeRequest(s, u, id);
   const side = (prefix: string, v: SetpointSide) => [
     [`${prefix}.source`, v.source, ''],
     [`${prefix}.plan_id`, v.planId, ''],

@@ -45,9 +45,9 @@ export type ControlLink = {
   changed(): void;
   /** Brings subscriptions in line with running batches and sources now. */
   reconcile(): Promise<void>;
-  status(siteId: number): LinkStatus[];
+  status(siteId: number): Promise<LinkStatus[]>;
   /** The link of the batch's vessel while the batch runs, else null. */
-  batchLink(siteId: number, batchId: number): LinkStatus | null;
+  batchLink(siteId: number, batchId: number): Promise<LinkStatus | null>;
   close(): Promise<void>;
 };
 
@@ -135,15 +135,23 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
   const backoff = o.backoff ?? { minMs: 1000, maxMs: 60_000 };
   const conns = new Map<string, Conn>();
   const taps = new Map<number, Tap>();
-  const users = new Map<number, SessionUser>();
+  const users = new Map<number, Promise<SessionUser>>();
   let closed = false;
-  const userOf = (siteId: number) => users.get(siteId) ?? users.set(siteId, controlSystemUser(db, siteId)).get(siteId)!;
+  // One lookup per site, shared by the values that arrive meanwhile; a failed one is tried again by the next value.
+  const userOf = (siteId: number): Promise<SessionUser> => {
+    let u = users.get(siteId);
+    if (!u) {
+      users.set(siteId, (u = controlSystemUser(db, siteId)));
+      u.catch(() => users.delete(siteId));
+    }
+    return u;
+  };
   // The site's gap limit, read again at most every few seconds (every value needs it).
   const gapLimits = new Map<number, { atMs: number; gapMs: number }>();
-  const gapLimitMs = (siteId: number, nowMs: number) => {
+  const gapLimitMs = async (siteId: number, nowMs: number) => {
     const hit = gapLimits.get(siteId);
     if (hit && nowMs - hit.atMs < 5000) return hit.gapMs;
-    const gapMs = batchSettingsOf(db, siteId).gapLimitMin * 60_000;
+    const gapMs = (await batchSettingsOf(db, siteId)).gapLimitMin * 60_000;
     gapLimits.set(siteId, { atMs: nowMs, gapMs });
     return gapMs;
   };
@@ -156,7 +164,13 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
   const drain = () => {
     const part = waiting.slice(0, VALUES_PER_TURN);
     waiting = waiting.slice(VALUES_PER_TURN);
-    for (const w of part) void Promise.resolve(onValue(w.tap, w.dv, w.live, w.receivedMs)).then(w.done);
+    for (const w of part)
+      onValue(w.tap, w.dv, w.live, w.receivedMs).then(w.done, (err: unknown) => {
+        // A value the database could not take (not writable, the batch gone) is counted on its tap, never thrown.
+        w.tap.errors++;
+        w.tap.lastError = err instanceof Error ? err.message : String(err);
+        w.done();
+      });
     if (waiting.length) nextTurn(drain);
     else draining = false;
   };
@@ -169,7 +183,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
       }
     });
 
-  function onValue(tap: Tap, dv: DataValue, live: boolean, receivedMs: number): Promise<void> | void {
+  async function onValue(tap: Tap, dv: DataValue, live: boolean, receivedMs: number): Promise<void> {
     const bad = (why: string) => {
       tap.errors++;
       tap.lastError = why;
@@ -180,7 +194,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     const sourceMs = dv.sourceTimestamp?.getTime();
     if (!sourceMs) return bad(`${tap.source.nodeId} came without a source time`);
     const nowMs = clock.now().getTime();
-    const gapMs = gapLimitMs(tap.siteId, nowMs);
+    const gapMs = await gapLimitMs(tap.siteId, nowMs);
     // A live value no newer than the last is a repeat (the first one after subscribing): already handled.
     if (live && sourceMs <= tap.lastSourceMs) return;
     // One older than the gap limit is stale: the server holds on to an old value. Not a reading.
@@ -195,15 +209,17 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     tap.lastGoodAtMs = Math.max(tap.lastGoodAtMs, live ? nowMs : Math.min(nowMs, sourceMs));
     if (live) tap.lostRaised = false;
     tap.lastError = null;
-    return ingest.log(userOf(tap.siteId), tap.batchId, { key: readingKey(sourceMs), takenAt: new Date(sourceMs).toISOString(), c }, 'control_system').then(
-      (r) => {
-        if (!r.created) return;
-        tap.stored++;
-        o.onStored?.(sourceMs, receivedMs, Date.now());
-        forecastLater(tap);
-      },
-      (err: unknown) => bad(err instanceof Error ? err.message : String(err)),
-    );
+    return ingest
+      .log(await userOf(tap.siteId), tap.batchId, { key: readingKey(sourceMs), takenAt: new Date(sourceMs).toISOString(), c }, 'control_system')
+      .then(
+        (r) => {
+          if (!r.created) return;
+          tap.stored++;
+          o.onStored?.(sourceMs, receivedMs, Date.now());
+          forecastLater(tap);
+        },
+        (err: unknown) => bad(err instanceof Error ? err.message : String(err)),
+      );
   }
 
   // The P10 forecast check of a batch with new readings, due once a minute, one batch per turn, outside the
@@ -214,14 +230,14 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     tap.forecastQueued = true;
     if (forecastQueue.push(tap) === 1) nextTurn(checkForecasts);
   }
-  function checkForecasts() {
+  async function checkForecasts() {
     const tap = forecastQueue.shift();
     if (!tap) return;
     tap.forecastQueued = false;
     tap.forecastAtMs = clock.now().getTime();
     if (!closed && taps.get(tap.vesselId) === tap) {
       try {
-        checkForecastLow(services, userOf(tap.siteId), tap.batchId);
+        await checkForecastLow(services, await userOf(tap.siteId), tap.batchId);
       } catch (err) {
         tap.lastError = err instanceof Error ? err.message : String(err);
       }
@@ -231,7 +247,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
 
   /** Fills the span since the batch's last control-system reading from the server's history; else marks a gap. */
   async function backfill(tap: Tap, reader: Reader, lostAtMs: number | null): Promise<boolean> {
-    const last = lastControlReadingAt(db, tap.batchId);
+    const last = await lastControlReadingAt(db, tap.batchId);
     const fromMs = Math.max(Date.parse(tap.startedAt), last ? Date.parse(last) + 1 : 0);
     const to = clock.now();
     if (to.getTime() - fromMs < 1000) return true;
@@ -245,17 +261,17 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     if (lostAtMs === null && !last) return false;
     const gapFrom = lostAtMs ?? fromMs;
     if (to.getTime() - gapFrom < MIN_GAP_MS) return false;
-    writeTx(db, (t) => {
-      const row = insertLinkGap(t, {
+    await writeTx(db, async (t) => {
+      const row = await insertLinkGap(t, {
         siteId: tap.siteId,
         batchId: tap.batchId,
         fromAt: new Date(gapFrom).toISOString(),
         toAt: to.toISOString(),
         reason: `No history on the server (${h.reason})`,
       });
-      appendAudit(t, {
+      await appendAudit(t, {
         siteId: tap.siteId,
-        userId: userOf(tap.siteId).id,
+        userId: (await userOf(tap.siteId)).id,
         actor: 'control system',
         action: 'link.gap',
         entity: 'batch',
@@ -354,14 +370,14 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
 
   async function reconcileNow(): Promise<void> {
     if (closed) return;
-    const wanted = new Map<number, { siteId: number; row: ReturnType<typeof sourcesOfRunningBatches>[number] }>();
-    for (const siteId of listSiteIds(db)) for (const row of sourcesOfRunningBatches(db, siteId)) wanted.set(row.source.vesselId, { siteId, row });
-    const settingsOf = new Map<number, ReturnType<typeof linkSettingsOf>>();
-    const settings = (siteId: number) => settingsOf.get(siteId) ?? settingsOf.set(siteId, linkSettingsOf(db, siteId)).get(siteId)!;
+    const wanted = new Map<number, { siteId: number; row: Awaited<ReturnType<typeof sourcesOfRunningBatches>>[number] }>();
+    for (const siteId of await listSiteIds(db)) for (const row of await sourcesOfRunningBatches(db, siteId)) wanted.set(row.source.vesselId, { siteId, row });
+    const settingsOf = new Map<number, Awaited<ReturnType<typeof linkSettingsOf>>>();
+    const settings = async (siteId: number) => settingsOf.get(siteId) ?? settingsOf.set(siteId, await linkSettingsOf(db, siteId)).get(siteId)!;
     // Taps whose batch closed, or whose source or settings changed, go.
     for (const tap of [...taps.values()]) {
       const w = wanted.get(tap.vesselId);
-      const s = settings(tap.siteId);
+      const s = await settings(tap.siteId);
       if (
         w &&
         w.row.batchId === tap.batchId &&
@@ -377,7 +393,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     const starting: Conn[] = [];
     for (const [vesselId, { siteId, row }] of wanted) {
       if (taps.has(vesselId)) continue;
-      const s = settings(siteId);
+      const s = await settings(siteId);
       const key = connKey(siteId, row.source) + `|${s.samplingIntervalMs}|${s.deadbandC}`;
       let conn = conns.get(key);
       if (!conn) {
@@ -439,11 +455,11 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
 
   // Lost signal ----------------------------------------------------------------------------------------
 
-  function checkSignals() {
+  async function checkSignals() {
     const now = clock.now();
     for (const tap of taps.values()) {
       if (tap.lostRaised) continue;
-      const gapLimitMin = batchSettingsOf(db, tap.siteId).gapLimitMin;
+      const gapLimitMin = (await batchSettingsOf(db, tap.siteId)).gapLimitMin;
       const draft = signalLostDeviation(
         gapLimitMin,
         Math.max(0, batchHours(tap.startedAt, new Date(tap.lastGoodAtMs).toISOString())),
@@ -453,7 +469,7 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
       if (!draft) continue;
       tap.lostRaised = true;
       try {
-        raiseBatchDeviation(services, userOf(tap.siteId), tap.batchId, draft);
+        await raiseBatchDeviation(services, await userOf(tap.siteId), tap.batchId, draft);
       } catch (err) {
         tap.lastError = err instanceof Error ? err.message : String(err);
       }
@@ -495,14 +511,14 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
       }, 50);
     },
     reconcile,
-    status: (siteId) => {
+    status: async (siteId) => {
       const now = clock.now().getTime();
-      return listSiteSources(db, siteId).map((r) => statusOf(siteId, r, now));
+      return (await listSiteSources(db, siteId)).map((r) => statusOf(siteId, r, now));
     },
-    batchLink: (siteId, batchId) => {
+    batchLink: async (siteId, batchId) => {
       const now = clock.now().getTime();
       const tap = [...taps.values()].find((t) => t.batchId === batchId && t.siteId === siteId);
-      const row = tap ? listSiteSources(db, siteId).find((r) => r.source.vesselId === tap.vesselId) : undefined;
+      const row = tap ? (await listSiteSources(db, siteId)).find((r) => r.source.vesselId === tap.vesselId) : undefined;
       return row ? statusOf(siteId, row, now) : null;
     },
     close: async () => {

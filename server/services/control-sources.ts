@@ -58,32 +58,38 @@ const toSource = (r: VesselSourceRow, vesselName: string): VesselSource => ({
   updatedAt: r.updatedAt,
 });
 
-export const listSources = ({ db }: Services, u: SessionUser): VesselSource[] => listSiteSources(db, u.siteId).map((r) => toSource(r.source, r.vesselName));
+export const listSources = async ({ db }: Services, u: SessionUser): Promise<VesselSource[]> =>
+  (await listSiteSources(db, u.siteId)).map((r) => toSource(r.source, r.vesselName));
 
-function loadVessel(db: Db, siteId: number, vesselId: number) {
-  const v = findSiteVessel(db, siteId, vesselId);
+async function loadVessel(db: Db, siteId: number, vesselId: number) {
+  const v = await findSiteVessel(db, siteId, vesselId);
   if (!v) throw notFound('Vessel');
   return v;
 }
 
-function loadSource(db: Db, siteId: number, vesselId: number) {
-  const vessel = loadVessel(db, siteId, vesselId);
-  const source = findVesselSource(db, siteId, vesselId);
+async function loadSource(db: Db, siteId: number, vesselId: number) {
+  const vessel = await loadVessel(db, siteId, vesselId);
+  const source = await findVesselSource(db, siteId, vesselId);
   if (!source) throw new HttpError(404, 'not_found', `${vessel.name} has no control-system source`);
   return { vessel, source };
 }
 
 /** Sets a vessel's source. A new address or security forgets the trusted server certificate. */
-export function saveSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number, input: VesselSourceParsed): VesselSource {
-  const vessel = loadVessel(db, u.siteId, vesselId);
+export async function saveSource(
+  { db, clock, controlLink: link }: LinkServices,
+  u: SessionUser,
+  vesselId: number,
+  input: VesselSourceParsed,
+): Promise<VesselSource> {
+  const vessel = await loadVessel(db, u.siteId, vesselId);
   if (!isNodeId(input.nodeId))
     throw new HttpError(400, 'invalid_input', 'Not an OPC UA node id', { nodeId: 'A node id such as ns=2;s=R101.TT01 or ns=3;i=1042' });
-  const before = findVesselSource(db, u.siteId, vesselId);
+  const before = await findVesselSource(db, u.siteId, vesselId);
   const sameServer =
     before && before.endpointUrl === input.endpointUrl && before.securityPolicy === input.securityPolicy && before.securityMode === input.securityMode;
   const now = clock.now().toISOString();
-  const row = writeTx(db, (tx) => {
-    const saved = upsertVesselSource(tx, {
+  const row = await writeTx(db, async (tx) => {
+    const saved = await upsertVesselSource(tx, {
       siteId: u.siteId,
       vesselId,
       endpointUrl: input.endpointUrl,
@@ -101,7 +107,7 @@ export function saveSource({ db, clock, controlLink: link }: LinkServices, u: Se
       updatedAt: now,
     });
     const audited = (r: VesselSourceRow | undefined) => (r ? toSource(r, vessel.name) : null);
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -113,7 +119,7 @@ export function saveSource({ db, clock, controlLink: link }: LinkServices, u: Se
       at: new Date(now),
     });
     if (input.securityPolicy === 'None')
-      appendAudit(tx, {
+      await appendAudit(tx, {
         siteId: u.siteId,
         userId: u.id,
         actor: u.email,
@@ -129,11 +135,11 @@ export function saveSource({ db, clock, controlLink: link }: LinkServices, u: Se
   return toSource(row, vessel.name);
 }
 
-export function removeSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number): void {
-  const { vessel, source } = loadSource(db, u.siteId, vesselId);
-  writeTx(db, (tx) => {
-    deleteVesselSource(tx, source.id);
-    appendAudit(tx, {
+export async function removeSource({ db, clock, controlLink: link }: LinkServices, u: SessionUser, vesselId: number): Promise<void> {
+  const { vessel, source } = await loadSource(db, u.siteId, vesselId);
+  await writeTx(db, async (tx) => {
+    await deleteVesselSource(tx, source.id);
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -160,7 +166,7 @@ async function fetchCertificate(maybe: ControlLink | null, source: VesselSourceR
 
 /** The certificate the server presents now, for an admin to compare with what the plant's owner reads out. */
 export async function sourceCertificate({ db, controlLink: link }: LinkServices, u: SessionUser, vesselId: number): Promise<CertificateInfo> {
-  const { source } = loadSource(db, u.siteId, vesselId);
+  const { source } = await loadSource(db, u.siteId, vesselId);
   return certificateInfo(await fetchCertificate(link, source));
 }
 
@@ -174,7 +180,7 @@ export async function trustSource(
   vesselId: number,
   input: TrustRequest,
 ): Promise<VesselSource> {
-  const { vessel, source } = loadSource(db, u.siteId, vesselId);
+  const { vessel, source } = await loadSource(db, u.siteId, vesselId);
   const der = await fetchCertificate(link, source);
   const info = certificateInfo(der);
   if (!sameThumbprint(info.thumbprint, input.thumbprint))
@@ -183,14 +189,14 @@ export async function trustSource(
     });
   await running(link).pki.trust(der);
   const now = clock.now();
-  const row = writeTx(db, (tx) => {
-    const r = updateVesselSource(tx, source.id, {
+  const row = await writeTx(db, async (tx) => {
+    const r = await updateVesselSource(tx, source.id, {
       trustedThumbprint: info.thumbprint,
       trustedAt: now.toISOString(),
       trustedBy: u.id,
       updatedAt: now.toISOString(),
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -209,18 +215,18 @@ export async function trustSource(
 
 // Settings -----------------------------------------------------------------------------------------------
 
-export function linkSettingsOf(db: Db, siteId: number): LinkSettings {
-  const row = findLinkSettings(db, siteId);
+export async function linkSettingsOf(db: Db, siteId: number): Promise<LinkSettings> {
+  const row = await findLinkSettings(db, siteId);
   return row ? { samplingIntervalMs: row.samplingIntervalMs, deadbandC: row.deadbandC } : { ...DEFAULT_LINK_SETTINGS };
 }
 
-export function changeLinkSettings({ db, clock, controlLink: link }: LinkServices, u: SessionUser, patch: LinkSettingsPatch): LinkSettings {
-  const before = linkSettingsOf(db, u.siteId);
+export async function changeLinkSettings({ db, clock, controlLink: link }: LinkServices, u: SessionUser, patch: LinkSettingsPatch): Promise<LinkSettings> {
+  const before = await linkSettingsOf(db, u.siteId);
   const after = { ...before, ...patch };
   const now = clock.now();
-  writeTx(db, (tx) => {
-    upsertLinkSettings(tx, { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
-    appendAudit(tx, {
+  await writeTx(db, async (tx) => {
+    await upsertLinkSettings(tx, { siteId: u.siteId, ...after, updatedAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -244,13 +250,16 @@ const systemEmail = (siteId: number) => `control-system+site${siteId}@yieldpoint
  * The site's control-system account: the readings it stores name it, and its audit events carry it. It cannot
  * sign in (inactive, and no password hash matches '!').
  */
-export function controlSystemUser(db: Db, siteId: number): SessionUser {
-  let row = findUserByEmail(db, systemEmail(siteId));
+export async function controlSystemUser(db: Db, siteId: number): Promise<SessionUser> {
+  let row = await findUserByEmail(db, systemEmail(siteId));
   if (!row) {
-    row = writeTx(db, (tx) => {
-      const created = insertUser(tx, { siteId, email: systemEmail(siteId), name: 'Control system', role: 'operator', passwordHash: '!' });
-      updateUser(tx, created.id, { isActive: false });
-      appendAudit(tx, {
+    // Looked up again inside the write: two callers at once (two values, two processes) create it once.
+    row = await writeTx(db, async (tx) => {
+      const existing = await findUserByEmail(tx, systemEmail(siteId));
+      if (existing) return existing;
+      const created = await insertUser(tx, { siteId, email: systemEmail(siteId), name: 'Control system', role: 'operator', passwordHash: '!' });
+      await updateUser(tx, created.id, { isActive: false });
+      await appendAudit(tx, {
         siteId,
         userId: null,
         actor: 'system',
@@ -263,7 +272,7 @@ export function controlSystemUser(db: Db, siteId: number): SessionUser {
       return created;
     });
   }
-  const j = findUserWithSite(db, row.id)!;
+  const j = (await findUserWithSite(db, row.id))!;
   return {
     id: row.id,
     email: row.email,
@@ -279,8 +288,8 @@ export function controlSystemUser(db: Db, siteId: number): SessionUser {
 
 // Status -------------------------------------------------------------------------------------------------
 
-const gapsOf = (db: Db, siteId: number, batchId: number) =>
-  listBatchGaps(db, siteId, batchId).map((g) => ({ fromAt: g.fromAt, toAt: g.toAt, reason: g.reason }));
+const gapsOf = async (db: Db, siteId: number, batchId: number) =>
+  (await listBatchGaps(db, siteId, batchId)).map((g) => ({ fromAt: g.fromAt, toAt: g.toAt, reason: g.reason }));
 
 /** A source's status while nothing is read from it: no batch, no value, no errors yet. */
 export const quietLink = (row: { source: { vesselId: number }; vesselName: string }, state: 'off' | 'idle' | 'disabled'): LinkStatus => ({
@@ -297,16 +306,16 @@ export const quietLink = (row: { source: { vesselId: number }; vesselName: strin
 });
 
 /** Each source's link now; without a running link every source is 'off'. */
-export const linkStatus = ({ db, controlLink: link }: LinkServices, u: SessionUser): LinkStatusList =>
+export const linkStatus = async ({ db, controlLink: link }: LinkServices, u: SessionUser): Promise<LinkStatusList> =>
   link
-    ? { links: link.status(u.siteId), certificate: link.pki.certificate(), userCertificate: link.pki.userCertificate() }
+    ? { links: await link.status(u.siteId), certificate: link.pki.certificate(), userCertificate: link.pki.userCertificate() }
     : {
-        links: listSiteSources(db, u.siteId).map((r) => quietLink(r, 'off')),
+        links: (await listSiteSources(db, u.siteId)).map((r) => quietLink(r, 'off')),
         certificate: null,
         userCertificate: null,
       };
 
-export function batchLinkOf({ db, controlLink: link }: LinkServices, u: SessionUser, batchId: number): BatchLink {
-  if (!findSiteBatch(db, u.siteId, batchId)) throw notFound('Batch');
-  return { link: link?.batchLink(u.siteId, batchId) ?? null, gaps: gapsOf(db, u.siteId, batchId) };
+export async function batchLinkOf({ db, controlLink: link }: LinkServices, u: SessionUser, batchId: number): Promise<BatchLink> {
+  if (!(await findSiteBatch(db, u.siteId, batchId))) throw notFound('Batch');
+  return { link: (await link?.batchLink(u.siteId, batchId)) ?? null, gaps: await gapsOf(db, u.siteId, batchId) };
 }

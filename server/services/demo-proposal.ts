@@ -14,14 +14,14 @@ const RECIPE = 'Lactose-free milk base';
  * same services as the app (plan recomputed and hashed, audit events, supervisor mail), so a supervisor has a real
  * request to review and e-sign on first sign-in.
  */
-export function proposeDemoChange(ctx: ChangeControlCtx, siteId: number): void {
-  const engineerRow = findUserByEmail(ctx.db, DEMO_USERS.find((u) => u.role === 'engineer')!.email);
-  const engineer = engineerRow && loadSessionUser(ctx.db, engineerRow.id);
-  const recipe = findSiteRecipeByName(ctx.db, siteId, RECIPE);
+export async function proposeDemoChange(ctx: ChangeControlCtx, siteId: number): Promise<void> {
+  const engineerRow = await findUserByEmail(ctx.db, DEMO_USERS.find((u) => u.role === 'engineer')!.email);
+  const engineer = engineerRow && (await loadSessionUser(ctx.db, engineerRow.id));
+  const recipe = await findSiteRecipeByName(ctx.db, siteId, RECIPE);
   if (!engineer || !recipe) return;
-  const plan = createPlan(ctx, engineer, inputsFromRecipe(recipe));
+  const plan = await createPlan(ctx, engineer, inputsFromRecipe(recipe));
   const o = plan.outputs;
-  proposeChange(ctx, engineer, {
+  await proposeChange(ctx, engineer, {
     planId: plan.id,
     rationale: `The planner puts the best setpoint for a ${recipe.batchH} h batch on its lot at ${o.setpointC.toFixed(1)} °C instead of ${recipe.currentSetpointC.toFixed(1)} °C.`,
     expectedEffect: `About ${(o.gainOverCurrent * 100).toFixed(1)} % more product per batch (${o.current.productGPerL.toFixed(1)} to ${o.predictedProductGPerL.toFixed(1)} g/L).`,

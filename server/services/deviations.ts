@@ -45,28 +45,29 @@ const isoAfterStart = (startedAt: string, h: number) => new Date(Date.parse(star
  * Stores the deviations new readings raised, each with its audit event, and a low forecast if the batch's readings
  * (stored, the new ones included) now forecast below P10. `by` is who logged the reading, else `u`.
  */
-export function raiseDeviations(
+export async function raiseDeviations(
   t: Db,
   u: SessionUser,
   b: BatchJoined['batch'],
   raised: { readingId: number | null; draft: DeviationDraft; by?: SessionUser }[],
   now: Date,
   opts: { checkForecast?: boolean; withCorrective?: boolean; status?: () => BatchStatus | null } = {},
-): DeviationRow[] {
+): Promise<DeviationRow[]> {
   const { checkForecast = true, withCorrective = true } = opts;
-  const settings = batchSettingsOf(t, u.siteId);
+  const settings = await batchSettingsOf(t, u.siteId);
   // The status integrates every reading of the batch; it is needed only for a corrective setpoint or a P10 check.
   // Without a corrective (the earlier parts of an import) deviations are raised without a suggested setpoint.
   // `opts.status` may give it computed elsewhere (an import's, on the worker) or null for "compute it here".
-  const checksForecast = checkForecast && b.program.p10GPerL !== null && !hasActiveDeviation(t, b.id, 'forecast_low');
+  const checksForecast = checkForecast && b.program.p10GPerL !== null && !(await hasActiveDeviation(t, b.id, 'forecast_low'));
   const status =
     checksForecast || (withCorrective && raised.some((r) => CORRECTABLE.has(r.draft.kind)))
-      ? (opts.status?.() ?? statusNow(t, b, now.toISOString(), true))
+      ? (opts.status?.() ?? (await statusNow(t, b, now.toISOString(), true)))
       : null;
   const low = status && checksForecast ? forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH) : null;
   const all = low ? [...raised, { readingId: null, draft: low }] : raised;
-  return all.map(({ readingId, draft, by = u }) => {
-    const row = insertDeviation(t, {
+  const rows: DeviationRow[] = [];
+  for (const { readingId, draft, by = u } of all) {
+    const row = await insertDeviation(t, {
       siteId: u.siteId,
       batchId: b.id,
       kind: draft.kind,
@@ -79,7 +80,7 @@ export function raiseDeviations(
       corrective: CORRECTABLE.has(draft.kind) && withCorrective && status ? status.corrective : null,
       raisedAt: now.toISOString(),
     });
-    appendAudit(t, {
+    await appendAudit(t, {
       siteId: u.siteId,
       userId: by.id,
       actor: by.email,
@@ -89,20 +90,21 @@ export function raiseDeviations(
       newValue: { batchId: b.id, kind: draft.kind, at: row.at, message: draft.message, settings, corrective: row.corrective },
       at: now,
     });
-    return row;
-  });
+    rows.push(row);
+  }
+  return rows;
 }
 
 /**
  * A deviation the readings cannot raise themselves (the control-system link's lost signal), stored with its audit
  * event like the others, unless one of its kind is still active on the batch. Returns whether it was raised.
  */
-export function raiseBatchDeviation({ db, clock }: Services, u: SessionUser, batchId: number, draft: DeviationDraft): boolean {
-  const b = runningBatch(db, u.siteId, batchId).batch;
+export async function raiseBatchDeviation({ db, clock }: Services, u: SessionUser, batchId: number, draft: DeviationDraft): Promise<boolean> {
+  const b = (await runningBatch(db, u.siteId, batchId)).batch;
   const now = clock.now();
-  return writeTx(db, (t) => {
-    if (hasActiveDeviation(t, b.id, draft.kind)) return false;
-    raiseDeviations(t, u, b, [{ readingId: null, draft }], now);
+  return writeTx(db, async (t) => {
+    if (await hasActiveDeviation(t, b.id, draft.kind)) return false;
+    await raiseDeviations(t, u, b, [{ readingId: null, draft }], now);
     return true;
   });
 }
@@ -112,33 +114,33 @@ export function raiseBatchDeviation({ db, clock }: Services, u: SessionUser, bat
  * record, so only readings added since the last check are read): raises `forecast_low` when the forecast is below
  * the plan's P10 and none is active. Returns whether it raised one.
  */
-export function checkForecastLow({ db, clock }: Services, u: SessionUser, batchId: number): boolean {
-  const b = loadBatch(db, u.siteId, batchId).batch;
-  if (b.state !== 'running' || b.program.p10GPerL === null || hasActiveDeviation(db, b.id, 'forecast_low')) return false;
+export async function checkForecastLow({ db, clock }: Services, u: SessionUser, batchId: number): Promise<boolean> {
+  const b = (await loadBatch(db, u.siteId, batchId)).batch;
+  if (b.state !== 'running' || b.program.p10GPerL === null || (await hasActiveDeviation(db, b.id, 'forecast_low'))) return false;
   const now = clock.now();
-  const status = statusNow(db, b, now.toISOString());
+  const status = await statusNow(db, b, now.toISOString());
   const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, false, status.lastH);
   if (!low) return false;
-  return writeTx(db, (t) => {
-    if (hasActiveDeviation(t, b.id, 'forecast_low')) return false;
-    raiseDeviations(t, u, b, [{ readingId: null, draft: low }], now, { checkForecast: false });
+  return writeTx(db, async (t) => {
+    if (await hasActiveDeviation(t, b.id, 'forecast_low')) return false;
+    await raiseDeviations(t, u, b, [{ readingId: null, draft: low }], now, { checkForecast: false });
     return true;
   });
 }
 
-function loadDeviation(db: Db, siteId: number, id: number): DeviationJoined {
-  const d = findSiteDeviation(db, siteId, id);
+async function loadDeviation(db: Db, siteId: number, id: number): Promise<DeviationJoined> {
+  const d = await findSiteDeviation(db, siteId, id);
   if (!d) throw notFound('Deviation');
   return d;
 }
 
-export function acknowledgeDeviation({ db, clock }: Services, u: SessionUser, id: number, input: DeviationAcknowledge): Deviation {
-  const d = loadDeviation(db, u.siteId, id);
+export async function acknowledgeDeviation({ db, clock }: Services, u: SessionUser, id: number, input: DeviationAcknowledge): Promise<Deviation> {
+  const d = await loadDeviation(db, u.siteId, id);
   if (d.deviation.state !== 'open') throw new HttpError(409, 'already_acknowledged', 'This deviation was already acknowledged');
   const now = clock.now();
-  writeTx(db, (t) => {
-    updateDeviation(t, id, { state: 'acknowledged', acknowledgedBy: u.id, acknowledgedAt: now.toISOString(), acknowledgeComment: input.comment });
-    appendAudit(t, {
+  await writeTx(db, async (t) => {
+    await updateDeviation(t, id, { state: 'acknowledged', acknowledgedBy: u.id, acknowledgedAt: now.toISOString(), acknowledgeComment: input.comment });
+    await appendAudit(t, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -150,17 +152,17 @@ export function acknowledgeDeviation({ db, clock }: Services, u: SessionUser, id
       at: now,
     });
   });
-  return toDeviation(loadDeviation(db, u.siteId, id));
+  return toDeviation(await loadDeviation(db, u.siteId, id));
 }
 
-export function closeDeviation({ db, clock }: Services, u: SessionUser, id: number, input: DeviationClose): Deviation {
-  const d = loadDeviation(db, u.siteId, id);
+export async function closeDeviation({ db, clock }: Services, u: SessionUser, id: number, input: DeviationClose): Promise<Deviation> {
+  const d = await loadDeviation(db, u.siteId, id);
   if (d.deviation.state === 'open') throw new HttpError(409, 'not_acknowledged', 'The operator acknowledges a deviation before it is closed');
   if (d.deviation.state === 'closed') throw new HttpError(409, 'already_closed', 'This deviation is already closed');
   const now = clock.now();
-  writeTx(db, (t) => {
-    updateDeviation(t, id, { state: 'closed', closedBy: u.id, closedAt: now.toISOString(), closeComment: input.comment || null });
-    appendAudit(t, {
+  await writeTx(db, async (t) => {
+    await updateDeviation(t, id, { state: 'closed', closedBy: u.id, closedAt: now.toISOString(), closeComment: input.comment || null });
+    await appendAudit(t, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -172,5 +174,5 @@ export function closeDeviation({ db, clock }: Services, u: SessionUser, id: numb
       at: now,
     });
   });
-  return toDeviation(loadDeviation(db, u.siteId, id));
+  return toDeviation(await loadDeviation(db, u.siteId, id));
 }

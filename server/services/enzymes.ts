@@ -11,18 +11,18 @@ import { appendAudit } from './audit';
 
 const toEnzyme = ({ siteId: _s, createdAt: _c, ...e }: EnzymeRow): Enzyme => e;
 
-export function listEnzymes({ db }: Services, u: SessionUser, q: EnzymeQuery): EnzymeList {
-  const { rows, total } = querySiteEnzymes(db, u.siteId, q);
+export async function listEnzymes({ db }: Services, u: SessionUser, q: EnzymeQuery): Promise<EnzymeList> {
+  const { rows, total } = await querySiteEnzymes(db, u.siteId, q);
   return { enzymes: rows.map(toEnzyme), total, page: q.page, pageSize: q.pageSize };
 }
 
 /** The enzyme and each of its lots' half-life at the specification temperature, oldest lot first. */
-export function getEnzyme({ db }: Services, u: SessionUser, id: number): EnzymeDetail {
-  const e = findSiteEnzyme(db, u.siteId, id);
+export async function getEnzyme({ db }: Services, u: SessionUser, id: number): Promise<EnzymeDetail> {
+  const e = await findSiteEnzyme(db, u.siteId, id);
   if (!e) throw notFound('Enzyme');
-  const fits = new Map<number, NonNullable<ReturnType<typeof listSiteFits>[number]['fit']>>();
-  for (const f of listSiteFits(db, u.siteId)) if (f.fit && !fits.has(f.lotId)) fits.set(f.lotId, f.fit);
-  const history: LotHistoryPoint[] = listSiteLots(db, u.siteId, { enzymeId: id })
+  const fits = new Map<number, NonNullable<Awaited<ReturnType<typeof listSiteFits>>[number]['fit']>>();
+  for (const f of await listSiteFits(db, u.siteId)) if (f.fit && !fits.has(f.lotId)) fits.set(f.lotId, f.fit);
+  const history: LotHistoryPoint[] = (await listSiteLots(db, u.siteId, { enzymeId: id }))
     .map(({ lot }) => {
       const base = { lotId: lot.id, lotCode: lot.lotCode, receivedOn: lot.receivedOn, status: lot.status };
       const fit = fits.get(lot.id);
@@ -37,30 +37,39 @@ export function getEnzyme({ db }: Services, u: SessionUser, id: number): EnzymeD
   return { enzyme: toEnzyme(e), history };
 }
 
-function checkNameFree(db: Db, siteId: number, name: string, selfId?: number) {
-  const clash = findSiteEnzymeByName(db, siteId, name);
+async function checkNameFree(db: Db, siteId: number, name: string, selfId?: number) {
+  const clash = await findSiteEnzymeByName(db, siteId, name);
   if (clash && clash.id !== selfId) throw new HttpError(409, 'duplicate_name', 'An enzyme with this name exists', { name: 'Already used by another enzyme' });
 }
 
-export function createEnzyme({ db, clock }: Services, u: SessionUser, input: EnzymeInput): Enzyme {
-  checkNameFree(db, u.siteId, input.name);
+export async function createEnzyme({ db, clock }: Services, u: SessionUser, input: EnzymeInput): Promise<Enzyme> {
+  await checkNameFree(db, u.siteId, input.name);
   const now = clock.now();
-  return writeTx(db, (tx) => {
-    const row = insertEnzyme(tx, u.siteId, input);
-    appendAudit(tx, { siteId: u.siteId, userId: u.id, actor: u.email, action: 'enzyme.create', entity: 'enzyme', entityId: row.id, newValue: input, at: now });
+  return writeTx(db, async (tx) => {
+    const row = await insertEnzyme(tx, u.siteId, input);
+    await appendAudit(tx, {
+      siteId: u.siteId,
+      userId: u.id,
+      actor: u.email,
+      action: 'enzyme.create',
+      entity: 'enzyme',
+      entityId: row.id,
+      newValue: input,
+      at: now,
+    });
     return toEnzyme(row);
   });
 }
 
-export function changeEnzyme({ db, clock }: Services, u: SessionUser, id: number, patch: EnzymeUpdate): Enzyme {
-  const before = findSiteEnzyme(db, u.siteId, id);
+export async function changeEnzyme({ db, clock }: Services, u: SessionUser, id: number, patch: EnzymeUpdate): Promise<Enzyme> {
+  const before = await findSiteEnzyme(db, u.siteId, id);
   if (!before) throw notFound('Enzyme');
-  if (patch.name !== undefined) checkNameFree(db, u.siteId, patch.name, id);
+  if (patch.name !== undefined) await checkNameFree(db, u.siteId, patch.name, id);
   const now = clock.now();
-  return writeTx(db, (tx) => {
-    const after = updateEnzyme(tx, id, patch);
+  return writeTx(db, async (tx) => {
+    const after = await updateEnzyme(tx, id, patch);
     const keys = Object.keys(patch) as (keyof EnzymeUpdate)[];
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,

@@ -6,12 +6,12 @@ import type { Plan } from '../../src/contracts/plans';
 import { findCalibration, newestLotFit } from '../repositories/calibrations';
 import type { findSiteLot } from '../repositories/recipes';
 
-type LotRow = NonNullable<ReturnType<typeof findSiteLot>>;
+type LotRow = NonNullable<Awaited<ReturnType<typeof findSiteLot>>>;
 
 /** A lot for planning a recipe: its certificate, newest assay fit and the calibration accepted for this recipe. */
-export function planningLot(db: Db, siteId: number, l: LotRow, recipeId: number): PlanningLot {
-  const f = newestLotFit(db, siteId, l.id);
-  const c = findCalibration(db, siteId, recipeId, l.id, 'accepted');
+export async function planningLot(db: Db, siteId: number, l: LotRow, recipeId: number): Promise<PlanningLot> {
+  const f = await newestLotFit(db, siteId, l.id);
+  const c = await findCalibration(db, siteId, recipeId, l.id, 'accepted');
   return {
     id: l.id,
     lotCode: l.lotCode,
@@ -33,10 +33,10 @@ export function planningLot(db: Db, siteId: number, l: LotRow, recipeId: number)
 }
 
 /** Why a stored plan is on older evidence than its lot now has, or null; the plan itself is never recomputed. */
-export function olderEvidence(db: Db, siteId: number, p: Pick<Plan, 'recipeId' | 'outputs'> & { lotId: number }): string | null {
+export async function olderEvidence(db: Db, siteId: number, p: Pick<Plan, 'recipeId' | 'outputs'> & { lotId: number }): Promise<string | null> {
   const used = p.outputs.kinetics.evidence;
-  const fit = newestLotFit(db, siteId, p.lotId);
-  const cal = findCalibration(db, siteId, p.recipeId, p.lotId, 'accepted');
+  const fit = await newestLotFit(db, siteId, p.lotId);
+  const cal = await findCalibration(db, siteId, p.recipeId, p.lotId, 'accepted');
   const fitId = fit?.fit ? fit.id : null;
   const calId = cal && cal.calibration.result.prior.fitAssayId === fitId ? cal.calibration.id : null;
   if ((used?.fitAssayId ?? null) !== fitId)

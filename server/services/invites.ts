@@ -30,31 +30,31 @@ export const INVITE_DAYS = 7;
 const hashToken = (token: string) => sha256(token);
 const toInvite = (r: InviteRow): Invite => ({ id: r.id, email: r.email, role: r.role, createdAt: r.createdAt, expiresAt: r.expiresAt });
 
-export const listInvites = ({ db, clock }: InviteContext, actor: SessionUser): InviteList => ({
-  invites: listOpenInvites(db, actor.siteId, clock.now().toISOString()).map(toInvite),
+export const listInvites = async ({ db, clock }: InviteContext, actor: SessionUser): Promise<InviteList> => ({
+  invites: (await listOpenInvites(db, actor.siteId, clock.now().toISOString())).map(toInvite),
 });
 
 /** Reserves a seat for the invited address and mails them a one-time link (through the outbox). */
-export function createInvite(ctx: InviteContext, actor: SessionUser, req: CreateInvite): Invite {
+export async function createInvite(ctx: InviteContext, actor: SessionUser, req: CreateInvite): Promise<Invite> {
   const now = ctx.clock.now();
   // Only this site's own people are named: an address in use at another site is invited like any other (its owner
   // learns at the link that it is taken), so one site cannot find out who works at another.
-  const existing = findUserByEmail(ctx.db, req.email);
+  const existing = await findUserByEmail(ctx.db, req.email);
   if (existing?.siteId === actor.siteId && existing.isActive)
     throw new HttpError(409, 'email_taken', 'This person already signs in at this site; to let them back in, send a password reset from the Site screen', {
       email: 'Already a user at this site',
     });
-  if (findOpenInviteByEmail(ctx.db, req.email, now.toISOString()))
+  if (await findOpenInviteByEmail(ctx.db, req.email, now.toISOString()))
     throw new HttpError(409, 'already_invited', 'This address already has an open invite', { email: 'Already invited' });
-  const site = findSite(ctx.db, actor.siteId);
+  const site = await findSite(ctx.db, actor.siteId);
   if (!site) throw notFound('Site');
   const token = crypto.randomBytes(32).toString('base64url');
   const expiresAt = new Date(now.getTime() + INVITE_DAYS * 86_400_000);
   const link = `${ctx.linkUrl}/accept-invite?token=${token}`;
-  const invite = writeTx(ctx.db, (tx) => {
+  const invite = await writeTx(ctx.db, async (tx) => {
     // Checked inside the transaction: two invites racing for the last seat cannot both take it.
-    assertFreeSeat(tx, actor.siteId, now);
-    const row = insertInvite(tx, {
+    await assertFreeSeat(tx, actor.siteId, now);
+    const row = await insertInvite(tx, {
       siteId: actor.siteId,
       email: req.email,
       role: req.role,
@@ -63,7 +63,7 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
       expiresAt: expiresAt.toISOString(),
       createdAt: now.toISOString(),
     });
-    enqueueMail(tx, {
+    await enqueueMail(tx, {
       siteId: actor.siteId,
       to: req.email,
       kind: 'invite',
@@ -78,7 +78,7 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
       ].join('\n'),
       at: now,
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: actor.siteId,
       userId: actor.id,
       actor: actor.email,
@@ -94,13 +94,13 @@ export function createInvite(ctx: InviteContext, actor: SessionUser, req: Create
   return toInvite(invite);
 }
 
-export function revokeInvite({ db, clock }: InviteContext, actor: SessionUser, id: number): void {
-  const row = findSiteInvite(db, actor.siteId, id);
+export async function revokeInvite({ db, clock }: InviteContext, actor: SessionUser, id: number): Promise<void> {
+  const row = await findSiteInvite(db, actor.siteId, id);
   if (!row || row.acceptedAt || row.revokedAt) throw notFound('Invite');
   const now = clock.now();
-  writeTx(db, (tx) => {
-    updateInvite(tx, id, { revokedAt: now.toISOString() });
-    appendAudit(tx, {
+  await writeTx(db, async (tx) => {
+    await updateInvite(tx, id, { revokedAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: actor.siteId,
       userId: actor.id,
       actor: actor.email,
@@ -113,30 +113,30 @@ export function revokeInvite({ db, clock }: InviteContext, actor: SessionUser, i
   });
 }
 
-function openInvite(db: Db, token: string, now: Date): InviteRow {
-  const row = findInviteByTokenHash(db, hashToken(token));
+async function openInvite(db: Db, token: string, now: Date): Promise<InviteRow> {
+  const row = await findInviteByTokenHash(db, hashToken(token));
   if (!row || row.revokedAt) throw new HttpError(404, 'invite_not_found', 'This invite link is not valid. Ask your site admin for a new one.');
   if (row.acceptedAt) throw new HttpError(410, 'invite_used', 'This invite was already used. Sign in with your e-mail and password.');
   if (new Date(row.expiresAt) <= now) throw new HttpError(410, 'invite_expired', 'This invite has expired. Ask your site admin for a new one.');
   return row;
 }
 
-export function previewInvite({ db, clock }: InviteContext, token: string): InvitePreview {
-  const row = openInvite(db, token, clock.now());
-  return { email: row.email, role: row.role, siteName: findSite(db, row.siteId)?.name ?? '', expiresAt: row.expiresAt };
+export async function previewInvite({ db, clock }: InviteContext, token: string): Promise<InvitePreview> {
+  const row = await openInvite(db, token, clock.now());
+  return { email: row.email, role: row.role, siteName: (await findSite(db, row.siteId))?.name ?? '', expiresAt: row.expiresAt };
 }
 
 /** Creates the invited user with the password they chose; they then sign in as anyone does. */
 export async function acceptInvite({ db, clock }: InviteContext, req: AcceptInvite): Promise<InviteAccepted> {
-  const first = openInvite(db, req.token, clock.now());
+  const first = await openInvite(db, req.token, clock.now());
   const passwordHash = await hashPassword(req.password);
   const now = clock.now();
-  return writeTx(db, (tx) => {
+  return writeTx(db, async (tx) => {
     // Read again after the slow hash: a second submit of the same link may have won meanwhile.
-    const row = openInvite(tx, req.token, now);
+    const row = await openInvite(tx, req.token, now);
     if (row.id !== first.id) throw new HttpError(409, 'invite_changed', 'This invite changed; open the link again');
-    assertWritable(tx, row.siteId, now);
-    const existing = findUserByEmail(tx, row.email);
+    await assertWritable(tx, row.siteId, now);
+    const existing = await findUserByEmail(tx, row.email);
     // Told only to the address's owner, who opened the link from their own mail.
     if (existing && (existing.siteId !== row.siteId || existing.isActive))
       throw new HttpError(
@@ -146,11 +146,11 @@ export async function acceptInvite({ db, clock }: InviteContext, req: AcceptInvi
       );
     // A person of this site who lost access (deactivated) comes back with the invite's role and a new password.
     const user = existing
-      ? updateUser(tx, existing.id, { name: req.name, role: row.role, isActive: true, passwordHash })
-      : insertUser(tx, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
-    if (existing) revokeUserSessions(tx, existing.id, now.toISOString());
-    updateInvite(tx, row.id, { acceptedAt: now.toISOString(), userId: user.id });
-    appendAudit(tx, {
+      ? await updateUser(tx, existing.id, { name: req.name, role: row.role, isActive: true, passwordHash })
+      : await insertUser(tx, { siteId: row.siteId, email: row.email, name: req.name, role: row.role, passwordHash });
+    if (existing) await revokeUserSessions(tx, existing.id, now.toISOString());
+    await updateInvite(tx, row.id, { acceptedAt: now.toISOString(), userId: user.id });
+    await appendAudit(tx, {
       siteId: row.siteId,
       userId: user.id,
       actor: row.email,

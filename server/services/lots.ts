@@ -21,19 +21,19 @@ const toLot = ({ siteId: _s, createdAt: _c, decidedBy: _d, ...l }: LotRow, enzym
   activityUnit,
 });
 
-export const listLots = ({ db }: Services, u: SessionUser, q: LotQuery = {}): Lot[] =>
-  listSiteLots(db, u.siteId, q).map(({ lot, enzymeName, activityUnit }) => toLot(lot, enzymeName, activityUnit));
+export const listLots = async ({ db }: Services, u: SessionUser, q: LotQuery = {}): Promise<Lot[]> =>
+  (await listSiteLots(db, u.siteId, q)).map(({ lot, enzymeName, activityUnit }) => toLot(lot, enzymeName, activityUnit));
 
 /** A lot of the caller's site, or 404 (also for another site's id). */
-function siteLot(db: Db, u: SessionUser, id: number) {
-  const found = findSiteLot(db, u.siteId, id);
+async function siteLot(db: Db, u: SessionUser, id: number) {
+  const found = await findSiteLot(db, u.siteId, id);
   if (!found) throw notFound('Lot');
   return found;
 }
 
 /** A lot recipes, plans and batches may use: the site's own, and accepted by procurement; else 400. */
-export function acceptedLot(db: Db, siteId: number, lotId: number): LotRow {
-  const lot = findSiteLot(db, siteId, lotId)?.lot;
+export async function acceptedLot(db: Db, siteId: number, lotId: number): Promise<LotRow> {
+  const lot = (await findSiteLot(db, siteId, lotId))?.lot;
   if (!lot) throw new HttpError(400, 'invalid_input', 'No such lot at this site', { lotId: 'No such lot at this site' });
   if (lot.status !== 'accepted')
     throw new HttpError(400, 'lot_not_accepted', `Lot ${lot.lotCode} is ${lot.status}; only accepted lots can be planned with`, {
@@ -42,42 +42,45 @@ export function acceptedLot(db: Db, siteId: number, lotId: number): LotRow {
   return lot;
 }
 
-export function listLotAssayViews(db: Db, u: SessionUser, lotId: number, specTempC: number): Assay[] {
-  return listLotAssays(db, u.siteId, lotId).map(({ assay, createdBy }) => ({
-    id: assay.id,
-    lotId: assay.lotId,
-    source: assay.source,
-    fileName: assay.fileName,
-    scale: assay.scale,
-    scaleNote: assay.scaleNote,
-    createdAt: assay.createdAt,
-    createdBy: createdBy ?? 'unknown',
-    fit: assay.fit ?? null,
-    fitProblem: assay.fitProblem,
-    atSpec: assay.fit ? fitHalfLifeAt(assay.fit, specTempC) : null,
-    pointCount: assay.pointCount,
-    points: listAssayPoints(db, assay.id, MAX_POINTS_SHOWN).map(({ id: _i, assayId: _a, ...p }) => p),
-  }));
+export async function listLotAssayViews(db: Db, u: SessionUser, lotId: number, specTempC: number): Promise<Assay[]> {
+  const views: Assay[] = [];
+  for (const { assay, createdBy } of await listLotAssays(db, u.siteId, lotId))
+    views.push({
+      id: assay.id,
+      lotId: assay.lotId,
+      source: assay.source,
+      fileName: assay.fileName,
+      scale: assay.scale,
+      scaleNote: assay.scaleNote,
+      createdAt: assay.createdAt,
+      createdBy: createdBy ?? 'unknown',
+      fit: assay.fit ?? null,
+      fitProblem: assay.fitProblem,
+      atSpec: assay.fit ? fitHalfLifeAt(assay.fit, specTempC) : null,
+      pointCount: assay.pointCount,
+      points: (await listAssayPoints(db, assay.id, MAX_POINTS_SHOWN)).map(({ id: _i, assayId: _a, ...p }) => p),
+    });
+  return views;
 }
 
-function certificateView(db: Db, siteId: number, lotId: number): CertificateFile | null {
-  const c = latestCertificate(db, siteId, lotId);
+async function certificateView(db: Db, siteId: number, lotId: number): Promise<CertificateFile | null> {
+  const c = await latestCertificate(db, siteId, lotId);
   if (!c) return null;
   const { fileName, mimeType, sizeBytes, sha256, uploadedAt } = c.file;
   return { fileName, mimeType, sizeBytes, sha256, uploadedAt, uploadedBy: c.uploadedBy ?? 'unknown' };
 }
 
-export function getLot({ db }: Services, u: SessionUser, id: number): LotDetail {
-  const { lot, enzymeName, activityUnit, decidedBy } = siteLot(db, u, id);
-  const enzyme = findSiteEnzyme(db, u.siteId, lot.enzymeId)!;
-  const assays = listLotAssayViews(db, u, id, enzyme.specTempC);
+export async function getLot({ db }: Services, u: SessionUser, id: number): Promise<LotDetail> {
+  const { lot, enzymeName, activityUnit, decidedBy } = await siteLot(db, u, id);
+  const enzyme = (await findSiteEnzyme(db, u.siteId, lot.enzymeId))!;
+  const assays = await listLotAssayViews(db, u, id, enzyme.specTempC);
   const fitted = assays.find((a) => a.fit);
   const { siteId: _s, createdAt: _c, ...e } = enzyme;
   return {
     lot: toLot(lot, enzymeName, activityUnit),
     enzyme: e,
     conversion: certConversion(lot.certStability),
-    certificate: certificateView(db, u.siteId, id),
+    certificate: await certificateView(db, u.siteId, id),
     assays,
     evaluation: evaluateLot(enzyme, lot, fitted?.fit ?? null),
     disagreement: certificateDisagreement({
@@ -90,16 +93,16 @@ export function getLot({ db }: Services, u: SessionUser, id: number): LotDetail 
 }
 
 /** Registers an incoming lot; it starts quarantined until procurement decides. */
-export function createLot({ db, clock }: Services, u: SessionUser, input: LotInput): Lot {
-  const enzyme = findSiteEnzyme(db, u.siteId, input.enzymeId);
+export async function createLot({ db, clock }: Services, u: SessionUser, input: LotInput): Promise<Lot> {
+  const enzyme = await findSiteEnzyme(db, u.siteId, input.enzymeId);
   if (!enzyme) throw new HttpError(400, 'invalid_input', 'Some fields are not valid', { enzymeId: 'No such enzyme at this site' });
-  if (findLotByCode(db, enzyme.id, input.lotCode)) {
+  if (await findLotByCode(db, enzyme.id, input.lotCode)) {
     throw new HttpError(409, 'duplicate_lot', 'This lot code is already registered for this enzyme', { lotCode: 'Already registered' });
   }
   const conv = certConversion(input.certStability);
   const now = clock.now();
-  return writeTx(db, (tx) => {
-    const row = insertLot(tx, {
+  return writeTx(db, async (tx) => {
+    const row = await insertLot(tx, {
       siteId: u.siteId,
       enzymeId: enzyme.id,
       lotCode: input.lotCode,
@@ -112,7 +115,7 @@ export function createLot({ db, clock }: Services, u: SessionUser, input: LotInp
       certTempC: conv.tempC,
       status: 'quarantined',
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -127,17 +130,17 @@ export function createLot({ db, clock }: Services, u: SessionUser, input: LotInp
 }
 
 /** Procurement's decision on a quarantined lot, with its reason and the evaluation it was shown, audited. */
-export function decideLot(s: Services, u: SessionUser, id: number, d: LotDecision): LotDetail {
+export async function decideLot(s: Services, u: SessionUser, id: number, d: LotDecision): Promise<LotDetail> {
   const { db, clock } = s;
-  const before = getLot(s, u, id);
+  const before = await getLot(s, u, id);
   if (before.lot.status !== 'quarantined') {
     throw new HttpError(409, 'already_decided', `This lot was already ${before.lot.status}`);
   }
   const now = clock.now();
   const status = d.decision === 'accept' ? 'accepted' : 'rejected';
-  writeTx(db, (tx) => {
-    setLotDecision(tx, id, { status, decisionReason: d.reason, decidedBy: u.id, decidedAt: now.toISOString() });
-    appendAudit(tx, {
+  await writeTx(db, async (tx) => {
+    await setLotDecision(tx, id, { status, decisionReason: d.reason, decidedBy: u.id, decidedAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -175,8 +178,13 @@ export function sniffCertificateType(bytes: Buffer): CertificateFile['mimeType']
 // A name fit for a Content-Disposition header and a file system: no path, no control characters.
 const safeName = (name: string) => (name.split(/[\\/]/).pop() ?? 'certificate').replace(/[^\w.\- ()]/g, '_').slice(0, 120) || 'certificate';
 
-export function attachCertificate(s: LotServices, u: SessionUser, id: number, file: { originalname: string; buffer: Buffer } | undefined): CertificateFile {
-  siteLot(s.db, u, id);
+export async function attachCertificate(
+  s: LotServices,
+  u: SessionUser,
+  id: number,
+  file: { originalname: string; buffer: Buffer } | undefined,
+): Promise<CertificateFile> {
+  await siteLot(s.db, u, id);
   if (!file) throw new HttpError(400, 'file_missing', 'Attach the certificate as the form field "file"', { file: 'Choose a PDF, PNG or JPEG file' });
   if (file.buffer.length === 0) throw new HttpError(400, 'file_empty', 'The file is empty', { file: 'The file is empty' });
   const mime = sniffCertificateType(file.buffer);
@@ -194,8 +202,8 @@ export function attachCertificate(s: LotServices, u: SessionUser, id: number, fi
   const { sha256 } = s.files.put(file.buffer);
   const now = s.clock.now();
   const fileName = safeName(file.originalname);
-  writeTx(s.db, (tx) => {
-    insertCertificate(tx, {
+  await writeTx(s.db, async (tx) => {
+    await insertCertificate(tx, {
       siteId: u.siteId,
       lotId: id,
       fileName,
@@ -205,7 +213,7 @@ export function attachCertificate(s: LotServices, u: SessionUser, id: number, fi
       uploadedBy: u.id,
       uploadedAt: now.toISOString(),
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -216,12 +224,12 @@ export function attachCertificate(s: LotServices, u: SessionUser, id: number, fi
       at: now,
     });
   });
-  return certificateView(s.db, u.siteId, id)!;
+  return (await certificateView(s.db, u.siteId, id))!;
 }
 
-export function readCertificate(s: LotServices, u: SessionUser, id: number): { file: CertificateFile; bytes: Buffer } {
-  siteLot(s.db, u, id);
-  const file = certificateView(s.db, u.siteId, id);
+export async function readCertificate(s: LotServices, u: SessionUser, id: number): Promise<{ file: CertificateFile; bytes: Buffer }> {
+  await siteLot(s.db, u, id);
+  const file = await certificateView(s.db, u.siteId, id);
   if (!file) throw notFound('Certificate');
   const bytes = s.files.get(file.sha256);
   if (!bytes) throw new HttpError(410, 'file_unavailable', 'The stored certificate is missing or no longer matches its SHA-256');

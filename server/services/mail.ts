@@ -10,8 +10,8 @@ import { findSiteMail, insertMail, listDueMail, listSiteMail, updateMail, type M
 export type MailInput = { siteId: number | null; to: string; subject: string; text: string; html?: string; kind: string; at: Date };
 
 /** Queues a message. Call inside the write's transaction: the record and its notice land together. */
-export function enqueueMail(tx: Db, m: MailInput): MailRow {
-  return insertMail(tx, {
+export async function enqueueMail(tx: Db, m: MailInput): Promise<MailRow> {
+  return await insertMail(tx, {
     siteId: m.siteId,
     to: m.to,
     subject: m.subject,
@@ -68,16 +68,16 @@ export function createMailSender(opts: { db: Db; clock: Clock; transport: MailTr
   async function round() {
     let sent = 0;
     let failed = 0;
-    for (const m of listDueMail(db, clock.now().toISOString(), opts.batch ?? 50)) {
+    for (const m of await listDueMail(db, clock.now().toISOString(), opts.batch ?? 50)) {
       try {
         await transport.sendMail({ from, to: m.to, subject: m.subject, text: m.text, html: m.html ?? undefined });
-        updateMail(db, m.id, { status: 'sent', attempts: m.attempts + 1, sentAt: clock.now().toISOString(), lastError: null });
+        await updateMail(db, m.id, { status: 'sent', attempts: m.attempts + 1, sentAt: clock.now().toISOString(), lastError: null });
         sent++;
       } catch (e) {
         const attempts = m.attempts + 1;
         const lastError = (e instanceof Error ? e.message : String(e)).slice(0, 500);
         const giveUp = attempts >= MAX_ATTEMPTS;
-        updateMail(db, m.id, {
+        await updateMail(db, m.id, {
           status: giveUp ? 'failed' : 'pending',
           attempts,
           lastError,
@@ -127,17 +127,17 @@ const toMessage = (m: MailRow): OutboxMessage => ({
   sentAt: m.sentAt,
 });
 
-export const siteOutbox = (db: Db, actor: SessionUser): Outbox => ({ messages: listSiteMail(db, actor.siteId, 200).map(toMessage) });
+export const siteOutbox = async (db: Db, actor: SessionUser): Promise<Outbox> => ({ messages: (await listSiteMail(db, actor.siteId, 200)).map(toMessage) });
 
 /** Puts a message that gave up back in the queue, due now. */
-export function retryMail(db: Db, clock: Clock, actor: SessionUser, id: number): OutboxMessage {
-  const m = findSiteMail(db, actor.siteId, id);
+export async function retryMail(db: Db, clock: Clock, actor: SessionUser, id: number): Promise<OutboxMessage> {
+  const m = await findSiteMail(db, actor.siteId, id);
   if (!m) throw notFound('Message');
   if (m.status === 'sent') throw new HttpError(409, 'already_sent', 'This message was already delivered');
   const now = clock.now();
-  return writeTx(db, (tx) => {
-    const after = updateMail(tx, id, { status: 'pending', attempts: 0, nextAttemptAt: now.toISOString() });
-    appendAudit(tx, {
+  return writeTx(db, async (tx) => {
+    const after = await updateMail(tx, id, { status: 'pending', attempts: 0, nextAttemptAt: now.toISOString() });
+    await appendAudit(tx, {
       siteId: actor.siteId,
       userId: actor.id,
       actor: actor.email,

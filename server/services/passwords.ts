@@ -18,15 +18,15 @@ export const RESET_HOURS = 24;
 
 /** Your own password: the current one must be right; every other session of yours ends. */
 export async function changeOwnPassword(ctx: AuthContext, u: SessionUser, sessionId: string, input: ChangePassword): Promise<void> {
-  const found = findUserWithSite(ctx.db, u.id);
+  const found = await findUserWithSite(ctx.db, u.id);
   if (!found || !(await bcrypt.compare(input.currentPassword, found.user.passwordHash)))
     throw new HttpError(400, 'wrong_password', 'The current password is not right', { currentPassword: 'Not your current password' });
   const passwordHash = await hashPassword(input.newPassword);
   const now = ctx.clock.now();
-  writeTx(ctx.db, (tx) => {
-    updateUser(tx, u.id, { passwordHash });
-    revokeOtherSessions(tx, u.id, sessionId, now.toISOString());
-    appendAudit(tx, {
+  await writeTx(ctx.db, async (tx) => {
+    await updateUser(tx, u.id, { passwordHash });
+    await revokeOtherSessions(tx, u.id, sessionId, now.toISOString());
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -51,7 +51,7 @@ export type ResetContext = AuthContext & Pick<AppContext, 'linkUrl' | 'mail'>;
 
 /** An admin mails a reset link to one of the site's active people (through the outbox). */
 export async function sendPasswordReset(ctx: ResetContext, admin: SessionUser, userId: number): Promise<{ to: string; expiresAt: string }> {
-  const user = findSiteUser(ctx.db, admin.siteId, userId);
+  const user = await findSiteUser(ctx.db, admin.siteId, userId);
   if (!user) throw notFound('User');
   if (!user.isActive) throw new HttpError(409, 'user_inactive', `${user.name} is deactivated; invite them again to let them back in`);
   const now = ctx.clock.now();
@@ -62,9 +62,9 @@ export async function sendPasswordReset(ctx: ResetContext, admin: SessionUser, u
     .setIssuedAt(Math.floor(now.getTime() / 1000))
     .setExpirationTime(Math.floor(expires.getTime() / 1000))
     .sign(resetKey(ctx.auth.secret));
-  const site = findSite(ctx.db, admin.siteId);
-  writeTx(ctx.db, (tx) => {
-    enqueueMail(tx, {
+  const site = await findSite(ctx.db, admin.siteId);
+  await writeTx(ctx.db, async (tx) => {
+    await enqueueMail(tx, {
       siteId: admin.siteId,
       to: user.email,
       kind: 'password-reset',
@@ -79,7 +79,7 @@ export async function sendPasswordReset(ctx: ResetContext, admin: SessionUser, u
       ].join('\n'),
       at: now,
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: admin.siteId,
       userId: admin.id,
       actor: admin.email,
@@ -106,7 +106,7 @@ async function openReset(ctx: AuthContext, token: string): Promise<{ user: UserR
       expired ? 'This reset link has expired. Ask your site admin for a new one.' : 'This reset link is not valid. Ask your site admin for a new one.',
     );
   }
-  const found = claims.purpose === 'password-reset' && claims.sub ? findUserWithSite(ctx.db, Number(claims.sub)) : undefined;
+  const found = claims.purpose === 'password-reset' && claims.sub ? await findUserWithSite(ctx.db, Number(claims.sub)) : undefined;
   if (!found || !found.user.isActive) throw new HttpError(404, 'reset_not_found', 'This reset link is not valid. Ask your site admin for a new one.');
   if (claims.fp !== fingerprint(found.user))
     throw new HttpError(
@@ -127,14 +127,14 @@ export async function resetPassword(ctx: AuthContext, input: PasswordReset): Pro
   const { user } = await openReset(ctx, input.token);
   const passwordHash = await hashPassword(input.password);
   const now = ctx.clock.now();
-  writeTx(ctx.db, (tx) => {
+  await writeTx(ctx.db, async (tx) => {
     // Read again after the slow hash: the same link submitted twice sets one password.
-    const current = findSiteUser(tx, user.siteId, user.id);
+    const current = await findSiteUser(tx, user.siteId, user.id);
     if (!current || fingerprint(current) !== fingerprint(user))
       throw new HttpError(410, 'reset_used', 'This reset link was already used. Sign in with your new password.');
-    updateUser(tx, user.id, { passwordHash });
-    revokeUserSessions(tx, user.id, now.toISOString());
-    appendAudit(tx, {
+    await updateUser(tx, user.id, { passwordHash });
+    await revokeUserSessions(tx, user.id, now.toISOString());
+    await appendAudit(tx, {
       siteId: user.siteId,
       userId: user.id,
       actor: user.email,

@@ -18,7 +18,7 @@ import { acceptedLot } from './lots';
 export const planContentHash = (p: Pick<Plan, 'inputs' | 'outputs' | 'modelVersion'>) =>
   sha256(canonicalJson({ inputs: p.inputs, outputs: p.outputs, modelVersion: p.modelVersion }));
 
-const toPlan = (db: Db, { plan: p, recipeName, lotCode, vesselName, createdBy }: PlanJoined): Plan => ({
+const toPlan = async (db: Db, { plan: p, recipeName, lotCode, vesselName, createdBy }: PlanJoined): Promise<Plan> => ({
   id: p.id,
   recipeId: p.recipeId,
   recipeName,
@@ -30,33 +30,34 @@ const toPlan = (db: Db, { plan: p, recipeName, lotCode, vesselName, createdBy }:
   contentHash: p.contentHash,
   inputs: p.inputs,
   outputs: p.outputs,
-  olderEvidence: olderEvidence(db, p.siteId, p),
+  olderEvidence: await olderEvidence(db, p.siteId, p),
 });
 
-export const listPlans = ({ db }: Services, u: SessionUser, q: PlanQuery): Plan[] => listSitePlans(db, u.siteId, q.recipeId).map((j) => toPlan(db, j));
+export const listPlans = async ({ db }: Services, u: SessionUser, q: PlanQuery): Promise<Plan[]> =>
+  Promise.all((await listSitePlans(db, u.siteId, q.recipeId)).map((j) => toPlan(db, j)));
 
-export function getPlan({ db }: Services, u: SessionUser, id: number): Plan {
-  const found = findSitePlan(db, u.siteId, id);
+export async function getPlan({ db }: Services, u: SessionUser, id: number): Promise<Plan> {
+  const found = await findSitePlan(db, u.siteId, id);
   if (!found) throw notFound('Plan');
   return toPlan(db, found);
 }
 
 /** Recomputes the plan from stored records and the engineer's choices only, then stores it once. */
-export function createPlan({ db, clock }: Services, u: SessionUser, inputs: PlanInputs): Plan {
-  const found = findSiteRecipe(db, u.siteId, inputs.recipeId);
+export async function createPlan({ db, clock }: Services, u: SessionUser, inputs: PlanInputs): Promise<Plan> {
+  const found = await findSiteRecipe(db, u.siteId, inputs.recipeId);
   if (!found) throw notFound('Recipe');
   const { recipe } = found;
-  const lot = acceptedLot(db, u.siteId, inputs.lotId);
+  const lot = await acceptedLot(db, u.siteId, inputs.lotId);
   if (lot.enzymeId !== recipe.enzymeId)
     throw new HttpError(400, 'invalid_input', 'The lot is of another enzyme', { lotId: `Choose a lot of ${found.enzymeName}` });
-  const enzyme = findSiteEnzyme(db, u.siteId, recipe.enzymeId)!;
-  const vessel = findSiteVessel(db, u.siteId, recipe.vesselId)!;
-  const outputs = computePlanOutputs(planContext(recipe, enzyme, planningLot(db, u.siteId, lot, recipe.id), vessel), inputs);
+  const enzyme = (await findSiteEnzyme(db, u.siteId, recipe.enzymeId))!;
+  const vessel = (await findSiteVessel(db, u.siteId, recipe.vesselId))!;
+  const outputs = computePlanOutputs(planContext(recipe, enzyme, await planningLot(db, u.siteId, lot, recipe.id), vessel), inputs);
   assertFiniteResult(outputs, 'plan');
   const now = clock.now().toISOString();
   const contentHash = planContentHash({ inputs, outputs, modelVersion: MODEL_VERSION });
-  return writeTx(db, (tx) => {
-    const row = insertPlan(tx, {
+  return writeTx(db, async (tx) => {
+    const row = await insertPlan(tx, {
       siteId: u.siteId,
       recipeId: recipe.id,
       lotId: lot.id,
@@ -76,7 +77,7 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
       constraintsMet: outputs.constraintsMet,
       contentHash,
     });
-    appendAudit(tx, {
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -94,13 +95,13 @@ export function createPlan({ db, clock }: Services, u: SessionUser, inputs: Plan
       },
       at: clock.now(),
     });
-    return toPlan(tx, findSitePlan(tx, u.siteId, row.id)!);
+    return toPlan(tx, (await findSitePlan(tx, u.siteId, row.id))!);
   });
 }
 
 /** One plan as field/value rows: inputs, outputs, stages and the hash, safe to open in a spreadsheet. */
-export function planCsv(s: Services, u: SessionUser, id: number): { filename: string; csv: string } {
-  const p = getPlan(s, u, id);
+export async function planCsv(s: Services, u: SessionUser, id: number): Promise<{ filename: string; csv: string }> {
+  const p = await getPlan(s, u, id);
   const o = p.outputs;
   const cur = u.siteCurrency;
   const rows: unknown[][] = [

@@ -29,8 +29,8 @@ const HISTORIAN_KEY = 'historian:';
 const importsRunning = new Map<number, Omit<ImportProgress, 'isRunning' | 'phase'> & { phase: 'reading' | 'storing' }>();
 
 /** How far a running import into the batch is, or null when none runs. */
-export function importProgress(s: Services, u: SessionUser, id: number): ImportProgress {
-  loadBatch(s.db, u.siteId, id);
+export async function importProgress(s: Services, u: SessionUser, id: number): Promise<ImportProgress> {
+  await loadBatch(s.db, u.siteId, id);
   const p = importsRunning.get(id);
   return p ? { isRunning: true, ...p } : { isRunning: false, bytesRead: 0, bytesTotal: 0, phase: null, rowsStored: 0, rowsToStore: 0 };
 }
@@ -39,7 +39,7 @@ export function importProgress(s: Services, u: SessionUser, id: number): ImportP
 async function historianKeys(s: Services, batchId: number): Promise<string[]> {
   const pages: string[] = [];
   for (let after = HISTORIAN_KEY; ;) {
-    const page = readingKeysAfter(s.db, batchId, after, KEYS_PER_TURN).filter((k) => k.startsWith(HISTORIAN_KEY));
+    const page = (await readingKeysAfter(s.db, batchId, after, KEYS_PER_TURN)).filter((k) => k.startsWith(HISTORIAN_KEY));
     if (page.length) pages.push(page.join('\n'));
     if (page.length < KEYS_PER_TURN) return pages;
     after = page.at(-1)!;
@@ -77,7 +77,7 @@ function partEnds(rows: number, draftIndices: readonly number[]): number[] {
  */
 export async function importReadings(s: Services, u: SessionUser, id: number, bytes: Uint8Array, q: ImportQuery): Promise<ImportResult> {
   const { db, clock } = s;
-  const b0 = runningBatch(db, u.siteId, id).batch;
+  const b0 = (await runningBatch(db, u.siteId, id)).batch;
   const timeZone = q.timeZone ?? u.siteTimeZone;
   if (!isTimeZone(timeZone))
     throw new HttpError(400, 'invalid_input', `Unknown time zone ${timeZone}`, { timeZone: 'Give an IANA zone such as Europe/Berlin' });
@@ -85,11 +85,11 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
   const progress = { bytesRead: 0, bytesTotal: bytes.length, phase: 'reading' as 'reading' | 'storing', rowsStored: 0, rowsToStore: 0 };
   importsRunning.set(id, progress);
   try {
-    const record = batchRecordOf(db, b0);
+    const record = await batchRecordOf(db, b0);
     const basis: ImportBasis = {
       startedAt: b0.startedAt,
       program: b0.program,
-      settings: batchSettingsOf(db, u.siteId),
+      settings: await batchSettingsOf(db, u.siteId),
       nowMs: clock.now().getTime(),
       storedKeys: await historianKeys(s, b0.id),
       storedH: Float64Array.from(record.points, (p) => p.h),
@@ -100,7 +100,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
     progress.phase = 'storing';
     if (plan.total === 0) throw new HttpError(400, 'invalid_input', 'The file has no readings', { file: 'Expected lines of time and °C' });
     // Read again: the batch may have closed while the file was being read.
-    const b = runningBatch(db, u.siteId, id).batch;
+    const b = (await runningBatch(db, u.siteId, id)).batch;
     const now = clock.now();
     const n = plan.atMs.length;
     // Each row's stored time and point, made part by part (300,000 at once would be one long turn).
@@ -124,9 +124,9 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
     for (let part = 0, from = 0; part < ends.length; part++) {
       const to = ends[part]!;
       if (part > 0) await nextTurn();
-      const current = part > 0 ? runningBatch(db, u.siteId, id).batch : b;
-      raised += writeTx(db, (t) => {
-        alone &&= newestReadingId(t, b.id) === (from === 0 ? record.version : ids[from - 1]!);
+      const current = part > 0 ? (await runningBatch(db, u.siteId, id)).batch : b;
+      raised += await writeTx(db, async (t) => {
+        alone &&= (await newestReadingId(t, b.id)) === (from === 0 ? record.version : ids[from - 1]!);
         const rows = [];
         for (let i = from; i < to; i++) {
           const iso = (at[i] = new Date(plan.atMs[i]!).toISOString());
@@ -143,10 +143,10 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
             receivedAt: now.toISOString(),
           });
         }
-        const stored = insertReadings(t, rows);
+        const stored = await insertReadings(t, rows);
         stored.forEach((rid, i) => (ids[from + i] = rid));
         if (part === 0)
-          appendAudit(t, {
+          await appendAudit(t, {
             siteId: u.siteId,
             userId: u.id,
             actor: u.email,
@@ -170,7 +170,7 @@ export async function importReadings(s: Services, u: SessionUser, id: number, by
         // The forecast and the corrective setpoint come from the whole record: once, with the last part.
         const last = part === ends.length - 1;
         const status = () => (alone && plan.status ? statusAtHour(b.program, plan.status, (now.getTime() - startMs) / 3_600_000) : null);
-        return mine.length || (n && last) ? raiseDeviations(t, u, current, mine, now, { checkForecast: last, withCorrective: last, status }).length : 0;
+        return mine.length || (n && last) ? (await raiseDeviations(t, u, current, mine, now, { checkForecast: last, withCorrective: last, status })).length : 0;
       });
       progress.rowsStored = to;
       from = to;

@@ -32,9 +32,9 @@ export const toReading = (r: ReadingRow, enteredBy: string, startedAt: string): 
 });
 
 /** A page of the readings table, newest first; `before` is the id of the last reading of the previous page. */
-export function getReadingsPage(s: Services, u: SessionUser, id: number, q: { before?: number; limit: number }): ReadingsPage {
-  const b = loadBatch(s.db, u.siteId, id).batch;
-  const rows = readingsPage(s.db, b.id, q.limit + 1, q.before ?? null);
+export async function getReadingsPage(s: Services, u: SessionUser, id: number, q: { before?: number; limit: number }): Promise<ReadingsPage> {
+  const b = (await loadBatch(s.db, u.siteId, id)).batch;
+  const rows = await readingsPage(s.db, b.id, q.limit + 1, q.before ?? null);
   if (!rows) throw new HttpError(400, 'invalid_input', 'No such reading in this batch', { before: 'Give the id of a reading of this batch' });
   const readings = rows.slice(0, q.limit).map((r) => toReading(r.reading, r.enteredBy, b.startedAt));
   return { readings, nextBefore: rows.length > q.limit ? readings.at(-1)!.id : null };
@@ -69,12 +69,12 @@ export type ReadingIngest = { log(u: SessionUser, batchId: number, input: Readin
 export function readingIngest(s: Services, opts: { checkForecast?: boolean } = {}): ReadingIngest {
   const checksForecast = () => opts.checkForecast !== false;
   let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
-  const flush = () => {
+  const flush = async () => {
     const items = queue;
     queue = [];
     let stored: Stored[];
     try {
-      stored = storeReadings(
+      stored = await storeReadings(
         s,
         items.map((i) => i.req),
         checksForecast,
@@ -83,49 +83,46 @@ export function readingIngest(s: Services, opts: { checkForecast?: boolean } = {
       for (const i of items) i.reject(err);
       return;
     }
-    items.forEach((item, k) => {
-      const o = stored[k];
-      if ('error' in o) return item.reject(o.error);
-      if (o.created) return item.resolve(o);
-      try {
-        item.resolve({ created: false, result: readingAnswer(s.db, o.readingId, o.startedAt) });
-      } catch (err) {
-        item.reject(err);
-      }
-    });
+    for (const [k, item] of items.entries()) {
+      const o = stored[k]!;
+      if ('error' in o) item.reject(o.error);
+      else if (o.created) item.resolve(o);
+      else readingAnswer(s.db, o.readingId, o.startedAt).then((result) => item.resolve({ created: false, result }), item.reject);
+    }
   };
   return {
     log: (u, batchId, input, source = 'manual') =>
       new Promise<Logged>((resolve, reject) => {
-        if (queue.push({ req: { u, batchId, input, source }, resolve, reject }) === 1) setImmediate(flush);
+        if (queue.push({ req: { u, batchId, input, source }, resolve, reject }) === 1) setImmediate(() => void flush());
       }),
   };
 }
 
-function readingAnswer(db: Db, readingId: number, startedAt: string): ReadingResult {
-  const r = findReadingJoined(db, readingId)!;
-  return { reading: toReading(r.reading, r.enteredBy, startedAt), deviations: deviationsOfReading(db, readingId).map(toDeviation) };
+async function readingAnswer(db: Db, readingId: number, startedAt: string): Promise<ReadingResult> {
+  const r = (await findReadingJoined(db, readingId))!;
+  return { reading: toReading(r.reading, r.enteredBy, startedAt), deviations: (await deviationsOfReading(db, readingId)).map(toDeviation) };
 }
 
 /** One transaction for a group of readings; per reading its stored id or the error that refused it. */
-function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksForecast: () => boolean): Stored[] {
+async function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksForecast: () => boolean): Promise<Stored[]> {
   const now = clock.now();
-  return writeTx(db, (t, savepoint) => {
+  return await writeTx(db, async (t, savepoint) => {
     const groups = new Map<string, BatchGroup>();
-    const out = reqs.map((req): Stored => {
+    const out: Stored[] = [];
+    for (const req of reqs) {
       try {
-        return savepoint(() => storeReading(t, groups, req, now));
+        out.push(await savepoint(() => storeReading(t, groups, req, now)));
       } catch (error) {
         // A file that cannot be written fails the whole group, not one reading.
         if (unwritableReason(error)) throw error;
-        return { error };
+        out.push({ error });
       }
-    });
+    }
     // Once per batch and flush: the status (and so a low forecast and the corrective setpoints) needs every reading.
     const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
     for (const g of groups.values()) {
       if (!g.lastBy) continue;
-      for (const row of raiseDeviations(t, g.lastBy, g.b, g.raised, now, { checkForecast: checksForecast() }))
+      for (const row of await raiseDeviations(t, g.lastBy, g.b, g.raised, now, { checkForecast: checksForecast() }))
         if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
     }
     return out;
@@ -133,18 +130,18 @@ function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksFo
 }
 
 /** Stores one reading once per key: the first answers 201, a repeat of the same reading 200 with the same body. */
-function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input, source }: ReadingRequest, now: Date): Stored {
+async function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input, source }: ReadingRequest, now: Date): Promise<Stored> {
   const groupKey = `${u.siteId}:${batchId}`;
   let g = groups.get(groupKey);
   if (!g) {
-    const b = loadBatch(t, u.siteId, batchId).batch;
-    g = { b, rules: rulesOf(b.program, batchSettingsOf(t, u.siteId)), raised: [], lastBy: null };
+    const b = (await loadBatch(t, u.siteId, batchId)).batch;
+    g = { b, rules: rulesOf(b.program, await batchSettingsOf(t, u.siteId)), raised: [], lastBy: null };
     groups.set(groupKey, g);
   }
   const b = g.b;
   const takenAt = new Date(input.takenAt).toISOString();
   const note = input.note ? input.note : null;
-  const existing = findReadingByKey(t, b.id, input.key);
+  const existing = await findReadingByKey(t, b.id, input.key);
   if (existing) {
     if (existing.takenAt !== takenAt || existing.c !== input.c || existing.note !== note)
       throw new HttpError(409, 'key_reused', 'This reading key was already used for a different reading', { key: 'Already used for another reading' });
@@ -154,10 +151,10 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
   const bad = checkReadingTime(b.startedAt, Date.parse(takenAt), now);
   if (bad) throw new HttpError(400, 'invalid_input', bad, { takenAt: bad });
   // Only the reading before this one in time matters to the rules; earlier readings of this group count too.
-  const before = readingAtOrBefore(t, b.id, takenAt);
+  const before = await readingAtOrBefore(t, b.id, takenAt);
   const prev = before ? { h: batchHours(b.startedAt, before.takenAt), c: before.c } : null;
   const drafts = readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c });
-  const row = insertReading(t, {
+  const row = await insertReading(t, {
     siteId: u.siteId,
     batchId: b.id,
     clientKey: input.key,
@@ -168,7 +165,7 @@ function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, inpu
     enteredBy: u.id,
     receivedAt: now.toISOString(),
   });
-  appendAudit(t, {
+  await appendAudit(t, {
     siteId: u.siteId,
     userId: u.id,
     actor: u.email,

@@ -8,10 +8,10 @@ import { countSiteRecords, findSite, updateSite } from '../repositories/sites';
 import { countUsersByRole } from '../repositories/users';
 import type { Services } from '../context';
 
-export function siteSummary({ db }: Services, u: SessionUser): SiteSummary {
-  const site = findSite(db, u.siteId);
+export async function siteSummary({ db }: Services, u: SessionUser): Promise<SiteSummary> {
+  const site = await findSite(db, u.siteId);
   if (!site) throw notFound('Site');
-  const byRole = countUsersByRole(db, u.siteId);
+  const byRole = await countUsersByRole(db, u.siteId);
   const usersByRole = Object.fromEntries(ROLES.map((r) => [r, byRole.find((b) => b.role === r)?.n ?? 0])) as SiteSummary['usersByRole'];
   return {
     id: site.id,
@@ -21,20 +21,20 @@ export function siteSummary({ db }: Services, u: SessionUser): SiteSummary {
     counts: {
       users: byRole.reduce((a, b) => a + b.n, 0),
       activeUsers: byRole.reduce((a, b) => a + (b.active ?? 0), 0),
-      ...countSiteRecords(db, u.siteId),
+      ...(await countSiteRecords(db, u.siteId)),
     },
     usersByRole,
   };
 }
 
 /** Sets the site's currency; amounts are shown in it from the next read on (nothing is converted). Audited. */
-export function changeSite(s: Services, u: SessionUser, patch: SitePatch): SiteSummary {
-  const site = findSite(s.db, u.siteId);
+export async function changeSite(s: Services, u: SessionUser, patch: SitePatch): Promise<SiteSummary> {
+  const site = await findSite(s.db, u.siteId);
   if (!site) throw notFound('Site');
   const now = s.clock.now();
-  writeTx(s.db, (tx) => {
-    updateSite(tx, u.siteId, patch);
-    appendAudit(tx, {
+  await writeTx(s.db, async (tx) => {
+    await updateSite(tx, u.siteId, patch);
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,

@@ -8,19 +8,19 @@ import { appendAudit } from './audit';
 
 const toVessel = ({ siteId: _s, createdAt: _c, ...v }: VesselRow): Vessel => v;
 
-export const listVessels = ({ db }: Services, u: SessionUser): Vessel[] => listSiteVessels(db, u.siteId).map(toVessel);
+export const listVessels = async ({ db }: Services, u: SessionUser): Promise<Vessel[]> => (await listSiteVessels(db, u.siteId)).map(toVessel);
 
-function assertNameFree(db: Db, siteId: number, name: string, exceptId?: number) {
-  const clash = findSiteVesselByName(db, siteId, name);
+async function assertNameFree(db: Db, siteId: number, name: string, exceptId?: number) {
+  const clash = await findSiteVesselByName(db, siteId, name);
   if (clash && clash.id !== exceptId) throw new HttpError(409, 'name_taken', 'A vessel with this name exists', { name: 'A vessel with this name exists' });
 }
 
-export function createVessel({ db, clock }: Services, u: SessionUser, input: VesselInput): Vessel {
-  assertNameFree(db, u.siteId, input.name);
+export async function createVessel({ db, clock }: Services, u: SessionUser, input: VesselInput): Promise<Vessel> {
+  await assertNameFree(db, u.siteId, input.name);
   const now = clock.now();
-  return writeTx(db, (tx) => {
-    const row = insertVessel(tx, u.siteId, input);
-    appendAudit(tx, {
+  return writeTx(db, async (tx) => {
+    const row = await insertVessel(tx, u.siteId, input);
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,
@@ -35,16 +35,16 @@ export function createVessel({ db, clock }: Services, u: SessionUser, input: Ves
 }
 
 /** Applies a partial change; the merged vessel must still pass every limit rule. */
-export function changeVessel({ db, clock }: Services, u: SessionUser, id: number, patch: VesselPatch): Vessel {
-  const before = findSiteVessel(db, u.siteId, id);
+export async function changeVessel({ db, clock }: Services, u: SessionUser, id: number, patch: VesselPatch): Promise<Vessel> {
+  const before = await findSiteVessel(db, u.siteId, id);
   if (!before) throw notFound('Vessel');
   const { id: _id, ...current } = toVessel(before);
   const merged = VesselInput.parse({ ...current, ...patch });
-  assertNameFree(db, u.siteId, merged.name, id);
+  await assertNameFree(db, u.siteId, merged.name, id);
   const now = clock.now();
-  return writeTx(db, (tx) => {
-    const after = updateVessel(tx, id, merged);
-    appendAudit(tx, {
+  return writeTx(db, async (tx) => {
+    const after = await updateVessel(tx, id, merged);
+    await appendAudit(tx, {
       siteId: u.siteId,
       userId: u.id,
       actor: u.email,

@@ -6,7 +6,7 @@ import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { migrateDb, openDb, writeTx } from '../../db/client';
+import { migrateDb, openDb, writeTx, sqliteClient } from '../../db/client';
 import { copySqliteToPg, tablesInForeignKeyOrder } from '../../db/pg/copy';
 import { seedDemo } from '../../db/seed';
 import { getTableConfig } from 'drizzle-orm/sqlite-core';
@@ -17,16 +17,19 @@ import { ROOT } from '../support/server';
 
 // The seeded demo installation (two sites) with an audit chain per site whose JSON values carry keys out of
 // alphabetical order, nesting and non-ASCII text: a copy that re-serialised JSON (jsonb) would break the links.
-function demoInstallation(dir: string) {
+async function demoInstallation(dir: string) {
   const file = path.join(dir, 'yieldpoint.db');
   const db = openDb(file);
-  migrateDb(db);
-  const sites = [seedDemo(db, { bcryptCost: 4 }).siteId, seedDemo(db, { bcryptCost: 4, siteName: 'Second plant', emailDomain: 'second.example' }).siteId];
+  await migrateDb(db);
+  const sites = [
+    (await seedDemo(db, { bcryptCost: 4 })).siteId,
+    (await seedDemo(db, { bcryptCost: 4, siteName: 'Second plant', emailDomain: 'second.example' })).siteId,
+  ];
   const at = new Date('2026-12-03T08:00:00.000Z');
-  writeTx(db, (tx) => {
+  await writeTx(db, async (tx) => {
     for (let i = 0; i < 60; i++) {
       const siteId = sites[i % 2]!;
-      appendAudit(tx, {
+      await appendAudit(tx, {
         siteId,
         userId: null,
         actor: 'copy test',
@@ -39,9 +42,9 @@ function demoInstallation(dir: string) {
       });
     }
   });
-  for (const s of sites) expect(verifyAudit(db, s).ok).toBe(true);
+  for (const s of sites) expect((await verifyAudit(db, s)).ok).toBe(true);
   const key = auditKeyOf(db);
-  db.$client.close();
+  sqliteClient(db).close();
   return { file, sites, key };
 }
 
@@ -66,12 +69,12 @@ const contentHash = (rows: unknown[][], pkIndex: number) => {
 describe('npm run db:copy: a whole installation from SQLite into PostgreSQL 15', () => {
   let server: TestPostgres;
   let dir: string;
-  let installation: ReturnType<typeof demoInstallation>;
+  let installation: Awaited<ReturnType<typeof demoInstallation>>;
   let url: string;
   let client: pg.Client;
   beforeAll(async () => {
     dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-copy-'));
-    installation = demoInstallation(dir);
+    installation = await demoInstallation(dir);
     server = await startPostgres();
     url = await server.createDatabase('copy');
   }, 120_000);

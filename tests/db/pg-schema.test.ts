@@ -3,11 +3,11 @@ import { getTableConfig as pgTableConfig, PgDialect, PgTable, type PgColumn } fr
 import { getTableConfig as sqliteTableConfig, SQLiteSyncDialect, SQLiteTable, type SQLiteColumn } from 'drizzle-orm/sqlite-core';
 import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { migrateDb, openDb } from '../../db/client';
+import { migrateDb, openDb, sqliteClient } from '../../db/client';
 import { migratePg, openPg, type PgDb } from '../../db/pg/client';
 import { PG_SCHEMA_FILE, PG_SQL_DEFAULTS, renderPgSchema } from '../../db/pg/generate-schema';
 import * as pgSchema from '../../db/pg/schema';
-import * as sqliteSchema from '../../db/schema';
+import * as sqliteSchema from '../../db/tables';
 import { startPostgres, type TestPostgres } from '../support/postgres';
 
 // Compile-time: every table reads and writes the same row type in both dialects (`npm run typecheck` fails if not).
@@ -205,10 +205,10 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
     );
   }
 
-  function sqliteCatalog() {
+  async function sqliteCatalog() {
     const s = openDb(':memory:');
-    migrateDb(s);
-    const c = s.$client;
+    await migrateDb(s);
+    const c = sqliteClient(s);
     const tables = c
       .prepare(`select name, sql from sqlite_master where type = 'table' and name not like 'sqlite_%' and name not like '__drizzle%' order by name`)
       .all() as { name: string; sql: string }[];
@@ -242,7 +242,7 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
   }
 
   it('has the same tables, columns, types, nullability, keys, defaults, indexes and foreign keys', async () => {
-    const [pgSide, sqliteSide] = [await pgCatalog(), sqliteCatalog()];
+    const [pgSide, sqliteSide] = [await pgCatalog(), await sqliteCatalog()];
     expect(Object.keys(pgSide).length).toBeGreaterThan(20);
     expect(pgSide).toEqual(sqliteSide);
   });
@@ -250,11 +250,11 @@ describe('PostgreSQL 15 migrations against the SQLite ones (a real server starte
   it("writes created_at by default in SQLite's exact format", async () => {
     const [{ created_at: at }] = (await db.$client.query(`insert into sites (name) values ('Default check') returning created_at`)).rows;
     const s = openDb(':memory:');
-    migrateDb(s);
-    const { created_at: sqliteAt } = s.$client.prepare(`insert into sites (name) values ('Default check') returning created_at`).get() as {
+    await migrateDb(s);
+    const { created_at: sqliteAt } = sqliteClient(s).prepare(`insert into sites (name) values ('Default check') returning created_at`).get() as {
       created_at: string;
     };
-    s.$client.close();
+    sqliteClient(s).close();
     const iso = /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z$/;
     expect(sqliteAt).toMatch(iso);
     expect(at).toMatch(iso);

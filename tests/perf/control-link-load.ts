@@ -1,10 +1,11 @@
+import { returned } from '../../db/client';
 import autocannon from 'autocannon';
 import { fork } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
-import { batchReadings, batches, vessels } from '../../db/schema';
+import { batchReadings, batches, vessels } from '../../db/tables';
 import { certificateInfo, openAppPki } from '../../server/opcua/pki';
 import { serverCertificate } from '../../server/opcua/reader';
 import { upsertLinkSettings, upsertVesselSource } from '../../server/repositories/control-link';
@@ -65,26 +66,26 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
   app.clock.now = () => new Date();
   try {
     const { db } = app;
-    const running = db.select().from(batches).where(eq(batches.state, 'running')).all()[0]!;
+    const running = (await db.select().from(batches).where(eq(batches.state, 'running')).execute())[0]!;
     const cert = await serverCertificate({ endpointUrl: plant.endpointUrl, securityPolicy: 'Basic256Sha256', securityMode: 'SignAndEncrypt', pki });
     await pki.trust(cert);
     const now = new Date().toISOString();
     const startedAt = new Date(Date.now() - 60_000).toISOString();
-    upsertLinkSettings(db, { siteId: running.siteId, samplingIntervalMs: 1000, deadbandC: 0, updatedAt: now });
+    await upsertLinkSettings(db, { siteId: running.siteId, samplingIntervalMs: 1000, deadbandC: 0, updatedAt: now });
     const batchOf = new Map<string, number>();
     for (const tag of tags) {
-      const v = db
+      const v = await db
         .insert(vessels)
         .values({ siteId: running.siteId, name: tag, workingVolumeL: 1000, minC: 20, maxC: 75, maxHeatCPerH: 12, maxCoolCPerH: 8, hygienicMinC: 50 })
         .returning()
-        .get();
-      const b = db
+        .then(returned);
+      const b = await db
         .insert(batches)
         .values({ ...running, id: undefined, vesselId: v.id, startedAt, createdAt: undefined })
         .returning()
-        .get();
+        .then(returned);
       batchOf.set(tag, b.id);
-      upsertVesselSource(db, {
+      await upsertVesselSource(db, {
         siteId: running.siteId,
         vesselId: v.id,
         endpointUrl: plant.endpointUrl,
@@ -103,7 +104,7 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
     }
     const t0 = Date.now();
     await link!.reconcile();
-    const linked = link!.status(running.siteId).filter((s) => s.state === 'connected').length;
+    const linked = (await link!.status(running.siteId)).filter((s) => s.state === 'connected').length;
     console.log(
       `\nControl-system link: ${linked} of ${tags.length} tags subscribed in ${Date.now() - t0} ms; ${opts.seconds} s at 1 s sampling, plant mode ${mode}; ` +
         `machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores`,
@@ -143,15 +144,18 @@ export async function controlLinkLoad(opts: { tags: number; seconds: number }): 
     const ids = [...batchOf.values()];
     const count = () =>
       db
-        .select({ n: sql<number>`count(*)`, distinct: sql<number>`count(distinct ${batchReadings.batchId} || ' ' || ${batchReadings.takenAt})` })
+        .select({
+          n: sql<number>`count(*)`.mapWith(Number),
+          distinct: sql<number>`count(distinct ${batchReadings.batchId} || ' ' || ${batchReadings.takenAt})`,
+        })
         .from(batchReadings)
         .where(and(eq(batchReadings.source, 'control_system'), sql`${batchReadings.batchId} in (${sql.join(ids, sql`, `)})`))
-        .get()!;
+        .then((rows) => rows[0]!);
     // Let the last publish and commits land: until every value is stored, or nothing more arrives for 3 s.
-    let stored = count();
+    let stored = await count();
     for (let quiet = 0; stored.n < written && quiet < 6;) {
       await new Promise((r) => setTimeout(r, 500));
-      const now2 = count();
+      const now2 = await count();
       quiet = now2.n === stored.n ? quiet + 1 : 0;
       stored = now2;
     }

@@ -117,7 +117,7 @@ async function main() {
       }
     }
   } finally {
-    await chrome.kill();
+    chrome.kill();
     await server.stop();
     fs.rmSync(server.dir, { recursive: true, force: true });
   }

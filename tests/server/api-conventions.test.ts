@@ -133,9 +133,9 @@ describe('denials are audited', () => {
     expect((await t.client().get('/api/lots')).status).toBe(401);
     // The audit row is written when the response finishes; give the event loop a turn.
     await new Promise((r) => setTimeout(r, 20));
-    const mine = listAudit(t.db, 1).filter((e) => e.action === 'access.denied' && e.entityId === 'GET /api/users');
+    const mine = (await listAudit(t.db, 1)).filter((e) => e.action === 'access.denied' && e.entityId === 'GET /api/users');
     expect(mine.at(-1)).toMatchObject({ actor: 'operator@haldenbay.test', newValue: { status: 403, role: 'operator' } });
-    const anon = listAudit(t.db, null).filter((e) => e.action === 'access.denied' && e.entityId === 'GET /api/lots');
+    const anon = (await listAudit(t.db, null)).filter((e) => e.action === 'access.denied' && e.entityId === 'GET /api/lots');
     expect(anon.at(-1)?.actor).toMatch(/^anonymous@/);
   });
 });

@@ -1,5 +1,6 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { writeTx } from '../../db/client';
+import { rawSql } from '../support/raw-sql';
 import { csvCell, toCsv } from '../../server/csv';
 import { appendAudit } from '../../server/services/audit';
 import { email, startTestApp, type TestApp } from './harness';
@@ -38,16 +39,16 @@ describe('audit trail API', () => {
     expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: true, events: 3 });
     const events = (await admin.get('/api/audit-events')).body.events as { id: number }[];
     const middle = events[1]!.id;
-    t.db.$client.prepare(`update audit_events set new_value = '{"from":"elsewhere"}' where id = ?`).run(middle);
+    await rawSql(t.db, `update audit_events set new_value = '{"from":"elsewhere"}' where id = ?`, middle);
     expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: false, events: 3, firstBrokenId: middle });
   });
 
   it('answers other requests while it verifies a long chain, a part at a time', async () => {
     const admin = await t.signIn('admin');
     // 20,000 invented events on the site's chain (a fifth of the 100,000 that held the server for 3 s in one turn).
-    writeTx(t.db, (tx) => {
+    await writeTx(t.db, async (tx) => {
       for (let i = 0; i < 20_000; i++)
-        appendAudit(tx, {
+        await appendAudit(tx, {
           siteId: 1,
           userId: null,
           actor: 'load@example.test',
@@ -77,7 +78,7 @@ describe('audit trail API', () => {
     await t.signIn('engineer');
     await t.signIn('operator');
     const ids = ((await admin.get('/api/audit-events')).body.events as { id: number }[]).map((e) => e.id).reverse();
-    t.db.$client.prepare('delete from audit_events where id = ?').run(ids[1]);
+    await rawSql(t.db, 'delete from audit_events where id = ?', ids[1]);
     expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: false, events: 2, firstBrokenId: ids[2] });
   });
 

@@ -4,7 +4,7 @@ import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { afterEach, describe, expect, it } from 'vitest';
 import { backupDatabase, checkDatabase, restoreDatabase } from '../../db/backup';
-import { migrateDb, openDb } from '../../db/client';
+import { migrateDb, openDb, sqliteClient } from '../../db/client';
 import { seedDemo } from '../../db/seed';
 import { auditKeyOf } from '../../server/services/audit';
 import { verifyAudit } from '../../server/services/audit-verify';
@@ -49,10 +49,10 @@ describe('backup and restore', () => {
     const dir = tmp();
     const live = path.join(dir, 'live.db');
     const db = openDb(live);
-    migrateDb(db);
-    seedDemo(db, { bcryptCost: 4 });
+    await migrateDb(db);
+    await seedDemo(db, { bcryptCost: 4 });
     auditKeyOf(db); // the writer below links with the installation's key
-    db.$client.close();
+    sqliteClient(db).close();
 
     const writer = new Worker(WRITER, { eval: true, workerData: { file: live } });
     await new Promise((r) => setTimeout(r, 150));
@@ -71,8 +71,8 @@ describe('backup and restore', () => {
     expect(after.integrity).toBe('ok');
     expect(after.tables).toEqual(check.tables);
     const rdb = openDb(restored);
-    expect(verifyAudit(rdb, 1)).toMatchObject({ ok: true, events: check.tables.audit_events });
-    rdb.$client.close();
+    expect(await verifyAudit(rdb, 1)).toMatchObject({ ok: true, events: check.tables.audit_events });
+    sqliteClient(rdb).close();
     // The live database kept growing after the snapshot.
     expect(checkDatabase(live).tables.audit_events).toBeGreaterThanOrEqual(check.tables.audit_events!);
   });

@@ -1,7 +1,7 @@
 import { and, asc, eq, gt, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import { writeTx } from '../../db/client';
-import { auditEvents, batchReadings, deviations, recipes, users } from '../../db/schema';
+import { writeTx, first } from '../../db/client';
+import { auditEvents, batchReadings, deviations, recipes, users } from '../../db/tables';
 import { DEMO_PLANT_TRUTH } from '../../db/seed';
 import { findSiteBatch, insertReadings, readingPoints } from '../../server/repositories/batches';
 import { loadSessionUser } from '../../server/services/auth';
@@ -23,11 +23,11 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const count = (table: typeof batchReadings | typeof deviations | typeof auditEvents) =>
-  t.db
-    .select({ n: sql<number>`count(*)` })
+const count = async (table: typeof batchReadings | typeof deviations | typeof auditEvents) =>
+  (await t.db
+    .select({ n: sql<number>`count(*)`.mapWith(Number) })
     .from(table)
-    .get()!.n;
+    .then(first))!.n;
 let keySeq = 0;
 const key = () => `test-key-${++keySeq}-abcdef`;
 
@@ -96,13 +96,13 @@ describe('starting a batch', () => {
   beforeEach(() => closeRunning('R-204 Lactose tank'));
 
   it('lets a supervisor start one on the current setpoint and records it in the audit trail', async () => {
-    const before = count(auditEvents);
+    const before = await count(auditEvents);
     const { body } = await startLactose();
     expect(body.program.source).toBe('current_setpoint');
     expect(body.program.stages).toEqual([{ hours: 20, c: 37 }]);
     expect(body.program.log[0]).toEqual({ h: 0, c: 6 });
     expect(body.state).toBe('running');
-    expect(count(auditEvents)).toBe(before + 1);
+    expect(await count(auditEvents)).toBe(before + 1);
   });
 
   it('runs the released plan when change control has released one, with its P10', async () => {
@@ -173,16 +173,13 @@ describe('starting a batch', () => {
       expect((await op.get(`/api/batches/${late.id}`)).body.deviations.filter((d: any) => d.kind === 'forecast_low')).toHaveLength(1);
       // The control-system link's feed: its readings skip the check in their transaction, and checkForecastLow
       // raises the low forecast apart, once, only while none is active.
-      const lows = () =>
-        t.db
-          .select()
-          .from(deviations)
-          .where(eq(deviations.batchId, late.id))
-          .all()
-          .filter((d) => d.kind === 'forecast_low' && d.state !== 'closed');
-      t.db.update(deviations).set({ state: 'closed' }).where(eq(deviations.batchId, late.id)).run();
+      const lows = async () =>
+        (await t.db.select().from(deviations).where(eq(deviations.batchId, late.id)).execute()).filter(
+          (d) => d.kind === 'forecast_low' && d.state !== 'closed',
+        );
+      await t.db.update(deviations).set({ state: 'closed' }).where(eq(deviations.batchId, late.id)).execute();
       const services = { db: t.db, clock: t.clock };
-      const operator = loadSessionUser(t.db, t.db.select().from(users).where(eq(users.role, 'operator')).get()!.id)!;
+      const operator = (await loadSessionUser(t.db, (await t.db.select().from(users).where(eq(users.role, 'operator')).then(first))!.id))!;
       const fed = await readingIngest(services, { checkForecast: false }).log(
         operator,
         late.id,
@@ -190,14 +187,18 @@ describe('starting a batch', () => {
         'control_system',
       );
       expect(fed.created).toBe(true);
-      expect(lows()).toHaveLength(0);
-      expect(checkForecastLow(services, operator, late.id)).toBe(true);
-      expect(lows()).toMatchObject([{ readingId: null, message: expect.stringMatching(/below the plan's P10/) }]);
-      expect(checkForecastLow(services, operator, late.id)).toBe(false);
-      expect(lows()).toHaveLength(1);
+      expect(await lows()).toHaveLength(0);
+      expect(await checkForecastLow(services, operator, late.id)).toBe(true);
+      expect(await lows()).toMatchObject([{ readingId: null, message: expect.stringMatching(/below the plan's P10/) }]);
+      expect(await checkForecastLow(services, operator, late.id)).toBe(false);
+      expect(await lows()).toHaveLength(1);
     } finally {
       // Put the recipe back as the later tests expect it (approval also wrote the plan's setpoint).
-      t.db.update(recipes).set({ releasedPlanId: null, releasedAt: null, currentSetpointC: rec.currentSetpointC }).where(eq(recipes.id, rec.id)).run();
+      await t.db
+        .update(recipes)
+        .set({ releasedPlanId: null, releasedAt: null, currentSetpointC: rec.currentSetpointC })
+        .where(eq(recipes.id, rec.id))
+        .execute();
     }
   });
 
@@ -238,58 +239,58 @@ describe('logging readings', () => {
     ['a time without a zone', { takenAt: '2026-12-01 07:00' }, 'takenAt'],
     ['a short key', { key: 'abc' }, 'key'],
   ])('refuses %s with 400 and stores nothing', async (_name, over, field) => {
-    const before = count(batchReadings);
+    const before = await count(batchReadings);
     const r = await op.post(`/api/batches/${batch.id}/readings`, good(over));
     expect(r.status).toBe(400);
     expect(r.body.error.fields[field]).toBeTruthy();
-    expect(count(batchReadings)).toBe(before);
+    expect(await count(batchReadings)).toBe(before);
   });
 
   it('refuses NaN and Infinity written into the JSON text', async () => {
-    const before = count(batchReadings);
+    const before = await count(batchReadings);
     for (const lit of ['NaN', 'Infinity', '-Infinity']) {
       const body = `{"key":"${key()}","takenAt":"${at(batch.startedAt, 3.9)}","c":${lit}}`;
       const r = await op.req('POST', `/api/batches/${batch.id}/readings`, body);
       expect(r.status, lit).toBe(400);
     }
-    expect(count(batchReadings)).toBe(before);
+    expect(await count(batchReadings)).toBe(before);
   });
 
   it('refuses a reading far in the future or before the start, and takes one within the clock-skew tolerance', async () => {
-    const before = count(batchReadings);
+    const before = await count(batchReadings);
     const future = await op.post(`/api/batches/${batch.id}/readings`, good({ takenAt: new Date(t.clock.now().getTime() + 3_600_000).toISOString() }));
     expect([future.status, future.body.error.fields.takenAt]).toEqual([400, "More than 5 min ahead of the server's clock"]);
     const early = await op.post(`/api/batches/${batch.id}/readings`, good({ takenAt: at(batch.startedAt, -0.1) }));
     expect([early.status, early.body.error.fields.takenAt]).toEqual([400, 'Before the batch started']);
-    expect(count(batchReadings)).toBe(before);
+    expect(await count(batchReadings)).toBe(before);
     const skewed = await op.post(`/api/batches/${batch.id}/readings`, good({ takenAt: new Date(t.clock.now().getTime() + 3 * 60_000).toISOString() }));
     expect(skewed.status).toBe(201);
-    expect(count(batchReadings)).toBe(before + 1);
+    expect(await count(batchReadings)).toBe(before + 1);
   });
 
   it('stores the same reading sent twice once, and answers both the same way', async () => {
     const body = good({ key: key(), takenAt: at(batch.startedAt, 3.95), note: 'sample taken' });
-    const readings0 = count(batchReadings);
-    const audits0 = count(auditEvents);
+    const readings0 = await count(batchReadings);
+    const audits0 = await count(auditEvents);
     const first = await op.post(`/api/batches/${batch.id}/readings`, body);
     const second = await op.post(`/api/batches/${batch.id}/readings`, body);
     expect(first.status).toBe(201);
     expect(second.status).toBe(200);
     expect(second.body).toEqual(first.body);
     expect(first.body.reading).toMatchObject({ key: body.key, c: 37, note: 'sample taken', source: 'manual', enteredBy: 'Sunniva Achebe' });
-    expect(count(batchReadings)).toBe(readings0 + 1);
-    expect(count(auditEvents)).toBe(audits0 + 1 + first.body.deviations.length);
+    expect(await count(batchReadings)).toBe(readings0 + 1);
+    expect(await count(auditEvents)).toBe(audits0 + 1 + first.body.deviations.length);
     const reused = await op.post(`/api/batches/${batch.id}/readings`, { ...body, c: 38 });
     expect([reused.status, reused.body.error.code]).toEqual([409, 'key_reused']);
-    expect(count(batchReadings)).toBe(readings0 + 1);
+    expect(await count(batchReadings)).toBe(readings0 + 1);
   });
 
   it('keeps readings of one site away from another', async () => {
     const other = await t.signIn('operator', 'other');
     expect((await other.get(`/api/batches/${batch.id}`)).status).toBe(404);
-    const before = count(batchReadings);
+    const before = await count(batchReadings);
     expect((await other.post(`/api/batches/${batch.id}/readings`, good())).status).toBe(404);
-    expect(count(batchReadings)).toBe(before);
+    expect(await count(batchReadings)).toBe(before);
   });
 });
 
@@ -329,20 +330,22 @@ describe('deviations', () => {
     expect((await op.post(`/api/deviations/${dev.id}/close`, {})).status).toBe(403);
     const closed = await sup.post(`/api/deviations/${dev.id}/close`, { comment: 'Valve serviced' });
     expect(closed.body).toMatchObject({ state: 'closed', closedBy: 'Marit Oyelaran' });
-    const actions = t.db
-      .select()
-      .from(auditEvents)
-      .where(eq(auditEvents.entityId, String(dev.id)))
-      .all()
+    const actions = (
+      await t.db
+        .select()
+        .from(auditEvents)
+        .where(eq(auditEvents.entityId, String(dev.id)))
+        .execute()
+    )
       .filter((e) => e.entity === 'deviation')
       .map((e) => e.action);
     expect(actions).toEqual(['deviation.raise', 'deviation.acknowledge', 'deviation.close']);
   });
 
   it('raises one deviation per excursion, not one per reading', async () => {
-    const n0 = count(deviations);
+    const n0 = await count(deviations);
     await op.post(`/api/batches/${batch.id}/readings`, { key: key(), takenAt: at(batch.startedAt, 3.7), c: 44 });
-    expect(count(deviations)).toBe(n0);
+    expect(await count(deviations)).toBe(n0);
   });
 
   it('raises a vessel-maximum deviation above the vessel limit', async () => {
@@ -390,13 +393,13 @@ describe('historian import', () => {
     // One reading a second for ~13.9 h, on the plan's hold temperature after the ramp (invented data).
     for (let i = 0; i < 50_000; i++) lines.push(`${new Date(start + 1000 * i).toISOString()},${i < 11_200 ? (6 + (10 * i) / 3600).toFixed(2) : '37.00'}`);
     const csv = lines.join('\n');
-    const n0 = count(batchReadings);
+    const n0 = await count(batchReadings);
     const t0 = performance.now();
     const r = await upload(op, csv);
     const ms = performance.now() - t0;
     expect(r.status, JSON.stringify(r.body).slice(0, 300)).toBe(200);
     expect(r.body).toMatchObject({ rows: 50_000, imported: 50_000, skipped: 0, outOfOrder: 0 });
-    expect(count(batchReadings)).toBe(n0 + 50_000);
+    expect(await count(batchReadings)).toBe(n0 + 50_000);
     // The batch screen gets a sample of a long record, ending with the latest readings; the CSV report gets all.
     const detail = (await op.get(`/api/batches/${batch.id}`)).body;
     expect(detail.readingsTotal).toBe(50_000);
@@ -413,7 +416,7 @@ describe('historian import', () => {
       kind: 'already_stored',
       message: `A reading at ${new Date(start).toISOString()} (UTC, to the millisecond) is already stored`,
     });
-    expect(count(batchReadings)).toBe(n0 + 50_000);
+    expect(await count(batchReadings)).toBe(n0 + 50_000);
   });
 
   it('keeps a one-reading excursion in the batch page sample of a long record, and pages the table newest first', async () => {
@@ -477,7 +480,7 @@ describe('historian import', () => {
     expect([...stored].sort((x, y) => x - y)).toEqual(stored);
     expect((await op.get(`/api/batches/${batch.id}/readings/import`)).body).toMatchObject({ isRunning: false });
     // One audit event for the import, stating its parts.
-    const events = t.db.select().from(auditEvents).where(eq(auditEvents.action, 'batch.readings_import')).all();
+    const events = await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'batch.readings_import')).execute();
     expect(events.at(-1)!.newValue).toMatchObject({ imported: 30_000, parts: 30 });
   });
 
@@ -485,20 +488,17 @@ describe('historian import', () => {
     // 4,000 invented readings between the stored ones (750 ms after each of the first 4,000 seconds), with
     // excursions early (band), in the middle (above the vessel maximum) and at the end (band again), so some
     // are stored in early parts (no corrective) and some in the last (with the corrective).
-    const j = findSiteBatch(t.db, 1, batch.id)!;
+    const j = (await findSiteBatch(t.db, 1, batch.id))!;
     const b = j.batch;
-    const settings = batchSettingsOf(t.db, 1);
-    const stored = batchRecordOf(t.db, b).points.slice();
-    const hadLow = t.db
-      .select()
-      .from(deviations)
-      .where(eq(deviations.batchId, b.id))
-      .all()
-      .some((d) => d.kind === 'forecast_low' && d.state !== 'closed');
-    const lastDev = t.db
+    const settings = await batchSettingsOf(t.db, 1);
+    const stored = (await batchRecordOf(t.db, b)).points.slice();
+    const hadLow = (await t.db.select().from(deviations).where(eq(deviations.batchId, b.id)).execute()).some(
+      (d) => d.kind === 'forecast_low' && d.state !== 'closed',
+    );
+    const lastDev = (await t.db
       .select({ n: sql<number>`coalesce(max(id), 0)` })
       .from(deviations)
-      .get()!.n;
+      .then(first))!.n;
     const from = Date.parse(b.startedAt) + 750;
     const rows = Array.from({ length: 4_000 }, (_, i) => {
       const c = (6 + (10 * i) / 3600) * 1;
@@ -510,15 +510,15 @@ describe('historian import', () => {
     // The in-thread computation over the same readings: today's deviation rules, then the whole record's status.
     const added = rows.map((x) => ({ h: (x.ms - Date.parse(b.startedAt)) / 3_600_000, c: x.c }));
     const drafts = runDeviations(rulesOf(b.program, settings), stored, added);
-    const points = readingPoints(t.db, b.id).map((p) => ({ h: (Date.parse(p.takenAt) - Date.parse(b.startedAt)) / 3_600_000, c: p.c }));
+    const points = (await readingPoints(t.db, b.id)).map((p) => ({ h: (Date.parse(p.takenAt) - Date.parse(b.startedAt)) / 3_600_000, c: p.c }));
     const status = batchStatus(b.program, points, 0, true);
     const low = forecastDeviation(b.program.p10GPerL, status.forecastGPerL, hadLow, status.lastH);
-    const raisedNow = t.db
+    const raisedNow = await t.db
       .select()
       .from(deviations)
       .where(and(eq(deviations.batchId, b.id), gt(deviations.id, lastDev)))
       .orderBy(asc(deviations.id))
-      .all();
+      .execute();
     expect(drafts.length).toBeGreaterThan(2);
     expect(raisedNow.map((d) => [d.kind, d.message, d.valueC, d.expectedC])).toEqual(
       [...drafts.map((d) => d.draft), ...(low ? [low] : [])].map((d) => [d.kind, d.message, d.valueC, d.expectedC]),
@@ -530,11 +530,11 @@ describe('historian import', () => {
     expect(raisedNow.filter((d) => !d.corrective).length).toBeGreaterThan(0);
     for (const d of withCorrective) expect(d.corrective).toEqual(status.corrective);
     // The kept record took the import in: same readings in the stored order, and the same status as from the database.
-    const kept = batchRecordOf(t.db, b);
+    const kept = await batchRecordOf(t.db, b);
     expect(kept.points).toEqual(points);
     const nowIso = t.clock.now().toISOString();
-    expect(statusNow(t.db, b, nowIso, true)).toEqual(statusAtHour(b.program, status, batchHours(b.startedAt, nowIso)));
-    expect(statusNow(t.db, b, nowIso)).toEqual(statusAtHour(b.program, batchStatus(b.program, points, 0), batchHours(b.startedAt, nowIso)));
+    expect(await statusNow(t.db, b, nowIso, true)).toEqual(statusAtHour(b.program, status, batchHours(b.startedAt, nowIso)));
+    expect(await statusNow(t.db, b, nowIso)).toEqual(statusAtHour(b.program, batchStatus(b.program, points, 0), batchHours(b.startedAt, nowIso)));
     // The checks above hold this thread (the server's too) for seconds: the server's idle keep-alive sockets time
     // out as it resumes. A moment lets their close reach the client, so the next test's upload takes a new one.
     await new Promise((resolve) => setTimeout(resolve, 300));
@@ -588,7 +588,7 @@ describe('the kept reading record', () => {
   it('is never fooled by a rolled-back write whose ids are given out again', async () => {
     await closeRunning('R-204 Lactose tank');
     const b = await startLactose(3);
-    const user = t.db.select().from(users).where(eq(users.email, 'operator@haldenbay.test')).get()!;
+    const user = (await t.db.select().from(users).where(eq(users.email, 'operator@haldenbay.test')).then(first))!;
     const row = (k: string, h: number, c: number) => ({
       siteId: user.siteId,
       batchId: b.id,
@@ -600,21 +600,21 @@ describe('the kept reading record', () => {
       enteredBy: user.id,
       receivedAt: at(b.startedAt, h),
     });
-    writeTx(t.db, (tx) => insertReadings(tx, [row('kept-1', 0.5, 30), row('kept-2', 1, 31)]));
-    expect(batchRecordOf(t.db, b).points.map((p) => p.c)).toEqual([30, 31]);
+    await writeTx(t.db, (tx) => insertReadings(tx, [row('kept-1', 0.5, 30), row('kept-2', 1, 31)]));
+    expect((await batchRecordOf(t.db, b)).points.map((p) => p.c)).toEqual([30, 31]);
     // Inside the transaction the record sees its own uncommitted reading; after the rollback it is gone.
-    expect(() =>
-      writeTx(t.db, (tx) => {
-        insertReadings(tx, [row('rolled-back', 1.5, 99)]);
-        expect(batchRecordOf(tx, b).points.map((p) => p.c)).toEqual([30, 31, 99]);
+    await expect(
+      writeTx(t.db, async (tx) => {
+        await insertReadings(tx, [row('rolled-back', 1.5, 99)]);
+        expect((await batchRecordOf(tx, b)).points.map((p) => p.c)).toEqual([30, 31, 99]);
         throw new Error('rolled back on purpose');
       }),
-    ).toThrow('rolled back on purpose');
+    ).rejects.toThrow('rolled back on purpose');
     // The next reading takes the rolled-back id (AUTOINCREMENT's counter rolls back too): the record shows it,
     // not the value that was rolled back.
-    writeTx(t.db, (tx) => insertReadings(tx, [row('after', 0.75, 32)]));
-    expect(batchRecordOf(t.db, b).points.map((p) => p.c)).toEqual([30, 32, 31]);
-    expect(batchRecordOf(t.db, b).points.length).toBe(readingPoints(t.db, b.id).length);
+    await writeTx(t.db, (tx) => insertReadings(tx, [row('after', 0.75, 32)]));
+    expect((await batchRecordOf(t.db, b)).points.map((p) => p.c)).toEqual([30, 32, 31]);
+    expect((await batchRecordOf(t.db, b)).points.length).toBe((await readingPoints(t.db, b.id)).length);
   });
 });
 

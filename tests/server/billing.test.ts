@@ -1,3 +1,4 @@
+import { rawSql, rowCount } from '../support/raw-sql';
 import Stripe from 'stripe';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { DEMO_SEATS } from '../../db/seed';
@@ -13,13 +14,13 @@ beforeEach(async () => {
 afterEach(() => t.closeAll());
 
 const SITE = 1;
-const seats = () => findSubscription(t.db, SITE)!.seats;
+const seats = async () => (await findSubscription(t.db, SITE))!.seats;
 /** The demo site's ids at the provider, as seeded (random per seed). */
-const demoIds = () => {
-  const row = findSubscription(t.db, SITE)!;
+const demoIds = async () => {
+  const row = (await findSubscription(t.db, SITE))!;
   return { customer: row.stripeCustomerId!, subscription: row.stripeSubscriptionId! };
 };
-const fakeQuantity = () => t.fake.get(demoIds().subscription)!.items.data[0].quantity as number;
+const fakeQuantity = async () => t.fake.get((await demoIds()).subscription)!.items.data[0].quantity as number;
 
 /** Submits the fake's hosted card form as a browser would, without following the redirect. */
 const pay = (url: string, card: string) => fetch(url, { method: 'POST', body: new URLSearchParams({ card, exp: '12/34', cvc: '123' }), redirect: 'manual' });
@@ -43,8 +44,8 @@ const deliver = (payload: string, header?: string) =>
     body: payload,
   });
 
-function subscriptionEvent(id: string, quantity: number, created = Math.floor(Date.now() / 1000)) {
-  const sub = structuredClone(t.fake.get(demoIds().subscription)!);
+async function subscriptionEvent(id: string, quantity: number, created = Math.floor(Date.now() / 1000)) {
+  const sub = structuredClone(t.fake.get((await demoIds()).subscription)!);
   sub.items.data[0].quantity = quantity;
   return {
     id,
@@ -61,7 +62,7 @@ function subscriptionEvent(id: string, quantity: number, created = Math.floor(Da
 
 describe('webhook signatures', () => {
   it('refuses a bad, missing or foreign signature and a tampered body, and changes nothing', async () => {
-    const event = subscriptionEvent('evt_test_forged', 40);
+    const event = await subscriptionEvent('evt_test_forged', 40);
     const wrongSecret = signed(event, 'whsec_someone_else');
     const good = signed(event);
     const tampered = good.payload.replace('"quantity":40', '"quantity":400');
@@ -75,15 +76,15 @@ describe('webhook signatures', () => {
       expect(r.status).toBe(400);
       expect((await r.json()).error.code).toBe('bad_signature');
     }
-    expect(seats()).toBe(DEMO_SEATS);
-    expect(t.db.$client.prepare('select count(*) as n from billing_events').get()).toEqual({ n: 0 });
+    expect(await seats()).toBe(DEMO_SEATS);
+    expect(await rowCount(t.db, 'billing_events')).toBe(0);
   });
 
   it('takes a correctly signed event without a session or the client header', async () => {
-    const { payload, header } = signed(subscriptionEvent('evt_test_ok', 9));
+    const { payload, header } = signed(await subscriptionEvent('evt_test_ok', 9));
     const r = await deliver(payload, header);
     expect(r.status).toBe(200);
-    expect(seats()).toBe(9);
+    expect(await seats()).toBe(9);
   });
 });
 
@@ -91,51 +92,51 @@ describe('each event applies once', () => {
   it('a redelivered seat purchase adds the seats once', async () => {
     const url = await checkout(3);
     expect((await pay(url, TEST_CARDS.accepted)).status).toBe(303);
-    expect(seats()).toBe(DEMO_SEATS + 3);
+    expect(await seats()).toBe(DEMO_SEATS + 3);
     const completed = t.fake.events().find((e) => e.type === 'checkout.session.completed')!;
     const again = signed(completed);
     const r = await deliver(again.payload, again.header);
     expect(r.status).toBe(200);
     expect(await r.json()).toEqual({ received: true, duplicate: true });
-    expect(seats()).toBe(DEMO_SEATS + 3);
-    expect(fakeQuantity()).toBe(DEMO_SEATS + 3);
+    expect(await seats()).toBe(DEMO_SEATS + 3);
+    expect(await fakeQuantity()).toBe(DEMO_SEATS + 3);
   });
 
   it('the same subscription event twice writes one audit event', async () => {
-    const { payload, header } = signed(subscriptionEvent('evt_test_twice', 12));
+    const { payload, header } = signed(await subscriptionEvent('evt_test_twice', 12));
     expect((await deliver(payload, header)).status).toBe(200);
     expect((await (await deliver(payload, header)).json()).duplicate).toBe(true);
-    expect(seats()).toBe(12);
-    expect(listAudit(t.db, SITE).filter((e) => e.action === 'billing.subscription.update')).toHaveLength(1);
+    expect(await seats()).toBe(12);
+    expect((await listAudit(t.db, SITE)).filter((e) => e.action === 'billing.subscription.update')).toHaveLength(1);
   });
 
   it('an older event delivered late does not undo a newer one', async () => {
     const now = Math.floor(Date.now() / 1000);
-    const newer = signed(subscriptionEvent('evt_test_newer', 10, now));
-    const older = signed(subscriptionEvent('evt_test_older', 9, now - 60));
+    const newer = signed(await subscriptionEvent('evt_test_newer', 10, now));
+    const older = signed(await subscriptionEvent('evt_test_older', 9, now - 60));
     await deliver(newer.payload, newer.header);
     await deliver(older.payload, older.header);
-    expect(seats()).toBe(10);
+    expect(await seats()).toBe(10);
   });
 });
 
 describe('buying seats', () => {
   it('a declined card leaves the seats, the provider quantity and the invoices unchanged', async () => {
     const url = await checkout(3);
-    const invoicesBefore = listSiteInvoices(t.db, SITE).length;
+    const invoicesBefore = (await listSiteInvoices(t.db, SITE)).length;
     const r = await pay(url, TEST_CARDS.declined);
     expect(r.status).toBe(200);
     expect(await r.text()).toContain('<p class="err" role="alert" data-testid="pay-error">Your card was declined.</p>');
-    expect(seats()).toBe(DEMO_SEATS);
-    expect(fakeQuantity()).toBe(DEMO_SEATS);
-    expect(listSiteInvoices(t.db, SITE)).toHaveLength(invoicesBefore);
+    expect(await seats()).toBe(DEMO_SEATS);
+    expect(await fakeQuantity()).toBe(DEMO_SEATS);
+    expect(await listSiteInvoices(t.db, SITE)).toHaveLength(invoicesBefore);
     // The same page then takes a good card.
     const ok = await pay(url, TEST_CARDS.accepted);
     expect(ok.status).toBe(303);
     // Back to PUBLIC_URL through the landing page, which names the seats for the notice.
     expect(ok.headers.get('location')).toBe(`http://yieldpoint.test/api/billing/return?checkout=done&added=3&from=${DEMO_SEATS}`);
-    expect(seats()).toBe(DEMO_SEATS + 3);
-    const invoices = listSiteInvoices(t.db, SITE);
+    expect(await seats()).toBe(DEMO_SEATS + 3);
+    const invoices = await listSiteInvoices(t.db, SITE);
     expect(invoices).toHaveLength(invoicesBefore + 1);
     expect(invoices[0]).toMatchObject({ status: 'paid', seats: 3, amountPaidCents: 3 * 4900, currency: 'eur' });
   });
@@ -166,19 +167,19 @@ describe('buying seats', () => {
     expect(bad.body.error.fields.addSeats).toBeTruthy();
     // Coming back to the success page proves nothing: the seat count waits for the provider's event.
     await checkout(2);
-    expect(seats()).toBe(DEMO_SEATS);
+    expect(await seats()).toBe(DEMO_SEATS);
   });
 
   it('starts a new plan for a site that has none', async () => {
-    t.db.$client.prepare('delete from subscriptions where site_id = 2').run();
+    await rawSql(t.db, 'delete from subscriptions where site_id = 2');
     const other = await t.signIn('admin', 'other');
     const r = await other.post('/api/billing/checkout', { addSeats: 6 });
     expect(r.status).toBe(201);
     expect((await pay(r.body.url, TEST_CARDS.accepted)).status).toBe(303);
-    const row = findSubscription(t.db, 2)!;
+    const row = (await findSubscription(t.db, 2))!;
     expect(row).toMatchObject({ seats: 6, status: 'active' });
     expect(row.stripeSubscriptionId).toMatch(/^sub_/);
-    expect(seats()).toBe(DEMO_SEATS);
+    expect(await seats()).toBe(DEMO_SEATS);
   });
 });
 
@@ -189,12 +190,12 @@ describe('reducing seats', () => {
     expect(below.status).toBe(409);
     expect(below.body.error.code).toBe('seats_in_use');
     expect(below.body.error.message).toMatch(/5 seats are in use/);
-    expect(seats()).toBe(DEMO_SEATS);
-    expect(fakeQuantity()).toBe(DEMO_SEATS);
+    expect(await seats()).toBe(DEMO_SEATS);
+    expect(await fakeQuantity()).toBe(DEMO_SEATS);
     const down = await admin.patch('/api/billing/seats', { seats: 5 });
     expect(down.status).toBe(200);
     expect(down.body).toMatchObject({ seats: 5, seatsInUse: 5 });
-    expect(fakeQuantity()).toBe(5);
+    expect(await fakeQuantity()).toBe(5);
   });
 
   it('counts open invites as seats in use', async () => {
@@ -210,13 +211,13 @@ describe('reducing seats', () => {
     const r = await admin.patch('/api/billing/seats', { seats: 20 });
     expect(r.status).toBe(409);
     expect(r.body.error.code).toBe('use_checkout');
-    expect(seats()).toBe(DEMO_SEATS);
+    expect(await seats()).toBe(DEMO_SEATS);
   });
 });
 
 describe('failed payment', () => {
   it('gives a grace period, then makes the site read-only until the invoice is paid', async () => {
-    const { subscription } = demoIds();
+    const { subscription } = await demoIds();
     const renew = await fetch(`${t.fake.url}/_fake/subscriptions/${subscription}/renew`, {
       method: 'POST',
       headers: { authorization: `Bearer ${t.fake.apiKey}` },
@@ -275,12 +276,12 @@ describe('the fake answers in the SDK types', () => {
     for await (const p of stripe.prices.list({ limit: 1 })) all.push(p);
     expect(all).toHaveLength(4);
 
-    const sub: Stripe.Subscription = await stripe.subscriptions.retrieve(demoIds().subscription);
+    const sub: Stripe.Subscription = await stripe.subscriptions.retrieve((await demoIds()).subscription);
     expect(sub.status).toBe('active');
     expect(sub.items.data[0]!.quantity).toBe(DEMO_SEATS);
     expect(typeof sub.items.data[0]!.current_period_end).toBe('number');
 
-    const invoices: Stripe.ApiList<Stripe.Invoice> = await stripe.invoices.list({ customer: demoIds().customer });
+    const invoices: Stripe.ApiList<Stripe.Invoice> = await stripe.invoices.list({ customer: (await demoIds()).customer });
     expect(invoices.data).toEqual([]);
 
     const missing = await stripe.customers.retrieve('cus_nope').catch((e: unknown) => e);

@@ -1,8 +1,8 @@
 import { planBody } from '../fixtures/plan-body';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { auditEvents, changeRequests, mailOutbox, plans, recipes, signatures } from '../../db/schema';
+import { first, type Db } from '../../db/client';
+import { auditEvents, changeRequests, mailOutbox, plans, recipes, signatures } from '../../db/tables';
 import { createMailSender } from '../../server/services/mail';
 import { password, startTestApp, type Client, type TestApp } from './harness';
 
@@ -39,14 +39,14 @@ const propose = (by: Client, planId: number, over: Record<string, unknown> = {})
 const sign = (by: Client, id: number, meaning: string, pw = password('supervisor'), comment = '') =>
   by.post(`/api/change-requests/${id}/signatures`, { password: pw, meaning, comment });
 
-const recipeRow = () => t.db.select().from(recipes).where(eq(recipes.id, recipeId)).get()!;
+const recipeRow = async () => (await t.db.select().from(recipes).where(eq(recipes.id, recipeId)).then(first))!;
 const auditOf = (action: string, entityId: number) =>
   t.db
     .select()
     .from(auditEvents)
     .where(and(eq(auditEvents.action, action), eq(auditEvents.entityId, String(entityId))))
-    .all();
-const signatureCount = (id: number) => t.db.select().from(signatures).where(eq(signatures.changeRequestId, id)).all().length;
+    .execute();
+const signatureCount = async (id: number) => (await t.db.select().from(signatures).where(eq(signatures.changeRequestId, id)).execute()).length;
 
 describe('proposing', () => {
   it('stores the proposal with a record hash, audits it and queues mail to the site supervisors only', async () => {
@@ -65,10 +65,10 @@ describe('proposing', () => {
     expect(r.body.proposed).toMatchObject({ source: 'proposed-plan', setpointC: plan.outputs.setpointC });
     // No plan is released on the seeded recipe, so its bare setpoint is the current side.
     expect(r.body.current).toMatchObject({ source: 'recipe-setpoint', setpointC: 59, planId: null });
-    const [created] = auditOf('change-request.create', r.body.id);
+    const [created] = await auditOf('change-request.create', r.body.id);
     expect(created!.newValue).toMatchObject({ planId: plan.id, recordHash: r.body.recordHash });
     expect(created!.oldValue).toMatchObject({ setpointC: 59, releasedPlanId: null });
-    const mail = t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.proposed')).all();
+    const mail = await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.proposed')).execute();
     expect(mail.map((m) => m.to)).toEqual(['supervisor@haldenbay.test']);
     expect(mail[0]!.status).toBe('pending');
     expect(mail[0]!.text).toContain(`/sign-offs/${r.body.id}`);
@@ -76,7 +76,7 @@ describe('proposing', () => {
 
   it('refuses a date in the past, a plan of another site and a second open proposal of one plan', async () => {
     const plan = await savePlan(41);
-    const before = t.db.select().from(changeRequests).all().length;
+    const before = (await t.db.select().from(changeRequests).execute()).length;
     const past = await propose(engineer, plan.id, { effectiveFrom: '2026-11-30' });
     expect(past.status).toBe(400);
     expect(past.body.error.fields.effectiveFrom).toBeDefined();
@@ -84,7 +84,7 @@ describe('proposing', () => {
     expect((await propose(otherEngineer, plan.id)).status).toBe(400);
     expect((await propose(engineer, plan.id)).status).toBe(201);
     expect((await propose(engineer, plan.id)).body.error.code).toBe('already_proposed');
-    expect(t.db.select().from(changeRequests).all().length).toBe(before + 1);
+    expect((await t.db.select().from(changeRequests).execute()).length).toBe(before + 1);
   });
 
   it('shows a request to its own site only', async () => {
@@ -94,7 +94,7 @@ describe('proposing', () => {
     expect((await otherSupervisor.get(`/api/change-requests/${id}`)).status).toBe(404);
     expect((await sign(otherSupervisor, id, 'approved')).status).toBe(404);
     expect((await otherSupervisor.get('/api/change-requests')).body.changeRequests).toEqual([]);
-    expect(signatureCount(id)).toBe(0);
+    expect(await signatureCount(id)).toBe(0);
   });
 });
 
@@ -102,13 +102,13 @@ describe('signing', () => {
   it('refuses a signature on one’s own proposal (four eyes) and changes nothing', async () => {
     const plan = await savePlan(43);
     const { id } = (await propose(supervisor, plan.id)).body;
-    const before = recipeRow();
+    const before = await recipeRow();
     const r = await sign(supervisor, id, 'approved');
     expect(r.status).toBe(403);
     expect(r.body.error.code).toBe('own_proposal');
-    expect(signatureCount(id)).toBe(0);
+    expect(await signatureCount(id)).toBe(0);
     expect((await supervisor.get(`/api/change-requests/${id}`)).body.status).toBe('proposed');
-    expect(recipeRow()).toEqual(before);
+    expect(await recipeRow()).toEqual(before);
   });
 
   it('refuses a wrong password, audits the attempt and signs nothing', async () => {
@@ -118,36 +118,36 @@ describe('signing', () => {
     expect(r.status).toBe(400);
     expect(r.body.error.code).toBe('wrong_password');
     expect(r.body.error.fields.password).toBeDefined();
-    expect(signatureCount(id)).toBe(0);
-    const [refused] = auditOf('signature.refused', id);
+    expect(await signatureCount(id)).toBe(0);
+    const [refused] = await auditOf('signature.refused', id);
     expect(refused).toMatchObject({ actor: 'supervisor@haldenbay.test', newValue: { reason: 'wrong password', meaning: 'approved' } });
-    expect(recipeRow().releasedPlanId).toBeNull();
+    expect((await recipeRow()).releasedPlanId).toBeNull();
   });
 
   it('refuses to sign when the stored plan changed after submission', async () => {
     const plan = await savePlan(45);
     const { id } = (await propose(engineer, plan.id)).body;
-    const row = t.db.select().from(plans).where(eq(plans.id, plan.id)).get()!;
-    t.db
+    const row = (await t.db.select().from(plans).where(eq(plans.id, plan.id)).then(first))!;
+    await t.db
       .update(plans)
       .set({ outputs: { ...row.outputs, setpointC: row.outputs.setpointC + 5 } })
       .where(eq(plans.id, plan.id))
-      .run();
+      .execute();
     expect((await supervisor.get(`/api/change-requests/${id}`)).body.isIntact).toBe(false);
     const r = await sign(supervisor, id, 'approved');
     expect(r.status).toBe(409);
     expect(r.body.error.code).toBe('record_changed');
-    expect(signatureCount(id)).toBe(0);
-    expect(auditOf('signature.refused', id)[0]!.newValue).toMatchObject({ reason: 'record changed since submission' });
-    expect(recipeRow().releasedPlanId).toBeNull();
+    expect(await signatureCount(id)).toBe(0);
+    expect((await auditOf('signature.refused', id))[0]!.newValue).toMatchObject({ reason: 'record changed since submission' });
+    expect((await recipeRow()).releasedPlanId).toBeNull();
   });
 
   it('refuses to sign when the request text changed after submission', async () => {
     const plan = await savePlan(46);
     const { id } = (await propose(engineer, plan.id)).body;
-    t.db.update(changeRequests).set({ effectiveFrom: '2026-12-02' }).where(eq(changeRequests.id, id)).run();
+    await t.db.update(changeRequests).set({ effectiveFrom: '2026-12-02' }).where(eq(changeRequests.id, id)).execute();
     expect((await sign(supervisor, id, 'reviewed')).body.error.code).toBe('record_changed');
-    expect(signatureCount(id)).toBe(0);
+    expect(await signatureCount(id)).toBe(0);
   });
 
   it('approves: binds the signature to the hash, releases the plan on the recipe, audits each step and tells the proposer', async () => {
@@ -157,7 +157,7 @@ describe('signing', () => {
     expect(reviewed.status).toBe(201);
     expect(reviewed.body.status).toBe('proposed');
     t.clock.advanceMinutes(30);
-    const before = recipeRow();
+    const before = await recipeRow();
     const r = await sign(supervisor, proposed.id, 'approved', password('supervisor'), 'Go ahead');
     expect(r.status).toBe(201);
     expect(r.body.status).toBe('approved');
@@ -170,22 +170,22 @@ describe('signing', () => {
     expect(r.body.signatures[1].signedAtSite).toMatch(/ CET \(Europe\/Berlin\)$/);
     // The released state is what the approval replaced, kept on the record.
     expect(r.body.current).toMatchObject({ source: 'recipe-setpoint', setpointC: before.currentSetpointC });
-    const after = recipeRow();
+    const after = await recipeRow();
     // 2026-12-15 00:00 in Berlin (CET, UTC+1) is 2026-12-14 23:00 UTC.
     expect(after).toMatchObject({ releasedPlanId: plan.id, releasedAt: '2026-12-14T23:00:00.000Z', currentSetpointC: plan.outputs.setpointC });
     expect((await engineer.get(`/api/recipes/${recipeId}`)).body.recipe).toMatchObject({ releasedPlanId: plan.id, currentSetpointC: plan.outputs.setpointC });
-    expect(auditOf('signature.create', proposed.id)).toHaveLength(2);
-    expect(auditOf('change-request.approve', proposed.id)[0]).toMatchObject({ oldValue: { status: 'proposed' }, newValue: { status: 'approved' } });
-    expect(auditOf('recipe.release', recipeId).at(-1)).toMatchObject({
+    expect(await auditOf('signature.create', proposed.id)).toHaveLength(2);
+    expect((await auditOf('change-request.approve', proposed.id))[0]).toMatchObject({ oldValue: { status: 'proposed' }, newValue: { status: 'approved' } });
+    expect((await auditOf('recipe.release', recipeId)).at(-1)).toMatchObject({
       oldValue: { releasedPlanId: null, currentSetpointC: before.currentSetpointC },
       newValue: { releasedPlanId: plan.id, currentSetpointC: plan.outputs.setpointC, changeRequestId: proposed.id },
     });
-    const mail = t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.approved')).all();
+    const mail = await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.approved')).execute();
     expect(mail.map((m) => m.to)).toEqual(['engineer@haldenbay.test']);
     expect(mail[0]!.text).toContain('Marit Oyelaran approved');
     // A decided request takes no more signatures.
     expect((await sign(supervisor, proposed.id, 'rejected')).body.error.code).toBe('already_decided');
-    expect(signatureCount(proposed.id)).toBe(2);
+    expect(await signatureCount(proposed.id)).toBe(2);
 
     // The next proposal compares against the plan just released.
     const next = (await propose(engineer, (await savePlan(30)).id)).body;
@@ -195,19 +195,14 @@ describe('signing', () => {
   it('rejects: closes the request, keeps the recipe and tells the proposer', async () => {
     const plan = await savePlan(48);
     const { id } = (await propose(engineer, plan.id)).body;
-    const before = recipeRow();
+    const before = await recipeRow();
     const r = await sign(supervisor, id, 'rejected', password('supervisor'), 'Wait for the second QC assay');
     expect(r.body.status).toBe('rejected');
-    expect(recipeRow()).toEqual(before);
-    expect(auditOf('change-request.reject', id)).toHaveLength(1);
-    expect(
-      t.db
-        .select()
-        .from(mailOutbox)
-        .where(eq(mailOutbox.kind, 'change-request.rejected'))
-        .all()
-        .map((m) => m.to),
-    ).toEqual(['engineer@haldenbay.test']);
+    expect(await recipeRow()).toEqual(before);
+    expect(await auditOf('change-request.reject', id)).toHaveLength(1);
+    expect((await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).execute()).map((m) => m.to)).toEqual([
+      'engineer@haldenbay.test',
+    ]);
   });
 
   it('keeps a decision when the mail relay fails: the notice stays pending for a retry', async () => {
@@ -222,9 +217,9 @@ describe('signing', () => {
     });
     await sender.deliverDue();
     await sender.stop();
-    const notice = t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).all().at(-1)!;
+    const notice = (await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).execute()).at(-1)!;
     expect(notice).toMatchObject({ status: 'pending', attempts: 1, lastError: 'relay down' });
-    expect(t.db.select().from(changeRequests).where(eq(changeRequests.id, id)).get()!.status).toBe('rejected');
+    expect((await t.db.select().from(changeRequests).where(eq(changeRequests.id, id)).then(first))!.status).toBe('rejected');
   });
 
   it('exports the record with printed names, UTC and site times and meanings', async () => {
@@ -274,7 +269,7 @@ describe('sign rate limit and audit chain', () => {
       for (let i = 0; i < 3; i++) expect((await sign(sup, id, 'approved', 'guess-' + i)).status).toBe(400);
       const blocked = await sign(sup, id, 'approved');
       expect(blocked.status).toBe(429);
-      expect(app.db.select().from(signatures).all()).toHaveLength(0);
+      expect(await app.db.select().from(signatures).execute()).toHaveLength(0);
     } finally {
       await app.close();
     }
@@ -288,12 +283,13 @@ describe('sign rate limit and audit chain', () => {
     expect(first.problems.map((p: { message: string }) => p.message)).toEqual(
       [6, 7].map((id) => `Change request ${id}: its plan or its text changed after it was submitted (the record no longer hashes as submitted)`),
     );
-    const row = t.db.select().from(auditEvents).where(eq(auditEvents.action, 'signature.create')).get()!;
-    t.db
+    const [row] = await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'signature.create'));
+    if (!row) throw new Error('no signature event');
+    await t.db
       .update(auditEvents)
       .set({ newValue: { ...(row.newValue as object), meaning: 'rejected' } })
       .where(eq(auditEvents.id, row.id))
-      .run();
+      .execute();
     expect((await admin.get('/api/audit-events/verify')).body).toMatchObject({ ok: false, firstBrokenId: row.id });
   });
 });
@@ -314,12 +310,12 @@ describe('one request per recipe at a time', () => {
     // The comparison it showed is kept with it.
     expect(closed.current).toMatchObject(older.current);
     expect((await supervisor.get(`/api/change-requests/${newer.id}`)).body).toMatchObject({ status: 'proposed', supersededBy: null });
-    const [event] = auditOf('change-request.supersede', older.id);
+    const [event] = await auditOf('change-request.supersede', older.id);
     expect(event).toMatchObject({ oldValue: { status: 'proposed' }, newValue: { status: 'superseded', supersededBy: newer.id } });
     const refused = await sign(supervisor, older.id, 'approved');
     expect(refused.status).toBe(409);
     expect(refused.body.error.code).toBe('already_decided');
-    expect(signatureCount(older.id)).toBe(0);
+    expect(await signatureCount(older.id)).toBe(0);
     const waiting = (await supervisor.get('/api/change-requests?status=proposed')).body.changeRequests as { recipeId: number }[];
     expect(waiting.filter((c) => c.recipeId === recipeId)).toHaveLength(1);
   });
@@ -330,13 +326,13 @@ describe('one request per recipe at a time', () => {
     // A request left waiting from before one-at-a-time (or written by another path) is closed when another is released.
     const otherPlan = await savePlan(47);
     const left = (await propose(engineer, otherPlan.id)).body;
-    t.db.update(changeRequests).set({ status: 'proposed', supersededBy: null, decidedAt: null }).where(eq(changeRequests.id, released.id)).run();
+    await t.db.update(changeRequests).set({ status: 'proposed', supersededBy: null, decidedAt: null }).where(eq(changeRequests.id, released.id)).execute();
     expect((await sign(supervisor, released.id, 'approved')).status).toBe(201);
-    expect(recipeRow().releasedPlanId).toBe(plan.id);
+    expect((await recipeRow()).releasedPlanId).toBe(plan.id);
     const stale = (await supervisor.get(`/api/change-requests/${left.id}`)).body;
     expect(stale).toMatchObject({ status: 'stale', supersededBy: released.id });
-    expect(auditOf('change-request.stale', left.id)).toHaveLength(1);
+    expect(await auditOf('change-request.stale', left.id)).toHaveLength(1);
     expect((await sign(supervisor, left.id, 'approved')).status).toBe(409);
-    expect(recipeRow().releasedPlanId).toBe(plan.id);
+    expect((await recipeRow()).releasedPlanId).toBe(plan.id);
   });
 });

@@ -6,7 +6,7 @@ import path from 'node:path';
 import { and, eq } from 'drizzle-orm';
 import { AttributeIds, DataType, MessageSecurityMode, OPCUAClient, SecurityPolicy, StatusCodes, UserTokenType } from 'node-opcua';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { batchReadings, deviations } from '../../db/schema';
+import { batchReadings, deviations } from '../../db/tables';
 import { startPlant, type Plant } from '../../server/opcua/plant';
 import { openAppPki, type AppPki } from '../../server/opcua/pki';
 import { READ_FAMILY } from '../../server/opcua/reader';
@@ -80,7 +80,7 @@ const controlReadings = () =>
     .select()
     .from(batchReadings)
     .where(and(eq(batchReadings.batchId, batchId), eq(batchReadings.source, 'control_system')))
-    .all();
+    .execute();
 const statusOf = async () =>
   ((await operator.get(`/api/control-link/batches/${batchId}`)).body as { link: { state: string; lastError: string | null; lastValueC: number | null } | null })
     .link;
@@ -195,9 +195,9 @@ describe('values from the plant', () => {
       plant.set(TAG, v, { at: times[i] });
       await pause();
     }
-    const rows = await until('three readings', () => (controlReadings().length >= 3 ? controlReadings() : null));
+    const rows = await until('three readings', async () => ((await controlReadings()).length >= 3 ? controlReadings() : null));
     await new Promise((r) => setTimeout(r, 300));
-    expect(controlReadings()).toHaveLength(3);
+    expect(await controlReadings()).toHaveLength(3);
     expect(rows.map((r) => [r.takenAt, r.c])).toEqual(times.map((at, i) => [at.toISOString(), values[i]]));
     const detail = (await operator.get(`/api/batches/${batchId}`)).body;
     const cs = detail.readings.filter((r: { source: string }) => r.source === 'control_system');
@@ -206,39 +206,39 @@ describe('values from the plant', () => {
   });
 
   it('fills a lost connection from the server history when it is back, with no duplicates', async () => {
-    const before = controlReadings().length;
+    const before = (await controlReadings()).length;
     await net1.cut();
     await until('disconnected', async () => (await statusOf())?.state !== 'connected');
     const missed = [59.4, 59.6, 59.2, 59.0].map((c) => ({ c, at: nextAt() }));
     for (const m of missed) plant.set(TAG, m.c, { at: m.at });
     await net1.mend();
     await until('reconnected', async () => (await statusOf())?.state === 'connected');
-    const rows = await until('the missed values', () => (controlReadings().length >= before + missed.length ? controlReadings() : null));
+    const rows = await until('the missed values', async () => ((await controlReadings()).length >= before + missed.length ? controlReadings() : null));
     await new Promise((r) => setTimeout(r, 300));
-    expect(controlReadings()).toHaveLength(before + missed.length);
+    expect(await controlReadings()).toHaveLength(before + missed.length);
     expect(rows.slice(-missed.length).map((r) => [r.takenAt, r.c])).toEqual(missed.map((m) => [m.at.toISOString(), m.c]));
     expect(new Set(rows.map((r) => r.takenAt)).size).toBe(rows.length);
   });
 
   it('does not store a bad status, and raises a lost signal after the site gap limit', async () => {
-    const before = controlReadings().length;
+    const before = (await controlReadings()).length;
     plant.set(TAG, 0, { status: StatusCodes.BadSensorFailure, at: nextAt() });
     await until('the bad status', async () => /BadSensorFailure/.test((await statusOf())?.lastError ?? ''));
-    expect(controlReadings()).toHaveLength(before);
+    expect(await controlReadings()).toHaveLength(before);
     const lost = () =>
       t.db
         .select()
         .from(deviations)
         .where(and(eq(deviations.batchId, batchId), eq(deviations.kind, 'signal_lost')))
-        .all();
-    expect(lost()).toHaveLength(0);
+        .execute();
+    expect(await lost()).toHaveLength(0);
     // The site's gap limit is 30 min (the default): 31 min without a good value.
     t.clock.advanceMinutes(31);
-    const raised = await until('a signal_lost deviation', () => (lost().length ? lost() : null));
+    const raised = await until('a signal_lost deviation', async () => ((await lost()).length ? lost() : null));
     expect(raised).toHaveLength(1);
     expect(raised[0]!.message).toMatch(/BadSensorFailure.*30 min/);
     await new Promise((r) => setTimeout(r, 300));
-    expect(lost()).toHaveLength(1);
+    expect(await lost()).toHaveLength(1);
   });
 
   it('refuses a wrong password with a clear message', async () => {
@@ -335,7 +335,7 @@ describe('a server without history', () => {
       expect((await admin.req('PUT', `/api/control-link/sources/${vesselId}`, body)).body.trustedThumbprint).toBeNull();
       const cert = await admin.get(`/api/control-link/sources/${vesselId}/server-certificate`);
       expect((await admin.post(`/api/control-link/sources/${vesselId}/trust`, { thumbprint: cert.body.thumbprint })).status).toBe(200);
-      const lastBefore = controlReadings().at(-1)!.takenAt;
+      const lastBefore = (await controlReadings()).at(-1)!.takenAt;
       await link.reconcile();
       const gaps = ((await operator.get(`/api/control-link/batches/${batchId}`)).body as { gaps: { fromAt: string; toAt: string; reason: string }[] }).gaps;
       expect(gaps).toHaveLength(1);
@@ -344,11 +344,11 @@ describe('a server without history', () => {
         toAt: t.clock.now().toISOString(),
         reason: expect.stringMatching(/No history/),
       });
-      const before = controlReadings().length;
+      const before = (await controlReadings()).length;
       await pause();
       // The test clock is past the earlier values (the lost-signal test moved it): a value stamped now by it.
       bare.set(TAG, 59.7, { at: t.clock.now() });
-      await until('a live value', () => controlReadings().length > before);
+      await until('a live value', async () => (await controlReadings()).length > before);
     } finally {
       await link.close();
       await bare.close();

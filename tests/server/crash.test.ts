@@ -1,7 +1,7 @@
 import Database from 'better-sqlite3';
 import fs from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
-import { openDb } from '../../db/client';
+import { openDb, sqliteClient } from '../../db/client';
 import { DEMO_USERS } from '../../db/seed';
 import { verifyAudit } from '../../server/services/audit-verify';
 import { sessionCookie, startServer, type RunningServer } from '../support/server';
@@ -106,10 +106,10 @@ describe(`crash consistency (seed ${SEED}, ${ROUNDS} rounds)`, () => {
     expect(missing).toEqual([]);
     const db = openDb(file);
     // Whole links, and every signed checkpoint written at each start still matches what the file holds.
-    const audit = verifyAudit(db, 1);
+    const audit = await verifyAudit(db, 1);
     expect(audit.problems).toEqual([]);
     expect(audit.checkpoints).toBeGreaterThan(0);
-    db.$client.close();
+    sqliteClient(db).close();
     fs.rmSync(dir!, { recursive: true, force: true });
   }, 600_000);
 

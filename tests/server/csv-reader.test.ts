@@ -1,6 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest';
-import { migrateDb, openDb } from '../../db/client';
-import { batches } from '../../db/schema';
+import { migrateDb, openDb, first } from '../../db/client';
+import { batches } from '../../db/tables';
 import { seedDemo } from '../../db/seed';
 import { DEFAULT_BATCH_SETTINGS } from '../../src/contracts/batches';
 import { readCsv } from '../../server/csv-reader';
@@ -105,9 +105,9 @@ describe('import worker', () => {
     const progress: number[] = [];
     // The worker also checks the rows and runs the deviation rules: against a demo batch's program, started at `start`.
     const db = openDb(':memory:');
-    migrateDb(db);
-    seedDemo(db, { bcryptCost: 4 });
-    const program = db.select().from(batches).get()!.program;
+    await migrateDb(db);
+    await seedDemo(db, { bcryptCost: 4 });
+    const program = (await db.select().from(batches).then(first))!.program;
     const basis = {
       startedAt: new Date(start).toISOString(),
       program,

@@ -1,6 +1,7 @@
+import { first } from '../../db/client';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mailOutbox, sites } from '../../db/schema';
+import { mailOutbox, sites } from '../../db/tables';
 import { DEMO_SITE_NAME } from '../../db/seed';
 import { proposeDemoChange } from '../../server/services/demo-proposal';
 import { password, startTestApp, type TestApp } from './harness';
@@ -10,8 +11,8 @@ describe('demo proposal', () => {
   let t: TestApp;
   beforeAll(async () => {
     t = await startTestApp();
-    const site = t.db.select().from(sites).where(eq(sites.name, DEMO_SITE_NAME)).get()!;
-    proposeDemoChange({ db: t.db, clock: t.clock, mail: null, linkUrl: 'http://localhost:8080' }, site.id);
+    const site = (await t.db.select().from(sites).where(eq(sites.name, DEMO_SITE_NAME)).then(first))!;
+    await proposeDemoChange({ db: t.db, clock: t.clock, mail: null, linkUrl: 'http://localhost:8080' }, site.id);
   });
   afterAll(() => t.close());
 
@@ -28,11 +29,7 @@ describe('demo proposal', () => {
     const plan = await supervisor.get(`/api/plans/${(detail.body as { planId: number }).planId}`);
     expect((detail.body as { rationale: string }).rationale).toContain(`${(plan.body as { outputs: { setpointC: number } }).outputs.setpointC.toFixed(1)} °C`);
 
-    const mails = t.db
-      .select()
-      .from(mailOutbox)
-      .all()
-      .filter((m) => m.kind === 'change-request.proposed');
+    const mails = (await t.db.select().from(mailOutbox).execute()).filter((m) => m.kind === 'change-request.proposed');
     expect(mails.map((m) => m.to)).toContain('supervisor@haldenbay.test');
 
     const signed = await supervisor.post(`/api/change-requests/${mine[0]!.id}/signatures`, {

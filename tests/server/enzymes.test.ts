@@ -63,11 +63,11 @@ describe('creating and editing enzymes', () => {
 
   it('stores the new enzyme, audits it, and refuses a duplicate name with 409', async () => {
     const c = await t.signIn('procurement');
-    const before = listAudit(t.db, 1).length;
+    const before = (await listAudit(t.db, 1)).length;
     const r = await c.post('/api/enzymes', NEW);
     expect(r.status).toBe(201);
     expect(r.body).toMatchObject(NEW);
-    const events = listAudit(t.db, 1).slice(before);
+    const events = (await listAudit(t.db, 1)).slice(before);
     expect(events.map((e) => e.action)).toEqual(['enzyme.create']);
     const dup = await c.post('/api/enzymes', { ...NEW, name: 'pectina px-2' });
     expect(dup.status).toBe(409);
@@ -90,7 +90,7 @@ describe('creating and editing enzymes', () => {
     const r = await c.patch(`/api/enzymes/${id}`, { specMinHalfLifeH: 32 });
     expect(r.status).toBe(200);
     expect(r.body.specMinHalfLifeH).toBe(32);
-    const last = listAudit(t.db, 1).at(-1)!;
+    const last = (await listAudit(t.db, 1)).at(-1)!;
     expect(last).toMatchObject({ action: 'enzyme.update', oldValue: { specMinHalfLifeH: 30 }, newValue: { specMinHalfLifeH: 32 } });
     const other = await t.signIn('engineer', 'other');
     expect((await other.patch(`/api/enzymes/${id}`, { specMinHalfLifeH: 1 })).status).toBe(404);

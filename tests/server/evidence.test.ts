@@ -2,7 +2,7 @@
 // a calibration that changes nothing until an engineer accepts it, and outliers are flagged, left out only by choice.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { auditEvents, calibrations } from '../../db/schema';
+import { auditEvents, calibrations } from '../../db/tables';
 import { halfLifeAt } from '../../src/model';
 import { demoAssayCsv, demoAssayPoints, DEMO_PLANT_TRUTH } from '../../db/seed';
 import { planBody } from '../fixtures/plan-body';
@@ -152,7 +152,7 @@ describe('closing the loop', () => {
     const a = await eng.post(`/api/calibrations/${id}/accept`, { comment: 'First plant batch on this lot' });
     expect(a.status).toBe(200);
     expect(a.body.state).toBe('accepted');
-    const audit = t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration.accept')).all().at(-1)!;
+    const audit = (await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration.accept')).execute()).at(-1)!;
     expect(audit.newValue).toMatchObject({ batchIds: used });
     expect((await eng.post(`/api/calibrations/${id}/accept`, {})).status).toBe(409);
     const after = (await glucosePlan()).body;
@@ -186,16 +186,10 @@ describe('closing the loop', () => {
       by: 'Tomasz Ekwueme',
       at: t.clock.now().toISOString(),
     });
-    expect(t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration.exclude_batch')).all()).toHaveLength(1);
+    expect(await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration.exclude_batch')).execute()).toHaveLength(1);
     // The accepted calibration stays as it was: leaving a batch out changes only the proposal.
     expect(ex.body.accepted.batchIds).toEqual(used);
-    expect(
-      t.db
-        .select()
-        .from(calibrations)
-        .all()
-        .filter((c) => c.state === 'accepted'),
-    ).toHaveLength(1);
+    expect((await t.db.select().from(calibrations).execute()).filter((c) => c.state === 'accepted')).toHaveLength(1);
   });
 });
 
@@ -267,7 +261,7 @@ describe('the whole chain on one lot', () => {
     expect((await admin.patch('/api/calibrations/settings', { measurementRelSd: 0.5 })).status).toBe(400);
     expect((await admin.patch('/api/calibrations/settings', { measurementRelSd: 0.03, extra: 1 })).status).toBe(400);
     expect((await admin.patch('/api/calibrations/settings', { measurementRelSd: 0.03 })).body).toEqual({ measurementRelSd: 0.03 });
-    expect(t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration_settings.update')).all()).toHaveLength(1);
+    expect(await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration_settings.update')).execute()).toHaveLength(1);
 
     // Procurement uploads a QC assay drawn from the lot's invented plant truth (38 h at 40 °C; certificate 60 h).
     const points = demoAssayPoints(40, { halfLifeH: DEMO_PLANT_TRUTH.halfLifeRefH, edKJPerMol: DEMO_PLANT_TRUTH.edKJPerMol, seed: 77 });

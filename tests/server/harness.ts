@@ -1,6 +1,12 @@
 import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { migrateDb, openDb, type Db } from '../../db/client';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { closeDb, migrateDb, openDb, type Db } from '../../db/client';
+import { openPgDb } from '../../db/pg/client';
+import { databaseDialect } from '../../db/tables';
+import { freshPgDatabase } from '../support/pg-database';
 import { DEMO_USERS, seedDemo } from '../../db/seed';
 import { createApp, type AppDeps } from '../../server/app';
 import type { Clock } from '../../server/clock';
@@ -65,6 +71,20 @@ export const password = (role: Role) => DEMO_USERS.find((u) => u.role === role)!
 export const email = (role: Role, site: 'main' | 'other' = 'main') =>
   DEMO_USERS.find((u) => u.role === role)!.email.replace('haldenbay.test', site === 'main' ? 'haldenbay.test' : 'otherplant.test');
 
+/** True in the `server-pg` test project: the same tests on PostgreSQL. */
+export const onPostgres = databaseDialect === 'postgres';
+
+/**
+ * The test's database, migrated and empty: SQLite in memory (or the file `file`), or in the `server-pg` project a
+ * fresh PostgreSQL database of the run's cluster (its installation files in a temporary folder).
+ */
+export async function openTestDb(file?: string): Promise<Db> {
+  if (onPostgres) return openPgDb(await freshPgDatabase(), { dataDir: fs.mkdtempSync(path.join(os.tmpdir(), 'yp-pg-installation-')), max: 4 });
+  const db = openDb(file ?? ':memory:');
+  await migrateDb(db);
+  return db;
+}
+
 /**
  * The app on an in-memory database (or the SQLite file `opts.file`) with the demo site and a second site,
  * listening on a free port.
@@ -73,12 +93,11 @@ export async function startTestApp(
   overrides: Partial<AppDeps> = {},
   opts: { file?: string; now?: Date; controlLink?: (db: Db, clock: TestClock) => AppDeps['controlLink'] } = {},
 ): Promise<TestApp> {
-  const db = openDb(opts.file ?? ':memory:');
-  migrateDb(db);
+  const db = await openTestDb(opts.file);
   // Cost 4 keeps seeding fast; the production cost is checked on its own. With `now`, the running batch is
   // seeded to have started four hours before it and the clock starts there.
-  seedDemo(db, { bcryptCost: 4, now: opts.now });
-  seedDemo(db, { bcryptCost: 4, siteName: 'Other Plant', emailDomain: 'otherplant.test', now: opts.now });
+  await seedDemo(db, { bcryptCost: 4, now: opts.now });
+  await seedDemo(db, { bcryptCost: 4, siteName: 'Other Plant', emailDomain: 'otherplant.test', now: opts.now });
   const clock = opts.now ? new TestClock(opts.now.getTime()) : new TestClock();
   const app = createApp({
     db,
@@ -105,11 +124,12 @@ export async function startTestApp(
       if (r.status !== 201) throw new Error(`sign-in as ${role} failed: ${r.status} ${JSON.stringify(r.body)}`);
       return c;
     },
-    close: () =>
-      new Promise<void>((resolve) => {
+    close: async () => {
+      await new Promise<void>((resolve) => {
         server.closeAllConnections();
         server.close(() => resolve());
-        db.$client.close();
-      }),
+      });
+      await closeDb(db);
+    },
   };
 }

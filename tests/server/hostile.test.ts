@@ -4,7 +4,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { migrateDb, openDb } from '../../db/client';
+import { migrateDb, openDb, sqliteClient } from '../../db/client';
 import { installationSecret } from '../../server/installation-secrets';
 import { auditKeyOf, eventHash } from '../../server/services/audit';
 import { appendCheckpoint } from '../../server/services/audit-checkpoints';
@@ -83,8 +83,8 @@ const idValue = fc.constantFrom('1', '2', '0', '-1', '999999999', 'abc', '1%20or
 
 // Rows written on this connection, not counting the audit trail: recording a refusal is a write we want.
 const changes = () => {
-  const { n } = t.db.$client.prepare('select total_changes() as n').get() as { n: number };
-  const { a } = t.db.$client.prepare('select count(*) as a from audit_events').get() as { a: number };
+  const { n } = sqliteClient(t.db).prepare('select total_changes() as n').get() as { n: number };
+  const { a } = sqliteClient(t.db).prepare('select count(*) as a from audit_events').get() as { a: number };
   return n - a;
 };
 
@@ -136,13 +136,14 @@ describe(`hostile input (seed ${SEED})`, () => {
 
 describe('refused calls cannot grow the audit trail without bound', () => {
   const audit = () =>
-    t.db.$client.prepare('select action, actor, entity_id as entityId, new_value as newValue from audit_events order by id').all() as {
+    sqliteClient(t.db).prepare('select action, actor, entity_id as entityId, new_value as newValue from audit_events order by id').all() as {
       action: string;
       actor: string;
       entityId: string;
       newValue: string;
     }[];
-  const bytes = () => (t.db.$client.pragma('page_count', { simple: true }) as number) * (t.db.$client.pragma('page_size', { simple: true }) as number);
+  const bytes = () =>
+    (sqliteClient(t.db).pragma('page_count', { simple: true }) as number) * (sqliteClient(t.db).pragma('page_size', { simple: true }) as number);
 
   it('one address: the first denial of a minute is an event, the rest one counted event, with the path cut', async () => {
     t.clock.advanceMinutes(1);
@@ -291,9 +292,9 @@ describe('a stranger guessing passwords cannot lock the account out', () => {
 describe('payment events cannot be forged in the default set-up', () => {
   it('each installation has its own webhook secret (kept across restarts), never the source’s', async () => {
     const [a, b] = [fs.mkdtempSync(path.join(os.tmpdir(), 'yp-inst-')), fs.mkdtempSync(path.join(os.tmpdir(), 'yp-inst-'))];
-    const secretA = installationSecret(path.join(a, 'yieldpoint.db'), '.webhook-secret');
-    expect(installationSecret(path.join(a, 'yieldpoint.db'), '.webhook-secret').equals(secretA)).toBe(true);
-    expect(installationSecret(path.join(b, 'yieldpoint.db'), '.webhook-secret').equals(secretA)).toBe(false);
+    const secretA = installationSecret(a, '.webhook-secret');
+    expect(installationSecret(a, '.webhook-secret').equals(secretA)).toBe(true);
+    expect(installationSecret(b, '.webhook-secret').equals(secretA)).toBe(false);
     expect(secretA.length).toBe(32);
     expect(fs.statSync(path.join(a, '.webhook-secret')).mode & 0o077).toBe(0);
   });
@@ -301,8 +302,8 @@ describe('payment events cannot be forged in the default set-up', () => {
   it('refuses events signed with the former constant, seeds unguessable customer ids, and keeps no foreign pay link', async () => {
     const app = await startBillingTestApp();
     try {
-      const row = findSubscription(app.db, 1)!;
-      const other = findSubscription(app.db, 2)!;
+      const row = (await findSubscription(app.db, 1))!;
+      const other = (await findSubscription(app.db, 2))!;
       expect(row.stripeCustomerId).not.toMatch(/site1$/);
       expect(row.stripeCustomerId).not.toBe(other.stripeCustomerId!.replace(/2$/, '1'));
       const event = (type: string, object: object) => ({
@@ -328,7 +329,7 @@ describe('payment events cannot be forged in the default set-up', () => {
       const sub = structuredClone(app.fake.get(row.stripeSubscriptionId!)!);
       sub.items.data[0].quantity = 500;
       expect((await deliver(event('customer.subscription.updated', sub), 'whsec_yieldpoint_local_fake_secret')).status).toBe(400);
-      expect(findSubscription(app.db, 1)!.seats).toBe(row.seats);
+      expect((await findSubscription(app.db, 1))!.seats).toBe(row.seats);
 
       // Even a correctly signed invoice keeps only a link to the provider's own payment page.
       const now = Math.floor(Date.now() / 1000);
@@ -351,7 +352,7 @@ describe('payment events cannot be forged in the default set-up', () => {
       const admin = await app.signIn('admin');
       const stored = (await admin.get('/api/billing/invoices')).body.invoices.find((i: { number: string }) => i.number === 'X-1');
       expect(stored.payUrl).toBeNull();
-      expect(listAudit(app.db, 1, { action: 'billing.pay-link.refused' })[0]!.newValue).toEqual({ host: 'pay.example.net' });
+      expect((await listAudit(app.db, 1, { action: 'billing.pay-link.refused' }))[0]!.newValue).toEqual({ host: 'pay.example.net' });
     } finally {
       await app.closeAll();
     }
@@ -381,7 +382,7 @@ describe('the audit trail cannot be rewritten without a trace', () => {
   let admin: Client;
   const verify = async () => (await admin.get('/api/audit-events/verify')).body;
   const seal = async () => expect((await admin.post('/api/audit-events/checkpoints', {})).status).toBe(201);
-  const raw = () => a.db.$client;
+  const raw = () => sqliteClient(a.db);
   beforeAll(async () => {
     a = await startTestApp();
     admin = await a.signIn('admin');
@@ -465,7 +466,7 @@ describe('the audit trail cannot be rewritten without a trace', () => {
   });
 
   it('a forged checkpoint line is reported, not trusted', async () => {
-    appendCheckpoint(raw(), crypto.randomBytes(32), { siteId: 1, events: 1, lastId: 1, head: 'f'.repeat(64), at: a.clock.now().toISOString() });
+    appendCheckpoint(a.db, crypto.randomBytes(32), { siteId: 1, events: 1, lastId: 1, head: 'f'.repeat(64), at: a.clock.now().toISOString() });
     expect((await verify()).problems).toEqual([{ kind: 'checkpoint', eventId: null, message: '1 checkpoint line does not carry a valid signature' }]);
   });
 
@@ -514,7 +515,7 @@ describe('the audit trail cannot be rewritten without a trace', () => {
         (await sup.post(`/api/change-requests/${cr.id}/signatures`, { password: password('supervisor'), meaning: 'rejected', comment: 'Not yet' })).status,
       ).toBe(201);
       expect(await check()).toMatchObject({ ok: true, problems: [] });
-      const db = fresh.db.$client;
+      const db = sqliteClient(fresh.db);
       db.prepare("update lots set status = 'accepted', decision_reason = 'Meets specification' where id = ?").run(lot.id);
       db.prepare("update signatures set printed_name = 'Somebody Else' where change_request_id = ?").run(cr.id);
       db.prepare("update change_requests set status = 'approved' where id = ?").run(cr.id);
@@ -536,9 +537,9 @@ describe('databases written before the chain was keyed', () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yp-legacy-'));
     const file = path.join(dir, 'yieldpoint.db');
     const first = openDb(file);
-    migrateDb(first);
+    await migrateDb(first);
     const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
-    const ins = first.$client.prepare(
+    const ins = sqliteClient(first).prepare(
       'insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (?, null, ?, ?, ?, null, null, null, ?, ?, ?)',
     );
     // Site-less chain: whole. Written as the earlier code did (plain SHA-256 links).
@@ -549,17 +550,20 @@ describe('databases written before the chain was keyed', () => {
       ins.run(null, `u${i}@x.test`, 'sign-in.failed', 'session', at, prev, h);
       prev = h;
     }
-    first.$client.close();
+    sqliteClient(first).close();
     fs.rmSync(path.join(dir, '.audit-key'), { force: true });
 
     const second = openDb(file);
-    const result = verifyAudit(second, null);
+    const result = await verifyAudit(second, null);
     expect(result).toMatchObject({ ok: true, events: 6, firstBrokenId: null });
-    const last = second.$client.prepare('select action, new_value as v from audit_events order by id desc limit 1').get() as { action: string; v: string };
+    const last = sqliteClient(second).prepare('select action, new_value as v from audit_events order by id desc limit 1').get() as {
+      action: string;
+      v: string;
+    };
     expect(last.action).toBe('audit.rekeyed');
     expect(JSON.parse(last.v)).toEqual({ events: 5 });
     expect(fs.existsSync(path.join(dir, '.audit-key'))).toBe(true);
-    second.$client.close();
+    sqliteClient(second).close();
     fs.rmSync(dir, { recursive: true, force: true });
   });
 
@@ -567,9 +571,9 @@ describe('databases written before the chain was keyed', () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yp-legacy-'));
     const file = path.join(dir, 'yieldpoint.db');
     const first = openDb(file);
-    migrateDb(first);
+    await migrateDb(first);
     const sha = (e: unknown[]) => crypto.createHash('sha256').update(JSON.stringify(e)).digest('hex');
-    const ins = first.$client.prepare(
+    const ins = sqliteClient(first).prepare(
       'insert into audit_events (site_id, user_id, actor, action, entity, entity_id, old_value, new_value, at, prev_hash, hash) values (null, null, ?, ?, ?, null, null, null, ?, ?, ?)',
     );
     let prev = '0'.repeat(64);
@@ -579,11 +583,11 @@ describe('databases written before the chain was keyed', () => {
       ins.run(`u${i}@x.test`, 'sign-in.failed', 'session', at, prev, h);
       prev = h;
     }
-    first.$client.prepare("update audit_events set actor = 'edited@x.test' where id = 2").run();
-    first.$client.close();
+    sqliteClient(first).prepare("update audit_events set actor = 'edited@x.test' where id = 2").run();
+    sqliteClient(first).close();
     const second = openDb(file);
-    expect(verifyAudit(second, null)).toMatchObject({ ok: false, events: 4, firstBrokenId: 1 });
-    second.$client.close();
+    expect(await verifyAudit(second, null)).toMatchObject({ ok: false, events: 4, firstBrokenId: 1 });
+    sqliteClient(second).close();
     fs.rmSync(dir, { recursive: true, force: true });
   });
 });

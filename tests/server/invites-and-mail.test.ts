@@ -1,6 +1,6 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { migrateDb, openDb, type Db } from '../../db/client';
-import { mailOutbox } from '../../db/schema';
+import { migrateDb, openDb, writeTx, type Db, sqliteClient } from '../../db/client';
+import { mailOutbox } from '../../db/tables';
 import { startSmtpSink } from '../../server/fakes/smtp-sink';
 import { createMailSender, enqueueMail, MAX_ATTEMPTS, retryDelayMs, smtpTransport } from '../../server/services/mail';
 import { listAudit } from '../../server/repositories/audit';
@@ -48,7 +48,7 @@ describe('invites', () => {
     const twice = await anon.post('/api/invites/accept', { token, name: 'Someone', password: 'another-long-password' });
     expect(twice.status).toBe(410);
     expect(twice.body.error.code).toBe('invite_used');
-    expect(listAudit(t.db, 1).map((e) => e.action)).toEqual(expect.arrayContaining(['invite.create', 'invite.accept']));
+    expect((await listAudit(t.db, 1)).map((e) => e.action)).toEqual(expect.arrayContaining(['invite.create', 'invite.accept']));
   });
 
   it('refuses an invite beyond the paid seats with a clear message, and queues no mail for it', async () => {
@@ -61,14 +61,7 @@ describe('invites', () => {
       'All 8 paid seats are taken (5 active people and 3 open invites). Buy more seats on the Billing screen, or deactivate someone or withdraw an invite first.',
     );
     expect((await admin.get('/api/invites')).body.invites).toHaveLength(3);
-    expect(
-      t.db
-        .select()
-        .from(mailOutbox)
-        .all()
-        .map((m) => m.to)
-        .sort(),
-    ).toEqual(['p1@haldenbay.test', 'p2@haldenbay.test', 'p3@haldenbay.test']);
+    expect((await t.db.select().from(mailOutbox).execute()).map((m) => m.to).sort()).toEqual(['p1@haldenbay.test', 'p2@haldenbay.test', 'p3@haldenbay.test']);
     // Withdrawing one frees its seat.
     const first = (await admin.get('/api/invites')).body.invites.find((i: { email: string }) => i.email === 'p1@haldenbay.test');
     expect((await admin.del(`/api/invites/${first.id}`)).status).toBe(204);
@@ -107,14 +100,14 @@ describe('invites', () => {
 
 describe('mail outbox', () => {
   let db: Db;
-  beforeEach(() => {
+  beforeEach(async () => {
     db = openDb(':memory:');
-    migrateDb(db);
+    await migrateDb(db);
   });
-  afterEach(() => db.$client.close());
+  afterEach(() => sqliteClient(db).close());
 
-  const queue = (clock: TestClock, to: string) =>
-    db.transaction((tx) => enqueueMail(tx as unknown as Db, { siteId: null, to, subject: `Hello ${to}`, text: 'Body', kind: 'test', at: clock.now() }));
+  const queue = async (clock: TestClock, to: string) =>
+    await writeTx(db, (tx) => enqueueMail(tx, { siteId: null, to, subject: `Hello ${to}`, text: 'Body', kind: 'test', at: clock.now() }));
 
   it('keeps messages while the relay is down and delivers them all when it is back', async () => {
     const clock = new TestClock();
@@ -123,11 +116,11 @@ describe('mail outbox', () => {
     const port = probe.port;
     await probe.close();
     const sender = createMailSender({ db, clock, transport: smtpTransport({ host: '127.0.0.1', port, secure: false }), from: 'test@yieldpoint.test' });
-    queue(clock, 'a@x.test');
-    queue(clock, 'b@x.test');
+    await queue(clock, 'a@x.test');
+    await queue(clock, 'b@x.test');
 
     expect(await sender.deliverDue()).toEqual({ sent: 0, failed: 2 });
-    let rows = db.select().from(mailOutbox).all();
+    let rows = await db.select().from(mailOutbox).execute();
     expect(rows.map((r) => [r.status, r.attempts])).toEqual([
       ['pending', 1],
       ['pending', 1],
@@ -140,7 +133,7 @@ describe('mail outbox', () => {
     try {
       clock.advanceMinutes(retryDelayMs(1) / 60_000);
       expect(await sender.deliverDue()).toEqual({ sent: 2, failed: 0 });
-      rows = db.select().from(mailOutbox).all();
+      rows = await db.select().from(mailOutbox).execute();
       expect(rows.map((r) => [r.status, r.attempts, r.lastError])).toEqual([
         ['sent', 2, null],
         ['sent', 2, null],
@@ -162,12 +155,12 @@ describe('mail outbox', () => {
     expect([1, 2, 3, 4, 8, 20].map(retryDelayMs)).toEqual([30_000, 60_000, 120_000, 240_000, 3_600_000, 3_600_000]);
     const clock = new TestClock();
     const sender = createMailSender({ db, clock, transport: { sendMail: () => Promise.reject(new Error('relay said no')) }, from: 'x@y.test' });
-    queue(clock, 'c@x.test');
+    await queue(clock, 'c@x.test');
     for (let i = 0; i < MAX_ATTEMPTS; i++) {
       await sender.deliverDue();
       clock.advanceMinutes(60);
     }
-    const [row] = db.select().from(mailOutbox).all();
+    const [row] = await db.select().from(mailOutbox).execute();
     expect(row).toMatchObject({ status: 'failed', attempts: MAX_ATTEMPTS, lastError: 'relay said no' });
     expect(await sender.deliverDue()).toEqual({ sent: 0, failed: 0 });
   });

@@ -1,3 +1,4 @@
+import { rowCount } from '../support/raw-sql';
 import crypto from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { demoAssayCsv, demoAssayPoints } from '../../db/seed';
@@ -30,7 +31,7 @@ async function upload(c: Client, path: string, name: string, bytes: Buffer | str
 const lotId = async (c: Client, code: string) =>
   ((await c.get('/api/lots')).body.lots as { id: number; lotCode: string }[]).find((l) => l.lotCode === code)!.id;
 const enzymeId = async (c: Client, name: string) => (await c.get(`/api/enzymes?q=${encodeURIComponent(name)}`)).body.enzymes[0].id as number;
-const pointCount = () => (t.db.$client.prepare('select count(*) as n from assay_points').get() as { n: number }).n;
+const pointCount = () => rowCount(t.db, 'assay_points');
 
 const PDF = Buffer.concat([Buffer.from('%PDF-1.7\n'), Buffer.alloc(2000, 0x20), Buffer.from('\n%%EOF\n')]);
 const PNG = Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), Buffer.alloc(100, 1)]);
@@ -70,7 +71,7 @@ describe('registering lots', () => {
     expect(d.body.conversion.edKJPerMol).toBeCloseTo(143.03, 1);
     expect(Math.abs(d.body.conversion.edKJPerMol / 144 - 1)).toBeLessThan(0.01);
     expect(d.body.conversion.steps.join(' ')).toMatch(/ln 10 \/ D/);
-    const created = listAudit(t.db, 1).filter((e) => e.action === 'lot.create');
+    const created = (await listAudit(t.db, 1)).filter((e) => e.action === 'lot.create');
     expect(created).toHaveLength(3);
   });
 
@@ -125,7 +126,7 @@ describe('certificate of analysis', () => {
     expect(r.status).toBe(201);
     expect(r.body).toMatchObject({ mimeType: 'application/pdf', sizeBytes: PDF.length, fileName: 'coa TAA-4522.pdf' });
     expect(r.body.sha256).toBe(crypto.createHash('sha256').update(PDF).digest('hex'));
-    expect(listAudit(t.db, 1).at(-1)!.action).toBe('lot.certificate.upload');
+    expect((await listAudit(t.db, 1)).at(-1)!.action).toBe('lot.certificate.upload');
     const reader = await t.signIn('operator');
     const res = await fetch(`${t.base}/api/lots/${id}/certificate`, { headers: { cookie: reader.cookie! } });
     expect(res.status).toBe(200);
@@ -188,7 +189,7 @@ describe('assays', () => {
     expect(est.upperH).toBeGreaterThan(est.halfLifeH);
     // 5 % noise on 21 points: the fit lands within 15 % of the invented 60 h.
     expect(Math.abs(est.halfLifeH / 60 - 1)).toBeLessThan(0.15);
-    expect(listAudit(t.db, 1).at(-1)!.action).toBe('assay.create');
+    expect((await listAudit(t.db, 1)).at(-1)!.action).toBe('assay.create');
     const after = (await c.get(`/api/lots/${id}`)).body;
     expect(after.evaluation).toMatchObject({ basis: 'assay', comparedH: est.lowerH, recommendation: 'accept' });
   });
@@ -244,7 +245,7 @@ describe('assays', () => {
   it('reports bad rows by line number and reason and saves nothing', async () => {
     const c = await t.signIn('procurement');
     const id = await lotId(c, 'CLP-2611-02');
-    const n0 = pointCount();
+    const n0 = await pointCount();
     const csv = 'temperature_c,time_h,residual_activity_fraction\n45,0,1\n45,abc,0.9\n\n318,2,0.8\n45,4,0\n45,6,-0.1\n';
     const r = await upload(c, `/api/lots/${id}/assays`, 'bad.csv', csv, 'text/csv');
     expect(r.status).toBe(400);
@@ -256,7 +257,7 @@ describe('assays', () => {
       'line 6': 'residual activity must be above 0 (a log fit cannot use 0)',
       'line 7': 'residual activity must be above 0 (a log fit cannot use 0)',
     });
-    expect(pointCount()).toBe(n0);
+    expect(await pointCount()).toBe(n0);
   });
 
   it('names missing columns, and refuses wrong JSON types', async () => {
@@ -287,17 +288,17 @@ describe('assays', () => {
       }
       return lines.join('\n');
     };
-    const n0 = pointCount();
+    const n0 = await pointCount();
     const tooMany = await upload(c, `/api/lots/${id}/assays`, 'huge.csv', rows(100_001), 'text/csv');
     expect(tooMany.status).toBe(400);
     expect(tooMany.body.error).toMatchObject({ code: 'too_many_rows' });
     expect(tooMany.body.error.message).toMatch(/100,001 data rows; the limit is 100,000/);
-    expect(pointCount()).toBe(n0);
+    expect(await pointCount()).toBe(n0);
     const ok = await upload(c, `/api/lots/${id}/assays`, 'large.csv', rows(100_000), 'text/csv');
     expect(ok.status).toBe(201);
     expect(ok.body.pointCount).toBe(100_000);
     expect(ok.body.points.length).toBe(2_000);
-    expect(pointCount()).toBe(n0 + 100_000);
+    expect(await pointCount()).toBe(n0 + 100_000);
   });
 
   it('refuses a CSV over 20 MB with 413', async () => {
@@ -386,13 +387,13 @@ describe('acceptance', () => {
     expect(r.status).toBe(200);
     expect(r.body.lot).toMatchObject({ status: 'accepted', decisionReason: 'Assay lower bound above 3 h' });
     expect(r.body.decidedBy).toBe('Rafael Lindqvist');
-    const last = listAudit(t.db, 1).at(-1)!;
+    const last = (await listAudit(t.db, 1)).at(-1)!;
     expect(last).toMatchObject({
       action: 'lot.accept',
       oldValue: { status: 'quarantined' },
       newValue: { status: 'accepted', reason: 'Assay lower bound above 3 h', basis: 'assay' },
     });
-    expect(verifyAudit(t.db, 1).ok).toBe(true);
+    expect((await verifyAudit(t.db, 1)).ok).toBe(true);
     const again = await c.post(`/api/lots/${id}/decision`, { decision: 'reject', reason: 'Changed my mind' });
     expect(again.status).toBe(409);
     expect((await c.get(`/api/lots/${id}`)).body.lot.status).toBe('accepted');

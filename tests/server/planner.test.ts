@@ -1,7 +1,9 @@
+import { first } from '../../db/client';
+import { rowCount } from '../support/raw-sql';
 import { planBody as demoPlanBody } from '../fixtures/plan-body';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { auditEvents, plans, recipes, vessels } from '../../db/schema';
+import { auditEvents, plans, recipes, vessels } from '../../db/tables';
 import { MODEL_VERSION, simulate, stagesWithRamps } from '../../src/model';
 import { startTestApp, type Client, type TestApp } from './harness';
 
@@ -20,17 +22,17 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const count = (table: typeof vessels | typeof recipes | typeof plans | typeof auditEvents) => t.db.select().from(table).all().length;
+const count = async (table: typeof vessels | typeof recipes | typeof plans | typeof auditEvents) => (await t.db.select().from(table).execute()).length;
 
 const GOOD_VESSEL = { name: 'R-400 Pilot', workingVolumeL: 500, minC: 10, maxC: 90, maxHeatCPerH: 20, maxCoolCPerH: 15, hygienicMinC: 40 };
 
 describe('vessels', () => {
   it('lets an engineer add a vessel and audits it', async () => {
-    const audits = count(auditEvents);
+    const audits = await count(auditEvents);
     const r = await engineer.post('/api/vessels', GOOD_VESSEL);
     expect(r.status).toBe(201);
     expect(r.body).toMatchObject(GOOD_VESSEL);
-    expect(count(auditEvents)).toBe(audits + 1);
+    expect(await count(auditEvents)).toBe(audits + 1);
     expect((await engineer.get('/api/vessels')).body.vessels.map((v: { name: string }) => v.name)).toContain('R-400 Pilot');
   });
 
@@ -44,11 +46,11 @@ describe('vessels', () => {
     ['a volume of 1e308 L', { ...GOOD_VESSEL, name: 'X7', workingVolumeL: 1e308 }, 'workingVolumeL'],
     ['a misspelt key', { ...GOOD_VESSEL, name: 'X8', workingVolumL: 500 }, 'workingVolumL'],
   ])('refuses %s with the field named', async (_label, body, field) => {
-    const before = count(vessels);
+    const before = await count(vessels);
     const r = await engineer.post('/api/vessels', body);
     expect(r.status).toBe(400);
     expect(Object.keys(r.body.error.fields)).toContain(field);
-    expect(count(vessels)).toBe(before);
+    expect(await count(vessels)).toBe(before);
   });
 
   it('checks a PATCH against the merged vessel and leaves it unchanged when refused', async () => {
@@ -56,7 +58,7 @@ describe('vessels', () => {
     const r = await engineer.patch(`/api/vessels/${id}`, { maxC: 6 });
     expect(r.status).toBe(400);
     expect(r.body.error.fields.hygienicMinC).toBeDefined();
-    const after = t.db.select().from(vessels).where(eq(vessels.id, id)).get()!;
+    const after = (await t.db.select().from(vessels).where(eq(vessels.id, id)).then(first))!;
     expect(after.maxC).toBe(60);
   });
 
@@ -68,7 +70,7 @@ describe('vessels', () => {
     expect((await supervisor.patch(`/api/vessels/${id}`, { maxHeatCPerH: 50 })).status).toBe(403);
     const otherEngineer = await t.signIn('engineer', 'other');
     expect((await otherEngineer.patch(`/api/vessels/${id}`, { maxHeatCPerH: 50 })).status).toBe(404);
-    expect(t.db.select().from(vessels).where(eq(vessels.id, id)).get()!.maxHeatCPerH).toBe(11);
+    expect((await t.db.select().from(vessels).where(eq(vessels.id, id)).then(first))!.maxHeatCPerH).toBe(11);
   });
 
   it('refuses a duplicate name with 409', async () => {
@@ -126,13 +128,13 @@ describe('recipes', () => {
     ['a zero Km', { kmGPerL: 0 }, 'kmGPerL'],
     ['a negative dose', { doseGPerL: -1 }, 'doseGPerL'],
   ])('refuses %s', async (_label, change, field) => {
-    const before = count(recipes);
+    const before = await count(recipes);
     const body = { ...recipeBody(), name: `Bad ${field}`, ...change };
     if (typeof body.lotId === 'string') body.lotId = lotIds[body.lotId]!;
     const r = await engineer.post('/api/recipes', body);
     expect(r.status).toBe(400);
     expect(r.body.error.fields[field]).toBeDefined();
-    expect(count(recipes)).toBe(before);
+    expect(await count(recipes)).toBe(before);
   });
 
   it('refuses a lot of another site as unknown', async () => {
@@ -163,7 +165,7 @@ describe('recipes', () => {
     await engineer.patch(`/api/vessels/${vesselIds['R-204 Lactose tank']}`, { maxC: 60 });
     expect(moved.status).toBe(400);
     expect(moved.body.error.fields.currentSetpointC).toBeDefined();
-    const after = t.db.select().from(recipes).where(eq(recipes.id, id)).get()!;
+    const after = (await t.db.select().from(recipes).where(eq(recipes.id, id)).then(first))!;
     expect(after.currentSetpointC).toBe(59);
     expect(after.vesselId).toBe(vesselIds['R-101 Saccharifier']);
   });
@@ -181,7 +183,7 @@ const planBody = (over: Record<string, unknown> = {}) => demoPlanBody(recipeIds[
 
 describe('plans', () => {
   it('refuses numbers the client sends for the server to compute, naming each, and recomputes from the inputs', async () => {
-    const plansBefore = (t.db.$client.prepare('select count(*) as n from plans').get() as { n: number }).n;
+    const plansBefore = await rowCount(t.db, 'plans');
     const forged = await engineer.post('/api/plans', {
       ...planBody(),
       outputs: { setpointC: 70, predictedProductGPerL: 9999 },
@@ -191,7 +193,7 @@ describe('plans', () => {
     expect(forged.status).toBe(400);
     expect(Object.keys(forged.body.error.fields).sort()).toEqual(['modelVersion', 'outputs', 'predictedProductGPerL']);
     expect(forged.body.error.fields.modelVersion).toMatch(/Unknown field "modelVersion"/);
-    expect((t.db.$client.prepare('select count(*) as n from plans').get() as { n: number }).n).toBe(plansBefore);
+    expect(await rowCount(t.db, 'plans')).toBe(plansBefore);
     const r = await engineer.post('/api/plans', planBody());
     expect(r.status).toBe(201);
     const o = r.body.outputs;
@@ -213,28 +215,28 @@ describe('plans', () => {
   });
 
   it('refuses a plan priced at 1e308 before anything is written, naming the field', async () => {
-    const before = { plans: count(plans), audit: count(auditEvents) };
+    const before = { plans: await count(plans), audit: await count(auditEvents) };
     const r = await engineer.post('/api/plans', planBody({ productPricePerKg: 1e308 }));
     expect(r.status).toBe(400);
     expect(r.body.error.fields.productPricePerKg).toMatch(/At most 1,000,000 per kg/);
-    expect({ plans: count(plans), audit: count(auditEvents) }).toEqual(before);
+    expect({ plans: await count(plans), audit: await count(auditEvents) }).toEqual(before);
     expect((await engineer.get('/api/plans')).status).toBe(200);
   });
 
   it('refuses a plan whose figures would not be finite (a vessel stored before the volume limit) and keeps the plan list readable', async () => {
     const id = vesselIds['R-101 Saccharifier']!;
-    const { workingVolumeL } = t.db.select().from(vessels).where(eq(vessels.id, id)).get()!;
-    t.db.update(vessels).set({ workingVolumeL: 1e308 }).where(eq(vessels.id, id)).run();
+    const { workingVolumeL } = (await t.db.select().from(vessels).where(eq(vessels.id, id)).then(first))!;
+    await t.db.update(vessels).set({ workingVolumeL: 1e308 }).where(eq(vessels.id, id)).execute();
     try {
-      const before = { plans: count(plans), audit: count(auditEvents) };
+      const before = { plans: await count(plans), audit: await count(auditEvents) };
       const r = await engineer.post('/api/plans', planBody({ productPricePerKg: 1e6 }));
       expect(r.status).toBe(400);
       expect(r.body.error.code).toBe('not_computable');
       expect(r.body.error.message).toMatch(/profitPerH/);
-      expect({ plans: count(plans), audit: count(auditEvents) }).toEqual(before);
+      expect({ plans: await count(plans), audit: await count(auditEvents) }).toEqual(before);
       expect((await engineer.get('/api/plans')).status).toBe(200);
     } finally {
-      t.db.update(vessels).set({ workingVolumeL }).where(eq(vessels.id, id)).run();
+      await t.db.update(vessels).set({ workingVolumeL }).where(eq(vessels.id, id)).execute();
     }
   });
 
@@ -254,7 +256,7 @@ describe('plans', () => {
     expect(ua.parameterSpread).toBe('fit');
     expect(b.body.outputs.uncertainty).toEqual(ua);
     expect(b.body.contentHash).toBe(a.body.contentHash);
-    const row = t.db.select().from(plans).where(eq(plans.id, a.body.id)).get()!;
+    const row = (await t.db.select().from(plans).where(eq(plans.id, a.body.id)).then(first))!;
     expect(row.p10GPerL).toBe(ua.p10);
   });
 
@@ -271,13 +273,13 @@ describe('plans', () => {
   });
 
   it('refuses plans on lots that are not accepted or of another enzyme, and on other sites’ recipes', async () => {
-    const before = count(plans);
+    const before = await count(plans);
     expect((await engineer.post('/api/plans', planBody({ lotId: lotIds['CGA-2611-07'] }))).body.error.code).toBe('lot_not_accepted');
     expect((await engineer.post('/api/plans', planBody({ lotId: lotIds['TAA-4471'] }))).status).toBe(400);
     expect((await engineer.post('/api/plans', planBody({ batchH: -4 }))).status).toBe(400);
     const other = await t.signIn('engineer', 'other');
     expect((await other.post('/api/plans', planBody())).status).toBe(404);
-    expect(count(plans)).toBe(before);
+    expect(await count(plans)).toBe(before);
   });
 
   it('lets supervisors read plans but only engineers save them; plans have no edit route', async () => {

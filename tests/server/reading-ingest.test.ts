@@ -1,6 +1,7 @@
+import { first } from '../../db/client';
 import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, batchReadings, deviations, users } from '../../db/schema';
+import { auditEvents, batchReadings, deviations, users } from '../../db/tables';
 import { HttpError } from '../../server/http-error';
 import { listAudit } from '../../server/repositories/audit';
 import { verifyAudit } from '../../server/services/audit-verify';
@@ -22,20 +23,20 @@ afterAll(async () => {
   await Promise.all([seq.close(), grouped.close()]);
 });
 
-const count = (t: TestApp, table: typeof batchReadings | typeof deviations | typeof auditEvents) =>
-  t.db
-    .select({ n: sql<number>`count(*)` })
+const count = async (t: TestApp, table: typeof batchReadings | typeof deviations | typeof auditEvents) =>
+  (await t.db
+    .select({ n: sql<number>`count(*)`.mapWith(Number) })
     .from(table)
-    .get()!.n;
-const sessionUser = (t: TestApp, role: 'operator' | 'supervisor', site: 'main' | 'other' = 'main') =>
-  loadSessionUser(
+    .then(first))!.n;
+const sessionUser = async (t: TestApp, role: 'operator' | 'supervisor', site: 'main' | 'other' = 'main') =>
+  (await loadSessionUser(
     t.db,
-    t.db
+    (await t.db
       .select()
       .from(users)
       .where(eq(users.email, email(role, site)))
-      .get()!.id,
-  )!;
+      .then(first))!.id,
+  ))!;
 
 async function runningBatch(c: Client): Promise<{ id: number; startedAt: string }> {
   const list = (await c.get('/api/batches')).body.batches as { id: number; state: string; startedAt: string }[];
@@ -70,9 +71,9 @@ describe('readings that arrive together', () => {
       expect(r.status).toBe(201);
     }
     const ingest = readingIngest({ db: grouped.db, clock: grouped.clock });
-    const op = sessionUser(grouped, 'operator');
-    const sup = sessionUser(grouped, 'supervisor');
-    const other = sessionUser(grouped, 'operator', 'other');
+    const op = await sessionUser(grouped, 'operator');
+    const sup = await sessionUser(grouped, 'supervisor');
+    const other = await sessionUser(grouped, 'operator', 'other');
     const logged = READINGS.map(([h, c], i) => ingest.log(i % 2 ? sup : op, batchId, { key: keys[i], takenAt: at(startedAt, h), c }));
     // Queued in the same turn as the good ones: a repeat, a reused key, a reading from the future, another site.
     const extra = [
@@ -84,24 +85,24 @@ describe('readings that arrive together', () => {
     results = await Promise.allSettled([...logged, ...extra]);
   });
 
-  it('stores each good reading once, with its own audit event in arrival order, and the chain still verifies', () => {
+  it('stores each good reading once, with its own audit event in arrival order, and the chain still verifies', async () => {
     const good = results.slice(0, READINGS.length);
     expect(good.map((r) => r.status === 'fulfilled' && r.value.created)).toEqual(READINGS.map(() => true));
-    const stored = grouped.db.select().from(batchReadings).where(eq(batchReadings.batchId, batchId)).all();
+    const stored = await grouped.db.select().from(batchReadings).where(eq(batchReadings.batchId, batchId)).execute();
     expect(
       stored
         .filter((r) => r.clientKey.startsWith('group-reading-'))
         .map((r) => r.clientKey)
         .sort(),
     ).toEqual([...keys].sort());
-    const events = listAudit(grouped.db, 1, { action: 'batch.reading' }).slice(-READINGS.length);
+    const events = (await listAudit(grouped.db, 1, { action: 'batch.reading' })).slice(-READINGS.length);
     expect(events.map((e) => (e.newValue as { key: string }).key)).toEqual(keys);
     expect(events.map((e) => e.actor)).toEqual(READINGS.map((_, i) => email(i % 2 ? 'supervisor' : 'operator')));
-    expect(verifyAudit(grouped.db, 1)).toMatchObject({ ok: true });
-    expect(count(grouped, batchReadings)).toBe(count(seq, batchReadings));
+    expect(await verifyAudit(grouped.db, 1)).toMatchObject({ ok: true });
+    expect(await count(grouped, batchReadings)).toBe(await count(seq, batchReadings));
   });
 
-  it('refuses the bad ones alone, each as it would be refused on its own', () => {
+  it('refuses the bad ones alone, each as it would be refused on its own', async () => {
     const [repeat, reused, future, other] = results.slice(READINGS.length);
     const good1 = results[1];
     expect(repeat.status === 'fulfilled' && repeat.value.created).toBe(false);
@@ -111,35 +112,37 @@ describe('readings that arrive together', () => {
     expect(refusal(reused)).toEqual([409, 'key_reused']);
     expect(refusal(future)).toEqual([400, 'invalid_input']);
     expect(refusal(other)).toEqual([404, 'not_found']);
-    expect(grouped.db.select().from(batchReadings).where(eq(batchReadings.clientKey, 'group-reading-future-abcdef')).all()).toEqual([]);
+    expect(await grouped.db.select().from(batchReadings).where(eq(batchReadings.clientKey, 'group-reading-future-abcdef')).execute()).toEqual([]);
   });
 
-  it('raises the same deviations, for the same readings, as the readings logged one by one', () => {
-    const shape = (t: TestApp) =>
-      t.db
-        .select({
-          kind: deviations.kind,
-          at: deviations.at,
-          valueC: deviations.valueC,
-          expectedC: deviations.expectedC,
-          message: deviations.message,
-          key: batchReadings.clientKey,
-          corrective: deviations.corrective,
-        })
-        .from(deviations)
-        .leftJoin(batchReadings, eq(deviations.readingId, batchReadings.id))
-        .where(eq(deviations.batchId, batchId))
-        .orderBy(deviations.id)
-        .all()
+  it('raises the same deviations, for the same readings, as the readings logged one by one', async () => {
+    const shape = async (t: TestApp) =>
+      (
+        await t.db
+          .select({
+            kind: deviations.kind,
+            at: deviations.at,
+            valueC: deviations.valueC,
+            expectedC: deviations.expectedC,
+            message: deviations.message,
+            key: batchReadings.clientKey,
+            corrective: deviations.corrective,
+          })
+          .from(deviations)
+          .leftJoin(batchReadings, eq(deviations.readingId, batchReadings.id))
+          .where(eq(deviations.batchId, batchId))
+          .orderBy(deviations.id)
+          .execute()
+      )
         // The corrective setpoint comes from the batch status after the whole group, as for a historian import.
         .map(({ corrective, ...d }) => ({ ...d, hasCorrective: corrective !== null }));
-    const expected = shape(seq);
+    const expected = await shape(seq);
     expect(expected.map((d) => [d.kind, d.key])).toEqual([
       ['band', keys[1]],
       ['vessel_max', keys[3]],
       ['band', keys[5]],
     ]);
-    expect(shape(grouped)).toEqual(expected);
+    expect(await shape(grouped)).toEqual(expected);
   });
 
   it('answers each reading with the deviations it raised, as a later repeat of it is answered', async () => {
@@ -160,8 +163,8 @@ describe('concurrent reading requests', () => {
   it('answers 50 at once with 201 each, stores all 50 with their audit events, and keeps the chain intact', async () => {
     const op = await seq.signIn('operator');
     const { id, startedAt } = await runningBatch(op);
-    const readings0 = count(seq, batchReadings);
-    const audit0 = count(seq, auditEvents);
+    const readings0 = await count(seq, batchReadings);
+    const audit0 = await count(seq, auditEvents);
     const replies = await Promise.all(
       Array.from({ length: 50 }, (_, i) =>
         op.post(`/api/batches/${id}/readings`, { key: `concurrent-${i}-abcdef`, takenAt: at(startedAt, 3 + i / 1000), c: 59 }),
@@ -169,9 +172,9 @@ describe('concurrent reading requests', () => {
     );
     expect(replies.map((r) => r.status)).toEqual(replies.map(() => 201));
     expect(new Set(replies.map((r) => r.body.reading.id)).size).toBe(50);
-    expect(count(seq, batchReadings)).toBe(readings0 + 50);
+    expect(await count(seq, batchReadings)).toBe(readings0 + 50);
     const raised = replies.reduce((n, r) => n + r.body.deviations.length, 0);
-    expect(count(seq, auditEvents)).toBe(audit0 + 50 + raised);
-    expect(verifyAudit(seq.db, 1)).toMatchObject({ ok: true });
+    expect(await count(seq, auditEvents)).toBe(audit0 + 50 + raised);
+    expect(await verifyAudit(seq.db, 1)).toMatchObject({ ok: true });
   });
 });

@@ -1,3 +1,4 @@
+import { rawSql } from '../support/raw-sql';
 import bcrypt from 'bcryptjs';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { verifyAudit } from '../../server/services/audit-verify';
@@ -35,7 +36,7 @@ describe('sign-in', () => {
     const r = await t.client().post('/api/session', { email: email('engineer'), password: 'not-it' });
     expect(r.status).toBe(401);
     expect(r.body.error.code).toBe('bad_credentials');
-    const failed = listAudit(t.db, 1).filter((e) => e.action === 'sign-in.failed');
+    const failed = (await listAudit(t.db, 1)).filter((e) => e.action === 'sign-in.failed');
     expect(failed).toHaveLength(1);
     expect(failed[0]!.actor).toBe(email('engineer'));
   });
@@ -202,7 +203,7 @@ describe('cautions acknowledgement', () => {
     const r = await c.patch('/api/session', { cautionsAcknowledged: true });
     expect(r.status).toBe(200);
     expect(r.body.user.cautionsAcknowledgedAt).toBe('2026-12-01T08:00:00.000Z');
-    expect(listAudit(t.db, 1).some((e) => e.action === 'cautions.acknowledge')).toBe(true);
+    expect((await listAudit(t.db, 1)).some((e) => e.action === 'cautions.acknowledge')).toBe(true);
   });
 });
 
@@ -211,9 +212,9 @@ describe('audit chain', () => {
     await t.signIn('admin');
     await t.signIn('engineer');
     await t.client().post('/api/session', { email: email('engineer'), password: 'wrong' });
-    expect(verifyAudit(t.db, 1)).toMatchObject({ ok: true, events: 3 });
-    const second = listAudit(t.db, 1)[1]!;
-    t.db.$client.prepare('update audit_events set actor = ? where id = ?').run('someone-else@haldenbay.test', second.id);
-    expect(verifyAudit(t.db, 1)).toMatchObject({ ok: false, events: 3, firstBrokenId: second.id });
+    expect(await verifyAudit(t.db, 1)).toMatchObject({ ok: true, events: 3 });
+    const second = (await listAudit(t.db, 1))[1]!;
+    await rawSql(t.db, 'update audit_events set actor = ? where id = ?', 'someone-else@haldenbay.test', second.id);
+    expect(await verifyAudit(t.db, 1)).toMatchObject({ ok: false, events: 3, firstBrokenId: second.id });
   });
 });

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { auditEvents } from '../../db/schema';
+import { auditEvents } from '../../db/tables';
 import { startTestApp, type TestApp } from './harness';
 
 let t: TestApp;
@@ -20,7 +20,7 @@ describe('the site currency', () => {
     expect(r.body.currency).toBe('CHF');
     const engineer = await t.signIn('engineer');
     expect((await engineer.get('/api/session')).body.user.siteCurrency).toBe('CHF');
-    const [event] = t.db.select().from(auditEvents).where(eq(auditEvents.action, 'site.update')).all();
+    const [event] = await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'site.update')).execute();
     expect(event).toMatchObject({ oldValue: { currency: 'EUR' }, newValue: { currency: 'CHF' } });
     // The other site keeps its own.
     const other = await t.signIn('admin', 'other');

@@ -1,3 +1,4 @@
+import { sqliteClient } from '../../db/client';
 import Database from 'better-sqlite3';
 import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
@@ -25,8 +26,8 @@ afterEach(async () => {
   fs.rmSync(dir, { recursive: true, force: true });
 });
 
-const userName = (id: number) => (t.db.$client.prepare('select name from users where id = ?').get(id) as { name: string }).name;
-const auditCount = () => (t.db.$client.prepare('select count(*) as n from audit_events').get() as { n: number }).n;
+const userName = (id: number) => (sqliteClient(t.db).prepare('select name from users where id = ?').get(id) as { name: string }).name;
+const auditCount = () => (sqliteClient(t.db).prepare('select count(*) as n from audit_events').get() as { n: number }).n;
 const settle = () => new Promise((r) => setTimeout(r, 20));
 
 /** What every kind of failure must look like from outside while it lasts. */
@@ -94,7 +95,7 @@ describe('a database that cannot be written', () => {
   });
 
   it('the file system is full (SQLITE_FULL from max_page_count): reads answer, writes 503, then writing resumes', async () => {
-    const raw = t.db.$client;
+    const raw = sqliteClient(t.db);
     raw.pragma('wal_checkpoint(TRUNCATE)');
     raw.pragma(`max_page_count = ${raw.pragma('page_count', { simple: true })}`);
     try {

@@ -1,10 +1,11 @@
+import { first } from '../../db/client';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, certificateFiles } from '../../db/schema';
+import { auditEvents, certificateFiles } from '../../db/tables';
 import { createFileStore } from '../../server/file-store';
 import { startTestApp, type Client, type Reply, type TestApp } from './harness';
 
@@ -68,11 +69,11 @@ async function upload(c: Client, urlPath: string, name: string, bytes: Buffer, t
 }
 
 const lotId = async (code: string) => ((await procurement.get('/api/lots')).body.lots as { id: number; lotCode: string }[]).find((l) => l.lotCode === code)!.id;
-const count = (table: typeof certificateFiles | typeof auditEvents) =>
-  t.db
-    .select({ n: sql<number>`count(*)` })
+const count = async (table: typeof certificateFiles | typeof auditEvents) =>
+  (await t.db
+    .select({ n: sql<number>`count(*)`.mapWith(Number) })
     .from(table)
-    .get()!.n;
+    .then(first))!.n;
 /** Every file under the store's folder, with its size: an unpacked entry would show up here. */
 const stored = () =>
   fs
@@ -89,8 +90,8 @@ describe('an uploaded archive', () => {
 
   it('is refused as a certificate, by its zip name or a PDF name, and nothing lands in the files folder', async () => {
     const id = await lotId('CGA-2611-07');
-    const certs0 = count(certificateFiles);
-    const audit0 = count(auditEvents);
+    const certs0 = await count(certificateFiles);
+    const audit0 = await count(auditEvents);
     for (const [name, type] of [
       ['coa.zip', 'application/zip'],
       ['coa.pdf', 'application/pdf'],
@@ -100,8 +101,8 @@ describe('an uploaded archive', () => {
       expect(r.body.error.code, name).toBe('unsupported_type');
     }
     expect(stored()).toEqual([]);
-    expect(count(certificateFiles)).toBe(certs0);
-    expect(count(auditEvents)).toBe(audit0);
+    expect(await count(certificateFiles)).toBe(certs0);
+    expect(await count(auditEvents)).toBe(audit0);
     expect((await procurement.get(`/api/lots/${id}/certificate`)).status).toBe(404);
   });
 

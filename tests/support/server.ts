@@ -30,6 +30,11 @@ export async function startServer(opts: { dir?: string; env?: Record<string, str
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let output = '';
+  if (process.env.YP_SERVER_LOG) {
+    const log = fs.createWriteStream(process.env.YP_SERVER_LOG);
+    child.stdout!.pipe(log);
+    child.stderr!.pipe(log);
+  }
   await new Promise<void>((resolve, reject) => {
     const timer = setTimeout(() => reject(new Error(`server did not start:\n${output}`)), 60_000);
     const onData = (d: Buffer) => {
