@@ -140,6 +140,18 @@ export function unwritableReason(err: unknown): UnwritableReason | null {
   return null;
 }
 
+const PG_SERIALIZATION_FAILURE = new Set(['40001', '40P01']);
+
+/**
+ * Whether an error inside a write transaction concerns the whole transaction, not the item that met it: the
+ * database cannot be written, or PostgreSQL must run the transaction again (a serialization failure or a
+ * deadlock; writeTx does). A group commit's savepoint lets an item fail alone only for other errors.
+ */
+export function failsWholeTransaction(err: unknown): boolean {
+  const code = codeOf(err);
+  return unwritableReason(err) !== null || (code !== null && PG_SERIALIZATION_FAILURE.has(code));
+}
+
 // Per connection: did the last write fail because the file was not writable? While it did, each write tries once
 // without waiting on busy_timeout, so a held lock costs every write a blocked event loop only the first time.
 const failing = new WeakMap<Database.Database, UnwritableReason>();
@@ -208,7 +220,6 @@ export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise
 }
 
 const PG_ATTEMPTS = 12;
-const SERIALIZATION_FAILURE = new Set(['40001', '40P01']);
 
 async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
   const database = databaseOf(db);
@@ -225,7 +236,7 @@ async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promis
       );
     } catch (err) {
       const code = codeOf(err);
-      if (code && SERIALIZATION_FAILURE.has(code) && attempt < PG_ATTEMPTS) {
+      if (code && PG_SERIALIZATION_FAILURE.has(code) && attempt < PG_ATTEMPTS) {
         // Up to about 5 ms, then doubling to about 0.3 s: the transactions it collided with finish meanwhile.
         await new Promise((r) => setTimeout(r, Math.random() * 5 * 2 ** Math.min(attempt - 1, 6)));
         continue;

@@ -375,15 +375,14 @@ async function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId:
     .from(assays)
     .where(sql`${assays.lotId} = ${lot.id}`)
     .then(first);
-  const closed = await Promise.all(
-    (
-      await tx
-        .select()
-        .from(batches)
-        .where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`)
-        .orderBy(batches.closedAt)
-        .execute()
-    ).map(async (b) => ({
+  // One query after the other: a transaction is one connection (PostgreSQL answers its queries in turn anyway).
+  const closed = [];
+  for (const b of await tx
+    .select()
+    .from(batches)
+    .where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`)
+    .orderBy(batches.closedAt, batches.id))
+    closed.push({
       batchId: b.id,
       startedAt: b.startedAt,
       closedAt: b.closedAt!,
@@ -393,10 +392,8 @@ async function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId:
         .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
         .from(batchReadings)
         .where(sql`${batchReadings.batchId} = ${b.id}`)
-        .orderBy(batchReadings.takenAt)
-        .execute(),
-    })),
-  );
+        .orderBy(batchReadings.takenAt, batchReadings.id),
+    });
   const evidence = {
     certKdPerH: lot.certKdPerH,
     certTempC: lot.certTempC,

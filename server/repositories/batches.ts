@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, gt, inArray, lt, lte, ne, or, sql } from 'drizzle-orm';
 import { boundRow, columnPlaceholders, preparedPer, first, returned, type Db } from '../../db/client';
 import { alias } from 'drizzle-orm/pg-core';
-import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels } from '../../db/tables';
+import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels, databaseDialect } from '../../db/tables';
 
 export type BatchRow = typeof batches.$inferSelect;
 export type ReadingRow = typeof batchReadings.$inferSelect;
@@ -109,6 +109,24 @@ const newestReading = preparedPer((db, _v, name) =>
     .prepare(name),
 );
 export const newestReadingId = async (db: Db, batchId: number): Promise<number> => (await newestReading(db).execute({ batchId }))[0]?.id ?? 0;
+
+const newestAndCount = preparedPer((db, _v, name) =>
+  db
+    .select({ id: sql<number | null>`max(${batchReadings.id})`.mapWith(Number), n: sql<number>`count(*)`.mapWith(Number) })
+    .from(batchReadings)
+    .where(eq(batchReadings.batchId, sql.placeholder('batchId')))
+    .prepare(name),
+);
+/**
+ * What a batch's kept record is checked against: its newest reading id, and on PostgreSQL also how many readings
+ * it has. There ids are handed out before the commit, so a reading with a lower id can become visible after one
+ * with a higher id (two writers); SQLite's one writer commits them in id order, and the count is not read.
+ */
+export async function readingVersion(db: Db, batchId: number): Promise<{ newest: number; count: number | null }> {
+  if (databaseDialect === 'sqlite') return { newest: await newestReadingId(db, batchId), count: null };
+  const row = (await newestAndCount(db).execute({ batchId }))[0];
+  return { newest: row?.id ?? 0, count: row?.n ?? 0 };
+}
 
 /** Whole readings with who entered them, for the given ids, in time order. */
 export const readingsByIds = (db: Db, ids: readonly number[]) =>

@@ -2,14 +2,15 @@
 // connection and batch until a reading is added. A 300,000-row historian record takes a second to load and
 // integrate; the list, the batch page and each phone reading would otherwise pay that every time.
 //
-// Readings are only ever added and ids only grow, so the newest id (an index lookup) is the record's version. A
-// record read inside a transaction is not kept: the transaction may roll back and its ids be given out again.
+// Readings are only ever added and ids only grow, so the newest id (an index lookup) is the record's version (on
+// PostgreSQL with the count beside it: see readingVersion). A record read inside a transaction is not kept: the
+// transaction may roll back and its ids be given out again.
 import { databaseOf, inWriteTx, type Db } from '../../db/client';
 import { batchHours, batchStatus, statusAtHour } from '../../src/batches';
 import type { BatchProgram, BatchStatus } from '../../src/contracts/batches';
 import type { Reading as Point } from '../../src/model';
 import { nextTurn } from '../next-turn';
-import { newestReadingId, readingPointRows, readingPointRowsAfter, type PointRow } from '../repositories/batches';
+import { readingPointRows, readingPointRowsAfter, readingVersion, type PointRow } from '../repositories/batches';
 
 export type BatchRecord = {
   version: number;
@@ -102,7 +103,9 @@ const MERGED_PER_TURN = 10_000;
 export async function keepAdded(db: Db, b: BatchRef, base: BatchRecord, added: Added, version: number, withCorrective: BatchStatus | null): Promise<void> {
   const m = merger(base, added);
   while (!m.step(MERGED_PER_TURN)) await nextTurn();
-  if ((await newestReadingId(db, b.id)) !== version) return; // more came meanwhile: the next reader merges from the database
+  const now = await readingVersion(db, b.id);
+  // More came meanwhile (or, on PostgreSQL, a reading with a lower id became visible): the next reader merges.
+  if (now.newest !== version || (now.count !== null && now.count !== base.ids.length + added.ids.length)) return;
   const record = m.record(version);
   if (withCorrective) {
     record.withCorrective = withCorrective;
@@ -112,13 +115,12 @@ export async function keepAdded(db: Db, b: BatchRef, base: BatchRecord, added: A
 }
 
 export async function batchRecordOf(db: Db, b: BatchRef): Promise<BatchRecord> {
-  const version = await newestReadingId(db, b.id);
+  const { newest: version, count } = await readingVersion(db, b.id);
   const hit = kept.get(databaseOf(db))?.get(b.id);
-  if (hit && hit.version === version) return hit;
-  const record =
-    hit && hit.version < version
-      ? merged(hit, fromRows(await readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version)
-      : { version, ...fromRows(await readingPointRows(db, b.id), b.startedAt) };
+  const complete = (r: { ids: Int32Array }) => count === null || r.ids.length === count;
+  if (hit && hit.version === version && complete(hit)) return hit;
+  let record = hit && hit.version < version ? merged(hit, fromRows(await readingPointRowsAfter(db, b.id, hit.version), b.startedAt), version) : null;
+  if (!record || !complete(record)) record = { version, ...fromRows(await readingPointRows(db, b.id), b.startedAt) };
   if (inWriteTx(db)) return record;
   keep(db, b.id, record);
   return record;

@@ -220,7 +220,7 @@ export async function closeBatch({ db, clock }: Services, u: SessionUser, id: nu
     measuredProductGPerL: input.measuredProductGPerL ?? null,
     forecastAtCloseGPerL: forecast,
   };
-  const closed = writeTx(db, async (t) => {
+  const closed = await writeTx(db, async (t) => {
     await updateBatch(t, b.id, patch);
     await appendAudit(t, {
       siteId: u.siteId,

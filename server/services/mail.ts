@@ -5,7 +5,7 @@ import type { SessionUser } from '../../src/contracts/session';
 import type { Clock } from '../clock';
 import { HttpError, notFound } from '../http-error';
 import { appendAudit } from './audit';
-import { findSiteMail, insertMail, listDueMail, listSiteMail, updateMail, type MailRow } from '../repositories/mail';
+import { findSiteMail, insertMail, claimDueMail, listSiteMail, updateMail, type MailRow } from '../repositories/mail';
 
 export type MailInput = { siteId: number | null; to: string; subject: string; text: string; html?: string; kind: string; at: Date };
 
@@ -58,6 +58,9 @@ export type MailSender = {
   stop(): Promise<void>;
 };
 
+// How long a claimed message is this sender's: longer than a send can take (the transport's own timeouts).
+const SEND_LEASE_MS = 5 * 60_000;
+
 /** Delivers the outbox: a round every `intervalMs`, one round at a time, and on `kick()`. */
 export function createMailSender(opts: { db: Db; clock: Clock; transport: MailTransport; from: string; intervalMs?: number; batch?: number }): MailSender {
   const { db, clock, transport, from } = opts;
@@ -68,7 +71,8 @@ export function createMailSender(opts: { db: Db; clock: Clock; transport: MailTr
   async function round() {
     let sent = 0;
     let failed = 0;
-    for (const m of await listDueMail(db, clock.now().toISOString(), opts.batch ?? 50)) {
+    const now = clock.now();
+    for (const m of await claimDueMail(db, now.toISOString(), new Date(now.getTime() + SEND_LEASE_MS).toISOString(), opts.batch ?? 50)) {
       try {
         await transport.sendMail({ from, to: m.to, subject: m.subject, text: m.text, html: m.html ?? undefined });
         await updateMail(db, m.id, { status: 'sent', attempts: m.attempts + 1, sentAt: clock.now().toISOString(), lastError: null });

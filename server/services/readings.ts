@@ -1,5 +1,5 @@
 // Readings logged one at a time (phone, control-system link) through group commit, and the readings table's pages.
-import { unwritableReason, writeTx, type Db } from '../../db/client';
+import { failsWholeTransaction, writeTx, type Db } from '../../db/client';
 import { batchHours, readingDeviations, type DeviationDraft, type ReadingRules } from '../../src/batches';
 import { type Reading, type ReadingInput, type ReadingResult, type ReadingsPage, type ReadingSource } from '../../src/contracts/batches';
 import type { SessionUser } from '../../src/contracts/session';
@@ -69,6 +69,7 @@ export type ReadingIngest = { log(u: SessionUser, batchId: number, input: Readin
 export function readingIngest(s: Services, opts: { checkForecast?: boolean } = {}): ReadingIngest {
   const checksForecast = () => opts.checkForecast !== false;
   let queue: { req: ReadingRequest; resolve: (r: Logged) => void; reject: (e: unknown) => void }[] = [];
+  let flushing: Promise<void> = Promise.resolve();
   const flush = async () => {
     const items = queue;
     queue = [];
@@ -93,7 +94,9 @@ export function readingIngest(s: Services, opts: { checkForecast?: boolean } = {
   return {
     log: (u, batchId, input, source = 'manual') =>
       new Promise<Logged>((resolve, reject) => {
-        if (queue.push({ req: { u, batchId, input, source }, resolve, reject }) === 1) setImmediate(() => void flush());
+        // One flush at a time: readings that arrive while one is stored wait for the next (fewer collisions on
+        // PostgreSQL, where a flush is not over within the turn).
+        if (queue.push({ req: { u, batchId, input, source }, resolve, reject }) === 1) setImmediate(() => (flushing = flushing.then(flush)));
       }),
   };
 }
@@ -113,8 +116,8 @@ async function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], ch
       try {
         out.push(await savepoint(() => storeReading(t, groups, req, now)));
       } catch (error) {
-        // A file that cannot be written fails the whole group, not one reading.
-        if (unwritableReason(error)) throw error;
+        // A database that cannot be written fails the whole group, not one reading (PostgreSQL runs it again).
+        if (failsWholeTransaction(error)) throw error;
         out.push({ error });
       }
     }

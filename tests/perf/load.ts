@@ -4,7 +4,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { DEMO_USERS } from '../../db/seed';
 import { MAX_IMPORT_ROWS } from '../../src/contracts/batches';
-import { sessionCookie, startServer } from '../support/server';
+import { startPostgres } from '../support/postgres';
+import { sessionCookie, startServer, type RunningServer } from '../support/server';
 import { controlLinkLoad } from './control-link-load';
 
 // npm run load: loopback-only load against a freshly seeded server, bounded in time. Prints per mix and
@@ -13,9 +14,14 @@ import { controlLinkLoad } from './control-link-load';
 // (300,000 rows) runs, and afterwards the time to read the big batch's list, page and report.
 // LOAD_MIX=reads|ingest|import|opcua runs one mix; LOAD_CPU_PROF=dir writes the server's CPU profile there when it stops.
 // opcua: the control-system link, LOAD_TAGS tags (200) at 1 s sampling for LOAD_LINK_SECONDS (60), in this process.
+// LOAD_DB=postgres: the reads and ingest mixes on a throwaway PostgreSQL 15 (durable: fsync on, as SQLite's
+// synchronous=FULL), with LOAD_PROCESSES server processes (1 or 2) on the one database, the connections split
+// evenly between them as a proxy would; a row then sums the requests/s and gives the worse process's latencies.
 const DURATION_S = Number(process.env.LOAD_SECONDS ?? 10);
 const ONLY_MIX = process.env.LOAD_MIX;
 const CPU_PROF_DIR = process.env.LOAD_CPU_PROF;
+const ON_PG = process.env.LOAD_DB === 'postgres';
+const PROCESSES = Number(process.env.LOAD_PROCESSES ?? 1);
 
 type Mix = { name: string; requests: autocannon.Request[]; cookie: string; count?: () => Promise<number> };
 
@@ -38,7 +44,25 @@ function run(url: string, mix: Mix, connections: number, until?: Promise<unknown
 
 const user = (role: string) => DEMO_USERS.find((u) => u.role === role)!;
 
+/** The mix on every server at once, `connections` split evenly; one summary (rates summed, latencies the worst). */
+async function runAll(urls: string[], mix: Mix, connections: number) {
+  const rs = await Promise.all(urls.map((u) => run(u, mix, Math.ceil(connections / urls.length))));
+  const sum = (f: (r: autocannon.Result) => number) => rs.reduce((a, r) => a + f(r), 0);
+  const worst = (f: (r: autocannon.Result) => number) => Math.max(...rs.map(f));
+  return {
+    rps: sum((r) => r.requests.average),
+    p50: worst((r) => r.latency.p50),
+    p99: worst((r) => r.latency.p99),
+    max: worst((r) => r.latency.max),
+    errors: sum((r) => r.errors),
+    timeouts: sum((r) => r.timeouts),
+    non2xx: sum((r) => r.non2xx),
+    ok: sum((r) => r['2xx']),
+  };
+}
+
 async function main() {
+  if (ON_PG) return pgLoad();
   if (ONLY_MIX !== 'opcua') await httpLoad();
   if (!ONLY_MIX || ONLY_MIX === 'opcua')
     await controlLinkLoad({ tags: Number(process.env.LOAD_TAGS ?? 200), seconds: Number(process.env.LOAD_LINK_SECONDS ?? 60) });
@@ -52,6 +76,23 @@ async function httpLoad() {
     nodeArgs: [...(CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : []), '--import', path.join(__dirname, 'long-turns.mjs')],
   });
   try {
+    const { mixes, operator, running } = await httpMixes(server.baseURL);
+    console.log(
+      `Load on ${server.baseURL}, ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores (figures from a busy machine are not the product's)\n`,
+    );
+    await printMixes([server.baseURL], mixes);
+    if (!ONLY_MIX || ONLY_MIX === 'import') await importMix(server.baseURL, mixes[0]!, operator, running, turnsFile);
+  } finally {
+    fs.rmSync(turnsFile, { force: true });
+    await server.stop();
+    fs.rmSync(server.dir, { recursive: true, force: true });
+  }
+}
+
+/** The reads and ingest mixes against a seeded server. */
+async function httpMixes(baseURL: string) {
+  {
+    const server = { baseURL };
     const engineer = await sessionCookie(server.baseURL, user('engineer').email, user('engineer').password);
     const operator = await sessionCookie(server.baseURL, user('operator').email, user('operator').password);
     const headers = { cookie: operator, 'x-yieldpoint-client': 'load' };
@@ -88,25 +129,44 @@ async function httpLoad() {
         ],
       },
     ];
-    console.log(
-      `Load on ${server.baseURL}, ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores (figures from a busy machine are not the product's)\n`,
-    );
-    console.log('mix        conns   req/s    p50 ms  p99 ms  max ms  errors  timeouts  non-2xx');
-    for (const mix of mixes.filter((m) => !ONLY_MIX || m.name === ONLY_MIX)) {
-      for (const connections of [50, 200]) {
-        const before = mix.count ? await mix.count() : 0;
-        const r = await run(server.baseURL, mix, connections);
-        const after = mix.count ? await mix.count() : 0;
-        console.log(
-          `${mix.name.padEnd(10)} ${String(connections).padStart(5)} ${r.requests.average.toFixed(0).padStart(7)} ${String(r.latency.p50).padStart(9)} ${String(r.latency.p99).padStart(7)} ${String(r.latency.max).padStart(7)} ${String(r.errors).padStart(7)} ${String(r.timeouts).padStart(9)} ${String(r.non2xx).padStart(8)}${mix.count ? `  stored ${after - before}, acknowledged ${r['2xx']}: ${after - before >= r['2xx'] ? 'none lost (requests still in flight at the end are stored too)' : `${r['2xx'] - (after - before)} LOST`}` : ''}`,
-        );
-      }
+    return { mixes, operator, running };
+  }
+}
+
+async function printMixes(urls: string[], mixes: Mix[]) {
+  console.log('mix        conns   req/s    p50 ms  p99 ms  max ms  errors  timeouts  non-2xx');
+  for (const mix of mixes.filter((m) => !ONLY_MIX || m.name === ONLY_MIX)) {
+    for (const connections of [50, 200]) {
+      const before = mix.count ? await mix.count() : 0;
+      const r = await runAll(urls, mix, connections);
+      const after = mix.count ? await mix.count() : 0;
+      console.log(
+        `${mix.name.padEnd(10)} ${String(connections).padStart(5)} ${r.rps.toFixed(0).padStart(7)} ${String(r.p50).padStart(9)} ${String(r.p99).padStart(7)} ${String(r.max).padStart(7)} ${String(r.errors).padStart(7)} ${String(r.timeouts).padStart(9)} ${String(r.non2xx).padStart(8)}${mix.count ? `  stored ${after - before}, acknowledged ${r.ok}: ${after - before >= r.ok ? 'none lost (requests still in flight at the end are stored too)' : `${r.ok - (after - before)} LOST`}` : ''}`,
+      );
     }
-    if (!ONLY_MIX || ONLY_MIX === 'import') await importMix(server.baseURL, mixes[0]!, operator, running, turnsFile);
+  }
+}
+
+/** LOAD_DB=postgres: the reads and ingest mixes on PostgreSQL with LOAD_PROCESSES server processes. */
+async function pgLoad() {
+  const cluster = await startPostgres({ durable: true });
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-pg-load-'));
+  const servers: RunningServer[] = [];
+  try {
+    const url = await cluster.createDatabase('load');
+    const env = { DATABASE_URL: url, DATA_DIR: dataDir, WEB_DIR: 'no-web-build', DATABASE_POOL: '10' };
+    // One after the other: the first migrates and seeds, the next find it done.
+    for (let i = 0; i < PROCESSES; i++) servers.push(await startServer({ env }));
+    const urls = servers.map((s) => s.baseURL);
+    const { mixes } = await httpMixes(urls[0]!);
+    console.log(
+      `Load on PostgreSQL 15 (${PROCESSES} server process${PROCESSES > 1 ? 'es' : ''}: ${urls.join(', ')}), ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores\n`,
+    );
+    await printMixes(urls, mixes);
   } finally {
-    fs.rmSync(turnsFile, { force: true });
-    await server.stop();
-    fs.rmSync(server.dir, { recursive: true, force: true });
+    for (const s of servers) await s.stop();
+    await cluster.stop();
+    fs.rmSync(dataDir, { recursive: true, force: true });
   }
 }
 

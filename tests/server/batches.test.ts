@@ -335,7 +335,7 @@ describe('deviations', () => {
         .select()
         .from(auditEvents)
         .where(eq(auditEvents.entityId, String(dev.id)))
-        .execute()
+        .orderBy(auditEvents.id)
     )
       .filter((e) => e.entity === 'deviation')
       .map((e) => e.action);

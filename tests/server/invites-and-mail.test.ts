@@ -1,11 +1,11 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { migrateDb, openDb, writeTx, type Db, sqliteClient } from '../../db/client';
+import { closeDb, writeTx, type Db } from '../../db/client';
 import { mailOutbox } from '../../db/tables';
 import { startSmtpSink } from '../../server/fakes/smtp-sink';
 import { createMailSender, enqueueMail, MAX_ATTEMPTS, retryDelayMs, smtpTransport } from '../../server/services/mail';
 import { listAudit } from '../../server/repositories/audit';
 import { startBillingTestApp, type BillingTestApp } from './billing-harness';
-import { TestClock } from './harness';
+import { openTestDb, TestClock } from './harness';
 
 describe('invites', () => {
   let t: BillingTestApp;
@@ -101,10 +101,9 @@ describe('invites', () => {
 describe('mail outbox', () => {
   let db: Db;
   beforeEach(async () => {
-    db = openDb(':memory:');
-    await migrateDb(db);
+    db = await openTestDb();
   });
-  afterEach(() => sqliteClient(db).close());
+  afterEach(() => closeDb(db));
 
   const queue = async (clock: TestClock, to: string) =>
     await writeTx(db, (tx) => enqueueMail(tx, { siteId: null, to, subject: `Hello ${to}`, text: 'Body', kind: 'test', at: clock.now() }));

@@ -29,9 +29,10 @@ function run(bin: string, args: string[]) {
 /**
  * A throwaway PostgreSQL 15 cluster: initdb into a temporary folder, a free loopback port, its unix socket in the
  * same folder, removed by stop(). Durability is switched off (fsync, synchronous_commit, full_page_writes): these
- * clusters hold test data only, and the product's own settings are not under test here.
+ * clusters hold test data only, and the product's own settings are not under test here. `durable` keeps
+ * PostgreSQL's defaults (the load figures).
  */
-export async function startPostgres(): Promise<TestPostgres> {
+export async function startPostgres(opts: { durable?: boolean } = {}): Promise<TestPostgres> {
   if (!fs.existsSync(path.join(PG_BIN, 'initdb'))) throw new Error(`PostgreSQL 15 not found in ${PG_BIN}: apt-get install -y postgresql-15 (or set PG_BIN)`);
   const t0 = performance.now();
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-pg-'));
@@ -39,8 +40,8 @@ export async function startPostgres(): Promise<TestPostgres> {
   const data = path.join(dir, 'data');
   const port = await freePort();
   run('initdb', ['-D', data, '-U', 'yieldpoint', '-A', 'trust', '-E', 'UTF8', '--locale=C', '--no-sync', '--no-instructions']);
-  const opts = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c fsync=off -c synchronous_commit=off -c full_page_writes=off`;
-  run('pg_ctl', ['-D', data, '-o', opts, '-l', path.join(dir, 'log'), '-w', 'start']);
+  const flags = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c max_connections=200${opts.durable ? '' : ' -c fsync=off -c synchronous_commit=off -c full_page_writes=off'}`;
+  run('pg_ctl', ['-D', data, '-o', flags, '-l', path.join(dir, 'log'), '-w', 'start']);
   const startMs = performance.now() - t0;
   const url = `postgres://yieldpoint@127.0.0.1:${port}/postgres`;
   return {
