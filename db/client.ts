@@ -5,7 +5,9 @@ import { migrate } from 'drizzle-orm/better-sqlite3/migrator';
 import type { NodePgDatabase } from 'drizzle-orm/node-postgres';
 import fs from 'node:fs';
 import path from 'node:path';
-import type * as pgSchema from './pg/schema';
+import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
+import type pg from 'pg';
+import * as pgSchema from './pg/schema';
 import * as schema from './schema';
 import { databaseDialect } from './tables';
 
@@ -221,18 +223,23 @@ export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise
 
 const PG_ATTEMPTS = 12;
 
+// The advisory lock every write transaction holds (any number: it only has to be the same in every process).
+const PG_WRITE_LOCK = 0x59_50_57; // "YPW"
+
 async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
   const database = databaseOf(db);
   for (let attempt = 1; ; attempt++) {
     try {
-      return await db.transaction(
-        async (tx) => {
-          const handle = tx as unknown as Db;
-          txPool.set(handle, database);
-          const savepoint: Savepoint = (inner) => tx.transaction(() => inner());
-          return fn(handle, savepoint);
-        },
-        { isolationLevel: 'serializable' },
+      return await pgLocked(db, (one) =>
+        one.transaction(
+          async (tx) => {
+            const handle = tx as unknown as Db;
+            txPool.set(handle, database);
+            const savepoint: Savepoint = (inner) => tx.transaction(() => inner());
+            return fn(handle, savepoint);
+          },
+          { isolationLevel: 'serializable' },
+        ),
       );
     } catch (err) {
       const code = codeOf(err);
@@ -245,6 +252,32 @@ async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promis
       if (reason) throw new DatabaseUnwritable(reason, code!);
       throw err;
     }
+  }
+}
+
+/**
+ * Runs `fn` on one connection of the pool while it holds the installation's write lock (a session advisory lock,
+ * taken before BEGIN so the transaction's snapshot is taken after it): the write transactions of every process
+ * take turns, as SQLite's writers do, and seldom have to run again. Reads never wait for it. A process that dies
+ * holding it loses its connection, and PostgreSQL lets the lock go with it.
+ */
+async function pgLocked<T>(db: Db, fn: (one: Db) => Promise<T>): Promise<T> {
+  const pool = (db as unknown as { $client: pg.Pool }).$client;
+  const client = await pool.connect();
+  let broken: Error | undefined;
+  try {
+    await client.query('select pg_advisory_lock($1)', [PG_WRITE_LOCK]);
+    try {
+      return await fn(drizzlePg(client, { schema: pgSchema }) as unknown as Db);
+    } finally {
+      await client.query('select pg_advisory_unlock($1)', [PG_WRITE_LOCK]).catch((e: Error) => (broken = e));
+    }
+  } catch (err) {
+    broken ??= unwritableReason(err) ? (err as Error) : undefined;
+    throw err;
+  } finally {
+    // A connection that failed mid-way is not handed out again.
+    client.release(broken);
   }
 }
 

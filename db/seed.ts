@@ -2,7 +2,7 @@ import crypto from 'node:crypto';
 import bcrypt from 'bcryptjs';
 import { sql } from 'drizzle-orm';
 import { batchHours, batchProgram, batchStatus, plannedAt } from '../src/batches';
-import { proposeCalibration } from '../src/batches/calibration';
+import { closedBatch, proposeCalibration } from '../src/batches/calibration';
 import type { BatchProgram } from '../src/contracts/batches';
 import type { CertStability } from '../src/contracts/lots';
 import type { LotFit } from '../src/contracts/recipes';
@@ -382,18 +382,16 @@ async function proposeDemoCalibration(tx: Pick<Db, 'select' | 'insert'>, siteId:
     .from(batches)
     .where(sql`${batches.recipeId} = ${recipe.id} and ${batches.lotId} = ${lot.id} and ${batches.state} = 'closed'`)
     .orderBy(batches.closedAt, batches.id))
-    closed.push({
-      batchId: b.id,
-      startedAt: b.startedAt,
-      closedAt: b.closedAt!,
-      program: b.program,
-      measuredProductGPerL: b.measuredProductGPerL,
-      readings: await tx
-        .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
-        .from(batchReadings)
-        .where(sql`${batchReadings.batchId} = ${b.id}`)
-        .orderBy(batchReadings.takenAt, batchReadings.id),
-    });
+    closed.push(
+      closedBatch(
+        b,
+        await tx
+          .select({ takenAt: batchReadings.takenAt, c: batchReadings.c })
+          .from(batchReadings)
+          .where(sql`${batchReadings.batchId} = ${b.id}`)
+          .orderBy(batchReadings.takenAt, batchReadings.id),
+      ),
+    );
   const evidence = {
     certKdPerH: lot.certKdPerH,
     certTempC: lot.certTempC,

@@ -1,5 +1,5 @@
 import { writeTx, type Db } from '../../db/client';
-import { MEASUREMENT_REL_SD, proposeCalibration, type ClosedBatch } from '../../src/batches/calibration';
+import { closedBatch, MEASUREMENT_REL_SD, proposeCalibration, type ClosedBatch } from '../../src/batches/calibration';
 import type {
   Calibration,
   CalibrationAccept,
@@ -59,15 +59,7 @@ export async function recalibrate(db: Db, u: SessionUser, recipeId: number, lotI
   const enzyme = (await findSiteEnzyme(db, u.siteId, recipe.enzymeId))!;
   const lot = await planningLot(db, u.siteId, lotRow, recipeId);
   const closed: ClosedBatch[] = [];
-  for (const b of await closedBatchesOf(db, u.siteId, recipeId, lotId))
-    closed.push({
-      batchId: b.id,
-      startedAt: b.startedAt,
-      closedAt: b.closedAt!,
-      program: b.program,
-      measuredProductGPerL: b.measuredProductGPerL,
-      readings: await readingPoints(db, b.id),
-    });
+  for (const b of await closedBatchesOf(db, u.siteId, recipeId, lotId)) closed.push(closedBatch(b, await readingPoints(db, b.id)));
   const excluded = (await listExclusions(db, u.siteId)).map((e) => ({ batchId: e.batchId, reason: e.reason, by: e.by, at: e.at }));
   let proposal: ReturnType<typeof proposeCalibration> = null;
   let problem: string | null = null;

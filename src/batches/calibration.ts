@@ -24,6 +24,19 @@ export type ClosedBatch = {
   readings: readonly { takenAt: string; c: number }[];
 };
 
+/** A closed batch's stored row and readings as calibration takes them. */
+export const closedBatch = (
+  b: { id: number; startedAt: string; closedAt: string | null; program: BatchProgram; measuredProductGPerL: number | null },
+  readings: ClosedBatch['readings'],
+): ClosedBatch => ({
+  batchId: b.id,
+  startedAt: b.startedAt,
+  closedAt: b.closedAt!,
+  program: b.program,
+  measuredProductGPerL: b.measuredProductGPerL,
+  readings,
+});
+
 const Z95 = 1.959963984540054;
 const rel = (a: number, b: number) => Math.abs(a - b) <= 1e-9 * Math.max(Math.abs(a), Math.abs(b));
 
