@@ -1,5 +1,6 @@
 import { createInterface } from 'node:readline/promises';
-import { closeDb, migrateDb, openDb, returned, writeTx } from '../db/client';
+import { closeDb, returned, writeTx } from '../db/client';
+import { describeDb, openConfiguredDb } from './database';
 import { sites } from '../db/tables';
 import { SignInRequest } from '../src/contracts/session';
 import { cliArgs } from './cli-args';
@@ -29,8 +30,7 @@ async function main() {
   }
   if (password.length < 12) throw new Error('The password needs at least 12 characters');
   const creds = SignInRequest.parse({ email, password });
-  const db = openDb(env.databaseFile);
-  await migrateDb(db);
+  const db = await openConfiguredDb(env);
   const hash = await hashPassword(creds.password);
   await writeTx(db, async (tx) => {
     const site = await tx
@@ -50,7 +50,7 @@ async function main() {
       at: new Date(),
     });
   });
-  console.log(`Created site "${siteName}" with admin ${creds.email} in ${env.databaseFile}.`);
+  console.log(`Created site "${siteName}" with admin ${creds.email} in ${describeDb(env)}.`);
   await closeDb(db);
 }
 

@@ -1,7 +1,7 @@
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
-import { closeDb, migrateDb, openDb } from '../db/client';
-import { migratePgDb, openPgDb } from '../db/pg/client';
+import { closeDb } from '../db/client';
+import { describeDb, openConfiguredDb } from './database';
 import { DEMO_USERS, isEmpty, seedDemo } from '../db/seed';
 import { createApp } from './app';
 import { systemClock } from './clock';
@@ -18,9 +18,6 @@ import { startControlLink } from './services/control-link';
 
 const root = path.resolve(__dirname, '..');
 
-// A connection URL without its password, for the log.
-const redactUrl = (url: string) => url.replace(/\/\/([^:/@]+):[^@]*@/, '//$1:***@');
-
 /** A configured secret, else one kept in the installation's folder so sign-ins survive a restart. */
 const sessionSecret = (configured: Uint8Array | null, dataDir: string): Uint8Array => configured ?? installationSecret(dataDir, '.session-secret');
 
@@ -32,8 +29,7 @@ async function main() {
     const build = spawnSync(process.execPath, ['--import', 'tsx', path.join(root, 'server/web-build/build.ts')], { cwd: root, stdio: 'inherit' });
     if (build.status !== 0) throw new Error('The web build failed (see above).');
   }
-  const db = env.databaseUrl ? await openPgDb(env.databaseUrl, { dataDir, max: env.databasePool }) : openDb(env.databaseFile);
-  await (env.databaseUrl ? migratePgDb(db) : migrateDb(db));
+  const db = await openConfiguredDb(env);
   const seeded = env.seedDemo && (await isEmpty(db)) ? await seedDemo(db, { now: systemClock.now() }) : null;
   // Signed checkpoints of the audit chains outside the database: at start, every AUDIT_CHECKPOINT_MINUTES, at stop.
   const seal = async () => {
@@ -84,7 +80,7 @@ async function main() {
       console.log(
         `Mail: local sink on 127.0.0.1:${integrations.smtpSink.port}, messages kept in ${path.resolve(env.mail.mode === 'sink' ? env.mail.sinkDir : '')}`,
       );
-    console.log(`Database: ${env.databaseUrl ? redactUrl(env.databaseUrl) : path.resolve(env.databaseFile)}${seeded ? ' (demo site seeded)' : ''}`);
+    console.log(`Database: ${describeDb(env)}${seeded ? ' (demo site seeded)' : ''}`);
     if (env.seedDemo) {
       console.log('Demo sign-ins:');
       for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(12)} ${u.email.padEnd(28)} ${u.password}`);
