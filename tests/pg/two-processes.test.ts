@@ -92,13 +92,14 @@ describe('two server processes on one PostgreSQL database', () => {
       expect(acked.size).toBeGreaterThanOrEqual(9); // rounds 31-39 went to the live process at least
       // Seats: what was accepted fits, whatever process took it.
       const accepted = inviteStatuses.filter((s) => s === 201).length;
-      expect(accepted).toBeGreaterThan(0);
       expect(accepted).toBeLessThanOrEqual(free);
       expect(inviteStatuses.filter((s) => s !== 0 && s !== 201).every((s) => s === 402 || s === 409)).toBe(true);
       const after = (await (await fetch(`${b.baseURL}/api/billing`, { headers: { ...HEADERS, cookie: admin } })).json()) as {
         seats: number;
         seatsInUse: number;
       };
+      // Some invites landed (answered or not: a killed process may have committed one it never answered), none beyond.
+      expect(after.seatsInUse).toBeGreaterThan(usage.seatsInUse);
       expect(after.seatsInUse).toBeLessThanOrEqual(after.seats);
     } finally {
       await c.end();
