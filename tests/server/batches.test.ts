@@ -480,7 +480,7 @@ describe('historian import', () => {
     expect([...stored].sort((x, y) => x - y)).toEqual(stored);
     expect((await op.get(`/api/batches/${batch.id}/readings/import`)).body).toMatchObject({ isRunning: false });
     // One audit event for the import, stating its parts.
-    const events = await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'batch.readings_import')).execute();
+    const events = await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'batch.readings_import')).orderBy(auditEvents.id);
     expect(events.at(-1)!.newValue).toMatchObject({ imported: 30_000, parts: 30 });
   });
 

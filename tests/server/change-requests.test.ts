@@ -200,7 +200,7 @@ describe('signing', () => {
     expect(r.body.status).toBe('rejected');
     expect(await recipeRow()).toEqual(before);
     expect(await auditOf('change-request.reject', id)).toHaveLength(1);
-    expect((await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).execute()).map((m) => m.to)).toEqual([
+    expect((await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).orderBy(mailOutbox.id)).map((m) => m.to)).toEqual([
       'engineer@haldenbay.test',
     ]);
   });
@@ -217,7 +217,7 @@ describe('signing', () => {
     });
     await sender.deliverDue();
     await sender.stop();
-    const notice = (await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).execute()).at(-1)!;
+    const notice = (await t.db.select().from(mailOutbox).where(eq(mailOutbox.kind, 'change-request.rejected')).orderBy(mailOutbox.id)).at(-1)!;
     expect(notice).toMatchObject({ status: 'pending', attempts: 1, lastError: 'relay down' });
     expect((await t.db.select().from(changeRequests).where(eq(changeRequests.id, id)).then(first))!.status).toBe('rejected');
   });

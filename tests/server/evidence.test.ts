@@ -152,7 +152,7 @@ describe('closing the loop', () => {
     const a = await eng.post(`/api/calibrations/${id}/accept`, { comment: 'First plant batch on this lot' });
     expect(a.status).toBe(200);
     expect(a.body.state).toBe('accepted');
-    const audit = (await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration.accept')).execute()).at(-1)!;
+    const audit = (await t.db.select().from(auditEvents).where(eq(auditEvents.action, 'calibration.accept')).orderBy(auditEvents.id)).at(-1)!;
     expect(audit.newValue).toMatchObject({ batchIds: used });
     expect((await eng.post(`/api/calibrations/${id}/accept`, {})).status).toBe(409);
     const after = (await glucosePlan()).body;

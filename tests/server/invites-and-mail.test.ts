@@ -61,7 +61,11 @@ describe('invites', () => {
       'All 8 paid seats are taken (5 active people and 3 open invites). Buy more seats on the Billing screen, or deactivate someone or withdraw an invite first.',
     );
     expect((await admin.get('/api/invites')).body.invites).toHaveLength(3);
-    expect((await t.db.select().from(mailOutbox).execute()).map((m) => m.to).sort()).toEqual(['p1@haldenbay.test', 'p2@haldenbay.test', 'p3@haldenbay.test']);
+    expect((await t.db.select().from(mailOutbox).orderBy(mailOutbox.id)).map((m) => m.to).sort()).toEqual([
+      'p1@haldenbay.test',
+      'p2@haldenbay.test',
+      'p3@haldenbay.test',
+    ]);
     // Withdrawing one frees its seat.
     const first = (await admin.get('/api/invites')).body.invites.find((i: { email: string }) => i.email === 'p1@haldenbay.test');
     expect((await admin.del(`/api/invites/${first.id}`)).status).toBe(204);
@@ -119,7 +123,7 @@ describe('mail outbox', () => {
     await queue(clock, 'b@x.test');
 
     expect(await sender.deliverDue()).toEqual({ sent: 0, failed: 2 });
-    let rows = await db.select().from(mailOutbox).execute();
+    let rows = await db.select().from(mailOutbox).orderBy(mailOutbox.id);
     expect(rows.map((r) => [r.status, r.attempts])).toEqual([
       ['pending', 1],
       ['pending', 1],
@@ -132,7 +136,7 @@ describe('mail outbox', () => {
     try {
       clock.advanceMinutes(retryDelayMs(1) / 60_000);
       expect(await sender.deliverDue()).toEqual({ sent: 2, failed: 0 });
-      rows = await db.select().from(mailOutbox).execute();
+      rows = await db.select().from(mailOutbox).orderBy(mailOutbox.id);
       expect(rows.map((r) => [r.status, r.attempts, r.lastError])).toEqual([
         ['sent', 2, null],
         ['sent', 2, null],
@@ -159,7 +163,7 @@ describe('mail outbox', () => {
       await sender.deliverDue();
       clock.advanceMinutes(60);
     }
-    const [row] = await db.select().from(mailOutbox).execute();
+    const [row] = await db.select().from(mailOutbox).orderBy(mailOutbox.id);
     expect(row).toMatchObject({ status: 'failed', attempts: MAX_ATTEMPTS, lastError: 'relay said no' });
     expect(await sender.deliverDue()).toEqual({ sent: 0, failed: 0 });
   });
