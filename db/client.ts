@@ -7,7 +7,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
 import type pg from 'pg';
-import * as pgSchema from './pg/schema';
+import type * as pgSchema from './pg/schema';
 import * as schema from './schema';
 import { databaseDialect } from './tables';
 
@@ -108,7 +108,7 @@ export type Savepoint = <T>(fn: () => Promise<T>) => Promise<T>;
 /** Why the database cannot take a write just now. */
 export type UnwritableReason = 'locked' | 'full' | 'read-only' | 'io';
 
-/** A write refused because the file cannot be written (nothing was changed); the error middleware answers 503. */
+/** A write refused because the database cannot take it now (nothing was changed); the error middleware answers 503. */
 export class DatabaseUnwritable extends Error {
   constructor(
     readonly reason: UnwritableReason,
@@ -268,7 +268,8 @@ async function pgLocked<T>(db: Db, fn: (one: Db) => Promise<T>): Promise<T> {
   try {
     await client.query('select pg_advisory_lock($1)', [PG_WRITE_LOCK]);
     try {
-      return await fn(drizzlePg(client, { schema: pgSchema }) as unknown as Db);
+      // No schema: the transaction runs builder queries only, so nothing is derived from the tables per write.
+      return await fn(drizzlePg(client) as unknown as Db);
     } finally {
       await client.query('select pg_advisory_unlock($1)', [PG_WRITE_LOCK]).catch((e: Error) => (broken = e));
     }

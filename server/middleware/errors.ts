@@ -11,8 +11,8 @@ const body = (code: string, message: string, fields?: Record<string, string>): A
 const UNWRITABLE_MESSAGE: Record<DatabaseUnwritable['reason'], string> = {
   locked: 'The database is locked by another program, so nothing was saved; reading still works. Try again in a minute.',
   full: 'The disk holding the database is full, so nothing was saved; reading still works. Tell your site admin.',
-  'read-only': 'The database file is read-only, so nothing was saved; reading still works. Tell your site admin.',
-  io: 'The database file could not be written, so nothing was saved; reading still works. Tell your site admin.',
+  'read-only': 'The database is read-only just now (a read-only file, or a standby server), so nothing was saved; reading still works. Tell your site admin.',
+  io: 'The database could not be written (a disk error, or its server cannot be reached), so nothing was saved; reading still works while the database answers. Tell your site admin.',
 };
 
 export const apiNotFound: RequestHandler = (req, res) => {

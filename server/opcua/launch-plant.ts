@@ -22,7 +22,7 @@ export async function launchPlant(
   const readsPlant = sources.some((r) => /^opc\.tcp:\/\/(127\.0\.0\.1|localhost):/.test(r.source.endpointUrl));
   if (!env.plantSim.enabled || !site || (sources.length && !readsPlant)) return { ready: Promise.resolve(null), close: async () => {} };
   const pkiFolder = path.join(dataDir, 'plant-sim-pki');
-  const start = async (port: number) => await startDemoPlant(db, site.id, { port, pkiFolder });
+  const start = (port: number) => startDemoPlant(db, site.id, { port, pkiFolder });
   const ready = start(env.plantSim.port)
     .catch((err: unknown) => {
       if (env.plantSim.port === 0) throw err;

@@ -146,13 +146,15 @@ export function startControlLink(o: ControlLinkOptions): ControlLink {
     }
     return u;
   };
-  // The site's gap limit, read again at most every few seconds (every value needs it).
-  const gapLimits = new Map<number, { atMs: number; gapMs: number }>();
-  const gapLimitMs = async (siteId: number, nowMs: number) => {
+  // The site's gap limit, read again at most every few seconds (every value needs it). The values that arrive while
+  // it is read share one read and resume in their arrival order: onValue's repeat check depends on that order.
+  const gapLimits = new Map<number, { atMs: number; gapMs: Promise<number> }>();
+  const gapLimitMs = (siteId: number, nowMs: number): Promise<number> => {
     const hit = gapLimits.get(siteId);
     if (hit && nowMs - hit.atMs < 5000) return hit.gapMs;
-    const gapMs = (await batchSettingsOf(db, siteId)).gapLimitMin * 60_000;
+    const gapMs = batchSettingsOf(db, siteId).then((s) => s.gapLimitMin * 60_000);
     gapLimits.set(siteId, { atMs: nowMs, gapMs });
+    gapMs.catch(() => gapLimits.delete(siteId));
     return gapMs;
   };
 
