@@ -103,7 +103,7 @@ export const batchReadings = pgTable(
   },
   (t) => [
     uniqueIndex('batch_readings_key_unique').on(t.batchId, t.clientKey),
-    index('batch_readings_time_idx').on(t.batchId, t.takenAt),
+    index('batch_readings_time_idx').on(t.batchId, t.takenAt, t.id),
     index('batch_readings_batch_idx').on(t.batchId),
     index('batch_readings_entered_idx').on(t.enteredBy, t.batchId),
   ],

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, gt, gte, inArray, isNull, lt, lte, sql, type SQL } from 'drizzle-orm';
 import { boundRow, columnPlaceholders, preparedPer, first, returned, type Db } from '../../db/client';
-import { auditEvents } from '../../db/tables';
+import { auditEvents, databaseDialect } from '../../db/tables';
 
 export type AuditRow = typeof auditEvents.$inferSelect;
 
@@ -43,6 +43,22 @@ export const insertAudit = async (db: Db, row: NewAuditRow): Promise<AuditRow> =
   insertAuditRow(db, { old: row.oldValue == null, new: row.newValue == null })
     .execute(boundRow(AUDIT_COLUMNS, row))
     .then(returned);
+
+/**
+ * Many events, in their order (a chain's order is its ids' order). SQLite: the prepared insert per row, in-process;
+ * PostgreSQL: one multi-row insert per part, whose rows take their ids in the order given.
+ */
+export async function insertAudits(db: Db, rows: readonly NewAuditRow[]): Promise<void> {
+  if (databaseDialect === 'sqlite') {
+    for (const row of rows) await insertAudit(db, row);
+    return;
+  }
+  for (let i = 0; i < rows.length; i += 1_000)
+    await db
+      .insert(auditEvents)
+      .values(rows.slice(i, i + 1_000))
+      .execute();
+}
 
 export const listAudit = (db: Db, siteId: number | null, opts: { action?: string; limit?: number } = {}) =>
   db

@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, gt, inArray, lt, lte, ne, or, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, getTableColumns, gt, inArray, lt, lte, ne, or, sql } from 'drizzle-orm';
 import { boundRow, columnPlaceholders, preparedPer, first, returned, type Db } from '../../db/client';
 import { alias } from 'drizzle-orm/pg-core';
 import { batchReadings, batches, batchSettings, changeRequests, deviations, lots, recipes, signatures, users, vessels, databaseDialect } from '../../db/tables';
@@ -188,6 +188,72 @@ const readingBefore = preparedPer((db, _v, name) =>
 /** The latest stored reading taken at or before `takenAt`, as the deviation rules see "the reading before". */
 export const readingAtOrBefore = (db: Db, batchId: number, takenAt: string) => readingBefore(db).execute({ batchId, takenAt }).then(first);
 
+// Lists bound as parameters go in parts: SQLite binds at most 32,766 parameters a statement, PostgreSQL 65,535.
+const PART = 1_000;
+const partsOf = <T>(items: readonly T[]): T[][] => Array.from({ length: Math.ceil(items.length / PART) }, (_, i) => items.slice(i * PART, (i + 1) * PART));
+
+/**
+ * readingAtOrBefore for each of `times` (in their order; undefined where none). PostgreSQL answers all of them in
+ * one statement (a lateral join over the times, each an index lookup); SQLite, in-process, one prepared lookup each.
+ */
+export async function readingsAtOrBefore(db: Db, batchId: number, times: readonly string[]): Promise<({ takenAt: string; c: number } | undefined)[]> {
+  if (databaseDialect === 'sqlite') {
+    const out: ({ takenAt: string; c: number } | undefined)[] = [];
+    for (const takenAt of times) out.push(await readingAtOrBefore(db, batchId, takenAt));
+    return out;
+  }
+  const out: ({ takenAt: string; c: number } | undefined)[] = [];
+  for (const part of partsOf(times)) {
+    const { rows } = await db.execute<{ i: string; taken_at: string | null; c: number | null }>(sql`
+      select t.i, r.taken_at, r.c from unnest(${sql.param(part)}::text[]) with ordinality as t(at, i)
+      left join lateral (
+        select ${batchReadings.takenAt}, ${batchReadings.c} from ${batchReadings}
+        where ${batchReadings.batchId} = ${batchId} and ${batchReadings.takenAt} <= t.at
+        order by ${batchReadings.takenAt} desc, ${batchReadings.id} desc limit 1
+      ) r on true
+      order by t.i`);
+    for (const r of rows) out.push(r.taken_at === null ? undefined : { takenAt: r.taken_at, c: Number(r.c) });
+  }
+  return out;
+}
+
+// A reading row's columns under their property names, from the lateral subquery `r`; and such a raw row mapped
+// as Drizzle maps its own (bigint ids to numbers).
+const readingColumns = Object.entries(getTableColumns(batchReadings));
+const readingColumnsOfR = sql.join(
+  readingColumns.map(([key, column]) => sql`r.${sql.identifier(column.name)} as ${sql.identifier(key)}`),
+  sql`, `,
+);
+const readingRowOf = (raw: Record<string, unknown>) =>
+  Object.fromEntries(readingColumns.map(([key, column]) => [key, raw[key] === null ? null : column.mapFromDriverValue(raw[key])])) as ReadingRow;
+
+/**
+ * The readings of a batch with any of these keys. On PostgreSQL each key is its own lookup of the unique key
+ * (a lateral join, kept a loop by its LIMIT): as `client_key in (...)` or a plain join, the planner read every
+ * reading of the batch whenever its statistics were behind a fast-growing batch (2-4 ms a flush under load).
+ */
+export async function readingsWithKeys(db: Db, batchId: number, keys: readonly string[]): Promise<ReadingRow[]> {
+  const out: ReadingRow[] = [];
+  for (const part of partsOf(keys)) {
+    if (databaseDialect === 'sqlite')
+      out.push(
+        ...(await db
+          .select()
+          .from(batchReadings)
+          .where(and(eq(batchReadings.batchId, batchId), inArray(batchReadings.clientKey, part)))),
+      );
+    else
+      out.push(
+        ...(
+          await db.execute<Record<string, unknown>>(sql`
+            select ${readingColumnsOfR} from unnest(${sql.param(part)}::text[]) as k(key)
+            join lateral (select * from ${batchReadings} where ${batchReadings.batchId} = ${batchId} and ${batchReadings.clientKey} = k.key limit 1) r on true`)
+        ).rows.map(readingRowOf),
+      );
+  }
+  return out;
+}
+
 export const lastReadingTimes = (db: Db, batchIds: number[]) =>
   batchIds.length
     ? db
@@ -250,12 +316,32 @@ const insertReadingId = preparedPer((db, _v, name) =>
     .returning({ id: batchReadings.id })
     .prepare(name),
 );
-/** Many readings through one prepared statement (no SQL built per row); their new ids in order. */
+/**
+ * Many readings; their new ids in order. SQLite: one prepared statement (no SQL built per row, no round trip);
+ * PostgreSQL: one multi-row insert per part (a round trip per row was the cost).
+ */
 export async function insertReadings(db: Db, rows: readonly NewReading[]): Promise<number[]> {
+  if (databaseDialect === 'postgres') return (await insertReadingRows(db, rows)).map((r) => r.id);
   const insert = insertReadingId(db);
   const ids: number[] = [];
   for (const row of rows) ids.push((await insert.execute(boundRow(READING_COLUMNS, row)))[0]!.id);
   return ids;
+}
+
+/** Many readings, as insertReadings, with their stored rows in order. */
+export async function insertReadingRows(db: Db, rows: readonly NewReading[]): Promise<ReadingRow[]> {
+  if (databaseDialect === 'sqlite') {
+    const out: ReadingRow[] = [];
+    for (const row of rows) out.push(await insertReading(db, row));
+    return out;
+  }
+  const out: ReadingRow[] = [];
+  for (const part of partsOf(rows)) {
+    // RETURNING's order is not promised; a batch's key is unique, so each row is found by it.
+    const stored = new Map((await db.insert(batchReadings).values(part).returning()).map((r) => [`${r.batchId} ${r.clientKey}`, r]));
+    for (const row of part) out.push(stored.get(`${row.batchId} ${row.clientKey}`)!);
+  }
+  return out;
 }
 
 // Deviations, with the names of who acknowledged and closed them.

@@ -4,7 +4,7 @@ import { databaseOf, installationDir, sqliteOf, type Db } from '../../db/client'
 import { sha256 } from '../digest';
 import { installationSecret } from '../installation-secrets';
 import { hasCheckpoint } from './audit-checkpoints';
-import { insertAudit, lastAuditHash, type AuditRow } from '../repositories/audit';
+import { insertAudit, insertAudits, lastAuditHash, type AuditRow } from '../repositories/audit';
 
 export type AuditInput = {
   siteId: number | null;
@@ -54,22 +54,41 @@ export function auditKeyOf(db: Db): Buffer {
   return key;
 }
 
+const hashedRow = (input: AuditInput, prevHash: string) => ({
+  siteId: input.siteId,
+  userId: input.userId,
+  actor: input.actor,
+  action: input.action,
+  entity: input.entity,
+  entityId: input.entityId == null ? null : String(input.entityId),
+  oldValue: input.oldValue ?? null,
+  newValue: input.newValue ?? null,
+  at: input.at.toISOString(),
+  prevHash,
+});
+
 /** Appends one event to its site's chain. Call inside the write's transaction so both land or neither. */
 export async function appendAudit(db: Db, input: AuditInput): Promise<AuditRow> {
+  // The key first: its first use may re-link legacy chains, so the head is read after.
   const key = auditKeyOf(db);
-  const row = {
-    siteId: input.siteId,
-    userId: input.userId,
-    actor: input.actor,
-    action: input.action,
-    entity: input.entity,
-    entityId: input.entityId == null ? null : String(input.entityId),
-    oldValue: input.oldValue ?? null,
-    newValue: input.newValue ?? null,
-    at: input.at.toISOString(),
-    prevHash: (await lastAuditHash(db, input.siteId)) ?? GENESIS,
-  };
+  const row = hashedRow(input, (await lastAuditHash(db, input.siteId)) ?? GENESIS);
   return await insertAudit(db, { ...row, hash: eventHash(key, row) });
+}
+
+/** Appends events in their order, each to its site's chain (a group commit's): one head read per site, one insert. */
+export async function appendAudits(db: Db, inputs: readonly AuditInput[]): Promise<void> {
+  const key = auditKeyOf(db);
+  const heads = new Map<number | null, string>();
+  const rows = [];
+  for (const input of inputs) {
+    let prev = heads.get(input.siteId);
+    if (prev === undefined) prev = (await lastAuditHash(db, input.siteId)) ?? GENESIS;
+    const row = hashedRow(input, prev);
+    const hash = eventHash(key, row);
+    heads.set(input.siteId, hash);
+    rows.push({ ...row, hash });
+  }
+  await insertAudits(db, rows);
 }
 
 type RawRow = {

@@ -6,16 +6,16 @@ import type { SessionUser } from '../../src/contracts/session';
 import { HttpError } from '../http-error';
 import {
   deviationsOfReading,
-  findReadingByKey,
   findReadingJoined,
-  insertReading,
-  readingAtOrBefore,
+  insertReadingRows,
+  readingsAtOrBefore,
   readingsPage,
+  readingsWithKeys,
   type BatchJoined,
   type ReadingRow,
 } from '../repositories/batches';
 import type { Services } from '../context';
-import { appendAudit } from './audit';
+import { appendAudits } from './audit';
 import { batchSettingsOf, loadBatch } from './batches';
 import { raiseDeviations, toDeviation } from './deviations';
 import { checkReadingTime, rulesOf } from './historian-plan';
@@ -48,16 +48,27 @@ type Stored = { created: true; result: ReadingResult } | { created: false; readi
 type BatchGroup = {
   b: BatchJoined['batch'];
   rules: ReadingRules;
+  /** Stored readings with the keys of the group's requests, by key; and the reading before each of their times. */
+  stored: Map<string, ReadingRow>;
+  before: Map<string, { takenAt: string; c: number } | undefined>;
+  /** This flush's new readings of the batch, in arrival order. */
+  added: Added[];
   raised: { readingId: number; draft: DeviationDraft; by: SessionUser }[];
   lastBy: SessionUser | null;
 };
+/** A new reading of this flush: its row once stored. */
+type Added = { req: ReadingRequest; takenAt: string; note: string | null; startedAt: string; drafts: DeviationDraft[]; row?: ReadingRow };
+/** What a flush decided for one request before writing: refused, a repeat (of a stored or an added reading), or new. */
+type Judged = { error: unknown } | { repeatOf: () => number; startedAt: string } | Added;
 
 /**
  * Group commit for logged readings. Each reading is its own fsync'd write under synchronous=FULL, so one
  * transaction per request caps ingest at the disk's flush rate. Requests are queued and the queue is stored on
- * the next turn of the event loop in ONE transaction: each reading with its own audit event, in arrival order,
- * under its own savepoint so a refused reading (bad time, reused key, closed batch) fails alone. Every request
- * is answered only after the transaction committed, so a 2xx still means the reading is on disk.
+ * the next turn of the event loop in ONE transaction: each reading with its own audit event, in arrival order.
+ * A refused reading (bad time, reused key, closed batch) fails alone: every reading is judged first, from what the
+ * database holds and the readings before it in the queue, and only then are the accepted ones written, a few
+ * statements for the whole group. Every request is answered only after the transaction committed, so a 2xx still
+ * means the reading is on disk.
  */
 export type ReadingIngest = { log(u: SessionUser, batchId: number, input: ReadingInput, source?: ReadingSource): Promise<Logged> };
 
@@ -109,22 +120,57 @@ async function readingAnswer(db: Db, readingId: number, startedAt: string): Prom
 /** One transaction for a group of readings; per reading its stored id or the error that refused it. */
 async function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], checksForecast: () => boolean): Promise<Stored[]> {
   const now = clock.now();
-  return await writeTx(db, async (t, savepoint) => {
-    const groups = new Map<string, BatchGroup>();
-    const out: Stored[] = [];
-    for (const req of reqs) {
+  return await writeTx(db, async (t) => {
+    const groups = await loadGroups(t, reqs);
+    // Judged in arrival order; nothing is written until every reading is judged.
+    const judged = reqs.map((req): Judged => {
       try {
-        out.push(await savepoint(() => storeReading(t, groups, req, now)));
+        return judge(groups.get(groupKey(req))!, req, now);
       } catch (error) {
-        // A database that cannot be written fails the whole group, not one reading (PostgreSQL runs it again).
-        if (failsWholeTransaction(error)) throw error;
-        out.push({ error });
+        return { error };
       }
-    }
+    });
+    const added = judged.filter((j): j is Added => 'req' in j);
+    const rows = await insertReadingRows(
+      t,
+      added.map(({ req: { u, batchId, input, source }, takenAt, note }) => ({
+        siteId: u.siteId,
+        batchId,
+        clientKey: input.key,
+        takenAt,
+        c: input.c,
+        note,
+        source,
+        enteredBy: u.id,
+        receivedAt: now.toISOString(),
+      })),
+    );
+    for (const [i, a] of added.entries()) a.row = rows[i];
+    await appendAudits(
+      t,
+      added.map(({ req: { u, batchId, input, source }, takenAt, note, row }) => ({
+        siteId: u.siteId,
+        userId: u.id,
+        actor: u.email,
+        action: 'batch.reading',
+        entity: 'batch',
+        entityId: batchId,
+        newValue: { readingId: row!.id, key: input.key, takenAt, c: input.c, note, ...(source === 'manual' ? {} : { source }) },
+        at: now,
+      })),
+    );
+    const out = judged.map((j): Stored => {
+      if ('error' in j) return j;
+      // A repeat of a reading added earlier in this flush answers with that reading.
+      if ('repeatOf' in j) return { created: false, readingId: j.repeatOf(), startedAt: j.startedAt };
+      return { created: true, result: { reading: toReading(j.row!, j.req.u.name, j.startedAt), deviations: [] } };
+    });
     // Once per batch and flush: the status (and so a low forecast and the corrective setpoints) needs every reading.
     const answers = new Map(out.flatMap((o) => ('result' in o ? [[o.result.reading.id, o.result] as const] : [])));
     for (const g of groups.values()) {
-      if (!g.lastBy) continue;
+      if ('error' in g || !g.added.length) continue;
+      for (const a of g.added) for (const draft of a.drafts) g.raised.push({ readingId: a.row!.id, draft, by: a.req.u });
+      g.lastBy = g.added.at(-1)!.req.u;
       for (const row of await raiseDeviations(t, g.lastBy, g.b, g.raised, now, { checkForecast: checksForecast() }))
         if (row.readingId !== null) answers.get(row.readingId)!.deviations.push(toDeviation({ deviation: row, acknowledgedBy: null, closedBy: null }));
     }
@@ -132,53 +178,70 @@ async function storeReadings({ db, clock }: Services, reqs: ReadingRequest[], ch
   });
 }
 
-/** Stores one reading once per key: the first answers 201, a repeat of the same reading 200 with the same body. */
-async function storeReading(t: Db, groups: Map<string, BatchGroup>, { u, batchId, input, source }: ReadingRequest, now: Date): Promise<Stored> {
-  const groupKey = `${u.siteId}:${batchId}`;
-  let g = groups.get(groupKey);
-  if (!g) {
-    const b = (await loadBatch(t, u.siteId, batchId)).batch;
-    g = { b, rules: rulesOf(b.program, await batchSettingsOf(t, u.siteId)), raised: [], lastBy: null };
-    groups.set(groupKey, g);
+const groupKey = ({ u, batchId }: ReadingRequest) => `${u.siteId}:${batchId}`;
+const isoTime = (input: ReadingInput) => new Date(input.takenAt).toISOString();
+
+/** Each batch of the flush once: the batch and its rules, and what the database holds for its readings. */
+async function loadGroups(t: Db, reqs: ReadingRequest[]): Promise<Map<string, BatchGroup | { error: unknown }>> {
+  const byGroup = new Map<string, ReadingRequest[]>();
+  for (const req of reqs) byGroup.set(groupKey(req), [...(byGroup.get(groupKey(req)) ?? []), req]);
+  const groups = new Map<string, BatchGroup | { error: unknown }>();
+  for (const [key, [firstReq, ...rest]] of byGroup) {
+    try {
+      const b = (await loadBatch(t, firstReq!.u.siteId, firstReq!.batchId)).batch;
+      const all = [firstReq!, ...rest];
+      const times = [...new Set(all.flatMap((r) => (Number.isNaN(Date.parse(r.input.takenAt)) ? [] : [isoTime(r.input)])))];
+      const before = await readingsAtOrBefore(t, b.id, times);
+      groups.set(key, {
+        b,
+        rules: rulesOf(b.program, await batchSettingsOf(t, firstReq!.u.siteId)),
+        stored: new Map((await readingsWithKeys(t, b.id, [...new Set(all.map((r) => r.input.key))])).map((r) => [r.clientKey, r])),
+        before: new Map(times.map((at, i) => [at, before[i]])),
+        added: [],
+        raised: [],
+        lastBy: null,
+      });
+    } catch (error) {
+      if (failsWholeTransaction(error)) throw error;
+      groups.set(key, { error });
+    }
   }
-  const b = g.b;
-  const takenAt = new Date(input.takenAt).toISOString();
+  return groups;
+}
+
+/**
+ * Whether one reading is stored, as if the readings before it in the flush were stored already: the first with
+ * a key answers 201, a repeat of the same reading 200 with the same body, a different reading under a used key 409.
+ */
+function judge(g: BatchGroup | { error: unknown }, req: ReadingRequest, now: Date): Judged {
+  if ('error' in g) throw g.error;
+  const { b } = g;
+  const { input } = req;
+  const takenAt = isoTime(input);
   const note = input.note ? input.note : null;
-  const existing = await findReadingByKey(t, b.id, input.key);
+  const pending = g.added.find((a) => a.req.input.key === input.key);
+  const existing = pending ? { takenAt: pending.takenAt, c: pending.req.input.c, note: pending.note } : g.stored.get(input.key);
   if (existing) {
     if (existing.takenAt !== takenAt || existing.c !== input.c || existing.note !== note)
       throw new HttpError(409, 'key_reused', 'This reading key was already used for a different reading', { key: 'Already used for another reading' });
-    return { created: false, readingId: existing.id, startedAt: b.startedAt };
+    const storedId = g.stored.get(input.key)?.id;
+    return { repeatOf: () => (pending ? pending.row!.id : storedId!), startedAt: b.startedAt };
   }
   if (b.state === 'closed') throw new HttpError(409, 'batch_closed', 'This batch is closed; readings can no longer be added');
   const bad = checkReadingTime(b.startedAt, Date.parse(takenAt), now);
   if (bad) throw new HttpError(400, 'invalid_input', bad, { takenAt: bad });
-  // Only the reading before this one in time matters to the rules; earlier readings of this group count too.
-  const before = await readingAtOrBefore(t, b.id, takenAt);
+  // Only the reading before this one in time matters to the rules: the latest stored at or before its time, or a
+  // reading of this flush at or before it (which comes after any stored one of the same time, as its id will).
+  let before = g.before.get(takenAt);
+  for (const a of g.added) if (a.takenAt <= takenAt && (!before || a.takenAt >= before.takenAt)) before = { takenAt: a.takenAt, c: a.req.input.c };
   const prev = before ? { h: batchHours(b.startedAt, before.takenAt), c: before.c } : null;
-  const drafts = readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c });
-  const row = await insertReading(t, {
-    siteId: u.siteId,
-    batchId: b.id,
-    clientKey: input.key,
+  const added: Added = {
+    req,
     takenAt,
-    c: input.c,
     note,
-    source,
-    enteredBy: u.id,
-    receivedAt: now.toISOString(),
-  });
-  await appendAudit(t, {
-    siteId: u.siteId,
-    userId: u.id,
-    actor: u.email,
-    action: 'batch.reading',
-    entity: 'batch',
-    entityId: b.id,
-    newValue: { readingId: row.id, key: input.key, takenAt, c: input.c, note, ...(source === 'manual' ? {} : { source }) },
-    at: now,
-  });
-  for (const draft of drafts) g.raised.push({ readingId: row.id, draft, by: u });
-  g.lastBy = u;
-  return { created: true, result: { reading: toReading(row, u.name, b.startedAt), deviations: [] } };
+    startedAt: b.startedAt,
+    drafts: readingDeviations(g.rules, prev, { h: batchHours(b.startedAt, takenAt), c: input.c }),
+  };
+  g.added.push(added);
+  return added;
 }

@@ -2,6 +2,7 @@ import autocannon from 'autocannon';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import pg from 'pg';
 import { DEMO_USERS } from '../../db/seed';
 import { MAX_IMPORT_ROWS } from '../../src/contracts/batches';
 import { startPostgres } from '../support/postgres';
@@ -17,11 +18,14 @@ import { controlLinkLoad } from './control-link-load';
 // LOAD_DB=postgres: the reads and ingest mixes on a throwaway PostgreSQL 15 (durable: fsync on, as SQLite's
 // synchronous=FULL), with LOAD_PROCESSES server processes (1 or 2) on the one database, the connections split
 // evenly between them as a proxy would; a row then sums the requests/s and gives the worse process's latencies.
+// LOAD_PG_STATS=1 also prints, after each run, the statements PostgreSQL spent most time on (pg_stat_statements);
+// LOAD_PG_SETTINGS='name=value ...' adds server settings (say, auto_explain's, with a log_directory that outlives the run).
 const DURATION_S = Number(process.env.LOAD_SECONDS ?? 10);
 const ONLY_MIX = process.env.LOAD_MIX;
 const CPU_PROF_DIR = process.env.LOAD_CPU_PROF;
 const ON_PG = process.env.LOAD_DB === 'postgres';
 const PROCESSES = Number(process.env.LOAD_PROCESSES ?? 1);
+const PG_STATS = process.env.LOAD_PG_STATS === '1';
 
 type Mix = { name: string; requests: autocannon.Request[]; cookie: string; count?: () => Promise<number> };
 
@@ -133,7 +137,7 @@ async function httpMixes(baseURL: string) {
   }
 }
 
-async function printMixes(urls: string[], mixes: Mix[]) {
+async function printMixes(urls: string[], mixes: Mix[], afterRun?: () => Promise<void>) {
   console.log('mix        conns   req/s    p50 ms  p99 ms  max ms  errors  timeouts  non-2xx');
   for (const mix of mixes.filter((m) => !ONLY_MIX || m.name === ONLY_MIX)) {
     for (const connections of [50, 200]) {
@@ -143,31 +147,54 @@ async function printMixes(urls: string[], mixes: Mix[]) {
       console.log(
         `${mix.name.padEnd(10)} ${String(connections).padStart(5)} ${r.rps.toFixed(0).padStart(7)} ${String(r.p50).padStart(9)} ${String(r.p99).padStart(7)} ${String(r.max).padStart(7)} ${String(r.errors).padStart(7)} ${String(r.timeouts).padStart(9)} ${String(r.non2xx).padStart(8)}${mix.count ? `  stored ${after - before}, acknowledged ${r.ok}: ${after - before >= r.ok ? 'none lost (requests still in flight at the end are stored too)' : `${r.ok - (after - before)} LOST`}` : ''}`,
       );
+      await afterRun?.();
     }
   }
 }
 
 /** LOAD_DB=postgres: the reads and ingest mixes on PostgreSQL with LOAD_PROCESSES server processes. */
 async function pgLoad() {
-  const cluster = await startPostgres({ durable: true });
+  const settings = [
+    ...(PG_STATS ? ['shared_preload_libraries=pg_stat_statements'] : []),
+    ...(process.env.LOAD_PG_SETTINGS?.split(/\s+/).filter(Boolean) ?? []),
+  ];
+  const cluster = await startPostgres({ durable: true, settings });
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-pg-load-'));
   const servers: RunningServer[] = [];
   try {
     const url = await cluster.createDatabase('load');
     const env = { DATABASE_URL: url, DATA_DIR: dataDir, WEB_DIR: 'no-web-build', DATABASE_POOL: '10' };
     // One after the other: the first migrates and seeds, the next find it done.
-    for (let i = 0; i < PROCESSES; i++) servers.push(await startServer({ env }));
+    const nodeArgs = CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : [];
+    for (let i = 0; i < PROCESSES; i++) servers.push(await startServer({ env, nodeArgs }));
     const urls = servers.map((s) => s.baseURL);
     const { mixes } = await httpMixes(urls[0]!);
     console.log(
       `Load on PostgreSQL 15 (${PROCESSES} server process${PROCESSES > 1 ? 'es' : ''}: ${urls.join(', ')}), ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores\n`,
     );
-    await printMixes(urls, mixes);
+    const stats = PG_STATS ? new pg.Client({ connectionString: url }) : null;
+    await stats?.connect();
+    await stats?.query('create extension pg_stat_statements');
+    await stats?.query('select pg_stat_statements_reset()');
+    await printMixes(urls, mixes, stats ? () => topStatements(stats) : undefined);
+    await stats?.end();
   } finally {
     for (const s of servers) await s.stop();
     await cluster.stop();
     fs.rmSync(dataDir, { recursive: true, force: true });
   }
+}
+
+/** The statements PostgreSQL spent most time on since the last call (then reset). */
+async function topStatements(c: pg.Client) {
+  const { rows } = await c.query<{ calls: string; total: number; mean: number; query: string }>(
+    'select calls, total_exec_time as total, mean_exec_time as mean, query from pg_stat_statements order by total_exec_time desc limit 12',
+  );
+  for (const r of rows)
+    console.log(
+      `    ${r.total.toFixed(0).padStart(7)} ms ${r.calls.padStart(8)} calls ${r.mean.toFixed(3).padStart(8)} ms  ${r.query.replace(/\s+/g, ' ').slice(0, 110)}`,
+    );
+  await c.query('select pg_stat_statements_reset()');
 }
 
 async function timed(url: string, cookie: string): Promise<number> {

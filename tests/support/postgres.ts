@@ -30,9 +30,9 @@ function run(bin: string, args: string[]) {
  * A throwaway PostgreSQL 15 cluster: initdb into a temporary folder, a free loopback port, its unix socket in the
  * same folder, removed by stop(). Durability is switched off (fsync, synchronous_commit, full_page_writes): these
  * clusters hold test data only, and the product's own settings are not under test here. `durable` keeps
- * PostgreSQL's defaults (the load figures).
+ * PostgreSQL's defaults (the load figures); `settings` adds server settings (`name=value`).
  */
-export async function startPostgres(opts: { durable?: boolean } = {}): Promise<TestPostgres> {
+export async function startPostgres(opts: { durable?: boolean; settings?: string[] } = {}): Promise<TestPostgres> {
   if (!fs.existsSync(path.join(PG_BIN, 'initdb'))) throw new Error(`PostgreSQL 15 not found in ${PG_BIN}: apt-get install -y postgresql-15 (or set PG_BIN)`);
   const t0 = performance.now();
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-pg-'));
@@ -40,7 +40,7 @@ export async function startPostgres(opts: { durable?: boolean } = {}): Promise<T
   const data = path.join(dir, 'data');
   const port = await freePort();
   run('initdb', ['-D', data, '-U', 'yieldpoint', '-A', 'trust', '-E', 'UTF8', '--locale=C', '--no-sync', '--no-instructions']);
-  const flags = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c max_connections=200${opts.durable ? '' : ' -c fsync=off -c synchronous_commit=off -c full_page_writes=off'}`;
+  const flags = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c max_connections=200${opts.durable ? '' : ' -c fsync=off -c synchronous_commit=off -c full_page_writes=off'}${(opts.settings ?? []).map((s) => ` -c ${s}`).join('')}`;
   run('pg_ctl', ['-D', data, '-o', flags, '-l', path.join(dir, 'log'), '-w', 'start']);
   const startMs = performance.now() - t0;
   const url = `postgres://yieldpoint@127.0.0.1:${port}/postgres`;
