@@ -8,6 +8,7 @@ import path from 'node:path';
 import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
 import type pg from 'pg';
 import type * as pgSchema from './pg/schema';
+import type { SessionWatch } from './pg/session-watch';
 import * as schema from './schema';
 import { databaseDialect } from './tables';
 
@@ -51,13 +52,24 @@ export function sqliteClient(db: Db): Database.Database {
 
 // PostgreSQL: what the process knows of each pool (where its installation files live), and the pool behind each
 // write transaction's handle.
-const pools = new WeakMap<object, { dataDir: string | null }>();
+const pools = new WeakMap<object, { dataDir: string | null; watch: SessionWatch | null }>();
 const txPool = new WeakMap<Db, object>();
 
-/** Registers a PostgreSQL handle made by db/pg/client.ts, with the folder of its installation files. */
-export function adoptPg(db: Db, dataDir: string | null): Db {
-  pools.set((db as unknown as { $client: object }).$client, { dataDir });
+/**
+ * Registers a PostgreSQL handle made by db/pg/client.ts, with the folder of its installation files and the watch
+ * on the tables a session check reads.
+ */
+export function adoptPg(db: Db, dataDir: string | null, watch: SessionWatch | null = null): Db {
+  pools.set((db as unknown as { $client: object }).$client, { dataDir, watch });
   return db;
+}
+
+/**
+ * The version of the tables a session check reads (see SessionWatch), or null where no such watch runs: on
+ * SQLite (whose in-process reads cost less than keeping them) and on PostgreSQL while the process does not listen.
+ */
+export function sessionTablesVersion(db: Db): number | null {
+  return sqliteOf(db) ? null : (pools.get(databaseOf(db))?.watch?.version() ?? null);
 }
 
 /**
@@ -89,11 +101,15 @@ export async function migrateDb(db: Db): Promise<void> {
   migrate(db as unknown as Parameters<typeof migrate>[0], { migrationsFolder: MIGRATIONS });
 }
 
-/** Closes the connection (SQLite) or the pool (PostgreSQL). */
+/** Closes the connection (SQLite) or the pool and its watch (PostgreSQL). */
 export async function closeDb(db: Db): Promise<void> {
   const client = sqliteOf(db);
-  if (client) client.close();
-  else await (db as unknown as { $client: { end(): Promise<void> } }).$client.end();
+  if (client) {
+    client.close();
+    return;
+  }
+  await pools.get(databaseOf(db))?.watch?.close();
+  await (db as unknown as { $client: { end(): Promise<void> } }).$client.end();
 }
 
 /** The first row of a result, or undefined: `query.then(first)` where SQLite's `.get()` was. */
@@ -230,7 +246,7 @@ async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promis
   const database = databaseOf(db);
   for (let attempt = 1; ; attempt++) {
     try {
-      return await pgLocked(db, (one) =>
+      const result = await pgLocked(db, (one) =>
         one.transaction(
           async (tx) => {
             const handle = tx as unknown as Db;
@@ -241,6 +257,10 @@ async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promis
           { isolationLevel: 'serializable' },
         ),
       );
+      // What this process just committed is visible to its next session check at once, not only once its own
+      // notification comes back.
+      pools.get(database)?.watch?.bump();
+      return result;
     } catch (err) {
       const code = codeOf(err);
       if (code && PG_SERIALIZATION_FAILURE.has(code) && attempt < PG_ATTEMPTS) {

@@ -5,6 +5,7 @@ import pg from 'pg';
 import { adoptPg, type Db } from '../client';
 import { databaseDialect } from '../tables';
 import * as schema from './schema';
+import { watchSessionTables } from './session-watch';
 
 export type PgDb = NodePgDatabase<typeof schema> & { $client: pg.Pool };
 
@@ -44,7 +45,7 @@ export async function openPgDb(url: string, opts: { dataDir: string | null; max?
   const db = openPg(url, { max: opts.max });
   // A dropped idle connection is replaced on the next query; without a listener its error would end the process.
   db.$client.on('error', (err) => console.error(`[${new Date().toISOString()}] PostgreSQL connection lost: ${err.message}`));
-  return adoptPg(db as unknown as Db, opts.dataDir);
+  return adoptPg(db as unknown as Db, opts.dataDir, watchSessionTables(url));
 }
 
 /** migratePg for the product's handle. */

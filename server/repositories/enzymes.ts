@@ -38,7 +38,10 @@ const enzymePage = preparedPer((db, v: { search: boolean; sort: EnzymeQuery['sor
 export async function querySiteEnzymes(db: Db, siteId: number, q: EnzymeQuery): Promise<{ rows: EnzymeRow[]; total: number }> {
   const { page, total } = enzymePage(db, { search: !!q.q, sort: q.sort, dir: q.dir });
   const args = { siteId, pattern: q.q ? likeText(q.q) : undefined, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
-  return { rows: await page.execute(args), total: (await total.execute(args))[0]?.n ?? 0 };
+  const rows = await page.execute(args);
+  // A first page that is not full holds every match: no count needed.
+  if (args.offset === 0 && rows.length < args.limit) return { rows, total: rows.length };
+  return { rows, total: (await total.execute(args))[0]?.n ?? 0 };
 }
 
 export const findSiteEnzyme = (db: Db, siteId: number, id: number) =>

@@ -5,7 +5,7 @@ import { DatabaseUnwritable, writeTx, type Db } from '../../db/client';
 import type { SessionUser, SignInRequest } from '../../src/contracts/session';
 import type { AppContext } from '../context';
 import { HttpError } from '../http-error';
-import { findSessionWithUser, insertSession, revokeSession, touchSession } from '../repositories/sessions';
+import { insertSession, revokeSession, sessionWithUserNow, touchSession } from '../repositories/sessions';
 import { findUserByEmail, findUserWithSite, type UserRow } from '../repositories/users';
 import { appendAudit } from './audit';
 
@@ -130,7 +130,7 @@ export async function resolveSession(ctx: AuthContext, token: string): Promise<{
   const claims = await verifiedClaims(ctx.auth.secret, token, now);
   if (!claims) return null;
   const { sid, sub } = claims;
-  const found = await findSessionWithUser(ctx.db, sid);
+  const found = await sessionWithUserNow(ctx.db, sid);
   if (!found) return null;
   const { session } = found;
   if (session.revokedAt || String(session.userId) !== sub) return null;
