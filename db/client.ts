@@ -118,9 +118,6 @@ export const first = <T>(rows: T[]): T | undefined => rows[0];
 /** The row an INSERT or UPDATE ... RETURNING gave back: `query.returning().then(returned)`. */
 export const returned = <T>(rows: T[]): T => rows[0] as T;
 
-/** Runs `fn` under a savepoint: if it throws, only its own writes are undone and the transaction carries on. */
-export type Savepoint = <T>(fn: () => Promise<T>) => Promise<T>;
-
 /** Why the database cannot take a write just now. */
 export type UnwritableReason = 'locked' | 'full' | 'read-only' | 'io';
 
@@ -163,7 +160,7 @@ const PG_SERIALIZATION_FAILURE = new Set(['40001', '40P01']);
 /**
  * Whether an error inside a write transaction concerns the whole transaction, not the item that met it: the
  * database cannot be written, or PostgreSQL must run the transaction again (a serialization failure or a
- * deadlock; writeTx does). A group commit's savepoint lets an item fail alone only for other errors.
+ * deadlock; writeTx does). A group commit lets one item fail alone only for other errors.
  */
 export function failsWholeTransaction(err: unknown): boolean {
   const code = codeOf(err);
@@ -178,9 +175,6 @@ type TxStatements = {
   begin: Database.Statement;
   commit: Database.Statement;
   rollback: Database.Statement;
-  save: Database.Statement;
-  release: Database.Statement;
-  undo: Database.Statement;
 };
 const statements = new WeakMap<Database.Database, TxStatements>();
 function txStatements(client: Database.Database): TxStatements {
@@ -192,9 +186,6 @@ function txStatements(client: Database.Database): TxStatements {
         begin: client.prepare('begin immediate'),
         commit: client.prepare('commit'),
         rollback: client.prepare('rollback'),
-        save: client.prepare('savepoint yp'),
-        release: client.prepare('release yp'),
-        undo: client.prepare('rollback to yp'),
       }),
     );
   return s;
@@ -218,10 +209,8 @@ const queues = new WeakMap<Database.Database, Promise<unknown>>();
  * 40P01) and is run again from the start, up to PG_ATTEMPTS times with a short random wait. What SQLite's single
  * writer gave (a read-then-write never acts on a stale read: the audit chain's head, the seats left, a reading
  * key) holds the same way. So the callback must do nothing outside the database that a second run would repeat.
- *
- * `savepoint` lets one item of a group commit fail alone.
  */
-export function writeTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
+export function writeTx<T>(db: Db, fn: (tx: Db) => Promise<T> | T): Promise<T> {
   const client = sqliteOf(db);
   if (!client) return pgWriteTx(db, fn);
   const previous = queues.get(client);
@@ -242,7 +231,7 @@ const PG_ATTEMPTS = 12;
 // The advisory lock every write transaction holds (any number: it only has to be the same in every process).
 const PG_WRITE_LOCK = 0x59_50_57; // "YPW"
 
-async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
+async function pgWriteTx<T>(db: Db, fn: (tx: Db) => Promise<T> | T): Promise<T> {
   const database = databaseOf(db);
   for (let attempt = 1; ; attempt++) {
     try {
@@ -251,8 +240,7 @@ async function pgWriteTx<T>(db: Db, fn: (tx: Db, savepoint: Savepoint) => Promis
           async (tx) => {
             const handle = tx as unknown as Db;
             txPool.set(handle, database);
-            const savepoint: Savepoint = (inner) => tx.transaction(() => inner());
-            return fn(handle, savepoint);
+            return fn(handle);
           },
           { isolationLevel: 'serializable' },
         ),
@@ -302,31 +290,17 @@ async function pgLocked<T>(db: Db, fn: (one: Db) => Promise<T>): Promise<T> {
   }
 }
 
-async function sqliteTx<T>(db: Db, client: Database.Database, fn: (tx: Db, savepoint: Savepoint) => Promise<T> | T): Promise<T> {
+async function sqliteTx<T>(db: Db, client: Database.Database, fn: (tx: Db) => Promise<T> | T): Promise<T> {
   const st = txStatements(client);
   const wasFailing = failing.get(client);
   if (wasFailing) client.pragma('busy_timeout = 0');
   let turned = false;
   const sentinel = setImmediate(() => (turned = true));
-  const savepoint: Savepoint = async (inner) => {
-    st.save.run();
-    try {
-      const result = await inner();
-      st.release.run();
-      return result;
-    } catch (err) {
-      if (client.inTransaction) {
-        st.undo.run();
-        st.release.run();
-      }
-      throw err;
-    }
-  };
   try {
     st.begin.run();
     let result: T;
     try {
-      result = await fn(db, savepoint);
+      result = await fn(db);
       if (turned) throw new Error('writeTx: the transaction gave the event loop a turn before it committed; a write transaction may await only the database');
       st.commit.run();
     } catch (err) {
