@@ -140,9 +140,18 @@ const codeOf = (err: unknown): string | null => {
 
 // The database cannot take a write now, as opposed to a write the data refuses (a constraint and the like stay
 // errors of the request). SQLite's result codes; PostgreSQL's SQLSTATEs and node's socket errors.
+// node-postgres (8.x, lib/client.js and pg-pool) reports a lost or unreachable server with these messages and no
+// code; tests/pg/faults.test.ts stops a real server mid-write and fails if a new version words them otherwise.
+const PG_CONNECTION_LOST =
+  /^(Connection terminated|Client has encountered a connection error|Client was closed and is not queryable|timeout exceeded when trying to connect)/;
+
 export function unwritableReason(err: unknown): UnwritableReason | null {
   const code = codeOf(err);
-  if (!code) return null;
+  if (!code) {
+    for (let e = err as { message?: unknown; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++)
+      if (typeof e.message === 'string' && PG_CONNECTION_LOST.test(e.message)) return 'io';
+    return null;
+  }
   // A hot standby or a read-only session (25006), a full disk (53100), a server going down or refusing
   // connections (57P0x, connection errors: class 08), or no reachable server at all.
   if (code === '25006') return 'read-only';
@@ -257,7 +266,7 @@ async function pgWriteTx<T>(db: Db, fn: (tx: Db) => Promise<T> | T): Promise<T> 
         continue;
       }
       const reason = unwritableReason(err);
-      if (reason) throw new DatabaseUnwritable(reason, code!);
+      if (reason) throw new DatabaseUnwritable(reason, code ?? 'connection-lost');
       throw err;
     }
   }
@@ -273,6 +282,10 @@ async function pgLocked<T>(db: Db, fn: (one: Db) => Promise<T>): Promise<T> {
   const pool = (db as unknown as { $client: pg.Pool }).$client;
   const client = await pool.connect();
   let broken: Error | undefined;
+  // A checked-out client has no listener of the pool's: without this, a server lost between two statements
+  // would end the process with an unhandled 'error' (tests/pg/faults.test.ts).
+  const lost = (err: Error) => (broken = err);
+  client.on('error', lost);
   try {
     await client.query('select pg_advisory_lock($1)', [PG_WRITE_LOCK]);
     try {
@@ -286,6 +299,7 @@ async function pgLocked<T>(db: Db, fn: (one: Db) => Promise<T>): Promise<T> {
     throw err;
   } finally {
     // A connection that failed mid-way is not handed out again.
+    client.off('error', lost);
     client.release(broken);
   }
 }

@@ -1,7 +1,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
 import { fieldErrors, type ApiErrorBody } from '../../src/contracts/errors';
-import { DatabaseUnwritable } from '../../db/client';
+import { DatabaseUnwritable, unwritableReason } from '../../db/client';
 import { HttpError } from '../http-error';
 
 const body = (code: string, message: string, fields?: Record<string, string>): ApiErrorBody => ({
@@ -30,6 +30,12 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     // The transaction was rolled back; reads keep working and the next write that succeeds ends this state.
     res.set('retry-after', '10');
     res.status(503).json(body('database_unwritable', UNWRITABLE_MESSAGE[err.reason]));
+    return;
+  }
+  // A read that met a lost database server (PostgreSQL restarting, a failover, a dropped link): nothing changed.
+  if (unwritableReason(err) === 'io') {
+    res.set('retry-after', '10');
+    res.status(503).json(body('database_unavailable', 'The database cannot be reached just now; nothing was changed. Try again in a minute.'));
     return;
   }
   if (err instanceof ZodError) {

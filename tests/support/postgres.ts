@@ -15,6 +15,9 @@ export type TestPostgres = {
   createDatabase(name: string): Promise<string>;
   /** Milliseconds initdb and the start took. */
   startMs: number;
+  /** Stops the server at once (as a crash or a failover would), keeping its data; `up` starts it again. */
+  down(): void;
+  up(): void;
   stop(): Promise<void>;
 };
 
@@ -41,7 +44,8 @@ export async function startPostgres(opts: { durable?: boolean; settings?: string
   const port = await freePort();
   run('initdb', ['-D', data, '-U', 'yieldpoint', '-A', 'trust', '-E', 'UTF8', '--locale=C', '--no-sync', '--no-instructions']);
   const flags = `-p ${port} -k ${dir} -c listen_addresses=127.0.0.1 -c max_connections=200${opts.durable ? '' : ' -c fsync=off -c synchronous_commit=off -c full_page_writes=off'}${(opts.settings ?? []).map((s) => ` -c ${s}`).join('')}`;
-  run('pg_ctl', ['-D', data, '-o', flags, '-l', path.join(dir, 'log'), '-w', 'start']);
+  const up = () => run('pg_ctl', ['-D', data, '-o', flags, '-l', path.join(dir, 'log'), '-w', 'start']);
+  up();
   const startMs = performance.now() - t0;
   const url = `postgres://yieldpoint@127.0.0.1:${port}/postgres`;
   return {
@@ -57,8 +61,10 @@ export async function startPostgres(opts: { durable?: boolean; settings?: string
       }
       return `postgres://yieldpoint@127.0.0.1:${port}/${name}`;
     },
+    down: () => run('pg_ctl', ['-D', data, '-m', 'immediate', '-w', 'stop']),
+    up,
     async stop() {
-      run('pg_ctl', ['-D', data, '-m', 'immediate', '-w', 'stop']);
+      if (fs.existsSync(path.join(data, 'postmaster.pid'))) run('pg_ctl', ['-D', data, '-m', 'immediate', '-w', 'stop']);
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };
