@@ -152,7 +152,7 @@ async function printMixes(urls: string[], mixes: Mix[], afterRun?: () => Promise
   }
 }
 
-/** LOAD_DB=postgres: the reads and ingest mixes on PostgreSQL with LOAD_PROCESSES server processes. */
+/** LOAD_DB=postgres: the reads, ingest and import mixes on PostgreSQL with LOAD_PROCESSES server processes. */
 async function pgLoad() {
   const settings = [
     ...(PG_STATS ? ['shared_preload_libraries=pg_stat_statements'] : []),
@@ -160,15 +160,16 @@ async function pgLoad() {
   ];
   const cluster = await startPostgres({ durable: true, settings });
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'yieldpoint-pg-load-'));
+  const turnsFile = path.join(os.tmpdir(), `yieldpoint-turns-${process.pid}.txt`);
   const servers: RunningServer[] = [];
   try {
     const url = await cluster.createDatabase('load');
-    const env = { DATABASE_URL: url, DATA_DIR: dataDir, WEB_DIR: 'no-web-build', DATABASE_POOL: '10' };
+    const env = { DATABASE_URL: url, DATA_DIR: dataDir, WEB_DIR: 'no-web-build', DATABASE_POOL: '10', LOAD_TURNS_FILE: turnsFile };
     // One after the other: the first migrates and seeds, the next find it done.
-    const nodeArgs = CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : [];
+    const nodeArgs = [...(CPU_PROF_DIR ? ['--cpu-prof', `--cpu-prof-dir=${CPU_PROF_DIR}`] : []), '--import', path.join(__dirname, 'long-turns.mjs')];
     for (let i = 0; i < PROCESSES; i++) servers.push(await startServer({ env, nodeArgs }));
     const urls = servers.map((s) => s.baseURL);
-    const { mixes } = await httpMixes(urls[0]!);
+    const { mixes, operator, running } = await httpMixes(urls[0]!);
     console.log(
       `Load on PostgreSQL 15 (${PROCESSES} server process${PROCESSES > 1 ? 'es' : ''}: ${urls.join(', ')}), ${DURATION_S} s per run; machine load average ${os.loadavg()[0]!.toFixed(1)} on ${os.cpus().length} cores\n`,
     );
@@ -177,8 +178,14 @@ async function pgLoad() {
     await stats?.query('create extension pg_stat_statements');
     await stats?.query('select pg_stat_statements_reset()');
     await printMixes(urls, mixes, stats ? () => topStatements(stats) : undefined);
+    // The import against the first process (its long turns are recorded; with two, the other serves no reads).
+    if (!ONLY_MIX || ONLY_MIX === 'import') {
+      await importMix(urls[0]!, mixes[0]!, operator, running, turnsFile);
+      if (stats) await topStatements(stats);
+    }
     await stats?.end();
   } finally {
+    fs.rmSync(turnsFile, { force: true });
     for (const s of servers) await s.stop();
     await cluster.stop();
     fs.rmSync(dataDir, { recursive: true, force: true });
