@@ -138,13 +138,14 @@ const codeOf = (err: unknown): string | null => {
   return null;
 };
 
-// The database cannot take a write now, as opposed to a write the data refuses (a constraint and the like stay
-// errors of the request). SQLite's result codes; PostgreSQL's SQLSTATEs and node's socket errors.
 // node-postgres (8.x, lib/client.js and pg-pool) reports a lost or unreachable server with these messages and no
 // code; tests/pg/faults.test.ts stops a real server mid-write and fails if a new version words them otherwise.
 const PG_CONNECTION_LOST =
   /^(Connection terminated|Client has encountered a connection error|Client was closed and is not queryable|timeout exceeded when trying to connect)/;
 
+// The database cannot take a write now, as opposed to a write the data refuses (a constraint and the like stay
+// errors of the request). SQLite's result codes; PostgreSQL's SQLSTATEs, node's socket errors and node-postgres's
+// messages above.
 export function unwritableReason(err: unknown): UnwritableReason | null {
   const code = codeOf(err);
   if (!code) {
