@@ -3,28 +3,23 @@
 // write is a 503 that changed nothing, a read that cannot reach the server is a 503 (never a 500), every reading
 // answered 2xx is stored exactly once once the clients have retried, the audit chain verifies, and the product
 // writes again by itself once the server is back. Runs in the `server-pg` project only, on a cluster of its own.
-import type { Server } from 'node:http';
-import type { AddressInfo } from 'node:net';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { closeDb, sessionTablesVersion, type Db } from '../../db/client';
+import { sessionTablesVersion, type Db } from '../../db/client';
 import { migratePgDb, openPgDb } from '../../db/pg/client';
 import { seedDemo } from '../../db/seed';
-import { createApp } from '../../server/app';
-import { Client, email, password } from '../server/harness';
+import { serveTestApp, TestClock, type Client, type TestApp } from '../server/harness';
 import { startPostgres, type TestPostgres } from '../support/postgres';
-
-const AUTH = { secret: new TextEncoder().encode('test-secret-of-at-least-32-bytes!!'), idleMinutes: 60, absoluteHours: 24 };
+import { within } from '../support/within';
 
 let cluster: TestPostgres;
 let url: string;
 let dataDir: string;
 let db: Db;
-let server: Server;
-let base: string;
+let t: TestApp;
 let byHand: pg.Client;
 let operator: Client;
 let admin: Client;
@@ -34,11 +29,6 @@ const connectByHand = async () => {
   byHand = new pg.Client({ connectionString: url });
   await byHand.connect();
 };
-const signIn = async (role: 'operator' | 'admin') => {
-  const c = new Client(base);
-  expect((await c.post('/api/session', { email: email(role), password: password(role) })).status).toBe(201);
-  return c;
-};
 /**
  * Ends every connection of the product to its database (pool and listener), as a standby's restart would, and
  * waits until the pool has let them go (a request on a connection the pool has not yet seen die is answered 503
@@ -47,7 +37,7 @@ const signIn = async (role: 'operator' | 'admin') => {
 async function dropConnections() {
   await byHand.query("select pg_terminate_backend(pid) from pg_stat_activity where datname = 'faults' and pid <> pg_backend_pid()");
   const pool = (db as unknown as { $client: pg.Pool }).$client;
-  await within(5_000, async () => pool.totalCount === 0);
+  await within(5_000, () => pool.totalCount === 0, 50);
 }
 const storedKeys = async (prefix: string) =>
   (
@@ -60,14 +50,6 @@ const storedKeys = async (prefix: string) =>
 let minute = 0;
 const reading = (key: string) => ({ key, takenAt: new Date(Date.now() - 3_600_000 + ++minute * 1000).toISOString(), c: 55.2 });
 
-async function within(ms: number, f: () => Promise<boolean>): Promise<void> {
-  const t0 = performance.now();
-  while (!(await f())) {
-    if (performance.now() - t0 > ms) throw new Error(`not within ${ms} ms`);
-    await new Promise((r) => setTimeout(r, 50));
-  }
-}
-
 beforeAll(async () => {
   // PostgreSQL's durable defaults: the test clusters' synchronous_commit=off would lose the last commits (sign-ins
   // and acknowledged readings alike) when the server stops at once, which is what this file does.
@@ -77,23 +59,20 @@ beforeAll(async () => {
   db = await openPgDb(url, { dataDir, max: 4 });
   await migratePgDb(db);
   await seedDemo(db, { bcryptCost: 4 });
-  const app = createApp({ db, clock: { now: () => new Date() }, auth: AUTH, signInLimit: { perAddress: 1000, perAccount: 1000, windowMs: 60_000 } });
-  server = await new Promise((resolve) => {
-    const s = app.listen(0, '127.0.0.1', () => resolve(s));
-  });
-  base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+  // The wall clock: readings are taken now, in the seeded running batch.
+  const clock = new TestClock();
+  clock.now = () => new Date();
+  t = await serveTestApp(db, clock);
   await connectByHand();
-  operator = await signIn('operator');
-  admin = await signIn('admin');
+  operator = await t.signIn('operator');
+  admin = await t.signIn('admin');
   const { batches } = (await operator.get('/api/batches')).body as { batches: { id: number; state: string }[] };
   batchId = batches.find((b) => b.state === 'running')!.id;
 }, 60_000);
 
 afterAll(async () => {
   await byHand?.end().catch(() => undefined);
-  server?.closeAllConnections();
-  await new Promise((r) => server?.close(r));
-  if (db) await closeDb(db);
+  await t?.close();
   await cluster?.stop();
   fs.rmSync(dataDir, { recursive: true, force: true });
 });
@@ -150,12 +129,12 @@ describe('PostgreSQL faults', () => {
     ).toBe(true);
     expect(statuses.filter((s) => s === 503).length).toBeGreaterThan(0);
     // Nothing is kept while the session watch cannot listen.
-    await within(5_000, async () => sessionTablesVersion(db) === null);
+    await within(5_000, () => sessionTablesVersion(db) === null, 50);
 
     cluster.up();
     await connectByHand();
     // The clients retry what was not acknowledged, with the same keys (as the phone's queue does).
-    await within(10_000, async () => (await operator.get('/api/batches')).status === 200);
+    await within(10_000, async () => (await operator.get('/api/batches')).status === 200, 50);
     for (const key of keys) if (!acked.has(key)) await send(key);
     expect(acked.size, `statuses ${statuses.join(',')}`).toBe(keys.length);
 
@@ -165,6 +144,6 @@ describe('PostgreSQL faults', () => {
     const verify = await admin.get('/api/audit-events/verify');
     expect(verify.body).toMatchObject({ ok: true, problems: [] });
     // The session watch listens again, so session rows are kept again.
-    await within(10_000, async () => sessionTablesVersion(db) !== null);
+    await within(10_000, () => sessionTablesVersion(db) !== null, 50);
   }, 60_000);
 });

@@ -1,66 +1,38 @@
 // The session rows a process keeps on PostgreSQL (server/repositories/sessions.ts sessionWithUserNow): kept while
 // the trigger of migrations/pg/0003 announces no change to sessions, users or sites; a change from another process,
 // or by hand, ends a session everywhere at once. Two apps on one database stand for two server processes.
-import type { Server } from 'node:http';
-import type { AddressInfo } from 'node:net';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { closeDb, sessionTablesVersion, type Db } from '../../db/client';
+import { sessionTablesVersion } from '../../db/client';
 import { openPgDb } from '../../db/pg/client';
 import { seedDemo } from '../../db/seed';
-import { createApp } from '../../server/app';
 import { sessionWithUserNow } from '../../server/repositories/sessions';
-import { Client, email, password, TestClock } from '../server/harness';
+import { Client, email, serveTestApp, TestClock, type TestApp } from '../server/harness';
 import { freshPgDatabase } from '../support/pg-database';
+import { within } from '../support/within';
 
-const AUTH = { secret: new TextEncoder().encode('test-secret-of-at-least-32-bytes!!'), idleMinutes: 60, absoluteHours: 24 };
-
-type Proc = { db: Db; base: string; server: Server };
 let url: string;
 let dataDir: string;
-let a: Proc;
-let b: Proc;
+let a: TestApp;
+let b: TestApp;
 let byHand: pg.Client;
 
-async function proc(): Promise<Proc> {
-  const db = await openPgDb(url, { dataDir, max: 4 });
-  const app = createApp({ db, clock: new TestClock(), auth: AUTH, signInLimit: { perAddress: 1000, perAccount: 1000, windowMs: 60_000 } });
-  const server: Server = await new Promise((resolve) => {
-    const s = app.listen(0, '127.0.0.1', () => resolve(s));
-  });
-  return { db, server, base: `http://127.0.0.1:${(server.address() as AddressInfo).port}` };
-}
-
-async function signIn(p: Proc, role: 'engineer' | 'supervisor' | 'operator'): Promise<Client> {
-  const c = new Client(p.base);
-  expect((await c.post('/api/session', { email: email(role), password: password(role) })).status).toBe(201);
-  return c;
-}
+const proc = async () => serveTestApp(await openPgDb(url, { dataDir, max: 4 }), new TestClock());
 
 /** The same caller (its cookie) against another process. */
-function sameCallerAt(p: Proc, c: Client): Client {
+function sameCallerAt(p: TestApp, c: Client): Client {
   const other = new Client(p.base);
   other.cookie = c.cookie;
   return other;
 }
 
-/** Polls until `f` is true, for up to `ms`; how long it took. */
-async function within(ms: number, f: () => Promise<boolean>): Promise<number> {
-  const t0 = performance.now();
-  while (!(await f())) {
-    if (performance.now() - t0 > ms) throw new Error(`not within ${ms} ms`);
-    await new Promise((r) => setTimeout(r, 5));
-  }
-  return performance.now() - t0;
-}
-
 /** Whether the process answering `c` takes its cookie as a session (GET /api/session is open: user or null). */
 const signedIn = async (c: Client) => (await c.get('/api/session')).body?.user != null;
 
-const listening = (p: Proc) => within(5_000, async () => sessionTablesVersion(p.db) !== null);
+const listening = (p: TestApp) => within(5_000, async () => sessionTablesVersion(p.db) !== null);
 
 beforeAll(async () => {
   url = await freshPgDatabase();
@@ -74,18 +46,13 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await byHand?.end();
-  for (const p of [a, b]) {
-    if (!p) continue;
-    p.server.closeAllConnections();
-    await new Promise((r) => p.server.close(r));
-    await closeDb(p.db);
-  }
+  for (const p of [a, b]) await p?.close();
   fs.rmSync(dataDir, { recursive: true, force: true });
 });
 
 describe('session rows kept on PostgreSQL', () => {
   it('keeps a session row between requests while nothing it joins changes', async () => {
-    const c = await signIn(a, 'engineer');
+    const c = await a.signIn('engineer');
     expect(await signedIn(c)).toBe(true);
     const sid = (await byHand.query<{ id: string }>('select id from sessions order by created_at desc limit 1')).rows[0]!.id;
     const first = await sessionWithUserNow(b.db, sid);
@@ -95,7 +62,7 @@ describe('session rows kept on PostgreSQL', () => {
   });
 
   it('ends a session in the other process once it signs out in one', async () => {
-    const atA = await signIn(a, 'engineer');
+    const atA = await a.signIn('engineer');
     // The same cookie kept (the sign-out clears the caller's own).
     const stolenAtA = sameCallerAt(a, atA);
     const atB = sameCallerAt(b, atA);
@@ -111,7 +78,7 @@ describe('session rows kept on PostgreSQL', () => {
   });
 
   it('ends the sessions of a user changed by hand (psql), in every process', async () => {
-    const atA = await signIn(a, 'supervisor');
+    const atA = await a.signIn('supervisor');
     const atB = sameCallerAt(b, atA);
     expect(await signedIn(atA)).toBe(true);
     expect(await signedIn(atB)).toBe(true);
@@ -121,7 +88,7 @@ describe('session rows kept on PostgreSQL', () => {
   });
 
   it('keeps nothing from before a lost listening connection, and listens again', async () => {
-    const c = await signIn(a, 'operator');
+    const c = await a.signIn('operator');
     expect(await signedIn(c)).toBe(true);
     const sid = (await byHand.query<{ id: string }>('select id from sessions order by created_at desc limit 1')).rows[0]!.id;
     const before = await sessionWithUserNow(b.db, sid);

@@ -99,10 +99,17 @@ export async function startTestApp(
   await seedDemo(db, { bcryptCost: 4, now: opts.now });
   await seedDemo(db, { bcryptCost: 4, siteName: 'Other Plant', emailDomain: 'otherplant.test', now: opts.now });
   const clock = opts.now ? new TestClock(opts.now.getTime()) : new TestClock();
+  return serveTestApp(db, clock, { controlLink: opts.controlLink?.(db, clock), ...overrides });
+}
+
+/**
+ * The app on a database already migrated and seeded, listening on a free port; `close` closes the database too.
+ * Two of them on one PostgreSQL database (each with its own handle) stand for two server processes.
+ */
+export async function serveTestApp(db: Db, clock: TestClock, overrides: Partial<AppDeps> = {}): Promise<TestApp> {
   const app = createApp({
     db,
     clock,
-    controlLink: opts.controlLink?.(db, clock),
     auth: { secret: new TextEncoder().encode('test-secret-of-at-least-32-bytes!!'), idleMinutes: 60, absoluteHours: 24 },
     signInLimit: { perAddress: 1000, perAccount: 1000, windowMs: 60_000 },
     ...overrides,
